@@ -1,0 +1,46 @@
+/**
+ * The one catalogue of heatpath's errors. Codes are stable: clients, scripts
+ * and the LIMS may branch on them. Every entry says what went wrong in its
+ * title and what to do about it in its hint; a thrown error adds where.
+ *
+ * `status` is the HTTP status the service answers with; the CLI exits with 2
+ * for every user error (status < 500).
+ *
+ * Add entries here, grouped by area; never reuse or renumber a code.
+ */
+export const errorCatalogue = {
+  // ---- input files (parsers) ----
+  INPUT_EMPTY: { status: 400, title: 'The input is empty', hint: 'Send a CSV or JSON transient with a time_s column and one value column.' },
+  INPUT_MISSING_COLUMN: { status: 400, title: 'A required column is missing', hint: 'The header must name time_s and one of zth_K_per_W, temperature_C or voltage_V.' },
+  INPUT_UNKNOWN_COLUMN: { status: 400, title: 'A column name is not recognised', hint: 'Value columns are zth_K_per_W, temperature_C or voltage_V, optionally followed by @channel (for example voltage_V@D1).' },
+  INPUT_MIXED_QUANTITIES: { status: 400, title: 'Value columns measure different quantities', hint: 'Put columns of one quantity (all voltage_V, all temperature_C or all zth_K_per_W) in one file.' },
+  INPUT_DUPLICATE_COLUMN: { status: 400, title: 'A column name appears twice', hint: 'Give each channel its own name, for example temperature_C@A and temperature_C@B.' },
+  INPUT_ROW_LENGTH: { status: 400, title: 'A row has the wrong number of fields', hint: 'Every data row needs one field per header column, separated like the header.' },
+  INPUT_NOT_NUMERIC: { status: 400, title: 'A field is not a number', hint: 'Use plain decimal numbers with a point as decimal separator (1e-6, 0.5).' },
+  INPUT_NOT_FINITE: { status: 400, title: 'A field is NaN or infinite', hint: 'Remove or repeat-measure the sample; heatpath does not interpolate over missing values.' },
+  INPUT_NEGATIVE_TIME: { status: 400, title: 'A time is negative', hint: 'Times are seconds since the power step, starting at or after zero.' },
+  INPUT_DUPLICATE_TIME: { status: 400, title: 'A time appears twice', hint: 'Remove the repeated sample; each time must be unique.' },
+  INPUT_TIME_NOT_INCREASING: { status: 400, title: 'Times are not strictly increasing', hint: 'Sort the rows by time_s; the bench file may have been concatenated.' },
+  INPUT_TOO_FEW_POINTS: { status: 422, title: 'Too few samples to analyse', hint: 'Record at least 3 decades of time with at least 10 samples per decade.' },
+  INPUT_BAD_JSON: { status: 400, title: 'The JSON is malformed or not of the transient layout', hint: 'Send {"time_s": [...], "temperature_C": [...]} or a channel map such as {"time_s": [...], "voltage_V": {"D1": [...]}}.' },
+  INPUT_BAD_FORMAT: { status: 415, title: 'The input format is not supported', hint: 'Send CSV (comma, semicolon or tab separated) or JSON.' },
+
+  // ---- calibration ----
+  CALIBRATION_TOO_FEW_POINTS: { status: 422, title: 'Too few calibration points for the model', hint: 'A polynomial of order n needs at least n + 2 points; add points or choose a lower order.' },
+  CALIBRATION_BAD_MODEL: { status: 400, title: 'Unknown calibration model', hint: 'Choose one of linear, poly2, poly3, poly4, exp.' },
+  CALIBRATION_NOT_MONOTONIC: { status: 422, title: 'The calibration curve is not monotonic over its range', hint: 'Check the points (a swapped row?) or choose a lower-order model.' },
+  CALIBRATION_OUT_OF_RANGE: { status: 422, title: 'A measured voltage lies outside the calibrated range', hint: 'Extend the calibration sweep to cover the measured temperatures.' },
+  CALIBRATION_BAD_FILE: { status: 400, title: 'The calibration file is not valid', hint: 'Create it with `heatpath calibrate POINTS.csv --out CAL.json`.' },
+  CALIBRATION_REQUIRED: { status: 422, title: 'Voltage input needs a calibration', hint: 'Pass --calibration CAL.json (CLI) or a calibration (service) to convert voltage_V to temperature.' },
+
+  // ---- analysis parameters and physics ----
+  PARAM_INVALID: { status: 400, title: 'An analysis parameter is invalid', hint: 'See `heatpath analyze --help` for the allowed values.' },
+  POWER_REQUIRED: { status: 422, title: 'The heating power is missing', hint: 'Give the power (--power-w) or current and voltage (--current-a and --voltage-v); zth_K_per_W input needs none.' },
+  ANALYSIS_NOT_ANALYSABLE: { status: 422, title: 'The transient cannot be analysed', hint: 'Check that the curve is a cooling or heating transient of the stated kind and spans several decades of time.' },
+
+  // ---- CLI usage ----
+  CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and options.' },
+  FILE_NOT_READABLE: { status: 400, title: 'A file cannot be read', hint: 'Check the path and its permissions.' },
+} as const satisfies Record<string, { status: number; title: string; hint: string }>;
+
+export type ErrorCode = keyof typeof errorCatalogue;

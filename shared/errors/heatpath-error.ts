@@ -1,0 +1,44 @@
+import { errorCatalogue, type ErrorCode } from './error-catalogue.js';
+
+/** Where in an input an error was found. Lines and columns count from 1. */
+export interface ErrorLocation {
+  file?: string;
+  line?: number;
+  column?: number | string;
+}
+
+/**
+ * The error every part of heatpath throws for a problem the user can fix.
+ * `message` is one line: where, what, and what to do.
+ */
+export class HeatpathError extends Error {
+  readonly code: ErrorCode;
+  readonly status: number;
+  readonly hint: string;
+  readonly location: ErrorLocation;
+  readonly detail: string;
+
+  constructor(code: ErrorCode, detail: string, location: ErrorLocation = {}) {
+    const entry = errorCatalogue[code];
+    super(formatMessage(entry.title, detail, entry.hint, location));
+    this.name = 'HeatpathError';
+    this.code = code;
+    this.status = entry.status;
+    this.hint = entry.hint;
+    this.location = location;
+    this.detail = detail;
+  }
+}
+
+export function isHeatpathError(error: unknown): error is HeatpathError {
+  return error instanceof HeatpathError;
+}
+
+function formatMessage(title: string, detail: string, hint: string, at: ErrorLocation): string {
+  const where = [
+    at.file,
+    at.line !== undefined ? `line ${at.line}` : undefined,
+    at.column !== undefined ? `column ${at.column}` : undefined,
+  ].filter(Boolean).join(', ');
+  return `${where ? where + ': ' : ''}${title}: ${detail}. ${hint}`;
+}

@@ -1,0 +1,43 @@
+import { Type, type Static } from 'typebox';
+
+/**
+ * Analysis parameters: the knobs a user may set, with their defaults.
+ * This schema is the single source of validation (CLI and service), of the
+ * TypeScript type and of the OpenAPI description. Defaults are documented
+ * here and nowhere else.
+ */
+export const AnalysisParametersSchema = Type.Object(
+  {
+    kind: Type.Union([Type.Literal('cooling'), Type.Literal('heating')], {
+      default: 'cooling',
+      description: 'cooling: power switched off at t = 0 after steady heating; heating: power step on a device at equilibrium.',
+    }),
+    method: Type.Union([Type.Literal('bayes'), Type.Literal('fourier')], {
+      default: 'bayes',
+      description: 'Deconvolution of the time-constant spectrum: Bayesian iterative (default) or Fourier-domain with a noise-chosen filter.',
+    }),
+    points_per_decade: Type.Integer({ minimum: 10, maximum: 200, default: 40, description: 'Samples per decade of the uniform log-time grid.' }),
+    early_time_start_s: Type.Optional(Type.Number({ exclusiveMinimum: 0, description: 'Start of the sqrt(t) fit window; found automatically when omitted.' })),
+    early_time_end_s: Type.Optional(Type.Number({ exclusiveMinimum: 0, description: 'End of the sqrt(t) fit window; found automatically when omitted.' })),
+    compact_stages: Type.Integer({ minimum: 1, maximum: 12, default: 5, description: 'Stages of the compact Foster model (datasheet style).' }),
+  },
+  { additionalProperties: false },
+);
+export type AnalysisParameters = Static<typeof AnalysisParametersSchema>;
+
+/** How the heating power is given: directly, or as sense current times voltage. */
+export const PowerSchema = Type.Union([
+  Type.Object({ power_W: Type.Number({ exclusiveMinimum: 0 }) }, { additionalProperties: false }),
+  Type.Object(
+    { current_A: Type.Number({ exclusiveMinimum: 0 }), voltage_V: Type.Number({ exclusiveMinimum: 0 }) },
+    { additionalProperties: false },
+  ),
+]);
+export type Power = Static<typeof PowerSchema>;
+
+export const defaultAnalysisParameters: AnalysisParameters = {
+  kind: 'cooling',
+  method: 'bayes',
+  points_per_decade: 40,
+  compact_stages: 5,
+};

@@ -1,0 +1,60 @@
+import { Type, type Static } from 'typebox';
+import { AnalysisParametersSchema } from './analysis-parameters.js';
+
+const Numbers = Type.Array(Type.Number());
+
+export const FosterStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_K: Type.Number(), tau_s: Type.Number() });
+export const CauerStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_K: Type.Number() });
+
+/**
+ * The result of analysing one channel of one transient. The CLI prints it
+ * (`--format json`), the workers store it, the service returns it: one shape.
+ */
+export const AnalysisResultSchema = Type.Object({
+  heatpath_result: Type.Literal(1, { description: 'Layout version of this object.' }),
+  source: Type.Object({ file: Type.String(), channel: Type.String(), quantity: Type.String(), points: Type.Integer() }),
+  rth_total_K_per_W: Type.Number(),
+  power_W: Type.Union([Type.Number(), Type.Null()]),
+  zth: Type.Object({ time_s: Numbers, zth_K_per_W: Numbers }),
+  spectrum: Type.Object({ tau_s: Numbers, r_K_per_W: Numbers }),
+  foster: Type.Array(FosterStageSchema),
+  cauer: Type.Array(CauerStageSchema),
+  structure: Type.Object({
+    cumulative: Type.Object({ r_K_per_W: Numbers, c_J_per_K: Numbers }),
+    differential: Type.Object({ r_K_per_W: Numbers, k_W2s_per_K2: Numbers }),
+  }),
+  compact: Type.Object({
+    stages: Type.Integer(),
+    foster: Type.Array(FosterStageSchema),
+    cauer: Type.Array(CauerStageSchema),
+    fit_rms_K_per_W: Type.Number(),
+    fit_max_rel: Type.Number({ description: 'Largest |fit - Zth| / Rth total over the data.' }),
+    spice: Type.Object({ foster: Type.String(), cauer: Type.String() }),
+  }),
+  early_time: Type.Object({
+    applied: Type.Boolean(),
+    window_start_s: Type.Number(),
+    window_end_s: Type.Number(),
+    automatic: Type.Boolean(),
+    slope_K_per_sqrt_s: Type.Number(),
+    t0_value: Type.Number({ description: 'Extrapolated value at t = 0 in the input quantity after calibration (temperature_C or zth_K_per_W).' }),
+    residual_rms: Type.Number(),
+  }),
+  quality: Type.Object({
+    noise_K: Type.Number(),
+    deconvolution_iterations: Type.Integer(),
+    deconvolution_residual_rms: Type.Number(),
+    warnings: Type.Array(Type.String()),
+  }),
+  provenance: Type.Object({
+    version: Type.String(),
+    algorithm: Type.String({ description: 'Algorithm version: changes whenever a result for the same input may change.' }),
+    method: Type.String(),
+    parameters: AnalysisParametersSchema,
+    input_sha256: Type.String(),
+    calibration_sha256: Type.Union([Type.String(), Type.Null()]),
+    created_at: Type.String(),
+  }),
+  caution: Type.String(),
+});
+export type AnalysisResult = Static<typeof AnalysisResultSchema>;

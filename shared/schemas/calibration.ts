@@ -1,0 +1,36 @@
+import { Type, type Static } from 'typebox';
+
+/**
+ * A TSP calibration: temperature against the temperature-sensitive voltage,
+ * fitted by `heatpath calibrate` and read by `--calibration`. Our own layout:
+ * the model maps voltage_V -> temperature_C.
+ */
+export const CalibrationModelSchema = Type.Union([
+  Type.Literal('linear'),
+  Type.Literal('poly2'),
+  Type.Literal('poly3'),
+  Type.Literal('poly4'),
+  Type.Literal('exp'),
+]);
+export type CalibrationModel = Static<typeof CalibrationModelSchema>;
+
+export const CalibrationSchema = Type.Object(
+  {
+    heatpath_calibration: Type.Literal(1, { description: 'Layout version of this file.' }),
+    model: CalibrationModelSchema,
+    coefficients: Type.Array(Type.Number(), {
+      description:
+        'linear/polyN: temperature_C = sum c[i] * voltage_V^i; exp: temperature_C = c[0] + c[1] * exp(c[2] * voltage_V).',
+    }),
+    voltage_range_V: Type.Tuple([Type.Number(), Type.Number()]),
+    temperature_range_C: Type.Tuple([Type.Number(), Type.Number()]),
+    residual_rms_K: Type.Number({ minimum: 0 }),
+    sensitivity_mV_per_K: Type.Number({ description: 'dV/dT at the middle of the range (negative for a diode).' }),
+    k_factor_K_per_mV: Type.Number({ description: 'Inverse sensitivity, as JESD51-1 defines the K-factor.' }),
+    points: Type.Integer({ minimum: 2 }),
+    created_at: Type.Optional(Type.String()),
+    source: Type.Optional(Type.String()),
+  },
+  { additionalProperties: false },
+);
+export type Calibration = Static<typeof CalibrationSchema>;
