@@ -1,0 +1,54 @@
+import { writeFile } from 'node:fs/promises';
+import { createHash } from 'node:crypto';
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { parseCalibrationPoints } from '../../shared/input/parse-calibration-points.js';
+import { fitCalibration } from '../../shared/numerics/tsp-calibration.js';
+import { CalibrationModelSchema, type CalibrationModel } from '../../shared/schemas/calibration.js';
+import { choiceOption, parseCommandLine } from './cli-arguments.js';
+import { readInputFile } from './read-input-file.js';
+
+export const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly2|poly3|poly4|exp [--out CAL.json]
+
+Fit the temperature-sensitive parameter: temperature_C as a function of
+voltage_V from a calibration sweep (CSV with columns temperature_C and
+voltage_V). Prints the fit; --out writes the calibration file that
+\`heatpath analyze --calibration\` reads.`;
+
+const models = CalibrationModelSchema.anyOf.map((literal) => literal.const) as CalibrationModel[];
+
+export async function runCalibrateCommand(argv: string[], print: (text: string) => void): Promise<number> {
+  const { values, positionals } = parseCommandLine('calibrate', argv, {
+    model: { type: 'string' },
+    out: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (values.help) {
+    print(calibrateUsage);
+    return 0;
+  }
+  if (positionals.length !== 1) throw new HeatpathError('CLI_USAGE', 'heatpath calibrate needs exactly one POINTS.csv');
+  const model = choiceOption('model', values.model as string | undefined, models) ?? 'linear';
+  const file = positionals[0];
+  const bytes = await readInputFile(file);
+  const points = parseCalibrationPoints(bytes, file);
+  const calibration = {
+    ...fitCalibration(points.temperature_C, points.voltage_V, model),
+    created_at: new Date().toISOString(),
+    source: `${file} sha256:${createHash('sha256').update(bytes).digest('hex')}`,
+  };
+  print(
+    [
+      `${file}: ${model} fit over ${calibration.points} points`,
+      `  temperature range   ${calibration.temperature_range_C[0]} .. ${calibration.temperature_range_C[1]} C`,
+      `  voltage range       ${calibration.voltage_range_V[0]} .. ${calibration.voltage_range_V[1]} V`,
+      `  coefficients        ${calibration.coefficients.map((c) => c.toPrecision(8)).join(', ')}`,
+      `  residual RMS        ${calibration.residual_rms_K.toPrecision(3)} K`,
+      `  sensitivity         ${calibration.sensitivity_mV_per_K.toPrecision(4)} mV/K (K-factor ${calibration.k_factor_K_per_mV.toPrecision(4)} K/mV)`,
+    ].join('\n') + '\n',
+  );
+  if (values.out) {
+    await writeFile(values.out as string, JSON.stringify(calibration, null, 2) + '\n');
+    print(`  written to          ${values.out}\n`);
+  }
+  return 0;
+}

@@ -1,0 +1,32 @@
+import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
+
+/** The readable summary `heatpath analyze` prints for one channel. */
+export function formatResultSummary(file: string, result: AnalysisResult, outDir?: string): string {
+  const { early_time: early, quality, compact } = result;
+  const lines = [
+    `${file}  channel ${result.source.channel}  (${result.source.quantity}, ${result.source.points} samples)`,
+    `  Rth total        ${fixed(result.rth_total_K_per_W)} K/W` + (result.power_W !== null ? `   at P = ${result.power_W.toPrecision(4)} W` : ''),
+    early.applied
+      ? `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}`
+      : '  early time       not applied',
+    `  noise            ${quality.noise_K.toPrecision(2)} K RMS`,
+    `  spectrum         ${result.provenance.method}, ${quality.deconvolution_iterations} iterations, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
+    `  Foster / Cauer   ${result.foster.length} / ${result.cauer.length} stages`,
+    `  compact Foster   ${compact.stages} stages, fit rms ${compact.fit_rms_K_per_W.toPrecision(2)} K/W, max ${(100 * compact.fit_max_rel).toFixed(2)} % of Rth`,
+    '                   R [K/W]      tau [s]',
+    ...compact.foster.map((s) => `                   ${fixed(s.r_K_per_W).padEnd(12)} ${s.tau_s.toExponential(3)}`),
+    `  warnings         ${quality.warnings.length === 0 ? 'none' : quality.warnings.join('\n                   ')}`,
+  ];
+  if (outDir) lines.push(`  written to       ${outDir}/`);
+  return lines.join('\n') + '\n';
+}
+
+function fixed(value: number): string {
+  return value.toPrecision(4);
+}
+
+function time(seconds: number): string {
+  if (seconds < 1e-3) return `${(seconds * 1e6).toPrecision(3)} us`;
+  if (seconds < 1) return `${(seconds * 1e3).toPrecision(3)} ms`;
+  return `${seconds.toPrecision(3)} s`;
+}

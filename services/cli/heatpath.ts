@@ -1,0 +1,54 @@
+#!/usr/bin/env node
+import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
+import { HEATPATH_VERSION } from '../../shared/analysis/algorithm-version.js';
+import { runAnalyzeCommand } from './analyze-command.js';
+import { runCalibrateCommand } from './calibrate-command.js';
+
+const overview = `heatpath ${HEATPATH_VERSION}: thermal transient analysis
+
+Commands:
+  heatpath analyze FILE...        Zth, spectrum, Foster/Cauer, structure functions, compact model
+  heatpath calibrate POINTS.csv   fit a TSP calibration (temperature vs voltage)
+
+Run \`heatpath COMMAND --help\` for the options of a command.
+
+Results inform qualification and design decisions: check them against the
+applicable standards (JESD51-1, JESD51-14, AQG 324) and qualified lab practice.`;
+
+type Command = (argv: string[], print: (text: string) => void) => Promise<number>;
+
+const commands: Record<string, Command> = {
+  analyze: runAnalyzeCommand,
+  calibrate: runCalibrateCommand,
+};
+
+/** Exit codes: 0 done, 2 the user must fix something (one line on stderr), 1 an internal failure. */
+export async function main(argv: string[]): Promise<number> {
+  const [name, ...rest] = argv;
+  const print = (text: string) => process.stdout.write(text.endsWith('\n') ? text : text + '\n');
+  if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
+    print(overview);
+    return name === undefined ? 2 : 0;
+  }
+  if (name === '--version') {
+    print(HEATPATH_VERSION);
+    return 0;
+  }
+  const command = commands[name];
+  if (!command) {
+    process.stderr.write(`heatpath: unknown command "${name.slice(0, 40)}". Run \`heatpath --help\` for the commands.\n`);
+    return 2;
+  }
+  try {
+    return await command(rest, print);
+  } catch (error) {
+    if (isHeatpathError(error) && error.status < 500) {
+      process.stderr.write(`heatpath ${name}: ${error.message} [${error.code}]\n`);
+      return 2;
+    }
+    process.stderr.write(`heatpath ${name}: internal error: ${(error as Error)?.stack ?? String(error)}\nPlease report this with the input file.\n`);
+    return 1;
+  }
+}
+
+process.exitCode = await main(process.argv.slice(2));
