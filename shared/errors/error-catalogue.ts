@@ -41,6 +41,24 @@ export const errorCatalogue = {
   // ---- CLI usage ----
   CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and options.' },
   FILE_NOT_READABLE: { status: 400, title: 'A file cannot be read', hint: 'Check the path and its permissions.' },
+
+  // ---- service: configuration ----
+  CONFIG_INVALID: { status: 500, title: 'The service configuration is not valid', hint: 'Fix the environment variables listed above and start again; README.md lists them with their defaults.' },
+
+  // ---- service: HTTP requests ----
+  REQUEST_INVALID: { status: 400, title: 'The request does not match the API', hint: 'See /docs or /openapi.json for the parameters and bodies each route accepts.' },
+  AUTH_KEY_MISSING: { status: 401, title: 'No API key was sent', hint: 'Send the header Authorization: Bearer <token> with a key the lab admin gave you.' },
+  AUTH_KEY_INVALID: { status: 401, title: 'The API key is not known', hint: 'Check the token for typos, or ask the lab admin for a valid key.' },
+  AUTH_ROLE_FORBIDDEN: { status: 403, title: 'The API key may not do this', hint: 'Use a key whose role allows it: bench uploads and reads, reader reads, admin does everything.' },
+  ROUTE_NOT_FOUND: { status: 404, title: 'No such route', hint: 'See /docs for the routes; they live under /v1.' },
+  RESOURCE_NOT_FOUND: { status: 404, title: 'No such resource', hint: 'Check the id; ids come from the answers of earlier requests (upload, calibration, batch, webhook).' },
+  RESULT_NOT_READY: { status: 409, title: 'The job has no result yet', hint: 'Poll the job (its links.self) until its state is completed, or register a webhook.' },
+  IDEMPOTENCY_KEY_REUSED: { status: 409, title: 'The Idempotency-Key was used for a different request', hint: 'Use a fresh Idempotency-Key for every distinct upload; repeat a key only to retry the same upload.' },
+  UPLOAD_TOO_LARGE: { status: 413, title: 'The upload is too large', hint: 'Split the measurement or ask the admin to raise HEATPATH_MAX_UPLOAD_BYTES.' },
+  MEDIA_TYPE_UNSUPPORTED: { status: 415, title: 'The Content-Type is not supported', hint: 'Send text/csv, application/json or multipart/form-data (file field plus metadata fields).' },
+  RATE_LIMITED: { status: 429, title: 'Too many requests for this API key', hint: 'Wait for the Retry-After seconds, then retry; the admin sets HEATPATH_RATE_LIMIT_PER_MINUTE.' },
+  SERVICE_UNAVAILABLE: { status: 503, title: 'A backing service is unavailable', hint: 'Retry later; the admin should check Redis and the data directory (see /health/ready).' },
+  INTERNAL_ERROR: { status: 500, title: 'Internal error', hint: 'Retry; if it persists, send the request id to the service admin.' },
 } as const satisfies Record<string, { status: number; title: string; hint: string }>;
 
 export type ErrorCode = keyof typeof errorCatalogue;

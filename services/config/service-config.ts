@@ -1,0 +1,97 @@
+import { readFileSync } from 'node:fs';
+import { resolve } from 'node:path';
+import { Type, type Static } from 'typebox';
+import { Value } from 'typebox/value';
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { parseApiKeyList, type ApiKey } from './api-key-list.js';
+
+/**
+ * The service's environment: the one place where its variables, their
+ * defaults and their meaning are written down. Read once at start by
+ * `loadServiceConfig`; nothing else reads process.env.
+ */
+export const ServiceEnvSchema = Type.Object({
+  PORT: Type.Integer({ minimum: 0, maximum: 65535, default: 8080, description: 'TCP port of the HTTP API (0 picks a free one).' }),
+  HOST: Type.String({ minLength: 1, default: '127.0.0.1', description: 'Address the API listens on; 0.0.0.0 serves the whole lab network.' }),
+  REDIS_URL: Type.String({ pattern: '^rediss?://', default: 'redis://127.0.0.1:6379', description: 'Redis holding the job queue (redis:// or rediss://).' }),
+  HEATPATH_DATA_DIR: Type.String({ minLength: 1, default: '.heatpath-data', description: 'Durable store of raw transients, uploads and results (relative to the working directory).' }),
+  HEATPATH_API_KEYS: Type.Optional(Type.String({ description: 'API keys as name:role:token, comma-separated; role is bench, reader or admin.' })),
+  HEATPATH_API_KEYS_FILE: Type.Optional(Type.String({ minLength: 1, description: 'File with one name:role:token a line (# comments); instead of HEATPATH_API_KEYS.' })),
+  HEATPATH_MAX_UPLOAD_BYTES: Type.Integer({ minimum: 1024, default: 32 * 1024 * 1024, description: 'Largest accepted upload body or file in bytes; larger ones get 413.' }),
+  HEATPATH_RATE_LIMIT_PER_MINUTE: Type.Integer({ minimum: 1, default: 1200, description: 'Requests per API key per minute; more get 429.' }),
+  HEATPATH_LOG_LEVEL: Type.Union(
+    ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'].map((level) => Type.Literal(level)),
+    { default: 'info', description: 'pino log level.' },
+  ),
+});
+type ServiceEnv = Static<typeof ServiceEnvSchema>;
+
+export interface ServiceConfig {
+  port: number;
+  host: string;
+  redisUrl: string;
+  /** Absolute path. */
+  dataDir: string;
+  apiKeys: ApiKey[];
+  maxUploadBytes: number;
+  rateLimitPerMinute: number;
+  logLevel: string;
+}
+
+/**
+ * Validate the environment once. Throws one CONFIG_INVALID error that lists
+ * every bad variable with what to set instead, so an operator fixes all in
+ * one go.
+ */
+export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env): ServiceConfig {
+  const known = Object.keys(ServiceEnvSchema.properties);
+  const given = Object.fromEntries(known.filter((name) => env[name] !== undefined && env[name] !== '').map((name) => [name, env[name]]));
+  const converted = Value.Default(ServiceEnvSchema, Value.Convert(ServiceEnvSchema, given));
+  const problems = [...Value.Errors(ServiceEnvSchema, converted)].map((error) => describeEnvProblem(error.instancePath, error.message));
+  const keys = Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
+  if (problems.length > 0) {
+    throw new HeatpathError('CONFIG_INVALID', `\n  - ${problems.join('\n  - ')}\n`);
+  }
+  const valid = converted as ServiceEnv;
+  return {
+    port: valid.PORT,
+    host: valid.HOST,
+    redisUrl: valid.REDIS_URL,
+    dataDir: resolve(valid.HEATPATH_DATA_DIR),
+    apiKeys: keys,
+    maxUploadBytes: valid.HEATPATH_MAX_UPLOAD_BYTES,
+    rateLimitPerMinute: valid.HEATPATH_RATE_LIMIT_PER_MINUTE,
+    logLevel: valid.HEATPATH_LOG_LEVEL,
+  };
+}
+
+function describeEnvProblem(instancePath: string, message: string): string {
+  const name = instancePath.replace(/^\//, '');
+  const description = (ServiceEnvSchema.properties as Record<string, { description?: string }>)[name]?.description ?? '';
+  return `${name}: ${message}. ${description}`;
+}
+
+function loadApiKeys(env: ServiceEnv, problems: string[]): ApiKey[] {
+  if (env.HEATPATH_API_KEYS !== undefined && env.HEATPATH_API_KEYS_FILE !== undefined) {
+    problems.push('HEATPATH_API_KEYS and HEATPATH_API_KEYS_FILE are both set: set only one.');
+    return [];
+  }
+  if (env.HEATPATH_API_KEYS_FILE !== undefined) {
+    let text: string;
+    try {
+      text = readFileSync(env.HEATPATH_API_KEYS_FILE, 'utf8');
+    } catch (error) {
+      problems.push(`HEATPATH_API_KEYS_FILE: cannot read ${env.HEATPATH_API_KEYS_FILE} (${(error as Error).message}).`);
+      return [];
+    }
+    return collect(parseApiKeyList(text, 'HEATPATH_API_KEYS_FILE'), problems);
+  }
+  if (env.HEATPATH_API_KEYS !== undefined) return collect(parseApiKeyList(env.HEATPATH_API_KEYS, 'HEATPATH_API_KEYS'), problems);
+  problems.push('No API keys: set HEATPATH_API_KEYS=name:role:token[,...] or HEATPATH_API_KEYS_FILE (roles: bench, reader, admin; tokens of 16 or more characters, e.g. from `openssl rand -hex 24`).');
+  return [];
+}
+
+function collect(parsed: { keys: ApiKey[]; problems: string[] }, problems: string[]): ApiKey[] {
+  problems.push(...parsed.problems.map((problem) => `${problem}.`));
+  return parsed.keys;
+}

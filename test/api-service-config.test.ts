@@ -1,0 +1,68 @@
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { sha256 } from '../services/config/api-key-list.js';
+import { loadServiceConfig } from '../services/config/service-config.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+
+const benchToken = 'bench-token-0123456789';
+const tempDir = mkdtempSync(join(tmpdir(), 'heatpath-config-'));
+afterAll(() => rmSync(tempDir, { recursive: true, force: true }));
+
+function configError(env: NodeJS.ProcessEnv): HeatpathError {
+  try {
+    loadServiceConfig(env);
+  } catch (error) {
+    if (error instanceof HeatpathError) return error;
+    throw error;
+  }
+  throw new Error('loadServiceConfig accepted an invalid environment');
+}
+
+describe('loadServiceConfig', () => {
+  it('applies the documented defaults and keeps only token hashes', () => {
+    const config = loadServiceConfig({ HEATPATH_API_KEYS: `bench1:bench:${benchToken}` });
+    expect(config).toMatchObject({ port: 8080, host: '127.0.0.1', redisUrl: 'redis://127.0.0.1:6379', maxUploadBytes: 32 * 1024 * 1024 });
+    expect(config.dataDir).toBe(join(process.cwd(), '.heatpath-data'));
+    expect(config.apiKeys).toEqual([{ name: 'bench1', role: 'bench', tokenSha256: sha256(benchToken) }]);
+    expect(JSON.stringify(config)).not.toContain(benchToken);
+  });
+
+  it('converts numbers and reads several keys, tokens may contain colons', () => {
+    const config = loadServiceConfig({
+      PORT: '9000',
+      HEATPATH_MAX_UPLOAD_BYTES: '2048',
+      HEATPATH_API_KEYS: `a:admin:${benchToken}:x, r:reader:${benchToken}y`,
+    });
+    expect(config.port).toBe(9000);
+    expect(config.maxUploadBytes).toBe(2048);
+    expect(config.apiKeys.map((key) => [key.name, key.role])).toEqual([['a', 'admin'], ['r', 'reader']]);
+    expect(config.apiKeys[0].tokenSha256).toEqual(sha256(`${benchToken}:x`));
+  });
+
+  it('reads a keys file with comments', () => {
+    const file = join(tempDir, 'keys.txt');
+    writeFileSync(file, `# lab keys\nlims:reader:${benchToken}\n\nbench2:bench:${benchToken}z # line 2\n`);
+    const config = loadServiceConfig({ HEATPATH_API_KEYS_FILE: file });
+    expect(config.apiKeys.map((key) => key.name)).toEqual(['lims', 'bench2']);
+  });
+
+  it('lists every bad variable in one CONFIG_INVALID error', () => {
+    const error = configError({ PORT: 'eighty', REDIS_URL: 'localhost:6379', HEATPATH_API_KEYS: 'x:boss:short' });
+    expect(error.code).toBe('CONFIG_INVALID');
+    expect(error.message).toContain('PORT');
+    expect(error.message).toContain('REDIS_URL');
+    // Keys are checked only once the plain variables are valid.
+    expect(configError({ HEATPATH_API_KEYS: 'x:boss:short,y' }).message).toMatch(/role "boss"[\s\S]*shorter than 16[\s\S]*entry 2 is not name:role:token/);
+  });
+
+  it('refuses to start without keys and never echoes a token', () => {
+    expect(configError({}).message).toContain('No API keys');
+    const error = configError({ HEATPATH_API_KEYS: `dup:reader:${benchToken},dup:admin:${benchToken}` });
+    expect(error.message).toContain('"dup" is used twice');
+    expect(error.message).not.toContain(benchToken);
+    expect(configError({ HEATPATH_API_KEYS: `a:reader:${benchToken}`, HEATPATH_API_KEYS_FILE: '/x' }).message).toContain('set only one');
+    expect(configError({ HEATPATH_API_KEYS_FILE: join(tempDir, 'missing.txt') }).message).toContain('cannot read');
+  });
+});
