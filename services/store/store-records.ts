@@ -1,4 +1,5 @@
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
+import type { Calibration } from '../../shared/schemas/calibration.js';
 
 /**
  * Records kept in the durable store (HEATPATH_DATA_DIR). Redis holds only the
@@ -32,8 +33,88 @@ export interface ResultRecord {
   job_id: string;
   upload_id: string;
   input_sha256: string;
+  sample_id: string;
+  /** Algorithm version (ALGORITHM_VERSION) that produced the results. */
   algorithm: string;
+  /** Program version (HEATPATH_VERSION) that produced the results. */
+  heatpath_version: string;
+  parameters: AnalysisParameters;
+  power: Power | null;
+  calibration_id: string | null;
+  /** The reprocessing batch that asked for this job, if any. */
+  batch_id: string | null;
   finished_at: string;
   duration_ms: number;
   results: unknown[];
+}
+
+/** A job that failed for good (bad input, or retries exhausted); keeps recovery from re-queueing it. */
+export interface FailureRecord {
+  job_id: string;
+  upload_id: string;
+  batch_id: string | null;
+  failed_at: string;
+  /** HeatpathError code when the input was at fault, else null. */
+  code: string | null;
+  message: string;
+  attempts: number;
+}
+
+/** A stored calibration; its id is the SHA-256 of its canonical JSON. */
+export interface CalibrationRecord {
+  calibration_id: string;
+  calibration: Calibration;
+  stored_at: string;
+  stored_by: string;
+}
+
+/** Selects stored uploads; every given field must match. */
+export interface UploadFilter {
+  sample_id?: string;
+  bench?: string;
+  tag?: string;
+  /** Inclusive lower bound on received_at (ISO 8601). */
+  received_from?: string;
+  /** Exclusive upper bound on received_at (ISO 8601). */
+  received_to?: string;
+}
+
+/** One job of a reprocessing batch. */
+export interface BatchEntry {
+  upload_id: string;
+  job_id: string;
+}
+
+/** A reprocessing batch: a selection of uploads analysed again with given parameters. */
+export interface BatchRecord {
+  batch_id: string;
+  created_at: string;
+  created_by: string;
+  selection: UploadFilter;
+  /** Parameters replacing each upload's own; null keeps the upload's parameters (new algorithm version only). */
+  parameters: Partial<AnalysisParameters> | null;
+  algorithm: string;
+  status: 'running' | 'cancelled';
+  cancelled_at: string | null;
+  entries: BatchEntry[];
+}
+
+export type WebhookEvent = 'job.completed' | 'job.failed';
+
+/** A registered callback URL; the secret signs every delivery. */
+export interface WebhookRecord {
+  webhook_id: string;
+  url: string;
+  secret: string;
+  events: WebhookEvent[];
+  created_at: string;
+  created_by: string;
+}
+
+/** What an idempotency key was first used for; a repeated request gets the same answer. */
+export interface IdempotencyRecord {
+  key: string;
+  created_at: string;
+  upload_id: string;
+  job_id: string;
 }

@@ -1,0 +1,75 @@
+import { randomBytes } from 'node:crypto';
+import { link, mkdir, open, rename, unlink } from 'node:fs/promises';
+import { dirname, join } from 'node:path';
+
+/**
+ * Crash-safe file writes for a store shared by several processes: the bytes go
+ * to a temporary file in the target's directory (same file system, so the final
+ * step is atomic), are fsynced, then appear under their name in one step, and
+ * the directory is fsynced so the name survives a power loss.
+ */
+
+const createdDirectories = new Set<string>();
+
+async function ensureDirectory(directory: string): Promise<void> {
+  if (createdDirectories.has(directory)) return;
+  await mkdir(directory, { recursive: true });
+  createdDirectories.add(directory);
+}
+
+async function fsyncPath(path: string, flags: 'r' | 'r+'): Promise<void> {
+  const handle = await open(path, flags);
+  try {
+    await handle.sync();
+  } finally {
+    await handle.close();
+  }
+}
+
+async function writeTemporary(target: string, bytes: Uint8Array | string): Promise<string> {
+  const directory = dirname(target);
+  await ensureDirectory(directory);
+  const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
+  const handle = await open(temporary, 'wx');
+  try {
+    await handle.writeFile(bytes);
+    await handle.sync();
+  } catch (error) {
+    await handle.close();
+    await unlink(temporary).catch(() => undefined);
+    throw error;
+  }
+  await handle.close();
+  return temporary;
+}
+
+/** Replace `target` atomically: readers see the old or the new content, never a part. */
+export async function writeFileAtomic(target: string, bytes: Uint8Array | string): Promise<void> {
+  const temporary = await writeTemporary(target, bytes);
+  try {
+    await rename(temporary, target);
+  } catch (error) {
+    await unlink(temporary).catch(() => undefined);
+    throw error;
+  }
+  await fsyncPath(dirname(target), 'r');
+}
+
+/**
+ * Create `target` atomically unless it exists (hard link fails on an existing
+ * name, across processes). Returns false when another writer got there first;
+ * the existing file is left untouched.
+ */
+export async function createFileExclusive(target: string, bytes: Uint8Array | string): Promise<boolean> {
+  const temporary = await writeTemporary(target, bytes);
+  try {
+    await link(temporary, target);
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code === 'EEXIST') return false;
+    throw error;
+  } finally {
+    await unlink(temporary).catch(() => undefined);
+  }
+  await fsyncPath(dirname(target), 'r');
+  return true;
+}

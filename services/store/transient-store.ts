@@ -1,0 +1,290 @@
+import { createHash } from 'node:crypto';
+import { access, constants, readdir, readFile, stat, unlink } from 'node:fs/promises';
+import { join } from 'node:path';
+import type { Calibration } from '../../shared/schemas/calibration.js';
+import { canonicalJson } from '../jobs/canonical-json.js';
+import { createFileExclusive, writeFileAtomic } from './atomic-file.js';
+import type {
+  BatchRecord,
+  CalibrationRecord,
+  FailureRecord,
+  IdempotencyRecord,
+  ResultRecord,
+  UploadFilter,
+  UploadRecord,
+  WebhookRecord,
+} from './store-records.js';
+
+/** Ids that are safe as file names: no separators, no leading dot. */
+const STORE_ID = /^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$/;
+const SHA256_HEX = /^[0-9a-f]{64}$/;
+/** Parallel file reads when listing: enough to hide latency, few enough to stay polite. */
+const LIST_READ_CONCURRENCY = 32;
+
+export function isStoreId(id: string): boolean {
+  return STORE_ID.test(id);
+}
+
+export function sha256Hex(bytes: Uint8Array | string): string {
+  return createHash('sha256').update(bytes).digest('hex');
+}
+
+export interface StoredBlob {
+  sha256: string;
+  byte_length: number;
+  /** True when the same content was stored before (nothing was written). */
+  existed: boolean;
+}
+
+/**
+ * The durable store: raw transients, upload records, results and the
+ * service's small registries, as plain files under one data directory.
+ *
+ * Layout (shard = first two hex digits of a hash, to keep directories small):
+ *   blobs/<shard>/<sha256>             raw bytes, content-addressed
+ *   uploads/<shard>/<upload_id>.json   UploadRecord
+ *   results/<shard>/<job_id>.json      ResultRecord, written once
+ *   failures/<shard>/<job_id>.json     FailureRecord, written once
+ *   calibrations/<calibration_id>.json CalibrationRecord (id = content hash)
+ *   batches/<batch_id>.json            BatchRecord
+ *   webhooks/<webhook_id>.json         WebhookRecord
+ *   idempotency/<shard>/<sha256(key)>.json IdempotencyRecord, written once
+ *
+ * Every write is atomic and durable (see atomic-file.ts), so several API and
+ * worker processes may share the directory (a shared volume). Write-once
+ * records use an exclusive create: the first writer wins, later ones are no-ops.
+ */
+export class TransientStore {
+  constructor(readonly dataDir: string) {}
+
+  // ---- raw transients ----
+
+  async putBlob(bytes: Uint8Array): Promise<StoredBlob> {
+    const sha256 = sha256Hex(bytes);
+    const path = this.blobPath(sha256);
+    const existed = (await exists(path)) || !(await createFileExclusive(path, bytes));
+    return { sha256, byte_length: bytes.byteLength, existed };
+  }
+
+  async getBlob(sha256: string): Promise<Uint8Array | null> {
+    if (!SHA256_HEX.test(sha256)) return null;
+    return readOrNull(this.blobPath(sha256));
+  }
+
+  // ---- uploads ----
+
+  async putUpload(record: UploadRecord): Promise<void> {
+    await writeFileAtomic(this.shardedPath('uploads', requireId(record.upload_id)), JSON.stringify(record));
+  }
+
+  async getUpload(uploadId: string): Promise<UploadRecord | null> {
+    return isStoreId(uploadId) ? readJson<UploadRecord>(this.shardedPath('uploads', uploadId)) : null;
+  }
+
+  /** Uploads matching every given field of the filter, oldest first. */
+  async listUploads(filter: UploadFilter = {}): Promise<UploadRecord[]> {
+    const records = await this.readAllSharded<UploadRecord>('uploads');
+    return records
+      .filter((upload) => uploadMatches(upload, filter))
+      .sort((a, b) => a.received_at.localeCompare(b.received_at) || a.upload_id.localeCompare(b.upload_id));
+  }
+
+  // ---- results and failures ----
+
+  /** Writes the result unless one exists for this job; returns whether it wrote. */
+  async putResult(record: ResultRecord): Promise<boolean> {
+    return createFileExclusive(this.shardedPath('results', requireId(record.job_id)), JSON.stringify(record));
+  }
+
+  async getResult(jobId: string): Promise<ResultRecord | null> {
+    return isStoreId(jobId) ? readJson<ResultRecord>(this.shardedPath('results', jobId)) : null;
+  }
+
+  async hasResult(jobId: string): Promise<boolean> {
+    return isStoreId(jobId) && exists(this.shardedPath('results', jobId));
+  }
+
+  /** Records a final failure unless one exists; returns whether it wrote. */
+  async putFailure(record: FailureRecord): Promise<boolean> {
+    return createFileExclusive(this.shardedPath('failures', requireId(record.job_id)), JSON.stringify(record));
+  }
+
+  async getFailure(jobId: string): Promise<FailureRecord | null> {
+    return isStoreId(jobId) ? readJson<FailureRecord>(this.shardedPath('failures', jobId)) : null;
+  }
+
+  async hasFailure(jobId: string): Promise<boolean> {
+    return isStoreId(jobId) && exists(this.shardedPath('failures', jobId));
+  }
+
+  // ---- calibrations ----
+
+  /** Stores a calibration under the hash of its canonical JSON (the same calibration twice is one record). */
+  async putCalibration(calibration: Calibration, storedBy: string): Promise<CalibrationRecord> {
+    const calibrationId = sha256Hex(canonicalJson(calibration));
+    const existing = await this.getCalibration(calibrationId);
+    if (existing) return existing;
+    const record: CalibrationRecord = { calibration_id: calibrationId, calibration, stored_at: new Date().toISOString(), stored_by: storedBy };
+    await createFileExclusive(join(this.dataDir, 'calibrations', `${calibrationId}.json`), JSON.stringify(record));
+    return (await this.getCalibration(calibrationId)) ?? record;
+  }
+
+  async getCalibration(calibrationId: string): Promise<CalibrationRecord | null> {
+    return SHA256_HEX.test(calibrationId) ? readJson<CalibrationRecord>(join(this.dataDir, 'calibrations', `${calibrationId}.json`)) : null;
+  }
+
+  // ---- batches ----
+
+  async putBatch(record: BatchRecord): Promise<void> {
+    await writeFileAtomic(this.flatPath('batches', requireId(record.batch_id)), JSON.stringify(record));
+  }
+
+  async getBatch(batchId: string): Promise<BatchRecord | null> {
+    return isStoreId(batchId) ? readJson<BatchRecord>(this.flatPath('batches', batchId)) : null;
+  }
+
+  async listBatches(): Promise<BatchRecord[]> {
+    const records = await this.readAllIn<BatchRecord>(join(this.dataDir, 'batches'));
+    return records.sort((a, b) => a.created_at.localeCompare(b.created_at));
+  }
+
+  // ---- webhooks ----
+
+  async putWebhook(record: WebhookRecord): Promise<void> {
+    await writeFileAtomic(this.flatPath('webhooks', requireId(record.webhook_id)), JSON.stringify(record));
+  }
+
+  async getWebhook(webhookId: string): Promise<WebhookRecord | null> {
+    return isStoreId(webhookId) ? readJson<WebhookRecord>(this.flatPath('webhooks', webhookId)) : null;
+  }
+
+  async listWebhooks(): Promise<WebhookRecord[]> {
+    const records = await this.readAllIn<WebhookRecord>(join(this.dataDir, 'webhooks'));
+    return records.sort((a, b) => a.created_at.localeCompare(b.created_at));
+  }
+
+  /** Returns whether a registration was removed. */
+  async deleteWebhook(webhookId: string): Promise<boolean> {
+    if (!isStoreId(webhookId)) return false;
+    try {
+      await unlink(this.flatPath('webhooks', webhookId));
+      return true;
+    } catch (error) {
+      if (isMissing(error)) return false;
+      throw error;
+    }
+  }
+
+  // ---- idempotency keys ----
+
+  /**
+   * Claims an idempotency key for a request. The first claim wins; a repeated
+   * claim returns the first record, so the caller can answer as it did then.
+   */
+  async claimIdempotencyKey(record: IdempotencyRecord): Promise<{ claimed: boolean; record: IdempotencyRecord }> {
+    const path = this.shardedPath('idempotency', sha256Hex(record.key));
+    if (await createFileExclusive(path, JSON.stringify(record))) return { claimed: true, record };
+    const existing = await readJson<IdempotencyRecord>(path);
+    return { claimed: false, record: existing ?? record };
+  }
+
+  async getIdempotencyKey(key: string): Promise<IdempotencyRecord | null> {
+    return readJson<IdempotencyRecord>(this.shardedPath('idempotency', sha256Hex(key)));
+  }
+
+  // ---- health ----
+
+  /** Cheap readiness: the data directory exists and this process may write in it. */
+  async isReady(): Promise<boolean> {
+    try {
+      const info = await stat(this.dataDir);
+      await access(this.dataDir, constants.W_OK);
+      return info.isDirectory();
+    } catch {
+      return false;
+    }
+  }
+
+  // ---- layout ----
+
+  private blobPath(sha256: string): string {
+    return join(this.dataDir, 'blobs', sha256.slice(0, 2), sha256);
+  }
+
+  private shardedPath(kind: string, id: string): string {
+    return join(this.dataDir, kind, sha256Hex(id).slice(0, 2), `${id}.json`);
+  }
+
+  private flatPath(kind: string, id: string): string {
+    return join(this.dataDir, kind, `${id}.json`);
+  }
+
+  private async readAllSharded<T>(kind: string): Promise<T[]> {
+    const root = join(this.dataDir, kind);
+    const shards = await listNames(root);
+    const perShard = await Promise.all(shards.map((shard) => this.readAllIn<T>(join(root, shard))));
+    return perShard.flat();
+  }
+
+  private async readAllIn<T>(directory: string): Promise<T[]> {
+    const files = (await listNames(directory)).filter((name) => name.endsWith('.json') && !name.startsWith('.'));
+    const records: T[] = [];
+    for (let start = 0; start < files.length; start += LIST_READ_CONCURRENCY) {
+      const chunk = files.slice(start, start + LIST_READ_CONCURRENCY);
+      const read = await Promise.all(chunk.map((name) => readJson<T>(join(directory, name))));
+      for (const record of read) if (record !== null) records.push(record);
+    }
+    return records;
+  }
+}
+
+function uploadMatches(upload: UploadRecord, filter: UploadFilter): boolean {
+  return (
+    (filter.sample_id === undefined || upload.sample_id === filter.sample_id) &&
+    (filter.bench === undefined || upload.bench === filter.bench) &&
+    (filter.tag === undefined || upload.tags.includes(filter.tag)) &&
+    (filter.received_from === undefined || upload.received_at >= filter.received_from) &&
+    (filter.received_to === undefined || upload.received_at < filter.received_to)
+  );
+}
+
+function requireId(id: string): string {
+  if (!isStoreId(id)) throw new Error(`not a valid store id: ${JSON.stringify(id)}`);
+  return id;
+}
+
+function isMissing(error: unknown): boolean {
+  return (error as NodeJS.ErrnoException).code === 'ENOENT';
+}
+
+async function exists(path: string): Promise<boolean> {
+  try {
+    await access(path);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+async function readOrNull(path: string): Promise<Uint8Array | null> {
+  try {
+    return await readFile(path);
+  } catch (error) {
+    if (isMissing(error)) return null;
+    throw error;
+  }
+}
+
+async function readJson<T>(path: string): Promise<T | null> {
+  const bytes = await readOrNull(path);
+  return bytes === null ? null : (JSON.parse(Buffer.from(bytes).toString('utf8')) as T);
+}
+
+async function listNames(directory: string): Promise<string[]> {
+  try {
+    return await readdir(directory);
+  } catch (error) {
+    if (isMissing(error)) return [];
+    throw error;
+  }
+}

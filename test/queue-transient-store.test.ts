@@ -1,0 +1,108 @@
+import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';
+import { sha256Hex, TransientStore } from '../services/store/transient-store.js';
+import type { ResultRecord, UploadRecord } from '../services/store/store-records.js';
+
+let dataDir: string;
+let store: TransientStore;
+
+beforeEach(async () => {
+  dataDir = await mkdtemp(join(tmpdir(), 'heatpath-store-'));
+  store = new TransientStore(dataDir);
+});
+afterEach(async () => {
+  await rm(dataDir, { recursive: true, force: true });
+});
+
+function upload(id: string, overrides: Partial<UploadRecord> = {}): UploadRecord {
+  return {
+    upload_id: id, input_sha256: 'a'.repeat(64), format: 'csv', file_name: `${id}.csv`, byte_length: 10,
+    received_at: '2026-01-01T00:00:00.000Z', sample_id: 'S1', bench: 'B1', channel: null, cycle_count: null,
+    tags: [], power: { power_W: 10 }, calibration_id: null, parameters: defaultAnalysisParameters,
+    job_id: `job-${id}`, uploaded_by: 'bench', ...overrides,
+  };
+}
+
+function result(jobId: string, marker: string): ResultRecord {
+  return {
+    job_id: jobId, upload_id: 'u1', input_sha256: 'a'.repeat(64), sample_id: 'S1', algorithm: 'test',
+    heatpath_version: 'test', parameters: defaultAnalysisParameters, power: null, calibration_id: null,
+    batch_id: null, finished_at: marker, duration_ms: 1, results: [],
+  };
+}
+
+describe('TransientStore', () => {
+  it('stores blobs by content hash and reports a repeat as existing', async () => {
+    const bytes = new TextEncoder().encode('time_s,zth_K_per_W\n1e-6,0.01\n');
+    const first = await store.putBlob(bytes);
+    const second = await store.putBlob(bytes);
+    expect(first).toEqual({ sha256: sha256Hex(bytes), byte_length: bytes.byteLength, existed: false });
+    expect(second.existed).toBe(true);
+    expect(Buffer.from((await store.getBlob(first.sha256))!)).toEqual(Buffer.from(bytes));
+    expect(await store.getBlob('f'.repeat(64))).toBeNull();
+  });
+
+  it('writes one blob when many writers race with the same content, and leaves no temporary files', async () => {
+    const bytes = new Uint8Array(100_000).map((_, i) => i % 251);
+    const outcomes = await Promise.all(Array.from({ length: 20 }, () => store.putBlob(bytes)));
+    expect(outcomes.filter((o) => !o.existed)).toHaveLength(1);
+    const shard = join(dataDir, 'blobs', outcomes[0].sha256.slice(0, 2));
+    expect(await readdir(shard)).toEqual([outcomes[0].sha256]);
+  });
+
+  it('keeps the first result of a job and ignores later writes', async () => {
+    const writes = await Promise.all(['one', 'two', 'three'].map((m) => store.putResult(result('job-x', m))));
+    expect(writes.filter(Boolean)).toHaveLength(1);
+    const kept = await store.getResult('job-x');
+    expect(['one', 'two', 'three']).toContain(kept!.finished_at);
+    expect(await store.putResult(result('job-x', 'later'))).toBe(false);
+    expect((await store.getResult('job-x'))!.finished_at).toBe(kept!.finished_at);
+    expect(await store.hasResult('job-x')).toBe(true);
+    expect(await store.hasResult('job-y')).toBe(false);
+  });
+
+  it('lists uploads by sample, bench, tag and time range, oldest first', async () => {
+    await store.putUpload(upload('u3', { received_at: '2026-01-03T00:00:00.000Z', tags: ['night'] }));
+    await store.putUpload(upload('u1', { received_at: '2026-01-01T00:00:00.000Z', bench: 'B2' }));
+    await store.putUpload(upload('u2', { received_at: '2026-01-02T00:00:00.000Z', sample_id: 'S2' }));
+    const ids = async (filter: Parameters<TransientStore['listUploads']>[0]) => (await store.listUploads(filter)).map((u) => u.upload_id);
+    expect(await ids({})).toEqual(['u1', 'u2', 'u3']);
+    expect(await ids({ sample_id: 'S1' })).toEqual(['u1', 'u3']);
+    expect(await ids({ bench: 'B2' })).toEqual(['u1']);
+    expect(await ids({ tag: 'night' })).toEqual(['u3']);
+    expect(await ids({ received_from: '2026-01-02T00:00:00.000Z', received_to: '2026-01-03T00:00:00.000Z' })).toEqual(['u2']);
+    expect(await store.getUpload('u2')).toEqual(upload('u2', { received_at: '2026-01-02T00:00:00.000Z', sample_id: 'S2' }));
+  });
+
+  it('refuses ids that could escape the data directory', async () => {
+    await expect(store.putUpload(upload('../evil'))).rejects.toThrow(/not a valid store id/);
+    expect(await store.getUpload('../evil')).toBeNull();
+    expect(await store.getResult('a/b')).toBeNull();
+  });
+
+  it('gives an idempotency key to its first claimant only', async () => {
+    const first = await store.claimIdempotencyKey({ key: 'k1', created_at: 't', upload_id: 'u1', job_id: 'j1' });
+    const second = await store.claimIdempotencyKey({ key: 'k1', created_at: 't2', upload_id: 'u2', job_id: 'j2' });
+    expect(first.claimed).toBe(true);
+    expect(second).toEqual({ claimed: false, record: first.record });
+  });
+
+  it('stores a calibration under its content hash, once', async () => {
+    const calibration = {
+      heatpath_calibration: 1 as const, model: 'linear' as const, coefficients: [500, -250], voltage_range_V: [0.5, 0.7] as [number, number],
+      temperature_range_C: [25, 150] as [number, number], residual_rms_K: 0.1, sensitivity_mV_per_K: -2, k_factor_K_per_mV: -0.5, points: 6,
+    };
+    const first = await store.putCalibration(calibration, 'admin');
+    const again = await store.putCalibration({ ...calibration }, 'someone-else');
+    expect(first.calibration_id).toMatch(/^[0-9a-f]{64}$/);
+    expect(again).toEqual(first);
+  });
+
+  it('is ready on a writable directory and not on a missing one', async () => {
+    expect(await store.isReady()).toBe(true);
+    expect(await new TransientStore(join(dataDir, 'missing')).isReady()).toBe(false);
+  });
+});

@@ -1,0 +1,164 @@
+import { Queue, type JobsOptions } from 'bullmq';
+import type { AnalysisParameters, Power } from '../shared/schemas/analysis-parameters.js';
+import type { UploadRecord } from '../services/store/store-records.js';
+import { DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL, producerConnection } from './redis-connections.js';
+
+/** BullMQ priorities (lower runs first). Every job gets one: jobs without a priority would overtake them all. */
+export const JOB_PRIORITY = {
+  /** A bench's upload, waiting for its result. */
+  interactive: 1,
+  /** Archive reprocessing: runs when no upload waits. */
+  batch: 100,
+} as const;
+
+export const DEFAULT_ANALYSIS_QUEUE_NAME = 'analysis';
+
+/** What a worker needs to find and analyse one upload; everything else is in the store. */
+export interface AnalysisJobData {
+  upload_id: string;
+  input_sha256: string;
+  parameters: AnalysisParameters;
+  power: Power | null;
+  calibration_id: string | null;
+  batch_id: string | null;
+}
+
+export interface AnalysisQueueOptions {
+  /** Redis to connect to. Default `redis://127.0.0.1:6379`. */
+  redisUrl?: string;
+  /** BullMQ key prefix. Default `{heatpath}` (hash-tagged for Redis Cluster). */
+  prefix?: string;
+  /** Queue name. Default `analysis`. */
+  queueName?: string;
+  /** Attempts per job before it fails for good. Default 5. */
+  attempts?: number;
+  /** First retry delay in ms, doubled on each retry. Default 2000. */
+  backoffDelayMs?: number;
+}
+
+export interface EnqueueOptions {
+  priority: number;
+  /** The reprocessing batch asking for the job, if any. */
+  batchId?: string | null;
+}
+
+export interface AnalysisJobState {
+  job_id: string;
+  state: string;
+  progress: number;
+  added_at: string | null;
+  started_at: string | null;
+  finished_at: string | null;
+  attempts_made: number;
+  failed_reason: string | null;
+}
+
+export type AnalysisQueueCounts = Record<'waiting' | 'prioritized' | 'active' | 'delayed' | 'completed' | 'failed', number>;
+
+/**
+ * The producer side of the analysis queue: the API enqueues uploads, batches
+ * enqueue reprocessing, both read job states. The job id is the deterministic
+ * job id of the upload (see services/jobs/job-id.ts), so adding the same job
+ * twice returns the existing job. Results live in the store; Redis keeps
+ * finished jobs only for a while (for states and dedup of retries).
+ */
+export class AnalysisQueue {
+  readonly queue: Queue<AnalysisJobData>;
+  private readonly jobOptions: JobsOptions;
+
+  constructor(options: AnalysisQueueOptions = {}) {
+    this.queue = new Queue<AnalysisJobData>(options.queueName ?? DEFAULT_ANALYSIS_QUEUE_NAME, {
+      connection: producerConnection(options.redisUrl ?? DEFAULT_REDIS_URL),
+      prefix: options.prefix ?? DEFAULT_QUEUE_PREFIX,
+    });
+    // A Redis outage surfaces as failed commands (503 in the API), not as an unhandled 'error' event.
+    this.queue.on('error', () => undefined);
+    this.jobOptions = {
+      attempts: options.attempts ?? 5,
+      backoff: { type: 'exponential', delay: options.backoffDelayMs ?? 2_000 },
+      removeOnComplete: { age: 24 * 3600, count: 100_000 },
+      removeOnFail: { age: 7 * 24 * 3600 },
+    };
+  }
+
+  /** Adds the upload's job unless Redis holds it already; returns the job id. */
+  async enqueue(upload: UploadRecord, options: EnqueueOptions): Promise<string> {
+    await this.queue.add('analyse', jobDataFor(upload, options.batchId ?? null), this.addOptions(upload.job_id, options.priority));
+    return upload.job_id;
+  }
+
+  /** One round trip for many jobs (batches); existing job ids are left as they are. */
+  async enqueueMany(uploads: UploadRecord[], options: EnqueueOptions): Promise<void> {
+    await this.queue.addBulk(
+      uploads.map((upload) => ({
+        name: 'analyse',
+        data: jobDataFor(upload, options.batchId ?? null),
+        opts: this.addOptions(upload.job_id, options.priority),
+      })),
+    );
+  }
+
+  /** Null when Redis does not know the job (never queued, removed after finishing, or Redis lost it). */
+  async getJobState(jobId: string): Promise<AnalysisJobState | null> {
+    const job = await this.queue.getJob(jobId);
+    if (!job) return null;
+    return {
+      job_id: jobId,
+      state: await job.getState(),
+      progress: typeof job.progress === 'number' ? job.progress : 0,
+      added_at: isoOrNull(job.timestamp),
+      started_at: isoOrNull(job.processedOn),
+      finished_at: isoOrNull(job.finishedOn),
+      attempts_made: job.attemptsMade,
+      failed_reason: job.failedReason || null,
+    };
+  }
+
+  async getCounts(): Promise<AnalysisQueueCounts> {
+    const counts = await this.queue.getJobCounts('waiting', 'prioritized', 'active', 'delayed', 'completed', 'failed');
+    return counts as AnalysisQueueCounts;
+  }
+
+  /** Removes a job that has not started; returns whether it was removed. */
+  async removeIfWaiting(jobId: string): Promise<boolean> {
+    const job = await this.queue.getJob(jobId);
+    if (!job) return false;
+    const state = await job.getState();
+    if (state !== 'waiting' && state !== 'prioritized' && state !== 'delayed') return false;
+    await job.remove();
+    return true;
+  }
+
+  /** Readiness: Redis answers a one-key read of this queue. */
+  async ping(): Promise<boolean> {
+    try {
+      await this.queue.getJobCounts('active');
+      return true;
+    } catch {
+      return false;
+    }
+  }
+
+  async close(): Promise<void> {
+    await this.queue.close();
+  }
+
+  private addOptions(jobId: string, priority: number): JobsOptions {
+    return { ...this.jobOptions, jobId, priority };
+  }
+}
+
+function jobDataFor(upload: UploadRecord, batchId: string | null): AnalysisJobData {
+  return {
+    upload_id: upload.upload_id,
+    input_sha256: upload.input_sha256,
+    parameters: upload.parameters,
+    power: upload.power,
+    calibration_id: upload.calibration_id,
+    batch_id: batchId,
+  };
+}
+
+function isoOrNull(epochMs: number | undefined): string | null {
+  return epochMs ? new Date(epochMs).toISOString() : null;
+}
