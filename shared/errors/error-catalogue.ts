@@ -31,6 +31,7 @@ export const errorCatalogue = {
   CALIBRATION_NOT_MONOTONIC: { status: 422, title: 'The calibration curve is not monotonic over its range', hint: 'Check the points (a swapped row?) or choose a lower-order model.' },
   CALIBRATION_OUT_OF_RANGE: { status: 422, title: 'A measured voltage lies outside the calibrated range', hint: 'Extend the calibration sweep to cover the measured temperatures.' },
   CALIBRATION_BAD_FILE: { status: 400, title: 'The calibration file is not valid', hint: 'Create it with `heatpath calibrate POINTS.csv --out CAL.json`.' },
+  CALIBRATION_POINTS_COLUMNS: { status: 400, title: 'The calibration points need exactly the columns temperature_C and voltage_V', hint: 'Write the header temperature_C,voltage_V (either order) and one row per calibration point.' },
   CALIBRATION_REQUIRED: { status: 422, title: 'Voltage input needs a calibration', hint: 'Pass --calibration CAL.json (CLI) or a calibration (service) to convert voltage_V to temperature.' },
 
   // ---- analysis parameters and physics ----

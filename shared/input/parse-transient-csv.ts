@@ -1,0 +1,67 @@
+import { HeatpathError } from '../errors/heatpath-error.js';
+import { checkTransientTime } from './check-transient-time.js';
+import { quoteInputText, shortenInputText } from './quote-input-text.js';
+import { readNumericCsv } from './read-numeric-csv.js';
+import { DEFAULT_CHANNEL_NAME, isTransientQuantity, type TransientFile, type TransientQuantity } from './transient-file.js';
+
+const TIME_COLUMN = 'time_s';
+
+interface ValueColumn {
+  index: number;
+  channel: string;
+}
+
+/**
+ * Parse a CSV transient: a `time_s` column and value columns of one quantity
+ * (`zth_K_per_W`, `temperature_C` or `voltage_V`), each optionally named
+ * `quantity@channel`. Dialect: see read-numeric-csv.ts.
+ */
+export function parseTransientCsv(text: string, fileName: string): TransientFile {
+  let timeIndex = -1;
+  let quantity: TransientQuantity | undefined;
+  const valueColumns: ValueColumn[] = [];
+
+  const table = readNumericCsv(text, fileName, (names, headerLine) => {
+    const at = (name: string) => ({ file: fileName, line: headerLine, column: shortenInputText(name) });
+    const seenChannels = new Map<string, string>();
+    names.forEach((name, index) => {
+      if (name === TIME_COLUMN) {
+        if (timeIndex >= 0) throw new HeatpathError('INPUT_DUPLICATE_COLUMN', `${TIME_COLUMN} appears twice`, at(name));
+        timeIndex = index;
+        return;
+      }
+      const [columnQuantity, channel] = splitValueColumnName(name);
+      if (!isTransientQuantity(columnQuantity) || channel === '') {
+        throw new HeatpathError('INPUT_UNKNOWN_COLUMN', `${quoteInputText(name)} is not time_s or a value column`, at(name));
+      }
+      if (quantity !== undefined && columnQuantity !== quantity) {
+        throw new HeatpathError('INPUT_MIXED_QUANTITIES', `${quoteInputText(name)} next to ${quantity} columns`, at(name));
+      }
+      const earlier = seenChannels.get(channel);
+      if (earlier !== undefined) {
+        throw new HeatpathError('INPUT_DUPLICATE_COLUMN', `${quoteInputText(name)} is channel ${quoteInputText(channel)} like ${quoteInputText(earlier)}`, at(name));
+      }
+      seenChannels.set(channel, name);
+      quantity = columnQuantity;
+      valueColumns.push({ index, channel });
+    });
+    if (timeIndex < 0) throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header`, { file: fileName, line: headerLine });
+    if (quantity === undefined) throw new HeatpathError('INPUT_MISSING_COLUMN', 'no value column in the header', { file: fileName, line: headerLine });
+  });
+
+  const time_s = table.columns[timeIndex];
+  checkTransientTime(time_s, (i) => ({ file: fileName, line: table.rowLines[i], column: TIME_COLUMN }));
+  return {
+    quantity: quantity as TransientQuantity,
+    time_s,
+    channels: valueColumns.map(({ index, channel }) => ({ name: channel, values: table.columns[index] })),
+    meta: table.meta,
+  };
+}
+
+/** `voltage_V@D1` -> ['voltage_V', 'D1']; a bare name is channel "1". */
+function splitValueColumnName(name: string): [string, string] {
+  const at = name.indexOf('@');
+  if (at < 0) return [name, DEFAULT_CHANNEL_NAME];
+  return [name.slice(0, at).trim(), name.slice(at + 1).trim()];
+}

@@ -1,0 +1,113 @@
+import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
+import { checkTransientTime } from './check-transient-time.js';
+import { quoteInputText, shortenInputText } from './quote-input-text.js';
+import { DEFAULT_CHANNEL_NAME, isTransientQuantity, type TransientChannel, type TransientFile, type TransientQuantity } from './transient-file.js';
+
+const TIME_KEY = 'time_s';
+const META_KEY = 'meta';
+/** Longest parser message repeated in an error (it may quote the input). */
+const PARSER_MESSAGE_MAX_CHARS = 120;
+
+/**
+ * Parse a JSON transient: {"time_s": [...], "<quantity>": [...]} or a channel
+ * map {"time_s": [...], "<quantity>": {"D1": [...], ...}}, plus an optional
+ * "meta" object of scalar values. Errors name the key as column and the array
+ * index (from 0) as line.
+ */
+export function parseTransientJson(text: string, fileName: string): TransientFile {
+  const root = parseJsonText(text, fileName);
+  if (typeof root !== 'object' || root === null || Array.isArray(root)) {
+    throw new HeatpathError('INPUT_BAD_JSON', 'the top level is not an object', { file: fileName });
+  }
+  const entries = Object.entries(root as Record<string, unknown>);
+  let timeValue: unknown;
+  let metaValue: unknown;
+  let quantity: TransientQuantity | undefined;
+  let quantityValue: unknown;
+  for (const [key, value] of entries) {
+    if (key === TIME_KEY) timeValue = value;
+    else if (key === META_KEY) metaValue = value;
+    else if (isTransientQuantity(key)) {
+      if (quantity !== undefined) throw new HeatpathError('INPUT_MIXED_QUANTITIES', `both ${quantity} and ${key}`, { file: fileName, column: key });
+      quantity = key;
+      quantityValue = value;
+    } else {
+      throw new HeatpathError('INPUT_UNKNOWN_COLUMN', `key ${quoteInputText(key)} is not time_s, meta or a value quantity`, { file: fileName, column: shortenInputText(key) });
+    }
+  }
+  if (timeValue === undefined) throw new HeatpathError('INPUT_MISSING_COLUMN', `no "${TIME_KEY}" key`, { file: fileName });
+  if (quantity === undefined) throw new HeatpathError('INPUT_MISSING_COLUMN', 'no value key (zth_K_per_W, temperature_C or voltage_V)', { file: fileName });
+
+  const time_s = readNumberArray(timeValue, fileName, TIME_KEY);
+  const channels = readChannels(quantityValue, quantity, fileName);
+  for (const channel of channels) {
+    if (channel.values.length !== time_s.length) {
+      throw new HeatpathError('INPUT_ROW_LENGTH', `${channel.values.length} values for ${time_s.length} times`, {
+        file: fileName,
+        column: columnName(quantity, channel.name),
+      });
+    }
+  }
+  checkTransientTime(time_s, (i) => ({ file: fileName, line: i, column: TIME_KEY }));
+  return { quantity, time_s, channels, meta: readMeta(metaValue, fileName) };
+}
+
+function parseJsonText(text: string, fileName: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    throw new HeatpathError('INPUT_BAD_JSON', message.slice(0, PARSER_MESSAGE_MAX_CHARS), { file: fileName });
+  }
+}
+
+function readChannels(value: unknown, quantity: TransientQuantity, fileName: string): TransientChannel[] {
+  if (Array.isArray(value)) return [{ name: DEFAULT_CHANNEL_NAME, values: readNumberArray(value, fileName, quantity) }];
+  if (typeof value !== 'object' || value === null) {
+    throw new HeatpathError('INPUT_BAD_JSON', `"${quantity}" must be an array or a map of channel arrays`, { file: fileName, column: quantity });
+  }
+  const channels = Object.entries(value as Record<string, unknown>).map(([name, values]) => {
+    if (name.trim() === '') throw new HeatpathError('INPUT_UNKNOWN_COLUMN', 'a channel name is empty', { file: fileName, column: quantity });
+    return { name, values: readNumberArray(values, fileName, columnName(quantity, name)) };
+  });
+  if (channels.length === 0) throw new HeatpathError('INPUT_MISSING_COLUMN', `"${quantity}" has no channels`, { file: fileName, column: quantity });
+  return channels;
+}
+
+function readNumberArray(value: unknown, fileName: string, column: string): Float64Array {
+  if (!Array.isArray(value)) throw new HeatpathError('INPUT_BAD_JSON', `${quoteInputText(column)} is not an array of numbers`, { file: fileName, column: shortenInputText(column) });
+  const numbers = new Float64Array(value.length);
+  for (let i = 0; i < value.length; i++) {
+    const element: unknown = value[i];
+    const at: ErrorLocation = { file: fileName, line: i, column: shortenInputText(column) };
+    if (typeof element === 'number') {
+      if (!Number.isFinite(element)) throw new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] overflows a double`, at);
+      numbers[i] = element;
+    } else if (element === null) {
+      throw new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] is null (a NaN or infinity written by a JSON serialiser?)`, at);
+    } else {
+      const shown = typeof element === 'string' ? element : (JSON.stringify(element) ?? String(element));
+      throw new HeatpathError('INPUT_NOT_NUMERIC', `${column}[${i}] is ${quoteInputText(shown)}`, at);
+    }
+  }
+  return numbers;
+}
+
+function readMeta(value: unknown, fileName: string): Record<string, string> {
+  if (value === undefined) return {};
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) {
+    throw new HeatpathError('INPUT_BAD_JSON', '"meta" must be an object of strings or numbers', { file: fileName, column: META_KEY });
+  }
+  return Object.fromEntries(
+    Object.entries(value as Record<string, unknown>).map(([key, entry]) => {
+      if (typeof entry !== 'string' && typeof entry !== 'number' && typeof entry !== 'boolean') {
+        throw new HeatpathError('INPUT_BAD_JSON', `meta ${quoteInputText(key)} is not a string, number or boolean`, { file: fileName, column: META_KEY });
+      }
+      return [key, String(entry)];
+    }),
+  );
+}
+
+function columnName(quantity: TransientQuantity, channel: string): string {
+  return `${quantity}@${channel}`;
+}

@@ -1,0 +1,32 @@
+/**
+ * A measured transient as the parsers hand it to the analysis: one time axis
+ * and one or more channels of a single quantity (several devices measured
+ * together share the time axis).
+ */
+export const TRANSIENT_QUANTITIES = ['zth_K_per_W', 'temperature_C', 'voltage_V'] as const;
+export type TransientQuantity = (typeof TRANSIENT_QUANTITIES)[number];
+
+export interface TransientChannel {
+  name: string;
+  values: Float64Array;
+}
+
+export interface TransientFile {
+  quantity: TransientQuantity;
+  time_s: Float64Array;
+  channels: TransientChannel[];
+  meta: Record<string, string>;
+}
+
+/** Channel name of a value column given without `@channel`. */
+export const DEFAULT_CHANNEL_NAME = '1';
+
+/** Fewer samples than this cannot carry a spectrum. */
+export const MIN_TRANSIENT_SAMPLES = 20;
+
+/** A transient must span at least this many decades of positive time. */
+export const MIN_TRANSIENT_DECADES = 2;
+
+export function isTransientQuantity(name: string): name is TransientQuantity {
+  return (TRANSIENT_QUANTITIES as readonly string[]).includes(name);
+}

@@ -1,0 +1,36 @@
+import { describe, expect, it } from 'vitest';
+import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+
+function errorOf(text: string): HeatpathError {
+  try {
+    parseCalibrationPoints(text, 'cal.csv');
+  } catch (error) {
+    if (error instanceof HeatpathError) return error;
+    throw error;
+  }
+  throw new Error('expected a HeatpathError');
+}
+
+describe('parseCalibrationPoints', () => {
+  it('reads the two columns in either order, with the transient CSV dialect', () => {
+    const text = '\ufeff# oven: O3\r\nvoltage_V;"temperature_C"\r\n0.65;25\r\n# settled\r\n0.55;75\r\n';
+    const points = parseCalibrationPoints(new TextEncoder().encode(text), 'cal.csv');
+    expect(Array.from(points.temperature_C)).toEqual([25, 75]);
+    expect(Array.from(points.voltage_V)).toEqual([0.65, 0.55]);
+  });
+
+  it.each([
+    ['', 'INPUT_EMPTY', undefined, undefined],
+    ['temperature_C\n25', 'CALIBRATION_POINTS_COLUMNS', 1, undefined],
+    ['temperature_C,voltage_V,current_A\n25,0.6,0.01', 'CALIBRATION_POINTS_COLUMNS', 1, 'current_A'],
+    ['temperature_C,voltage_V,voltage_V\n25,0.6,0.6', 'INPUT_DUPLICATE_COLUMN', 1, 'voltage_V'],
+    ['temperature_C,voltage_V\n25,0.6\n50', 'INPUT_ROW_LENGTH', 3, undefined],
+    ['temperature_C,voltage_V\n25,0.6\n50,x', 'INPUT_NOT_NUMERIC', 3, 'voltage_V'],
+    ['temperature_C,voltage_V\nnan,0.6', 'INPUT_NOT_FINITE', 2, 'temperature_C'],
+  ])('%j -> %s', (text, code, line, column) => {
+    const error = errorOf(text);
+    expect(error.code).toBe(code);
+    expect(error.location).toEqual({ file: 'cal.csv', line, column });
+  });
+});

@@ -1,0 +1,201 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { parseTransient } from '../shared/input/parse-transient.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { MIN_TRANSIENT_DECADES, MIN_TRANSIENT_SAMPLES } from '../shared/input/transient-file.js';
+import { QUOTED_TEXT_MAX_CHARS } from '../shared/input/quote-input-text.js';
+
+/** Log-spaced times from 1 us over `decades` decades, `perDecade` samples a decade. */
+function logTimes(decades: number, perDecade: number): number[] {
+  const count = decades * perDecade + 1;
+  return Array.from({ length: count }, (_, i) => 1e-6 * 10 ** (i / perDecade));
+}
+
+function csv(header: string, rows: string[], separator = ','): string {
+  return [header, ...rows].join('\n').replaceAll(',', separator);
+}
+
+function coolingRows(times: number[]): string[] {
+  return times.map((t) => `${t},${(0.6 + 0.1 * Math.exp(-t)).toFixed(6)}`);
+}
+
+function catchHeatpath(run: () => unknown): HeatpathError {
+  try {
+    run();
+  } catch (error) {
+    if (error instanceof HeatpathError) return error;
+    throw error;
+  }
+  throw new Error('expected a HeatpathError');
+}
+
+function expectErrorAt(text: string, fileName: string, code: string, line: number | undefined, column: string | undefined): void {
+  const error = catchHeatpath(() => parseTransient(text, fileName));
+  expect(error.code).toBe(code);
+  expect(error.location).toEqual({ file: fileName, line, column });
+}
+
+const times = logTimes(3, 10);
+
+describe('parseTransient CSV', () => {
+  it('reads a single-channel comma CSV with metadata, comments, CRLF and BOM', () => {
+    const text = '\ufeff# sample: IGBT module 7\r\n# bench: B2\r\n\r\ntime_s,voltage_V\r\n' + coolingRows(times).join('\r\n') + '\r\n# trailing note\r\n';
+    const parsed = parseTransient(new TextEncoder().encode(text), 'a.csv');
+    expect(parsed.quantity).toBe('voltage_V');
+    expect(parsed.time_s.length).toBe(times.length);
+    expect(parsed.time_s[0]).toBe(1e-6);
+    expect(parsed.channels).toHaveLength(1);
+    expect(parsed.channels[0].name).toBe('1');
+    expect(parsed.channels[0].values[0]).toBeCloseTo(0.7, 6);
+    expect(parsed.meta).toEqual({ sample: 'IGBT module 7', bench: 'B2' });
+  });
+
+  it.each([
+    ['semicolon', ';'],
+    ['tab', '\t'],
+  ])('detects the %s separator from the header', (_label, separator) => {
+    const parsed = parseTransient(csv('time_s,temperature_C', coolingRows(times), separator), 'b.csv');
+    expect(parsed.quantity).toBe('temperature_C');
+    expect(parsed.time_s[times.length - 1]).toBeCloseTo(1e-3, 12);
+  });
+
+  it('reads several channels named with @ and tolerates quoted, padded header names', () => {
+    const rows = times.map((t, i) => `${t},${i},${2 * i}`);
+    const parsed = parseTransient(csv(' "time_s" , "voltage_V@D1" ,voltage_V @ D2', rows), 'c.csv');
+    expect(parsed.channels.map((c) => c.name)).toEqual(['D1', 'D2']);
+    expect(parsed.channels[1].values[5]).toBe(10);
+  });
+
+  it('ignores comment lines between data rows and keeps them out of the metadata', () => {
+    const rows = coolingRows(times);
+    rows.splice(5, 0, '# range switch: 2 V', '');
+    const parsed = parseTransient(csv('time_s,zth_K_per_W', rows), 'd.csv');
+    expect(parsed.time_s.length).toBe(times.length);
+    expect(parsed.meta).toEqual({});
+  });
+
+  it('reports the physical line number of a bad field, counting comments and blank lines', () => {
+    const rows = coolingRows(times);
+    rows[3] = `${times[3]},abc`;
+    // line 1: comment, line 2: blank, line 3: header, rows from line 4
+    const error = catchHeatpath(() => parseTransient('# x: y\n\n' + csv('time_s,temperature_C', rows), 'e.csv'));
+    expect(error.code).toBe('INPUT_NOT_NUMERIC');
+    expect(error.location).toEqual({ file: 'e.csv', line: 7, column: 'temperature_C' });
+    expect(error.message).toContain('"abc"');
+  });
+
+  const errorCases: [string, string, string, number | undefined, string | undefined][] = [
+    ['empty input', '', 'INPUT_EMPTY', undefined, undefined],
+    ['only comments', '# a: b\n\n# c\n', 'INPUT_EMPTY', undefined, undefined],
+    ['missing time_s', csv('temperature_C', ['1']), 'INPUT_MISSING_COLUMN', 1, undefined],
+    ['missing value column', csv('time_s', ['1']), 'INPUT_MISSING_COLUMN', 1, undefined],
+    ['unknown column', csv('time_s,current_A', ['1,2']), 'INPUT_UNKNOWN_COLUMN', 1, 'current_A'],
+    ['empty channel', csv('time_s,voltage_V@', ['1,2']), 'INPUT_UNKNOWN_COLUMN', 1, 'voltage_V@'],
+    ['mixed quantities', csv('time_s,voltage_V@A,temperature_C@B', ['1,2,3']), 'INPUT_MIXED_QUANTITIES', 1, 'temperature_C@B'],
+    ['duplicate channel', csv('time_s,voltage_V,voltage_V@1', ['1,2,3']), 'INPUT_DUPLICATE_COLUMN', 1, 'voltage_V@1'],
+    ['duplicate time column', csv('time_s,voltage_V,time_s', ['1,2,3']), 'INPUT_DUPLICATE_COLUMN', 1, 'time_s'],
+    ['wrong field count', csv('time_s,voltage_V', ['1e-6,2', '2e-6,3,4']), 'INPUT_ROW_LENGTH', 3, undefined],
+    ['empty field', csv('time_s,voltage_V', ['1e-6,']), 'INPUT_NOT_NUMERIC', 2, 'voltage_V'],
+    ['decimal comma', 'time_s;voltage_V\n1e-6;0,61', 'INPUT_NOT_NUMERIC', 2, 'voltage_V'],
+    ['NaN', csv('time_s,voltage_V', ['1e-6,NaN']), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
+    ['Inf', csv('time_s,voltage_V', ['1e-6,-inf']), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
+    ['overflow', csv('time_s,voltage_V', ['1e-6,1e999']), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
+    ['negative time', csv('time_s,voltage_V', ['1e-6,1', '-2e-6,1']), 'INPUT_NEGATIVE_TIME', 3, 'time_s'],
+    ['duplicate time', csv('time_s,voltage_V', ['1e-6,1', '1e-6,1']), 'INPUT_DUPLICATE_TIME', 3, 'time_s'],
+    ['time going back', csv('time_s,voltage_V', ['1e-6,1', '3e-6,1', '2e-6,1']), 'INPUT_TIME_NOT_INCREASING', 4, 'time_s'],
+  ];
+  it.each(errorCases)('%s -> %s', (_label, text, code, line, column) => expectErrorAt(text, 'bad.csv', code, line, column));
+
+  it(`needs ${MIN_TRANSIENT_SAMPLES} samples and ${MIN_TRANSIENT_DECADES} decades`, () => {
+    const short = logTimes(3, 10).slice(0, MIN_TRANSIENT_SAMPLES - 1);
+    expect(catchHeatpath(() => parseTransient(csv('time_s,voltage_V', coolingRows(short)), 'f.csv')).code).toBe('INPUT_TOO_FEW_POINTS');
+    // 30 samples but only 1.5 decades
+    const narrow = Array.from({ length: 30 }, (_, i) => 1e-3 * 10 ** ((1.5 * i) / 29));
+    expect(catchHeatpath(() => parseTransient(csv('time_s,voltage_V', coolingRows(narrow)), 'f.csv')).code).toBe('INPUT_TOO_FEW_POINTS');
+    // exactly the thresholds pass; a first sample at t = 0 does not count as a decade
+    const edge = [0, ...Array.from({ length: MIN_TRANSIENT_SAMPLES - 1 }, (_, i) => 1e-3 * 10 ** ((MIN_TRANSIENT_DECADES * i) / (MIN_TRANSIENT_SAMPLES - 2)))];
+    expect(parseTransient(csv('time_s,voltage_V', coolingRows(edge)), 'f.csv').time_s.length).toBe(MIN_TRANSIENT_SAMPLES);
+  });
+
+  it('never repeats a huge field in full', () => {
+    const huge = 'x'.repeat(100_000);
+    const error = catchHeatpath(() => parseTransient(csv('time_s,voltage_V', [`1e-6,${huge}`]), 'g.csv'));
+    expect(error.code).toBe('INPUT_NOT_NUMERIC');
+    expect(error.message.length).toBeLessThan(400);
+    const hugeHeader = catchHeatpath(() => parseTransient(csv(`time_s,${huge}`, ['1,2']), 'g.csv'));
+    expect(hugeHeader.message.length).toBeLessThan(400);
+    expect(String(hugeHeader.location.column).length).toBeLessThanOrEqual(QUOTED_TEXT_MAX_CHARS + 1);
+  });
+});
+
+describe('parseTransient JSON', () => {
+  it('reads a single array with metadata, detected from the leading brace after whitespace and BOM', () => {
+    const text = '\ufeff \n' + JSON.stringify({ time_s: times, temperature_C: times.map((t) => 80 - t), meta: { sample: 'D7', run: 3 } });
+    const parsed = parseTransient(text, 'a.json');
+    expect(parsed.quantity).toBe('temperature_C');
+    expect(parsed.channels[0]).toMatchObject({ name: '1' });
+    expect(parsed.channels[0].values[0]).toBe(80 - 1e-6);
+    expect(parsed.meta).toEqual({ sample: 'D7', run: '3' });
+  });
+
+  it('reads a channel map', () => {
+    const parsed = parseTransient(JSON.stringify({ time_s: times, voltage_V: { D1: times.map(() => 0.6), D2: times.map(() => 0.5) } }), 'b.json');
+    expect(parsed.channels.map((c) => c.name)).toEqual(['D1', 'D2']);
+    expect(parsed.channels[1].values[0]).toBe(0.5);
+  });
+
+  it('follows an explicit format over the content', () => {
+    expect(catchHeatpath(() => parseTransient(JSON.stringify({ time_s: times }), 'c.txt', 'csv')).code).toBe('INPUT_UNKNOWN_COLUMN');
+    expect(catchHeatpath(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'json')).code).toBe('INPUT_BAD_JSON');
+    expect(catchHeatpath(() => parseTransient('[1, 2]', 'c.json', 'json')).code).toBe('INPUT_BAD_JSON');
+    expect(catchHeatpath(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'xml' as 'csv')).code).toBe('INPUT_BAD_FORMAT');
+  });
+
+  const values = times.map(() => 1);
+  const withElement = (base: number[], index: number, element: unknown) => {
+    const array: unknown[] = [...base];
+    array[index] = element;
+    return array;
+  };
+  const jsonCases: [string, string, string, number | undefined, string | undefined][] = [
+    ['malformed', '{"time_s": [1, 2', 'INPUT_BAD_JSON', undefined, undefined],
+    ['missing time_s', JSON.stringify({ voltage_V: values }), 'INPUT_MISSING_COLUMN', undefined, undefined],
+    ['missing values', JSON.stringify({ time_s: times }), 'INPUT_MISSING_COLUMN', undefined, undefined],
+    ['empty channel map', JSON.stringify({ time_s: times, voltage_V: {} }), 'INPUT_MISSING_COLUMN', undefined, 'voltage_V'],
+    ['unknown key', JSON.stringify({ time_s: times, current_A: values }), 'INPUT_UNKNOWN_COLUMN', undefined, 'current_A'],
+    ['mixed quantities', JSON.stringify({ time_s: times, voltage_V: values, temperature_C: values }), 'INPUT_MIXED_QUANTITIES', undefined, 'temperature_C'],
+    ['length mismatch', JSON.stringify({ time_s: times, voltage_V: { D1: values.slice(1) } }), 'INPUT_ROW_LENGTH', undefined, 'voltage_V@D1'],
+    ['string element', JSON.stringify({ time_s: times, voltage_V: withElement(values, 4, '0.6') }), 'INPUT_NOT_NUMERIC', 4, 'voltage_V'],
+    ['null element', JSON.stringify({ time_s: times, voltage_V: withElement(values, 2, null) }), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
+    ['overflowing number', JSON.stringify({ time_s: times, voltage_V: values }).replace('[1,', '[1e999,'), 'INPUT_NOT_FINITE', 0, 'voltage_V'],
+    ['negative time', JSON.stringify({ time_s: [-1, ...times.slice(1)], voltage_V: values }), 'INPUT_NEGATIVE_TIME', 0, 'time_s'],
+    ['duplicate time', JSON.stringify({ time_s: [times[0], ...times.slice(0, -1)], voltage_V: values }), 'INPUT_DUPLICATE_TIME', 1, 'time_s'],
+    ['time going back', JSON.stringify({ time_s: withElement(times, 6, 0.5e-6), voltage_V: values }), 'INPUT_TIME_NOT_INCREASING', 6, 'time_s'],
+    ['too few points', JSON.stringify({ time_s: times.slice(0, 5), voltage_V: values.slice(0, 5) }), 'INPUT_TOO_FEW_POINTS', 4, 'time_s'],
+    ['bad meta', JSON.stringify({ time_s: times, voltage_V: values, meta: { a: [1] } }), 'INPUT_BAD_JSON', undefined, 'meta'],
+  ];
+  it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, index, column));
+});
+
+describe('parseTransient on arbitrary input', () => {
+  const parsesOrExplains = (input: Uint8Array | string) => {
+    try {
+      const parsed = parseTransient(input, 'fuzz');
+      expect(parsed.time_s.length).toBeGreaterThanOrEqual(MIN_TRANSIENT_SAMPLES);
+    } catch (error) {
+      expect(error).toBeInstanceOf(HeatpathError);
+      expect((error as HeatpathError).message.length).toBeLessThan(600);
+    }
+  };
+
+  it('returns a transient or throws a HeatpathError for random bytes and strings', () => {
+    fc.assert(fc.property(fc.uint8Array({ maxLength: 400 }), parsesOrExplains), { numRuns: 300 });
+    fc.assert(fc.property(fc.string({ maxLength: 400 }), parsesOrExplains), { numRuns: 300 });
+  });
+
+  it('returns a transient or throws a HeatpathError for CSV-like and JSON-like noise', () => {
+    const token = fc.constantFrom('time_s', 'voltage_V', 'voltage_V@D1', 'temperature_C', '#', ',', ';', '\t', '\n', '\r\n', '1e-6', '-1', 'nan', '"', '{', '}', '[', ']', ':', '0.5', ' ');
+    fc.assert(fc.property(fc.array(token, { maxLength: 200 }).map((parts) => parts.join('')), parsesOrExplains), { numRuns: 300 });
+    fc.assert(fc.property(fc.json(), parsesOrExplains), { numRuns: 300 });
+  });
+});
