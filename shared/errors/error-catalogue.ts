@@ -39,6 +39,12 @@ export const errorCatalogue = {
   POWER_REQUIRED: { status: 422, title: 'The heating power is missing', hint: 'Give the power (--power-w) or current and voltage (--current-a and --voltage-v); zth_K_per_W input needs none.' },
   ANALYSIS_NOT_ANALYSABLE: { status: 422, title: 'The transient cannot be analysed', hint: 'Check that the curve is a cooling or heating transient of the stated kind and spans several decades of time.' },
 
+  // ---- RC networks, thermal models and their numerics ----
+  RC_NETWORK_INVALID: { status: 422, title: 'An RC network is not valid', hint: 'Give arrays of equal length with at least one stage, every R (K/W), C (J/K) and tau (s) finite and positive.' },
+  THERMAL_STACK_INVALID: { status: 400, title: 'A layered stack description is not valid', hint: 'Give at least one layer, each with positive thickness_m, conductivity_W_per_mK, volumetric_heat_capacity_J_per_m3K, area_start_m2 and area_end_m2; the sink resistance must be finite and not negative.' },
+  NUMERICS_INVALID_INPUT: { status: 500, title: 'A numerical routine was called with invalid arrays', hint: 'This is a heatpath defect: report the input file and the analysis parameters to the maintainers.' },
+  NUMERICS_NOT_CONVERGED: { status: 500, title: 'A numerical routine did not converge', hint: 'This is a heatpath defect: report the input file and the analysis parameters to the maintainers.' },
+
   // ---- CLI usage ----
   CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and options.' },
   FILE_NOT_READABLE: { status: 400, title: 'A file cannot be read', hint: 'Check the path and its permissions.' },
