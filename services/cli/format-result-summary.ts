@@ -9,7 +9,7 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
     early.applied
       ? `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}`
       : '  early time       not applied',
-    `  noise            ${quality.noise_K.toPrecision(2)} K RMS`,
+    quality.noise_K !== null ? `  noise            ${quality.noise_K.toPrecision(2)} K RMS` : `  noise            ${quality.noise_K_per_W.toPrecision(2)} K/W RMS`,
     `  spectrum         ${result.provenance.method}, ${quality.deconvolution_iterations} iterations, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
     `  Foster / Cauer   ${result.foster.length} / ${result.cauer.length} stages`,
     `  compact Foster   ${compact.stages} stages, fit rms ${compact.fit_rms_K_per_W.toPrecision(2)} K/W, max ${(100 * compact.fit_max_rel).toFixed(2)} % of Rth`,

@@ -1,6 +1,23 @@
-import type { AnalysisParameters, Power } from '../schemas/analysis-parameters.js';
-import type { Calibration } from '../schemas/calibration.js';
+import { createHash } from 'node:crypto';
+import { Value } from 'typebox/value';
+import { HeatpathError } from '../errors/heatpath-error.js';
+import { parseTransient } from '../input/parse-transient.js';
+import type { TransientFile } from '../input/transient-file.js';
+import { estimateNoiseRms } from '../numerics/noise-estimate.js';
+import { voltageToTemperature } from '../numerics/tsp-calibration.js';
+import { zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
+import { steadyStateRth } from '../numerics/steady-state.js';
+import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
+import { fosterToCauer } from '../numerics/foster-to-cauer.js';
+import { cumulativeStructureFunction, differentialStructureFunction } from '../numerics/structure-function.js';
+import { fitCompactFoster } from '../numerics/compact-foster-fit.js';
+import { fosterNetlist, cauerNetlist } from '../numerics/spice-netlist.js';
+import type { CauerLadder, FosterNetwork } from '../numerics/rc-network.js';
+import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../schemas/analysis-result.js';
+import type { Calibration } from '../schemas/calibration.js';
+import { ALGORITHM_VERSION, HEATPATH_VERSION } from './algorithm-version.js';
+import { RESULT_CAUTION } from './result-caution.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -10,18 +27,202 @@ export interface TransientFileInput {
   fileName: string;
   /** Omitted: detected from the content (JSON starts with '{'). */
   format?: 'csv' | 'json';
-  /** Heating power; not needed for zth_K_per_W input. */
+  /** Heating power; omitted: from the file's power_W or current_A and voltage_V metadata. Not needed for zth_K_per_W input. */
   power?: Power;
   /** Needed for voltage_V input. */
   calibration?: Calibration;
+  /** Omitted fields: the file's `kind` metadata, then the schema defaults. */
   parameters?: Partial<AnalysisParameters>;
 }
 
+/** Spectrum bins below this fraction of the total carry no heat worth a Foster stage. */
+const NEGLIGIBLE_STAGE_FRACTION = 1e-9;
+
 /**
- * Analyse every channel of one transient file. Pure: no I/O, no clock reads
- * except `createdAt` which the caller passes for provenance.
- * Throws HeatpathError for input the user must fix.
+ * Analyse every channel of one transient file. Pure apart from hashing: the
+ * caller passes `createdAt` for provenance. Throws HeatpathError for input the
+ * user must fix.
  */
-export function analyzeTransientFile(_input: TransientFileInput, _createdAt: string): AnalysisResult[] {
-  throw new Error('analyzeTransientFile: not implemented yet');
+export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
+  const file = parseTransient(input.bytes, input.fileName, input.format);
+  const parameters = resolveParameters(input.parameters ?? {}, file, input.fileName);
+  const power = file.quantity === 'zth_K_per_W' && !input.power ? powerFromMeta(file, input.fileName, false) : input.power ?? powerFromMeta(file, input.fileName, true);
+  const power_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
+  if (file.quantity === 'voltage_V' && !input.calibration) {
+    throw new HeatpathError('CALIBRATION_REQUIRED', `${file.channels.length} voltage_V channel(s) and no calibration`, { file: input.fileName });
+  }
+  const provenance = {
+    version: HEATPATH_VERSION,
+    algorithm: ALGORITHM_VERSION,
+    method: parameters.method,
+    parameters,
+    input_sha256: sha256(input.bytes),
+    calibration_sha256: input.calibration ? sha256(JSON.stringify(input.calibration)) : null,
+    created_at: createdAt,
+  };
+  return file.channels.map((channel) => {
+    const context = { file: input.fileName, column: file.channels.length > 1 ? `${file.quantity}@${channel.name}` : file.quantity };
+    try {
+      return analyzeChannel(file, channel.values, channel.name, parameters, power_W, input.calibration, provenance, input.fileName);
+    } catch (error) {
+      if (error instanceof HeatpathError && error.location.file === undefined) {
+        throw new HeatpathError(error.code, error.detail, context);
+      }
+      throw error;
+    }
+  });
+}
+
+function analyzeChannel(
+  file: TransientFile,
+  values: Float64Array,
+  channelName: string,
+  parameters: AnalysisParameters,
+  power_W: number | null,
+  calibration: Calibration | undefined,
+  provenance: AnalysisResult['provenance'],
+  fileName: string,
+): AnalysisResult {
+  const time_s = file.time_s;
+  const warnings: string[] = [];
+  const window = { early_time_start_s: parameters.early_time_start_s, early_time_end_s: parameters.early_time_end_s };
+
+  let zth: ZthCurve;
+  let noise_K: number | null;
+  let noise_K_per_W: number;
+  if (file.quantity === 'zth_K_per_W') {
+    noise_K_per_W = estimateNoiseRms(values);
+    noise_K = power_W !== null ? noise_K_per_W * power_W : null;
+    zth = zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window });
+  } else {
+    const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, values) : values;
+    noise_K = estimateNoiseRms(temperature_C);
+    noise_K_per_W = noise_K / power_W!;
+    zth = zthFromTemperature(time_s, temperature_C, { power_W: power_W! }, { kind: parameters.kind, noise_rms: noise_K, ...window });
+  }
+  warnings.push(...zth.early_time.warnings);
+
+  const steady = steadyStateRth(time_s, zth.zth_K_per_W);
+  warnings.push(...steady.warnings);
+
+  const spectrum = timeConstantSpectrum(time_s, zth.zth_K_per_W, {
+    method: parameters.method,
+    pointsPerDecade: parameters.points_per_decade,
+    noise_K_per_W,
+  });
+  warnings.push(...spectrum.warnings);
+
+  const foster = fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W);
+  const cauer = fosterToCauer(foster);
+  const cumulative = cumulativeStructureFunction(cauer);
+  const differential = differentialStructureFunction(cumulative);
+
+  const compact = fitCompactFoster(time_s, zth.zth_K_per_W, parameters.compact_stages);
+  const compactCauer = fosterToCauer(compact.foster);
+  const subcircuit = `${fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '')}_${channelName}`;
+  const rth = steady.rth_K_per_W;
+
+  return {
+    heatpath_result: 1,
+    source: { file: fileName, channel: channelName, quantity: file.quantity, points: time_s.length },
+    rth_total_K_per_W: rth,
+    power_W,
+    zth: { time_s: Array.from(time_s), zth_K_per_W: Array.from(zth.zth_K_per_W) },
+    spectrum: { tau_s: Array.from(spectrum.tau_s), r_K_per_W: Array.from(spectrum.r_K_per_W) },
+    foster: fosterStages(foster),
+    cauer: cauerStages(cauer),
+    structure: {
+      cumulative: { r_K_per_W: Array.from(cumulative.r_K_per_W), c_J_per_K: Array.from(cumulative.c_J_per_K) },
+      differential: { r_K_per_W: Array.from(differential.r_K_per_W), k_W2s_per_K2: Array.from(differential.k_W2s_per_K2) },
+    },
+    compact: {
+      stages: compact.foster.r_K_per_W.length,
+      foster: fosterStages(compact.foster),
+      cauer: cauerStages(compactCauer),
+      fit_rms_K_per_W: compact.rms_K_per_W,
+      fit_max_rel: compact.max_abs_K_per_W / rth,
+      spice: {
+        foster: fosterNetlist(compact.foster, { name: `${subcircuit}_foster` }),
+        cauer: cauerNetlist(compactCauer, { name: `${subcircuit}_cauer` }),
+      },
+    },
+    early_time: {
+      applied: zth.early_time.applied,
+      window_start_s: zth.early_time.window_start_s,
+      window_end_s: zth.early_time.window_end_s,
+      automatic: zth.early_time.automatic,
+      slope_per_sqrt_s: zth.early_time.slope_per_sqrt_s,
+      t0_value: zth.early_time.t0_value,
+      t0_standard_error: zth.early_time.t0_standard_error,
+      residual_rms: zth.early_time.residual_rms,
+    },
+    quality: {
+      noise_K,
+      noise_K_per_W,
+      deconvolution_iterations: spectrum.iterations,
+      deconvolution_residual_rms: spectrum.residual_rms_K_per_W,
+      warnings,
+    },
+    provenance,
+    caution: RESULT_CAUTION,
+  };
+}
+
+/** Foster stages from the spectrum bins: R_i = R(zeta_i) dzeta, tau_i = exp(zeta_i), C_i = tau_i / R_i. */
+function fosterFromSpectrum(tau_s: Float64Array, r_K_per_W: Float64Array): FosterNetwork {
+  const total = r_K_per_W.reduce((a, b) => a + b, 0);
+  const keep: number[] = [];
+  for (let i = 0; i < r_K_per_W.length; i++) if (r_K_per_W[i] > NEGLIGIBLE_STAGE_FRACTION * total) keep.push(i);
+  if (keep.length === 0) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', 'the time-constant spectrum is empty (no heat flow found)');
+  return { r_K_per_W: Float64Array.from(keep, (i) => r_K_per_W[i]), tau_s: Float64Array.from(keep, (i) => tau_s[i]) };
+}
+
+function fosterStages(foster: FosterNetwork): AnalysisResult['foster'] {
+  return Array.from(foster.r_K_per_W, (r, i) => ({ r_K_per_W: r, c_J_per_K: foster.tau_s[i] / r, tau_s: foster.tau_s[i] }));
+}
+
+function cauerStages(cauer: CauerLadder): AnalysisResult['cauer'] {
+  return Array.from(cauer.r_K_per_W, (r, i) => ({ r_K_per_W: r, c_J_per_K: cauer.c_J_per_K[i] }));
+}
+
+/** Explicit parameters, then the file's `kind` metadata, then the schema defaults; validated by the schema. */
+function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFile, fileName: string): AnalysisParameters {
+  const kind = given.kind ?? file.meta.kind;
+  const merged = { ...defaultAnalysisParameters, ...(kind !== undefined ? { kind } : {}), ...stripUndefined(given) };
+  if (!Value.Check(AnalysisParametersSchema, merged)) {
+    const first = [...Value.Errors(AnalysisParametersSchema, merged)][0];
+    const where = first?.instancePath?.replace(/^\//, '') || 'parameters';
+    const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind:" line)` : '';
+    throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, { file: fileName });
+  }
+  if (merged.early_time_start_s !== undefined && merged.early_time_end_s !== undefined && merged.early_time_end_s <= merged.early_time_start_s) {
+    throw new HeatpathError('PARAM_INVALID', `early_time_end_s (${merged.early_time_end_s}) must be later than early_time_start_s (${merged.early_time_start_s})`, { file: fileName });
+  }
+  return merged as AnalysisParameters;
+}
+
+/** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata. */
+function powerFromMeta(file: TransientFile, fileName: string, required: boolean): Power | undefined {
+  const number = (key: string) => (file.meta[key] !== undefined ? Number(file.meta[key]) : undefined);
+  const candidate = file.meta.power_W !== undefined
+    ? { power_W: number('power_W') }
+    : file.meta.current_A !== undefined || file.meta.voltage_V !== undefined
+      ? { current_A: number('current_A'), voltage_V: number('voltage_V') }
+      : undefined;
+  if (candidate === undefined) {
+    if (!required) return undefined;
+    throw new HeatpathError('POWER_REQUIRED', `${file.quantity} input and no power given or found in the file's metadata`, { file: fileName });
+  }
+  if (!Value.Check(PowerSchema, candidate)) {
+    throw new HeatpathError('POWER_REQUIRED', `the file's power metadata ${JSON.stringify(candidate)} is not a positive power_W or current_A with voltage_V`, { file: fileName });
+  }
+  return candidate as Power;
+}
+
+function stripUndefined<T extends object>(value: T): Partial<T> {
+  return Object.fromEntries(Object.entries(value).filter(([, v]) => v !== undefined)) as Partial<T>;
+}
+
+function sha256(data: Uint8Array | string): string {
+  return createHash('sha256').update(data).digest('hex');
 }
