@@ -19,6 +19,13 @@ export const ServiceEnvSchema = Type.Object({
   HEATPATH_API_KEYS_FILE: Type.Optional(Type.String({ minLength: 1, description: 'File with one name:role:token a line (# comments); instead of HEATPATH_API_KEYS.' })),
   HEATPATH_MAX_UPLOAD_BYTES: Type.Integer({ minimum: 1024, default: 32 * 1024 * 1024, description: 'Largest accepted upload body or file in bytes; larger ones get 413.' }),
   HEATPATH_RATE_LIMIT_PER_MINUTE: Type.Integer({ minimum: 1, default: 1200, description: 'Requests per API key per minute; more get 429.' }),
+  HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: '^[^:]+$', default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
+  HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core.' })),
+  HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration; a dead worker\'s job is taken over by another after about this long.' }),
+  HEATPATH_STALLED_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'How often workers look for jobs whose worker died.' }),
+  HEATPATH_RECOVERY_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 60_000, description: 'How often stored uploads without a result are offered to the queue again (after a Redis loss).' }),
+  HEATPATH_SHUTDOWN_TIMEOUT_MS: Type.Integer({ minimum: 0, default: 30_000, description: 'On SIGTERM, how long running jobs may finish before the worker stops anyway (their jobs are retried elsewhere).' }),
+  HEATPATH_WEBHOOK_ALLOWLIST: Type.String({ default: '', description: 'Origins (scheme://host:port), comma-separated, that webhooks may be registered for and delivered to; empty allows none.' }),
   HEATPATH_LOG_LEVEL: Type.Union(
     ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'].map((level) => Type.Literal(level)),
     { default: 'info', description: 'pino log level.' },
@@ -36,6 +43,19 @@ export interface ServiceConfig {
   maxUploadBytes: number;
   rateLimitPerMinute: number;
   logLevel: string;
+  queue: QueueConfig;
+}
+
+/** Queue and worker settings, shared by the API (producer) and the workers. */
+export interface QueueConfig {
+  prefix: string;
+  /** Null: one per CPU core. */
+  workerProcesses: number | null;
+  lockDurationMs: number;
+  stalledIntervalMs: number;
+  recoveryIntervalMs: number;
+  shutdownTimeoutMs: number;
+  webhookAllowlist: string[];
 }
 
 /**
@@ -62,6 +82,15 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env): Service
     maxUploadBytes: valid.HEATPATH_MAX_UPLOAD_BYTES,
     rateLimitPerMinute: valid.HEATPATH_RATE_LIMIT_PER_MINUTE,
     logLevel: valid.HEATPATH_LOG_LEVEL,
+    queue: {
+      prefix: valid.HEATPATH_QUEUE_PREFIX,
+      workerProcesses: valid.HEATPATH_WORKER_PROCESSES ?? null,
+      lockDurationMs: valid.HEATPATH_LOCK_DURATION_MS,
+      stalledIntervalMs: valid.HEATPATH_STALLED_INTERVAL_MS,
+      recoveryIntervalMs: valid.HEATPATH_RECOVERY_INTERVAL_MS,
+      shutdownTimeoutMs: valid.HEATPATH_SHUTDOWN_TIMEOUT_MS,
+      webhookAllowlist: valid.HEATPATH_WEBHOOK_ALLOWLIST.split(',').map((entry) => entry.trim()).filter(Boolean),
+    },
   };
 }
 

@@ -66,6 +66,10 @@ export const errorCatalogue = {
   RATE_LIMITED: { status: 429, title: 'Too many requests for this API key', hint: 'Wait for the Retry-After seconds, then retry; the admin sets HEATPATH_RATE_LIMIT_PER_MINUTE.' },
   SERVICE_UNAVAILABLE: { status: 503, title: 'A backing service is unavailable', hint: 'Retry later; the admin should check Redis and the data directory (see /health/ready).' },
   INTERNAL_ERROR: { status: 500, title: 'Internal error', hint: 'Retry; if it persists, send the request id to the service admin.' },
+
+  // ---- service: queue, batches, webhooks ----
+  WEBHOOK_URL_NOT_ALLOWED: { status: 422, title: 'The webhook URL is not on the allowlist', hint: 'Ask the admin to add its origin (scheme://host:port) to HEATPATH_WEBHOOK_ALLOWLIST, or use an allowed URL.' },
+  BATCH_SELECTION_EMPTY: { status: 422, title: 'The batch selects no stored transients', hint: 'Widen the selection (sample, bench, tag, time range) or leave it empty to select all.' },
 } as const satisfies Record<string, { status: number; title: string; hint: string }>;
 
 export type ErrorCode = keyof typeof errorCatalogue;
