@@ -34,6 +34,7 @@ export function sendProblem(
   reply: FastifyReply,
   error: HeatpathError,
   errors?: Problem['errors'],
+  extensions: Record<string, unknown> = {},
 ): FastifyReply {
   const problem: Problem = {
     type: problemTypeUri(error.code),
@@ -48,6 +49,7 @@ export function sendProblem(
     ...(error.location.line !== undefined && { line: error.location.line }),
     ...(error.location.column !== undefined && { column: error.location.column }),
     ...(errors && { errors }),
+    ...extensions,
   };
   return reply.status(error.status).type(problemMediaType).send(problem);
 }

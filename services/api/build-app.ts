@@ -1,0 +1,54 @@
+import { randomUUID } from 'node:crypto';
+import type { TypeBoxTypeProvider } from '@fastify/type-provider-typebox';
+import Fastify from 'fastify';
+import type { Logger } from 'pino';
+import type { ServiceConfig } from '../config/service-config.js';
+import type { TransientStore } from '../store/transient-store.js';
+import type { AnalysisQueue } from '../../workers/analysis-queue.js';
+import { apiKeyAuthPlugin } from './plugins/api-key-auth.js';
+import { openApiDocsPlugin } from './plugins/openapi-docs.js';
+import { perKeyRateLimitPlugin } from './plugins/per-key-rate-limit.js';
+import { problemDetailsPlugin } from './plugins/problem-details.js';
+import { serviceMetricsPlugin } from './plugins/service-metrics.js';
+import { healthRoutes } from './routes/health-routes.js';
+import { metricsRoutes } from './routes/metrics-routes.js';
+import { transientRoutes } from './routes/transient-routes.js';
+
+/** Everything the API talks to, created by the caller so tests inject real ones. */
+export interface AppDependencies {
+  config: ServiceConfig;
+  logger: Logger;
+  store: TransientStore;
+  queue: AnalysisQueue;
+}
+
+/**
+ * The HTTP API: plugins first (errors, auth, limits, docs, metrics), then
+ * one plugin per route group. Not listening yet: the caller decides
+ * (`listen` in main, `inject` in tests).
+ */
+export async function buildApp(deps: AppDependencies) {
+  const { config, logger, store, queue } = deps;
+  const app = Fastify({
+    loggerInstance: logger,
+    bodyLimit: config.maxUploadBytes,
+    genReqId: () => randomUUID(),
+    // Ids and names in paths may be long (SHA-256 hex); keep the default 100 as a lower bound.
+    routerOptions: { maxParamLength: 200 },
+    // Unknown fields are refused (400), not silently dropped: a mistyped power_W must not pass.
+    ajv: { customOptions: { removeAdditional: false } },
+  }).withTypeProvider<TypeBoxTypeProvider>();
+
+  await app.register(problemDetailsPlugin);
+  await app.register(apiKeyAuthPlugin, { apiKeys: config.apiKeys });
+  await app.register(perKeyRateLimitPlugin, { perMinute: config.rateLimitPerMinute });
+  await app.register(openApiDocsPlugin);
+  await app.register(serviceMetricsPlugin, { queue });
+
+  await app.register(healthRoutes, { store, queue });
+  await app.register(metricsRoutes);
+  await app.register(transientRoutes, { store, queue, maxUploadBytes: config.maxUploadBytes });
+  return app;
+}
+
+export type HeatpathApp = Awaited<ReturnType<typeof buildApp>>;

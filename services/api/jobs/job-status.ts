@@ -1,0 +1,94 @@
+import { Type, type Static } from 'typebox';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import type { TransientStore } from '../../store/transient-store.js';
+import type { AnalysisJobState, AnalysisQueue } from '../../../workers/analysis-queue.js';
+
+const nullableString = Type.Union([Type.String(), Type.Null()]);
+
+/**
+ * A job's state in our own words. `stored`: the upload is safe on disk but
+ * not queued yet (Redis was away); recovery queues it.
+ */
+export const JobStateSchema = Type.Union([
+  Type.Literal('stored'),
+  Type.Literal('queued'),
+  Type.Literal('active'),
+  Type.Literal('retrying'),
+  Type.Literal('completed'),
+  Type.Literal('failed'),
+]);
+export type JobState = Static<typeof JobStateSchema>;
+
+export const JobStatusSchema = Type.Object({
+  job_id: Type.String(),
+  state: JobStateSchema,
+  progress: Type.Number({ minimum: 0, maximum: 100, description: 'Percent done.' }),
+  attempts: Type.Integer({ description: 'Attempts started so far.' }),
+  timings: Type.Object({
+    queued_at: nullableString,
+    started_at: nullableString,
+    finished_at: nullableString,
+    duration_ms: Type.Union([Type.Number(), Type.Null()], { description: 'Analysis time of the finished job.' }),
+  }),
+  error: Type.Union([Type.Object({ code: nullableString, message: Type.String() }), Type.Null()]),
+});
+export type JobStatus = Static<typeof JobStatusSchema>;
+
+/**
+ * The store is the truth for finished jobs (results and final failures live
+ * there); Redis knows the ones still on their way. Null: nobody knows the job.
+ */
+export async function readJobStatus(store: TransientStore, queue: AnalysisQueue, jobId: string): Promise<JobStatus | null> {
+  const [result, failure] = await Promise.all([store.getResult(jobId), store.getFailure(jobId)]);
+  if (result || failure) {
+    const queued = await queue.getJobState(jobId).catch(() => null);
+    return {
+      job_id: jobId,
+      state: result ? 'completed' : 'failed',
+      progress: result ? 100 : queued?.progress ?? 0,
+      attempts: queued?.attempts_made ?? failure?.attempts ?? 1,
+      timings: {
+        queued_at: queued?.added_at ?? null,
+        started_at: queued?.started_at ?? null,
+        finished_at: result?.finished_at ?? failure?.failed_at ?? null,
+        duration_ms: result?.duration_ms ?? null,
+      },
+      error: failure ? { code: failure.code, message: failure.message } : null,
+    };
+  }
+  const queued = await queue.getJobState(jobId).catch((error: Error) => {
+    throw new HeatpathError('SERVICE_UNAVAILABLE', `the job queue (Redis) does not answer: ${error.message}`);
+  });
+  return queued ? fromQueue(queued) : null;
+}
+
+/** A job whose upload is stored but which no queue knows (yet). */
+export function storedJobStatus(jobId: string): JobStatus {
+  return { job_id: jobId, state: 'stored', progress: 0, attempts: 0, timings: { queued_at: null, started_at: null, finished_at: null, duration_ms: null }, error: null };
+}
+
+function fromQueue(queued: AnalysisJobState): JobStatus {
+  return {
+    job_id: queued.job_id,
+    state: queueState(queued),
+    progress: queued.progress,
+    attempts: queued.attempts_made,
+    timings: { queued_at: queued.added_at, started_at: queued.started_at, finished_at: queued.finished_at, duration_ms: null },
+    error: queued.failed_reason ? { code: null, message: queued.failed_reason } : null,
+  };
+}
+
+function queueState(queued: AnalysisJobState): JobState {
+  switch (queued.state) {
+    case 'active':
+      return 'active';
+    case 'completed':
+      return 'completed';
+    case 'failed':
+      return 'failed';
+    case 'delayed':
+      return queued.attempts_made > 0 ? 'retrying' : 'queued';
+    default:
+      return 'queued';
+  }
+}

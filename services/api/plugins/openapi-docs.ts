@@ -1,0 +1,30 @@
+import fastifySwagger from '@fastify/swagger';
+import fastifySwaggerUi from '@fastify/swagger-ui';
+import type { FastifyInstance } from 'fastify';
+import fastifyPlugin from 'fastify-plugin';
+import { HEATPATH_VERSION } from '../../../shared/analysis/algorithm-version.js';
+import { bearerSecurityScheme } from './api-key-auth.js';
+
+/**
+ * The OpenAPI 3.1 document, generated from the routes' TypeBox schemas, at
+ * /openapi.json, and an interactive reader of it at /docs.
+ */
+export const openApiDocsPlugin = fastifyPlugin(async function openApiDocs(app: FastifyInstance) {
+  await app.register(fastifySwagger, {
+    openapi: {
+      openapi: '3.1.0',
+      info: {
+        title: 'heatpath service',
+        version: HEATPATH_VERSION,
+        description:
+          'Upload thermal transients from the benches, follow their analysis jobs and fetch results for the LIMS. ' +
+          'Results inform qualification and design; they defer to the applicable standards and qualified lab practice.',
+      },
+      components: {
+        securitySchemes: { [bearerSecurityScheme]: { type: 'http', scheme: 'bearer', description: 'An API key issued by the lab admin (HEATPATH_API_KEYS).' } },
+      },
+    },
+  });
+  await app.register(fastifySwaggerUi, { routePrefix: '/docs' });
+  app.get('/openapi.json', { schema: { hide: true } }, async () => app.swagger());
+});

@@ -1,0 +1,101 @@
+import fastifyMultipart from '@fastify/multipart';
+import { TypeBoxValidatorCompiler, type FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import { Type } from 'typebox';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import type { TransientStore } from '../../store/transient-store.js';
+import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
+import { JobStateSchema, JobStatusSchema, readJobStatus, storedJobStatus } from '../jobs/job-status.js';
+import { UploadLinksSchema, UploadRecordSchema } from '../schemas/upload-record-schema.js';
+import { UploadMetadataSchema, UploadQuerySchema } from '../schemas/transient-metadata.js';
+import { acceptTransientUpload, uploadCaution, uploadLinks } from '../uploads/accept-transient-upload.js';
+import { readMultipartUpload, readRawUpload } from '../uploads/read-upload-request.js';
+
+const UploadAnswerSchema = Type.Object({
+  upload_id: Type.String(),
+  job_id: Type.String({ description: 'Same content, parameters, power, calibration and algorithm: same job.' }),
+  input_sha256: Type.String(),
+  state: JobStateSchema,
+  quantity: Type.String(),
+  channels: Type.Array(Type.String()),
+  points: Type.Integer(),
+  links: UploadLinksSchema,
+  caution: Type.String({ default: uploadCaution }),
+});
+
+const binary = (description: string) => Type.Unsafe<unknown>({ format: 'binary', description });
+
+/**
+ * Uploads: the one write the benches do, day and night. The raw bytes and
+ * the upload record are on disk before the 202 leaves.
+ */
+export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue; maxUploadBytes: number }> = async (
+  app,
+  { store, queue, maxUploadBytes },
+) => {
+  // Raw bodies are Buffers, which JSON-Schema validators cannot type; TypeBox's own compiler checks the query and headers here.
+  app.setValidatorCompiler(TypeBoxValidatorCompiler);
+  // The raw bytes are what is stored and hashed: no JSON parsing of the body here.
+  app.removeContentTypeParser('application/json');
+  app.addContentTypeParser(['text/csv', 'text/plain', 'application/json'], { parseAs: 'buffer', bodyLimit: maxUploadBytes }, (_request, body, done) =>
+    done(null, body),
+  );
+  await app.register(fastifyMultipart, {
+    limits: { fileSize: maxUploadBytes, files: 1, parts: 40, fields: 30, fieldSize: 64 * 1024, fieldNameSize: 100, headerPairs: 50 },
+  });
+
+  app.post(
+    '/v1/transients',
+    {
+      config: { permission: 'upload' },
+      schema: {
+        tags: ['transients'],
+        summary: 'Upload a measured transient',
+        description:
+          'Body: the transient as text/csv or application/json with metadata as query parameters, or multipart/form-data with a `file` part ' +
+          'and metadata as fields or a `meta` JSON field (which may hold an inline `calibration`). The file is parsed before it is accepted. ' +
+          'An Idempotency-Key header makes retries safe. 202 state `stored` means the upload is durably kept but the queue is unavailable; it is queued on recovery.',
+        headers: Type.Object({ 'idempotency-key': Type.Optional(Type.String({ minLength: 1, maxLength: 200 })) }),
+        querystring: Type.Partial(UploadQuerySchema),
+        body: {
+          content: {
+            'text/csv': { schema: binary('The transient as CSV: time_s and value columns.') },
+            'application/json': { schema: binary('The transient as JSON: {"time_s": [...], "temperature_C": [...]}.') },
+            'multipart/form-data': {
+              schema: Type.Unsafe<unknown>({
+                description: 'A file part named `file`, plus metadata fields or a `meta` JSON field.',
+                properties: { file: { format: 'binary' }, meta: { description: 'JSON object of metadata.', ...UploadMetadataSchema } },
+              }),
+            },
+          },
+        },
+        response: { 202: UploadAnswerSchema },
+      },
+    },
+    async (request, reply) => {
+      const upload = request.isMultipart() ? await readMultipartUpload(request, request.query) : readRawUpload(request, request.query);
+      const { answer, replayed } = await acceptTransientUpload({ store, queue, log: request.log }, upload, request.apiKey!, request.headers['idempotency-key']);
+      if (replayed) reply.header('idempotent-replayed', 'true');
+      return reply.status(202).header('location', answer.links.job).send(answer);
+    },
+  );
+
+  app.get(
+    '/v1/transients/:upload_id',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['transients'],
+        summary: 'An upload, its metadata and its job',
+        params: Type.Object({ upload_id: Type.String({ maxLength: 160 }) }),
+        response: { 200: Type.Object({ upload: UploadRecordSchema, job: JobStatusSchema, links: UploadLinksSchema }) },
+      },
+    },
+    async (request) => {
+      const upload = await store.getUpload(request.params.upload_id);
+      if (!upload) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${request.params.upload_id} is not stored`);
+      // Unknown to the queue (or Redis away): the upload is still safely stored.
+      const job = (await readJobStatus(store, queue, upload.job_id).catch(() => null)) ?? storedJobStatus(upload.job_id);
+      return { upload, job, links: uploadLinks(upload) };
+    },
+  );
+};

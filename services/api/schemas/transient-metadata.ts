@@ -1,0 +1,35 @@
+import { Type, type Static } from 'typebox';
+import { AnalysisParametersSchema } from '../../../shared/schemas/analysis-parameters.js';
+import { CalibrationSchema } from '../../../shared/schemas/calibration.js';
+
+const positive = (description: string) => Type.Number({ exclusiveMinimum: 0, description });
+
+/**
+ * What a bench says about an uploaded transient, flat so the same fields
+ * work as query parameters (raw CSV/JSON body) and as multipart fields.
+ * Analysis parameters are the shared ones, with their shared defaults.
+ */
+export const UploadQuerySchema = Type.Object(
+  {
+    sample_id: Type.String({ pattern: '^[A-Za-z0-9][A-Za-z0-9._-]{0,127}$', description: 'The LIMS sample id (letters, digits, . _ -).' }),
+    bench: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: 'The bench that measured.' })),
+    channel: Type.Optional(Type.String({ minLength: 1, maxLength: 64, description: 'The bench channel or device position.' })),
+    cycle_count: Type.Optional(Type.Integer({ minimum: 0, description: 'Power cycles the device had seen when measured.' })),
+    tags: Type.Optional(Type.Array(Type.String({ minLength: 1, maxLength: 64 }), { maxItems: 32, description: 'Free tags (repeat the parameter for several).' })),
+    power_W: Type.Optional(positive('Heating power step; or give current_A and voltage_V.')),
+    current_A: Type.Optional(positive('Heating current (with voltage_V).')),
+    voltage_V: Type.Optional(positive('Heating voltage (with current_A).')),
+    calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'A stored calibration (POST /v1/calibrations); needed for voltage_V input.' })),
+    file_name: Type.Optional(Type.String({ minLength: 1, maxLength: 255, description: 'Name recorded in results and error messages.' })),
+    ...Type.Partial(AnalysisParametersSchema).properties,
+  },
+  { additionalProperties: false },
+);
+export type UploadQuery = Static<typeof UploadQuerySchema>;
+
+/** Multipart metadata: the query fields, plus an inline calibration (stored on upload). */
+export const UploadMetadataSchema = Type.Object(
+  { ...UploadQuerySchema.properties, calibration: Type.Optional(CalibrationSchema) },
+  { additionalProperties: false },
+);
+export type UploadMetadata = Static<typeof UploadMetadataSchema>;

@@ -1,0 +1,175 @@
+import { randomUUID } from 'node:crypto';
+import type { FastifyBaseLogger } from 'fastify';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { parseTransient } from '../../../shared/input/parse-transient.js';
+import { AnalysisParametersSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
+import type { ApiKey } from '../../config/api-key-list.js';
+import { jobIdFor } from '../../jobs/job-id.js';
+import type { UploadRecord } from '../../store/store-records.js';
+import { sha256Hex, type TransientStore } from '../../store/transient-store.js';
+import { JOB_PRIORITY, type AnalysisQueue } from '../../../workers/analysis-queue.js';
+import type { JobState } from '../jobs/job-status.js';
+import type { UploadMetadata } from '../schemas/transient-metadata.js';
+import type { UploadRequest } from './read-upload-request.js';
+
+export interface UploadAnswer {
+  upload_id: string;
+  job_id: string;
+  input_sha256: string;
+  state: JobState;
+  quantity: string;
+  channels: string[];
+  points: number;
+  links: { self: string; job: string; result: string };
+  caution: string;
+}
+
+export const uploadCaution =
+  'Results inform qualification and design; they do not replace the applicable standards and qualified lab practice.';
+
+/**
+ * Accept one transient: check it completely (metadata, parse, calibration,
+ * power), store the raw bytes and the upload record durably, then queue the
+ * job. A Redis outage does not lose the upload: it is answered as `stored`
+ * and queued by the workers' recovery.
+ */
+export async function acceptTransientUpload(
+  deps: { store: TransientStore; queue: AnalysisQueue; log: FastifyBaseLogger },
+  upload: UploadRequest,
+  apiKey: ApiKey,
+  idempotencyKey: string | undefined,
+): Promise<{ answer: UploadAnswer; replayed: boolean }> {
+  const { store, queue, log } = deps;
+  const { metadata } = upload;
+  const transient = parseTransient(upload.bytes, upload.fileName, upload.format);
+  const power = powerOf(metadata);
+  const calibrationId = await calibrationIdOf(store, metadata, apiKey);
+  if (transient.quantity === 'voltage_V' && calibrationId === null) {
+    throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.fileName });
+  }
+  if (transient.quantity !== 'zth_K_per_W' && power === null) {
+    throw new HeatpathError('POWER_REQUIRED', `the file holds ${transient.quantity}; give power_W, or current_A and voltage_V`, { file: upload.fileName });
+  }
+  const parameters = parametersOf(metadata);
+  const inputSha256 = sha256Hex(upload.bytes);
+  const jobId = jobIdFor({ input_sha256: inputSha256, parameters, power, calibration_sha256: calibrationId });
+  const describe = (record: UploadRecord, state: JobState): UploadAnswer => ({
+    upload_id: record.upload_id,
+    job_id: record.job_id,
+    input_sha256: record.input_sha256,
+    state,
+    quantity: transient.quantity,
+    channels: transient.channels.map((channel) => channel.name),
+    points: transient.time_s.length,
+    links: uploadLinks(record),
+    caution: uploadCaution,
+  });
+
+  const replay = async (uploadId: string) => {
+    const first = await replayable(store, uploadId, jobId, metadata);
+    return { answer: describe(first, await submit(deps, first)), replayed: true };
+  };
+
+  // Keys are per API key: two benches may pick the same key without colliding.
+  const scopedKey = idempotencyKey === undefined ? undefined : `${apiKey.name}:${idempotencyKey}`;
+  if (scopedKey !== undefined) {
+    const earlier = await store.getIdempotencyKey(scopedKey);
+    if (earlier) return replay(earlier.upload_id);
+  }
+
+  const blob = await store.putBlob(upload.bytes);
+  const record: UploadRecord = {
+    upload_id: `upl-${randomUUID()}`,
+    input_sha256: blob.sha256,
+    format: upload.format ?? (upload.bytes.toString('utf8').trimStart().replace(/^\ufeff/, '').startsWith('{') ? 'json' : 'csv'),
+    file_name: upload.fileName,
+    byte_length: blob.byte_length,
+    received_at: new Date().toISOString(),
+    sample_id: metadata.sample_id,
+    bench: metadata.bench ?? null,
+    channel: metadata.channel ?? null,
+    cycle_count: metadata.cycle_count ?? null,
+    tags: metadata.tags ?? [],
+    power,
+    calibration_id: calibrationId,
+    parameters,
+    job_id: jobId,
+    uploaded_by: apiKey.name,
+  };
+  await store.putUpload(record);
+
+  if (scopedKey !== undefined) {
+    const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
+    // A concurrent retry with the same key won the claim: answer as it did.
+    if (!claim.claimed) return replay(claim.record.upload_id);
+  }
+  const state = await submit(deps, record);
+  if (state === 'stored') log.warn({ upload_id: record.upload_id, job_id: jobId }, 'upload stored but not queued: Redis does not answer; recovery will queue it');
+  return { answer: describe(record, state), replayed: false };
+}
+
+export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
+  return { self: `/v1/transients/${record.upload_id}`, job: `/v1/jobs/${record.job_id}`, result: `/v1/jobs/${record.job_id}/result` };
+}
+
+/** Queue the job unless its outcome is already stored (same content, same parameters: no work twice). */
+async function submit(deps: { store: TransientStore; queue: AnalysisQueue }, record: UploadRecord): Promise<JobState> {
+  if (await deps.store.hasResult(record.job_id)) return 'completed';
+  if (await deps.store.hasFailure(record.job_id)) return 'failed';
+  try {
+    await deps.queue.enqueue(record, { priority: JOB_PRIORITY.interactive });
+    return 'queued';
+  } catch {
+    return 'stored';
+  }
+}
+
+/** The earlier upload under this idempotency key, if the repeated request is the same. */
+async function replayable(store: TransientStore, uploadId: string, jobId: string, metadata: UploadMetadata): Promise<UploadRecord> {
+  const earlier = await requireUpload(store, uploadId);
+  if (earlier.job_id !== jobId || earlier.sample_id !== metadata.sample_id) {
+    throw new HeatpathError('IDEMPOTENCY_KEY_REUSED', `the key was first used for upload ${earlier.upload_id} with other content, parameters or sample`);
+  }
+  return earlier;
+}
+
+async function requireUpload(store: TransientStore, uploadId: string): Promise<UploadRecord> {
+  const record = await store.getUpload(uploadId);
+  if (!record) throw new HeatpathError('INTERNAL_ERROR', `idempotency record names upload ${uploadId}, which is not stored`);
+  return record;
+}
+
+function powerOf(metadata: UploadMetadata): Power | null {
+  const { power_W, current_A, voltage_V } = metadata;
+  if (power_W !== undefined && (current_A !== undefined || voltage_V !== undefined)) {
+    throw new HeatpathError('REQUEST_INVALID', 'give either power_W or current_A with voltage_V, not both');
+  }
+  if (power_W !== undefined) return { power_W };
+  if (current_A !== undefined && voltage_V !== undefined) return { current_A, voltage_V };
+  if (current_A !== undefined || voltage_V !== undefined) throw new HeatpathError('REQUEST_INVALID', 'current_A and voltage_V go together');
+  return null;
+}
+
+async function calibrationIdOf(store: TransientStore, metadata: UploadMetadata, apiKey: ApiKey): Promise<string | null> {
+  if (metadata.calibration !== undefined && metadata.calibration_id !== undefined) {
+    throw new HeatpathError('REQUEST_INVALID', 'give either calibration_id or an inline calibration, not both');
+  }
+  if (metadata.calibration !== undefined) return (await store.putCalibration(metadata.calibration, apiKey.name)).calibration_id;
+  if (metadata.calibration_id === undefined) return null;
+  if (!(await store.getCalibration(metadata.calibration_id))) {
+    throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${metadata.calibration_id} is not stored`);
+  }
+  return metadata.calibration_id;
+}
+
+function parametersOf(metadata: UploadMetadata): AnalysisParameters {
+  const parameters: AnalysisParameters = { ...defaultAnalysisParameters };
+  for (const name of Object.keys(AnalysisParametersSchema.properties) as (keyof AnalysisParameters)[]) {
+    if (metadata[name] !== undefined) Object.assign(parameters, { [name]: metadata[name] });
+  }
+  const { early_time_start_s: start, early_time_end_s: end } = parameters;
+  if (start !== undefined && end !== undefined && start >= end) {
+    throw new HeatpathError('PARAM_INVALID', `early_time_start_s (${start}) must be less than early_time_end_s (${end})`);
+  }
+  return parameters;
+}

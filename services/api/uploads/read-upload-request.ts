@@ -1,0 +1,93 @@
+import type {} from '@fastify/multipart';
+import type { FastifyRequest } from 'fastify';
+import { Value } from 'typebox/value';
+import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
+import type { TransientFormat } from '../../../shared/input/parse-transient.js';
+import { UploadMetadataSchema, type UploadMetadata, type UploadQuery } from '../schemas/transient-metadata.js';
+
+/** An upload as received, before anything is checked but its metadata. */
+export interface UploadRequest {
+  bytes: Buffer;
+  fileName: string;
+  /** From the media type or file name; undefined lets the parser decide. */
+  format: TransientFormat | undefined;
+  metadata: UploadMetadata;
+}
+
+const rawFormats: Record<string, TransientFormat> = { 'text/csv': 'csv', 'text/plain': 'csv', 'application/json': 'json' };
+
+/** Raw body: the transient is the body, metadata are query parameters. */
+export function readRawUpload(request: FastifyRequest, query: Partial<UploadQuery>): UploadRequest {
+  const format = rawFormats[request.mediaType ?? ''];
+  const bytes = Buffer.isBuffer(request.body) ? request.body : Buffer.alloc(0);
+  const metadata = validateMetadata({ ...query }, 'querystring');
+  return { bytes, format, fileName: metadata.file_name ?? `upload.${format}`, metadata };
+}
+
+/**
+ * Multipart: one `file` part, and metadata as a `meta` JSON field and/or one
+ * field per metadata name (repeat `tags` for several); fields override query
+ * parameters.
+ */
+export async function readMultipartUpload(request: FastifyRequest, query: Partial<UploadQuery>): Promise<UploadRequest> {
+  let file: { bytes: Buffer; fileName: string; mimeType: string } | undefined;
+  const fields: Record<string, string | string[]> = {};
+  try {
+    for await (const part of request.parts()) {
+      if (part.type === 'file') {
+        if (file !== undefined || part.fieldname !== 'file') throw new HeatpathError('REQUEST_INVALID', `multipart holds an unexpected file part "${part.fieldname}"; send exactly one, named "file"`);
+        file = { bytes: await part.toBuffer(), fileName: part.filename || 'upload', mimeType: part.mimetype };
+      } else {
+        if (part.valueTruncated) throw new HeatpathError('UPLOAD_TOO_LARGE', `multipart field "${part.fieldname}" is too long`);
+        const value = String(part.value);
+        const earlier = fields[part.fieldname];
+        fields[part.fieldname] = earlier === undefined ? value : [earlier, value].flat();
+      }
+    }
+  } catch (error) {
+    throw asClientError(error);
+  }
+  if (file === undefined) throw new HeatpathError('REQUEST_INVALID', 'multipart body has no part named "file"');
+  const format = rawFormats[file.mimeType] ?? formatFromName(file.fileName);
+  const metadata = validateMetadata({ ...query, ...mergeFields(fields) }, 'multipart');
+  return { bytes: file.bytes, fileName: metadata.file_name ?? file.fileName, format, metadata };
+}
+
+function mergeFields(fields: Record<string, string | string[]>): Record<string, unknown> {
+  const { meta, ...named } = fields;
+  if (meta === undefined) return named;
+  if (Array.isArray(meta)) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" appears more than once');
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(meta);
+  } catch (error) {
+    throw new HeatpathError('REQUEST_INVALID', `multipart field "meta" is not JSON: ${(error as Error).message}`);
+  }
+  if (parsed === null || typeof parsed !== 'object' || Array.isArray(parsed)) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" must be a JSON object');
+  return { ...parsed, ...named };
+}
+
+/** Both forms end here: one TypeBox schema decides what metadata is valid. */
+function validateMetadata(fields: Record<string, unknown>, source: 'querystring' | 'multipart'): UploadMetadata {
+  // Single `tags` fields arrive as strings; the schema wants a list.
+  if (typeof fields.tags === 'string') fields = { ...fields, tags: [fields.tags] };
+  const value = Value.Default(UploadMetadataSchema, Value.Convert(UploadMetadataSchema, fields));
+  if (Value.Check(UploadMetadataSchema, value)) return value;
+  const validation = [...Value.Errors(UploadMetadataSchema, value)].map((issue) => ({ instancePath: issue.instancePath, message: issue.message }));
+  // Shaped like fastify's own validation errors, so the problem handler lists the fields the same way.
+  throw Object.assign(new Error(`${source} metadata is invalid`), { statusCode: 400, validation, validationContext: source });
+}
+
+function formatFromName(fileName: string): TransientFormat | undefined {
+  if (/\.json$/i.test(fileName)) return 'json';
+  if (/\.(csv|tsv|txt)$/i.test(fileName)) return 'csv';
+  return undefined;
+}
+
+/** Malformed multipart (the parser's own errors carry no status) is the client's fault. */
+function asClientError(error: unknown): unknown {
+  if (isHeatpathError(error)) return error;
+  const status = (error as { statusCode?: number }).statusCode;
+  if (status === 413) return error;
+  return new HeatpathError('REQUEST_INVALID', `multipart body is malformed: ${(error as Error).message}`);
+}
