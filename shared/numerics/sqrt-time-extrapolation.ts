@@ -1,0 +1,285 @@
+import { HeatpathError } from '../errors/heatpath-error.js';
+
+/**
+ * Early-time correction by the square-root-of-time law (JESD51-14).
+ *
+ * A die surface heated by a uniform flux q behaves at first like a
+ * semi-infinite medium: dT(t) = 2 q sqrt(t) / sqrt(pi k rho c) (Carslaw &
+ * Jaeger, Conduction of Heat in Solids, 2nd ed., 1959). So the measured curve
+ * follows y(t) = y0 + b sqrt(t) from the end of the electrical artefact until
+ * heat leaves the die, and y0 is the value at t = 0 the artefact hides.
+ *
+ * Automatic window: every window [i, j] is tested by its least-squares
+ * residual against the noise (reduced chi-square within
+ * CHI_SQUARE_Z standard deviations of 1). For each candidate start in the
+ * first START_SCAN_DECADES decades the window grows until the test fails;
+ * the longest window wins (the earliest start on a tie). Windows that start
+ * inside the artefact fail at once or stop at its end, and windows that run
+ * past the die stop where the deviation exceeds the noise. If no window
+ * passes, the noise allowance is doubled until one does, and the fit says so.
+ * Prefix sums make each window test O(1).
+ */
+
+/** Candidate window starts lie within this many decades of the first positive time. */
+export const START_SCAN_DECADES = 2;
+/** Fewest samples in an automatic window. */
+export const MIN_WINDOW_SAMPLES = 8;
+/** Fewest samples in a window given by the caller (two parameters and a residual). */
+export const MIN_OVERRIDE_WINDOW_SAMPLES = 3;
+/** A window passes when its reduced chi-square is below 1 + CHI_SQUARE_Z * sqrt(2 / dof). */
+export const CHI_SQUARE_Z = 3;
+/** The noise allowance never drops below this fraction of the curve's value range (rounding of noiseless data). */
+export const NOISE_FLOOR_RELATIVE = 1e-6;
+/** How often the noise allowance is doubled before the search gives up. */
+export const MAX_NOISE_DOUBLINGS = 10;
+/** Windows shorter than this ratio t_end / t_start get a warning: the extrapolation is poorly anchored. */
+export const SHORT_WINDOW_TIME_RATIO = 3;
+/** A residual above this multiple of the noise gets a warning. */
+export const POOR_FIT_NOISE_RATIO = 2;
+
+export interface SqrtTimeOptions {
+  /** RMS noise of `values`, in their units (see noise-estimate.ts). */
+  noise_rms: number;
+  /** Window start; found automatically when omitted. */
+  start_s?: number;
+  /** Window end; found automatically when omitted. */
+  end_s?: number;
+}
+
+export interface SqrtTimeFit {
+  window_start_s: number;
+  window_end_s: number;
+  /** Indices of the first and last sample in the window. */
+  start_index: number;
+  end_index: number;
+  points: number;
+  /** Extrapolated value at t = 0. */
+  y0: number;
+  /** Standard error of y0 from the noise and the window's leverage. */
+  y0_standard_error: number;
+  /** b in y = y0 + b sqrt(t), in value units per sqrt(second). */
+  slope_per_sqrt_s: number;
+  residual_rms: number;
+  /** True when neither window bound was given. */
+  automatic: boolean;
+  warnings: string[];
+}
+
+export interface SqrtTimeExtrapolation {
+  fit: SqrtTimeFit;
+  /** The curve with every sample before the window replaced by y0 + b sqrt(t). */
+  corrected: Float64Array;
+}
+
+export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, options: SqrtTimeOptions): SqrtTimeExtrapolation {
+  checkArguments(time_s, values, options);
+  const sums = new WindowSums(time_s, values);
+  const noiseFloor = NOISE_FLOOR_RELATIVE * valueRange(values);
+  const warnings: string[] = [];
+  let noiseAllowance = Math.max(options.noise_rms, noiseFloor);
+  let window = chooseWindow(time_s, sums, options, noiseAllowance);
+  for (let doubling = 1; window === undefined && doubling <= MAX_NOISE_DOUBLINGS; doubling++) {
+    noiseAllowance *= 2;
+    window = chooseWindow(time_s, sums, options, noiseAllowance);
+    if (window !== undefined) {
+      warnings.push(`the sqrt(t) law holds only to ${2 ** doubling} times the noise; the early-time correction is uncertain`);
+    }
+  }
+  if (window === undefined) {
+    throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', 'no time window follows the sqrt(t) law of a heated die surface; give early_time_start_s and early_time_end_s');
+  }
+
+  const [start, end] = window;
+  const line = fitLine(time_s, values, start, end);
+  const points = end - start + 1;
+  const noise = Math.max(options.noise_rms, noiseFloor);
+  if (line.residualRms > POOR_FIT_NOISE_RATIO * noise && warnings.length === 0) {
+    warnings.push(`the sqrt(t) fit residual is ${(line.residualRms / noise).toFixed(1)} times the noise`);
+  }
+  if (time_s[end] < SHORT_WINDOW_TIME_RATIO * time_s[start]) {
+    warnings.push(`the sqrt(t) window ${time_s[start]} s to ${time_s[end]} s is short; the value at t = 0 is poorly anchored`);
+  }
+
+  const corrected = Float64Array.from(values);
+  for (let i = 0; i < start; i++) corrected[i] = line.y0 + line.slope * Math.sqrt(time_s[i]);
+  return {
+    fit: {
+      window_start_s: time_s[start],
+      window_end_s: time_s[end],
+      start_index: start,
+      end_index: end,
+      points,
+      y0: line.y0,
+      y0_standard_error: noise * line.y0Leverage,
+      slope_per_sqrt_s: line.slope,
+      residual_rms: line.residualRms,
+      automatic: options.start_s === undefined && options.end_s === undefined,
+      warnings,
+    },
+    corrected,
+  };
+}
+
+function checkArguments(time_s: Float64Array, values: Float64Array, options: SqrtTimeOptions): void {
+  if (time_s.length !== values.length || time_s.length < MIN_WINDOW_SAMPLES) {
+    throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `the early-time fit needs at least ${MIN_WINDOW_SAMPLES} samples with one value each`);
+  }
+  if (!(options.noise_rms >= 0) || !Number.isFinite(options.noise_rms)) {
+    throw new HeatpathError('PARAM_INVALID', `noise_rms = ${options.noise_rms} must be a finite number >= 0`);
+  }
+  for (const [name, bound] of [['early_time_start_s', options.start_s], ['early_time_end_s', options.end_s]] as const) {
+    if (bound !== undefined && !(bound > 0 && Number.isFinite(bound))) {
+      throw new HeatpathError('PARAM_INVALID', `${name} = ${bound} must be a positive number of seconds`, { column: name });
+    }
+  }
+  if (options.start_s !== undefined && options.end_s !== undefined && !(options.start_s < options.end_s)) {
+    throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${options.start_s} s must be before early_time_end_s = ${options.end_s} s`);
+  }
+}
+
+/** [start, end] sample indices of the window, or undefined when none passes at this noise. */
+function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeOptions, noise: number): [number, number] | undefined {
+  const count = time_s.length;
+  const fixedStart = options.start_s === undefined ? undefined : firstIndexAtOrAfter(time_s, options.start_s);
+  const fixedEnd = options.end_s === undefined ? undefined : lastIndexAtOrBefore(time_s, options.end_s);
+  if (fixedStart !== undefined && fixedEnd !== undefined) {
+    if (fixedEnd - fixedStart + 1 < MIN_OVERRIDE_WINDOW_SAMPLES) {
+      throw new HeatpathError('PARAM_INVALID', `the early-time window ${options.start_s} s to ${options.end_s} s holds fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples`);
+    }
+    return [fixedStart, fixedEnd];
+  }
+
+  const firstPositive = time_s.findIndex((t) => t > 0);
+  const scanLimit_s = time_s[firstPositive] * 10 ** START_SCAN_DECADES;
+  const minimumSamples = fixedStart === undefined ? MIN_WINDOW_SAMPLES : MIN_OVERRIDE_WINDOW_SAMPLES;
+  const starts: number[] = [];
+  if (fixedStart !== undefined) starts.push(fixedStart);
+  else for (let i = 0; i < count && time_s[i] <= scanLimit_s; i++) starts.push(i);
+
+  let best: [number, number] | undefined;
+  for (const start of starts) {
+    let end: number;
+    if (fixedEnd !== undefined) {
+      if (fixedEnd - start + 1 < minimumSamples || !sums.passes(start, fixedEnd, noise)) continue;
+      end = fixedEnd;
+    } else {
+      end = start + minimumSamples - 1;
+      if (end >= count || !sums.passes(start, end, noise)) continue;
+      while (end + 1 < count && sums.passes(start, end + 1, noise)) end++;
+    }
+    if (best === undefined || end - start > best[1] - best[0]) best = [start, end];
+  }
+  if (best === undefined && fixedStart !== undefined && options.end_s === undefined) {
+    throw new HeatpathError('PARAM_INVALID', `fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples follow early_time_start_s = ${options.start_s} s`);
+  }
+  return best;
+}
+
+function firstIndexAtOrAfter(time_s: Float64Array, bound_s: number): number {
+  const index = time_s.findIndex((t) => t >= bound_s);
+  if (index < 0) throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${bound_s} s is after the last sample`, { column: 'early_time_start_s' });
+  return index;
+}
+
+function lastIndexAtOrBefore(time_s: Float64Array, bound_s: number): number {
+  const index = time_s.findLastIndex((t) => t <= bound_s);
+  if (index < 0) throw new HeatpathError('PARAM_INVALID', `early_time_end_s = ${bound_s} s is before the first sample`, { column: 'early_time_end_s' });
+  return index;
+}
+
+function valueRange(values: Float64Array): number {
+  let low = Infinity;
+  let high = -Infinity;
+  for (const value of values) {
+    low = Math.min(low, value);
+    high = Math.max(high, value);
+  }
+  return high - low;
+}
+
+/**
+ * Prefix sums of 1, x, x^2, y, xy, y^2 with x = sqrt(t) / sqrt(t_last) and
+ * y shifted by its first value, so that the least-squares residual of any
+ * window of a straight line in x costs O(1) and keeps its digits.
+ */
+class WindowSums {
+  private readonly x: Float64Array;
+  private readonly xx: Float64Array;
+  private readonly y: Float64Array;
+  private readonly xy: Float64Array;
+  private readonly yy: Float64Array;
+
+  constructor(time_s: Float64Array, values: Float64Array) {
+    const count = time_s.length;
+    const xScale = 1 / Math.sqrt(time_s[count - 1]);
+    const yShift = values[0];
+    this.x = new Float64Array(count + 1);
+    this.xx = new Float64Array(count + 1);
+    this.y = new Float64Array(count + 1);
+    this.xy = new Float64Array(count + 1);
+    this.yy = new Float64Array(count + 1);
+    for (let i = 0; i < count; i++) {
+      const x = Math.sqrt(time_s[i]) * xScale;
+      const y = values[i] - yShift;
+      this.x[i + 1] = this.x[i] + x;
+      this.xx[i + 1] = this.xx[i] + x * x;
+      this.y[i + 1] = this.y[i] + y;
+      this.xy[i + 1] = this.xy[i] + x * y;
+      this.yy[i + 1] = this.yy[i] + y * y;
+    }
+  }
+
+  /** Whether the straight-line residual over samples start..end is consistent with the noise. */
+  passes(start: number, end: number, noise: number): boolean {
+    const n = end - start + 1;
+    const sx = this.x[end + 1] - this.x[start];
+    const sy = this.y[end + 1] - this.y[start];
+    const sxxCentred = this.xx[end + 1] - this.xx[start] - (sx * sx) / n;
+    const sxyCentred = this.xy[end + 1] - this.xy[start] - (sx * sy) / n;
+    const syyCentred = this.yy[end + 1] - this.yy[start] - (sy * sy) / n;
+    const residualSquares = syyCentred - (sxyCentred * sxyCentred) / sxxCentred;
+    const dof = n - 2;
+    return residualSquares <= noise * noise * dof * (1 + CHI_SQUARE_Z * Math.sqrt(2 / dof));
+  }
+}
+
+interface LineFit {
+  y0: number;
+  slope: number;
+  residualRms: number;
+  /** Standard error of y0 per unit noise: sqrt(sum x^2 / (n * Sxx)). */
+  y0Leverage: number;
+}
+
+/** Least-squares y = y0 + slope * sqrt(t) over samples start..end, two-pass for accuracy. */
+function fitLine(time_s: Float64Array, values: Float64Array, start: number, end: number): LineFit {
+  const n = end - start + 1;
+  let meanX = 0;
+  let meanY = 0;
+  for (let i = start; i <= end; i++) {
+    meanX += Math.sqrt(time_s[i]);
+    meanY += values[i];
+  }
+  meanX /= n;
+  meanY /= n;
+  let sxx = 0;
+  let sxy = 0;
+  for (let i = start; i <= end; i++) {
+    const dx = Math.sqrt(time_s[i]) - meanX;
+    sxx += dx * dx;
+    sxy += dx * (values[i] - meanY);
+  }
+  const slope = sxy / sxx;
+  const y0 = meanY - slope * meanX;
+  let residualSquares = 0;
+  for (let i = start; i <= end; i++) {
+    const residual = values[i] - y0 - slope * Math.sqrt(time_s[i]);
+    residualSquares += residual * residual;
+  }
+  return {
+    y0,
+    slope,
+    residualRms: Math.sqrt(residualSquares / Math.max(n - 2, 1)),
+    y0Leverage: Math.sqrt(1 / n + (meanX * meanX) / sxx),
+  };
+}

@@ -1,0 +1,108 @@
+import { describe, expect, it } from 'vitest';
+import { extrapolateSqrtTime } from '../shared/numerics/sqrt-time-extrapolation.js';
+import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { createRandom, gaussian } from './support/seeded-random.js';
+import { SILICON_DIE_SLAB, logSpacedTimes, semiInfiniteZth } from './support/conduction-solutions.js';
+
+const ARTEFACT_END_S = 8e-6;
+const times = logSpacedTimes(1e-6, 4, 100);
+const power_W = 100;
+const tj0_C = 125;
+
+/** Cooling of a semi-infinite silicon surface (Carslaw & Jaeger 1959): Tj(t) = Tj(0) - P Zth(t), plus a ringing electrical artefact before 8 us and noise. */
+function semiInfiniteCooling(noise_K: number, seed: number): Float64Array {
+  const random = createRandom(seed);
+  return times.map((t) => {
+    const zth = semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K);
+    const artefact = t < ARTEFACT_END_S ? 4 * Math.cos(t * 3e6) * Math.exp(-t / 3e-6) + 1.5 : 0;
+    return tj0_C - power_W * zth + artefact + noise_K * gaussian(random);
+  });
+}
+
+const slope_K_per_sqrt_s = (-power_W * 2) / (SILICON_DIE_SLAB.area_m2 * Math.sqrt(Math.PI * SILICON_DIE_SLAB.conductivity_W_per_mK * SILICON_DIE_SLAB.volumetricHeat_J_per_m3K));
+
+describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)', () => {
+  it.each([1, 2, 3])('excludes an 8 us artefact and extrapolates Tj(0) within the noise (seed %i)', (seed) => {
+    const noise_K = 0.02;
+    const values = semiInfiniteCooling(noise_K, seed);
+    const { fit, corrected } = extrapolateSqrtTime(times, values, { noise_rms: estimateNoiseRms(values) });
+    expect(fit.automatic).toBe(true);
+    expect(fit.window_start_s).toBeGreaterThanOrEqual(ARTEFACT_END_S);
+    expect(fit.window_start_s).toBeLessThan(2 * ARTEFACT_END_S);
+    // The whole curve follows the law, so the window should run to (nearly) the end.
+    expect(fit.window_end_s).toBeGreaterThan(0.5 * times[times.length - 1]);
+    expect(Math.abs(fit.y0 - tj0_C)).toBeLessThan(3 * fit.y0_standard_error);
+    expect(fit.y0_standard_error).toBeLessThan(noise_K);
+    expect(fit.slope_per_sqrt_s / slope_K_per_sqrt_s).toBeCloseTo(1, 2);
+    expect(fit.residual_rms / noise_K).toBeGreaterThan(0.8);
+    expect(fit.residual_rms / noise_K).toBeLessThan(1.2);
+    expect(fit.warnings).toEqual([]);
+    // The artefact samples are replaced by the fitted law, the rest is untouched.
+    for (let i = 0; i < fit.start_index; i++) expect(corrected[i]).toBeCloseTo(fit.y0 + fit.slope_per_sqrt_s * Math.sqrt(times[i]), 12);
+    for (let i = fit.start_index; i < times.length; i++) expect(corrected[i]).toBe(values[i]);
+  });
+
+  it('recovers Tj(0) and the slope to rounding on noiseless data', () => {
+    const values = semiInfiniteCooling(0, 1);
+    const { fit } = extrapolateSqrtTime(times, values, { noise_rms: 0 });
+    expect(fit.window_start_s).toBeGreaterThanOrEqual(ARTEFACT_END_S);
+    expect(fit.y0).toBeCloseTo(tj0_C, 9);
+    expect(fit.slope_per_sqrt_s / slope_K_per_sqrt_s).toBeCloseTo(1, 9);
+  });
+
+  it('stops the window where the curve leaves the sqrt(t) law', () => {
+    // After 1 ms the curve bends (heat reaching a layer of higher resistance): an extra 3 K per decade.
+    const values = semiInfiniteCooling(0.01, 4).map((v, i) => v - (times[i] > 1e-3 ? 3 * Math.log10(times[i] / 1e-3) : 0));
+    const { fit } = extrapolateSqrtTime(times, values, { noise_rms: estimateNoiseRms(values) });
+    expect(fit.window_end_s).toBeLessThan(1.5e-3);
+    expect(fit.window_end_s).toBeGreaterThan(5e-4);
+    expect(Math.abs(fit.y0 - tj0_C)).toBeLessThan(3 * fit.y0_standard_error);
+  });
+
+  it('honours a given start, a given end, or both', () => {
+    const values = semiInfiniteCooling(0.02, 5);
+    const noise_rms = estimateNoiseRms(values);
+    const startOnly = extrapolateSqrtTime(times, values, { noise_rms, start_s: 2e-5 }).fit;
+    expect(startOnly.window_start_s).toBeGreaterThanOrEqual(2e-5);
+    expect(startOnly.window_start_s).toBeLessThan(2.1e-5);
+    expect(startOnly.automatic).toBe(false);
+    const endOnly = extrapolateSqrtTime(times, values, { noise_rms, end_s: 1e-4 }).fit;
+    expect(endOnly.window_end_s).toBeLessThanOrEqual(1e-4);
+    expect(endOnly.window_start_s).toBeGreaterThanOrEqual(ARTEFACT_END_S);
+    const both = extrapolateSqrtTime(times, values, { noise_rms, start_s: 0.99e-5, end_s: 1.01e-3 }).fit;
+    expect([both.window_start_s >= 0.99e-5, both.window_end_s <= 1.01e-3, both.points]).toEqual([true, true, 201]);
+    expect(Math.abs(both.y0 - tj0_C)).toBeLessThan(3 * both.y0_standard_error);
+  });
+
+  it('warns when a given window includes the artefact', () => {
+    const values = semiInfiniteCooling(0.02, 6);
+    const { fit } = extrapolateSqrtTime(times, values, { noise_rms: estimateNoiseRms(values), start_s: 1e-6, end_s: 1e-4 });
+    expect(fit.warnings.join(' ')).toMatch(/times the noise/);
+  });
+
+  it('warns when the sqrt(t) law holds nowhere within the stated noise', () => {
+    // A logarithmic curve is nowhere a sqrt(t) law; claiming 1e-4 K noise forces the allowance up.
+    const values = times.map((t) => 100 - 3 * Math.log10(t / 1e-7));
+    const { fit } = extrapolateSqrtTime(times, values, { noise_rms: 1e-4 });
+    expect(fit.warnings.join(' ')).toMatch(/holds only to \d+ times the noise/);
+  });
+
+  const bad: [string, Parameters<typeof extrapolateSqrtTime>[2]][] = [
+    ['start after end', { noise_rms: 0.01, start_s: 1e-3, end_s: 1e-4 }],
+    ['start after the last sample', { noise_rms: 0.01, start_s: 10 }],
+    ['end before the first sample', { noise_rms: 0.01, end_s: 1e-7 }],
+    ['negative start', { noise_rms: 0.01, start_s: -1 }],
+    ['window of two samples', { noise_rms: 0.01, start_s: 1e-5, end_s: 1.03e-5 }],
+    ['negative noise', { noise_rms: -1 }],
+  ];
+  it.each(bad)('rejects %s with PARAM_INVALID', (_label, options) => {
+    const values = semiInfiniteCooling(0.01, 7);
+    expect(() => extrapolateSqrtTime(times, values, options)).toThrow(HeatpathError);
+    try {
+      extrapolateSqrtTime(times, values, options);
+    } catch (error) {
+      expect((error as HeatpathError).code).toBe('PARAM_INVALID');
+    }
+  });
+});

@@ -1,0 +1,112 @@
+import { describe, expect, it } from 'vitest';
+import { heatingPower_W, zthFromTemperature, zthFromZthInput } from '../shared/numerics/zth-from-temperature.js';
+import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
+import { steadyStateRth } from '../shared/numerics/steady-state.js';
+import { NOISE_FLOOR_RELATIVE } from '../shared/numerics/sqrt-time-extrapolation.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { createRandom, gaussian } from './support/seeded-random.js';
+import { SILICON_DIE_SLAB, logSpacedTimes, slabRth, slabZth } from './support/conduction-solutions.js';
+
+// Truth: a silicon die slab, flux on one face, isothermal other face
+// (Carslaw & Jaeger 1959); its early times follow the semi-infinite sqrt(t) law.
+const times = logSpacedTimes(1e-6, 8, 100);
+const rth = slabRth(SILICON_DIE_SLAB);
+const truth = times.map((t) => slabZth(SILICON_DIE_SLAB, t));
+const power_W = 60 / rth; // P x Rth = 60 K, as on a power module bench
+const ambient_C = 25;
+const ARTEFACT_END_S = 8e-6;
+
+function artefact(t: number): number {
+  return t < ARTEFACT_END_S ? 6 * Math.cos(t * 2.5e6) * Math.exp(-t / 4e-6) - 2 : 0;
+}
+
+function noiseSeries(noise_K: number, seed: number): Float64Array {
+  const random = createRandom(seed);
+  return times.map(() => noise_K * gaussian(random));
+}
+
+function errorCode(run: () => unknown): string {
+  try {
+    run();
+  } catch (error) {
+    if (error instanceof HeatpathError) return error.code;
+    throw error;
+  }
+  return 'no error';
+}
+
+describe('zthFromTemperature', () => {
+  it('recovers the slab Zth, Zth(0) = 0 included, from a cooling curve with an 8 us artefact', () => {
+    const noise = noiseSeries(0.02, 1);
+    const cooling = times.map((t, i) => ambient_C + power_W * (rth - truth[i]) + artefact(t) + noise[i]);
+    const curve = zthFromTemperature(times, cooling, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(cooling) });
+    const report = curve.early_time;
+    expect(report.applied).toBe(true);
+    expect(report.window_start_s).toBeGreaterThanOrEqual(ARTEFACT_END_S);
+    // Tj(0) = ambient + P Rth, to within the extrapolation's standard error.
+    expect(Math.abs(report.t0_value - (ambient_C + power_W * rth))).toBeLessThan(3 * report.t0_standard_error);
+    // Every sample, the replaced artefact region included, matches the truth within the noise.
+    for (let i = 0; i < times.length; i++) expect(Math.abs(curve.zth_K_per_W[i] - truth[i]) * power_W).toBeLessThan(0.1);
+    expect(curve.power_W).toBe(power_W);
+  });
+
+  it('meets the Rth total target: within 0.5 % at 0.02 K noise and P x Rth = 60 K', () => {
+    for (let seed = 1; seed <= 4; seed++) {
+      const noise = noiseSeries(0.02, seed);
+      const cooling = times.map((t, i) => ambient_C + power_W * (rth - truth[i]) + artefact(t) + noise[i]);
+      const curve = zthFromTemperature(times, cooling, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(cooling) });
+      expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
+    }
+  });
+
+  it('gives the same Zth from a heating curve and its mirrored cooling curve', () => {
+    const noise = noiseSeries(0.01, 2);
+    const heating = times.map((t, i) => ambient_C + power_W * truth[i] + artefact(t) + noise[i]);
+    const cooling = times.map((t, i) => ambient_C + power_W * (rth - truth[i]) - artefact(t) - noise[i]);
+    const options = { noise_rms: estimateNoiseRms(heating) };
+    const fromHeating = zthFromTemperature(times, heating, { power_W }, { ...options, kind: 'heating' });
+    const fromCooling = zthFromTemperature(times, cooling, { power_W }, { ...options, kind: 'cooling' });
+    expect(fromHeating.early_time.window_start_s).toBe(fromCooling.early_time.window_start_s);
+    for (let i = 0; i < times.length; i++) expect(fromHeating.zth_K_per_W[i]).toBeCloseTo(fromCooling.zth_K_per_W[i], 10);
+  });
+
+  it('takes the power as current times voltage', () => {
+    const cooling = times.map((_, i) => ambient_C + 20 * (rth - truth[i]));
+    const options = { kind: 'cooling' as const, noise_rms: 0 };
+    const byProduct = zthFromTemperature(times, cooling, { current_A: 8, voltage_V: 2.5 }, options);
+    const direct = zthFromTemperature(times, cooling, { power_W: 20 }, options);
+    expect(byProduct.power_W).toBe(20);
+    expect(Array.from(byProduct.zth_K_per_W)).toEqual(Array.from(direct.zth_K_per_W));
+    expect(heatingPower_W({ current_A: 8, voltage_V: 2.5 })).toBe(20);
+  });
+
+  it('rejects missing or invalid power, and a curve of the other kind', () => {
+    const cooling = times.map((_, i) => ambient_C + power_W * (rth - truth[i]));
+    const options = { kind: 'cooling' as const, noise_rms: 0 };
+    expect(errorCode(() => zthFromTemperature(times, cooling, undefined, options))).toBe('POWER_REQUIRED');
+    expect(errorCode(() => zthFromTemperature(times, cooling, { power_W: -5 }, options))).toBe('PARAM_INVALID');
+    expect(errorCode(() => zthFromTemperature(times, cooling, { current_A: Number.NaN, voltage_V: 2 }, options))).toBe('PARAM_INVALID');
+    expect(errorCode(() => zthFromTemperature(times, cooling, { power_W }, { ...options, kind: 'heating' }))).toBe('ANALYSIS_NOT_ANALYSABLE');
+  });
+});
+
+describe('zthFromZthInput', () => {
+  it('replaces the artefact by the sqrt(t) law and removes the offset so that Zth(0) = 0', () => {
+    const offset_K_per_W = 0.004;
+    const noise = noiseSeries(0.02 / power_W, 3);
+    const input = times.map((t, i) => truth[i] + offset_K_per_W + artefact(t) / power_W + noise[i]);
+    const curve = zthFromZthInput(times, input, { noise_rms: estimateNoiseRms(input) });
+    expect(curve.power_W).toBeNull();
+    expect(curve.early_time.t0_value).toBeCloseTo(offset_K_per_W, 3);
+    expect(curve.early_time.warnings.join(' ')).toMatch(/offset was removed/);
+    for (let i = 0; i < times.length; i++) expect(Math.abs(curve.zth_K_per_W[i] - truth[i]) * power_W).toBeLessThan(0.1);
+  });
+
+  it('leaves a clean Zth that starts at 0 as it is', () => {
+    const curve = zthFromZthInput(times, Float64Array.from(truth), { noise_rms: 0 });
+    expect(curve.early_time.applied).toBe(false);
+    // Noiseless: the fit is only as tight as the rounding floor of the window test.
+    expect(Math.abs(curve.early_time.t0_value)).toBeLessThan(NOISE_FLOOR_RELATIVE * rth);
+    expect(curve.early_time.warnings).toEqual([]);
+  });
+});
