@@ -119,10 +119,10 @@ export class AnalysisQueue {
     return counts as AnalysisQueueCounts;
   }
 
-  /** Removes a job that has not started; returns whether it was removed. */
-  async removeIfWaiting(jobId: string): Promise<boolean> {
+  /** Removes a job of this batch that has not started; returns whether it was removed. */
+  async removeWaitingBatchJob(jobId: string, batchId: string): Promise<boolean> {
     const job = await this.queue.getJob(jobId);
-    if (!job) return false;
+    if (!job || job.data.batch_id !== batchId) return false;
     const state = await job.getState();
     if (state !== 'waiting' && state !== 'prioritized' && state !== 'delayed') return false;
     await job.remove();

@@ -93,6 +93,8 @@ export interface BatchRecord {
   selection: UploadFilter;
   /** Parameters replacing each upload's own; null keeps the upload's parameters (new algorithm version only). */
   parameters: Partial<AnalysisParameters> | null;
+  /** Calibration replacing each upload's own; null keeps the upload's calibration. */
+  calibration_id: string | null;
   algorithm: string;
   status: 'running' | 'cancelled';
   cancelled_at: string | null;

@@ -60,6 +60,7 @@ export const errorCatalogue = {
   ROUTE_NOT_FOUND: { status: 404, title: 'No such route', hint: 'See /docs for the routes; they live under /v1.' },
   RESOURCE_NOT_FOUND: { status: 404, title: 'No such resource', hint: 'Check the id; ids come from the answers of earlier requests (upload, calibration, batch, webhook).' },
   RESULT_NOT_READY: { status: 409, title: 'The job has no result yet', hint: 'Poll the job (its links.self) until its state is completed, or register a webhook.' },
+  JOB_FAILED: { status: 422, title: 'The analysis job failed', hint: 'See the job\'s error (GET /v1/jobs/{job_id}); fix the input or parameters and upload again.' },
   IDEMPOTENCY_KEY_REUSED: { status: 409, title: 'The Idempotency-Key was used for a different request', hint: 'Use a fresh Idempotency-Key for every distinct upload; repeat a key only to retry the same upload.' },
   UPLOAD_TOO_LARGE: { status: 413, title: 'The upload is too large', hint: 'Split the measurement or ask the admin to raise HEATPATH_MAX_UPLOAD_BYTES.' },
   MEDIA_TYPE_UNSUPPORTED: { status: 415, title: 'The Content-Type is not supported', hint: 'Send text/csv, application/json or multipart/form-data (file field plus metadata fields).' },
@@ -70,6 +71,8 @@ export const errorCatalogue = {
   // ---- service: queue, batches, webhooks ----
   WEBHOOK_URL_NOT_ALLOWED: { status: 422, title: 'The webhook URL is not on the allowlist', hint: 'Ask the admin to add its origin (scheme://host:port) to HEATPATH_WEBHOOK_ALLOWLIST, or use an allowed URL.' },
   BATCH_SELECTION_EMPTY: { status: 422, title: 'The batch selects no stored transients', hint: 'Widen the selection (sample, bench, tag, time range) or leave it empty to select all.' },
+  SUBMIT_REJECTED: { status: 400, title: 'The server refused the transient', hint: 'Fix what the server reports (its code and detail follow) and submit the file again.' },
+  SERVER_UNREACHABLE: { status: 503, title: 'The heatpath server did not accept the transient', hint: 'Check --server and the network, then run the same command again: repeated submissions are safe.' },
 } as const satisfies Record<string, { status: number; title: string; hint: string }>;
 
 export type ErrorCode = keyof typeof errorCatalogue;

@@ -1,0 +1,45 @@
+import { basename } from 'node:path';
+import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
+import { parseCommandLine } from './cli-arguments.js';
+import { readInputFile } from './read-input-file.js';
+import { uploadTransient } from './transient-upload-client.js';
+import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
+
+export const submitUsage = `heatpath submit FILE... --server URL --key TOKEN --sample ID [options]
+
+Upload measured transients to the heatpath service, one after the other,
+retrying while the server is busy or away. Prints one line per file:
+FILE<TAB>JOB_ID<TAB>STATE. Submitting a file twice is safe (same job).
+
+${uploadOptionsUsage}
+
+Exit codes: 0 all accepted, 2 a file or option must be fixed (takes
+precedence), 1 the server could not be reached.`;
+
+/** `heatpath submit`: for bench scripts. Errors are one line per file on stderr. */
+export async function runSubmitCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
+  const { values, positionals } = parseCommandLine('submit', argv, { ...uploadOptionSpecs, help: { type: 'boolean', short: 'h' } });
+  if (values.help) {
+    print(submitUsage);
+    return 0;
+  }
+  if (positionals.length === 0) throw new HeatpathError('CLI_USAGE', 'heatpath submit needs at least one FILE');
+  const target = uploadTargetFrom(values, 'submit');
+  const metadata = uploadMetadataFrom(values);
+  if (!metadata.has('sample_id')) throw new HeatpathError('CLI_USAGE', 'heatpath submit needs --sample ID');
+
+  let mustFix = false;
+  let unreachable = false;
+  for (const file of positionals) {
+    try {
+      const uploaded = await uploadTransient(target, await readInputFile(file), basename(file), metadata);
+      print(`${file}\t${uploaded.job_id}\t${uploaded.state}`);
+    } catch (error) {
+      if (!isHeatpathError(error)) throw error;
+      process.stderr.write(`heatpath submit: ${error.message} [${error.code}]\n`);
+      if (error.status < 500) mustFix = true;
+      else unreachable = true;
+    }
+  }
+  return mustFix ? 2 : unreachable ? 1 : 0;
+}

@@ -1,0 +1,76 @@
+import { createHash } from 'node:crypto';
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+
+/** Where and as whom to upload. */
+export interface UploadTarget {
+  /** Base URL of the service, e.g. http://heatpath.lab:8080 */
+  server: string;
+  /** API key token (role bench or admin). */
+  key: string;
+  /** Attempts for answers worth retrying (network errors, 429, 5xx). */
+  attempts: number;
+}
+
+export interface UploadedTransient {
+  upload_id: string;
+  job_id: string;
+  state: string;
+}
+
+const RETRYABLE_STATUS = new Set([408, 429, 500, 502, 503, 504]);
+const MAX_BACKOFF_MS = 10_000;
+
+/**
+ * POSTs one transient to /v1/transients with its metadata as query
+ * parameters. The Idempotency-Key is a hash of bytes and metadata, so a retry
+ * (or a second run of a bench script) is answered with the first upload.
+ * Throws SUBMIT_REJECTED when the server refuses the file (the user must fix
+ * it) and SERVER_UNREACHABLE when every attempt failed.
+ */
+export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, fileName: string, metadata: URLSearchParams): Promise<UploadedTransient> {
+  const query = new URLSearchParams(metadata);
+  query.set('file_name', fileName);
+  const url = new URL(`/v1/transients?${query}`, target.server);
+  const idempotencyKey = createHash('sha256').update(bytes).update('\n').update(query.toString()).digest('hex');
+  const contentType = looksLikeJson(bytes) ? 'application/json' : 'text/csv';
+  let lastProblem = '';
+  for (let attempt = 1; attempt <= target.attempts; attempt++) {
+    let retryAfterMs = backoffMs(attempt);
+    try {
+      const response = await fetch(url, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${target.key}`, 'content-type': contentType, 'idempotency-key': idempotencyKey },
+        body: bytes,
+        signal: AbortSignal.timeout(60_000),
+      });
+      const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
+      if (response.ok) return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state) };
+      lastProblem = describeProblem(response.status, answer);
+      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName });
+      retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
+    } catch (error) {
+      if (error instanceof HeatpathError) throw error;
+      lastProblem = (error as Error).cause ? String(((error as Error).cause as Error).message ?? (error as Error).cause) : (error as Error).message;
+    }
+    if (attempt < target.attempts) await new Promise((resolve) => setTimeout(resolve, Math.min(retryAfterMs, MAX_BACKOFF_MS)));
+  }
+  throw new HeatpathError('SERVER_UNREACHABLE', `${target.attempts} attempts, last: ${lastProblem}`, { file: fileName });
+}
+
+function backoffMs(attempt: number): number {
+  return Math.min(500 * 2 ** (attempt - 1), MAX_BACKOFF_MS);
+}
+
+function looksLikeJson(bytes: Uint8Array): boolean {
+  for (const byte of bytes) {
+    if (byte === 0x20 || byte === 0x09 || byte === 0x0a || byte === 0x0d || byte === 0xef || byte === 0xbb || byte === 0xbf) continue;
+    return byte === 0x7b; // '{'
+  }
+  return false;
+}
+
+function describeProblem(status: number, answer: Record<string, unknown>): string {
+  const code = typeof answer.code === 'string' ? answer.code : `HTTP ${status}`;
+  const detail = typeof answer.detail === 'string' ? answer.detail : typeof answer.title === 'string' ? answer.title : '';
+  return detail ? `${code}: ${detail}` : code;
+}

@@ -1,0 +1,68 @@
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { numberOption } from './cli-arguments.js';
+import type { UploadTarget } from './transient-upload-client.js';
+
+/**
+ * Options of the commands that upload to a server, and the upload query
+ * parameter each one becomes. Values go to the server as given: the service
+ * validates them (one place for the rules) and answers a bad one with 400.
+ */
+const METADATA_OPTIONS = {
+  sample: 'sample_id',
+  bench: 'bench',
+  channel: 'channel',
+  'cycle-count': 'cycle_count',
+  'power-w': 'power_W',
+  'current-a': 'current_A',
+  'voltage-v': 'voltage_V',
+  'calibration-id': 'calibration_id',
+  kind: 'kind',
+  method: 'method',
+  'points-per-decade': 'points_per_decade',
+  'early-start-s': 'early_time_start_s',
+  'early-end-s': 'early_time_end_s',
+  'compact-stages': 'compact_stages',
+} as const;
+
+export const uploadOptionSpecs = {
+  server: { type: 'string' },
+  key: { type: 'string' },
+  retries: { type: 'string' },
+  tag: { type: 'string', multiple: true },
+  ...Object.fromEntries(Object.keys(METADATA_OPTIONS).map((name) => [name, { type: 'string' }])),
+} as const;
+
+export const uploadOptionsUsage = `  --server URL            the heatpath service, e.g. http://heatpath.lab:8080
+  --key TOKEN             API key (role bench or admin)
+  --sample ID             LIMS sample id
+  --bench B --channel C --cycle-count N --tag T (repeatable)
+  --power-w P | --current-a I --voltage-v V
+  --calibration-id ID     a calibration stored on the server
+  --kind, --method, --points-per-decade, --early-start-s, --early-end-s,
+  --compact-stages        analysis parameters (as for heatpath analyze)
+  --retries N             attempts per file when the server is busy or away (default 5)`;
+
+/** Server, key and attempts from the options; CLI_USAGE when one is missing. */
+export function uploadTargetFrom(values: Record<string, unknown>, command: string): UploadTarget {
+  const server = values.server as string | undefined;
+  const key = values.key as string | undefined;
+  if (!server || !key) throw new HeatpathError('CLI_USAGE', `heatpath ${command} needs --server URL and --key TOKEN`);
+  try {
+    new URL(server);
+  } catch {
+    throw new HeatpathError('CLI_USAGE', `--server must be a URL such as http://heatpath.lab:8080, got "${server.slice(0, 60)}"`);
+  }
+  const attempts = numberOption('retries', values.retries as string | undefined, { positive: true, integer: true }) ?? 5;
+  return { server, key, attempts };
+}
+
+/** The upload query parameters the options give. */
+export function uploadMetadataFrom(values: Record<string, unknown>): URLSearchParams {
+  const query = new URLSearchParams();
+  for (const [option, parameter] of Object.entries(METADATA_OPTIONS)) {
+    const value = values[option];
+    if (typeof value === 'string') query.set(parameter, value);
+  }
+  for (const tag of (values.tag as string[] | undefined) ?? []) query.append('tags', tag);
+  return query;
+}

@@ -1,0 +1,22 @@
+import { layeredStackTruth } from '../../shared/models/layered-stack.js';
+import { SIC_POWER_MODULE_STACK } from '../../shared/models/example-stacks.js';
+import { syntheticTransient } from '../../shared/models/synthetic-transient.js';
+import { createRandom, gaussian } from './seeded-random.js';
+
+export const SYNTHETIC_POWER_W = 50;
+
+/**
+ * A SYNTHETIC cooling transient as CSV (time_s,temperature_C) from the layered
+ * model with seeded noise: a different seed gives different bytes (a different
+ * job). samplesPerDecade sets the size: 100 gives about 20 kB, 500 about 100 kB.
+ */
+export function syntheticTransientCsv(seed: number, samplesPerDecade = 100): Buffer {
+  const random = createRandom(seed);
+  const curve = syntheticTransient(layeredStackTruth(SIC_POWER_MODULE_STACK).foster, {
+    kind: 'cooling', power_W: SYNTHETIC_POWER_W, reference_temperature_C: 25, first_s: 1e-6, last_s: 10,
+    samples_per_decade: samplesPerDecade, noise_K: 0.02, artefact_s: 8e-6, artefact_K: 4, gaussian: () => gaussian(random),
+  });
+  const lines = ['time_s,temperature_C'];
+  for (let i = 0; i < curve.time_s.length; i++) lines.push(`${curve.time_s[i].toPrecision(7)},${curve.values[i].toPrecision(9)}`);
+  return Buffer.from(lines.join('\n') + '\n');
+}

@@ -1,0 +1,115 @@
+import { UnrecoverableError, type SandboxedJob } from 'bullmq';
+import { ALGORITHM_VERSION, HEATPATH_VERSION } from '../shared/analysis/algorithm-version.js';
+import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
+import { isHeatpathError } from '../shared/errors/heatpath-error.js';
+import { TransientStore } from '../services/store/transient-store.js';
+import type { UploadRecord } from '../services/store/store-records.js';
+import type { AnalysisJobData } from './analysis-queue.js';
+import { readProcessorSettings } from './processor-settings.js';
+import { WebhookNotifier } from './webhook-notifier.js';
+
+/**
+ * The sandboxed processor (a child process per worker slot, loaded from the
+ * compiled .js): CPU-bound analysis here cannot stall the parent's lock
+ * renewal. At-least-once delivery means any step may run twice, so every
+ * write is idempotent: the result is written once per job id, and a job whose
+ * result exists only re-sends its notification (deduplicated by id).
+ */
+
+const settings = readProcessorSettings();
+const store = new TransientStore(settings.dataDir);
+const notifier = new WebhookNotifier(store, {
+  redisUrl: settings.redisUrl,
+  prefix: settings.prefix,
+  attempts: settings.webhookAttempts,
+  backoffDelayMs: settings.webhookBackoffDelayMs,
+});
+
+export interface AnalysisJobOutcome {
+  job_id: string;
+  channels: number;
+  /** False when another attempt had already stored the result. */
+  wrote_result: boolean;
+}
+
+export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobData>): Promise<AnalysisJobOutcome> {
+  const jobId = job.id!;
+  const existing = await store.getResult(jobId);
+  if (existing) {
+    await notifyCompleted(jobId, existing.upload_id, existing.sample_id, existing.batch_id);
+    return { job_id: jobId, channels: existing.results.length, wrote_result: false };
+  }
+  const upload = await store.getUpload(job.data.upload_id);
+  try {
+    return await analyse(job, jobId, upload);
+  } catch (error) {
+    const unrecoverable = isHeatpathError(error) || error instanceof UnrecoverableError;
+    const lastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
+    if (unrecoverable || lastAttempt) await recordFailure(job, jobId, upload, error);
+    if (isHeatpathError(error)) throw new UnrecoverableError(`${error.code}: ${error.message}`);
+    throw error;
+  }
+}
+
+async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload: UploadRecord | null): Promise<AnalysisJobOutcome> {
+  const data = job.data;
+  if (!upload) throw new UnrecoverableError(`upload ${data.upload_id} is not in the store`);
+  const bytes = await store.getBlob(data.input_sha256);
+  if (!bytes) throw new UnrecoverableError(`raw transient ${data.input_sha256} of upload ${data.upload_id} is not in the store`);
+  const calibration = data.calibration_id ? await store.getCalibration(data.calibration_id) : null;
+  if (data.calibration_id && !calibration) throw new UnrecoverableError(`calibration ${data.calibration_id} is not in the store`);
+  await job.updateProgress(10);
+
+  const started = performance.now();
+  const results = analyzeTransientFile(
+    {
+      bytes,
+      fileName: upload.file_name,
+      format: upload.format,
+      power: data.power ?? undefined,
+      calibration: calibration?.calibration,
+      parameters: data.parameters,
+    },
+    new Date().toISOString(),
+  );
+  await job.updateProgress(90);
+
+  const wrote = await store.putResult({
+    job_id: jobId,
+    upload_id: upload.upload_id,
+    input_sha256: data.input_sha256,
+    sample_id: upload.sample_id,
+    algorithm: ALGORITHM_VERSION,
+    heatpath_version: HEATPATH_VERSION,
+    parameters: data.parameters,
+    power: data.power,
+    calibration_id: data.calibration_id,
+    batch_id: data.batch_id,
+    finished_at: new Date().toISOString(),
+    duration_ms: Math.round(performance.now() - started),
+    results,
+  });
+  await notifyCompleted(jobId, upload.upload_id, upload.sample_id, data.batch_id);
+  await job.updateProgress(100);
+  return { job_id: jobId, channels: results.length, wrote_result: wrote };
+}
+
+async function notifyCompleted(jobId: string, uploadId: string, sampleId: string, batchId: string | null): Promise<void> {
+  await notifier.notify({
+    event: 'job.completed', job_id: jobId, upload_id: uploadId, sample_id: sampleId, batch_id: batchId, error: null,
+    occurred_at: new Date().toISOString(),
+  });
+}
+
+async function recordFailure(job: SandboxedJob<AnalysisJobData>, jobId: string, upload: UploadRecord | null, error: unknown): Promise<void> {
+  const code = isHeatpathError(error) ? error.code : null;
+  const message = error instanceof Error ? error.message : String(error);
+  await store.putFailure({
+    job_id: jobId, upload_id: job.data.upload_id, batch_id: job.data.batch_id, failed_at: new Date().toISOString(),
+    code, message, attempts: job.attemptsMade + 1,
+  });
+  await notifier.notify({
+    event: 'job.failed', job_id: jobId, upload_id: job.data.upload_id, sample_id: upload?.sample_id ?? '', batch_id: job.data.batch_id,
+    error: { code, message }, occurred_at: new Date().toISOString(),
+  });
+}

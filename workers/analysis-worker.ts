@@ -1,0 +1,103 @@
+import { existsSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { Worker, type Job } from 'bullmq';
+import { TransientStore } from '../services/store/transient-store.js';
+import type { AnalysisJobOutcome } from './analysis-processor.js';
+import { DEFAULT_ANALYSIS_QUEUE_NAME, type AnalysisJobData } from './analysis-queue.js';
+import { processorEnvironment } from './processor-settings.js';
+import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
+
+export interface AnalysisWorkerOptions {
+  /** The store's data directory (shared with the API). Required. */
+  dataDir: string;
+  /** Default `redis://127.0.0.1:6379`. */
+  redisUrl?: string;
+  /** Default `{heatpath}`. */
+  prefix?: string;
+  /** Default `analysis`. */
+  queueName?: string;
+  /** Jobs at once, each in its own child process. Default 1 (run one worker per core). */
+  concurrency?: number;
+  /** How long a job's lock lasts without renewal (a dead worker's job is taken over after it). Default 30000 ms. */
+  lockDurationMs?: number;
+  /** How often stalled jobs are looked for. Default 30000 ms. */
+  stalledIntervalMs?: number;
+  /** Webhook delivery attempts and first backoff (see WebhookNotifier). Defaults 8 and 5000 ms. */
+  webhookAttempts?: number;
+  webhookBackoffDelayMs?: number;
+}
+
+/**
+ * A BullMQ Worker running analysis jobs in a sandboxed child process, so the
+ * parent's event loop stays free to renew locks. Needs the compiled processor
+ * (`npm run build`).
+ */
+export class AnalysisWorker {
+  readonly worker: Worker<AnalysisJobData, AnalysisJobOutcome>;
+
+  constructor(options: AnalysisWorkerOptions) {
+    const redisUrl = options.redisUrl ?? DEFAULT_REDIS_URL;
+    const prefix = options.prefix ?? DEFAULT_QUEUE_PREFIX;
+    this.worker = new Worker<AnalysisJobData, AnalysisJobOutcome>(options.queueName ?? DEFAULT_ANALYSIS_QUEUE_NAME, compiledProcessorPath(), {
+      connection: consumerConnection(redisUrl),
+      prefix,
+      concurrency: options.concurrency ?? 1,
+      lockDuration: options.lockDurationMs ?? 30_000,
+      stalledInterval: options.stalledIntervalMs ?? 30_000,
+      workerForkOptions: {
+        env: processorEnvironment({
+          dataDir: options.dataDir,
+          redisUrl,
+          prefix,
+          webhookAttempts: options.webhookAttempts,
+          webhookBackoffDelayMs: options.webhookBackoffDelayMs,
+        }),
+      },
+    });
+    const store = new TransientStore(options.dataDir);
+    this.worker.on('failed', (job, error) => void this.recordFinalFailure(store, job, error));
+    // Redis outages are retried by ioredis; without a listener Node would treat the event as fatal.
+    this.worker.on('error', () => undefined);
+  }
+
+  /**
+   * The processor records the failures it sees; this catches those it cannot
+   * (a job failed for stalling too often), so recovery does not re-queue them.
+   */
+  private async recordFinalFailure(store: TransientStore, job: Job<AnalysisJobData> | undefined, error: Error): Promise<void> {
+    if (!job?.id) return;
+    const final = error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
+    if (!final) return;
+    await store
+      .putFailure({
+        job_id: job.id, upload_id: job.data.upload_id, batch_id: job.data.batch_id, failed_at: new Date().toISOString(),
+        code: null, message: error.message, attempts: job.attemptsMade,
+      })
+      .catch(() => undefined);
+  }
+
+  /**
+   * Stops taking jobs and waits for the running ones up to `timeoutMs`; then
+   * forces the close (the unfinished jobs' locks expire and another worker
+   * takes them over). worker.close() alone never times out.
+   */
+  async close(timeoutMs = 30_000): Promise<'drained' | 'forced'> {
+    let timer: NodeJS.Timeout | undefined;
+    const timedOut = new Promise<'forced'>((resolve) => (timer = setTimeout(() => resolve('forced'), timeoutMs)));
+    const outcome = await Promise.race([this.worker.close().then(() => 'drained' as const), timedOut]);
+    clearTimeout(timer);
+    if (outcome === 'forced') await this.worker.close(true);
+    return outcome;
+  }
+}
+
+/** The compiled processor beside this file, or in dist/ when this file runs from source (tests). */
+function compiledProcessorPath(): string {
+  const here = fileURLToPath(import.meta.url);
+  const path = here.endsWith('.ts')
+    ? join(dirname(here), '..', 'dist', 'workers', 'analysis-processor.js')
+    : join(dirname(here), 'analysis-processor.js');
+  if (!existsSync(path)) throw new Error(`the compiled analysis processor ${path} is missing: run \`npm run build\` first`);
+  return path;
+}

@@ -1,0 +1,94 @@
+import { availableParallelism } from 'node:os';
+import { pathToFileURL } from 'node:url';
+import { pino, type Logger } from 'pino';
+import type { Registry } from 'prom-client';
+import { TransientStore } from '../services/store/transient-store.js';
+import { loadServiceConfig, type ServiceConfig } from '../services/config/service-config.js';
+import { AnalysisQueue } from './analysis-queue.js';
+import { AnalysisWorker } from './analysis-worker.js';
+import { UploadRecovery } from './recover-uploads.js';
+import { BatchReprocessor } from './reprocess-batch.js';
+import { WebhookDeliveryWorker } from './webhook-delivery.js';
+import { WebhookRegistry } from './webhook-registry.js';
+import { observeAnalysisWorker } from './worker-metrics.js';
+
+export interface StartWorkersOptions {
+  config: ServiceConfig;
+  logger: Logger;
+  /** Registers job metrics here when given (the API's registry when both run in one process). */
+  metricsRegistry?: Registry;
+}
+
+export interface RunningWorkers {
+  analysis: AnalysisWorker;
+  /** Stops taking jobs, lets running ones finish within the configured shutdown timeout, closes connections. */
+  close(): Promise<void>;
+}
+
+/**
+ * Starts this machine's share of the work: analysis in one child process per
+ * core (or HEATPATH_WORKER_PROCESSES), webhook deliveries, and the recovery
+ * sweep that re-queues stored uploads Redis does not know about.
+ */
+export async function startWorkers({ config, logger, metricsRegistry }: StartWorkersOptions): Promise<RunningWorkers> {
+  const { queue: settings, redisUrl, dataDir } = config;
+  const store = new TransientStore(dataDir);
+  const processes = settings.workerProcesses ?? availableParallelism();
+  const analysis = new AnalysisWorker({
+    dataDir,
+    redisUrl,
+    prefix: settings.prefix,
+    concurrency: processes,
+    lockDurationMs: settings.lockDurationMs,
+    stalledIntervalMs: settings.stalledIntervalMs,
+  });
+  analysis.worker.on('failed', (job, error) => logger.warn({ job_id: job?.id, attempts: job?.attemptsMade, err: error.message }, 'analysis attempt failed'));
+  if (metricsRegistry) observeAnalysisWorker(analysis, metricsRegistry);
+
+  const webhooks = new WebhookDeliveryWorker(store, new WebhookRegistry(store, settings.webhookAllowlist), { redisUrl, prefix: settings.prefix });
+  const queue = new AnalysisQueue({ redisUrl, prefix: settings.prefix });
+  const recovery = new UploadRecovery(store, queue, new BatchReprocessor(store, queue), { intervalMs: settings.recoveryIntervalMs, logger });
+  recovery.start();
+  logger.info({ processes, prefix: settings.prefix, data_dir: dataDir }, 'analysis workers started');
+
+  return {
+    analysis,
+    async close() {
+      await recovery.stop();
+      const outcome = await analysis.close(settings.shutdownTimeoutMs);
+      if (outcome === 'forced') logger.warn('shutdown timeout reached: unfinished jobs will be taken over by another worker');
+      await Promise.all([webhooks.close(), queue.close()]);
+      logger.info('analysis workers stopped');
+    },
+  };
+}
+
+/** `npm run start:worker`: workers only, until SIGTERM or SIGINT. */
+async function runWorkerProcess(): Promise<void> {
+  let config: ServiceConfig;
+  try {
+    config = loadServiceConfig();
+  } catch (error) {
+    process.stderr.write(`${(error as Error).message}\n`);
+    process.exit(2);
+  }
+  const logger = pino({ level: config.logLevel, name: 'heatpath-worker' });
+  const workers = await startWorkers({ config, logger });
+  let stopping = false;
+  const stop = (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    logger.info({ signal }, 'stopping workers');
+    workers.close().then(
+      () => process.exit(0),
+      (error: unknown) => {
+        logger.error({ err: error }, 'workers did not stop cleanly');
+        process.exit(1);
+      },
+    );
+  };
+  process.on('SIGTERM', () => stop('SIGTERM'));
+  process.on('SIGINT', () => stop('SIGINT'));
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) await runWorkerProcess();

@@ -1,0 +1,153 @@
+import { randomBytes } from 'node:crypto';
+import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
+import { jobIdFor } from '../services/jobs/job-id.js';
+import type { TransientStore } from '../services/store/transient-store.js';
+import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
+import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
+
+export interface BatchRequest {
+  selection: UploadFilter;
+  /** Merged over each upload's own parameters; null or omitted keeps them (reprocess with the current algorithm). */
+  parameters?: Partial<AnalysisParameters> | null;
+  /** Replaces each upload's calibration; null or omitted keeps it. */
+  calibration_id?: string | null;
+  created_by: string;
+}
+
+export interface BatchProgress {
+  batch_id: string;
+  status: BatchRecord['status'];
+  created_at: string;
+  algorithm: string;
+  total: number;
+  done: number;
+  failed: number;
+  pending: number;
+}
+
+/** Jobs added to Redis per round trip. */
+const ENQUEUE_CHUNK = 500;
+/** Store look-ups in flight when counting progress. */
+const COUNT_CHUNK = 256;
+
+/**
+ * Reprocessing batches: a selection of stored uploads analysed again with new
+ * parameters, a new calibration or the current algorithm version, at a lower
+ * priority than bench uploads. The batch record is stored before any job is
+ * queued, so recovery can re-queue its missing jobs; progress is counted from
+ * the store (results and failures), which survives a Redis loss.
+ */
+export class BatchReprocessor {
+  constructor(private readonly store: TransientStore, private readonly queue: AnalysisQueue) {}
+
+  async create(request: BatchRequest): Promise<BatchProgress> {
+    const uploads = await this.store.listUploads(request.selection);
+    if (uploads.length === 0) throw new HeatpathError('BATCH_SELECTION_EMPTY', `no stored upload matches ${JSON.stringify(request.selection)}`);
+    const batch: BatchRecord = {
+      batch_id: `batch-${Date.now().toString(36)}-${randomBytes(4).toString('hex')}`,
+      created_at: new Date().toISOString(),
+      created_by: request.created_by,
+      selection: request.selection,
+      parameters: request.parameters ?? null,
+      calibration_id: request.calibration_id ?? null,
+      algorithm: ALGORITHM_VERSION,
+      status: 'running',
+      cancelled_at: null,
+      entries: [],
+    };
+    const jobs = uploads.map((upload) => reprocessedUpload(upload, batch));
+    batch.entries = uniqueEntries(jobs);
+    await this.store.putBatch(batch);
+    await this.enqueueMissing(batch, jobs);
+    return this.countProgress(batch);
+  }
+
+  async progress(batchId: string): Promise<BatchProgress | null> {
+    const batch = await this.store.getBatch(batchId);
+    return batch ? this.countProgress(batch) : null;
+  }
+
+  /** Stops a batch: its jobs that have not started are removed; running ones finish. */
+  async cancel(batchId: string): Promise<BatchProgress | null> {
+    const batch = await this.store.getBatch(batchId);
+    if (!batch) return null;
+    if (batch.status !== 'cancelled') {
+      batch.status = 'cancelled';
+      batch.cancelled_at = new Date().toISOString();
+      await this.store.putBatch(batch);
+    }
+    for (const entry of batch.entries) await this.queue.removeWaitingBatchJob(entry.job_id, batch.batch_id);
+    return this.countProgress(batch);
+  }
+
+  /** Re-queues the unfinished jobs of every running batch (after a Redis loss); returns how many were offered. */
+  async requeueRunning(): Promise<number> {
+    let offered = 0;
+    for (const batch of await this.store.listBatches()) {
+      if (batch.status !== 'running') continue;
+      const uploads = await Promise.all(batch.entries.map((entry) => this.store.getUpload(entry.upload_id)));
+      const jobs = uploads.filter((upload): upload is UploadRecord => upload !== null).map((upload) => reprocessedUpload(upload, batch));
+      offered += await this.enqueueMissing(batch, jobs);
+    }
+    return offered;
+  }
+
+  /** Queues the jobs without a stored outcome; Redis ignores ids it already holds. */
+  private async enqueueMissing(batch: BatchRecord, jobs: UploadRecord[]): Promise<number> {
+    const finished = await this.finishedJobIds(jobs.map((job) => job.job_id));
+    const missing = uniqueByJobId(jobs.filter((job) => !finished.has(job.job_id)));
+    for (let start = 0; start < missing.length; start += ENQUEUE_CHUNK) {
+      await this.queue.enqueueMany(missing.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.batch, batchId: batch.batch_id });
+    }
+    return missing.length;
+  }
+
+  private async countProgress(batch: BatchRecord): Promise<BatchProgress> {
+    let done = 0;
+    let failed = 0;
+    for (let start = 0; start < batch.entries.length; start += COUNT_CHUNK) {
+      const chunk = batch.entries.slice(start, start + COUNT_CHUNK);
+      const outcomes = await Promise.all(chunk.map((entry) => this.outcomeOf(entry.job_id)));
+      done += outcomes.filter((outcome) => outcome === 'done').length;
+      failed += outcomes.filter((outcome) => outcome === 'failed').length;
+    }
+    return {
+      batch_id: batch.batch_id, status: batch.status, created_at: batch.created_at, algorithm: batch.algorithm,
+      total: batch.entries.length, done, failed, pending: batch.entries.length - done - failed,
+    };
+  }
+
+  private async finishedJobIds(jobIds: string[]): Promise<Set<string>> {
+    const finished = new Set<string>();
+    for (let start = 0; start < jobIds.length; start += COUNT_CHUNK) {
+      const chunk = jobIds.slice(start, start + COUNT_CHUNK);
+      const outcomes = await Promise.all(chunk.map((jobId) => this.outcomeOf(jobId)));
+      chunk.forEach((jobId, index) => outcomes[index] !== 'pending' && finished.add(jobId));
+    }
+    return finished;
+  }
+
+  private async outcomeOf(jobId: string): Promise<'done' | 'failed' | 'pending'> {
+    if (await this.store.hasResult(jobId)) return 'done';
+    return (await this.store.hasFailure(jobId)) ? 'failed' : 'pending';
+  }
+}
+
+/** The upload as this batch analyses it: its parameters and calibration replaced, its job id recomputed. */
+function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
+  const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
+  const calibrationId = batch.calibration_id ?? upload.calibration_id;
+  const jobId = jobIdFor({ input_sha256: upload.input_sha256, parameters, power: upload.power, calibration_sha256: calibrationId, algorithm: batch.algorithm });
+  return { ...upload, parameters, calibration_id: calibrationId, job_id: jobId };
+}
+
+function uniqueByJobId(jobs: UploadRecord[]): UploadRecord[] {
+  return [...new Map(jobs.map((job) => [job.job_id, job])).values()];
+}
+
+/** Uploads of identical content are one job: count it once. */
+function uniqueEntries(jobs: UploadRecord[]): BatchEntry[] {
+  return uniqueByJobId(jobs).map((job) => ({ upload_id: job.upload_id, job_id: job.job_id }));
+}

@@ -1,0 +1,83 @@
+import { Queue } from 'bullmq';
+import type { TransientStore } from '../services/store/transient-store.js';
+import type { WebhookEvent } from '../services/store/store-records.js';
+import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
+
+export const WEBHOOK_QUEUE_NAME = 'webhooks';
+
+/** The JSON body POSTed to a webhook. */
+export interface WebhookPayload {
+  event: WebhookEvent;
+  job_id: string;
+  upload_id: string;
+  sample_id: string;
+  batch_id: string | null;
+  /** Present for job.failed. */
+  error: { code: string | null; message: string } | null;
+  occurred_at: string;
+}
+
+/** One delivery: the body is fixed when queued, so every retry sends the same bytes. */
+export interface WebhookDeliveryData {
+  webhook_id: string;
+  event: WebhookEvent;
+  body: string;
+}
+
+export interface WebhookNotifierOptions {
+  /** Default `redis://127.0.0.1:6379`. */
+  redisUrl?: string;
+  /** Default `{heatpath}`. */
+  prefix?: string;
+  /** Delivery attempts before giving up. Default 8 (about 20 minutes of retries). */
+  attempts?: number;
+  /** First retry delay in ms, doubled each time. Default 5000. */
+  backoffDelayMs?: number;
+}
+
+/**
+ * Queues one delivery per registered webhook that subscribed to the event.
+ * The delivery job id combines webhook, job and event, so notifying twice (a
+ * retried analysis job) delivers once.
+ */
+export class WebhookNotifier {
+  private readonly queue: Queue<WebhookDeliveryData>;
+  private readonly attempts: number;
+  private readonly backoffDelayMs: number;
+
+  constructor(private readonly store: TransientStore, options: WebhookNotifierOptions = {}) {
+    // Called from workers: wait out a Redis restart rather than fail the analysis job.
+    this.queue = new Queue<WebhookDeliveryData>(WEBHOOK_QUEUE_NAME, {
+      connection: consumerConnection(options.redisUrl ?? DEFAULT_REDIS_URL),
+      prefix: options.prefix ?? DEFAULT_QUEUE_PREFIX,
+    });
+    this.queue.on('error', () => undefined);
+    this.attempts = options.attempts ?? 8;
+    this.backoffDelayMs = options.backoffDelayMs ?? 5_000;
+  }
+
+  /** Returns the number of deliveries queued (0 when nobody subscribed). */
+  async notify(payload: WebhookPayload): Promise<number> {
+    const subscribed = (await this.store.listWebhooks()).filter((webhook) => webhook.events.includes(payload.event));
+    if (subscribed.length === 0) return 0;
+    const body = JSON.stringify(payload);
+    await this.queue.addBulk(
+      subscribed.map((webhook) => ({
+        name: payload.event,
+        data: { webhook_id: webhook.webhook_id, event: payload.event, body },
+        opts: {
+          jobId: `${webhook.webhook_id}-${payload.job_id}-${payload.event}`,
+          attempts: this.attempts,
+          backoff: { type: 'exponential', delay: this.backoffDelayMs },
+          removeOnComplete: { age: 24 * 3600 },
+          removeOnFail: { age: 7 * 24 * 3600 },
+        },
+      })),
+    );
+    return subscribed.length;
+  }
+
+  async close(): Promise<void> {
+    await this.queue.close();
+  }
+}

@@ -1,0 +1,57 @@
+import { randomBytes } from 'node:crypto';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import type { TransientStore } from '../services/store/transient-store.js';
+import type { WebhookEvent, WebhookRecord } from '../services/store/store-records.js';
+
+export const WEBHOOK_EVENTS: readonly WebhookEvent[] = ['job.completed', 'job.failed'];
+
+/**
+ * Registered callback URLs. Only URLs whose origin (scheme://host:port) is on
+ * the allowlist may be registered or delivered to, so an admin key cannot turn
+ * the service into a probe of the lab network.
+ */
+export class WebhookRegistry {
+  private readonly allowedOrigins: Set<string>;
+
+  /** `allowlist`: origins or URLs; only their origins count. */
+  constructor(private readonly store: TransientStore, allowlist: readonly string[]) {
+    this.allowedOrigins = new Set(allowlist.map(originOf).filter((origin): origin is string => origin !== null));
+  }
+
+  isAllowed(url: string): boolean {
+    const origin = originOf(url);
+    return origin !== null && this.allowedOrigins.has(origin);
+  }
+
+  /** Registers a URL; the returned record carries the secret the receiver verifies signatures with. */
+  async register(url: string, events: readonly WebhookEvent[], createdBy: string): Promise<WebhookRecord> {
+    if (!this.isAllowed(url)) throw new HeatpathError('WEBHOOK_URL_NOT_ALLOWED', `${url} is not allowed`);
+    const record: WebhookRecord = {
+      webhook_id: `wh-${randomBytes(8).toString('hex')}`,
+      url,
+      secret: randomBytes(32).toString('hex'),
+      events: events.length > 0 ? [...new Set(events)] : [...WEBHOOK_EVENTS],
+      created_at: new Date().toISOString(),
+      created_by: createdBy,
+    };
+    await this.store.putWebhook(record);
+    return record;
+  }
+
+  list(): Promise<WebhookRecord[]> {
+    return this.store.listWebhooks();
+  }
+
+  remove(webhookId: string): Promise<boolean> {
+    return this.store.deleteWebhook(webhookId);
+  }
+}
+
+function originOf(url: string): string | null {
+  try {
+    const parsed = new URL(url.trim());
+    return parsed.protocol === 'http:' || parsed.protocol === 'https:' ? parsed.origin : null;
+  } catch {
+    return null;
+  }
+}

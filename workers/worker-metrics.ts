@@ -1,0 +1,31 @@
+import { Counter, Histogram, type Registry } from 'prom-client';
+import type { AnalysisWorker } from './analysis-worker.js';
+
+/**
+ * Prometheus metrics of the analysis jobs this process runs: duration of
+ * completed jobs and finished attempts by outcome. Counted from the worker's
+ * own events (QueueEvents are best-effort). Register them on the registry the
+ * process exposes (the API's /metrics when API and workers share a process).
+ */
+export function observeAnalysisWorker(worker: AnalysisWorker, registry: Registry): void {
+  const duration = new Histogram({
+    name: 'heatpath_job_duration_seconds',
+    help: 'Time from a worker taking an analysis job to its completion.',
+    buckets: [0.05, 0.1, 0.25, 0.5, 1, 2.5, 5, 10, 30, 60],
+    registers: [registry],
+  });
+  const attempts = new Counter({
+    name: 'heatpath_job_attempts_total',
+    help: 'Finished analysis attempts by outcome: completed, retried (failed, will run again) or failed (for good).',
+    labelNames: ['outcome'] as const,
+    registers: [registry],
+  });
+  worker.worker.on('completed', (job) => {
+    attempts.inc({ outcome: 'completed' });
+    if (job.processedOn && job.finishedOn) duration.observe((job.finishedOn - job.processedOn) / 1000);
+  });
+  worker.worker.on('failed', (job, error) => {
+    const final = !job || error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
+    attempts.inc({ outcome: final ? 'failed' : 'retried' });
+  });
+}
