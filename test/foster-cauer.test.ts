@@ -5,6 +5,7 @@ import { cauerToFoster } from '../shared/numerics/cauer-to-foster.js';
 import { cumulativeStructureFunction } from '../shared/numerics/structure-function.js';
 import type { CauerLadder, FosterNetwork } from '../shared/numerics/rc-network.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { slabFosterSeries } from './support/slab-foster-series.js';
 
 const sum = (values: Float64Array): number => values.reduce((a, b) => a + b, 0);
 
@@ -134,17 +135,8 @@ describe('Foster to Cauer and back', () => {
     const cv = 3.45e6;
     const area = 1e-4;
     const L = 2e-3;
-    const rth = L / (k * area);
-    const alpha = k / cv;
-    const modes = 400;
-    const r_K_per_W = new Float64Array(modes);
-    const tau_s = new Float64Array(modes);
-    for (let n = 1; n <= modes; n++) {
-      // Carslaw & Jaeger (1959), finite slab, flux at one face, isothermal other face.
-      const odd2pi2 = (2 * n - 1) ** 2 * Math.PI ** 2;
-      r_K_per_W[n - 1] = (8 * rth) / odd2pi2;
-      tau_s[n - 1] = (4 * L * L) / (odd2pi2 * alpha);
-    }
+    // Carslaw & Jaeger (1959), finite slab, flux at one face, isothermal other face: 400 modes.
+    const { r_K_per_W, tau_s } = slabFosterSeries({ thickness_m: L, area_m2: area, conductivity_W_per_mK: k, volumetricHeat_J_per_m3K: cv }, 400);
     const structure = cumulativeStructureFunction(fosterToCauer({ r_K_per_W, tau_s }));
     const expectedK = cv * k * area * area;
     const rTotal = sum(r_K_per_W);
