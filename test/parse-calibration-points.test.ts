@@ -1,16 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
-import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { catchHeatpathError } from './support/catch-heatpath-error.js';
 
-function errorOf(text: string): HeatpathError {
-  try {
-    parseCalibrationPoints(text, 'cal.csv');
-  } catch (error) {
-    if (error instanceof HeatpathError) return error;
-    throw error;
-  }
-  throw new Error('expected a HeatpathError');
-}
 
 describe('parseCalibrationPoints', () => {
   it('reads the two columns in either order, with the transient CSV dialect', () => {
@@ -29,7 +20,7 @@ describe('parseCalibrationPoints', () => {
     ['temperature_C,voltage_V\n25,0.6\n50,x', 'INPUT_NOT_NUMERIC', 3, 'voltage_V'],
     ['temperature_C,voltage_V\nnan,0.6', 'INPUT_NOT_FINITE', 2, 'temperature_C'],
   ])('%j -> %s', (text, code, line, column) => {
-    const error = errorOf(text);
+    const error = catchHeatpathError(() => parseCalibrationPoints(text, 'cal.csv'));
     expect(error.code).toBe(code);
     expect(error.location).toEqual({ file: 'cal.csv', line, column });
   });

@@ -4,6 +4,7 @@ import { parseTransient } from '../shared/input/parse-transient.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { MIN_TRANSIENT_DECADES, MIN_TRANSIENT_SAMPLES } from '../shared/input/transient-file.js';
 import { QUOTED_TEXT_MAX_CHARS } from '../shared/input/quote-input-text.js';
+import { catchHeatpathError } from './support/catch-heatpath-error.js';
 
 /** Log-spaced times from 1 us over `decades` decades, `perDecade` samples a decade. */
 function logTimes(decades: number, perDecade: number): number[] {
@@ -19,18 +20,9 @@ function coolingRows(times: number[]): string[] {
   return times.map((t) => `${t},${(0.6 + 0.1 * Math.exp(-t)).toFixed(6)}`);
 }
 
-function catchHeatpath(run: () => unknown): HeatpathError {
-  try {
-    run();
-  } catch (error) {
-    if (error instanceof HeatpathError) return error;
-    throw error;
-  }
-  throw new Error('expected a HeatpathError');
-}
 
 function expectErrorAt(text: string, fileName: string, code: string, line: number | undefined, column: string | undefined): void {
-  const error = catchHeatpath(() => parseTransient(text, fileName));
+  const error = catchHeatpathError(() => parseTransient(text, fileName));
   expect(error.code).toBe(code);
   expect(error.location).toEqual({ file: fileName, line, column });
 }
@@ -78,7 +70,7 @@ describe('parseTransient CSV', () => {
     const rows = coolingRows(times);
     rows[3] = `${times[3]},abc`;
     // line 1: comment, line 2: blank, line 3: header, rows from line 4
-    const error = catchHeatpath(() => parseTransient('# x: y\n\n' + csv('time_s,temperature_C', rows), 'e.csv'));
+    const error = catchHeatpathError(() => parseTransient('# x: y\n\n' + csv('time_s,temperature_C', rows), 'e.csv'));
     expect(error.code).toBe('INPUT_NOT_NUMERIC');
     expect(error.location).toEqual({ file: 'e.csv', line: 7, column: 'temperature_C' });
     expect(error.message).toContain('"abc"');
@@ -108,10 +100,10 @@ describe('parseTransient CSV', () => {
 
   it(`needs ${MIN_TRANSIENT_SAMPLES} samples and ${MIN_TRANSIENT_DECADES} decades`, () => {
     const short = logTimes(3, 10).slice(0, MIN_TRANSIENT_SAMPLES - 1);
-    expect(catchHeatpath(() => parseTransient(csv('time_s,voltage_V', coolingRows(short)), 'f.csv')).code).toBe('INPUT_TOO_FEW_POINTS');
+    expect(catchHeatpathError(() => parseTransient(csv('time_s,voltage_V', coolingRows(short)), 'f.csv')).code).toBe('INPUT_TOO_FEW_POINTS');
     // 30 samples but only 1.5 decades
     const narrow = Array.from({ length: 30 }, (_, i) => 1e-3 * 10 ** ((1.5 * i) / 29));
-    expect(catchHeatpath(() => parseTransient(csv('time_s,voltage_V', coolingRows(narrow)), 'f.csv')).code).toBe('INPUT_TOO_FEW_POINTS');
+    expect(catchHeatpathError(() => parseTransient(csv('time_s,voltage_V', coolingRows(narrow)), 'f.csv')).code).toBe('INPUT_TOO_FEW_POINTS');
     // exactly the thresholds pass; a first sample at t = 0 does not count as a decade
     const edge = [0, ...Array.from({ length: MIN_TRANSIENT_SAMPLES - 1 }, (_, i) => 1e-3 * 10 ** ((MIN_TRANSIENT_DECADES * i) / (MIN_TRANSIENT_SAMPLES - 2)))];
     expect(parseTransient(csv('time_s,voltage_V', coolingRows(edge)), 'f.csv').time_s.length).toBe(MIN_TRANSIENT_SAMPLES);
@@ -119,10 +111,10 @@ describe('parseTransient CSV', () => {
 
   it('never repeats a huge field in full', () => {
     const huge = 'x'.repeat(100_000);
-    const error = catchHeatpath(() => parseTransient(csv('time_s,voltage_V', [`1e-6,${huge}`]), 'g.csv'));
+    const error = catchHeatpathError(() => parseTransient(csv('time_s,voltage_V', [`1e-6,${huge}`]), 'g.csv'));
     expect(error.code).toBe('INPUT_NOT_NUMERIC');
     expect(error.message.length).toBeLessThan(400);
-    const hugeHeader = catchHeatpath(() => parseTransient(csv(`time_s,${huge}`, ['1,2']), 'g.csv'));
+    const hugeHeader = catchHeatpathError(() => parseTransient(csv(`time_s,${huge}`, ['1,2']), 'g.csv'));
     expect(hugeHeader.message.length).toBeLessThan(400);
     expect(String(hugeHeader.location.column).length).toBeLessThanOrEqual(QUOTED_TEXT_MAX_CHARS + 1);
   });
@@ -145,10 +137,10 @@ describe('parseTransient JSON', () => {
   });
 
   it('follows an explicit format over the content', () => {
-    expect(catchHeatpath(() => parseTransient(JSON.stringify({ time_s: times }), 'c.txt', 'csv')).code).toBe('INPUT_UNKNOWN_COLUMN');
-    expect(catchHeatpath(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'json')).code).toBe('INPUT_BAD_JSON');
-    expect(catchHeatpath(() => parseTransient('[1, 2]', 'c.json', 'json')).code).toBe('INPUT_BAD_JSON');
-    expect(catchHeatpath(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'xml' as 'csv')).code).toBe('INPUT_BAD_FORMAT');
+    expect(catchHeatpathError(() => parseTransient(JSON.stringify({ time_s: times }), 'c.txt', 'csv')).code).toBe('INPUT_UNKNOWN_COLUMN');
+    expect(catchHeatpathError(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'json')).code).toBe('INPUT_BAD_JSON');
+    expect(catchHeatpathError(() => parseTransient('[1, 2]', 'c.json', 'json')).code).toBe('INPUT_BAD_JSON');
+    expect(catchHeatpathError(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'xml' as 'csv')).code).toBe('INPUT_BAD_FORMAT');
   });
 
   const values = times.map(() => 1);

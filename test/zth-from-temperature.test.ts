@@ -3,7 +3,7 @@ import { heatingPower_W, zthFromTemperature, zthFromZthInput } from '../shared/n
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { steadyStateRth } from '../shared/numerics/steady-state.js';
 import { NOISE_FLOOR_RELATIVE } from '../shared/numerics/sqrt-time-extrapolation.js';
-import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
 import { SILICON_DIE_SLAB, logSpacedTimes, slabRth, slabZth } from './support/conduction-solutions.js';
 
@@ -25,15 +25,6 @@ function noiseSeries(noise_K: number, seed: number): Float64Array {
   return times.map(() => noise_K * gaussian(random));
 }
 
-function errorCode(run: () => unknown): string {
-  try {
-    run();
-  } catch (error) {
-    if (error instanceof HeatpathError) return error.code;
-    throw error;
-  }
-  return 'no error';
-}
 
 describe('zthFromTemperature', () => {
   it('recovers the slab Zth, Zth(0) = 0 included, from a cooling curve with an 8 us artefact', () => {
@@ -83,10 +74,10 @@ describe('zthFromTemperature', () => {
   it('rejects missing or invalid power, and a curve of the other kind', () => {
     const cooling = times.map((_, i) => ambient_C + power_W * (rth - truth[i]));
     const options = { kind: 'cooling' as const, noise_rms: 0 };
-    expect(errorCode(() => zthFromTemperature(times, cooling, undefined, options))).toBe('POWER_REQUIRED');
-    expect(errorCode(() => zthFromTemperature(times, cooling, { power_W: -5 }, options))).toBe('PARAM_INVALID');
-    expect(errorCode(() => zthFromTemperature(times, cooling, { current_A: Number.NaN, voltage_V: 2 }, options))).toBe('PARAM_INVALID');
-    expect(errorCode(() => zthFromTemperature(times, cooling, { power_W }, { ...options, kind: 'heating' }))).toBe('ANALYSIS_NOT_ANALYSABLE');
+    expect(catchHeatpathError(() => zthFromTemperature(times, cooling, undefined, options)).code).toBe('POWER_REQUIRED');
+    expect(catchHeatpathError(() => zthFromTemperature(times, cooling, { power_W: -5 }, options)).code).toBe('PARAM_INVALID');
+    expect(catchHeatpathError(() => zthFromTemperature(times, cooling, { current_A: Number.NaN, voltage_V: 2 }, options)).code).toBe('PARAM_INVALID');
+    expect(catchHeatpathError(() => zthFromTemperature(times, cooling, { power_W }, { ...options, kind: 'heating' })).code).toBe('ANALYSIS_NOT_ANALYSABLE');
   });
 });
 

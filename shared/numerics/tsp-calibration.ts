@@ -1,0 +1,206 @@
+import { Value } from 'typebox/value';
+import { HeatpathError } from '../errors/heatpath-error.js';
+import { quoteInputText } from '../input/quote-input-text.js';
+import { CalibrationSchema, type Calibration, type CalibrationModel } from '../schemas/calibration.js';
+import { fitPolynomial, solveLeastSquares } from './least-squares.js';
+
+/**
+ * Calibration of a temperature-sensitive parameter (TSP, JESD51-1): the
+ * junction temperature as a function of the sense voltage, fitted to an oven
+ * or chiller sweep. Polynomials (order 1-4) by linear least squares;
+ * T = c0 + c1 exp(c2 V) by a grid over the rate c2 with c0, c1 solved
+ * linearly at each rate (variable projection, Golub & Pereyra, SIAM J. Numer.
+ * Anal. 10, 1973), then Levenberg-Marquardt (Marquardt, J. SIAM 11, 1963) on
+ * all three. The K-factor of JESD51-1 is the inverse sensitivity, in K/mV.
+ */
+
+/** Measured voltages may lie outside the calibrated range by this fraction of its span. */
+export const CALIBRATION_RANGE_MARGIN = 0.1;
+/** dT/dV is checked for a constant sign at this many evenly spaced voltages. */
+export const MONOTONIC_CHECK_POINTS = 257;
+
+const PARAMETER_COUNT: Record<CalibrationModel, number> = { linear: 2, poly2: 3, poly3: 4, poly4: 5, exp: 3 };
+const POLYNOMIAL_DEGREE: Partial<Record<CalibrationModel, number>> = { linear: 1, poly2: 2, poly3: 3, poly4: 4 };
+/** Rates k of exp(k u), u the voltage scaled to [-1, 1], tried before the Levenberg-Marquardt refinement. */
+const EXP_RATE_GRID = Array.from({ length: 41 }, (_, i) => 0.01 * 10 ** (i / 12)).flatMap((k) => [k, -k]);
+const EXP_MAX_ITERATIONS = 200;
+
+export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Array, model: CalibrationModel): Calibration {
+  const parameters = PARAMETER_COUNT[model];
+  if (parameters === undefined) throw new HeatpathError('CALIBRATION_BAD_MODEL', `model ${quoteInputText(String(model))}`);
+  const count = temperature_C.length;
+  if (voltage_V.length !== count) throw new HeatpathError('PARAM_INVALID', `${count} temperatures but ${voltage_V.length} voltages`);
+  for (let i = 0; i < count; i++) {
+    if (!Number.isFinite(temperature_C[i]) || !Number.isFinite(voltage_V[i])) {
+      throw new HeatpathError('PARAM_INVALID', `calibration point ${i + 1} is not finite (${temperature_C[i]} degC, ${voltage_V[i]} V)`);
+    }
+  }
+  const distinctVoltages = new Set(voltage_V).size;
+  if (count < parameters + 1 || distinctVoltages < parameters) {
+    throw new HeatpathError('CALIBRATION_TOO_FEW_POINTS', `${model} has ${parameters} coefficients; ${count} points at ${distinctVoltages} distinct voltages`);
+  }
+  const degree = POLYNOMIAL_DEGREE[model];
+  const coefficients = degree === undefined ? fitExponential(voltage_V, temperature_C) : fitPolynomial(voltage_V, temperature_C, degree);
+  if (coefficients === undefined) throw new HeatpathError('CALIBRATION_TOO_FEW_POINTS', `the points do not determine the ${model} model`);
+
+  const voltage_range_V: [number, number] = [Math.min(...voltage_V), Math.max(...voltage_V)];
+  const temperature_range_C: [number, number] = [Math.min(...temperature_C), Math.max(...temperature_C)];
+  const fitted = evaluate(model, coefficients, voltage_V);
+  let squares = 0;
+  for (let i = 0; i < count; i++) squares += (fitted[i] - temperature_C[i]) ** 2;
+  const slope_K_per_V = slopeAt(model, coefficients, (voltage_range_V[0] + voltage_range_V[1]) / 2);
+  const sensitivity_mV_per_K = 1e3 / slope_K_per_V;
+  const calibration: Calibration = {
+    heatpath_calibration: 1,
+    model,
+    coefficients: Array.from(coefficients),
+    voltage_range_V,
+    temperature_range_C,
+    residual_rms_K: Math.sqrt(squares / count),
+    sensitivity_mV_per_K,
+    k_factor_K_per_mV: 1 / sensitivity_mV_per_K,
+    points: count,
+  };
+  assertMonotonic(calibration, voltage_range_V[0], voltage_range_V[1]);
+  return calibration;
+}
+
+/** Junction temperature of each voltage; voltages beyond the calibrated range plus the margin are refused. */
+export function voltageToTemperature(calibration: Calibration, voltage_V: Float64Array): Float64Array {
+  const [low, high] = calibration.voltage_range_V;
+  const margin = CALIBRATION_RANGE_MARGIN * (high - low);
+  let measuredLow = low;
+  let measuredHigh = high;
+  for (let i = 0; i < voltage_V.length; i++) {
+    const v = voltage_V[i];
+    if (!(v >= low - margin && v <= high + margin)) {
+      throw new HeatpathError(
+        'CALIBRATION_OUT_OF_RANGE',
+        `sample ${i + 1}: ${v} V is outside the calibrated ${low}..${high} V (with a margin of ${100 * CALIBRATION_RANGE_MARGIN} % of the span)`,
+      );
+    }
+    measuredLow = Math.min(measuredLow, v);
+    measuredHigh = Math.max(measuredHigh, v);
+  }
+  assertMonotonic(calibration, measuredLow, measuredHigh);
+  return evaluate(calibration.model, calibration.coefficients, voltage_V);
+}
+
+/** Check a calibration file's content against the schema and the model's coefficient count. */
+export function validateCalibration(json: unknown, fileName: string): Calibration {
+  if (!Value.Check(CalibrationSchema, json)) {
+    const [first] = Value.Errors(CalibrationSchema, json);
+    const field = first?.instancePath || '(top level)';
+    throw new HeatpathError('CALIBRATION_BAD_FILE', `${field} ${first?.message ?? 'does not match the calibration layout'}`, { file: fileName, column: field });
+  }
+  const calibration = json as Calibration;
+  const expected = PARAMETER_COUNT[calibration.model];
+  if (calibration.coefficients.length !== expected) {
+    throw new HeatpathError('CALIBRATION_BAD_FILE', `model ${calibration.model} needs ${expected} coefficients, the file has ${calibration.coefficients.length}`, {
+      file: fileName,
+      column: '/coefficients',
+    });
+  }
+  const [low, high] = calibration.voltage_range_V;
+  if (!(low < high)) throw new HeatpathError('CALIBRATION_BAD_FILE', `voltage_range_V [${low}, ${high}] is empty`, { file: fileName, column: '/voltage_range_V' });
+  return calibration;
+}
+
+/** The model's temperature at each voltage. */
+function evaluate(model: CalibrationModel, c: ArrayLike<number>, voltage_V: Float64Array): Float64Array {
+  if (model === 'exp') return voltage_V.map((v) => c[0] + c[1] * Math.exp(c[2] * v));
+  return voltage_V.map((v) => {
+    let sum = 0;
+    for (let k = c.length - 1; k >= 0; k--) sum = sum * v + c[k];
+    return sum;
+  });
+}
+
+/** dT/dV in K/V. */
+function slopeAt(model: CalibrationModel, c: ArrayLike<number>, v: number): number {
+  if (model === 'exp') return c[1] * c[2] * Math.exp(c[2] * v);
+  let sum = 0;
+  for (let k = c.length - 1; k >= 1; k--) sum = sum * v + k * c[k];
+  return sum;
+}
+
+function assertMonotonic(calibration: Calibration, low_V: number, high_V: number): void {
+  let sign = 0;
+  for (let i = 0; i < MONOTONIC_CHECK_POINTS; i++) {
+    const v = low_V + ((high_V - low_V) * i) / (MONOTONIC_CHECK_POINTS - 1);
+    const slope = Math.sign(slopeAt(calibration.model, calibration.coefficients, v));
+    if (slope === 0 || (sign !== 0 && slope !== sign)) {
+      throw new HeatpathError('CALIBRATION_NOT_MONOTONIC', `dT/dV of the ${calibration.model} calibration changes sign near ${v.toPrecision(4)} V (checked ${low_V}..${high_V} V)`);
+    }
+    sign = slope;
+  }
+}
+
+/** T = c0 + c1 exp(c2 V): fitted as a + b exp(k u) with u = (V - centre) / halfSpan, then mapped back. */
+function fitExponential(voltage_V: Float64Array, temperature_C: Float64Array): Float64Array | undefined {
+  const low = Math.min(...voltage_V);
+  const high = Math.max(...voltage_V);
+  const centre = (low + high) / 2;
+  const halfSpan = (high - low) / 2;
+  const u = voltage_V.map((v) => (v - centre) / halfSpan);
+
+  let best: { a: number; b: number; k: number; squares: number } | undefined;
+  for (const k of EXP_RATE_GRID) {
+    const candidate = linearPartAt(u, temperature_C, k);
+    if (candidate !== undefined && (best === undefined || candidate.squares < best.squares)) best = { ...candidate, k };
+  }
+  if (best === undefined) return undefined;
+
+  // Levenberg-Marquardt on (a, b, k), damping scaled by the Jacobian column norms.
+  let { a, b, k, squares } = best;
+  let damping = 1e-3;
+  const count = u.length;
+  for (let iteration = 0; iteration < EXP_MAX_ITERATIONS; iteration++) {
+    const design = new Float64Array((count + 3) * 3);
+    const rhs = new Float64Array(count + 3);
+    const columnSquares = [0, 0, 0];
+    for (let i = 0; i < count; i++) {
+      const e = Math.exp(k * u[i]);
+      const row = [1, e, b * u[i] * e];
+      row.forEach((value, j) => {
+        design[i * 3 + j] = value;
+        columnSquares[j] += value * value;
+      });
+      rhs[i] = temperature_C[i] - (a + b * e);
+    }
+    for (let j = 0; j < 3; j++) design[(count + j) * 3 + j] = Math.sqrt(damping * columnSquares[j]);
+    const step = solveLeastSquares(design, count + 3, 3, rhs);
+    if (step === undefined) break;
+    const trial = { a: a + step[0], b: b + step[1], k: k + step[2] };
+    const trialSquares = squaresOf(u, temperature_C, trial.a, trial.b, trial.k);
+    if (trialSquares <= squares) {
+      const converged = Math.abs(step[2]) <= 1e-15 * Math.max(1, Math.abs(k)) || squares - trialSquares <= 1e-30 * squares;
+      ({ a, b, k } = trial);
+      squares = trialSquares;
+      damping = Math.max(damping / 10, 1e-12);
+      if (converged) break;
+    } else {
+      damping *= 10;
+      if (damping > 1e12) break;
+    }
+  }
+  return Float64Array.from([a, b * Math.exp((-k * centre) / halfSpan), k / halfSpan]);
+}
+
+/** a, b minimising |a + b exp(k u) - T| at a fixed rate k. */
+function linearPartAt(u: Float64Array, temperature_C: Float64Array, k: number): { a: number; b: number; squares: number } | undefined {
+  const design = new Float64Array(u.length * 2);
+  for (let i = 0; i < u.length; i++) {
+    design[2 * i] = 1;
+    design[2 * i + 1] = Math.exp(k * u[i]);
+  }
+  const solution = solveLeastSquares(design, u.length, 2, temperature_C);
+  if (solution === undefined) return undefined;
+  return { a: solution[0], b: solution[1], squares: squaresOf(u, temperature_C, solution[0], solution[1], k) };
+}
+
+function squaresOf(u: Float64Array, temperature_C: Float64Array, a: number, b: number, k: number): number {
+  let sum = 0;
+  for (let i = 0; i < u.length; i++) sum += (temperature_C[i] - a - b * Math.exp(k * u[i])) ** 2;
+  return sum;
+}

@@ -1,0 +1,145 @@
+import { describe, expect, it } from 'vitest';
+import { lusolve, multiply, transpose } from 'mathjs';
+import { CALIBRATION_RANGE_MARGIN, fitCalibration, validateCalibration, voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
+import { fitPolynomial, solveLeastSquares } from '../shared/numerics/least-squares.js';
+import { catchHeatpathError } from './support/catch-heatpath-error.js';
+import { CalibrationSchema, type Calibration } from '../shared/schemas/calibration.js';
+import { Value } from 'typebox/value';
+import { createRandom, gaussian } from './support/seeded-random.js';
+
+
+const temperatures_C = Float64Array.from({ length: 11 }, (_, i) => 20 + 15 * i); // 20..170 degC oven sweep
+
+// A silicon diode at low sense current: V = 0.65 V - 2 mV/K (T - 25 degC) (common practice).
+const diodeVoltage_V = temperatures_C.map((t) => 0.65 - 2e-3 * (t - 25));
+
+describe('fitCalibration', () => {
+  it('recovers the -2 mV/K diode line, its sensitivity and its K-factor', () => {
+    const cal = fitCalibration(temperatures_C, diodeVoltage_V, 'linear');
+    // T = 25 + (0.65 - V) / 2e-3 = 350 - 500 V
+    expect(cal.coefficients[0]).toBeCloseTo(350, 9);
+    expect(cal.coefficients[1]).toBeCloseTo(-500, 9);
+    expect(cal.sensitivity_mV_per_K).toBeCloseTo(-2, 9);
+    expect(cal.k_factor_K_per_mV).toBeCloseTo(-0.5, 9); // JESD51-1: K = dT/dV
+    expect(cal.residual_rms_K).toBeLessThan(1e-9);
+    expect(cal.voltage_range_V).toEqual([Math.min(...diodeVoltage_V), Math.max(...diodeVoltage_V)]);
+    expect(cal.temperature_range_C).toEqual([20, 170]);
+    expect(cal.points).toBe(11);
+    expect(Value.Check(CalibrationSchema, cal)).toBe(true);
+  });
+
+  it('recovers an exact quadratic in plain powers of V', () => {
+    const c = [420, -650, 120];
+    const voltages_V = Float64Array.from({ length: 9 }, (_, i) => 0.4 + 0.04 * i);
+    const temps = voltages_V.map((v) => c[0] + c[1] * v + c[2] * v * v);
+    const cal = fitCalibration(temps, voltages_V, 'poly2');
+    cal.coefficients.forEach((value, k) => expect(value).toBeCloseTo(c[k], 9));
+    // mid-range sensitivity: 1 / (dT/dV) at V = 0.56, in mV/K
+    expect(cal.sensitivity_mV_per_K).toBeCloseTo(1e3 / (c[1] + 2 * c[2] * 0.56), 9);
+  });
+
+  it('matches an independent normal-equation solution (mathjs lusolve) on noisy cubic and quartic sweeps', () => {
+    const random = createRandom(3);
+    const noisy_C = temperatures_C.map((t) => t + 0.05 * gaussian(random));
+    const voltages = temperatures_C.map((t) => 0.7 - 2.1e-3 * (t - 25) - 2e-6 * (t - 25) ** 2);
+    for (const [model, degree] of [['poly3', 3], ['poly4', 4]] as const) {
+      const cal = fitCalibration(noisy_C, voltages, model);
+      const vandermonde = Array.from(voltages, (v) => Array.from({ length: degree + 1 }, (_, k) => v ** k));
+      const normal = multiply(transpose(vandermonde), vandermonde) as number[][];
+      const right = multiply(transpose(vandermonde), Array.from(noisy_C)) as number[];
+      const reference = (lusolve(normal, right) as number[][]).map((row) => row[0]);
+      // The normal equations square the condition number: compare fitted temperatures, not raw coefficients.
+      for (const v of voltages) {
+        const ours = cal.coefficients.reduce((sum, ck, k) => sum + ck * v ** k, 0);
+        const theirs = reference.reduce((sum, ck, k) => sum + ck * v ** k, 0);
+        expect(ours).toBeCloseTo(theirs, 5);
+      }
+    }
+  });
+
+  it('recovers an exponential T = c0 + c1 exp(c2 V)', () => {
+    const c = [-40, 900, -3.2];
+    const voltages_V = Float64Array.from({ length: 12 }, (_, i) => 0.3 + 0.05 * i);
+    const temps = voltages_V.map((v) => c[0] + c[1] * Math.exp(c[2] * v));
+    const cal = fitCalibration(temps, voltages_V, 'exp');
+    cal.coefficients.forEach((value, k) => expect(value / c[k]).toBeCloseTo(1, 9));
+    expect(cal.residual_rms_K).toBeLessThan(1e-9);
+    const mid = 0.575;
+    expect(cal.sensitivity_mV_per_K).toBeCloseTo(1e3 / (c[1] * c[2] * Math.exp(c[2] * mid)), 6);
+  });
+
+  it.each([
+    ['unknown model', () => fitCalibration(temperatures_C, diodeVoltage_V, 'cubic' as 'poly3'), 'CALIBRATION_BAD_MODEL'],
+    ['too few points for poly4', () => fitCalibration(temperatures_C.slice(0, 5), diodeVoltage_V.slice(0, 5), 'poly4'), 'CALIBRATION_TOO_FEW_POINTS'],
+    ['repeated voltages only', () => fitCalibration(temperatures_C.slice(0, 4), Float64Array.from([0.6, 0.6, 0.5, 0.5]), 'poly2'), 'CALIBRATION_TOO_FEW_POINTS'],
+    ['length mismatch', () => fitCalibration(temperatures_C, diodeVoltage_V.slice(1), 'linear'), 'PARAM_INVALID'],
+    ['non-finite point', () => fitCalibration(temperatures_C.map((t, i) => (i === 2 ? Number.NaN : t)), diodeVoltage_V, 'linear'), 'PARAM_INVALID'],
+    // A swapped row makes the quadratic turn inside the range.
+    ['non-monotonic fit', () => fitCalibration(Float64Array.from([20, 60, 100, 140, 60]), Float64Array.from([0.6, 0.52, 0.44, 0.36, 0.36]), 'poly2'), 'CALIBRATION_NOT_MONOTONIC'],
+  ])('%s -> %s', (_label, run, code) => {
+    expect(catchHeatpathError(run).code).toBe(code);
+  });
+});
+
+describe('voltageToTemperature', () => {
+  const cal = fitCalibration(temperatures_C, diodeVoltage_V, 'linear');
+  const [low, high] = cal.voltage_range_V;
+  const span = high - low;
+
+  it('converts along the diode line', () => {
+    const temps = voltageToTemperature(cal, Float64Array.from([0.65, 0.55]));
+    expect(temps[0]).toBeCloseTo(25, 9);
+    expect(temps[1]).toBeCloseTo(75, 9);
+  });
+
+  it(`accepts ${100 * CALIBRATION_RANGE_MARGIN} % beyond the range and refuses more`, () => {
+    expect(() => voltageToTemperature(cal, Float64Array.from([low - 0.99 * CALIBRATION_RANGE_MARGIN * span]))).not.toThrow();
+    expect(catchHeatpathError(() => voltageToTemperature(cal, Float64Array.from([0.6, high + 1.01 * CALIBRATION_RANGE_MARGIN * span]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
+    expect(catchHeatpathError(() => voltageToTemperature(cal, Float64Array.from([Number.NaN]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
+  });
+
+  it('refuses a calibration that turns within the measured voltages', () => {
+    // T = 100 - 1000 (V - 0.5)^2 turns at 0.5 V, inside 0.4..0.6 V.
+    const turning: Calibration = { ...cal, model: 'poly2', coefficients: [-150, 1000, -1000], voltage_range_V: [0.4, 0.6] };
+    expect(catchHeatpathError(() => voltageToTemperature(turning, Float64Array.from([0.45]))).code).toBe('CALIBRATION_NOT_MONOTONIC');
+  });
+});
+
+describe('validateCalibration', () => {
+  const good = fitCalibration(temperatures_C, diodeVoltage_V, 'linear');
+  it('accepts a fitted calibration after a JSON round trip', () => {
+    expect(validateCalibration(JSON.parse(JSON.stringify({ ...good, created_at: '2026-01-01T00:00:00Z' })), 'cal.json').model).toBe('linear');
+  });
+
+  it.each([
+    ['wrong version', { ...good, heatpath_calibration: 2 }, '/heatpath_calibration'],
+    ['unknown model', { ...good, model: 'spline' }, '/model'],
+    ['non-number coefficient', { ...good, coefficients: [1, 'x'] }, '/coefficients/1'],
+    ['short range', { ...good, voltage_range_V: [0.5] }, '/voltage_range_V'],
+    ['coefficient count', { ...good, coefficients: [1, 2, 3] }, '/coefficients'],
+    ['empty range', { ...good, voltage_range_V: [0.6, 0.5] }, '/voltage_range_V'],
+  ])('%s -> CALIBRATION_BAD_FILE naming %s', (_label, json, field) => {
+    const error = catchHeatpathError(() => validateCalibration(json, 'cal.json'));
+    expect(error.code).toBe('CALIBRATION_BAD_FILE');
+    expect(error.location).toMatchObject({ file: 'cal.json', column: field });
+  });
+  it('names an unexpected field', () => {
+    expect(catchHeatpathError(() => validateCalibration({ ...good, colour: 'red' }, 'cal.json')).message).toMatch(/colour|additional/);
+  });
+});
+
+describe('least squares by Householder QR', () => {
+  it('solves an overdetermined system like mathjs on the normal equations', () => {
+    const design = Float64Array.from([1, 2, 3, 4, 5, 6, 7, 8.5, 9, 1, 0, 2, 4, 4, 1]); // 5 x 3
+    const rhs = Float64Array.from([1, 2, 3, 4, 6]);
+    const ours = solveLeastSquares(design, 5, 3, rhs)!;
+    const rows = Array.from({ length: 5 }, (_, i) => Array.from(design.slice(3 * i, 3 * i + 3)));
+    const reference = (lusolve(multiply(transpose(rows), rows) as number[][], multiply(transpose(rows), Array.from(rhs)) as number[]) as number[][]).map((r) => r[0]);
+    ours.forEach((value, k) => expect(value).toBeCloseTo(reference[k], 10));
+  });
+
+  it('reports rank deficiency', () => {
+    expect(solveLeastSquares(Float64Array.from([1, 2, 2, 4, 3, 6]), 3, 2, Float64Array.from([1, 2, 3]))).toBeUndefined();
+    expect(fitPolynomial(Float64Array.from([1, 1, 1]), Float64Array.from([1, 2, 3]), 1)).toBeUndefined();
+  });
+});
