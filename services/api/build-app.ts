@@ -11,7 +11,14 @@ import { perKeyRateLimitPlugin } from './plugins/per-key-rate-limit.js';
 import { problemDetailsPlugin } from './plugins/problem-details.js';
 import { serviceMetricsPlugin } from './plugins/service-metrics.js';
 import { healthRoutes } from './routes/health-routes.js';
+import { BatchReprocessor } from '../../workers/reprocess-batch.js';
+import { WebhookRegistry } from '../../workers/webhook-registry.js';
+import { batchRoutes } from './routes/batch-routes.js';
+import { calibrationRoutes } from './routes/calibration-routes.js';
+import { jobRoutes } from './routes/job-routes.js';
 import { metricsRoutes } from './routes/metrics-routes.js';
+import { sampleRoutes } from './routes/sample-routes.js';
+import { webhookRoutes } from './routes/webhook-routes.js';
 import { transientRoutes } from './routes/transient-routes.js';
 
 /** Everything the API talks to, created by the caller so tests inject real ones. */
@@ -48,6 +55,11 @@ export async function buildApp(deps: AppDependencies) {
   await app.register(healthRoutes, { store, queue });
   await app.register(metricsRoutes);
   await app.register(transientRoutes, { store, queue, maxUploadBytes: config.maxUploadBytes });
+  await app.register(jobRoutes, { store, queue });
+  await app.register(calibrationRoutes, { store });
+  await app.register(sampleRoutes, { store });
+  await app.register(batchRoutes, { store, batches: new BatchReprocessor(store, queue) });
+  await app.register(webhookRoutes, { webhooks: new WebhookRegistry(store, config.queue.webhookAllowlist) });
   return app;
 }
 

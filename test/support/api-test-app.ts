@@ -41,11 +41,12 @@ export async function startApiTestApp(env: NodeJS.ProcessEnv = {}): Promise<ApiT
   const config = loadServiceConfig({
     REDIS_URL: redis.url,
     HEATPATH_DATA_DIR: dataDir,
+    HEATPATH_QUEUE_PREFIX: prefix,
     HEATPATH_API_KEYS: Object.entries(testTokens).map(([role, token]) => `${role}-key:${role}:${token}`).join(','),
     ...env,
   });
   const store = new TransientStore(config.dataDir);
-  const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix });
+  const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
   const app = await buildApp({ config, logger: pino({ level: 'silent' }), store, queue });
   await app.ready();
   return {

@@ -1,7 +1,7 @@
 import { Type, type Static } from 'typebox';
-import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { AnalysisJobState, AnalysisQueue } from '../../../workers/analysis-queue.js';
+import { unavailableQueue } from './unavailable-queue.js';
 
 const nullableString = Type.Union([Type.String(), Type.Null()]);
 
@@ -56,9 +56,7 @@ export async function readJobStatus(store: TransientStore, queue: AnalysisQueue,
       error: failure ? { code: failure.code, message: failure.message } : null,
     };
   }
-  const queued = await queue.getJobState(jobId).catch((error: Error) => {
-    throw new HeatpathError('SERVICE_UNAVAILABLE', `the job queue (Redis) does not answer: ${error.message}`);
-  });
+  const queued = await queue.getJobState(jobId).catch(unavailableQueue('the job state is unknown until it answers again'));
   return queued ? fromQueue(queued) : null;
 }
 

@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import type { FastifyBaseLogger } from 'fastify';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { parseTransient } from '../../../shared/input/parse-transient.js';
+import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
 import { AnalysisParametersSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
 import type { ApiKey } from '../../config/api-key-list.js';
 import { jobIdFor } from '../../jobs/job-id.js';
@@ -154,7 +155,7 @@ async function calibrationIdOf(store: TransientStore, metadata: UploadMetadata, 
   if (metadata.calibration !== undefined && metadata.calibration_id !== undefined) {
     throw new HeatpathError('REQUEST_INVALID', 'give either calibration_id or an inline calibration, not both');
   }
-  if (metadata.calibration !== undefined) return (await store.putCalibration(metadata.calibration, apiKey.name)).calibration_id;
+  if (metadata.calibration !== undefined) return (await store.putCalibration(validateCalibration(metadata.calibration, 'calibration'), apiKey.name)).calibration_id;
   if (metadata.calibration_id === undefined) return null;
   if (!(await store.getCalibration(metadata.calibration_id))) {
     throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${metadata.calibration_id} is not stored`);

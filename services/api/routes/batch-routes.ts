@@ -1,0 +1,115 @@
+import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import { Type } from 'typebox';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { AnalysisParametersSchema } from '../../../shared/schemas/analysis-parameters.js';
+import type { TransientStore } from '../../store/transient-store.js';
+import type { BatchProgress, BatchReprocessor } from '../../../workers/reprocess-batch.js';
+import { unavailableQueue } from '../jobs/unavailable-queue.js';
+
+const BatchParams = Type.Object({ batch_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
+
+const isoTime = (description: string) => Type.String({ format: 'date-time', description });
+
+const BatchRequestSchema = Type.Object(
+  {
+    selection: Type.Object(
+      {
+        sample_id: Type.Optional(Type.String({ minLength: 1 })),
+        bench: Type.Optional(Type.String({ minLength: 1 })),
+        tag: Type.Optional(Type.String({ minLength: 1 })),
+        received_from: Type.Optional(isoTime('Uploads received at or after this time.')),
+        received_to: Type.Optional(isoTime('Uploads received before this time.')),
+      },
+      { additionalProperties: false, description: 'Every given field must match; {} selects the whole archive.' },
+    ),
+    parameters: Type.Optional(Type.Partial(AnalysisParametersSchema, { description: 'Replace these parameters of each upload; omitted: reprocess with the current algorithm version.' })),
+    calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'Replace each upload\'s calibration by this stored one.' })),
+  },
+  { additionalProperties: false },
+);
+
+const BatchProgressSchema = Type.Object({
+  batch_id: Type.String(),
+  status: Type.Union([Type.Literal('running'), Type.Literal('cancelled')]),
+  created_at: Type.String(),
+  algorithm: Type.String({ description: 'Algorithm version the batch analyses with.' }),
+  total: Type.Integer(),
+  done: Type.Integer(),
+  failed: Type.Integer(),
+  pending: Type.Integer(),
+  links: Type.Object({ self: Type.String(), cancel: Type.String() }),
+});
+
+const withLinks = (progress: BatchProgress) => ({
+  ...progress,
+  links: { self: `/v1/batches/${progress.batch_id}`, cancel: `/v1/batches/${progress.batch_id}/cancel` },
+});
+
+/** Reprocessing the archive: admins start and cancel batches, everyone with a key may watch them. */
+export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; batches: BatchReprocessor }> = async (app, { store, batches }) => {
+  app.post(
+    '/v1/batches',
+    {
+      config: { permission: 'admin' },
+      schema: {
+        tags: ['batches'],
+        summary: 'Reprocess stored transients',
+        description: 'Queues one job per selected upload, below the benches\' uploads in priority. Uploads whose job already has an outcome are counted, not redone.',
+        body: BatchRequestSchema,
+        response: { 202: BatchProgressSchema },
+      },
+    },
+    async (request, reply) => {
+      const { selection, parameters, calibration_id } = request.body;
+      const progress = await batches
+        .create({ selection, parameters, calibration_id, created_by: request.apiKey!.name })
+        .catch(unavailableQueue('the batch may be stored; it is queued when Redis is back'));
+      return reply.status(202).header('location', `/v1/batches/${progress.batch_id}`).send(withLinks(progress));
+    },
+  );
+
+  app.get(
+    '/v1/batches',
+    {
+      config: { permission: 'read' },
+      schema: { tags: ['batches'], summary: 'Every batch with its progress, oldest first', response: { 200: Type.Object({ batches: Type.Array(BatchProgressSchema) }) } },
+    },
+    async () => {
+      const records = await store.listBatches();
+      const progress = await Promise.all(records.map((record) => batches.progress(record.batch_id)));
+      return { batches: progress.filter((entry): entry is BatchProgress => entry !== null).map(withLinks) };
+    },
+  );
+
+  app.get(
+    '/v1/batches/:batch_id',
+    {
+      config: { permission: 'read' },
+      schema: { tags: ['batches'], summary: 'Progress of a batch: done, failed, pending', params: BatchParams, response: { 200: BatchProgressSchema } },
+    },
+    async (request) => {
+      const progress = await batches.progress(request.params.batch_id);
+      if (!progress) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${request.params.batch_id} is not stored`);
+      return withLinks(progress);
+    },
+  );
+
+  app.post(
+    '/v1/batches/:batch_id/cancel',
+    {
+      config: { permission: 'admin' },
+      schema: {
+        tags: ['batches'],
+        summary: 'Cancel a batch',
+        description: 'Jobs not yet started are removed from the queue; running ones finish.',
+        params: BatchParams,
+        response: { 200: BatchProgressSchema },
+      },
+    },
+    async (request) => {
+      const progress = await batches.cancel(request.params.batch_id).catch(unavailableQueue('the batch is marked cancelled once Redis answers again'));
+      if (!progress) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${request.params.batch_id} is not stored`);
+      return withLinks(progress);
+    },
+  );
+};

@@ -1,0 +1,116 @@
+import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import { Type } from 'typebox';
+import { resultArtifacts } from '../../../shared/analysis/result-artifacts.js';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
+import type { ResultRecord } from '../../store/store-records.js';
+import type { TransientStore } from '../../store/transient-store.js';
+import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
+import { JobStatusSchema, readJobStatus } from '../jobs/job-status.js';
+import { ResultRecordSchema } from '../schemas/result-record-schema.js';
+
+const JobParams = Type.Object({ job_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
+
+const ArtifactListSchema = Type.Object({
+  job_id: Type.String(),
+  artifacts: Type.Array(
+    Type.Object({ channel: Type.String(), name: Type.String(), media_type: Type.String(), href: Type.String() }),
+  ),
+});
+
+/** Jobs: status while they run, then the stored result and the files derived from it. */
+export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue }> = async (app, { store, queue }) => {
+  /** The stored result, or the problem saying why there is none yet. */
+  async function requireResult(jobId: string): Promise<ResultRecord> {
+    const result = await store.getResult(jobId);
+    if (result) return result;
+    const status = await readJobStatus(store, queue, jobId);
+    if (status === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known`);
+    if (status.state === 'failed') {
+      throw new HeatpathError('JOB_FAILED', `job ${jobId} failed${status.error?.code ? ` with ${status.error.code}` : ''}: ${status.error?.message ?? 'no reason recorded'}`);
+    }
+    throw new HeatpathError('RESULT_NOT_READY', `job ${jobId} is ${status.state}`);
+  }
+
+  app.get(
+    '/v1/jobs/:job_id',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['jobs'],
+        summary: 'State, progress, timings and error of a job',
+        params: JobParams,
+        response: { 200: Type.Object({ ...JobStatusSchema.properties, links: Type.Object({ self: Type.String(), result: Type.String(), artifacts: Type.String() }) }) },
+      },
+    },
+    async (request) => {
+      const { job_id } = request.params;
+      const status = await readJobStatus(store, queue, job_id);
+      if (status === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} is not known`);
+      return { ...status, links: { self: `/v1/jobs/${job_id}`, result: `/v1/jobs/${job_id}/result`, artifacts: `/v1/jobs/${job_id}/artifacts` } };
+    },
+  );
+
+  app.get(
+    '/v1/jobs/:job_id/result',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['jobs'],
+        summary: 'The result of a completed job',
+        description: 'One result per channel, as `heatpath analyze --format json` prints them, with the provenance (versions, parameters) that produced them.',
+        params: JobParams,
+        response: { 200: ResultRecordSchema },
+      },
+    },
+    async (request) => {
+      const record = await requireResult(request.params.job_id);
+      return { ...record, results: record.results as AnalysisResult[] };
+    },
+  );
+
+  app.get(
+    '/v1/jobs/:job_id/artifacts',
+    {
+      config: { permission: 'read' },
+      schema: { tags: ['jobs'], summary: 'Netlists and CSV tables of a completed job', params: JobParams, response: { 200: ArtifactListSchema } },
+    },
+    async (request) => {
+      const { job_id } = request.params;
+      const record = await requireResult(job_id);
+      const artifacts = (record.results as AnalysisResult[]).flatMap((result) =>
+        resultArtifacts(result).map((artifact) => ({
+          channel: result.source.channel,
+          name: artifact.name,
+          media_type: artifact.media_type,
+          href: `/v1/jobs/${job_id}/artifacts/${artifact.name}?channel=${encodeURIComponent(result.source.channel)}`,
+        })),
+      );
+      return { job_id, artifacts };
+    },
+  );
+
+  app.get(
+    '/v1/jobs/:job_id/artifacts/:name',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['jobs'],
+        summary: 'One artifact (a netlist or CSV table)',
+        params: Type.Object({ ...JobParams.properties, name: Type.String({ maxLength: 100 }) }),
+        querystring: Type.Object({ channel: Type.Optional(Type.String({ description: 'Needed when the job has several channels.' })) }, { additionalProperties: false }),
+        response: { 200: { description: 'The artifact', content: { 'text/csv': { schema: Type.String() }, 'text/plain': { schema: Type.String() } } } },
+      },
+    },
+    async (request, reply) => {
+      const { job_id, name } = request.params;
+      const results = (await requireResult(job_id)).results as AnalysisResult[];
+      const { channel } = request.query;
+      const chosen = channel === undefined ? results : results.filter((result) => result.source.channel === channel);
+      if (chosen.length > 1) throw new HeatpathError('REQUEST_INVALID', `job ${job_id} has channels ${results.map((r) => r.source.channel).join(', ')}: add ?channel=`);
+      const artifact = chosen.length === 1 ? resultArtifacts(chosen[0]).find((candidate) => candidate.name === name) : undefined;
+      if (!artifact) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} has no artifact ${name}${channel === undefined ? '' : ` for channel ${channel}`}`);
+      return reply.type(artifact.media_type).send(artifact.content);
+    },
+  );
+};

@@ -1,0 +1,22 @@
+import { Type } from 'typebox';
+import { AnalysisParametersSchema, PowerSchema } from '../../../shared/schemas/analysis-parameters.js';
+import { AnalysisResultSchema } from '../../../shared/schemas/analysis-result.js';
+
+const nullableString = Type.Union([Type.String(), Type.Null()]);
+
+/** A stored result (services/store/store-records.ts ResultRecord) as the API returns it. */
+export const ResultRecordSchema = Type.Object({
+  job_id: Type.String(),
+  upload_id: Type.String(),
+  input_sha256: Type.String(),
+  sample_id: Type.String(),
+  algorithm: Type.String({ description: 'Algorithm version that produced the results.' }),
+  heatpath_version: Type.String(),
+  parameters: AnalysisParametersSchema,
+  power: Type.Union([PowerSchema, Type.Null()]),
+  calibration_id: nullableString,
+  batch_id: Type.Union([Type.String(), Type.Null()], { description: 'The reprocessing batch that asked for this job, if any.' }),
+  finished_at: Type.String(),
+  duration_ms: Type.Number(),
+  results: Type.Array(AnalysisResultSchema, { description: 'One result per channel, the same JSON as `heatpath analyze --format json`.' }),
+});

@@ -1,0 +1,48 @@
+import type { Logger } from 'pino';
+import type { ServiceConfig } from '../config/service-config.js';
+import { TransientStore } from '../store/transient-store.js';
+import { AnalysisQueue } from '../../workers/analysis-queue.js';
+import { buildApp, type HeatpathApp } from './build-app.js';
+
+export interface RunningApi {
+  app: HeatpathApp;
+  queue: AnalysisQueue;
+  /** Stops accepting requests, lets open ones finish, closes Redis. */
+  close(): Promise<void>;
+}
+
+/** Builds the API over the configured store and queue and listens on HOST:PORT. */
+export async function startApi(config: ServiceConfig, logger: Logger): Promise<RunningApi> {
+  const store = new TransientStore(config.dataDir);
+  const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
+  const app = await buildApp({ config, logger, store, queue });
+  await app.listen({ port: config.port, host: config.host });
+  if (!(await queue.ping())) logger.warn({ redis: config.redisUrl }, 'Redis does not answer: uploads are stored and queued once it does; /health/ready reports 503');
+  return {
+    app,
+    queue,
+    async close() {
+      await app.close();
+      await queue.close();
+    },
+  };
+}
+
+/** Runs `close` once on SIGTERM or SIGINT, then exits. */
+export function closeOnSignals(logger: Logger, close: () => Promise<void>): void {
+  let closing = false;
+  const stop = (signal: string) => {
+    if (closing) return;
+    closing = true;
+    logger.info({ signal }, 'stopping');
+    close().then(
+      () => process.exit(0),
+      (error: unknown) => {
+        logger.error({ err: error }, 'did not stop cleanly');
+        process.exit(1);
+      },
+    );
+  };
+  process.on('SIGTERM', () => stop('SIGTERM'));
+  process.on('SIGINT', () => stop('SIGINT'));
+}

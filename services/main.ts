@@ -1,0 +1,32 @@
+import { pino } from 'pino';
+import { startWorkers } from '../workers/main.js';
+import { serviceConfigOrExit } from './config/service-config-or-exit.js';
+import { AnalysisQueue } from '../workers/analysis-queue.js';
+import { closeOnSignals, startApi } from './api/start-api.js';
+
+/**
+ * `npm start`: API and workers on one machine, one process (the analysis
+ * itself runs in the workers' child processes). Needs Redis from the start.
+ */
+const config = serviceConfigOrExit();
+const logger = pino({ level: config.logLevel, name: 'heatpath' });
+
+const probe = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
+const redisAnswers = await probe.ping();
+await probe.close();
+if (!redisAnswers) {
+  process.stderr.write(
+    `heatpath: Redis does not answer at ${config.redisUrl}.\n` +
+      '  Start one on this machine:  redis-server --daemonize yes --port 6379\n' +
+      '  or point REDIS_URL at the lab\'s Redis (redis://host:6379), then run `npm start` again.\n' +
+      '  To accept uploads while Redis is away (they are queued later), run the API alone: `npm run start:api`.\n',
+  );
+  process.exit(1);
+}
+
+const api = await startApi(config, logger);
+const workers = await startWorkers({ config, logger, metricsRegistry: api.app.metricsRegistry });
+closeOnSignals(logger, async () => {
+  await api.close();
+  await workers.close();
+});
