@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 
@@ -23,5 +25,21 @@ describe('parseCalibrationPoints', () => {
     const error = catchHeatpathError(() => parseCalibrationPoints(text, 'cal.csv'));
     expect(error.code).toBe(code);
     expect(error.location).toEqual({ file: 'cal.csv', line, column });
+  });
+
+  it('returns points or throws a HeatpathError for arbitrary text', () => {
+    const token = fc.constantFrom('temperature_C', 'voltage_V', ',', ';', '\t', '\n', '#', '"', '25', '-0.6', 'nan', '1e999', ' ');
+    const text = fc.oneof(fc.string({ maxLength: 300 }), fc.array(token, { maxLength: 120 }).map((parts) => parts.join('')));
+    fc.assert(
+      fc.property(text, (input) => {
+        try {
+          const points = parseCalibrationPoints(input, 'fuzz.csv');
+          expect(points.temperature_C.length).toBe(points.voltage_V.length);
+        } catch (error) {
+          expect(error).toBeInstanceOf(HeatpathError);
+        }
+      }),
+      { numRuns: 300 },
+    );
   });
 });

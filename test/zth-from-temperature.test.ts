@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { heatingPower_W, zthFromTemperature, zthFromZthInput } from '../shared/numerics/zth-from-temperature.js';
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { steadyStateRth } from '../shared/numerics/steady-state.js';
+import { fitCalibration, voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
 import { NOISE_FLOOR_RELATIVE } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
@@ -46,6 +47,20 @@ describe('zthFromTemperature', () => {
       const noise = noiseSeries(0.02, seed);
       const cooling = times.map((t, i) => ambient_C + power_W * (rth - truth[i]) + artefact(t) + noise[i]);
       const curve = zthFromTemperature(times, cooling, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(cooling) });
+      expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
+    }
+  });
+
+  it('meets the same target from a diode voltage through a linear calibration', () => {
+    // Sense diode at -2 mV/K (common practice): V = 0.65 V - 2 mV/K (T - 25 degC); 0.02 K of noise is 40 uV.
+    const toVoltage = (t_C: number) => 0.65 - 2e-3 * (t_C - 25);
+    const sweep_C = Float64Array.from({ length: 9 }, (_, i) => 20 + 12.5 * i);
+    const calibration = fitCalibration(sweep_C, sweep_C.map(toVoltage), 'linear');
+    for (let seed = 5; seed <= 7; seed++) {
+      const noise = noiseSeries(0.02, seed);
+      const voltage_V = times.map((t, i) => toVoltage(ambient_C + power_W * (rth - truth[i]) + noise[i]) + 2e-3 * artefact(t));
+      const temperature_C = voltageToTemperature(calibration, voltage_V);
+      const curve = zthFromTemperature(times, temperature_C, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(temperature_C) });
       expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
     }
   });

@@ -49,7 +49,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   const names = headerText.split(separator).map(cleanField);
   checkHeader(names, headerIndex + 1);
 
-  const rows: string[][] = [];
+  const values: number[][] = names.map(() => []);
   const rowLineList: number[] = [];
   for (let i = headerIndex + 1; i < lines.length; i++) {
     const line = lines[i];
@@ -62,17 +62,10 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
         line: i + 1,
       });
     }
-    rows.push(fields);
+    for (let c = 0; c < names.length; c++) values[c].push(parseNumber(fields[c], fileName, i + 1, names[c]));
     rowLineList.push(i + 1);
   }
-
-  const columns = names.map(() => new Float64Array(rows.length));
-  for (let r = 0; r < rows.length; r++) {
-    const fields = rows[r];
-    for (let c = 0; c < names.length; c++) {
-      columns[c][r] = parseNumber(fields[c], fileName, rowLineList[r], names[c]);
-    }
-  }
+  const columns = values.map((column) => Float64Array.from(column));
   return { names, columns, rowLines: Int32Array.from(rowLineList), meta: Object.fromEntries(meta) };
 }
 
@@ -102,13 +95,17 @@ function cleanField(field: string): string {
 }
 
 function parseNumber(field: string, fileName: string, line: number, name: string): number {
-  const text = cleanField(field);
-  const column = shortenInputText(name);
-  if (!DECIMAL_NUMBER.test(text)) {
-    if (NOT_FINITE_WORD.test(text)) throw new HeatpathError('INPUT_NOT_FINITE', `${quoteInputText(text)}`, { file: fileName, line, column });
-    throw new HeatpathError('INPUT_NOT_NUMERIC', text === '' ? 'the field is empty' : quoteInputText(text), { file: fileName, line, column });
+  // Most fields are plain numbers: skip the trimming and unquoting for them.
+  const plain = DECIMAL_NUMBER.test(field);
+  const text = plain ? field : cleanField(field);
+  if (!plain && !DECIMAL_NUMBER.test(text)) {
+    const at = { file: fileName, line, column: shortenInputText(name) };
+    if (NOT_FINITE_WORD.test(text)) throw new HeatpathError('INPUT_NOT_FINITE', quoteInputText(text), at);
+    throw new HeatpathError('INPUT_NOT_NUMERIC', text === '' ? 'the field is empty' : quoteInputText(text), at);
   }
   const value = Number(text);
-  if (!Number.isFinite(value)) throw new HeatpathError('INPUT_NOT_FINITE', `${quoteInputText(text)} overflows a double`, { file: fileName, line, column });
+  if (!Number.isFinite(value)) {
+    throw new HeatpathError('INPUT_NOT_FINITE', `${quoteInputText(text)} overflows a double`, { file: fileName, line, column: shortenInputText(name) });
+  }
   return value;
 }
