@@ -1,0 +1,56 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { apiRouteTable, openApiPath, registeredRoutes } from './support/api-route-table.js';
+import { startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
+
+let context: ApiTestContext;
+let document: {
+  openapi: string;
+  paths: Record<string, Record<string, { security?: unknown[]; responses: Record<string, { content?: Record<string, unknown> }> }>>;
+  components: { securitySchemes: Record<string, unknown> };
+};
+beforeAll(async () => {
+  context = await startApiTestApp();
+  document = (await context.app.inject({ url: '/openapi.json' })).json();
+});
+afterAll(async () => context.close());
+
+const operations = () =>
+  Object.entries(document.paths).flatMap(([path, methods]) => Object.entries(methods).map(([method, operation]) => ({ path, method, operation })));
+
+describe('the OpenAPI document', () => {
+  it('is OpenAPI 3.1 (OpenAPI Specification 3.1.0, "openapi" field)', () => {
+    expect(document.openapi).toBe('3.1.0');
+  });
+
+  it('lists exactly the routes the app registered, except its own and the docs viewer', () => {
+    const registered = registeredRoutes(context.app.printRoutes({ commonPrefix: false }))
+      .filter((route) => route.url !== '/openapi.json')
+      .map((route) => `${route.method} ${openApiPath(route.url)}`);
+    const documented = operations().map(({ path, method }) => `${method.toUpperCase()} ${path}`);
+    expect(registered.length).toBeGreaterThan(10);
+    expect(new Set(documented)).toEqual(new Set(registered));
+  });
+
+  it('lists every route of the issue table', () => {
+    const documented = operations().map(({ path, method }) => `${method.toUpperCase()} ${path}`);
+    expect(new Set(documented)).toEqual(new Set(apiRouteTable.map((route) => `${route.method} ${openApiPath(route.url)}`)));
+  });
+
+  it('declares bearer security exactly on the protected routes', () => {
+    expect(document.components.securitySchemes).toEqual({ apiKey: expect.objectContaining({ type: 'http', scheme: 'bearer' }) });
+    for (const route of apiRouteTable) {
+      const operation = document.paths[openApiPath(route.url)][route.method.toLowerCase()];
+      expect(operation.security, `${route.method} ${route.url}`).toEqual(route.permission === 'public' ? undefined : [{ apiKey: [] }]);
+    }
+  });
+
+  it('documents a success answer and problem+json errors (RFC 9457 section 3) on every operation', () => {
+    for (const { path, method, operation } of operations()) {
+      const statuses = Object.keys(operation.responses);
+      expect(statuses.some((status) => /^2\d\d$/.test(status)), `${method} ${path}`).toBe(true);
+      for (const range of ['4XX', '5XX']) {
+        expect(operation.responses[range]?.content, `${method} ${path} ${range}`).toHaveProperty(['application/problem+json']);
+      }
+    }
+  });
+});
