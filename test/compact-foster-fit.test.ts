@@ -1,0 +1,40 @@
+import { describe, expect, it } from 'vitest';
+import { fitCompactFoster } from '../shared/numerics/compact-foster-fit.js';
+import { zthFromFoster } from '../shared/numerics/foster-zth.js';
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { logSpacedTimes, slabRth, slabZth, SILICON_DIE_SLAB } from './support/conduction-solutions.js';
+
+describe('compact Foster fit', () => {
+  it('recovers a known 4-stage network from noiseless data', () => {
+    const r_K_per_W = Float64Array.from([0.05, 0.15, 0.3, 0.5]);
+    const tau_s = Float64Array.from([1e-4, 3e-3, 0.1, 3]);
+    const time_s = logSpacedTimes(1e-6, 8, 37); // 297 log-spaced samples, 1 us to 100 s
+    const fit = fitCompactFoster(time_s, zthFromFoster(r_K_per_W, tau_s, time_s), 4);
+    for (let j = 0; j < 4; j++) {
+      expect(Math.abs(fit.foster.r_K_per_W[j] / r_K_per_W[j] - 1)).toBeLessThan(1e-4);
+      expect(Math.abs(fit.foster.tau_s[j] / tau_s[j] - 1)).toBeLessThan(1e-4);
+    }
+    expect(fit.max_rel).toBeLessThan(1e-6);
+  });
+
+  it('fits the Carslaw & Jaeger slab with 5 stages to 0.5 % of Rth', () => {
+    // Truth: the exact slab Zth (images at short, eigen series at long times), not a Foster fit.
+    const time_s = logSpacedTimes(1e-6, 5, 60);
+    const zth = Float64Array.from(time_s, (t) => slabZth(SILICON_DIE_SLAB, t));
+    const fit = fitCompactFoster(time_s, zth, 5);
+    const rth = slabRth(SILICON_DIE_SLAB);
+    expect(fit.max_abs_K_per_W / rth).toBeLessThan(0.005);
+    expect(fit.rms_K_per_W).toBeLessThanOrEqual(fit.max_abs_K_per_W);
+    const rSum = fit.foster.r_K_per_W.reduce((a, b) => a + b, 0);
+    expect(Math.abs(rSum / rth - 1)).toBeLessThan(0.005);
+    for (let j = 1; j < 5; j++) expect(fit.foster.tau_s[j]).toBeGreaterThan(fit.foster.tau_s[j - 1]);
+  });
+
+  it('rejects bad stage counts and too few samples', () => {
+    const time_s = logSpacedTimes(1e-3, 1, 5);
+    const zth = Float64Array.from(time_s, (t) => 1 - Math.exp(-t));
+    expect(() => fitCompactFoster(time_s, zth, 0)).toThrow(HeatpathError);
+    expect(() => fitCompactFoster(time_s, zth, 4)).toThrow(/9 at the least/);
+    expect(() => fitCompactFoster(Float64Array.from([1, 1, 2]), Float64Array.from([0, 0, 0]), 1)).toThrow(/strictly increasing/);
+  });
+});
