@@ -2,14 +2,17 @@
  * Compact N-stage Foster model fitted to a Zth curve, the form datasheets
  * print (JESD51-14 and common practice use 4 to 6 stages).
  *
- * Least squares on the absolute error, Zth(t) = sum R_j (1 - exp(-t / tau_j)),
- * with the parameters ln R_j and ln tau_j so that every R and tau stays
- * positive, solved by Levenberg-Marquardt (Marquardt, J. SIAM 11, 1963;
- * damping scaled by the diagonal of J^T J) with the analytic Jacobian.
+ * Least squares on the absolute error of Zth(t) = sum R_j (1 - exp(-t/tau_j))
+ * by variable projection (Golub and Pereyra, SIAM J. Numer. Anal. 10, 1973):
+ * for given taus the R's are the non-negative least-squares solution
+ * (Lawson and Hanson, Solving Least Squares Problems, 1974, ch. 23), so only
+ * the taus are iterated, as ln tau (positive by construction), by
+ * Levenberg-Marquardt (Marquardt, J. SIAM 11, 1963; damping scaled by the
+ * diagonal of J^T J) with Kaufman's Jacobian of the projected residual
+ * (BIT 15, 1975). Eliminating the R's removes the narrow valleys that make
+ * a joint fit of R and tau crawl.
  * Start: taus spread log-uniformly over the times in which the curve rises
- * from 2 % to 98 % of its last value; each R is the rise of the data between
- * the geometric midpoints around its tau, a coarse time-constant spectrum
- * that is positive by construction.
+ * from 2 % to 98 % of its last value.
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
 import type { FosterNetwork } from './rc-network.js';
@@ -40,31 +43,27 @@ export function fitCompactFoster(time_s: Float64Array, zth_K_per_W: Float64Array
   const logTauMin = Math.log(time_s[0]) - LOG_TAU_MARGIN;
   const logTauMax = Math.log(time_s[m - 1]) + LOG_TAU_MARGIN;
 
-  // Parameters: p[j] = ln R_j, p[n + j] = ln tau_j.
-  let p = initialParameters(time_s, zth_K_per_W, n);
-  const residual = new Float64Array(m);
-  const jacobian = new Float64Array(m * 2 * n);
-  let sumOfSquares = evaluate(p, time_s, zth_K_per_W, residual, null);
+  let logTau = initialLogTaus(time_s, zth_K_per_W, n);
+  let current = projectedFit(time_s, zth_K_per_W, logTau);
   let damping = 1e-3;
-  const normal = new Float64Array(4 * n * n);
-  const gradient = new Float64Array(2 * n);
+  const jacobian = new Float64Array(m * n);
+  const normal = new Float64Array(n * n);
+  const gradient = new Float64Array(n);
   let converged = false;
-  for (let iteration = 0; iteration < MAX_ITERATIONS && !converged && sumOfSquares > 0; iteration++) {
-    evaluate(p, time_s, zth_K_per_W, residual, jacobian);
-    normalEquations(jacobian, residual, m, 2 * n, normal, gradient);
+  for (let iteration = 0; iteration < MAX_ITERATIONS && !converged && current.sumOfSquares > 0; iteration++) {
+    kaufmanJacobian(time_s, logTau, current, jacobian);
+    normalEquations(jacobian, current.residual, m, n, normal, gradient);
     let accepted = false;
     while (!accepted && damping < 1e12) {
-      const step = solveDamped(normal, gradient, 2 * n, damping);
-      const trial = p.map((value, k) => value - step[k]);
-      for (let j = n; j < 2 * n; j++) trial[j] = Math.min(logTauMax, Math.max(logTauMin, trial[j]));
-      const trialSum = evaluate(trial, time_s, zth_K_per_W, residual, null);
-      if (trialSum < sumOfSquares) {
-        const improvement = (sumOfSquares - trialSum) / sumOfSquares;
-        p = trial;
-        sumOfSquares = trialSum;
+      const step = solveDamped(normal, gradient, n, damping);
+      const trial = logTau.map((value, j) => Math.min(logTauMax, Math.max(logTauMin, value - step[j])));
+      const trialFit = projectedFit(time_s, zth_K_per_W, trial);
+      if (trialFit.sumOfSquares < current.sumOfSquares) {
+        converged = (current.sumOfSquares - trialFit.sumOfSquares) / current.sumOfSquares < RELATIVE_IMPROVEMENT_STOP;
+        logTau = trial;
+        current = trialFit;
         damping = Math.max(damping / 3, 1e-12);
         accepted = true;
-        converged = improvement < RELATIVE_IMPROVEMENT_STOP;
       } else {
         damping *= 4;
       }
@@ -72,84 +71,194 @@ export function fitCompactFoster(time_s: Float64Array, zth_K_per_W: Float64Array
     converged ||= !accepted;
   }
 
-  const order = Array.from({ length: n }, (_, j) => j).sort((a, b) => p[n + a] - p[n + b]);
+  // Stages the non-negativity constraint switched off carry no heat: leave them out.
+  const order = Array.from({ length: n }, (_, j) => j)
+    .filter((j) => current.r[j] > 0)
+    .sort((a, b) => logTau[a] - logTau[b]);
   const foster: FosterNetwork = {
-    r_K_per_W: Float64Array.from(order, (j) => Math.exp(p[j])),
-    tau_s: Float64Array.from(order, (j) => Math.exp(p[n + j])),
+    r_K_per_W: Float64Array.from(order, (j) => current.r[j]),
+    tau_s: Float64Array.from(order, (j) => Math.exp(logTau[j])),
   };
-  evaluate(p, time_s, zth_K_per_W, residual, null);
   let maxAbs = 0;
-  for (let i = 0; i < m; i++) maxAbs = Math.max(maxAbs, Math.abs(residual[i]));
+  for (let i = 0; i < m; i++) maxAbs = Math.max(maxAbs, Math.abs(current.residual[i]));
   return {
     foster,
-    rms_K_per_W: Math.sqrt(sumOfSquares / m),
+    rms_K_per_W: Math.sqrt(current.sumOfSquares / m),
     max_abs_K_per_W: maxAbs,
     max_rel: maxAbs / Math.abs(zth_K_per_W[m - 1]),
   };
 }
 
-function initialParameters(time_s: Float64Array, zth: Float64Array, n: number): Float64Array {
+function initialLogTaus(time_s: Float64Array, zth: Float64Array, n: number): Float64Array {
   const m = time_s.length;
-  const logFirst = Math.log(time_s[0]);
   const logLast = Math.log(time_s[m - 1]);
   // Spread the taus over the times in which the curve does most of its rise,
   // not over a long flat tail where a stage would start with no gradient.
-  const final = zth[m - 1];
+  const final = Math.abs(zth[m - 1]);
   const firstAbove = (fraction: number): number => {
     let i = 0;
-    while (i < m - 1 && Math.abs(zth[i]) < fraction * Math.abs(final)) i++;
+    while (i < m - 1 && Math.abs(zth[i]) < fraction * final) i++;
     return Math.log(time_s[i]);
   };
   const spreadFrom = Math.min(firstAbove(RISE_START_FRACTION), logLast - Math.LN10);
   const spreadTo = Math.max(firstAbove(RISE_END_FRACTION), spreadFrom + Math.LN10);
-  const p = new Float64Array(2 * n);
-  const logTau = Float64Array.from({ length: n }, (_, j) => spreadFrom + ((j + 0.5) * (spreadTo - spreadFrom)) / n);
-  const zthAt = (logT: number): number => {
-    if (logT <= logFirst) return 0;
-    if (logT >= logLast) return zth[m - 1];
-    let i = 1;
-    while (Math.log(time_s[i]) < logT) i++;
-    const a = Math.log(time_s[i - 1]);
-    const b = Math.log(time_s[i]);
-    return zth[i - 1] + ((zth[i] - zth[i - 1]) * (logT - a)) / (b - a);
-  };
-  // A floor keeps ln R finite where the data do not rise.
-  const floor = 1e-6 * Math.max(Math.abs(zth[m - 1]), Number.MIN_VALUE);
-  for (let j = 0; j < n; j++) {
-    const lower = j === 0 ? -Infinity : (logTau[j - 1] + logTau[j]) / 2;
-    const upper = j === n - 1 ? Infinity : (logTau[j] + logTau[j + 1]) / 2;
-    p[j] = Math.log(Math.max(floor, zthAt(upper) - zthAt(lower)));
-    p[n + j] = logTau[j];
-  }
-  return p;
+  return Float64Array.from({ length: n }, (_, j) => spreadFrom + ((j + 0.5) * (spreadTo - spreadFrom)) / n);
 }
 
-/** Residual model - data; optionally the Jacobian (row-major, m x 2n); returns the sum of squares. */
-function evaluate(p: Float64Array, time_s: Float64Array, zth: Float64Array, residual: Float64Array, jacobian: Float64Array | null): number {
-  const n = p.length / 2;
-  const width = 2 * n;
-  const r = new Float64Array(n);
-  const rate = new Float64Array(n);
-  for (let j = 0; j < n; j++) {
-    r[j] = Math.exp(p[j]);
-    rate[j] = Math.exp(-p[n + j]);
-  }
-  let sum = 0;
-  for (let i = 0; i < time_s.length; i++) {
+interface ProjectedFit {
+  /** Non-negative least-squares R for the taus; 0 where the constraint is active. */
+  r: Float64Array;
+  /** model - data */
+  residual: Float64Array;
+  sumOfSquares: number;
+  /** Orthonormal basis (m x passive.length, column-major) of the columns with R > 0. */
+  basis: Float64Array;
+  passive: number[];
+}
+
+/** Step-response columns A_ij = 1 - exp(-t_i / tau_j), column-major. */
+function basisColumns(time_s: Float64Array, logTau: Float64Array): Float64Array {
+  const m = time_s.length;
+  const columns = new Float64Array(m * logTau.length);
+  logTau.forEach((value, j) => {
+    const rate = Math.exp(-value);
+    for (let i = 0; i < m; i++) columns[j * m + i] = -Math.expm1(-time_s[i] * rate);
+  });
+  return columns;
+}
+
+function projectedFit(time_s: Float64Array, zth: Float64Array, logTau: Float64Array): ProjectedFit {
+  const m = time_s.length;
+  const a = basisColumns(time_s, logTau);
+  const { r, passive, basis } = nonNegativeLeastSquares(a, m, logTau.length, zth);
+  const residual = modelMinusData(a, m, r, passive, zth);
+  let sumOfSquares = 0;
+  for (let i = 0; i < m; i++) sumOfSquares += residual[i] * residual[i];
+  return { r, residual, sumOfSquares, basis, passive };
+}
+
+function modelMinusData(a: Float64Array, m: number, r: Float64Array, passive: number[], z: Float64Array): Float64Array {
+  const residual = new Float64Array(m);
+  for (let i = 0; i < m; i++) {
     let model = 0;
+    for (const j of passive) model += a[j * m + i] * r[j];
+    residual[i] = model - z[i];
+  }
+  return residual;
+}
+
+/** Lawson-Hanson active-set NNLS for min |A r - z|, r >= 0, over the few columns of a compact model. */
+function nonNegativeLeastSquares(a: Float64Array, m: number, n: number, z: Float64Array): { r: Float64Array; passive: number[]; basis: Float64Array } {
+  // Usually every stage carries heat: then the unconstrained solution is the answer.
+  const all = Array.from({ length: n }, (_, j) => j);
+  const unconstrained = leastSquaresOnColumns(a, m, all, z);
+  if (unconstrained.coefficients.every((value) => value > 0)) {
+    return { r: Float64Array.from(unconstrained.coefficients), passive: all, basis: unconstrained.basis };
+  }
+  let scale = 0;
+  for (let i = 0; i < m; i++) scale = Math.max(scale, Math.abs(z[i]));
+  const tolerance = 1e-12 * scale * scale * m;
+  const r = new Float64Array(n);
+  const passive: number[] = [];
+  let subset = leastSquaresOnColumns(a, m, passive, z);
+  let residual = modelMinusData(a, m, r, passive, z);
+  for (let outer = 0; outer < 3 * n; outer++) {
+    // The column whose coefficient would most reduce the residual, if any would.
+    let best = -1;
+    let bestGradient = tolerance;
     for (let j = 0; j < n; j++) {
-      const x = time_s[i] * rate[j];
-      const rise = -Math.expm1(-x);
-      model += r[j] * rise;
-      if (jacobian) {
-        jacobian[i * width + j] = r[j] * rise; // d/d ln R
-        jacobian[i * width + n + j] = -r[j] * (1 - rise) * x; // d/d ln tau
+      if (passive.includes(j)) continue;
+      let g = 0;
+      for (let i = 0; i < m; i++) g -= a[j * m + i] * residual[i];
+      if (g > bestGradient) {
+        bestGradient = g;
+        best = j;
       }
     }
-    residual[i] = model - zth[i];
-    sum += residual[i] * residual[i];
+    if (best < 0) break;
+    passive.push(best);
+    for (;;) {
+      subset = leastSquaresOnColumns(a, m, passive, z);
+      if (subset.coefficients.every((value) => value > 0)) {
+        r.fill(0);
+        passive.forEach((j, k) => (r[j] = subset.coefficients[k]));
+        break;
+      }
+      // Step from r towards the subset solution until a coefficient reaches zero; drop it.
+      let alpha = 1;
+      passive.forEach((j, k) => {
+        const s = subset.coefficients[k];
+        if (s <= 0) alpha = Math.min(alpha, r[j] / (r[j] - s));
+      });
+      passive.forEach((j, k) => (r[j] += alpha * (subset.coefficients[k] - r[j])));
+      for (let k = passive.length - 1; k >= 0; k--) {
+        if (r[passive[k]] <= 0) {
+          r[passive[k]] = 0;
+          passive.splice(k, 1);
+        }
+      }
+    }
+    residual = modelMinusData(a, m, r, passive, z);
   }
-  return sum;
+  return { r, passive, basis: subset.basis };
+}
+
+/** Least squares on the given columns by modified Gram-Schmidt QR: coefficients and the orthonormal basis. */
+function leastSquaresOnColumns(a: Float64Array, m: number, columns: number[], z: Float64Array): { coefficients: number[]; basis: Float64Array } {
+  const p = columns.length;
+  const q = new Float64Array(m * p);
+  const upper = new Float64Array(p * p);
+  columns.forEach((j, k) => {
+    q.set(a.subarray(j * m, (j + 1) * m), k * m);
+    for (let l = 0; l < k; l++) {
+      let dot = 0;
+      for (let i = 0; i < m; i++) dot += q[l * m + i] * q[k * m + i];
+      upper[l * p + k] = dot;
+      for (let i = 0; i < m; i++) q[k * m + i] -= dot * q[l * m + i];
+    }
+    let norm = 0;
+    for (let i = 0; i < m; i++) norm += q[k * m + i] * q[k * m + i];
+    norm = Math.sqrt(norm);
+    upper[k * p + k] = norm;
+    // A column inside the span of the others (two equal taus) gets no weight.
+    for (let i = 0; i < m; i++) q[k * m + i] = norm > 0 ? q[k * m + i] / norm : 0;
+  });
+  const qz = Array.from({ length: p }, (_, k) => {
+    let dot = 0;
+    for (let i = 0; i < m; i++) dot += q[k * m + i] * z[i];
+    return dot;
+  });
+  const coefficients = new Array<number>(p).fill(0);
+  for (let k = p - 1; k >= 0; k--) {
+    let value = qz[k];
+    for (let l = k + 1; l < p; l++) value -= upper[k * p + l] * coefficients[l];
+    coefficients[k] = upper[k * p + k] > 0 ? value / upper[k * p + k] : 0;
+  }
+  return { coefficients, basis: q };
+}
+
+/**
+ * Kaufman's approximation of the Jacobian of the projected residual with
+ * respect to ln tau_j: R_j (I - Q Q^T) dA_j/d ln tau_j, row-major m x n.
+ */
+function kaufmanJacobian(time_s: Float64Array, logTau: Float64Array, fit: ProjectedFit, jacobian: Float64Array): void {
+  const m = time_s.length;
+  const n = logTau.length;
+  const p = fit.passive.length;
+  const column = new Float64Array(m);
+  for (let j = 0; j < n; j++) {
+    const rate = Math.exp(-logTau[j]);
+    for (let i = 0; i < m; i++) {
+      const x = time_s[i] * rate;
+      column[i] = -fit.r[j] * x * Math.exp(-x);
+    }
+    for (let k = 0; k < p; k++) {
+      let dot = 0;
+      for (let i = 0; i < m; i++) dot += fit.basis[k * m + i] * column[i];
+      for (let i = 0; i < m; i++) column[i] -= dot * fit.basis[k * m + i];
+    }
+    for (let i = 0; i < m; i++) jacobian[i * n + j] = column[i];
+  }
 }
 
 function normalEquations(jacobian: Float64Array, residual: Float64Array, m: number, width: number, normal: Float64Array, gradient: Float64Array): void {
