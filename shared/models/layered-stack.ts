@@ -38,12 +38,12 @@ export interface StackLayer {
 export interface LayeredStack {
   name: string;
   layers: readonly StackLayer[];
-  /** Convection or contact resistance from the last layer to the isothermal sink; 0 for none. */
-  sink_resistance_K_per_W: number;
+  /** Convection or contact resistance from the last layer to the isothermal sink; omitted or 0: the last layer's far face is the sink. */
+  sink_resistance_K_per_W?: number;
 }
 
 export interface StackDiscretisation {
-  /** Slices over the whole stack (default 2000). */
+  /** About this many slices over the whole stack (default 2000); each layer's share is rounded and at least the minimum. */
   slices?: number;
   /** Fewest slices in any layer (default 6), so thin layers stay resolved. */
   minimumSlicesPerLayer?: number;
@@ -68,7 +68,7 @@ const DEFAULT_MINIMUM_SLICES_PER_LAYER = 6;
 /** The stack's exact 1-D resistance, junction to sink: per layer L (1/A_start - 1/A_end) / (k ln(A_end/A_start)), plus the sink resistance. */
 export function layeredStackRth(stack: LayeredStack): number {
   assertValidStack(stack);
-  let total = stack.sink_resistance_K_per_W;
+  let total = sinkResistance(stack);
   for (const layer of stack.layers) total += sliceResistance(layer, 0, layer.thickness_m);
   return total;
 }
@@ -77,7 +77,8 @@ export function layeredStackToCauer(stack: LayeredStack, discretisation: StackDi
   assertValidStack(stack);
   const slicesPerLayer = allotSlices(stack, discretisation);
   const sliceCount = slicesPerLayer.reduce((a, b) => a + b, 0);
-  const hasSinkResistance = stack.sink_resistance_K_per_W > 0;
+  const sink_K_per_W = sinkResistance(stack);
+  const hasSinkResistance = sink_K_per_W > 0;
   // Face nodes 0..sliceCount; the last face is the sink itself when there is no sink resistance.
   const nodeCount = hasSinkResistance ? sliceCount + 1 : sliceCount;
   const r_K_per_W = new Float64Array(nodeCount);
@@ -97,7 +98,7 @@ export function layeredStackToCauer(stack: LayeredStack, discretisation: StackDi
     }
   });
   if (hasSinkResistance) {
-    r_K_per_W[sliceCount] = stack.sink_resistance_K_per_W;
+    r_K_per_W[sliceCount] = sink_K_per_W;
     layer_of_stage[sliceCount] = stack.layers.length;
   }
   return { r_K_per_W, c_J_per_K, layer_of_stage };
@@ -141,6 +142,10 @@ function sliceCapacitance(layer: StackLayer, x0: number, x1: number): number {
   return (cvA0 * Math.exp(beta * x0) * Math.expm1(beta * (x1 - x0))) / beta;
 }
 
+function sinkResistance(stack: LayeredStack): number {
+  return stack.sink_resistance_K_per_W ?? 0;
+}
+
 function assertValidStack(stack: LayeredStack): void {
   if (stack.layers.length === 0) throw new HeatpathError('THERMAL_STACK_INVALID', `${stack.name}: no layers`);
   const positive = ['thickness_m', 'conductivity_W_per_mK', 'volumetric_heat_capacity_J_per_m3K', 'area_start_m2', 'area_end_m2'] as const;
@@ -152,7 +157,7 @@ function assertValidStack(stack: LayeredStack): void {
       }
     }
   });
-  const sink = stack.sink_resistance_K_per_W;
+  const sink = sinkResistance(stack);
   if (!(sink >= 0 && Number.isFinite(sink))) {
     throw new HeatpathError('THERMAL_STACK_INVALID', `${stack.name}: sink_resistance_K_per_W = ${sink}`);
   }

@@ -20,30 +20,34 @@
  * +-sigma_i, which span half the decades, and each normalised eigenvector
  * interleaves (v, u) / sqrt(2), so q_1i = sqrt(2) x_1. Only first components
  * are needed, so the O(n^2) Golub-Welsch eigensolver serves ladders of
- * thousands of stages.
+ * thousands of stages. Modes whose R underflows to zero (fine ladders have
+ * modes weighted below 1e-300) carry no heat and are left out.
  */
 import { assertPositiveStages, type CauerLadder, type FosterNetwork } from './rc-network.js';
 import { symmetricTridiagonalEigen } from './tridiagonal-eigen.js';
 
 /** Foster stages sorted by ascending tau. */
 export function cauerToFoster(ladder: CauerLadder): FosterNetwork {
-  const { r_K_per_W: r, c_J_per_K: c } = ladder;
-  assertPositiveStages('Cauer ladder', r, 'R', c, 'C');
-  const n = r.length;
+  const { r_K_per_W: rLadder, c_J_per_K: c } = ladder;
+  assertPositiveStages('Cauer ladder', rLadder, 'R', c, 'C');
+  const n = rLadder.length;
   const golubKahanOffDiagonal = new Float64Array(2 * n - 1);
   for (let k = 0; k < n; k++) {
-    golubKahanOffDiagonal[2 * k] = 1 / Math.sqrt(r[k] * c[k]);
-    if (k < n - 1) golubKahanOffDiagonal[2 * k + 1] = -1 / Math.sqrt(r[k] * c[k + 1]);
+    golubKahanOffDiagonal[2 * k] = 1 / Math.sqrt(rLadder[k] * c[k]);
+    if (k < n - 1) golubKahanOffDiagonal[2 * k + 1] = -1 / Math.sqrt(rLadder[k] * c[k + 1]);
   }
   const { eigenvalues, firstComponents } = symmetricTridiagonalEigen(new Float64Array(2 * n), golubKahanOffDiagonal);
-  const r_K_per_W = new Float64Array(n);
-  const tau_s = new Float64Array(n);
-  // The upper half holds +sigma ascending, so taus descend: fill from the end.
-  for (let i = 0; i < n; i++) {
+  const r: number[] = [];
+  const tau: number[] = [];
+  // The upper half holds +sigma ascending, so walk it down for ascending tau.
+  for (let i = n - 1; i >= 0; i--) {
     const sigma = eigenvalues[n + i];
     const q = Math.SQRT2 * firstComponents[n + i];
-    r_K_per_W[n - 1 - i] = (q * q) / (c[0] * sigma * sigma);
-    tau_s[n - 1 - i] = 1 / (sigma * sigma);
+    const mode_K_per_W = (q * q) / (c[0] * sigma * sigma);
+    if (mode_K_per_W > 0) {
+      r.push(mode_K_per_W);
+      tau.push(1 / (sigma * sigma));
+    }
   }
-  return { r_K_per_W, tau_s };
+  return { r_K_per_W: Float64Array.from(r), tau_s: Float64Array.from(tau) };
 }

@@ -92,8 +92,9 @@ export function symmetricTridiagonalEigen(diagonal: Float64Array, offDiagonal: F
           e[m] = 0;
           break;
         }
-        s = f / r;
-        c = g / r;
+        const inverse = 1 / r;
+        s = f * inverse;
+        c = g * inverse;
         g = d[i + 1] - p;
         r = (d[i] - g) * s + 2 * c * b;
         p = s * r;
