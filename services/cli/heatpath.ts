@@ -3,12 +3,16 @@ import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { HEATPATH_VERSION } from '../../shared/analysis/algorithm-version.js';
 import { runAnalyzeCommand } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
+import { runReprocessCommand } from './reprocess-command.js';
+import { runSubmitCommand } from './submit-command.js';
 
 const overview = `heatpath ${HEATPATH_VERSION}: thermal transient analysis
 
 Commands:
   heatpath analyze FILE...        Zth, spectrum, Foster/Cauer, structure functions, compact model
   heatpath calibrate POINTS.csv   fit a TSP calibration (temperature vs voltage)
+  heatpath submit FILE...         upload transients to a heatpath service (bench scripts)
+  heatpath reprocess DIR          analyse an archive folder, on a service or --local
 
 Run \`heatpath COMMAND --help\` for the options of a command.
 
@@ -20,6 +24,8 @@ type Command = (argv: string[], print: (text: string) => void) => Promise<number
 const commands: Record<string, Command> = {
   analyze: runAnalyzeCommand,
   calibrate: runCalibrateCommand,
+  submit: runSubmitCommand,
+  reprocess: runReprocessCommand,
 };
 
 /** Exit codes: 0 done, 2 the user must fix something (one line on stderr), 1 an internal failure. */

@@ -21,7 +21,7 @@ export const errorCatalogue = {
   INPUT_NEGATIVE_TIME: { status: 400, title: 'A time is negative', hint: 'Times are seconds since the power step, starting at or after zero.' },
   INPUT_DUPLICATE_TIME: { status: 400, title: 'A time appears twice', hint: 'Remove the repeated sample; each time must be unique.' },
   INPUT_TIME_NOT_INCREASING: { status: 400, title: 'Times are not strictly increasing', hint: 'Sort the rows by time_s; the bench file may have been concatenated.' },
-  INPUT_TOO_FEW_POINTS: { status: 422, title: 'Too few samples to analyse', hint: 'Record at least 3 decades of time with at least 10 samples per decade.' },
+  INPUT_TOO_FEW_POINTS: { status: 422, title: 'Too few samples to analyse', hint: 'Send at least 20 samples spanning at least 2 decades of time; a spectrum needs several decades.' },
   INPUT_BAD_JSON: { status: 400, title: 'The JSON is malformed or not of the transient layout', hint: 'Send {"time_s": [...], "temperature_C": [...]} or a channel map such as {"time_s": [...], "voltage_V": {"D1": [...]}}.' },
   INPUT_BAD_FORMAT: { status: 415, title: 'The input format is not supported', hint: 'Send CSV (comma, semicolon or tab separated) or JSON.' },
 

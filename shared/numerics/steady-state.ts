@@ -4,8 +4,13 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * Rth total as the steady-state end of Zth(t): a trimmed mean of the samples
  * in the last STEADY_STATE_WINDOW_FRACTION of the log-time span. It is not the
  * integral of the time-constant spectrum, which noise biases upward at long
- * time constants. A curve still rising over its last decade has not reached
- * steady state, so Rth total is then underestimated and a warning says so.
+ * time constants. A curve still rising at its end has not reached steady
+ * state, so Rth total is then underestimated and a warning says so. The rise
+ * is judged by the least-squares slope of Zth against log10 t over the same
+ * window (a rate per decade at the end of the record), not by the rise over
+ * the whole last decade: a part whose slowest time constant is a tenth of the
+ * record length has settled at the end although Zth still rose a lot during
+ * that decade.
  * The trimmed mean is a standard robust location estimate (Tukey & McLaughlin,
  * Sankhya A 25, 1963): one spike does not move it, and it averages the noise
  * almost as well as the plain mean.
@@ -17,7 +22,7 @@ export const STEADY_STATE_WINDOW_FRACTION = 0.05;
 export const MIN_STEADY_STATE_SAMPLES = 10;
 /** Fraction of the sorted window dropped at each end before averaging. */
 export const STEADY_STATE_TRIM_FRACTION = 0.2;
-/** A rise over the last decade above this fraction of Rth total gets a warning. */
+/** An end slope above this fraction of Rth total per decade gets a warning. */
 export const STEADY_STATE_RISE_LIMIT = 0.01;
 
 export interface SteadyState {
@@ -25,8 +30,8 @@ export interface SteadyState {
   /** First time of the averaged window. */
   window_start_s: number;
   samples: number;
-  /** Rth total minus Zth one decade earlier (same window width, shifted). */
-  last_decade_rise_K_per_W: number;
+  /** Slope of Zth against log10 t over the window: how fast Zth still rises at the end. */
+  end_rise_K_per_W_per_decade: number;
   warnings: string[];
 }
 
@@ -45,16 +50,33 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array):
   const rth_K_per_W = trimmedMean(zth_K_per_W.slice(windowStart));
   if (!(rth_K_per_W > 0)) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${rth_K_per_W.toPrecision(3)} K/W; it must rise from 0 to a positive Rth`);
 
-  const decadeEarlierStart = time_s.findIndex((t) => t >= time_s[windowStart] / 10);
-  const decadeEarlierEnd = Math.max(decadeEarlierStart + 1, time_s.findLastIndex((t) => t <= time_s[count - 1] / 10) + 1);
-  const last_decade_rise_K_per_W = rth_K_per_W - trimmedMean(zth_K_per_W.slice(decadeEarlierStart, decadeEarlierEnd));
+  const end_rise_K_per_W_per_decade = slopePerDecade(time_s, zth_K_per_W, windowStart);
   const warnings: string[] = [];
-  if (last_decade_rise_K_per_W > STEADY_STATE_RISE_LIMIT * rth_K_per_W) {
+  if (end_rise_K_per_W_per_decade > STEADY_STATE_RISE_LIMIT * rth_K_per_W) {
     warnings.push(
-      `Zth still rises by ${((100 * last_decade_rise_K_per_W) / rth_K_per_W).toFixed(1)} % over the last decade: steady state is not reached and Rth total is underestimated; record longer`,
+      `Zth still rises by ${((100 * end_rise_K_per_W_per_decade) / rth_K_per_W).toFixed(1)} % of Rth per decade at the end of the record: steady state is not reached and Rth total is underestimated; record longer`,
     );
   }
-  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, last_decade_rise_K_per_W, warnings };
+  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, end_rise_K_per_W_per_decade, warnings };
+}
+
+/** Least-squares slope of zth against log10 t from `start` to the end. */
+function slopePerDecade(time_s: Float64Array, zth_K_per_W: Float64Array, start: number): number {
+  const n = time_s.length - start;
+  let meanX = 0;
+  let meanY = 0;
+  for (let i = start; i < time_s.length; i++) {
+    meanX += Math.log10(time_s[i]) / n;
+    meanY += zth_K_per_W[i] / n;
+  }
+  let sxy = 0;
+  let sxx = 0;
+  for (let i = start; i < time_s.length; i++) {
+    const dx = Math.log10(time_s[i]) - meanX;
+    sxy += dx * (zth_K_per_W[i] - meanY);
+    sxx += dx * dx;
+  }
+  return sxx > 0 ? sxy / sxx : 0;
 }
 
 function trimmedMean(values: Float64Array): number {

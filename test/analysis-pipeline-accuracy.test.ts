@@ -1,0 +1,71 @@
+/**
+ * Whole-pipeline accuracy on synthetic bench curves of layered 1-D stacks
+ * whose exact Foster form and structure function come from the tridiagonal
+ * eigendecomposition of a fine Cauer ladder (method-notes §7: a truth
+ * generator independent of the analysis). Targets from the project's issue:
+ * P x Rth about 60 K, noise up to 0.02 K RMS, 1 us .. 100 s at 100
+ * samples/decade, an 8 us electrical artefact; Rth total within 0.5 %;
+ * cumulative structure function within 0.02 decades (median) and 0.06
+ * decades (90th percentile) over 5-90 % of Rth total.
+ */
+import { describe, expect, it } from 'vitest';
+import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
+import { layeredStackTruth, type LayeredStack } from '../shared/models/layered-stack.js';
+import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
+import { syntheticTransient } from '../shared/models/synthetic-transient.js';
+import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
+import { createRandom, gaussian } from './support/seeded-random.js';
+import { structureFunctionError } from './support/structure-function-error.js';
+
+const CREATED_AT = '2026-01-01T00:00:00.000Z';
+const TSP = { voltage_at_reference_V: 0.62, sensitivity_V_per_K: -2.0e-3 }; // about -2 mV/K: common practice for a diode at low sense current
+
+function benchCsv(stack: LayeredStack, seed: number, asVoltage: boolean) {
+  const truth = layeredStackTruth(stack);
+  const rth = truth.structure.r_K_per_W[truth.structure.r_K_per_W.length - 1];
+  const power_W = 60 / rth;
+  const random = createRandom(seed);
+  const curve = syntheticTransient(truth.foster, {
+    kind: 'cooling', power_W, reference_temperature_C: 25, first_s: 1e-6, last_s: 100, samples_per_decade: 100,
+    noise_K: 0.02, artefact_s: 8e-6, artefact_K: 4, gaussian: () => gaussian(random),
+    tsp: asVoltage ? TSP : undefined,
+  });
+  const column = asVoltage ? 'voltage_V' : 'temperature_C';
+  const lines = [`time_s,${column}`];
+  for (let i = 0; i < curve.time_s.length; i++) lines.push(`${curve.time_s[i]},${curve.values[i]}`);
+  return { bytes: Buffer.from(lines.join('\n')), power_W, truth, rth };
+}
+
+/** A linear calibration fitted to an exact sweep of the same TSP (25 .. 150 degC). */
+function linearCalibration() {
+  const temperature_C = Float64Array.from({ length: 11 }, (_, i) => 25 + 12.5 * i);
+  const voltage_V = temperature_C.map((t) => TSP.voltage_at_reference_V + TSP.sensitivity_V_per_K * (t - 25));
+  return fitCalibration(temperature_C, voltage_V, 'linear');
+}
+
+const cases = [
+  { stack: SIC_POWER_MODULE_STACK, seed: 11, asVoltage: false },
+  { stack: SIC_POWER_MODULE_STACK, seed: 12, asVoltage: true },
+  { stack: TO247_ON_HEATSINK_STACK, seed: 13, asVoltage: false },
+  { stack: TO247_ON_HEATSINK_STACK, seed: 14, asVoltage: true },
+];
+
+describe('whole pipeline on layered stacks (truth: exact eigendecomposition of the 1-D ladder)', () => {
+  for (const { stack, seed, asVoltage } of cases) {
+    const label = `${stack.name}, ${asVoltage ? 'voltage_V with a linear calibration' : 'temperature_C'}, 0.02 K noise, 8 us artefact`;
+    it(label, () => {
+      const { bytes, power_W, truth, rth } = benchCsv(stack, seed, asVoltage);
+      const [result] = analyzeTransientFile(
+        { bytes, fileName: 'bench.csv', power: { power_W }, calibration: asVoltage ? linearCalibration() : undefined },
+        CREATED_AT,
+      );
+      // Rth total within 0.5 % (issue target).
+      expect(Math.abs(result.rth_total_K_per_W / rth - 1)).toBeLessThan(0.005);
+      // The sqrt(t) window starts after the 8 us artefact.
+      expect(result.early_time.window_start_s).toBeGreaterThanOrEqual(8e-6);
+      const error = structureFunctionError(truth.structure, result.structure.cumulative);
+      expect(error.median_decades).toBeLessThan(0.02);
+      expect(error.p90_decades).toBeLessThan(0.06);
+    });
+  }
+});

@@ -1,0 +1,106 @@
+/**
+ * The `heatpath` command as a user runs it: the compiled binary in a child
+ * process (npm test builds first), on the bundled synthetic demo files.
+ */
+import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+
+const root = join(import.meta.dirname, '..');
+const cli = join(root, 'dist', 'heatpath-cli.mjs'); // the package's bin, as npx runs it
+const demo = join(root, 'test', 'fixtures', 'demo-lab');
+const work = mkdtempSync(join(tmpdir(), 'heatpath-cli-'));
+afterAll(() => rmSync(work, { recursive: true, force: true }));
+
+function heatpath(...args: string[]) {
+  const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work });
+  return { code: run.status, stdout: run.stdout, stderr: run.stderr };
+}
+
+function file(name: string, content: string): string {
+  const path = join(work, name);
+  writeFileSync(path, content);
+  return path;
+}
+
+const goodRows = Array.from({ length: 400 }, (_, i) => {
+  const t = 1e-6 * 10 ** (i / 50);
+  return `${t},${(0.8 * (1 - Math.exp(-t / 1e-3)) + 0.4 * (1 - Math.exp(-t / 0.5))).toFixed(9)}`;
+});
+
+describe('heatpath analyze', () => {
+  it('prints one JSON object per channel with the documented fields and the input hash', () => {
+    const path = join(demo, 'fh-tt1_m07_cooling.csv');
+    const run = heatpath('analyze', path, '--format', 'json');
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+    const lines = run.stdout.trim().split('\n');
+    expect(lines).toHaveLength(1);
+    const result = JSON.parse(lines[0]);
+    for (const key of ['rth_total_K_per_W', 'zth', 'spectrum', 'foster', 'cauer', 'structure', 'compact', 'early_time', 'quality', 'provenance']) {
+      expect(result).toHaveProperty(key);
+    }
+    expect(result.structure.differential).toHaveProperty('k_W2s_per_K2');
+    // SHA-256 as FIPS 180-4 defines it, computed here by node:crypto.
+    expect(result.provenance.input_sha256).toBe(createHash('sha256').update(readFileSync(path)).digest('hex'));
+    expect(result.power_W).toBe(51.3); // from the file's "# power_W:" header
+  });
+
+  it('analyses several files and channels in one call (JSON lines)', () => {
+    const run = heatpath('analyze', join(demo, 'fh-tt1_m21-m22_cooling.csv'), join(demo, 'fh-tt2_q15_heating.json'), '--format', 'json');
+    expect(run.code).toBe(0);
+    const results = run.stdout.trim().split('\n').map((line) => JSON.parse(line));
+    expect(results.map((r) => r.source.channel)).toEqual(['M21', 'M22', '1']);
+    // M22 has the die attach at 70 % conductivity: its Rth is higher than M21's.
+    expect(results[1].rth_total_K_per_W).toBeGreaterThan(results[0].rth_total_K_per_W);
+  });
+
+  it('writes result.json, CSV tables and SPICE netlists with --out', () => {
+    const out = join(work, 'out');
+    const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--out', out);
+    expect(run.code).toBe(0);
+    expect(run.stdout).toContain('Rth total');
+    for (const name of ['result.json', 'zth.csv', 'spectrum.csv', 'foster.csv', 'cauer.csv', 'structure-cumulative.csv', 'structure-differential.csv', 'compact-foster.cir', 'compact-cauer.cir']) {
+      expect(existsSync(join(out, 'fh-tt1_m07_cooling', name)), name).toBe(true);
+    }
+    expect(readFileSync(join(out, 'fh-tt1_m07_cooling', 'compact-cauer.cir'), 'utf8')).toMatch(/\.SUBCKT/i);
+  });
+
+  it('calibrates a TSP and analyses a voltage transient with it', () => {
+    const cal = join(work, 'q12.json');
+    const calibrate = heatpath('calibrate', join(demo, 'fh-tt2_q12_calibration-points.csv'), '--model', 'linear', '--out', cal);
+    expect(calibrate.code).toBe(0);
+    const calibration = JSON.parse(readFileSync(cal, 'utf8'));
+    // The synthetic sweep was made with -2.1 mV/K (generate-demo-data.ts); 0.05 mV noise on 11 points.
+    expect(calibration.sensitivity_mV_per_K).toBeCloseTo(-2.1, 1);
+    const run = heatpath('analyze', join(demo, 'fh-tt2_q12_cooling.csv'), '--calibration', cal, '--format', 'json');
+    expect(run.code).toBe(0);
+    expect(JSON.parse(run.stdout).source.quantity).toBe('voltage_V');
+  });
+});
+
+describe('heatpath user errors: exit code 2 and one line naming file, place and fix, no stack trace', () => {
+  const cases: [string, () => string[], RegExp][] = [
+    ['a missing file', () => ['analyze', join(work, 'nope.csv')], /nope\.csv.*no such file/],
+    ['a non-numeric field', () => ['analyze', file('bad.csv', `time_s,zth_K_per_W\n${goodRows.slice(0, 3).join('\n')}\n1e-1,abc\n`)], /bad\.csv, line 5.*not a number/i],
+    ['time not increasing', () => ['analyze', file('order.csv', `time_s,zth_K_per_W\n${[...goodRows.slice(0, 30), goodRows[10], ...goodRows.slice(30)].join('\n')}\n`)], /order\.csv, line 32/],
+    ['no power for temperature input', () => ['analyze', file('nopower.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`)], /POWER_REQUIRED/],
+    ['voltage without a calibration', () => ['analyze', file('volts.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '10'], /CALIBRATION_REQUIRED/],
+    ['an unknown option', () => ['analyze', 'x.csv', '--bogus'], /CLI_USAGE/],
+    ['a bad method', () => ['analyze', 'x.csv', '--method', 'magic'], /--method must be one of bayes, fourier/],
+    ['points per decade out of range', () => ['analyze', file('ok.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--points-per-decade', '5'], /points_per_decade/],
+    ['a broken calibration file', () => ['analyze', file('ok2.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '1', '--calibration', file('cal.json', '{"model":"linear"}')], /CALIBRATION_BAD_FILE/],
+  ];
+  for (const [what, args, message] of cases) {
+    it(what, () => {
+      const run = heatpath(...args());
+      expect(run.code).toBe(2);
+      expect(run.stderr).toMatch(message);
+      expect(run.stderr.trim().split('\n')).toHaveLength(1);
+      expect(run.stderr).not.toMatch(/\n\s+at /);
+    });
+  }
+});
