@@ -5,6 +5,7 @@ import type { Logger } from 'pino';
 import type { ServiceConfig } from '../config/service-config.js';
 import type { TransientStore } from '../store/transient-store.js';
 import type { AnalysisQueue } from '../../workers/analysis-queue.js';
+import { withQueueDeadline } from './jobs/deadline-queue.js';
 import { apiKeyAuthPlugin } from './plugins/api-key-auth.js';
 import { openApiDocsPlugin } from './plugins/openapi-docs.js';
 import { perKeyRateLimitPlugin } from './plugins/per-key-rate-limit.js';
@@ -35,7 +36,8 @@ export interface AppDependencies {
  * (`listen` in main, `inject` in tests).
  */
 export async function buildApp(deps: AppDependencies) {
-  const { config, logger, store, queue } = deps;
+  const { config, logger, store } = deps;
+  const queue = withQueueDeadline(deps.queue, config.redisAnswerMs);
   const app = Fastify({
     loggerInstance: logger,
     bodyLimit: config.maxUploadBytes,

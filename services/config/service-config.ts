@@ -19,6 +19,7 @@ export const ServiceEnvSchema = Type.Object({
   HEATPATH_API_KEYS_FILE: Type.Optional(Type.String({ minLength: 1, description: 'File with one name:role:token a line (# comments); instead of HEATPATH_API_KEYS.' })),
   HEATPATH_MAX_UPLOAD_BYTES: Type.Integer({ minimum: 1024, default: 32 * 1024 * 1024, description: 'Largest accepted upload body or file in bytes; larger ones get 413.' }),
   HEATPATH_RATE_LIMIT_PER_MINUTE: Type.Integer({ minimum: 1, default: 1200, description: 'Requests per API key per minute; more get 429.' }),
+  HEATPATH_REDIS_ANSWER_MS: Type.Integer({ minimum: 50, default: 2000, description: 'How long an API request waits for Redis; then uploads are answered as stored (queued later) and reads get 503.' }),
   HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: '^[^:]+$', default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
   HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core.' })),
   HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration; a dead worker\'s job is taken over by another after about this long.' }),
@@ -42,6 +43,7 @@ export interface ServiceConfig {
   apiKeys: ApiKey[];
   maxUploadBytes: number;
   rateLimitPerMinute: number;
+  redisAnswerMs: number;
   logLevel: string;
   queue: QueueConfig;
 }
@@ -81,6 +83,7 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env): Service
     apiKeys: keys,
     maxUploadBytes: valid.HEATPATH_MAX_UPLOAD_BYTES,
     rateLimitPerMinute: valid.HEATPATH_RATE_LIMIT_PER_MINUTE,
+    redisAnswerMs: valid.HEATPATH_REDIS_ANSWER_MS,
     logLevel: valid.HEATPATH_LOG_LEVEL,
     queue: {
       prefix: valid.HEATPATH_QUEUE_PREFIX,

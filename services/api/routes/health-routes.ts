@@ -32,7 +32,7 @@ export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
       },
     },
     async (request, reply) => {
-      const [redisReady, storeReady] = await Promise.all([queue.ping(), store.isReady()]);
+      const [redisReady, storeReady] = await Promise.all([queue.ping().catch(() => false), store.isReady()]);
       const checks = { redis: redisReady ? 'ok' : 'unavailable', store: storeReady ? 'ok' : 'unavailable' } as const;
       if (redisReady && storeReady) return { status: 'ready' as const, checks };
       const down = Object.entries(checks).filter(([, state]) => state !== 'ok').map(([name]) => name);

@@ -1,0 +1,212 @@
+import { createServer } from 'node:net';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { LightMyRequestResponse } from 'fastify';
+import { errorCatalogue } from '../shared/errors/error-catalogue.js';
+import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
+import { syntheticTransientCsv } from './support/synthetic-upload.js';
+
+const csv = syntheticTransientCsv(11, 40);
+
+/**
+ * RFC 9457 (Problem Details for HTTP APIs), section 3.1: type, title,
+ * status, detail, instance; status equals the HTTP status; media type
+ * application/problem+json (section 6.1). Plus our stable code.
+ */
+function expectProblem(response: LightMyRequestResponse, status: number, code: keyof typeof errorCatalogue) {
+  expect(response.statusCode, response.body).toBe(status);
+  expect(response.headers['content-type']).toMatch(/^application\/problem\+json/);
+  const problem = response.json();
+  expect(problem).toMatchObject({
+    type: `urn:heatpath:problem:${code}`,
+    title: errorCatalogue[code].title,
+    status,
+    code,
+    hint: errorCatalogue[code].hint,
+    detail: expect.any(String),
+    instance: expect.stringMatching(/^\//),
+    request_id: expect.any(String),
+  });
+  return problem;
+}
+
+function upload(context: ApiTestContext, query: string, body: string | Buffer, headers: Record<string, string> = {}) {
+  return context.app.inject({
+    method: 'POST',
+    url: `/v1/transients?${query}`,
+    headers: { ...bearer('bench'), 'content-type': 'text/csv', ...headers },
+    payload: body,
+  });
+}
+
+function multipart(parts: { name: string; value: string | Buffer; filename?: string; type?: string }[]) {
+  const boundary = 'heatpath-test-boundary';
+  const chunks = parts.flatMap((part) => [
+    `--${boundary}\r\nContent-Disposition: form-data; name="${part.name}"${part.filename ? `; filename="${part.filename}"` : ''}\r\n`,
+    part.type ? `Content-Type: ${part.type}\r\n` : '',
+    '\r\n',
+    part.value,
+    '\r\n',
+  ]);
+  const payload = Buffer.concat([...chunks, `--${boundary}--\r\n`].map((chunk) => Buffer.from(chunk)));
+  return { payload, headers: { 'content-type': `multipart/form-data; boundary=${boundary}` } };
+}
+
+describe('with a real Redis', () => {
+  let context: ApiTestContext;
+  beforeAll(async () => {
+    context = await startApiTestApp({ HEATPATH_MAX_UPLOAD_BYTES: '4096', HEATPATH_RATE_LIMIT_PER_MINUTE: '1000' });
+  });
+  afterAll(async () => context.close());
+  const small = syntheticTransientCsv(12, 10);
+
+  it('400 for a bad CSV names the line and column of the parser', async () => {
+    const lines = small.toString('utf8').split('\n');
+    lines[5] = lines[5].replace(/,.*/, ',twelve');
+    const problem = expectProblem(await upload(context, 'sample_id=S1&power_W=50', lines.join('\n')), 400, 'INPUT_NOT_NUMERIC');
+    expect(problem).toMatchObject({ line: 6, column: 'temperature_C', file: 'upload.csv' });
+  });
+
+  it('400 lists the invalid or unknown query fields instead of dropping them', async () => {
+    const problem = expectProblem(await upload(context, 'sample_id=S1&power_w=50&cycle_count=-3', small), 400, 'REQUEST_INVALID');
+    expect(problem.errors.map((error: { field: string }) => error.field).join(' ')).toMatch(/power_w|cycle_count/);
+    expectProblem(await upload(context, 'power_W=50', small), 400, 'REQUEST_INVALID');
+    expectProblem(await upload(context, 'sample_id=S1&power_W=5&current_A=1&voltage_V=5', small), 400, 'REQUEST_INVALID');
+  });
+
+  it('404 for unknown routes and unknown ids', async () => {
+    expectProblem(await context.app.inject({ url: '/v2/transients', headers: bearer('reader') }), 404, 'ROUTE_NOT_FOUND');
+    expectProblem(await context.app.inject({ url: '/v1/transients/upl-none', headers: bearer('reader') }), 404, 'RESOURCE_NOT_FOUND');
+    expectProblem(await context.app.inject({ url: '/v1/jobs/job-none', headers: bearer('reader') }), 404, 'RESOURCE_NOT_FOUND');
+    expectProblem(await upload(context, `sample_id=S1&power_W=50&calibration_id=${'ab'.repeat(32)}`, small), 404, 'RESOURCE_NOT_FOUND');
+  });
+
+  it('409 when an Idempotency-Key is reused for another upload, and for a result not ready yet', async () => {
+    const first = await upload(context, 'sample_id=S1&power_W=50', small, { 'idempotency-key': 'retry-1' });
+    expect(first.statusCode).toBe(202);
+    const retried = await upload(context, 'sample_id=S1&power_W=50', small, { 'idempotency-key': 'retry-1' });
+    expect(retried.statusCode).toBe(202);
+    expect(retried.headers['idempotent-replayed']).toBe('true');
+    expect(retried.json().upload_id).toBe(first.json().upload_id);
+    expectProblem(await upload(context, 'sample_id=S1&power_W=60', small, { 'idempotency-key': 'retry-1' }), 409, 'IDEMPOTENCY_KEY_REUSED');
+    // No worker runs in this file: the job stays queued.
+    expectProblem(await context.app.inject({ url: first.json().links.result, headers: bearer('reader') }), 409, 'RESULT_NOT_READY');
+  });
+
+  it('413 above HEATPATH_MAX_UPLOAD_BYTES, for raw and multipart bodies', async () => {
+    const large = syntheticTransientCsv(13, 40);
+    expect(large.byteLength).toBeGreaterThan(4096);
+    expectProblem(await upload(context, 'sample_id=S1&power_W=50', large), 413, 'UPLOAD_TOO_LARGE');
+    const form = multipart([
+      { name: 'sample_id', value: 'S1' },
+      { name: 'power_W', value: '50' },
+      { name: 'file', value: large, filename: 'big.csv', type: 'text/csv' },
+    ]);
+    // multipart's own limit; the whole body is not bounded by bodyLimit.
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expectProblem(response, 413, 'UPLOAD_TOO_LARGE');
+  });
+
+  it('415 for a media type the upload does not take', async () => {
+    expectProblem(await upload(context, 'sample_id=S1&power_W=50', '<transient/>', { 'content-type': 'application/xml' }), 415, 'MEDIA_TYPE_UNSUPPORTED');
+  });
+
+  it('422 when the physics is incomplete: no power, or voltage without calibration', async () => {
+    expectProblem(await upload(context, 'sample_id=S1', small), 422, 'POWER_REQUIRED');
+    const voltage = small.toString('utf8').replace('temperature_C', 'voltage_V');
+    expectProblem(await upload(context, 'sample_id=S1&power_W=50', voltage), 422, 'CALIBRATION_REQUIRED');
+  });
+
+  it('accepts multipart with a meta field, stores the metadata and reuses the job of identical content and parameters', async () => {
+    const form = multipart([
+      { name: 'meta', value: JSON.stringify({ sample_id: 'S-mp', bench: 'B2', cycle_count: 5000, tags: ['pc', 'lot7'], power_W: 50 }) },
+      { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(response.statusCode, response.body).toBe(202);
+    const answer = response.json();
+    expect(answer).toMatchObject({ state: 'queued', quantity: 'temperature_C', channels: ['1'] });
+    const stored = await context.store.getUpload(answer.upload_id);
+    expect(stored).toMatchObject({ sample_id: 'S-mp', bench: 'B2', cycle_count: 5000, tags: ['pc', 'lot7'], power: { power_W: 50 }, file_name: 'm.csv' });
+    expect(Buffer.from((await context.store.getBlob(answer.input_sha256))!)).toEqual(small);
+
+    const raw = await upload(context, 'sample_id=S-mp&power_W=50', small);
+    expect(raw.json().job_id).toBe(answer.job_id);
+    expect(raw.json().upload_id).not.toBe(answer.upload_id);
+    const changed = await upload(context, 'sample_id=S-mp&power_W=50&points_per_decade=20', small);
+    expect(changed.json().job_id).not.toBe(answer.job_id);
+  });
+
+  it('fits a calibration, then analyses voltage input with it by id', async () => {
+    const temperature_C = [25, 50, 75, 100, 125, 150];
+    const fitted = await context.app.inject({
+      method: 'POST',
+      url: '/v1/calibrations',
+      headers: bearer('bench'),
+      payload: { model: 'linear', points: { temperature_C, voltage_V: temperature_C.map((t) => 0.7 - 0.002 * (t - 25)) } },
+    });
+    expect(fitted.statusCode, fitted.body).toBe(201);
+    const { calibration_id } = fitted.json();
+    const read = await context.app.inject({ url: `/v1/calibrations/${calibration_id}`, headers: bearer('reader') });
+    expect(read.json().calibration.model).toBe('linear');
+
+    const lines = small.toString('utf8').trim().split('\n');
+    const voltage = ['time_s,voltage_V', ...lines.slice(1).map((line) => {
+      const [t, temperature] = line.split(',');
+      return `${t},${(0.7 - 0.002 * (Number(temperature) - 25)).toFixed(7)}`;
+    })].join('\n');
+    const accepted = await upload(context, `sample_id=S-v&power_W=50&calibration_id=${calibration_id}`, voltage);
+    expect(accepted.statusCode, accepted.body).toBe(202);
+    expect((await context.store.getUpload(accepted.json().upload_id))?.calibration_id).toBe(calibration_id);
+  });
+});
+
+describe('rate limit per key', () => {
+  let context: ApiTestContext;
+  beforeAll(async () => {
+    context = await startApiTestApp({ HEATPATH_RATE_LIMIT_PER_MINUTE: '3' });
+  });
+  afterAll(async () => context.close());
+
+  it('429 after the budget of one key; other keys keep theirs', async () => {
+    for (let i = 0; i < 3; i++) expect((await context.app.inject({ url: '/v1/batches', headers: bearer('reader') })).statusCode).toBe(200);
+    const limited = await context.app.inject({ url: '/v1/batches', headers: bearer('reader') });
+    expectProblem(limited, 429, 'RATE_LIMITED');
+    expect(Number(limited.headers['retry-after'])).toBeGreaterThan(0);
+    expect((await context.app.inject({ url: '/v1/batches', headers: bearer('admin') })).statusCode).toBe(200);
+  });
+});
+
+describe('with Redis down', () => {
+  let context: ApiTestContext;
+  beforeAll(async () => {
+    context = await startApiTestApp({ REDIS_URL: `redis://127.0.0.1:${await closedPort()}`, HEATPATH_REDIS_ANSWER_MS: '300' });
+  });
+  afterAll(async () => context.close());
+
+  it('still stores the upload and answers 202 state "stored"', async () => {
+    const response = await upload(context, 'sample_id=S-down&power_W=50', csv);
+    expect(response.statusCode, response.body).toBe(202);
+    const answer = response.json();
+    expect(answer.state).toBe('stored');
+    expect(await context.store.getUpload(answer.upload_id)).toMatchObject({ sample_id: 'S-down', job_id: answer.job_id });
+    expect(Buffer.from((await context.store.getBlob(answer.input_sha256))!)).toEqual(csv);
+    const shown = await context.app.inject({ url: answer.links.self, headers: bearer('reader') });
+    expect(shown.json().job.state).toBe('stored');
+  });
+
+  it('503 where only Redis knows the answer, and /health/ready says which check failed', async () => {
+    expectProblem(await context.app.inject({ url: '/v1/jobs/job-unknown', headers: bearer('reader') }), 503, 'SERVICE_UNAVAILABLE');
+    const ready = await context.app.inject({ url: '/health/ready' });
+    expect(expectProblem(ready, 503, 'SERVICE_UNAVAILABLE').checks).toEqual({ redis: 'unavailable', store: 'ok' });
+    expect((await context.app.inject({ url: '/health/live' })).statusCode).toBe(200);
+  });
+});
+
+/** A loopback port nothing listens on (taken, then released). */
+async function closedPort(): Promise<number> {
+  const server = createServer();
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+  const { port } = server.address() as { port: number };
+  await new Promise((resolve) => server.close(resolve));
+  return port;
+}
