@@ -129,6 +129,13 @@ describe('Foster to Cauer and back', () => {
     expect(maxRelativeDifference(ladder.c_J_per_K, new Float64Array(300).fill(0.05))).toBeLessThan(1e-9);
   });
 
+  it('gives a uniform ladder its closed-form Foster form', () => {
+    const expected = uniformLadderFoster(500, 0.01, 0.2);
+    const foster = cauerToFoster({ r_K_per_W: new Float64Array(500).fill(0.01), c_J_per_K: new Float64Array(500).fill(0.2) });
+    expect(maxRelativeDifference(foster.tau_s, expected.tau_s)).toBeLessThan(1e-10);
+    expect(maxRelativeDifference(foster.r_K_per_W, expected.r_K_per_W)).toBeLessThan(1e-8);
+  });
+
   it('gives the Carslaw & Jaeger slab a straight cumulative structure function with K = c_v k A^2', () => {
     // Copper slab (handbook values, memory): k = 398 W/(m K), c_v = 3.45e6 J/(m^3 K), 1 cm^2, 2 mm.
     const k = 398;
