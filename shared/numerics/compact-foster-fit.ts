@@ -33,7 +33,7 @@ const RELATIVE_IMPROVEMENT_STOP = 1e-10;
 /** The starting taus cover the times in which Zth rises between these fractions of its last value. */
 const RISE_START_FRACTION = 0.02;
 const RISE_END_FRACTION = 0.98;
-/** ln tau may range this many e-folds beyond the sampled times. */
+/** ln tau may range three decades beyond the sampled times either way. */
 const LOG_TAU_MARGIN = Math.log(1e3);
 
 export function fitCompactFoster(time_s: Float64Array, zth_K_per_W: Float64Array, stages: number): CompactFosterFit {
