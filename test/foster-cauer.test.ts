@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
 import { create, all, type BigNumber } from 'mathjs';
 import { fosterToCauer } from '../shared/numerics/foster-to-cauer.js';
 import { cauerToFoster } from '../shared/numerics/cauer-to-foster.js';
@@ -155,6 +156,33 @@ describe('Foster to Cauer and back', () => {
       checked++;
     }
     expect(checked).toBeGreaterThan(100);
+  });
+
+  it('property: for random networks the ladder has the Foster impedance at every frequency and all elements positive', () => {
+    const stage = fc.record({ r: fc.double({ min: 1e-6, max: 10, noNaN: true }), logTau: fc.double({ min: -7, max: 2, noNaN: true }) });
+    fc.assert(
+      fc.property(fc.array(stage, { minLength: 1, maxLength: 40 }), (stages) => {
+        const foster: FosterNetwork = {
+          r_K_per_W: Float64Array.from(stages, (x) => x.r),
+          tau_s: Float64Array.from(stages, (x) => 10 ** x.logTau),
+        };
+        const ladder = fosterToCauer(foster);
+        for (let k = 0; k < ladder.r_K_per_W.length; k++) {
+          expect(ladder.r_K_per_W[k]).toBeGreaterThan(0);
+          expect(ladder.c_J_per_K[k]).toBeGreaterThan(0);
+        }
+        for (const s of [1e-3, 1, 1e3, 1e6]) {
+          // Circuit theory: the ladder's input impedance by the continued fraction
+          // Z_k = 1 / (s C_k + 1 / (R_k + Z_{k+1})) equals the Foster sum R_i / (1 + s tau_i).
+          let zLadder = 0;
+          for (let k = ladder.r_K_per_W.length - 1; k >= 0; k--) zLadder = 1 / (s * ladder.c_J_per_K[k] + 1 / (ladder.r_K_per_W[k] + zLadder));
+          let zFoster = 0;
+          for (let i = 0; i < stages.length; i++) zFoster += foster.r_K_per_W[i] / (1 + s * foster.tau_s[i]);
+          expect(Math.abs(zLadder / zFoster - 1)).toBeLessThan(1e-8);
+        }
+      }),
+      { numRuns: 200, seed: 20261201 },
+    );
   });
 
   it('drops zero-R stages and merges duplicate taus', () => {
