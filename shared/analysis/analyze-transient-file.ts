@@ -10,6 +10,7 @@ import { steadyStateRth } from '../numerics/steady-state.js';
 import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
 import { fosterToCauer } from '../numerics/foster-to-cauer.js';
 import { cumulativeStructureFunction, differentialStructureFunction } from '../numerics/structure-function.js';
+import { cutAtSink } from '../numerics/structure-function-sink.js';
 import { fitCompactFoster } from '../numerics/compact-foster-fit.js';
 import { fosterNetlist, cauerNetlist } from '../numerics/spice-netlist.js';
 import type { CauerLadder, FosterNetwork } from '../numerics/rc-network.js';
@@ -114,7 +115,7 @@ function analyzeChannel(
 
   const foster = fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W);
   const cauer = fosterToCauer(foster);
-  const cumulative = cumulativeStructureFunction(cauer);
+  const cumulative = cutAtSink(cumulativeStructureFunction(cauer));
   const differential = differentialStructureFunction(cumulative);
 
   const compact = fitCompactFoster(time_s, zth.zth_K_per_W, parameters.compact_stages);
