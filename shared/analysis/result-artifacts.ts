@@ -1,4 +1,5 @@
 import type { AnalysisResult } from '../schemas/analysis-result.js';
+import { resultPlots } from './result-plots.js';
 
 /** A file derived from a result: what the CLI writes with --out and the service serves as an artifact. */
 export interface ResultArtifact {
@@ -9,9 +10,10 @@ export interface ResultArtifact {
 
 const CSV = 'text/csv; charset=utf-8';
 const SPICE = 'text/plain; charset=utf-8';
+const SVG = 'image/svg+xml';
 
 /**
- * The tables and netlists of one result. Names are stable: scripts and the
+ * The tables, netlists and plots of one result. Names are stable: scripts and the
  * LIMS fetch them by name. CSV columns carry their units in the header.
  */
 export function resultArtifacts(result: AnalysisResult): ResultArtifact[] {
@@ -46,6 +48,7 @@ export function resultArtifacts(result: AnalysisResult): ResultArtifact[] {
     },
     { name: 'compact-foster.cir', media_type: SPICE, content: result.compact.spice.foster },
     { name: 'compact-cauer.cir', media_type: SPICE, content: result.compact.spice.cauer },
+    ...resultPlots(result).map((plot) => ({ name: plot.name, media_type: SVG, content: plot.svg })),
   ];
 }
 
