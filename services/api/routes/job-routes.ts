@@ -63,9 +63,10 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
         response: { 200: ResultRecordSchema },
       },
     },
-    async (request) => {
+    async (request, reply) => {
       const record = await requireResult(request.params.job_id);
-      return { ...record, results: record.results as AnalysisResult[] };
+      // JSON.stringify, as the CLI prints results: the schema documents them, it does not reshape them.
+      return reply.serializer(JSON.stringify).send({ ...record, results: record.results as AnalysisResult[] });
     },
   );
 

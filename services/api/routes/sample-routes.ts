@@ -54,7 +54,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         response: { 200: Type.Object({ sample_id: Type.String(), transients: Type.Array(SampleEntrySchema) }) },
       },
     },
-    async (request) => {
+    async (request, reply) => {
       const { sample_id } = request.params;
       const { include_results } = request.query;
       const [uploads, batches] = await Promise.all([store.listUploads({ sample_id }), store.listBatches()]);
@@ -78,7 +78,8 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
           links: uploadLinks(upload),
         })),
       );
-      return { sample_id, transients };
+      // Embedded results go out as JSON.stringify writes them, as on /v1/jobs/:job_id/result.
+      return reply.serializer(JSON.stringify).send({ sample_id, transients });
     },
   );
 };
