@@ -39,6 +39,10 @@ export const errorCatalogue = {
   POWER_REQUIRED: { status: 422, title: 'The heating power is missing', hint: 'Give the power (--power-w) or current and voltage (--current-a and --voltage-v); zth_K_per_W input needs none.' },
   ANALYSIS_NOT_ANALYSABLE: { status: 422, title: 'The transient cannot be analysed', hint: 'Check that the curve is a cooling or heating transient of the stated kind and spans several decades of time.' },
 
+  // ---- comparing two measurements (dual-interface Rth-JC, degradation) ----
+  COMPARISON_NO_OVERLAP: { status: 422, title: 'The two measurements share no common range to compare', hint: 'Measure both curves the same way (same time window and sampling) on the same device, so that their Zth times and C_sum ranges overlap.' },
+  COMPARISON_SEVERAL_CHANNELS: { status: 422, title: 'A file to compare holds more than one channel', hint: 'Give one single-channel file per measurement: split the channels into files of their own.' },
+
   // ---- RC networks, thermal models and their numerics ----
   RC_NETWORK_INVALID: { status: 422, title: 'An RC network is not valid', hint: 'Give arrays of equal length with at least one stage, every R (K/W), C (J/K) and tau (s) finite and positive.' },
   THERMAL_STACK_INVALID: { status: 400, title: 'A layered stack description is not valid', hint: 'Give at least one layer, each with positive thickness_m, conductivity_W_per_mK, volumetric_heat_capacity_J_per_m3K, area_start_m2 and area_end_m2; the sink resistance must be finite and not negative.' },

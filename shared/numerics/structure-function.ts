@@ -75,14 +75,7 @@ export function differentialStructureFunction(cumulative: CumulativeStructureFun
   const cLast = cSum[cSum.length - 1];
   const intervals = Math.max(1, Math.ceil(Math.log10(cLast / cFirst) * pointsPerDecade));
   const gridC = Float64Array.from({ length: intervals + 1 }, (_, j) => (j === intervals ? cLast : cFirst * (cLast / cFirst) ** (j / intervals)));
-  const gridR = new Float64Array(intervals + 1);
-  // Walk the cumulative points once: the first segment reaching each grid C.
-  let k = 0;
-  for (let j = 0; j <= intervals; j++) {
-    const c = gridC[j];
-    while (k < cSum.length - 1 && cSum[k] < c) k++;
-    gridR[j] = k === 0 ? rSum[0] : rSum[k - 1] + ((rSum[k] - rSum[k - 1]) * (c - cSum[k - 1])) / (cSum[k] - cSum[k - 1]);
-  }
+  const gridR = cumulativeRSumAtC(cumulative, gridC);
   const r_K_per_W = new Float64Array(intervals);
   const k_W2s_per_K2 = new Float64Array(intervals);
   for (let j = 0; j < intervals; j++) {
@@ -90,4 +83,21 @@ export function differentialStructureFunction(cumulative: CumulativeStructureFun
     k_W2s_per_K2[j] = (gridC[j + 1] - gridC[j]) / (gridR[j + 1] - gridR[j]);
   }
   return { r_K_per_W, k_W2s_per_K2 };
+}
+
+/**
+ * R_sum of a cumulative structure function at increasing C_sum values, read
+ * piecewise linear in C_sum: the first segment reaching each C, found by one
+ * walk over the points.
+ */
+export function cumulativeRSumAtC(cumulative: CumulativeStructureFunction, c_J_per_K: Float64Array): Float64Array {
+  const { r_K_per_W: rSum, c_J_per_K: cSum } = cumulative;
+  const out = new Float64Array(c_J_per_K.length);
+  let k = 0;
+  for (let j = 0; j < c_J_per_K.length; j++) {
+    const c = c_J_per_K[j];
+    while (k < cSum.length - 1 && cSum[k] < c) k++;
+    out[j] = k === 0 ? rSum[0] : rSum[k - 1] + ((rSum[k] - rSum[k - 1]) * (c - cSum[k - 1])) / (cSum[k] - cSum[k - 1]);
+  }
+  return out;
 }

@@ -1,0 +1,229 @@
+/**
+ * Junction-to-case thermal resistance by the transient dual interface method
+ * (JESD51-14, 2010): the same device is measured twice on a cold plate, with
+ * two different interfaces between case and plate (for example dry and with
+ * thermal grease), both transients taken the same way. Heat flows through
+ * the same package in both until it reaches the case surface, so the two Zth
+ * curves, and the two structure functions, coincide up to there and separate
+ * beyond (method-notes §6). Two criteria locate the separation:
+ *
+ * Zth difference. Both curves are resampled onto one uniform log-time grid
+ * (shared/numerics/log-time-grid.ts) and delta(t) = |Zth_higher - Zth_lower|
+ * is compared with the threshold epsilon = slope * Rth-JC + offset, where
+ * Rth-JC is taken as Zth_lower at the same time: the threshold is implicit in
+ * the answer, so it is solved by scanning the grid for the first time where
+ * delta - (slope * Zth_lower + offset) turns positive for good. The defaults
+ * slope 0.0045 and offset 0.003 K/W are recalled from JESD51-14 (2010)
+ * *(memory)*: check them against the standard; they are parameters.
+ * The noise of delta is propagated from the RMS noise of the raw curves
+ * (shared/numerics/noise-estimate.ts) through the resampling, and reported.
+ *
+ * Structure functions. The point where the two cumulative structure
+ * functions part at equal C_sum: the same test as a degradation shift
+ * (shared/numerics/structure-function-shift.ts), with the lower curve as the
+ * reference; Rth-JC is its R_sum there.
+ *
+ * Why the two disagree: Zth(t) at the separation time is not the R_sum of the
+ * case surface; by the time the changed interface makes a measurable
+ * difference, part of the heat has been stored in the case and Zth lags or
+ * leads the steady-state resistance of the path. JESD51-14 itself discusses
+ * this systematic deviation of the method *(memory)*; a large disagreement
+ * is reported as a warning, not resolved.
+ */
+import { HeatpathError } from '../errors/heatpath-error.js';
+import { resampleOnLogTimeGrid, type LogTimeGrid } from './log-time-grid.js';
+import { estimateNoiseRms } from './noise-estimate.js';
+import { median } from './median.js';
+import { optionsWithDefaults } from './options-with-defaults.js';
+import { firstPersistentExceedance, valueAtPosition } from './persistent-exceedance.js';
+import type { CumulativeStructureFunction } from './structure-function.js';
+import { structureFunctionShift, type StructureFunctionShiftOptions } from './structure-function-shift.js';
+
+/** One measurement: its Zth curve at the raw sample times and its cumulative structure function. */
+export interface InterfaceMeasurement {
+  time_s: Float64Array;
+  zth_K_per_W: Float64Array;
+  structure: CumulativeStructureFunction;
+}
+
+export interface DualInterfaceOptions {
+  /** epsilon = epsilonSlope * Rth-JC + epsilonOffset_K_per_W; 0.0045 recalled from JESD51-14 (2010) (memory). */
+  epsilonSlope?: number;
+  /** 0.003 K/W recalled from JESD51-14 (2010) (memory). */
+  epsilonOffset_K_per_W?: number;
+  /** Density of the common log-time grid. */
+  pointsPerDecade?: number;
+  /** delta must stay above epsilon over this many consecutive grid points. */
+  persistPoints?: number;
+  /** Warn when the two estimates differ by more than this fraction of their mean. */
+  agreementFraction?: number;
+  /** The structure-function criterion's threshold and grid. */
+  structure?: StructureFunctionShiftOptions;
+}
+
+export const DUAL_INTERFACE_DEFAULTS: Required<Omit<DualInterfaceOptions, 'structure'>> & Pick<DualInterfaceOptions, 'structure'> = {
+  epsilonSlope: 0.0045,
+  epsilonOffset_K_per_W: 0.003,
+  pointsPerDecade: 20,
+  persistPoints: 3,
+  agreementFraction: 0.15,
+};
+
+export interface DualInterfaceRthjc {
+  /** Which measurement has the lower Zth at late times (the better interface): the reference of both criteria. */
+  lower: 'first' | 'second';
+  zth_criterion: {
+    rthjc_K_per_W: number | null;
+    separation_time_s: number | null;
+    /** epsilon at the separation. */
+    epsilon_K_per_W: number | null;
+    epsilon_slope: number;
+    epsilon_offset_K_per_W: number;
+    /** Median over the grid of the standard deviation of delta propagated from the raw curves' noise. */
+    delta_noise_K_per_W: number;
+    time_s: Float64Array;
+    delta_K_per_W: Float64Array;
+    lower_zth_K_per_W: Float64Array;
+  };
+  structure_criterion: {
+    rthjc_K_per_W: number | null;
+    separation_c_J_per_K: number | null;
+    threshold_K_per_W: number;
+    scatter_K_per_W: number;
+    c_J_per_K: Float64Array;
+    lower_r_K_per_W: Float64Array;
+    higher_r_K_per_W: Float64Array;
+  };
+  warnings: string[];
+}
+
+export function dualInterfaceRthjc(first: InterfaceMeasurement, second: InterfaceMeasurement, options: DualInterfaceOptions = {}): DualInterfaceRthjc {
+  const settings = optionsWithDefaults(DUAL_INTERFACE_DEFAULTS, options);
+  assertSettings(settings);
+  const warnings: string[] = [];
+
+  const gridFirst = resampleOnLogTimeGrid(first.time_s, first.zth_K_per_W, settings.pointsPerDecade);
+  const gridSecond = resampleOnLogTimeGrid(second.time_s, second.zth_K_per_W, settings.pointsPerDecade);
+  const common = onCommonNodes(gridFirst, gridSecond);
+  const last = common.z.length - 1;
+  const lower = common.first[last] <= common.second[last] ? 'first' : 'second';
+  const [lowerZth, higherZth] = lower === 'first' ? [common.first, common.second] : [common.second, common.first];
+  const lowerMeasurement = lower === 'first' ? first : second;
+  const higherMeasurement = lower === 'first' ? second : first;
+
+  const time_s = Float64Array.from(common.z, Math.exp);
+  const delta_K_per_W = Float64Array.from(lowerZth, (a, k) => Math.abs(higherZth[k] - a));
+  const epsilon = (rthjc: number) => settings.epsilonSlope * rthjc + settings.epsilonOffset_K_per_W;
+  const excess = Float64Array.from(delta_K_per_W, (d, k) => d - epsilon(lowerZth[k]));
+  const noiseFirst = estimateNoiseRms(first.zth_K_per_W);
+  const noiseSecond = estimateNoiseRms(second.zth_K_per_W);
+  const deltaSigma = Float64Array.from(common.z, (_, k) => Math.sqrt(common.firstVariance[k] * noiseFirst ** 2 + common.secondVariance[k] * noiseSecond ** 2));
+  const delta_noise_K_per_W = median(deltaSigma);
+
+  const found = firstPersistentExceedance(excess, settings.persistPoints);
+  let zthRthjc: number | null = null;
+  let separation_time_s: number | null = null;
+  let epsilonAtSeparation: number | null = null;
+  if (found === null) {
+    warnings.push(`Zth criterion: delta never stays above epsilon = ${settings.epsilonSlope} x Rth-JC + ${settings.epsilonOffset_K_per_W} K/W: no separation found (same interface twice?)`);
+  } else if (found.index === 0) {
+    warnings.push('Zth criterion: the curves differ already at the earliest common time: different devices, powers, calibrations or early-time corrections, not the interface; no Rth-JC');
+  } else {
+    zthRthjc = valueAtPosition(lowerZth, found.position);
+    separation_time_s = Math.exp(valueAtPosition(common.z, found.position));
+    epsilonAtSeparation = epsilon(zthRthjc);
+    if (epsilonAtSeparation < 3 * delta_noise_K_per_W) {
+      warnings.push(`Zth criterion: epsilon ${epsilonAtSeparation.toPrecision(2)} K/W is within 3 sigma of the noise of delta (${delta_noise_K_per_W.toPrecision(2)} K/W): the separation time is noise-limited`);
+    }
+  }
+
+  const shift = structureFunctionShift(lowerMeasurement.structure, higherMeasurement.structure, settings.structure ?? {});
+  let structureRthjc: number | null = null;
+  let separation_c_J_per_K: number | null = null;
+  if (shift.start === null) {
+    warnings.push('structure-function criterion: the structure functions do not separate above their threshold: no separation found');
+  } else if (shift.start.grid_index === 0) {
+    warnings.push('structure-function criterion: the structure functions differ already next to the junction: different devices, powers or calibrations; no Rth-JC');
+  } else {
+    structureRthjc = shift.start.reference_r_K_per_W;
+    separation_c_J_per_K = shift.start.c_J_per_K;
+  }
+
+  if (zthRthjc !== null && structureRthjc !== null) {
+    const disagreement = Math.abs(zthRthjc - structureRthjc) / ((zthRthjc + structureRthjc) / 2);
+    if (disagreement > settings.agreementFraction) {
+      warnings.push(`the two criteria disagree by ${(100 * disagreement).toFixed(0)} % (more than ${(100 * settings.agreementFraction).toFixed(0)} %): check the interfaces, the clamping and the early-time correction; repeat the measurement`);
+    }
+  }
+
+  return {
+    lower,
+    zth_criterion: {
+      rthjc_K_per_W: zthRthjc,
+      separation_time_s,
+      epsilon_K_per_W: epsilonAtSeparation,
+      epsilon_slope: settings.epsilonSlope,
+      epsilon_offset_K_per_W: settings.epsilonOffset_K_per_W,
+      delta_noise_K_per_W,
+      time_s,
+      delta_K_per_W,
+      lower_zth_K_per_W: lowerZth,
+    },
+    structure_criterion: {
+      rthjc_K_per_W: structureRthjc,
+      separation_c_J_per_K,
+      threshold_K_per_W: shift.threshold_K_per_W,
+      scatter_K_per_W: shift.scatter_K_per_W,
+      c_J_per_K: shift.c_J_per_K,
+      lower_r_K_per_W: shift.reference_r_K_per_W,
+      higher_r_K_per_W: shift.later_r_K_per_W,
+    },
+    warnings: [...warnings, ...shift.warnings.map((w) => `structure-function criterion: ${w}`)],
+  };
+}
+
+interface CommonNodes {
+  z: Float64Array;
+  first: Float64Array;
+  second: Float64Array;
+  firstVariance: Float64Array;
+  secondVariance: Float64Array;
+}
+
+/**
+ * The first grid's nodes inside the time range both curves cover, with the
+ * second grid read there. Both grids have the same spacing, so when the
+ * curves start at the same time (the usual case: one bench, one setting) the
+ * nodes coincide and nothing is interpolated.
+ */
+function onCommonNodes(first: LogTimeGrid, second: LogTimeGrid): CommonNodes {
+  const zLow = Math.max(first.z[0], second.z[0]);
+  const zHigh = Math.min(first.z[first.z.length - 1], second.z[second.z.length - 1]);
+  const tolerance = 1e-9 * first.dz;
+  const nodes: number[] = [];
+  for (let k = 0; k < first.z.length; k++) if (first.z[k] >= zLow - tolerance && first.z[k] <= zHigh + tolerance) nodes.push(k);
+  if (nodes.length < 2) {
+    throw new HeatpathError('COMPARISON_NO_OVERLAP', `the Zth curves share no time range (${Math.exp(zLow).toPrecision(3)} s .. ${Math.exp(zHigh).toPrecision(3)} s)`);
+  }
+  const positionInSecond = (z: number) => Math.min(second.z.length - 1, Math.max(0, (z - second.z[0]) / second.dz));
+  return {
+    z: Float64Array.from(nodes, (k) => first.z[k]),
+    first: Float64Array.from(nodes, (k) => first.a[k]),
+    firstVariance: Float64Array.from(nodes, (k) => first.varianceFactor[k]),
+    second: Float64Array.from(nodes, (k) => valueAtPosition(second.a, positionInSecond(first.z[k]))),
+    secondVariance: Float64Array.from(nodes, (k) => valueAtPosition(second.varianceFactor, positionInSecond(first.z[k]))),
+  };
+}
+
+function assertSettings(settings: typeof DUAL_INTERFACE_DEFAULTS): void {
+  const checks: [string, number, boolean][] = [
+    ['epsilonSlope', settings.epsilonSlope, settings.epsilonSlope >= 0],
+    ['epsilonOffset_K_per_W', settings.epsilonOffset_K_per_W, settings.epsilonOffset_K_per_W > 0],
+    ['pointsPerDecade', settings.pointsPerDecade, settings.pointsPerDecade > 0],
+    ['persistPoints', settings.persistPoints, Number.isInteger(settings.persistPoints) && settings.persistPoints >= 1],
+    ['agreementFraction', settings.agreementFraction, settings.agreementFraction > 0],
+  ];
+  for (const [name, value, ok] of checks) {
+    if (!(ok && Number.isFinite(value))) throw new HeatpathError('PARAM_INVALID', `dual interface Rth-JC: ${name} = ${value}`);
+  }
+}
