@@ -23,7 +23,7 @@ function configError(env: NodeJS.ProcessEnv): HeatpathError {
 describe('loadServiceConfig', () => {
   it('applies the documented defaults and keeps only token hashes', () => {
     const config = loadServiceConfig({ HEATPATH_API_KEYS: `bench1:bench:${benchToken}` });
-    expect(config).toMatchObject({ port: 8080, host: '127.0.0.1', redisUrl: 'redis://127.0.0.1:6379', maxUploadBytes: 32 * 1024 * 1024 });
+    expect(config).toMatchObject({ port: 8080, host: '127.0.0.1', redisUrl: 'redis://127.0.0.1:6379', maxUploadBytes: 32 * 1024 * 1024, rateLimitPerMinute: 1200, redisAnswerMs: 2000 });
     expect(config.dataDir).toBe(join(process.cwd(), '.heatpath-data'));
     expect(config.apiKeys).toEqual([{ name: 'bench1', role: 'bench', tokenSha256: sha256(benchToken) }]);
     expect(JSON.stringify(config)).not.toContain(benchToken);

@@ -18,7 +18,9 @@ export const problemDetailsPlugin = fastifyPlugin(async function problemDetails(
   });
 
   app.setErrorHandler((error: FastifyError, request, reply) => {
-    const heatpathError = toHeatpathError(error);
+    const heatpathError = error.code === 'FST_ERR_CTP_INVALID_MEDIA_TYPE'
+      ? new HeatpathError('MEDIA_TYPE_UNSUPPORTED', `Content-Type ${request.headers['content-type'] ?? '(none)'} is not accepted by ${request.method} ${request.routeOptions.url}`)
+      : toHeatpathError(error);
     if (heatpathError.status >= 500) request.log.error({ err: error }, 'request failed');
     else request.log.info({ code: heatpathError.code, detail: heatpathError.detail }, 'request refused');
     return sendProblem(request, reply, heatpathError, validationErrors(error));

@@ -1,0 +1,89 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
+import { syntheticTransientCsv } from './support/synthetic-upload.js';
+
+let context: ApiTestContext;
+beforeAll(async () => {
+  context = await startApiTestApp({ HEATPATH_WEBHOOK_ALLOWLIST: 'http://127.0.0.1:9' });
+});
+afterAll(async () => context.close());
+
+const post = (url: string, payload: object, role: 'admin' | 'bench' = 'admin') => context.app.inject({ method: 'POST', url, headers: bearer(role), payload });
+
+describe('webhooks', () => {
+  it('registers an allowed URL once with its secret, lists it without, removes it', async () => {
+    const created = await post('/v1/webhooks', { url: 'http://127.0.0.1:9/lims/hook', events: ['job.completed'] });
+    expect(created.statusCode, created.body).toBe(201);
+    const webhook = created.json();
+    expect(webhook).toMatchObject({ url: 'http://127.0.0.1:9/lims/hook', events: ['job.completed'], created_by: 'admin-key' });
+    expect(webhook.secret).toMatch(/^[0-9a-f]{64}$/);
+    expect(created.headers.location).toBe(`/v1/webhooks/${webhook.webhook_id}`);
+
+    const listed = (await context.app.inject({ url: '/v1/webhooks', headers: bearer('admin') })).json();
+    expect(listed.webhooks).toEqual([expect.objectContaining({ webhook_id: webhook.webhook_id })]);
+    expect(JSON.stringify(listed)).not.toContain(webhook.secret);
+
+    const removed = await context.app.inject({ method: 'DELETE', url: `/v1/webhooks/${webhook.webhook_id}`, headers: bearer('admin') });
+    expect(removed.statusCode).toBe(204);
+    const again = await context.app.inject({ method: 'DELETE', url: `/v1/webhooks/${webhook.webhook_id}`, headers: bearer('admin') });
+    expect(again.json()).toMatchObject({ status: 404, code: 'RESOURCE_NOT_FOUND' });
+  });
+
+  it('refuses URLs off the allowlist (422) and unknown fields (400)', async () => {
+    expect((await post('/v1/webhooks', { url: 'http://10.0.0.1:9/hook' })).json()).toMatchObject({ status: 422, code: 'WEBHOOK_URL_NOT_ALLOWED' });
+    expect((await post('/v1/webhooks', { url: 'http://127.0.0.1:9/x', secret: 'mine' })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
+  });
+});
+
+describe('batches', () => {
+  it('refuses an empty selection (422) and a malformed time (400)', async () => {
+    expect((await post('/v1/batches', { selection: { sample_id: 'NO-SUCH-SAMPLE' } })).json()).toMatchObject({ status: 422, code: 'BATCH_SELECTION_EMPTY' });
+    expect((await post('/v1/batches', { selection: { received_from: 'yesterday' } })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
+  });
+
+  it('creates a batch over stored uploads, lists it and cancels it', async () => {
+    const uploaded = await context.app.inject({
+      method: 'POST',
+      url: '/v1/transients?sample_id=B-1&power_W=50&tags=lot9',
+      headers: { ...bearer('bench'), 'content-type': 'text/csv' },
+      payload: syntheticTransientCsv(41, 10),
+    });
+    expect(uploaded.statusCode).toBe(202);
+    const created = await post('/v1/batches', { selection: { tag: 'lot9' }, parameters: { method: 'fourier' } });
+    expect(created.statusCode, created.body).toBe(202);
+    const batch = created.json();
+    // No worker runs here: the job waits.
+    expect(batch).toMatchObject({ status: 'running', total: 1, done: 0, failed: 0, pending: 1 });
+    expect((await context.app.inject({ url: '/v1/batches', headers: bearer('reader') })).json().batches).toEqual([
+      expect.objectContaining({ batch_id: batch.batch_id }),
+    ]);
+    const cancelled = await post(batch.links.cancel, {});
+    expect(cancelled.json()).toMatchObject({ batch_id: batch.batch_id, status: 'cancelled' });
+    expect((await post('/v1/batches/batch-none/cancel', {})).json()).toMatchObject({ status: 404 });
+  });
+});
+
+describe('calibrations', () => {
+  const temperature_C = [20, 45, 70, 95, 120, 145];
+  const voltage_V = temperature_C.map((t) => 0.65 - 0.0021 * (t - 20));
+
+  it('stores a fitted calibration once: the same points give the same id', async () => {
+    const csv = ['temperature_C,voltage_V', ...temperature_C.map((t, i) => `${t},${voltage_V[i]}`)].join('\n');
+    const fromCsv = await post('/v1/calibrations', { model: 'linear', points_csv: csv }, 'bench');
+    expect(fromCsv.statusCode, fromCsv.body).toBe(201);
+    const fromArrays = await post('/v1/calibrations', { model: 'linear', points: { temperature_C, voltage_V } }, 'bench');
+    expect(fromArrays.json().calibration_id).toBe(fromCsv.json().calibration_id);
+    const stored = await post('/v1/calibrations', { calibration: fromCsv.json().calibration }, 'bench');
+    expect(stored.json().calibration_id).toBe(fromCsv.json().calibration_id);
+  });
+
+  it('refuses ambiguous requests (400), too few points (422) and unknown ids (404)', async () => {
+    expect((await post('/v1/calibrations', { model: 'linear' }, 'bench')).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
+    expect((await post('/v1/calibrations', { points: { temperature_C, voltage_V } }, 'bench')).json()).toMatchObject({ status: 400 });
+    expect((await post('/v1/calibrations', { model: 'poly4', points: { temperature_C: [20, 50], voltage_V: [0.6, 0.55] } }, 'bench')).json()).toMatchObject({
+      status: 422,
+      code: 'CALIBRATION_TOO_FEW_POINTS',
+    });
+    expect((await context.app.inject({ url: `/v1/calibrations/${'0'.repeat(64)}`, headers: bearer('reader') })).json()).toMatchObject({ status: 404 });
+  });
+});
