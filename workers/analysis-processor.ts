@@ -1,3 +1,4 @@
+import { setPriority } from 'node:os';
 import { UnrecoverableError, type SandboxedJob } from 'bullmq';
 import { ALGORITHM_VERSION, HEATPATH_VERSION } from '../shared/analysis/algorithm-version.js';
 import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
@@ -15,6 +16,14 @@ import { WebhookNotifier } from './webhook-notifier.js';
  * write is idempotent: the result is written once per job id, and a job whose
  * result exists only re-sends its notification (deduplicated by id).
  */
+
+/**
+ * Analysis yields the CPU to the API, Redis and the workers' lock renewal on
+ * the same machine (Unix niceness 10): bench uploads stay fast while the
+ * cores are busy, and idle cores are still used in full.
+ */
+const ANALYSIS_NICENESS = 10;
+setPriority(ANALYSIS_NICENESS);
 
 const settings = readProcessorSettings();
 const store = new TransientStore(settings.dataDir);

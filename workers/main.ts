@@ -3,7 +3,8 @@ import { pathToFileURL } from 'node:url';
 import { pino, type Logger } from 'pino';
 import type { Registry } from 'prom-client';
 import { TransientStore } from '../services/store/transient-store.js';
-import { loadServiceConfig, type ServiceConfig } from '../services/config/service-config.js';
+import type { ServiceConfig } from '../services/config/service-config.js';
+import { serviceConfigOrExit } from '../services/config/service-config-or-exit.js';
 import { AnalysisQueue } from './analysis-queue.js';
 import { AnalysisWorker } from './analysis-worker.js';
 import { UploadRecovery } from './recover-uploads.js';
@@ -65,13 +66,7 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
 
 /** `npm run start:worker`: workers only, until SIGTERM or SIGINT. */
 async function runWorkerProcess(): Promise<void> {
-  let config: ServiceConfig;
-  try {
-    config = loadServiceConfig();
-  } catch (error) {
-    process.stderr.write(`${(error as Error).message}\n`);
-    process.exit(2);
-  }
+  const config = serviceConfigOrExit();
   const logger = pino({ level: config.logLevel, name: 'heatpath-worker' });
   const workers = await startWorkers({ config, logger });
   let stopping = false;

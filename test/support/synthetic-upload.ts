@@ -8,7 +8,7 @@ export const SYNTHETIC_POWER_W = 50;
 /**
  * A SYNTHETIC cooling transient as CSV (time_s,temperature_C) from the layered
  * model with seeded noise: a different seed gives different bytes (a different
- * job). samplesPerDecade sets the size: 100 gives about 20 kB, 500 about 100 kB.
+ * job). samplesPerDecade sets the size: 100 gives about 16 kB, 620 about 100 kB.
  */
 export function syntheticTransientCsv(seed: number, samplesPerDecade = 100): Buffer {
   const random = createRandom(seed);

@@ -1,0 +1,169 @@
+/**
+ * `npm run bench:service`: the service under load, on loopback only.
+ *
+ * Starts `node dist/services/main.js` (API + W analysis processes) against
+ * the local Redis with a fresh prefix and a temporary store, then
+ *  1. uploads N synthetic transients (about 100 kB CSV each) from C bench
+ *     clients, each sending every C/R seconds (R uploads/s in all, more than
+ *     the workers analyse, so the cores are busy meanwhile): p50/p99 upload
+ *     latency (accepted = stored durably). --rate 0 sends back to back, which
+ *     measures the most uploads/s instead (latency then grows with C);
+ *  2. end-to-end throughput: jobs/s from the first upload to the last stored
+ *     result, against the core's single-process throughput (analyzeTransientFile
+ *     in a loop) times W;
+ *  3. an archive reprocess: a batch over the stored uploads with a changed
+ *     parameter; the time for 10,000 is measured when --archive 10000, else
+ *     extrapolated linearly (and said so).
+ * Options: --uploads N (200) --concurrency C (50) --rate R (20) --workers W (cores)
+ *          --archive M (= uploads) --samples-per-decade S (620, about 100 kB).
+ * Bounded: every wait has a deadline; everything is removed at the end.
+ */
+import { spawn } from 'node:child_process';
+import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { availableParallelism, cpus, loadavg, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-file.js';
+import { TransientStore } from '../../services/store/transient-store.js';
+import { packageRoot } from '../../services/cli/package-root.js';
+import { AnalysisQueue } from '../../workers/analysis-queue.js';
+import { BatchReprocessor } from '../../workers/reprocess-batch.js';
+import { freePort } from '../support/free-port.js';
+import { deleteKeysWithPrefix, randomPrefix, testRedis } from '../support/redis-connection.js';
+import { SYNTHETIC_POWER_W, syntheticTransientCsv } from '../support/synthetic-upload.js';
+
+const option = (name: string, fallback: number) => {
+  const at = process.argv.indexOf(`--${name}`);
+  return at > 0 ? Number(process.argv[at + 1]) : fallback;
+};
+const UPLOADS = option('uploads', 200);
+const CONCURRENCY = option('concurrency', 50);
+const RATE = option('rate', 20);
+const WORKERS = option('workers', availableParallelism());
+const ARCHIVE = Math.min(option('archive', UPLOADS), UPLOADS);
+const SAMPLES_PER_DECADE = option('samples-per-decade', 620);
+const DEADLINE_MS = 15 * 60_000;
+const TOKEN = 'bench-token-0123456789abcdef';
+
+function percentile(values: number[], p: number): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
+}
+
+async function until(what: string, condition: () => Promise<boolean>, pollMs = 100): Promise<void> {
+  const deadline = Date.now() + DEADLINE_MS;
+  while (!(await condition())) {
+    if (Date.now() > deadline) throw new Error(`bench: gave up waiting for ${what}`);
+    await new Promise((resolve) => setTimeout(resolve, pollMs));
+  }
+}
+
+async function countResults(dataDir: string): Promise<number> {
+  const root = join(dataDir, 'results');
+  const shards = await readdir(root).catch(() => [] as string[]);
+  const files = await Promise.all(shards.map((shard) => readdir(join(root, shard))));
+  return files.reduce((sum, names) => sum + names.filter((name) => name.endsWith('.json')).length, 0);
+}
+
+function singleProcessJobsPerSecond(files: Buffer[]): number {
+  const runs = Math.min(files.length, 20);
+  for (let i = 0; i < 3; i++) analyzeTransientFile({ bytes: files[i], fileName: 'warm.csv', power: { power_W: SYNTHETIC_POWER_W } }, 'bench');
+  const started = performance.now();
+  for (let i = 0; i < runs; i++) analyzeTransientFile({ bytes: files[i], fileName: `f${i}.csv`, power: { power_W: SYNTHETIC_POWER_W } }, 'bench');
+  return runs / ((performance.now() - started) / 1000);
+}
+
+const { url: redisUrl } = await testRedis();
+const prefix = randomPrefix();
+const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-bench-'));
+const port = await freePort();
+const files = Array.from({ length: UPLOADS }, (_, i) => syntheticTransientCsv(5000 + i, SAMPLES_PER_DECADE));
+const meanKb = files.reduce((sum, file) => sum + file.length, 0) / files.length / 1024;
+
+const load = () => loadavg()[0].toFixed(1);
+console.log(`heatpath service bench: ${cpus()[0]?.model ?? 'cpu'} x${availableParallelism()}, Node ${process.version}, load average ${load()} before`);
+console.log(
+  `  ${UPLOADS} uploads of ${meanKb.toFixed(0)} kB from ${CONCURRENCY} clients ${RATE > 0 ? `at ${RATE} uploads/s in all` : 'back to back'}, ` +
+    `${WORKERS} analysis processes, archive ${ARCHIVE}`,
+);
+
+const single = singleProcessJobsPerSecond(files);
+const service = spawn(process.execPath, [join(packageRoot(import.meta.url), 'dist', 'services', 'main.js')], {
+  stdio: ['ignore', 'ignore', 'inherit'],
+  env: {
+    ...process.env,
+    PORT: String(port),
+    HOST: '127.0.0.1',
+    REDIS_URL: redisUrl,
+    HEATPATH_DATA_DIR: dataDir,
+    HEATPATH_QUEUE_PREFIX: prefix,
+    HEATPATH_API_KEYS: `bench:admin:${TOKEN}`,
+    HEATPATH_WORKER_PROCESSES: String(WORKERS),
+    HEATPATH_RATE_LIMIT_PER_MINUTE: String(1_000_000),
+    HEATPATH_LOG_LEVEL: 'warn',
+  },
+});
+const base = `http://127.0.0.1:${port}`;
+const queue = new AnalysisQueue({ redisUrl, prefix });
+try {
+  await until('the API', async () => (await fetch(`${base}/health/ready`).catch(() => null))?.ok === true);
+
+  // 1 + 2: uploads while the workers run, then until every result is stored.
+  const latencies: number[] = [];
+  let next = 0;
+  const started = performance.now();
+  const periodMs = RATE > 0 ? (CONCURRENCY / RATE) * 1000 : 0;
+  const client = async (clientIndex: number) => {
+    // Staggered starts: the clients' slots are spread evenly over one period.
+    let slot = started + (clientIndex * periodMs) / CONCURRENCY;
+    while (next < files.length) {
+      const wait = slot - performance.now();
+      if (wait > 0) await new Promise((resolve) => setTimeout(resolve, wait));
+      slot += periodMs;
+      if (next >= files.length) break;
+      const index = next++;
+      const t0 = performance.now();
+      const response = await fetch(`${base}/v1/transients?sample_id=BENCH-${index % 20}&bench=bench-${index % 4}&power_W=${SYNTHETIC_POWER_W}`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${TOKEN}`, 'content-type': 'text/csv' },
+        body: files[index],
+      });
+      await response.arrayBuffer();
+      if (response.status !== 202) throw new Error(`bench: upload answered HTTP ${response.status}`);
+      latencies.push(performance.now() - t0);
+    }
+  };
+  await Promise.all(Array.from({ length: CONCURRENCY }, (_, clientIndex) => client(clientIndex)));
+  const uploadSeconds = (performance.now() - started) / 1000;
+  await until('all results', async () => (await countResults(dataDir)) >= UPLOADS, 200);
+  const endToEndSeconds = (performance.now() - started) / 1000;
+  const endToEnd = UPLOADS / endToEndSeconds;
+  const computeBound = single * WORKERS;
+
+  console.log(`uploads: p50 ${percentile(latencies, 50).toFixed(1)} ms, p99 ${percentile(latencies, 99).toFixed(1)} ms, ${(UPLOADS / uploadSeconds).toFixed(0)} uploads/s (target p99 <= 50 ms with 50 bench clients)`);
+  console.log(`core, one process: ${single.toFixed(2)} jobs/s; compute-bound for ${WORKERS}: ${computeBound.toFixed(2)} jobs/s`);
+  console.log(`end to end: ${endToEnd.toFixed(2)} jobs/s = ${((endToEnd / computeBound) * 100).toFixed(0)} % of compute-bound (target >= 80 %)`);
+
+  // 3: archive reprocess with a changed parameter (new job ids), below any upload's priority.
+  const store = new TransientStore(dataDir);
+  const batches = new BatchReprocessor(store, queue);
+  const uploads = (await store.listUploads()).slice(0, ARCHIVE);
+  const from = uploads[0].received_at;
+  const to = new Date(Date.parse(uploads[uploads.length - 1].received_at) + 1).toISOString();
+  const batchStarted = performance.now();
+  const batch = await batches.create({ selection: { received_from: from, received_to: to }, parameters: { compact_stages: 4 }, created_by: 'bench' });
+  await until('the batch', async () => (await batches.progress(batch.batch_id))!.pending === 0, 250);
+  const batchSeconds = (performance.now() - batchStarted) / 1000;
+  const progress = (await batches.progress(batch.batch_id))!;
+  const forTenThousand = (batchSeconds / progress.total) * 10_000;
+  console.log(
+    `archive: ${progress.total} transients reprocessed in ${batchSeconds.toFixed(1)} s (${progress.failed} failed); ` +
+      `10,000 ${progress.total >= 10_000 ? 'measured' : 'extrapolated'}: ${(forTenThousand / 60).toFixed(1)} min (target <= 5 min)`,
+  );
+  console.log(`load average ${load()} after (above the core count, other processes shared the CPU and the figures are pessimistic)`);
+} finally {
+  service.kill('SIGTERM');
+  await new Promise((resolve) => service.once('exit', resolve));
+  await queue.close();
+  await deleteKeysWithPrefix(redisUrl, prefix);
+  await rm(dataDir, { recursive: true, force: true });
+}

@@ -1,0 +1,88 @@
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
+import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
+import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
+import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
+
+let redisUrl: string;
+let prefix: string;
+let fixture: QueueTestFixture;
+let queue: AnalysisQueue;
+const workers: AnalysisWorker[] = [];
+
+beforeEach(async () => {
+  redisUrl = (await testRedis()).url;
+  prefix = randomPrefix();
+  fixture = await QueueTestFixture.create();
+  queue = new AnalysisQueue({ redisUrl, prefix, attempts: 3, backoffDelayMs: 100 });
+});
+afterEach(async () => {
+  await Promise.all(workers.splice(0).map((worker) => worker.close(5_000)));
+  await queue.close();
+  await deleteKeysWithPrefix(redisUrl, prefix);
+  await fixture.remove();
+});
+
+function startWorker(): AnalysisWorker {
+  const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+  workers.push(worker);
+  return worker;
+}
+
+describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
+  it('fails a job with bad input once, without retries, and records why', async () => {
+    const upload = await fixture.storeUpload(1, Buffer.from('time_s,temperature_C\n'));
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    startWorker();
+    await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'failed');
+    const state = await queue.getJobState(upload.job_id);
+    expect(state?.attempts_made).toBe(1);
+    const failure = await fixture.store.getFailure(upload.job_id);
+    expect(failure).toMatchObject({ job_id: upload.job_id, upload_id: upload.upload_id, attempts: 1 });
+    expect(failure?.code).toMatch(/^INPUT_/);
+    expect(await fixture.store.hasResult(upload.job_id)).toBe(false);
+  });
+
+  it('fails a job whose raw bytes are missing from the store once', async () => {
+    const upload = await fixture.storeUpload(2);
+    const orphan = { ...upload, upload_id: 'u-orphan', input_sha256: 'f'.repeat(64), job_id: 'job-orphan' };
+    await fixture.store.putUpload(orphan);
+    await queue.enqueue(orphan, { priority: JOB_PRIORITY.interactive });
+    startWorker();
+    await eventually(async () => (await queue.getJobState('job-orphan'))?.state === 'failed');
+    expect((await queue.getJobState('job-orphan'))?.attempts_made).toBe(1);
+    expect((await fixture.store.getFailure('job-orphan'))?.message).toMatch(/not in the store/);
+  });
+
+  it('stores one result with its provenance and does not repeat finished work', async () => {
+    const upload = await fixture.storeUpload(3);
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    startWorker();
+    await eventually(() => fixture.store.hasResult(upload.job_id));
+    await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'completed');
+    const result = await fixture.store.getResult(upload.job_id);
+    expect(result).toMatchObject({ job_id: upload.job_id, upload_id: upload.upload_id, algorithm: ALGORITHM_VERSION, sample_id: 'S-TEST' });
+    expect(result!.results.length).toBeGreaterThan(0);
+    expect((await queue.getJobState(upload.job_id))?.progress).toBe(100);
+
+    // The same content uploaded again is the same job: Redis still holds it, nothing runs twice.
+    const again = await fixture.storeUpload(3, undefined, { upload_id: 'u-again' });
+    expect(again.job_id).toBe(upload.job_id);
+    await queue.enqueue(again, { priority: JOB_PRIORITY.interactive });
+    expect((await queue.getJobState(upload.job_id))?.state).toBe('completed');
+    expect(await fixture.resultFiles()).toEqual([`${upload.job_id}.json`]);
+  });
+
+  it('finishes every job exactly once across a worker restart with jobs in flight', async () => {
+    const uploads = await Promise.all([10, 11, 12, 13].map((seed) => fixture.storeUpload(seed)));
+    for (const upload of uploads) await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    const first = startWorker();
+    await eventually(async () => (await queue.getCounts()).active > 0);
+    expect(await first.close(20_000)).toBe('drained');
+    workers.splice(workers.indexOf(first), 1);
+    startWorker();
+    await eventually(async () => (await Promise.all(uploads.map((u) => fixture.store.hasResult(u.job_id)))).every(Boolean));
+    expect((await fixture.resultFiles()).sort()).toEqual(uploads.map((u) => `${u.job_id}.json`).sort());
+  });
+});

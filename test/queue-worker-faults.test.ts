@@ -1,0 +1,90 @@
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
+import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
+import { RedisServerProcess } from './support/redis-server-process.js';
+import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
+import { syntheticTransientCsv } from './support/synthetic-upload.js';
+import { WorkerProcess } from './support/worker-process.js';
+
+let prefix: string;
+let fixture: QueueTestFixture;
+const cleanups: (() => Promise<unknown>)[] = [];
+
+beforeEach(async () => {
+  prefix = randomPrefix();
+  fixture = await QueueTestFixture.create();
+});
+afterEach(async () => {
+  for (const cleanup of cleanups.splice(0).reverse()) await cleanup();
+  await fixture.remove();
+});
+
+function workerProcess(redisUrl: string, recoveryIntervalMs?: number): WorkerProcess {
+  const worker = new WorkerProcess({ redisUrl, prefix, dataDir: fixture.dataDir, recoveryIntervalMs });
+  cleanups.push(() => worker.kill());
+  return worker;
+}
+
+function analysisQueue(redisUrl: string): AnalysisQueue {
+  const queue = new AnalysisQueue({ redisUrl, prefix, attempts: 3, backoffDelayMs: 100 });
+  cleanups.push(() => queue.close());
+  return queue;
+}
+
+describe('worker faults (real Redis, worker processes)', () => {
+  it('completes a job on another worker after its worker is SIGKILLed mid-job, with one result', async () => {
+    const { url } = await testRedis();
+    cleanups.push(() => deleteKeysWithPrefix(url, prefix));
+    const queue = analysisQueue(url);
+    // A large transient keeps the job running long enough to be caught active.
+    const upload = await fixture.storeUpload(21, syntheticTransientCsv(21, 2_000));
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+
+    const doomed = workerProcess(url);
+    await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'active', 5);
+    await doomed.kill();
+    expect(await fixture.store.hasResult(upload.job_id)).toBe(false);
+
+    workerProcess(url);
+    await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'completed');
+    const job = await queue.queue.getJob(upload.job_id);
+    expect(job!.stalledCounter).toBeGreaterThanOrEqual(1); // it was taken over, not finished by the killed worker
+    expect(await fixture.resultFiles()).toEqual([`${upload.job_id}.json`]);
+  });
+
+  it('loses no stored upload when Redis restarts empty: the running worker reconnects and recovery re-queues them', async () => {
+    const redis = await RedisServerProcess.start();
+    cleanups.push(() => redis.kill());
+    const queue = analysisQueue(redis.url);
+    workerProcess(redis.url, 1_000);
+    const before = await Promise.all([31, 32].map((seed) => fixture.storeUpload(seed)));
+    for (const upload of before) await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+
+    await redis.kill();
+    // Stored while Redis is away (the API answers them as stored): enqueueing fails fast.
+    const during = await Promise.all([33, 34].map((seed) => fixture.storeUpload(seed)));
+    await expect(queue.enqueue(during[0], { priority: JOB_PRIORITY.interactive })).rejects.toThrow();
+    await redis.restart();
+
+    const all = [...before, ...during];
+    await eventually(async () => (await Promise.all(all.map((u) => fixture.store.hasResult(u.job_id)))).every(Boolean), 100);
+    expect((await fixture.resultFiles()).sort()).toEqual(all.map((u) => `${u.job_id}.json`).sort());
+  });
+
+  it('drains the running job on SIGTERM and exits cleanly; the next worker finishes the rest', async () => {
+    const { url } = await testRedis();
+    cleanups.push(() => deleteKeysWithPrefix(url, prefix));
+    const queue = analysisQueue(url);
+    const uploads = await Promise.all([41, 42, 43].map((seed) => fixture.storeUpload(seed)));
+    for (const upload of uploads) await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+
+    const first = workerProcess(url);
+    await eventually(async () => (await queue.getCounts()).active > 0, 5);
+    expect(await first.stop()).toBe(0);
+    expect((await queue.getCounts()).active).toBe(0);
+
+    workerProcess(url);
+    await eventually(async () => (await Promise.all(uploads.map((u) => fixture.store.hasResult(u.job_id)))).every(Boolean), 50);
+    expect((await fixture.resultFiles()).sort()).toEqual(uploads.map((u) => `${u.job_id}.json`).sort());
+  });
+});
