@@ -1,0 +1,118 @@
+import { mkdir, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
+import { runReprocessCommand } from '../services/cli/reprocess-command.js';
+import { runSubmitCommand } from '../services/cli/submit-command.js';
+import { startApiTestApp, testTokens, type ApiTestContext } from './support/api-test-app.js';
+import { freePort } from './support/free-port.js';
+import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-upload.js';
+
+let api: ApiTestContext;
+let server: string;
+let workDir: string;
+let printed: string[];
+let errors: string[];
+
+beforeAll(async () => {
+  api = await startApiTestApp();
+  server = await api.app.listen({ port: 0, host: '127.0.0.1' });
+});
+afterAll(async () => {
+  await api.close();
+});
+beforeEach(async () => {
+  workDir = await mkdtemp(join(tmpdir(), 'heatpath-cli-'));
+  printed = [];
+  errors = [];
+  vi.spyOn(process.stderr, 'write').mockImplementation((text) => errors.push(String(text)) > 0);
+});
+afterEach(async () => {
+  vi.restoreAllMocks();
+  await rm(workDir, { recursive: true, force: true });
+});
+
+const print = (text: string) => void printed.push(text);
+
+async function writeTransient(name: string, seed: number): Promise<string> {
+  const path = join(workDir, name);
+  await mkdir(join(path, '..'), { recursive: true });
+  await writeFile(path, seed < 0 ? 'time_s,temperature_C\n' : syntheticTransientCsv(seed));
+  return path;
+}
+
+const serverOptions = () => ['--server', server, '--key', testTokens.bench, '--power-w', String(SYNTHETIC_POWER_W)];
+
+describe('heatpath submit (real API, real Redis)', () => {
+  it('uploads files, prints their job ids, and a second run is the same uploads', async () => {
+    const files = [await writeTransient('a.csv', 61), await writeTransient('b.csv', 62)];
+    expect(await runSubmitCommand([...files, ...serverOptions(), '--sample', 'S-61', '--bench', 'B1', '--tag', 'night'], print)).toBe(0);
+    const lines = printed.map((line) => line.split('\t'));
+    expect(lines.map(([file]) => file)).toEqual(files);
+    expect(lines.every(([, jobId, state]) => /^job-[0-9a-f]{40}$/.test(jobId) && state === 'queued')).toBe(true);
+    const stored = await api.store.listUploads({ sample_id: 'S-61' });
+    expect(stored).toHaveLength(2);
+    expect(stored.every((upload) => upload.bench === 'B1' && upload.tags.includes('night'))).toBe(true);
+
+    printed = [];
+    expect(await runSubmitCommand([...files, ...serverOptions(), '--sample', 'S-61', '--bench', 'B1', '--tag', 'night'], print)).toBe(0);
+    expect(printed.map((line) => line.split('\t')[1])).toEqual(lines.map(([, jobId]) => jobId));
+    expect(await api.store.listUploads({ sample_id: 'S-61' })).toHaveLength(2);
+  });
+
+  it('exits 2 with one line per refused file and still submits the others', async () => {
+    const bad = await writeTransient('empty.csv', -1);
+    const good = await writeTransient('good.csv', 63);
+    expect(await runSubmitCommand([bad, good, join(workDir, 'missing.csv'), ...serverOptions(), '--sample', 'S-63'], print)).toBe(2);
+    expect(printed).toHaveLength(1);
+    expect(errors).toHaveLength(2);
+    expect(errors[0]).toMatch(/SUBMIT_REJECTED/);
+    expect(errors[1]).toMatch(/missing\.csv.*FILE_NOT_READABLE/);
+    expect(errors.every((line) => line.split('\n').filter(Boolean).length === 1 && !/\n\s+at /.test(line))).toBe(true);
+  });
+
+  it('exits 1 when the server cannot be reached, and 2 for a wrong key', async () => {
+    const file = await writeTransient('c.csv', 64);
+    const nowhere = `http://127.0.0.1:${await freePort()}`;
+    expect(await runSubmitCommand([file, '--server', nowhere, '--key', 'x'.repeat(20), '--sample', 'S', '--retries', '2'], print)).toBe(1);
+    expect(errors.join('')).toMatch(/SERVER_UNREACHABLE/);
+    expect(await runSubmitCommand([file, '--server', server, '--key', 'not-a-known-key-000', '--sample', 'S'], print)).toBe(2);
+    expect(errors.join('')).toMatch(/AUTH_KEY_INVALID/);
+    await expect(runSubmitCommand([file, '--server', server, '--key', testTokens.bench], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
+  });
+});
+
+describe('heatpath reprocess', () => {
+  it('analyses an archive locally, writes a summary, and resumes without redoing finished files', async () => {
+    await writeTransient('archive/D1/t1.csv', 71);
+    await writeTransient('archive/D2/t2.csv', 72);
+    await writeTransient('archive/D2/broken.csv', -1);
+    const out = join(workDir, 'out');
+    const args = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)];
+    expect(await runReprocessCommand(args, print)).toBe(2);
+    const summary = (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n');
+    expect(summary[0]).toBe('file,sha256,status,job_id,detail');
+    expect(summary.slice(1).map((row) => row.split(',').slice(0, 3).filter((_, i) => i !== 1))).toEqual([
+      ['D1/t1.csv', 'ok'],
+      ['D2/broken.csv', 'rejected'],
+      ['D2/t2.csv', 'ok'],
+    ]);
+    expect(printed.at(-1)).toMatch(/3 files: 2 ok, 1 rejected, 0 failed \(0 done before\)/);
+
+    const stateLines = (await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n').length;
+    expect(await runReprocessCommand(args, print)).toBe(2);
+    expect(printed.at(-1)).toMatch(/\(3 done before\)/);
+    expect((await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n')).toHaveLength(stateLines);
+  });
+
+  it('submits an archive to a server, one sample per folder', async () => {
+    await writeTransient('lab/SAMPLE-9/t1.csv', 81);
+    await writeTransient('lab/SAMPLE-9/t2.csv', 82);
+    const out = join(workDir, 'out');
+    expect(await runReprocessCommand([join(workDir, 'lab'), ...serverOptions(), '--out', out], print)).toBe(0);
+    const uploads = await api.store.listUploads({ sample_id: 'SAMPLE-9' });
+    expect(uploads.map((upload) => upload.file_name).sort()).toEqual(['t1.csv', 't2.csv']);
+    const summary = await readFile(join(out, 'reprocess-summary.csv'), 'utf8');
+    for (const upload of uploads) expect(summary).toContain(upload.job_id);
+  });
+});

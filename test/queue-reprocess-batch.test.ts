@@ -1,0 +1,81 @@
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
+import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { BatchReprocessor } from '../workers/reprocess-batch.js';
+import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
+import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
+
+let redisUrl: string;
+let prefix: string;
+let fixture: QueueTestFixture;
+let queue: AnalysisQueue;
+let batches: BatchReprocessor;
+let worker: AnalysisWorker | undefined;
+
+beforeEach(async () => {
+  redisUrl = (await testRedis()).url;
+  prefix = randomPrefix();
+  fixture = await QueueTestFixture.create();
+  queue = new AnalysisQueue({ redisUrl, prefix });
+  batches = new BatchReprocessor(fixture.store, queue);
+});
+afterEach(async () => {
+  await worker?.close(5_000);
+  worker = undefined;
+  await queue.close();
+  await deleteKeysWithPrefix(redisUrl, prefix);
+  await fixture.remove();
+});
+
+describe('BatchReprocessor (real Redis)', () => {
+  it('selects stored uploads, queues them below uploads, and counts progress from the store', async () => {
+    const nightly = await Promise.all([51, 52, 53].map((seed) => fixture.storeUpload(seed, undefined, { tags: ['night'] })));
+    await fixture.storeUpload(54, undefined, { tags: ['day'] });
+    const batch = await batches.create({ selection: { tag: 'night' }, parameters: { compact_stages: 4 }, created_by: 'admin' });
+    expect(batch).toMatchObject({ status: 'running', total: 3, done: 0, failed: 0, pending: 3 });
+
+    const record = (await fixture.store.getBatch(batch.batch_id))!;
+    expect(record.entries.map((entry) => entry.upload_id).sort()).toEqual(nightly.map((u) => u.upload_id).sort());
+    for (const entry of record.entries) {
+      expect(nightly.map((u) => u.job_id)).not.toContain(entry.job_id); // new parameters: new jobs
+      const job = await queue.queue.getJob(entry.job_id);
+      expect(job?.opts.priority).toBe(JOB_PRIORITY.batch);
+      expect(job?.data).toMatchObject({ batch_id: batch.batch_id, parameters: { compact_stages: 4 } });
+    }
+
+    worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+    await eventually(async () => (await batches.progress(batch.batch_id))!.pending === 0, 100);
+    expect(await batches.progress(batch.batch_id)).toMatchObject({ total: 3, done: 3, failed: 0 });
+    const result = await fixture.store.getResult(record.entries[0].job_id);
+    expect(result).toMatchObject({ batch_id: batch.batch_id, parameters: { compact_stages: 4 } });
+  });
+
+  it('counts results that exist already as done, without queueing them again', async () => {
+    const upload = await fixture.storeUpload(55);
+    worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    await eventually(() => fixture.store.hasResult(upload.job_id), 100);
+    // Same parameters and algorithm: the batch's job is the upload's job.
+    const batch = await batches.create({ selection: { sample_id: upload.sample_id }, created_by: 'admin' });
+    expect(batch).toMatchObject({ total: 1, done: 1, pending: 0 });
+  });
+
+  it('cancels: waiting jobs of the batch leave the queue, other jobs stay', async () => {
+    const uploads = await Promise.all([56, 57].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-7' })));
+    const interactive = await fixture.storeUpload(58, undefined, { bench: 'bench-8' });
+    await queue.enqueue(interactive, { priority: JOB_PRIORITY.interactive });
+    const batch = await batches.create({ selection: { bench: 'bench-7' }, parameters: { points_per_decade: 30 }, created_by: 'admin' });
+    const cancelled = await batches.cancel(batch.batch_id);
+    expect(cancelled).toMatchObject({ status: 'cancelled', total: uploads.length, pending: uploads.length });
+    const record = (await fixture.store.getBatch(batch.batch_id))!;
+    for (const entry of record.entries) expect(await queue.getJobState(entry.job_id)).toBeNull();
+    expect((await queue.getJobState(interactive.job_id))?.state).toBe('prioritized');
+    // A cancelled batch is not revived by recovery.
+    expect(await batches.requeueRunning()).toBe(0);
+    expect(await batches.progress('batch-unknown')).toBeNull();
+  });
+
+  it('refuses an empty selection', async () => {
+    await expect(batches.create({ selection: { sample_id: 'nobody' }, created_by: 'admin' })).rejects.toMatchObject({ code: 'BATCH_SELECTION_EMPTY' });
+  });
+});
