@@ -2,6 +2,7 @@ import { pino } from 'pino';
 import { startWorkers } from '../workers/main.js';
 import { serviceConfigOrExit } from './config/service-config-or-exit.js';
 import { AnalysisQueue } from '../workers/analysis-queue.js';
+import { withQueueDeadline } from './api/jobs/deadline-queue.js';
 import { closeOnSignals, startApi } from './api/start-api.js';
 
 /**
@@ -12,7 +13,8 @@ const config = serviceConfigOrExit();
 const logger = pino({ level: config.logLevel, name: 'heatpath' });
 
 const probe = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
-const redisAnswers = await probe.ping();
+// The queue waits for a connection rather than failing: bound the question.
+const redisAnswers = await withQueueDeadline(probe, config.redisAnswerMs).ping().catch(() => false);
 await probe.close();
 if (!redisAnswers) {
   process.stderr.write(

@@ -72,7 +72,9 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env): Service
   const problems = [...Value.Errors(ServiceEnvSchema, converted)].map((error) => describeEnvProblem(error.instancePath, error.message));
   const keys = Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
   if (problems.length > 0) {
-    throw new HeatpathError('CONFIG_INVALID', `\n  - ${problems.join('\n  - ')}\n`);
+    // One line per problem; HeatpathError appends ". <hint>" to the last.
+    const lines = problems.map((problem) => `\n  - ${problem.replace(/\.$/, '')}`);
+    throw new HeatpathError('CONFIG_INVALID', `${problems.length} problem${problems.length > 1 ? 's' : ''}:${lines.join('')}`);
   }
   const valid = converted as ServiceEnv;
   return {
@@ -100,7 +102,7 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env): Service
 function describeEnvProblem(instancePath: string, message: string): string {
   const name = instancePath.replace(/^\//, '');
   const description = (ServiceEnvSchema.properties as Record<string, { description?: string }>)[name]?.description ?? '';
-  return `${name}: ${message}. ${description}`;
+  return description ? `${name} ${message}: ${description}` : `${name} ${message}`;
 }
 
 function loadApiKeys(env: ServiceEnv, problems: string[]): ApiKey[] {
@@ -124,6 +126,6 @@ function loadApiKeys(env: ServiceEnv, problems: string[]): ApiKey[] {
 }
 
 function collect(parsed: { keys: ApiKey[]; problems: string[] }, problems: string[]): ApiKey[] {
-  problems.push(...parsed.problems.map((problem) => `${problem}.`));
+  problems.push(...parsed.problems);
   return parsed.keys;
 }
