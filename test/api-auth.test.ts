@@ -50,6 +50,13 @@ describe('every protected route refuses roles without its permission (403) and a
   }
 });
 
+describe('HEAD, which fastify adds to every GET, is protected like the GET', () => {
+  it.each(protectedRoutes.filter((route) => route.method === 'GET').map((route) => route.url))('HEAD %s without a key', async (url) => {
+    const response = await context.app.inject({ method: 'HEAD', url: concreteUrl(url) });
+    expect(response.statusCode).toBe(401);
+  });
+});
+
 describe('public routes need no key', () => {
   it.each(['/health/live', '/health/ready', '/openapi.json', '/docs'])('%s answers 200 without a key', async (url) => {
     const response = await context.app.inject({ url });
