@@ -1,4 +1,5 @@
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
+import { formatTime as time } from './format-time.js';
 
 /** The readable summary `heatpath analyze` prints for one channel. */
 export function formatResultSummary(file: string, result: AnalysisResult, outDir?: string): string {
@@ -23,10 +24,4 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
 
 function fixed(value: number): string {
   return value.toPrecision(4);
-}
-
-function time(seconds: number): string {
-  if (seconds < 1e-3) return `${(seconds * 1e6).toPrecision(3)} us`;
-  if (seconds < 1) return `${(seconds * 1e3).toPrecision(3)} ms`;
-  return `${seconds.toPrecision(3)} s`;
 }

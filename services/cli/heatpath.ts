@@ -3,7 +3,9 @@ import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { HEATPATH_VERSION } from '../../shared/analysis/algorithm-version.js';
 import { runAnalyzeCommand } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
+import { runDegradationCommand } from './degradation-command.js';
 import { runReprocessCommand } from './reprocess-command.js';
+import { runRthjcCommand } from './rthjc-command.js';
 import { runSubmitCommand } from './submit-command.js';
 
 const overview = `heatpath ${HEATPATH_VERSION}: thermal transient analysis
@@ -11,6 +13,8 @@ const overview = `heatpath ${HEATPATH_VERSION}: thermal transient analysis
 Commands:
   heatpath analyze FILE...        Zth, spectrum, Foster/Cauer, structure functions, compact model
   heatpath calibrate POINTS.csv   fit a TSP calibration (temperature vs voltage)
+  heatpath rthjc FILE_A FILE_B    Rth-JC by two interfaces (transient dual interface, JESD51-14)
+  heatpath degradation REF FILE...  structure-function shift and Rth rise over power cycling
   heatpath submit FILE...         upload transients to a heatpath service (bench scripts)
   heatpath reprocess DIR          analyse an archive folder, on a service or --local
 
@@ -24,6 +28,8 @@ type Command = (argv: string[], print: (text: string) => void) => Promise<number
 const commands: Record<string, Command> = {
   analyze: runAnalyzeCommand,
   calibrate: runCalibrateCommand,
+  rthjc: runRthjcCommand,
+  degradation: runDegradationCommand,
   submit: runSubmitCommand,
   reprocess: runReprocessCommand,
 };

@@ -53,8 +53,10 @@ export interface DualInterfaceOptions {
   epsilonOffset_K_per_W?: number;
   /** Density of the common log-time grid. */
   pointsPerDecade?: number;
-  /** delta must stay above epsilon over this many consecutive grid points. */
+  /** delta must stay above epsilon over this many consecutive grid points ... */
   persistPoints?: number;
+  /** ... and at this fraction or more of the grid points from there to the end. */
+  remainingFraction?: number;
   /** Warn when the two estimates differ by more than this fraction of their mean. */
   agreementFraction?: number;
   /** The structure-function criterion's threshold and grid. */
@@ -66,6 +68,7 @@ export const DUAL_INTERFACE_DEFAULTS: Required<Omit<DualInterfaceOptions, 'struc
   epsilonOffset_K_per_W: 0.003,
   pointsPerDecade: 20,
   persistPoints: 3,
+  remainingFraction: 0.9,
   agreementFraction: 0.15,
 };
 
@@ -120,7 +123,7 @@ export function dualInterfaceRthjc(first: InterfaceMeasurement, second: Interfac
   const deltaSigma = Float64Array.from(common.z, (_, k) => Math.sqrt(common.firstVariance[k] * noiseFirst ** 2 + common.secondVariance[k] * noiseSecond ** 2));
   const delta_noise_K_per_W = median(deltaSigma);
 
-  const found = firstPersistentExceedance(excess, settings.persistPoints);
+  const found = firstPersistentExceedance(excess, settings.persistPoints, settings.remainingFraction);
   let zthRthjc: number | null = null;
   let separation_time_s: number | null = null;
   let epsilonAtSeparation: number | null = null;
@@ -221,6 +224,7 @@ function assertSettings(settings: typeof DUAL_INTERFACE_DEFAULTS): void {
     ['epsilonOffset_K_per_W', settings.epsilonOffset_K_per_W, settings.epsilonOffset_K_per_W > 0],
     ['pointsPerDecade', settings.pointsPerDecade, settings.pointsPerDecade > 0],
     ['persistPoints', settings.persistPoints, Number.isInteger(settings.persistPoints) && settings.persistPoints >= 1],
+    ['remainingFraction', settings.remainingFraction, settings.remainingFraction >= 0 && settings.remainingFraction <= 1],
     ['agreementFraction', settings.agreementFraction, settings.agreementFraction > 0],
   ];
   for (const [name, value, ok] of checks) {

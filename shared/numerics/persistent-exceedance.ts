@@ -5,7 +5,12 @@
  *
  * One grid point above the threshold can be a noise spike; a separation that
  * is physical persists. So the excess (difference minus threshold) must stay
- * positive over `persistPoints` consecutive grid points. The crossing is then
+ * positive over `persistPoints` consecutive grid points, and, because a
+ * physical separation lasts to the end of the curves (a changed layer shifts
+ * everything beyond it), it must be positive at `remainingFraction` or more
+ * of all the points from there to the end: the slow wiggles two independent
+ * deconvolutions leave in a difference (method-notes §3) come and go, so they
+ * fail this test however long a single excursion lasts. The crossing is then
  * placed between the last point at or below the threshold and the first point
  * above it by linear interpolation, so the estimate does not jump by a whole
  * grid step with the grid's phase.
@@ -17,18 +22,23 @@ export interface PersistentExceedance {
   position: number;
 }
 
-/** The first persistent run of excess > 0 with at least `persistPoints` points, or null when there is none. */
-export function firstPersistentExceedance(excess: Float64Array, persistPoints: number): PersistentExceedance | null {
-  let run = 0;
-  for (let k = 0; k < excess.length; k++) {
-    run = excess[k] > 0 ? run + 1 : 0;
-    if (run === persistPoints) {
-      const index = k - persistPoints + 1;
-      if (index === 0) return { index, position: 0 };
-      const below = excess[index - 1];
-      const above = excess[index];
-      return { index, position: index - 1 + below / (below - above) };
-    }
+/**
+ * The first index that starts `persistPoints` consecutive points of excess > 0
+ * and from which at least `remainingFraction` of the points to the end have
+ * excess > 0; null when there is none.
+ */
+export function firstPersistentExceedance(excess: Float64Array, persistPoints: number, remainingFraction = 0): PersistentExceedance | null {
+  const n = excess.length;
+  // positiveFrom[k]: how many points in k..n-1 have positive excess.
+  const positiveFrom = new Int32Array(n + 1);
+  for (let k = n - 1; k >= 0; k--) positiveFrom[k] = positiveFrom[k + 1] + (excess[k] > 0 ? 1 : 0);
+  for (let index = 0; index + persistPoints <= n; index++) {
+    const run = positiveFrom[index] - positiveFrom[index + persistPoints] === persistPoints;
+    if (!run || positiveFrom[index] < remainingFraction * (n - index)) continue;
+    if (index === 0) return { index, position: 0 };
+    const below = excess[index - 1];
+    const above = excess[index];
+    return { index, position: index - 1 + below / (below - above) };
   }
   return null;
 }

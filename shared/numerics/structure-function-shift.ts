@@ -17,15 +17,21 @@
  * most where R_sum is steep in log C_sum (thin, poorly conducting layers),
  * because a small error in C there is a large error in R. The threshold is
  * therefore the largest of an absolute floor, a fraction of the reference's
- * R total, and a multiple of the robust point-to-point scatter of dR
- * (shared/numerics/noise-estimate.ts), and the excess must persist over a
- * stretch of log C_sum (shared/numerics/persistent-exceedance.ts) so that one
- * spike at a steep point is not taken for a degraded layer. The defaults were
+ * R total, and a multiple of the noise of dR, and the excess must persist over a
+ * stretch of log C_sum and hold to the end of the common range
+ * (shared/numerics/persistent-exceedance.ts), so that neither a spike at a
+ * steep point nor a slow wiggle is taken for a degraded layer.
+ *
+ * The noise of dR is read from its negative side: a layer can only add
+ * resistance (and in the dual-interface use the worse interface only adds),
+ * so values of dR below zero are noise alone, and for zero-mean symmetric
+ * noise their RMS estimates its standard deviation. Point-to-point estimators
+ * (third differences, as in noise-estimate.ts) would miss the slow wiggles
+ * that two independent deconvolutions leave, which are the larger part. The defaults were
  * chosen on synthetic layered stacks (test/structure-function-shift.test.ts),
  * not taken from a standard: they are parameters.
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
-import { estimateNoiseRms } from './noise-estimate.js';
 import { median } from './median.js';
 import { optionsWithDefaults } from './options-with-defaults.js';
 import { firstPersistentExceedance, valueAtPosition } from './persistent-exceedance.js';
@@ -39,10 +45,12 @@ export interface StructureFunctionShiftOptions {
   minimumShift_K_per_W?: number;
   /** ... and at least this fraction of the reference's R total. */
   minimumShiftFraction?: number;
-  /** ... and at least this many times the robust scatter of dR. */
+  /** ... and at least this many times the noise of dR (the RMS of its negative values). */
   scatterFactor?: number;
-  /** The excess must persist over this many decades of C_sum. */
+  /** The excess must persist over this many decades of C_sum ... */
   persistDecades?: number;
+  /** ... and hold at this fraction or more of the grid points from there to the end of the common range. */
+  remainingFraction?: number;
   /** The settled shift is the median of dR from this many decades beyond the start to the end of the common range. */
   settleDecades?: number;
 }
@@ -51,10 +59,13 @@ export const STRUCTURE_FUNCTION_SHIFT_DEFAULTS: Required<StructureFunctionShiftO
   pointsPerDecade: 20,
   minimumShift_K_per_W: 0.005,
   minimumShiftFraction: 0.01,
-  scatterFactor: 4,
+  scatterFactor: 3,
   persistDecades: 0.25,
+  remainingFraction: 0.9,
   settleDecades: 0.3,
 };
+
+const MIN_NEGATIVE_POINTS = 3;
 
 export interface StructureFunctionShift {
   /** The common log C_sum grid. */
@@ -63,7 +74,7 @@ export interface StructureFunctionShift {
   later_r_K_per_W: Float64Array;
   /** dR(C) = R_later(C) - R_ref(C). */
   shift_K_per_W: Float64Array;
-  /** Robust point-to-point scatter (RMS) of dR on the grid. */
+  /** Noise of dR: the RMS of its negative values (0 when fewer than three are negative). */
   scatter_K_per_W: number;
   /** The threshold the shift had to exceed. */
   threshold_K_per_W: number;
@@ -91,17 +102,16 @@ export function structureFunctionShift(
   const rth_change_K_per_W = later.r_K_per_W[later.r_K_per_W.length - 1] - referenceTotal;
   const warnings: string[] = [];
 
-  // The scatter estimate needs a few grid points; a shorter common range has no scatter to speak of.
-  const scatter_K_per_W = count >= 8 ? estimateNoiseRms(shift_K_per_W) : 0;
+  const scatter_K_per_W = negativeSideRms(shift_K_per_W);
   const threshold_K_per_W = Math.max(settings.minimumShift_K_per_W, settings.minimumShiftFraction * referenceTotal, settings.scatterFactor * scatter_K_per_W);
   const persistPoints = Math.max(2, Math.round(settings.persistDecades * settings.pointsPerDecade));
   const excess = Float64Array.from(shift_K_per_W, (d) => d - threshold_K_per_W);
-  const found = firstPersistentExceedance(excess, persistPoints);
+  const found = firstPersistentExceedance(excess, persistPoints, settings.remainingFraction);
 
   let start: StructureFunctionShift['start'] = null;
   let settled_shift_K_per_W: number | null = null;
   if (found === null) {
-    warnings.push(`no shift above ${threshold_K_per_W.toPrecision(2)} K/W persists over ${settings.persistDecades} decades of C_sum: no degraded layer found`);
+    warnings.push(`no shift above ${threshold_K_per_W.toPrecision(2)} K/W persists (over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond): no degraded layer found`);
   } else {
     start = { c_J_per_K: logInterpolate(c_J_per_K, found.position), reference_r_K_per_W: valueAtPosition(refR, found.position), grid_index: found.index };
     if (found.index === 0) {
@@ -126,6 +136,19 @@ export function structureFunctionShift(
     rth_change_K_per_W,
     warnings,
   };
+}
+
+/** RMS of the negative values; 0 when there are fewer than MIN_NEGATIVE_POINTS of them (no noise to speak of). */
+function negativeSideRms(values: Float64Array): number {
+  let sum = 0;
+  let count = 0;
+  for (const value of values) {
+    if (value < 0) {
+      sum += value * value;
+      count++;
+    }
+  }
+  return count >= MIN_NEGATIVE_POINTS ? Math.sqrt(sum / count) : 0;
 }
 
 /** A grid that is uniform in log C, read at a fractional position: geometric between neighbours. */

@@ -44,13 +44,28 @@ function baseOptions(seed: number, overrides: Partial<SyntheticTransientOptions>
   };
 }
 
-/** The SiC module with its die attach degraded: solder conductivity falls as cracks grow during power cycling. */
-function withDieAttachConductivity(stack: LayeredStack, factor: number): LayeredStack {
+/** The stack with one layer's conductivity scaled. */
+function withLayerConductivity(stack: LayeredStack, layerName: string, factor: number): LayeredStack {
   return {
     ...stack,
-    name: `${stack.name}, die attach at ${Math.round(factor * 100)} % conductivity`,
-    layers: stack.layers.map((layer) => (layer.name === 'die attach solder' ? { ...layer, conductivity_W_per_mK: layer.conductivity_W_per_mK * factor } : layer)),
+    name: `${stack.name}, ${layerName} at ${Math.round(factor * 100)} % conductivity`,
+    layers: stack.layers.map((layer) => (layer.name === layerName ? { ...layer, conductivity_W_per_mK: layer.conductivity_W_per_mK * factor } : layer)),
   };
+}
+
+/** The SiC module with its die attach degraded: solder conductivity falls as cracks grow during power cycling. */
+function withDieAttachConductivity(stack: LayeredStack, factor: number): LayeredStack {
+  return withLayerConductivity(stack, 'die attach solder', factor);
+}
+
+/**
+ * The module clamped dry onto the cold plate: the 50 um grease layer at 0.5
+ * instead of 3 W/(m K), about 1 K cm^2/W, the order of a dry metal contact
+ * (memory). Its heat capacity is left as it is: next to the baseplate and the
+ * cold plate it is negligible either way.
+ */
+function withDryContact(stack: LayeredStack): LayeredStack {
+  return withLayerConductivity(stack, 'thermal grease', 0.5 / 3);
 }
 
 function csv(meta: Record<string, string | number>, columns: string[], time_s: Float64Array, channels: Float64Array[]): string {
@@ -98,6 +113,13 @@ export async function generateDemoData(dir: string = DEMO_DIR): Promise<string[]
     const curve = syntheticTransient(stack.foster, baseOptions(31000 + cycles / 1000, { power_W: 50 }));
     const name = `fh-tt1_m31_cycle-${String(cycles).padStart(6, '0')}.csv`;
     await put(name, csv({ sample: 'M31', bench: 'FH-TT1', kind: 'cooling', power_W: 50, cycle_count: cycles }, ['time_s', 'temperature_C'], curve.time_s, [curve.values]));
+  }
+
+  // FH-TT1: module M41 measured twice for Rth-JC by the transient dual interface method (JESD51-14): greased and dry.
+  const interfaces: [string, LayeredStack, number][] = [['grease', SIC_POWER_MODULE_STACK, 41], ['dry', withDryContact(SIC_POWER_MODULE_STACK), 42]];
+  for (const [contact, stack, seed] of interfaces) {
+    const curve = syntheticTransient(layeredStackTruth(stack).foster, baseOptions(seed, { power_W: 50 }));
+    await put(`fh-tt1_m41_tdi-${contact}.csv`, csv({ sample: 'M41', bench: 'FH-TT1', kind: 'cooling', power_W: 50, interface: contact }, ['time_s', 'temperature_C'], curve.time_s, [curve.values]));
   }
 
   // FH-TT2: a heating curve of Q15 delivered as JSON.

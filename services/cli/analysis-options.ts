@@ -1,0 +1,83 @@
+/**
+ * The command-line options every analysing command shares (analyze, rthjc,
+ * degradation): heating power, TSP calibration and the analysis parameters,
+ * with their help text and their translation into the analysis inputs.
+ */
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
+import type { Calibration } from '../../shared/schemas/calibration.js';
+import { choiceOption, numberOption } from './cli-arguments.js';
+import { readCalibrationFile } from './read-calibration-file.js';
+
+/** parseArgs configuration of the shared options. */
+export const analysisOptions = {
+  'power-w': { type: 'string' },
+  'current-a': { type: 'string' },
+  'voltage-v': { type: 'string' },
+  calibration: { type: 'string' },
+  kind: { type: 'string' },
+  method: { type: 'string' },
+  'points-per-decade': { type: 'string' },
+  'early-start-s': { type: 'string' },
+  'early-end-s': { type: 'string' },
+} as const;
+
+export const powerAndCalibrationUsage = `  --power-w P             heating power in W
+  --current-a I --voltage-v V
+                          heating power as current x voltage
+                          (default: power_W or current_A and voltage_V from the
+                          file's "# key: value" header; zth_K_per_W input needs none)
+  --calibration CAL.json  TSP calibration for voltage_V input (heatpath calibrate)`;
+
+export const analysisParametersUsage = `  --kind cooling|heating  default: the file's "# kind:" header, else cooling
+  --method bayes|fourier  time-constant spectrum deconvolution (default bayes)
+  --points-per-decade N   log-time grid density, 10..200 (default 40)
+  --early-start-s T       start of the sqrt(t) early-time window (default: automatic)
+  --early-end-s T         end of the sqrt(t) early-time window (default: automatic)`;
+
+export interface AnalysisInputs {
+  power?: Power;
+  calibration?: Calibration;
+  parameters: Partial<AnalysisParameters>;
+}
+
+/** Power, calibration (read from its file) and parameters from parsed options. */
+export async function analysisInputsFromOptions(values: Record<string, unknown>): Promise<AnalysisInputs> {
+  const power = powerFromOptions(values);
+  const parameters = parametersFromOptions(values);
+  const calibration = values.calibration ? await readCalibrationFile(values.calibration as string) : undefined;
+  return { power, calibration, parameters };
+}
+
+function powerFromOptions(values: Record<string, unknown>): Power | undefined {
+  const power_W = numberOption('power-w', values['power-w'] as string | undefined, { positive: true });
+  const current_A = numberOption('current-a', values['current-a'] as string | undefined, { positive: true });
+  const voltage_V = numberOption('voltage-v', values['voltage-v'] as string | undefined, { positive: true });
+  if (power_W !== undefined && (current_A !== undefined || voltage_V !== undefined)) {
+    throw new HeatpathError('CLI_USAGE', 'give either --power-w or --current-a with --voltage-v, not both');
+  }
+  if ((current_A === undefined) !== (voltage_V === undefined)) {
+    throw new HeatpathError('CLI_USAGE', '--current-a and --voltage-v go together');
+  }
+  if (power_W !== undefined) return { power_W };
+  if (current_A !== undefined && voltage_V !== undefined) return { current_A, voltage_V };
+  return undefined;
+}
+
+/** The analysis parameters given on the command line; `compact-stages` only where the command offers it. */
+function parametersFromOptions(values: Record<string, unknown>): Partial<AnalysisParameters> {
+  const parameters: Partial<AnalysisParameters> = {};
+  const kind = choiceOption('kind', values.kind as string | undefined, ['cooling', 'heating'] as const);
+  const method = choiceOption('method', values.method as string | undefined, ['bayes', 'fourier'] as const);
+  const pointsPerDecade = numberOption('points-per-decade', values['points-per-decade'] as string | undefined, { integer: true });
+  const compactStages = numberOption('compact-stages', values['compact-stages'] as string | undefined, { integer: true });
+  const earlyStart = numberOption('early-start-s', values['early-start-s'] as string | undefined, { positive: true });
+  const earlyEnd = numberOption('early-end-s', values['early-end-s'] as string | undefined, { positive: true });
+  if (kind) parameters.kind = kind;
+  if (method) parameters.method = method;
+  if (pointsPerDecade !== undefined) parameters.points_per_decade = pointsPerDecade;
+  if (compactStages !== undefined) parameters.compact_stages = compactStages;
+  if (earlyStart !== undefined) parameters.early_time_start_s = earlyStart;
+  if (earlyEnd !== undefined) parameters.early_time_end_s = earlyEnd;
+  return parameters;
+}

@@ -1,0 +1,42 @@
+/**
+ * The measurements a comparing command (rthjc, degradation) works on: each
+ * file analysed like `heatpath analyze` does, one channel per file, with the
+ * file's metadata (cycle_count) kept beside the result, which does not carry
+ * it.
+ */
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { parseTransient } from '../../shared/input/parse-transient.js';
+import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';
+import type { CumulativeStructureFunction } from '../../shared/numerics/structure-function.js';
+import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
+import type { AnalysisInputs } from './analysis-options.js';
+import { analyzeFiles } from './analyze-command.js';
+import { readInputFile } from './read-input-file.js';
+
+export interface ComparedMeasurement {
+  file: string;
+  result: AnalysisResult;
+  meta: Record<string, string>;
+}
+
+/** Analyse each file; a file with several channels is refused (which channel to compare would be a guess). */
+export async function analyzeComparedFiles(files: string[], inputs: AnalysisInputs, createdAt: string): Promise<ComparedMeasurement[]> {
+  const measurements: ComparedMeasurement[] = [];
+  for (const file of files) {
+    const { results } = await analyzeFiles([file], { ...inputs, createdAt });
+    if (results.length !== 1) {
+      throw new HeatpathError('COMPARISON_SEVERAL_CHANNELS', `${results.length} channels (${results.map((r) => r.result.source.channel).join(', ')})`, { file });
+    }
+    const meta = parseTransient(await readInputFile(file), file).meta;
+    measurements.push({ file, result: results[0].result, meta });
+  }
+  return measurements;
+}
+
+export function cumulativeStructure(result: AnalysisResult): CumulativeStructureFunction {
+  return { r_K_per_W: Float64Array.from(result.structure.cumulative.r_K_per_W), c_J_per_K: Float64Array.from(result.structure.cumulative.c_J_per_K) };
+}
+
+export function interfaceMeasurement(result: AnalysisResult): InterfaceMeasurement {
+  return { time_s: Float64Array.from(result.zth.time_s), zth_K_per_W: Float64Array.from(result.zth.zth_K_per_W), structure: cumulativeStructure(result) };
+}

@@ -1,0 +1,129 @@
+import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { structureFunctionShift, type StructureFunctionShift } from '../../shared/numerics/structure-function-shift.js';
+import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
+import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
+import { analyzeComparedFiles, cumulativeStructure, type ComparedMeasurement } from './compared-measurements.js';
+
+/** An Rth rise of 20 % is a commonly used end-of-life criterion in power cycling (memory). */
+const DEFAULT_RTH_RISE_LIMIT_PERCENT = 20;
+
+export const DEGRADATION_NOTES = [
+  'The shift is R_sum(C) of a later measurement minus the reference\'s at equal C_sum: it starts where the degraded layer sits, counted from the junction, and settles at the resistance that layer added.',
+  'Bond-wire damage shows in the on-state voltage, not in the structure function (common practice).',
+  'The end-of-life flag marks an Rth rise above the limit; 20 % is recalled from memory as common in power-cycling practice: the qualification plan and AQG 324 decide.',
+];
+
+export const degradationUsage = `heatpath degradation REFERENCE FILE... [options]
+
+Track package degradation over power cycling: each later transient of the
+same device is compared with the reference by its cumulative structure
+function. Reports Rth total and its change, where the structure function
+starts to shift (R_sum from the junction and C_sum: the position of the
+degraded layer) and the resistance that layer added. The files' "# cycle_count:"
+header is shown when present.
+
+${powerAndCalibrationUsage}
+${analysisParametersUsage}
+  --rth-rise-limit-percent L
+                          flag an Rth rise above L % (default ${DEFAULT_RTH_RISE_LIMIT_PERCENT}, a common
+                          end-of-life criterion (memory); the qualification plan and AQG 324 decide)
+  --format text|json      text table (default) or one JSON object with the shift curves`;
+
+/** `heatpath degradation`: returns the exit code; writes the report to `print`. */
+export async function runDegradationCommand(argv: string[], print: (text: string) => void): Promise<number> {
+  const { values, positionals } = parseCommandLine('degradation', argv, {
+    ...analysisOptions,
+    'rth-rise-limit-percent': { type: 'string' },
+    format: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (values.help) {
+    print(degradationUsage);
+    return 0;
+  }
+  if (positionals.length < 2) throw new HeatpathError('CLI_USAGE', 'heatpath degradation needs a REFERENCE and at least one later FILE');
+  const format = choiceOption('format', values.format as string | undefined, ['text', 'json'] as const) ?? 'text';
+  const limitPercent = numberOption('rth-rise-limit-percent', values['rth-rise-limit-percent'] as string | undefined, { positive: true }) ?? DEFAULT_RTH_RISE_LIMIT_PERCENT;
+  const inputs = await analysisInputsFromOptions(values);
+
+  const [reference, ...later] = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
+  const rows = later.map((measurement) => degradationRow(reference, measurement, limitPercent));
+  print(format === 'json' ? JSON.stringify(degradationReport(reference, rows, limitPercent)) : formatDegradation(reference, rows, limitPercent));
+  return 0;
+}
+
+export interface DegradationRow {
+  measurement: ComparedMeasurement;
+  cycles: number | null;
+  rthChangePercent: number;
+  exceedsLimit: boolean;
+  shift: StructureFunctionShift;
+}
+
+function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, limitPercent: number): DegradationRow {
+  const rthRef = reference.result.rth_total_K_per_W;
+  const rthChangePercent = ((measurement.result.rth_total_K_per_W - rthRef) / rthRef) * 100;
+  const shift = structureFunctionShift(cumulativeStructure(reference.result), cumulativeStructure(measurement.result));
+  return { measurement, cycles: cycleCount(measurement), rthChangePercent, exceedsLimit: rthChangePercent > limitPercent, shift };
+}
+
+/** The file's `# cycle_count:` header as a number; null when absent or not a number. */
+function cycleCount(measurement: ComparedMeasurement): number | null {
+  const text = measurement.meta.cycle_count;
+  const value = text === undefined ? NaN : Number(text);
+  return text !== undefined && text.trim() !== '' && Number.isFinite(value) ? value : null;
+}
+
+/** The JSON object of `heatpath degradation --format json`. */
+export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number) {
+  return {
+    heatpath_degradation: 1,
+    reference: { file: reference.file, cycles: cycleCount(reference), rth_total_K_per_W: reference.result.rth_total_K_per_W },
+    rth_rise_limit_percent: limitPercent,
+    later: rows.map(({ measurement, cycles, rthChangePercent, exceedsLimit, shift }) => ({
+      file: measurement.file,
+      cycles,
+      rth_total_K_per_W: measurement.result.rth_total_K_per_W,
+      rth_change_percent: rthChangePercent,
+      rth_rise_exceeds_limit: exceedsLimit,
+      shift_start: shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K },
+      added_r_K_per_W: shift.settled_shift_K_per_W,
+      structure_rth_change_K_per_W: shift.rth_change_K_per_W,
+      shift_threshold_K_per_W: shift.threshold_K_per_W,
+      shift_scatter_K_per_W: shift.scatter_K_per_W,
+      curves: { c_J_per_K: Array.from(shift.c_J_per_K), reference_r_K_per_W: Array.from(shift.reference_r_K_per_W), shift_K_per_W: Array.from(shift.shift_K_per_W) },
+      warnings: [...measurement.result.quality.warnings, ...shift.warnings],
+    })),
+    notes: DEGRADATION_NOTES,
+    caution: RESULT_CAUTION,
+  };
+}
+
+/** The readable table of `heatpath degradation`: one row per later file. */
+export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number): string {
+  const referenceCycles = cycleCount(reference);
+  const header = ['file', 'cycles', 'Rth total', 'change', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
+  const table = rows.map(({ measurement, cycles, rthChangePercent, exceedsLimit, shift }) => [
+    measurement.file,
+    cycles === null ? '-' : String(cycles),
+    `${measurement.result.rth_total_K_per_W.toPrecision(4)} K/W`,
+    `${rthChangePercent >= 0 ? '+' : ''}${rthChangePercent.toFixed(1)} %`,
+    shift.start === null ? 'no shift' : `${shift.start.reference_r_K_per_W.toPrecision(3)} K/W`,
+    shift.start === null ? '-' : `${shift.start.c_J_per_K.toPrecision(3)} J/K`,
+    shift.settled_shift_K_per_W === null ? '-' : `${shift.settled_shift_K_per_W.toPrecision(3)} K/W`,
+    exceedsLimit ? 'END OF LIFE?' : 'no',
+  ]);
+  const widths = header.map((h, column) => Math.max(h.length, ...table.map((row) => row[column].length)));
+  const line = (cells: string[]) => '  ' + cells.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('   ');
+  const warnings = rows.flatMap(({ measurement, shift }) => shift.warnings.map((w) => `  ${measurement.file}: ${w}`));
+  return [
+    `Package degradation against ${reference.file}` +
+      `${referenceCycles === null ? '' : ` (${referenceCycles} cycles)`}: Rth total ${reference.result.rth_total_K_per_W.toPrecision(4)} K/W`,
+    line(header),
+    ...table.map(line),
+    ...DEGRADATION_NOTES.map((note) => `  ${note}`),
+    ...(warnings.length > 0 ? ['Warnings:', ...warnings] : []),
+    `Caution: ${RESULT_CAUTION}`,
+  ].join('\n') + '\n';
+}
