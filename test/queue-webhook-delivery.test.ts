@@ -1,14 +1,14 @@
 import { createServer, type IncomingMessage, type Server } from 'node:http';
-import { mkdtemp, rm } from 'node:fs/promises';
 import type { AddressInfo } from 'node:net';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { TransientStore } from '../services/store/transient-store.js';
+import type { TransientStore } from '../services/store/transient-store.js';
+import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
+import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { WebhookDeliveryWorker } from '../workers/webhook-delivery.js';
 import { WebhookNotifier, type WebhookPayload } from '../workers/webhook-notifier.js';
 import { WebhookRegistry } from '../workers/webhook-registry.js';
 import { verifyWebhookSignature, WEBHOOK_SIGNATURE_HEADER } from '../workers/webhook-signature.js';
+import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
 
 interface Received {
@@ -18,7 +18,7 @@ interface Received {
 
 let redisUrl: string;
 let prefix: string;
-let dataDir: string;
+let fixture: QueueTestFixture;
 let store: TransientStore;
 let server: Server;
 let receiverUrl: string;
@@ -28,8 +28,8 @@ let answers: number[];
 beforeEach(async () => {
   redisUrl = (await testRedis()).url;
   prefix = randomPrefix();
-  dataDir = await mkdtemp(join(tmpdir(), 'heatpath-webhook-'));
-  store = new TransientStore(dataDir);
+  fixture = await QueueTestFixture.create();
+  store = fixture.store;
   received = [];
   answers = [];
   server = createServer((request, response) => {
@@ -47,16 +47,13 @@ beforeEach(async () => {
 afterEach(async () => {
   await new Promise<void>((resolve) => server.close(() => resolve()));
   await deleteKeysWithPrefix(redisUrl, prefix);
-  await rm(dataDir, { recursive: true, force: true });
+  await fixture.remove();
 });
 
 const payload: WebhookPayload = {
   event: 'job.completed', job_id: 'job-abc', upload_id: 'u1', sample_id: 'S1', batch_id: null, error: null, occurred_at: '2026-01-01T00:00:00.000Z',
 };
 
-async function until(condition: () => boolean): Promise<void> {
-  while (!condition()) await new Promise((resolve) => setTimeout(resolve, 20));
-}
 
 describe('webhooks (real Redis, local receiver)', () => {
   it('delivers a signed JSON POST and retries after a 500', async () => {
@@ -68,7 +65,7 @@ describe('webhooks (real Redis, local receiver)', () => {
     try {
       expect(await notifier.notify(payload)).toBe(1);
       expect(await notifier.notify(payload)).toBe(1); // a retried analysis notifies again: still one delivery
-      await until(() => received.length >= 2);
+      await eventually(() => received.length >= 2, 20);
       await new Promise((resolve) => setTimeout(resolve, 300)); // room for a wrong extra delivery to show up
     } finally {
       await delivery.close();
@@ -85,6 +82,34 @@ describe('webhooks (real Redis, local receiver)', () => {
       expect(verifyWebhookSignature('another-secret', body, signature, now)).toBe(false);
       expect(verifyWebhookSignature(webhook.secret, body.replace('S1', 'S2'), signature, now)).toBe(false);
     }
+  });
+
+  it('tells the webhook when an analysis job completes and when one fails for good', async () => {
+    const registry = new WebhookRegistry(store, [receiverUrl]);
+    const webhook = await registry.register(receiverUrl, [], 'admin');
+    const queue = new AnalysisQueue({ redisUrl, prefix });
+    const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix });
+    try {
+      const good = await fixture.storeUpload(91);
+      const bad = await fixture.storeUpload(92, Buffer.from('time_s,temperature_C\n'));
+      await queue.enqueue(good, { priority: JOB_PRIORITY.interactive });
+      await queue.enqueue(bad, { priority: JOB_PRIORITY.interactive });
+      await eventually(() => received.length >= 2, 50);
+    } finally {
+      await worker.close(5_000);
+      await delivery.close();
+      await queue.close();
+    }
+    const bodies = received.map(({ body, headers }) => {
+      expect(verifyWebhookSignature(webhook.secret, body, headers['heatpath-signature'] as string, Math.floor(Date.now() / 1000))).toBe(true);
+      return JSON.parse(body) as WebhookPayload;
+    });
+    const completed = bodies.find((body) => body.event === 'job.completed');
+    const failed = bodies.find((body) => body.event === 'job.failed');
+    expect(completed).toMatchObject({ sample_id: 'S-TEST', error: null });
+    expect(await store.hasResult(completed!.job_id)).toBe(true);
+    expect(failed?.error?.code).toMatch(/^INPUT_/);
   });
 
   it('does not notify webhooks of other events', async () => {
