@@ -2,17 +2,20 @@
 /**
  * `npm run demo`: the CLI's own commands on the bundled synthetic data of the
  * invented Fernhill Power Reliability Lab (test/fixtures/demo-lab). Fits the
- * TSP calibration of Q12, analyses every transient, and summarises the
- * power-cycling campaign of module M31.
+ * TSP calibration of Q12, analyses every transient, summarises the
+ * power-cycling campaign of module M31 and finds Rth-JC of module M41 by two
+ * interfaces.
  */
 import { mkdir, readdir } from 'node:fs/promises';
 import { join, relative } from 'node:path';
 import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { analyzeFiles } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
+import { runDegradationCommand } from './degradation-command.js';
 import { formatResultSummary } from './format-result-summary.js';
 import { packageRoot } from './package-root.js';
 import { readCalibrationFile } from './read-calibration-file.js';
+import { runRthjcCommand } from './rthjc-command.js';
 
 const root = packageRoot(import.meta.url);
 const dataDir = join(root, 'test', 'fixtures', 'demo-lab');
@@ -51,7 +54,11 @@ async function runDemo(): Promise<void> {
       print(`  ${String(cycles).padStart(6)} cycles   ${rth.toFixed(4)} K/W   ${(((rth - first) / first) * 100).toFixed(1).padStart(5)} %`);
     }
     print('  (an Rth rise of 20 % is a commonly used end-of-life criterion (memory); your qualification plan decides.)\n');
+    print('Where the degradation of M31 sits (heatpath degradation: structure-function shift against the first measurement):');
+    await runDegradationCommand(campaign.map((r) => shown(r.file)), print);
   }
+  print('Rth-JC of module M41 by two interfaces, greased and dry (heatpath rthjc; synthetic):');
+  await runRthjcCommand(['fh-tt1_m41_tdi-dry.csv', 'fh-tt1_m41_tdi-grease.csv'].map((f) => shown(join(dataDir, f))), print);
   print(`Analysed ${runs.length} channels in ${elapsed_ms.toFixed(0)} ms. Results (result.json, CSV tables, SPICE netlists) are in ${shown(outDir)}/`);
   print('Caution: engineering estimates; check against JESD51-1/JESD51-14/AQG 324 and qualified lab practice before any qualification decision.');
 }
