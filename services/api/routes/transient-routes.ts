@@ -63,7 +63,12 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
             'multipart/form-data': {
               schema: Type.Unsafe<unknown>({
                 description: 'A file part named `file`, plus metadata fields or a `meta` JSON field.',
-                properties: { file: { format: 'binary' }, meta: { description: 'JSON object of metadata.', ...UploadMetadataSchema } },
+                properties: {
+                  file: { type: 'string', format: 'binary', description: 'The transient file (CSV or JSON).' },
+                  // A JSON document inside a string field, as OpenAPI 3.1 describes it (JSON Schema contentMediaType and contentSchema).
+                  meta: { type: 'string', contentMediaType: 'application/json', contentSchema: UploadMetadataSchema, description: 'Metadata as one JSON object.' },
+                },
+                required: ['file'],
               }),
             },
           },
