@@ -136,6 +136,19 @@ describe('with a real Redis', () => {
     expect(changed.json().job_id).not.toBe(answer.job_id);
   });
 
+  it('records the format the parser saw when neither media type nor file name tell it', async () => {
+    const rows = small.toString('utf8').trim().split('\n').slice(1).map((line) => line.split(',').map(Number));
+    const json = `\ufeff  ${JSON.stringify({ time_s: rows.map((row) => row[0]), temperature_C: rows.map((row) => row[1]) })}`;
+    const form = multipart([
+      { name: 'sample_id', value: 'S-fmt' },
+      { name: 'power_W', value: '50' },
+      { name: 'file', value: json, filename: 'export', type: 'application/octet-stream' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(response.statusCode, response.body).toBe(202);
+    expect(await context.store.getUpload(response.json().upload_id)).toMatchObject({ format: 'json', file_name: 'export' });
+  });
+
   it('fits a calibration, then analyses voltage input with it by id', async () => {
     const temperature_C = [25, 50, 75, 100, 125, 150];
     const fitted = await context.app.inject({

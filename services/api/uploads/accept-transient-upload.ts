@@ -82,7 +82,7 @@ export async function acceptTransientUpload(
   const record: UploadRecord = {
     upload_id: `upl-${randomUUID()}`,
     input_sha256: blob.sha256,
-    format: upload.format ?? (upload.bytes.toString('utf8').trimStart().replace(/^\ufeff/, '').startsWith('{') ? 'json' : 'csv'),
+    format: formatOf(upload),
     file_name: upload.fileName,
     byte_length: blob.byte_length,
     received_at: new Date().toISOString(),
@@ -138,6 +138,11 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
   const record = await store.getUpload(uploadId);
   if (!record) throw new HeatpathError('INTERNAL_ERROR', `idempotency record names upload ${uploadId}, which is not stored`);
   return record;
+}
+
+/** As the parser decides when not told: JSON when the text starts with '{' (trim drops a byte-order mark too). */
+function formatOf(upload: UploadRequest): UploadRecord['format'] {
+  return upload.format ?? (upload.bytes.toString('utf8').trimStart().startsWith('{') ? 'json' : 'csv');
 }
 
 function powerOf(metadata: UploadMetadata): Power | null {
