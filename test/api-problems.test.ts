@@ -1,4 +1,7 @@
+import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { LightMyRequestResponse } from 'fastify';
 import { errorCatalogue } from '../shared/errors/error-catalogue.js';
@@ -212,6 +215,27 @@ describe('with Redis down', () => {
     const ready = await context.app.inject({ url: '/health/ready' });
     expect(expectProblem(ready, 503, 'SERVICE_UNAVAILABLE').checks).toEqual({ redis: 'unavailable', store: 'ok' });
     expect((await context.app.inject({ url: '/health/live' })).statusCode).toBe(200);
+  });
+});
+
+describe('with the data directory unusable', () => {
+  let context: ApiTestContext;
+  let parent: string;
+  beforeAll(async () => {
+    // A directory below a regular file can never be created, whoever runs the test.
+    parent = await mkdtemp(join(tmpdir(), 'heatpath-blocked-'));
+    await writeFile(join(parent, 'not-a-directory'), '');
+    context = await startApiTestApp({ HEATPATH_DATA_DIR: join(parent, 'not-a-directory', 'data') });
+  });
+  afterAll(async () => {
+    await context.close();
+    await rm(parent, { recursive: true, force: true });
+  });
+
+  it('503 for an upload that cannot be stored, and /health/ready names the store', async () => {
+    expectProblem(await upload(context, 'sample_id=S-blocked&power_W=50', csv), 503, 'SERVICE_UNAVAILABLE');
+    const ready = await context.app.inject({ url: '/health/ready' });
+    expect(expectProblem(ready, 503, 'SERVICE_UNAVAILABLE').checks).toEqual({ redis: 'ok', store: 'unavailable' });
   });
 });
 

@@ -69,9 +69,15 @@ const statusCodes: Record<number, ErrorCode> = {
   503: 'SERVICE_UNAVAILABLE',
 };
 
+/** File-system failures of the store: the data directory is full, read-only or gone. */
+const storeFailures = new Set(['ENOSPC', 'EDQUOT', 'EROFS', 'EACCES', 'EPERM', 'ENOTDIR', 'ENOENT', 'EIO']);
+
 function toHeatpathError(error: FastifyError): HeatpathError {
   if (isHeatpathError(error)) return error;
   if (error.validation) return new HeatpathError('REQUEST_INVALID', describeValidation(error));
+  if (error.code !== undefined && storeFailures.has(error.code) && 'syscall' in error) {
+    return new HeatpathError('SERVICE_UNAVAILABLE', `the data directory cannot be used (${error.code})`);
+  }
   const status = error.statusCode ?? 500;
   const code = statusCodes[status] ?? (status >= 400 && status < 500 ? 'REQUEST_INVALID' : 'INTERNAL_ERROR');
   // Internal messages may leak paths or stack details: only 4xx texts are meant for clients.
