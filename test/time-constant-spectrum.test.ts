@@ -150,6 +150,40 @@ describe('time-constant spectrum of known Foster networks', () => {
   }
 });
 
+describe('posterior-mean spectrum of a known Foster network', () => {
+  // Each posterior sample places a line where the data put it, within the
+  // noise; their mean spreads each Foster line over a few neighbouring bins,
+  // so the check is on the mass and mass-weighted position of each line
+  // (Szekely & Van Bien 1988: a Foster network's spectrum is a line of weight
+  // R_i at each tau_i) rather than on local maxima.
+  const time_s = logTimes(1e-6, 100, 100);
+  const r = [0.1, 0.25, 0.4];
+  const tau = [1e-4, 1e-3, 1e-2];
+  const rth = 0.75;
+  it('puts R_i within 0.3 decade of each tau_i, centred within 0.05 decade, and nothing elsewhere', () => {
+    const noise = 1e-4 * rth;
+    const spectrum = timeConstantSpectrum(time_s, fosterZth(r, tau, time_s, noise, 3), { method: 'posterior-mean', pointsPerDecade: 40, noise_K_per_W: noise });
+    let assigned = 0;
+    tau.forEach((t, i) => {
+      let mass = 0;
+      let moment = 0;
+      spectrum.tau_s.forEach((tj, j) => {
+        const offset = Math.log10(tj / t);
+        if (Math.abs(offset) <= 0.3) {
+          mass += spectrum.r_K_per_W[j];
+          moment += spectrum.r_K_per_W[j] * offset;
+        }
+      });
+      assigned += mass;
+      expect(mass / r[i]).toBeCloseTo(1, 1);
+      expect(Math.abs(moment / mass)).toBeLessThan(0.05);
+    });
+    expect(sum(spectrum.r_K_per_W) / rth).toBeCloseTo(1, 2);
+    expect(1 - assigned / sum(spectrum.r_K_per_W)).toBeLessThan(0.02);
+    for (const v of spectrum.r_K_per_W) expect(v).toBeGreaterThanOrEqual(0);
+  });
+});
+
 describe('time-constant spectrum of a finite slab (Carslaw & Jaeger, Conduction of Heat in Solids, 2nd ed., 1959)', () => {
   // Flux at one face, isothermal other: R_n = 8 Rth / ((2n-1)^2 pi^2), tau_n = 4 L^2 / ((2n-1)^2 pi^2 alpha).
   const rth = 0.5;
@@ -158,7 +192,7 @@ describe('time-constant spectrum of a finite slab (Carslaw & Jaeger, Conduction 
   const r = Array.from({ length: modes }, (_, n) => (8 * rth) / ((2 * n + 1) ** 2 * Math.PI ** 2));
   const tau = Array.from({ length: modes }, (_, n) => tau1 / (2 * n + 1) ** 2);
   const time_s = logTimes(1e-6, 100, 100);
-  for (const method of ['bayes', 'fourier'] as const) {
+  for (const method of ['posterior-mean', 'bayes', 'fourier'] as const) {
     it(`${method}: recovers the spectrum mass and the first mode`, () => {
       const noise = 3e-4 * rth;
       const spectrum = timeConstantSpectrum(time_s, fosterZth(r, tau, time_s, noise, 5), { method, pointsPerDecade: 40, noise_K_per_W: noise });

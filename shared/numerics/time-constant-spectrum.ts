@@ -9,6 +9,14 @@
  * cell integral of w(z) = exp(z - exp(z)); the fit quality is always judged on
  * a itself, where the bench noise is white and its level is known.
  *
+ * 'posterior-mean' (the recommended default) is the mean of exact
+ * non-negative least-squares fits to noise-perturbed copies of the curve
+ * (posterior-mean-deconvolution.ts). On the layered-stack truth models it
+ * cut the structure-function error by about a third in the median and a
+ * sixth in the 90th percentile against 'bayes' (more against 'fourier'),
+ * which share one limit: a single regularised or early-stopped estimate
+ * blurs every peak to the linear resolution of the noisy curve.
+ *
  * 'fourier' is the Wiener-filtered estimate (fourier-deconvolution.ts).
  * 'bayes' refines it with the multiplicative iteration of
  * bayes-deconvolution.ts until the misfit reaches the noise level
@@ -23,9 +31,10 @@ import { timeConstantStepResponse } from './time-constant-kernel.js';
 import { bayesDeconvolution } from './bayes-deconvolution.js';
 import { fourierDeconvolution } from './fourier-deconvolution.js';
 import { createFftConvolution } from './fft-convolution.js';
+import { posteriorMeanDeconvolution } from './posterior-mean-deconvolution.js';
 
 export interface TimeConstantSpectrumOptions {
-  method: 'bayes' | 'fourier';
+  method: 'posterior-mean' | 'bayes' | 'fourier';
   pointsPerDecade: number;
   /** RMS noise of one raw Zth sample. */
   noise_K_per_W: number;
@@ -69,6 +78,18 @@ const INTEGRAL_MISFIT_WEIGHT = 0.01;
  * asking for exactly 1 would run every fit to the cap.
  */
 const DISCREPANCY_FACTOR = 1.05;
+/**
+ * Samples of the posterior-mean method. The Monte Carlo scatter of the mean
+ * falls as 1/sqrt(samples); on the layered-stack truth models 16 samples
+ * instead of 8 lowered the mean 90th-percentile structure-function error
+ * from 0.082 to 0.075 decades, less than its scatter between noise seeds,
+ * at twice the cost (each sample takes about a millisecond).
+ */
+const POSTERIOR_SAMPLES = 8;
+/** Fixed seed of the posterior samples: the same curve always gives the same spectrum. */
+const POSTERIOR_SEED = 20140101;
+/** Free-set solves per sample: a fit visits each of its few tens of lines a few times. */
+const MAX_SOLVES_PER_SAMPLE = 2000;
 /** Floor added to the Fourier start, as a fraction of Rth spread over all columns: a multiplicative update cannot revive an exact zero. */
 const START_FLOOR_FRACTION = 1e-3;
 
@@ -84,6 +105,16 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
   const high = Math.round((HIGH_EXTENSION_DECADES * Math.LN10) / dz);
   const nx = low + ny + high;
   const warnings: string[] = [];
+  const tau_s = new Float64Array(nx);
+  for (let j = 0; j < nx; j++) tau_s[j] = Math.exp(grid.z[0] + (j - low) * dz);
+  if (options.method === 'posterior-mean') {
+    const result = posteriorMeanDeconvolution({
+      stepKernel: stepKernel(grid, low, nx), unknownCount: nx, a: grid.a, varianceFactor: grid.varianceFactor, noise: noise_K_per_W,
+      samples: POSTERIOR_SAMPLES, seed: POSTERIOR_SEED, maxSolvesPerSample: MAX_SOLVES_PER_SAMPLE,
+    });
+    if (result.unconverged > 0) warnings.push(`${result.unconverged} of ${POSTERIOR_SAMPLES} posterior samples stopped at ${MAX_SOLVES_PER_SAMPLE} active-set solves before reaching the least-squares optimum`);
+    return { tau_s, r_K_per_W: result.mean, iterations: result.solves, residual_rms_K_per_W: integralResidualRms(grid, low, result.mean), warnings };
+  }
   const fourier = fourierSpectrum(grid, low, nx, noise_K_per_W);
   if (fourier.clippedFraction > 0.01) warnings.push(`Fourier estimate: negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins`);
   let r = fourier.r;
@@ -106,8 +137,6 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
     iterations = result.iterations;
     if (!result.reachedTarget) warnings.push(`deconvolution stopped after ${result.iterations} iterations with residual ${result.residualRms.toPrecision(3)} K/W above the noise level ${noise_K_per_W.toPrecision(3)} K/W`);
   }
-  const tau_s = new Float64Array(nx);
-  for (let j = 0; j < nx; j++) tau_s[j] = Math.exp(grid.z[0] + (j - low) * dz);
   return { tau_s, r_K_per_W: r, iterations, residual_rms_K_per_W: integralResidualRms(grid, low, r), warnings };
 }
 
@@ -154,11 +183,16 @@ function fourierSpectrum(grid: LogTimeGrid, low: number, nx: number, noise_K_per
 function integralResidualRms(grid: LogTimeGrid, low: number, r: Float64Array): number {
   const ny = grid.a.length;
   const nx = r.length;
-  const kernel = new Float64Array(nx + ny - 1);
-  for (let p = 0; p < kernel.length; p++) kernel[p] = timeConstantStepResponse((p - (nx - 1) + low) * grid.dz);
   const model = new Float64Array(ny);
-  createFftConvolution(kernel, nx, ny).convolve(r, model);
+  createFftConvolution(stepKernel(grid, low, nx), nx, ny).convolve(r, model);
   let chi2 = 0;
   for (let i = 0; i < ny; i++) chi2 += (grid.a[i] - model[i]) ** 2 / grid.varianceFactor[i];
   return Math.sqrt(chi2 / ny);
+}
+
+/** s(z_i - zeta_j) at the lags i - j = -(nx - 1) .. ny - 1 (see fft-convolution.ts). */
+function stepKernel(grid: LogTimeGrid, low: number, nx: number): Float64Array {
+  const kernel = new Float64Array(nx + grid.a.length - 1);
+  for (let p = 0; p < kernel.length; p++) kernel[p] = timeConstantStepResponse((p - (nx - 1) + low) * grid.dz);
+  return kernel;
 }
