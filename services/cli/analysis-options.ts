@@ -30,7 +30,8 @@ export const powerAndCalibrationUsage = `  --power-w P             heating power
   --calibration CAL.json  TSP calibration for voltage_V input (heatpath calibrate)`;
 
 export const analysisParametersUsage = `  --kind cooling|heating  default: the file's "# kind:" header, else cooling
-  --method bayes|fourier  time-constant spectrum deconvolution (default bayes)
+  --method M              time-constant spectrum deconvolution: posterior-mean
+                          (default, the most accurate), bayes or fourier
   --points-per-decade N   log-time grid density, 10..200 (default 40)
   --early-start-s T       start of the sqrt(t) early-time window (default: automatic)
   --early-end-s T         end of the sqrt(t) early-time window (default: automatic)`;
@@ -68,7 +69,7 @@ function powerFromOptions(values: Record<string, unknown>): Power | undefined {
 function parametersFromOptions(values: Record<string, unknown>): Partial<AnalysisParameters> {
   const parameters: Partial<AnalysisParameters> = {};
   const kind = choiceOption('kind', values.kind as string | undefined, ['cooling', 'heating'] as const);
-  const method = choiceOption('method', values.method as string | undefined, ['bayes', 'fourier'] as const);
+  const method = choiceOption('method', values.method as string | undefined, ['bayes', 'fourier', 'posterior-mean'] as const);
   const pointsPerDecade = numberOption('points-per-decade', values['points-per-decade'] as string | undefined, { integer: true });
   const compactStages = numberOption('compact-stages', values['compact-stages'] as string | undefined, { integer: true });
   const earlyStart = numberOption('early-start-s', values['early-start-s'] as string | undefined, { positive: true });

@@ -12,9 +12,9 @@ export const AnalysisParametersSchema = Type.Object(
       default: 'cooling',
       description: 'cooling: power switched off at t = 0 after steady heating; heating: power step on a device at equilibrium.',
     }),
-    method: Type.Union([Type.Literal('bayes'), Type.Literal('fourier')], {
-      default: 'bayes',
-      description: 'Deconvolution of the time-constant spectrum: Bayesian iterative (default) or Fourier-domain with a noise-chosen filter.',
+    method: Type.Union([Type.Literal('posterior-mean'), Type.Literal('bayes'), Type.Literal('fourier')], {
+      default: 'posterior-mean',
+      description: 'Deconvolution of the time-constant spectrum: posterior mean of non-negative least-squares fits (default, the most accurate), Bayesian iterative, or Fourier-domain with a noise-chosen filter.',
     }),
     points_per_decade: Type.Integer({ minimum: 10, maximum: 200, default: 40, description: 'Samples per decade of the uniform log-time grid.' }),
     early_time_start_s: Type.Optional(Type.Number({ exclusiveMinimum: 0, description: 'Start of the sqrt(t) fit window; found automatically when omitted.' })),
@@ -37,7 +37,7 @@ export type Power = Static<typeof PowerSchema>;
 
 export const defaultAnalysisParameters: AnalysisParameters = {
   kind: 'cooling',
-  method: 'bayes',
+  method: 'posterior-mean',
   points_per_decade: 40,
   compact_stages: 5,
 };
