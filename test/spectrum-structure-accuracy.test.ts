@@ -5,87 +5,117 @@
  * (method-notes section 7: the ladder's exact Foster form from its tridiagonal
  * eigendecomposition; Szekely & Van Bien, Solid-State Electronics 31, 1988,
  * for the structure function). Error: |log10 C_sum(estimate) - log10 C_sum(exact)|
- * at the same R_sum, on 5-90 % of Rth.
+ * at the same R_sum, on 5-90 % of Rth, per curve (median and 90th percentile).
  *
  * Scenario of the project's accuracy target: cooling curve with P x Rth = 60 K,
- * gaussian noise 0.02 K RMS, 1 us .. 100 s at 100 samples per decade.
+ * gaussian noise 0.02 K RMS, 1 us .. 100 s at 100 samples per decade, 40
+ * points per decade, noise seeds 1-4, the two example stacks and a third one
+ * defined here with a different layer sequence (no baseplate, alumina
+ * ceramic, gap pad), so that nothing is tuned to the examples.
+ *
  * The project's target is 0.02 decades (median) and 0.06 (90th percentile).
- * NOT YET MET: the bounds below are the level reached now (bayes about 0.036 /
- * 0.09, fourier about 0.045 / 0.11 decades), kept as a regression guard.
+ * NOT MET. Level reached (worst curve of the twelve): posterior-mean 0.042 /
+ * 0.113, bayes 0.049 / 0.121, fourier 0.059 / 0.34 decades. The bounds below
+ * are those levels with a small margin, kept as a regression guard, and the
+ * comparison test keeps the recommended method ahead of the other two. For
+ * scale: blurring the exact spectrum by a gaussian of 0.1 decade standard
+ * deviation already gives 0.011-0.025 / 0.05-0.12 on these stacks, while the
+ * linear resolution of a 3e-4-relative-noise curve is about half a decade.
  */
 import { describe, expect, it } from 'vitest';
-import { layeredStackRth, layeredStackTruth } from '../shared/models/layered-stack.js';
+import { layeredStackTruth, type LayeredStack, type StackLayer } from '../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 import { fosterToCauer } from '../shared/numerics/foster-to-cauer.js';
-import { cumulativeStructureFunction, type CumulativeStructureFunction } from '../shared/numerics/structure-function.js';
-import { timeConstantSpectrum } from '../shared/numerics/time-constant-spectrum.js';
+import { cumulativeStructureFunction } from '../shared/numerics/structure-function.js';
+import { timeConstantSpectrum, type TimeConstantSpectrumOptions } from '../shared/numerics/time-constant-spectrum.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
+import { structureFunctionError, type StructureError } from './support/structure-function-error.js';
+
+type Material = Pick<StackLayer, 'conductivity_W_per_mK' | 'volumetric_heat_capacity_J_per_m3K'>;
+const layer = (name: string, material: Material, thickness_m: number, side_start_m: number, side_end_m: number): StackLayer =>
+  ({ name, thickness_m, ...material, area_start_m2: side_start_m ** 2, area_end_m2: side_end_m ** 2 });
+
+/**
+ * A 10 x 10 mm silicon IGBT die on an Al2O3 DBC without baseplate, on a gap
+ * pad and an aluminium heatsink (handbook values near room temperature,
+ * memory: Si k 148, c_v 1.64e6; SAC305 k 58, c_v 1.70e6; Cu k 398, c_v 3.45e6;
+ * Al2O3 96 % k 24, c_v 3.30e6; gap pad k 1.5, c_v 2.6e6; Al 6061 k 167,
+ * c_v 2.42e6; 45-degree spreading). Rth about 1.46 K/W, slowest tau about 1.4 s.
+ */
+const IGBT_ON_ALUMINA_DBC_STACK: LayeredStack = {
+  name: 'IGBT on an Al2O3 DBC and a gap pad',
+  layers: [
+    layer('Si die', { conductivity_W_per_mK: 148, volumetric_heat_capacity_J_per_m3K: 2330 * 705 }, 120e-6, 10e-3, 10e-3),
+    layer('die attach solder', { conductivity_W_per_mK: 58, volumetric_heat_capacity_J_per_m3K: 7400 * 230 }, 80e-6, 10e-3, 10.1e-3),
+    layer('DBC top copper', { conductivity_W_per_mK: 398, volumetric_heat_capacity_J_per_m3K: 8960 * 385 }, 300e-6, 10.1e-3, 10.7e-3),
+    layer('DBC Al2O3 ceramic', { conductivity_W_per_mK: 24, volumetric_heat_capacity_J_per_m3K: 3750 * 880 }, 380e-6, 10.7e-3, 11.46e-3),
+    layer('DBC bottom copper', { conductivity_W_per_mK: 398, volumetric_heat_capacity_J_per_m3K: 8960 * 385 }, 300e-6, 11.46e-3, 12.06e-3),
+    layer('gap pad', { conductivity_W_per_mK: 1.5, volumetric_heat_capacity_J_per_m3K: 2.6e6 }, 200e-6, 12.06e-3, 12.46e-3),
+    layer('aluminium heatsink', { conductivity_W_per_mK: 167, volumetric_heat_capacity_J_per_m3K: 2700 * 896 }, 5e-3, 12.46e-3, 22.46e-3),
+  ],
+  sink_resistance_K_per_W: 0.3,
+};
 
 function logTimes(first_s: number, last_s: number, perDecade: number): Float64Array {
   const n = Math.round(Math.log10(last_s / first_s) * perDecade) + 1;
   return Float64Array.from({ length: n }, (_, i) => first_s * 10 ** (i / perDecade));
 }
 
-/** log10 C_sum at R_sum = r, linear in log C between the ladder's points. */
-function log10CAt(structure: CumulativeStructureFunction, r: number): number {
-  const rs = structure.r_K_per_W;
-  const cs = structure.c_J_per_K;
-  let lo = 0;
-  let hi = rs.length - 1;
-  if (r <= rs[0]) return Math.log10(cs[0]);
-  if (r >= rs[hi]) return Math.log10(cs[hi]);
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (rs[mid] <= r) lo = mid;
-    else hi = mid;
-  }
-  const u = (r - rs[lo]) / (rs[hi] - rs[lo]);
-  return (1 - u) * Math.log10(cs[lo]) + u * Math.log10(cs[hi]);
-}
-
-const quantile = (sorted: number[], q: number) => sorted[Math.min(sorted.length - 1, Math.floor(q * sorted.length))];
-
 const time_s = logTimes(1e-6, 100, 100);
-const cases = [SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK].map((stack) => {
+const SEEDS = [1, 2, 3, 4];
+const cases = [SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK, IGBT_ON_ALUMINA_DBC_STACK].map((stack) => {
   const truth = layeredStackTruth(stack);
-  return { stack, truth, rth: layeredStackRth(stack), clean: zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, time_s) };
+  const rth = truth.structure.r_K_per_W[truth.structure.r_K_per_W.length - 1];
+  return { stack, truth, rth, clean: zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, time_s) };
 });
 
-function structureErrors(method: 'bayes' | 'fourier', seeds: number[]): number[] {
-  const errors: number[] = [];
+/** Structure-function error of every (stack, seed) curve, as the pipeline builds it (bins above 1e-9 of the total become Foster stages). */
+function curveErrors(method: TimeConstantSpectrumOptions['method']): StructureError[] {
+  const errors: StructureError[] = [];
   for (const { truth, rth, clean } of cases) {
-    const power_W = 60 / rth;
-    const noise_K_per_W = 0.02 / power_W;
-    for (const seed of seeds) {
+    const noise_K_per_W = 0.02 / (60 / rth);
+    for (const seed of SEEDS) {
       const random = createRandom(seed);
       const zth = clean.map((v) => v + noise_K_per_W * gaussian(random));
       const spectrum = timeConstantSpectrum(time_s, zth, { method, pointsPerDecade: 40, noise_K_per_W });
-      const keep = [...spectrum.r_K_per_W.keys()].filter((j) => spectrum.r_K_per_W[j] > 0);
+      const total = spectrum.r_K_per_W.reduce((a, b) => a + b, 0);
+      const keep = [...spectrum.r_K_per_W.keys()].filter((j) => spectrum.r_K_per_W[j] > 1e-9 * total);
       const ladder = fosterToCauer({
         r_K_per_W: Float64Array.from(keep, (j) => spectrum.r_K_per_W[j]),
         tau_s: Float64Array.from(keep, (j) => spectrum.tau_s[j]),
       });
-      const estimate = cumulativeStructureFunction(ladder);
-      for (let k = 0; k <= 100; k++) {
-        const r = (0.05 + (0.85 * k) / 100) * rth;
-        errors.push(Math.abs(log10CAt(estimate, r) - log10CAt(truth.structure, r)));
-      }
+      errors.push(structureFunctionError(truth.structure, cumulativeStructureFunction(ladder), 0.05, 0.9));
     }
   }
-  return errors.sort((a, b) => a - b);
+  return errors;
 }
 
-describe('structure function from the spectrum vs the exact layered-stack ladder', () => {
-  it('bayes: median and 90th-percentile error in log10 C_sum', () => {
-    const errors = structureErrors('bayes', [1, 2]);
-    expect(quantile(errors, 0.5)).toBeLessThan(0.05);
-    expect(quantile(errors, 0.9)).toBeLessThan(0.12);
+const worst = (errors: StructureError[], key: 'median_decades' | 'p90_decades') => Math.max(...errors.map((e) => e[key]));
+const average = (errors: StructureError[], key: 'median_decades' | 'p90_decades') => errors.reduce((s, e) => s + e[key], 0) / errors.length;
+
+describe('structure function from the spectrum vs the exact layered-stack ladder (3 stacks x 4 seeds)', () => {
+  const results = { 'posterior-mean': curveErrors('posterior-mean'), bayes: curveErrors('bayes'), fourier: curveErrors('fourier') };
+
+  it('posterior-mean: worst-curve median and 90th-percentile error in log10 C_sum (level reached, target not met)', () => {
+    expect(worst(results['posterior-mean'], 'median_decades')).toBeLessThan(0.045);
+    expect(worst(results['posterior-mean'], 'p90_decades')).toBeLessThan(0.12);
   });
 
-  it('fourier: median and 90th-percentile error in log10 C_sum', () => {
-    const errors = structureErrors('fourier', [1, 2]);
-    expect(quantile(errors, 0.5)).toBeLessThan(0.06);
-    expect(quantile(errors, 0.9)).toBeLessThan(0.15);
+  it('bayes: worst-curve median and 90th-percentile error (level reached, target not met)', () => {
+    expect(worst(results.bayes, 'median_decades')).toBeLessThan(0.052);
+    expect(worst(results.bayes, 'p90_decades')).toBeLessThan(0.13);
+  });
+
+  it('fourier: worst-curve median and 90th-percentile error (level reached, target not met)', () => {
+    expect(worst(results.fourier, 'median_decades')).toBeLessThan(0.062);
+    expect(worst(results.fourier, 'p90_decades')).toBeLessThan(0.36);
+  });
+
+  it('posterior-mean, the default, beats both other methods on the average median and 90th percentile', () => {
+    for (const other of [results.bayes, results.fourier]) {
+      expect(average(results['posterior-mean'], 'median_decades')).toBeLessThan(average(other, 'median_decades'));
+      expect(average(results['posterior-mean'], 'p90_decades')).toBeLessThan(average(other, 'p90_decades'));
+    }
   });
 });
