@@ -75,6 +75,9 @@ describe('calibrations', () => {
     expect(fromArrays.json().calibration_id).toBe(fromCsv.json().calibration_id);
     const stored = await post('/v1/calibrations', { calibration: fromCsv.json().calibration }, 'bench');
     expect(stored.json().calibration_id).toBe(fromCsv.json().calibration_id);
+    const listed = await context.app.inject({ url: '/v1/calibrations', headers: bearer('reader') });
+    expect(listed.statusCode).toBe(200);
+    expect(listed.json().calibrations.map((c: { calibration_id: string }) => c.calibration_id)).toEqual([fromCsv.json().calibration_id]);
   });
 
   it('refuses ambiguous requests (400), too few points (422) and unknown ids (404)', async () => {

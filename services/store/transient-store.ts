@@ -133,6 +133,12 @@ export class TransientStore {
     return SHA256_HEX.test(calibrationId) ? readJson<CalibrationRecord>(join(this.dataDir, 'calibrations', `${calibrationId}.json`)) : null;
   }
 
+  /** Every stored calibration, oldest first. */
+  async listCalibrations(): Promise<CalibrationRecord[]> {
+    const records = await this.readAllIn<CalibrationRecord>(join(this.dataDir, 'calibrations'));
+    return records.sort((a, b) => a.stored_at.localeCompare(b.stored_at));
+  }
+
   // ---- batches ----
 
   async putBatch(record: BatchRecord): Promise<void> {

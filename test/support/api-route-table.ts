@@ -25,6 +25,7 @@ export const apiRouteTable: ApiRouteCase[] = [
   { method: 'GET', url: '/v1/jobs/:job_id/artifacts', permission: 'read' },
   { method: 'GET', url: '/v1/jobs/:job_id/artifacts/:name', permission: 'read' },
   { method: 'POST', url: '/v1/calibrations', permission: 'upload' },
+  { method: 'GET', url: '/v1/calibrations', permission: 'read' },
   { method: 'GET', url: '/v1/calibrations/:calibration_id', permission: 'read' },
   { method: 'GET', url: '/v1/samples/:sample_id/results', permission: 'read' },
   { method: 'POST', url: '/v1/batches', permission: 'admin' },

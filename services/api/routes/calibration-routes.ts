@@ -52,6 +52,19 @@ export const calibrationRoutes: FastifyPluginAsyncTypebox<{ store: TransientStor
   );
 
   app.get(
+    '/v1/calibrations',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['calibrations'],
+        summary: 'Every stored calibration, oldest first',
+        response: { 200: Type.Object({ calibrations: Type.Array(CalibrationRecordSchema) }) },
+      },
+    },
+    async () => ({ calibrations: (await store.listCalibrations()).map(withLinks) }),
+  );
+
+  app.get(
     '/v1/calibrations/:calibration_id',
     {
       config: { permission: 'read' },
