@@ -16,7 +16,7 @@ const rth = layeredStackRth(SIC_POWER_MODULE_STACK);
 const noise_K_per_W = 0.02 / (60 / rth);
 const random = createRandom(1);
 const zth = zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, time_s).map((v) => v + noise_K_per_W * gaussian(random));
-for (const method of ['bayes', 'fourier'] as const) {
+for (const method of ['posterior-mean', 'bayes', 'fourier'] as const) {
   const elapsed_ms: number[] = [];
   let iterations = 0;
   for (let run = 0; run < 60; run++) {
