@@ -2,29 +2,13 @@
  * The `heatpath` command as a user runs it: the compiled binary in a child
  * process (npm test builds first), on the bundled synthetic demo files.
  */
-import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
+import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 
-const root = join(import.meta.dirname, '..');
-const cli = join(root, 'dist', 'heatpath-cli.mjs'); // the package's bin, as npx runs it
-const demo = join(root, 'test', 'fixtures', 'demo-lab');
-const work = mkdtempSync(join(tmpdir(), 'heatpath-cli-'));
-afterAll(() => rmSync(work, { recursive: true, force: true }));
-
-function heatpath(...args: string[]) {
-  const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work });
-  return { code: run.status, stdout: run.stdout, stderr: run.stderr };
-}
-
-function file(name: string, content: string): string {
-  const path = join(work, name);
-  writeFileSync(path, content);
-  return path;
-}
+const { heatpath, file, work } = cliWorkspace('heatpath-cli-');
 
 const goodRows = Array.from({ length: 400 }, (_, i) => {
   const t = 1e-6 * 10 ** (i / 50);
@@ -96,11 +80,7 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
   ];
   for (const [what, args, message] of cases) {
     it(what, () => {
-      const run = heatpath(...args());
-      expect(run.code).toBe(2);
-      expect(run.stderr).toMatch(message);
-      expect(run.stderr.trim().split('\n')).toHaveLength(1);
-      expect(run.stderr).not.toMatch(/\n\s+at /);
+      expectUserError(heatpath(...args()), message);
     });
   }
 });

@@ -13,6 +13,7 @@ import { layeredStackTruth, type LayeredStack } from '../../shared/models/layere
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../../shared/models/example-stacks.js';
 import { syntheticTransient, type SyntheticTransientOptions } from '../../shared/models/synthetic-transient.js';
 import { createRandom, gaussian } from './seeded-random.js';
+import { withLayerConductivity } from './stack-variants.js';
 import { packageRoot } from '../../services/cli/package-root.js';
 
 export const DEMO_DIR = join(packageRoot(import.meta.url), 'test', 'fixtures', 'demo-lab');
@@ -41,15 +42,6 @@ function baseOptions(seed: number, overrides: Partial<SyntheticTransientOptions>
     artefact_K: 4,
     gaussian: noiseSource(seed),
     ...overrides,
-  };
-}
-
-/** The stack with one layer's conductivity scaled. */
-function withLayerConductivity(stack: LayeredStack, layerName: string, factor: number): LayeredStack {
-  return {
-    ...stack,
-    name: `${stack.name}, ${layerName} at ${Math.round(factor * 100)} % conductivity`,
-    layers: stack.layers.map((layer) => (layer.name === layerName ? { ...layer, conductivity_W_per_mK: layer.conductivity_W_per_mK * factor } : layer)),
   };
 }
 

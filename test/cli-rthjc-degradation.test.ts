@@ -1,0 +1,122 @@
+/**
+ * `heatpath rthjc` and `heatpath degradation` as a user runs them: the built
+ * bin (dist/heatpath-cli.mjs, `npm run build`) in a child process, on the
+ * bundled synthetic demo files (test/support/generate-demo-data.ts). Truths
+ * come from the same layered stacks the files were generated from: Rth-JC of
+ * the SiC module is its exact R_sum through the copper baseplate; the M31
+ * campaign's die attach is at 100, 90, 70 and 45 % conductivity.
+ */
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
+import { SIC_POWER_MODULE_STACK } from '../shared/models/example-stacks.js';
+import { layeredStackTruth } from '../shared/models/layered-stack.js';
+import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
+import { rSumThroughLayer } from './support/stack-measurement.js';
+import { withLayerConductivity } from './support/stack-variants.js';
+
+const { heatpath, file, work } = cliWorkspace('heatpath-compare-');
+
+const dry = join(demo, 'fh-tt1_m41_tdi-dry.csv');
+const greased = join(demo, 'fh-tt1_m41_tdi-grease.csv');
+const campaign = ['000000', '020000', '040000', '060000'].map((cycles) => join(demo, `fh-tt1_m31_cycle-${cycles}.csv`));
+
+let rthjcTruth: number;
+let attachStart: number;
+let attachEnd: number;
+let addedAt60000: number;
+beforeAll(() => {
+  const truth = layeredStackTruth(SIC_POWER_MODULE_STACK);
+  rthjcTruth = rSumThroughLayer(SIC_POWER_MODULE_STACK, truth, 'copper baseplate');
+  attachStart = rSumThroughLayer(SIC_POWER_MODULE_STACK, truth, 'SiC die');
+  attachEnd = rSumThroughLayer(SIC_POWER_MODULE_STACK, truth, 'die attach solder');
+  const cracked = withLayerConductivity(SIC_POWER_MODULE_STACK, 'die attach solder', 0.45);
+  addedAt60000 = rSumThroughLayer(cracked, layeredStackTruth(cracked), 'die attach solder') - attachEnd;
+});
+
+describe('heatpath rthjc', () => {
+  it('JSON: both criteria within 10 % of the exact Rth-JC, the greased file as the lower curve, epsilon defaults, curves and caution', () => {
+    const run = heatpath('rthjc', dry, greased, '--format', 'json');
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+    const report = JSON.parse(run.stdout);
+    expect(report.lower).toBe('b');
+    // The tolerance of test/dual-interface-rthjc.test.ts, widened for a second noise realisation.
+    expect(Math.abs(report.zth_criterion.rthjc_K_per_W / rthjcTruth - 1)).toBeLessThan(0.1);
+    expect(Math.abs(report.structure_criterion.rthjc_K_per_W / rthjcTruth - 1)).toBeLessThan(0.1);
+    expect(report.zth_criterion.epsilon_slope).toBe(0.0045); // recalled from JESD51-14 (memory)
+    expect(report.zth_criterion.epsilon_offset_K_per_W).toBe(0.003); // recalled from JESD51-14 (memory)
+    expect(report.zth_criterion.epsilon_note).toMatch(/from memory/);
+    expect(report.zth_criterion.curves.delta_K_per_W.length).toBe(report.zth_criterion.curves.time_s.length);
+    expect(report.structure_criterion.curves.higher_r_K_per_W.length).toBe(report.structure_criterion.curves.c_J_per_K.length);
+    expect(report.caution).toBe(RESULT_CAUTION);
+  });
+
+  it('text: the two estimates, the epsilon used, the memory note and the caution line; --epsilon-slope is applied', () => {
+    const run = heatpath('rthjc', dry, greased, '--epsilon-slope', '0.01');
+    expect(run.code).toBe(0);
+    expect(run.stdout).toMatch(/Zth difference\s+Rth-JC 0\.\d+ K\/W/);
+    expect(run.stdout).toMatch(/structure functions\s+Rth-JC 0\.\d+ K\/W/);
+    expect(run.stdout).toContain('epsilon = 0.01 x Rth-JC + 0.003 K/W');
+    expect(run.stdout).toContain('recalled from JESD51-14 (2010) from memory');
+    expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
+  });
+});
+
+describe('heatpath degradation', () => {
+  it('JSON: cycles from the files, Rth rises along the campaign, the strongest crack placed at the die attach with its added R', () => {
+    const run = heatpath('degradation', ...campaign, '--format', 'json');
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+    const report = JSON.parse(run.stdout);
+    expect(report.reference.cycles).toBe(0);
+    expect(report.later.map((row: { cycles: number }) => row.cycles)).toEqual([20000, 40000, 60000]);
+    const changes = report.later.map((row: { rth_change_percent: number }) => row.rth_change_percent);
+    expect(changes[0]).toBeLessThan(changes[1]);
+    expect(changes[1]).toBeLessThan(changes[2]);
+    const last = report.later[2];
+    // Tolerances of test/structure-function-shift.test.ts.
+    expect(last.shift_start.r_sum_K_per_W).toBeGreaterThan(attachStart - 0.01);
+    expect(last.shift_start.r_sum_K_per_W).toBeLessThan(attachEnd);
+    expect(Math.abs(last.added_r_K_per_W / addedAt60000 - 1)).toBeLessThan(0.05);
+    expect(last.rth_rise_exceeds_limit).toBe(false);
+    expect(report.rth_rise_limit_percent).toBe(20);
+    expect(report.notes.join(' ')).toMatch(/on-state voltage/);
+    expect(report.caution).toBe(RESULT_CAUTION);
+  });
+
+  it('text: one row per later file, the end-of-life flag above --rth-rise-limit-percent, the notes and the caution line', () => {
+    const run = heatpath('degradation', campaign[0], campaign[3], '--rth-rise-limit-percent', '5');
+    expect(run.code).toBe(0);
+    const row = run.stdout.split('\n').find((line) => line.includes('fh-tt1_m31_cycle-060000.csv'));
+    expect(row).toMatch(/60000\s+1\.\d+ K\/W\s+\+\d+\.\d %/);
+    expect(row).toContain('END OF LIFE?');
+    expect(run.stdout).toContain('rise > 5 %');
+    expect(run.stdout).toContain('AQG 324 decide');
+    expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
+  });
+});
+
+describe('rthjc and degradation user errors: exit code 2 and one line', () => {
+  // A two-stage Foster curve over four decades from first_s, its time constants placed inside them.
+  const zthRows = (first_s: number) =>
+    Array.from({ length: 200 }, (_, i) => {
+      const t = first_s * 10 ** (i / 50);
+      return `${t},${(0.8 * (1 - Math.exp(-t / (1e3 * first_s))) + 0.4 * (1 - Math.exp(-t / (5e5 * first_s)))).toFixed(9)}`;
+    }).join('\n');
+  const cases: [string, () => string[], RegExp][] = [
+    ['rthjc with one file', () => ['rthjc', dry], /exactly two files.*CLI_USAGE/],
+    ['rthjc with a two-channel file', () => ['rthjc', join(demo, 'fh-tt1_m21-m22_cooling.csv'), greased], /more than one channel.*COMPARISON_SEVERAL_CHANNELS/],
+    ['rthjc with a missing file', () => ['rthjc', dry, join(work, 'nope.csv')], /nope\.csv.*no such file.*FILE_NOT_READABLE/],
+    ['rthjc with a bad epsilon slope', () => ['rthjc', dry, greased, '--epsilon-slope', 'steep'], /--epsilon-slope must be a positive number/],
+    ['rthjc on curves without a common time range', () => ['rthjc', file('early.csv', `time_s,zth_K_per_W\n${zthRows(1e-6)}\n`), file('late.csv', `time_s,zth_K_per_W\n${zthRows(1e2)}\n`)], /COMPARISON_NO_OVERLAP/],
+    ['degradation without a later file', () => ['degradation', campaign[0]], /REFERENCE and at least one later FILE.*CLI_USAGE/],
+    ['degradation with a bad rise limit', () => ['degradation', ...campaign.slice(0, 2), '--rth-rise-limit-percent', 'lots'], /--rth-rise-limit-percent must be a positive number/],
+    ['degradation with an unknown option', () => ['degradation', ...campaign.slice(0, 2), '--bogus'], /CLI_USAGE/],
+  ];
+  for (const [what, args, message] of cases) {
+    it(what, () => {
+      expectUserError(heatpath(...args()), message);
+    });
+  }
+});

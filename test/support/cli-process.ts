@@ -1,0 +1,42 @@
+/**
+ * The `heatpath` command as a user runs it: the package's bin
+ * (dist/heatpath-cli.mjs, as npx runs it; `npm run build` makes it) in a child
+ * process, in a scratch folder that the test file removes afterwards.
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, expect } from 'vitest';
+
+const root = join(import.meta.dirname, '..', '..');
+const cli = join(root, 'dist', 'heatpath-cli.mjs');
+
+/** The bundled synthetic demo files (test/support/generate-demo-data.ts). */
+export const DEMO_DIR = join(root, 'test', 'fixtures', 'demo-lab');
+
+/** A scratch folder for one test file, removed after its tests; `heatpath` runs there, `file` writes there. */
+export function cliWorkspace(prefix: string) {
+  const work = mkdtempSync(join(tmpdir(), prefix));
+  afterAll(() => rmSync(work, { recursive: true, force: true }));
+  return {
+    work,
+    heatpath(...args: string[]) {
+      const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work });
+      return { code: run.status, stdout: run.stdout, stderr: run.stderr };
+    },
+    file(name: string, content: string): string {
+      const path = join(work, name);
+      writeFileSync(path, content);
+      return path;
+    },
+  };
+}
+
+/** A user error as the CLI must report it: exit code 2, one line on stderr matching `message`, no stack trace. */
+export function expectUserError(run: { code: number | null; stderr: string }, message: RegExp): void {
+  expect(run.code).toBe(2);
+  expect(run.stderr).toMatch(message);
+  expect(run.stderr.trim().split('\n')).toHaveLength(1);
+  expect(run.stderr).not.toMatch(/\n\s+at /);
+}
