@@ -14,7 +14,7 @@ Commands:
   heatpath analyze FILE...        Zth, spectrum, Foster/Cauer, structure functions, compact model
   heatpath calibrate POINTS.csv   fit a TSP calibration (temperature vs voltage)
   heatpath rthjc FILE_A FILE_B    Rth-JC by two interfaces (transient dual interface, JESD51-14)
-  heatpath degradation REF FILE...  structure-function shift and Rth rise over power cycling
+  heatpath degradation REF ...    structure-function shift and Rth rise over power cycling
   heatpath submit FILE...         upload transients to a heatpath service (bench scripts)
   heatpath reprocess DIR          analyse an archive folder, on a service or --local
 
