@@ -46,18 +46,21 @@ export function activeSetNnls(input: ActiveSetNnlsInput): ActiveSetNnlsResult {
   const tolerance = GRADIENT_TOLERANCE * scale;
   const x = new Float64Array(n);
   const free = new Uint8Array(n);
-  let set: number[] = [];
   const gradient = new Float64Array(n);
+  const factor = new FreeSetCholesky(n, gramColumn);
+  const z = new Float64Array(n);
   let solves = 0;
-  while (true) {
+
+  /** Free the column of steepest descent (Lawson and Hanson); false at the optimum. */
+  function enterSteepest(): boolean {
     // Negative gradient b - G x, from the free columns only (x is zero elsewhere).
     gradient.set(b);
-    for (const j of set) {
+    for (let k = 0; k < factor.count; k++) {
+      const j = factor.set[k];
       const column = gramColumn(j);
       const xj = x[j];
       for (let i = 0; i < n; i++) gradient[i] -= column[i] * xj;
     }
-    // The entering column is the one of steepest descent (Lawson and Hanson).
     let entering = -1;
     let steepest = tolerance;
     for (let j = 0; j < n; j++) {
@@ -66,20 +69,26 @@ export function activeSetNnls(input: ActiveSetNnlsInput): ActiveSetNnlsResult {
         entering = j;
       }
     }
-    if (entering < 0) return { solution: x, solves, converged: true };
+    if (entering < 0) return false;
     free[entering] = 1;
-    set.push(entering);
+    factor.append(entering);
+    return true;
+  }
+
+  if (!enterSteepest()) return { solution: x, solves, converged: true };
+  while (true) {
     // Inner loop: solve on the free set; step back to the boundary while
     // the unconstrained solution has non-positive components.
     while (true) {
       if (solves >= maxSolves) return { solution: x, solves, converged: false };
       solves++;
-      const z = solveFreeSet(set, gramColumn, b);
+      factor.solve(b, z);
+      const m = factor.count;
       let alpha = 1;
       let blocking = -1;
-      for (let k = 0; k < set.length; k++) {
+      for (let k = 0; k < m; k++) {
         if (z[k] <= 0) {
-          const j = set[k];
+          const j = factor.set[k];
           const step = x[j] / (x[j] - z[k]);
           if (blocking < 0 || step < alpha) {
             alpha = step;
@@ -88,56 +97,94 @@ export function activeSetNnls(input: ActiveSetNnlsInput): ActiveSetNnlsResult {
         }
       }
       if (blocking < 0) {
-        for (let k = 0; k < set.length; k++) x[set[k]] = z[k];
+        for (let k = 0; k < m; k++) x[factor.set[k]] = z[k];
         break;
       }
-      for (let k = 0; k < set.length; k++) {
-        const j = set[k];
+      for (let k = 0; k < m; k++) {
+        const j = factor.set[k];
         x[j] += alpha * (z[k] - x[j]);
       }
       // The column that blocked the step is exactly at zero (rounding may
       // leave a trace); it and any other at or below zero leave the free set.
-      set = set.filter((j) => {
-        if (j !== blocking && x[j] > 0) return true;
-        x[j] = 0;
-        free[j] = 0;
-        return false;
-      });
-      if (set.length === 0) break;
+      const kept: number[] = [];
+      for (let k = 0; k < m; k++) {
+        const j = factor.set[k];
+        if (j !== blocking && x[j] > 0) kept.push(j);
+        else {
+          x[j] = 0;
+          free[j] = 0;
+        }
+      }
+      factor.rebuild(kept);
+      if (kept.length === 0) break;
     }
+    if (!enterSteepest()) return { solution: x, solves, converged: true };
   }
 }
 
-/** z = G_FF^-1 b_F by Cholesky of the free-set block. */
-function solveFreeSet(set: number[], gramColumn: (j: number) => Float64Array, b: Float64Array): Float64Array {
-  const m = set.length;
-  const factor = new Float64Array(m * m);
-  for (let p = 0; p < m; p++) {
-    const column = gramColumn(set[p]);
-    for (let q = 0; q <= p; q++) factor[p * m + q] = column[set[q]];
+/**
+ * Cholesky factor L L^T of the Gram block of the free set, kept in the order
+ * the columns entered, rows packed (row i starts at i (i + 1) / 2) so the
+ * storage grows with the free set rather than with the problem. A column
+ * entering adds one row (forward substitution, O(m^2)); columns leaving are
+ * rarer and refactor the block from scratch.
+ */
+class FreeSetCholesky {
+  readonly set: Int32Array;
+  count = 0;
+  private lower = new Float64Array(0);
+  private readonly work: Float64Array;
+
+  constructor(size: number, private readonly gramColumn: (j: number) => Float64Array) {
+    this.set = new Int32Array(size);
+    this.work = new Float64Array(size);
   }
-  for (let j = 0; j < m; j++) {
-    let diagonal = factor[j * m + j];
-    for (let k = 0; k < j; k++) diagonal -= factor[j * m + k] * factor[j * m + k];
+
+  append(j: number): void {
+    const { set } = this;
+    const m = this.count;
+    const row = (m * (m + 1)) / 2;
+    if (this.lower.length < row + m + 1) {
+      const grown = new Float64Array(Math.max(2 * this.lower.length, row + m + 1, 64));
+      grown.set(this.lower);
+      this.lower = grown;
+    }
+    const lower = this.lower;
+    const column = this.gramColumn(j);
+    let diagonal = column[j];
+    for (let q = 0; q < m; q++) {
+      const rowQ = (q * (q + 1)) / 2;
+      let value = column[set[q]];
+      for (let k = 0; k < q; k++) value -= lower[row + k] * lower[rowQ + k];
+      value /= lower[rowQ + q];
+      lower[row + q] = value;
+      diagonal -= value * value;
+    }
     // G is positive definite (the caller adds a ridge); the floor only guards rounding.
-    const pivot = Math.sqrt(Math.max(diagonal, 1e-300));
-    factor[j * m + j] = pivot;
-    for (let i = j + 1; i < m; i++) {
-      let value = factor[i * m + j];
-      for (let k = 0; k < j; k++) value -= factor[i * m + k] * factor[j * m + k];
-      factor[i * m + j] = value / pivot;
+    lower[row + m] = Math.sqrt(Math.max(diagonal, 1e-300));
+    set[m] = j;
+    this.count = m + 1;
+  }
+
+  rebuild(columns: readonly number[]): void {
+    this.count = 0;
+    for (const j of columns) this.append(j);
+  }
+
+  /** z[0..count) = G_FF^-1 b_F. */
+  solve(b: Float64Array, z: Float64Array): void {
+    const { lower, set, work } = this;
+    const m = this.count;
+    for (let i = 0; i < m; i++) {
+      const row = (i * (i + 1)) / 2;
+      let value = b[set[i]];
+      for (let k = 0; k < i; k++) value -= lower[row + k] * work[k];
+      work[i] = value / lower[row + i];
+    }
+    for (let i = m - 1; i >= 0; i--) {
+      let value = work[i];
+      for (let k = i + 1; k < m; k++) value -= lower[(k * (k + 1)) / 2 + i] * z[k];
+      z[i] = value / lower[(i * (i + 1)) / 2 + i];
     }
   }
-  const z = new Float64Array(m);
-  for (let i = 0; i < m; i++) {
-    let value = b[set[i]];
-    for (let k = 0; k < i; k++) value -= factor[i * m + k] * z[k];
-    z[i] = value / factor[i * m + i];
-  }
-  for (let i = m - 1; i >= 0; i--) {
-    let value = z[i];
-    for (let k = i + 1; k < m; k++) value -= factor[k * m + i] * z[k];
-    z[i] = value / factor[i * m + i];
-  }
-  return z;
 }
