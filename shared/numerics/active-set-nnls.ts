@@ -134,16 +134,19 @@ class FreeSetCholesky {
   count = 0;
   private lower = new Float64Array(0);
   private readonly work: Float64Array;
+  /** Offset of row i in the packed factor, i (i + 1) / 2. */
+  private readonly rowStart: Int32Array;
 
   constructor(size: number, private readonly gramColumn: (j: number) => Float64Array) {
     this.set = new Int32Array(size);
     this.work = new Float64Array(size);
+    this.rowStart = Int32Array.from({ length: size }, (_, i) => (i * (i + 1)) / 2);
   }
 
   append(j: number): void {
-    const { set } = this;
+    const { set, rowStart } = this;
     const m = this.count;
-    const row = (m * (m + 1)) / 2;
+    const row = rowStart[m];
     if (this.lower.length < row + m + 1) {
       const grown = new Float64Array(Math.max(2 * this.lower.length, row + m + 1, 64));
       grown.set(this.lower);
@@ -153,7 +156,7 @@ class FreeSetCholesky {
     const column = this.gramColumn(j);
     let diagonal = column[j];
     for (let q = 0; q < m; q++) {
-      const rowQ = (q * (q + 1)) / 2;
+      const rowQ = rowStart[q];
       let value = column[set[q]];
       for (let k = 0; k < q; k++) value -= lower[row + k] * lower[rowQ + k];
       value /= lower[rowQ + q];
@@ -173,18 +176,18 @@ class FreeSetCholesky {
 
   /** z[0..count) = G_FF^-1 b_F. */
   solve(b: Float64Array, z: Float64Array): void {
-    const { lower, set, work } = this;
+    const { lower, set, work, rowStart } = this;
     const m = this.count;
     for (let i = 0; i < m; i++) {
-      const row = (i * (i + 1)) / 2;
+      const row = rowStart[i];
       let value = b[set[i]];
       for (let k = 0; k < i; k++) value -= lower[row + k] * work[k];
       work[i] = value / lower[row + i];
     }
     for (let i = m - 1; i >= 0; i--) {
       let value = work[i];
-      for (let k = i + 1; k < m; k++) value -= lower[(k * (k + 1)) / 2 + i] * z[k];
-      z[i] = value / lower[(i * (i + 1)) / 2 + i];
+      for (let k = i + 1; k < m; k++) value -= lower[rowStart[k] + i] * z[k];
+      z[i] = value / lower[rowStart[i] + i];
     }
   }
 }
