@@ -1,7 +1,9 @@
+import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { observeAnalysisWorker } from '../workers/worker-metrics.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
 
@@ -55,16 +57,19 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     expect((await fixture.store.getFailure('job-orphan'))?.message).toMatch(/not in the store/);
   });
 
-  it('stores one result with its provenance and does not repeat finished work', async () => {
+  it('stores one result with its provenance, counts it in the metrics, and does not repeat finished work', async () => {
     const upload = await fixture.storeUpload(3);
     await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
-    startWorker();
+    const registry = new Registry();
+    observeAnalysisWorker(startWorker(), registry);
     await eventually(() => fixture.store.hasResult(upload.job_id));
     await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'completed');
     const result = await fixture.store.getResult(upload.job_id);
     expect(result).toMatchObject({ job_id: upload.job_id, upload_id: upload.upload_id, algorithm: ALGORITHM_VERSION, sample_id: 'S-TEST' });
     expect(result!.results.length).toBeGreaterThan(0);
     expect((await queue.getJobState(upload.job_id))?.progress).toBe(100);
+    await eventually(async () => (await registry.metrics()).includes('heatpath_job_attempts_total{outcome="completed"} 1'));
+    expect(await registry.metrics()).toMatch(/heatpath_job_duration_seconds_count 1\n/);
 
     // The same content uploaded again is the same job: Redis still holds it, nothing runs twice.
     const again = await fixture.storeUpload(3, undefined, { upload_id: 'u-again' });
