@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { appendFile, mkdir, readdir, readFile, writeFile } from 'node:fs/promises';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
+import { analysisOptions } from './analysis-options.js';
 import { runAnalyzeCommand } from './analyze-command.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
@@ -23,7 +24,7 @@ ${uploadOptionsUsage}
   --sample ID             default: the name of each file's folder`;
 
 /** The options heatpath analyze understands, forwarded in local mode. */
-const ANALYZE_OPTIONS = ['power-w', 'current-a', 'voltage-v', 'calibration', 'kind', 'method', 'points-per-decade', 'early-start-s', 'early-end-s', 'compact-stages'];
+const ANALYZE_OPTIONS = [...Object.keys(analysisOptions), 'compact-stages'];
 const STATE_FILE = 'reprocess-state.jsonl';
 const SUMMARY_FILE = 'reprocess-summary.csv';
 const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
