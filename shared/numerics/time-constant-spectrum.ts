@@ -86,6 +86,17 @@ const DISCREPANCY_FACTOR = 1.05;
  * at twice the cost (each sample takes about a millisecond).
  */
 const POSTERIOR_SAMPLES = 8;
+/**
+ * Least noise the posterior samples perturb the curve with, as a fraction of
+ * its final value. The method needs the lines of its samples to wander where
+ * the data cannot place them; on a nearly noiseless curve (a simulated Zth,
+ * heavily averaged data) every sample would be the same few-line fit, and
+ * the structure function of such a line spectrum is a staircase (the
+ * Carslaw & Jaeger slab at 1e-5 relative noise: 0.49 decades at the 90th
+ * percentile without the floor). At the floor the slab's error is that of
+ * noisy bench data; curves noisier than the floor are unaffected.
+ */
+const POSTERIOR_NOISE_FLOOR_FRACTION = 3e-4;
 /** Fixed seed of the posterior samples: the same curve always gives the same spectrum. */
 const POSTERIOR_SEED = 20140101;
 /** Free-set solves per sample: a fit visits each of its few tens of lines a few times. */
@@ -109,7 +120,8 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
   for (let j = 0; j < nx; j++) tau_s[j] = Math.exp(grid.z[0] + (j - low) * dz);
   if (options.method === 'posterior-mean') {
     const result = posteriorMeanDeconvolution({
-      stepKernel: stepKernel(grid, low, nx), unknownCount: nx, a: grid.a, varianceFactor: grid.varianceFactor, noise: noise_K_per_W,
+      stepKernel: stepKernel(grid, low, nx), unknownCount: nx, a: grid.a, varianceFactor: grid.varianceFactor,
+      noise: Math.max(noise_K_per_W, POSTERIOR_NOISE_FLOOR_FRACTION * Math.abs(grid.a[ny - 1])),
       samples: POSTERIOR_SAMPLES, seed: POSTERIOR_SEED, maxSolvesPerSample: MAX_SOLVES_PER_SAMPLE,
     });
     if (result.unconverged > 0) warnings.push(`${result.unconverged} of ${POSTERIOR_SAMPLES} posterior samples stopped at ${MAX_SOLVES_PER_SAMPLE} active-set solves before reaching the least-squares optimum`);
