@@ -30,7 +30,7 @@ async function runDemo(): Promise<void> {
   print(`heatpath demo: ${transients.length} SYNTHETIC transients of the invented Fernhill Power Reliability Lab (${shown(dataDir)})\n`);
 
   const calibrationFile = join(outDir, 'fh-tt2_q12_calibration.json');
-  await runCalibrateCommand([join(dataDir, 'fh-tt2_q12_calibration-points.csv'), '--model', 'linear', '--out', calibrationFile], print);
+  await runCalibrateCommand([shown(join(dataDir, 'fh-tt2_q12_calibration-points.csv')), '--model', 'linear', '--out', shown(calibrationFile)], print);
   const calibration = await readCalibrationFile(calibrationFile);
 
   const createdAt = new Date().toISOString();

@@ -1,6 +1,6 @@
 /**
  * Medians of the RC-network numerics on this machine:
- *   npx tsc -p tsconfig.build.json && node dist/test/bench/network-numerics-bench.js [--runs N]
+ *   npm run bench:networks [-- --runs N]
  * Tridiagonal eigen-decomposition (n = 5000, a layered-stack ladder), Foster
  * to Cauer and back (1000 stages over 10 decades), the layered-stack truth
  * model (default 2000 slices) and the compact 5-stage fit (296 samples).

@@ -1,7 +1,7 @@
 /**
  * Timing of timeConstantSpectrum on a 7-decade transient (1 us .. 10 s,
  * 100 samples per decade, layered-stack truth, 0.02 K noise at 60 K).
- * Not a test: run after a build, e.g. node dist/test/bench/time-constant-spectrum-bench.js
+ * Not a test: npm run bench:spectrum
  */
 import { layeredStackRth, layeredStackTruth } from '../../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK } from '../../shared/models/example-stacks.js';
