@@ -47,6 +47,7 @@ describe('heatpath analyze', () => {
     const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--out', out);
     expect(run.code).toBe(0);
     expect(run.stdout).toContain('Rth total');
+    expect(run.stdout).toMatch(/Caution: .*JESD51-14/); // the caution travels with every text report
     for (const name of ['result.json', 'zth.csv', 'spectrum.csv', 'foster.csv', 'cauer.csv', 'structure-cumulative.csv', 'structure-differential.csv', 'compact-foster.cir', 'compact-cauer.cir', 'zth.svg', 'structure-cumulative.svg']) {
       expect(existsSync(join(out, 'fh-tt1_m07_cooling', name)), name).toBe(true);
     }

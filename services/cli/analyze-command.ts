@@ -2,6 +2,7 @@ import { mkdir, writeFile } from 'node:fs/promises';
 import { basename, extname, join } from 'node:path';
 import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-file.js';
 import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
+import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
@@ -52,6 +53,7 @@ export async function runAnalyzeCommand(argv: string[], print: (text: string) =>
   for (const { file, result, outDir } of run.results) {
     print(format === 'json' ? JSON.stringify(result) : formatResultSummary(file, result, outDir));
   }
+  if (format === 'text') print(`Caution: ${RESULT_CAUTION}`);
   return 0;
 }
 

@@ -9,6 +9,7 @@
 import { mkdir, readdir } from 'node:fs/promises';
 import { join, relative } from 'node:path';
 import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
+import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { analyzeFiles } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
 import { runDegradationCommand } from './degradation-command.js';
@@ -60,7 +61,7 @@ async function runDemo(): Promise<void> {
   print('Rth-JC of module M41 by two interfaces, greased and dry (heatpath rthjc; synthetic):');
   await runRthjcCommand(['fh-tt1_m41_tdi-dry.csv', 'fh-tt1_m41_tdi-grease.csv'].map((f) => shown(join(dataDir, f))), print);
   print(`Analysed ${runs.length} channels in ${elapsed_ms.toFixed(0)} ms. Results (result.json, CSV tables, SPICE netlists) are in ${shown(outDir)}/`);
-  print('Caution: engineering estimates; check against JESD51-1/JESD51-14/AQG 324 and qualified lab practice before any qualification decision.');
+  print(`Caution: ${RESULT_CAUTION}`);
 }
 
 try {
