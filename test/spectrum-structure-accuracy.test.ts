@@ -14,8 +14,9 @@
  * ceramic, gap pad), so that nothing is tuned to the examples.
  *
  * The project's target is 0.02 decades (median) and 0.06 (90th percentile).
- * NOT MET. Level reached (worst curve of the twelve): posterior-mean 0.042 /
- * 0.113, bayes 0.049 / 0.121, fourier 0.059 / 0.34 decades. The bounds below
+ * NOT MET at the 90th percentile. Level reached, average / worst curve of the
+ * twelve: posterior-mean median 0.019 / 0.032, p90 0.071 / 0.087; bayes
+ * 0.030 / 0.049, 0.097 / 0.121; fourier 0.039 / 0.059, 0.16 / 0.34 decades. The bounds below
  * are those levels with a small margin, kept as a regression guard, and the
  * comparison test keeps the recommended method ahead of the other two. For
  * scale: blurring the exact spectrum by a gaussian of 0.1 decade standard
@@ -98,8 +99,10 @@ describe('structure function from the spectrum vs the exact layered-stack ladder
   const results = { 'posterior-mean': curveErrors('posterior-mean'), bayes: curveErrors('bayes'), fourier: curveErrors('fourier') };
 
   it('posterior-mean: worst-curve median and 90th-percentile error in log10 C_sum (level reached, target not met)', () => {
-    expect(worst(results['posterior-mean'], 'median_decades')).toBeLessThan(0.045);
-    expect(worst(results['posterior-mean'], 'p90_decades')).toBeLessThan(0.12);
+    expect(worst(results['posterior-mean'], 'median_decades')).toBeLessThan(0.04);
+    expect(worst(results['posterior-mean'], 'p90_decades')).toBeLessThan(0.1);
+    // The project's median target, on average over the twelve curves.
+    expect(average(results['posterior-mean'], 'median_decades')).toBeLessThan(0.02);
   });
 
   it('bayes: worst-curve median and 90th-percentile error (level reached, target not met)', () => {
