@@ -5,6 +5,9 @@ import { createRandom, gaussian } from './seeded-random.js';
 
 export const SYNTHETIC_POWER_W = 50;
 
+/** The layered model's network is slow to compute (about 0.5 s) and the same for every file: once. */
+let truth: ReturnType<typeof layeredStackTruth> | undefined;
+
 /**
  * A SYNTHETIC cooling transient as CSV (time_s,temperature_C) from the layered
  * model with seeded noise: a different seed gives different bytes (a different
@@ -12,7 +15,8 @@ export const SYNTHETIC_POWER_W = 50;
  */
 export function syntheticTransientCsv(seed: number, samplesPerDecade = 100): Buffer {
   const random = createRandom(seed);
-  const curve = syntheticTransient(layeredStackTruth(SIC_POWER_MODULE_STACK).foster, {
+  truth ??= layeredStackTruth(SIC_POWER_MODULE_STACK);
+  const curve = syntheticTransient(truth.foster, {
     kind: 'cooling', power_W: SYNTHETIC_POWER_W, reference_temperature_C: 25, first_s: 1e-6, last_s: 10,
     samples_per_decade: samplesPerDecade, noise_K: 0.02, artefact_s: 8e-6, artefact_K: 4, gaussian: () => gaussian(random),
   });

@@ -1,0 +1,13 @@
+/**
+ * A worker thread of bench:service's compute-bound baseline: analyses the
+ * files it is given in a loop, with no queue, store or network, and reports
+ * how long that took.
+ */
+import { parentPort, workerData } from 'node:worker_threads';
+import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-file.js';
+
+const { files, power_W } = workerData as { files: Uint8Array[]; power_W: number };
+analyzeTransientFile({ bytes: files[0], fileName: 'warm.csv', power: { power_W } }, 'bench');
+const started = performance.now();
+files.forEach((bytes, index) => analyzeTransientFile({ bytes, fileName: `f${index}.csv`, power: { power_W } }, 'bench'));
+parentPort!.postMessage({ files: files.length, ms: performance.now() - started });
