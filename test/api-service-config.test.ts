@@ -65,4 +65,9 @@ describe('loadServiceConfig', () => {
     expect(configError({ HEATPATH_API_KEYS: `a:reader:${benchToken}`, HEATPATH_API_KEYS_FILE: '/x' }).message).toContain('set only one');
     expect(configError({ HEATPATH_API_KEYS_FILE: join(tempDir, 'missing.txt') }).message).toContain('cannot read');
   });
+
+  it('lets a worker-only process start without keys, and still checks its other variables', () => {
+    expect(loadServiceConfig({}, { servesApi: false }).apiKeys).toEqual([]);
+    expect(() => loadServiceConfig({ HEATPATH_LOCK_DURATION_MS: '5' }, { servesApi: false })).toThrow(/HEATPATH_LOCK_DURATION_MS/);
+  });
 });

@@ -66,7 +66,7 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
 
 /** `npm run start:worker`: workers only, until SIGTERM or SIGINT. */
 async function runWorkerProcess(): Promise<void> {
-  const config = serviceConfigOrExit();
+  const config = serviceConfigOrExit({ servesApi: false });
   const logger = pino({ level: config.logLevel, name: 'heatpath-worker' });
   const workers = await startWorkers({ config, logger });
   let stopping = false;

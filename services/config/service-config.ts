@@ -65,12 +65,17 @@ export interface QueueConfig {
  * every bad variable with what to set instead, so an operator fixes all in
  * one go.
  */
-export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env): ServiceConfig {
+export interface ServiceConfigOptions {
+  /** Whether this process serves HTTP and so needs API keys (default true; workers alone need none). */
+  servesApi?: boolean;
+}
+
+export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { servesApi = true }: ServiceConfigOptions = {}): ServiceConfig {
   const known = Object.keys(ServiceEnvSchema.properties);
   const given = Object.fromEntries(known.filter((name) => env[name] !== undefined && env[name] !== '').map((name) => [name, env[name]]));
   const converted = Value.Default(ServiceEnvSchema, Value.Convert(ServiceEnvSchema, given));
   const problems = [...Value.Errors(ServiceEnvSchema, converted)].map((error) => describeEnvProblem(error.instancePath, error.message));
-  const keys = Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
+  const keys = servesApi && Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
   if (problems.length > 0) {
     // One line per problem; HeatpathError appends ". <hint>" to the last.
     const lines = problems.map((problem) => `\n  - ${problem.replace(/\.$/, '')}`);
