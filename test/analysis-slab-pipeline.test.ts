@@ -18,7 +18,8 @@ import { describe, expect, it } from 'vitest';
 import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
-import { logSpacedTimes, slabRth, type Slab } from './support/conduction-solutions.js';
+import { slabRth, type Slab } from './support/conduction-solutions.js';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 import { slabFosterSeries } from './support/slab-foster-series.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
 import { structureFunctionError } from './support/structure-function-error.js';
@@ -31,7 +32,7 @@ const K_EXACT = COPPER_SLAB.volumetricHeat_J_per_m3K * COPPER_SLAB.conductivity_
 function analyseSlab(relativeNoise: number, method?: AnalysisParameters['method']) {
   // 2000 modes: the series then holds down to 1 us (tau_2000 is about 1e-9 s).
   const series = slabFosterSeries(COPPER_SLAB, 2000);
-  const times = logSpacedTimes(1e-6, 8, 100);
+  const times = logSpacedTimes(1e-6, 100, 100);
   const zth = zthFromFoster(series.r_K_per_W, series.tau_s, times);
   const random = createRandom(7);
   const rows = Array.from(times, (t, i) => `${t},${zth[i] + relativeNoise * RTH * gaussian(random)}`);

@@ -2,11 +2,12 @@ import { describe, expect, it } from 'vitest';
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
-import { SILICON_DIE_SLAB, logSpacedTimes, slabRth, slabZth } from './support/conduction-solutions.js';
+import { SILICON_DIE_SLAB, slabRth, slabZth } from './support/conduction-solutions.js';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 
 // A cooling curve of P x Rth = 60 K whose steep part (the slab's one decade
 // of rise, Carslaw & Jaeger 1959) sits mid-range, sampled 1 us..100 s at 100/decade.
-const times = logSpacedTimes(1e-6, 8, 100);
+const times = logSpacedTimes(1e-6, 100, 100);
 const power_W = 60 / slabRth(SILICON_DIE_SLAB);
 const slowSlab = { ...SILICON_DIE_SLAB, thickness_m: 3e-3 };
 const powerSlow_W = 60 / slabRth(slowSlab);

@@ -24,6 +24,7 @@
  * linear resolution of a 3e-4-relative-noise curve is about half a decade.
  */
 import { describe, expect, it } from 'vitest';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 import { layeredStackTruth, type LayeredStack, type StackLayer } from '../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
@@ -58,12 +59,8 @@ const IGBT_ON_ALUMINA_DBC_STACK: LayeredStack = {
   sink_resistance_K_per_W: 0.3,
 };
 
-function logTimes(first_s: number, last_s: number, perDecade: number): Float64Array {
-  const n = Math.round(Math.log10(last_s / first_s) * perDecade) + 1;
-  return Float64Array.from({ length: n }, (_, i) => first_s * 10 ** (i / perDecade));
-}
 
-const time_s = logTimes(1e-6, 100, 100);
+const time_s = logSpacedTimes(1e-6, 100, 100);
 const SEEDS = [1, 2, 3, 4];
 const cases = [SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK, IGBT_ON_ALUMINA_DBC_STACK].map((stack) => {
   const truth = layeredStackTruth(stack);

@@ -3,10 +3,11 @@ import { extrapolateSqrtTime } from '../shared/numerics/sqrt-time-extrapolation.
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
-import { SILICON_DIE_SLAB, logSpacedTimes, semiInfiniteZth } from './support/conduction-solutions.js';
+import { SILICON_DIE_SLAB, semiInfiniteZth } from './support/conduction-solutions.js';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 
 const ARTEFACT_END_S = 8e-6;
-const times = logSpacedTimes(1e-6, 4, 100);
+const times = logSpacedTimes(1e-6, 1e-2, 100);
 const power_W = 100;
 const tj0_C = 125;
 

@@ -2,11 +2,12 @@ import { describe, expect, it } from 'vitest';
 import { STEADY_STATE_RISE_LIMIT, steadyStateRth } from '../shared/numerics/steady-state.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
-import { SILICON_DIE_SLAB, logSpacedTimes, slabDiffusionTime_s, slabRth, slabZth } from './support/conduction-solutions.js';
+import { SILICON_DIE_SLAB, slabDiffusionTime_s, slabRth, slabZth } from './support/conduction-solutions.js';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 
 // Truth: the slab Zth of Carslaw & Jaeger (1959) ends at Rth = L / (k A).
 const rth = slabRth(SILICON_DIE_SLAB);
-const times = logSpacedTimes(1e-6, 6, 100);
+const times = logSpacedTimes(1e-6, 1, 100);
 const zth = times.map((t) => slabZth(SILICON_DIE_SLAB, t));
 
 describe('steadyStateRth', () => {
@@ -30,19 +31,22 @@ describe('steadyStateRth', () => {
     const tau1 = (4 * slabDiffusionTime_s(SILICON_DIE_SLAB)) / Math.PI ** 2;
     const short = times.filter((t) => t <= 2 * tau1);
     const result = steadyStateRth(short, short.map((t) => slabZth(SILICON_DIE_SLAB, t)));
-    expect(result.end_rise_K_per_W_per_decade).toBeGreaterThan(STEADY_STATE_RISE_LIMIT * result.rth_K_per_W);
+    expect(result.window_rise_K_per_W).toBeGreaterThan(STEADY_STATE_RISE_LIMIT * result.rth_K_per_W);
     expect(result.warnings.join(' ')).toMatch(/still rises/);
     expect(result.rth_K_per_W).toBeLessThan(rth);
   });
 
   it('does not warn when the slowest time constant is a tenth of the record, although Zth rose much in the last decade', () => {
-    // One Foster stage, tau = 10 s, recorded to 100 s: Zth(100)/R = 1 - e^-10; the end slope is
-    // R ln(10) (t / tau) e^(-t / tau) = 1e-3 R per decade at t = 100 s (analytic derivative).
+    // One Foster stage, tau = 10 s, recorded from 1 ms to 100 s: the window is the last 0.25 decade (56 .. 100 s),
+    // over which Zth = 1 - exp(-t / tau) still rises by exp(-5.6) - exp(-10) = 0.36 % of R (analytic).
     const t = logSpacedTimes(1e-3, 100, 100);
-    const z = t.map((s) => 1 - Math.exp(-s / 10));
+    const z = t.map((s) => -Math.expm1(-s / 10));
     const result = steadyStateRth(t, z);
+    expect(result.window_start_s).toBeCloseTo(56.2, 0);
     expect(result.warnings).toEqual([]);
-    expect(result.end_rise_K_per_W_per_decade).toBeLessThan(STEADY_STATE_RISE_LIMIT);
+    expect(result.window_rise_K_per_W).toBeGreaterThan(0.001);
+    expect(result.window_rise_K_per_W).toBeLessThan(STEADY_STATE_RISE_LIMIT);
+    // while the whole last decade rose by about 37 % of R (exp(-1) - exp(-10)):
     expect(z[z.length - 1] - z.findLast((_, i) => t[i] <= 10)!).toBeGreaterThan(0.3);
   });
 

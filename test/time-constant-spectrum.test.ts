@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 import { complex, gamma } from 'mathjs';
 import { timeConstantKernel, timeConstantStepResponse } from '../shared/numerics/time-constant-kernel.js';
 import { createFftConvolution } from '../shared/numerics/fft-convolution.js';
@@ -6,10 +7,6 @@ import { resampleOnLogTimeGrid } from '../shared/numerics/log-time-grid.js';
 import { timeConstantSpectrum } from '../shared/numerics/time-constant-spectrum.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
 
-function logTimes(first_s: number, last_s: number, perDecade: number): Float64Array {
-  const n = Math.round(Math.log10(last_s / first_s) * perDecade) + 1;
-  return Float64Array.from({ length: n }, (_, i) => first_s * 10 ** (i / perDecade));
-}
 
 function fosterZth(r: number[], tau: number[], time_s: Float64Array, noise: number, seed: number): Float64Array {
   const random = createRandom(seed);
@@ -107,7 +104,7 @@ describe('log-time grid', () => {
   // Least squares reproduces a straight line exactly (Gauss-Markov); averaging n samples
   // divides the noise variance by n (common practice).
   it('keeps a straight line in ln t exactly and averages noise where samples are dense', () => {
-    const time_s = logTimes(1e-6, 1e2, 400);
+    const time_s = logSpacedTimes(1e-6, 1e2, 400);
     const line = time_s.map((t) => 3 + 0.5 * Math.log(t));
     const exact = resampleOnLogTimeGrid(time_s, line, 40);
     for (let k = 0; k < exact.z.length; k++) expect(exact.a[k]).toBeCloseTo(3 + 0.5 * exact.z[k], 10);
@@ -123,7 +120,7 @@ describe('log-time grid', () => {
   });
 
   it('interpolates linearly where the raw samples are sparser than the grid', () => {
-    const time_s = logTimes(1e-3, 1e1, 5);
+    const time_s = logSpacedTimes(1e-3, 1e1, 5);
     const line = time_s.map((t) => 1 - 0.2 * Math.log(t));
     const grid = resampleOnLogTimeGrid(time_s, line, 50);
     for (let k = 0; k < grid.z.length; k++) expect(grid.a[k]).toBeCloseTo(1 - 0.2 * grid.z[k], 10);
@@ -131,7 +128,7 @@ describe('log-time grid', () => {
 });
 
 describe('time-constant spectrum of known Foster networks', () => {
-  const time_s = logTimes(1e-6, 100, 100);
+  const time_s = logSpacedTimes(1e-6, 100, 100);
   const r = [0.1, 0.25, 0.4];
   const tau = [1e-4, 1e-3, 1e-2];
   const rth = 0.75;
@@ -156,7 +153,7 @@ describe('posterior-mean spectrum of a known Foster network', () => {
   // so the check is on the mass and mass-weighted position of each line
   // (Szekely & Van Bien 1988: a Foster network's spectrum is a line of weight
   // R_i at each tau_i) rather than on local maxima.
-  const time_s = logTimes(1e-6, 100, 100);
+  const time_s = logSpacedTimes(1e-6, 100, 100);
   const r = [0.1, 0.25, 0.4];
   const tau = [1e-4, 1e-3, 1e-2];
   const rth = 0.75;
@@ -191,7 +188,7 @@ describe('time-constant spectrum of a finite slab (Carslaw & Jaeger, Conduction 
   const modes = 400;
   const r = Array.from({ length: modes }, (_, n) => (8 * rth) / ((2 * n + 1) ** 2 * Math.PI ** 2));
   const tau = Array.from({ length: modes }, (_, n) => tau1 / (2 * n + 1) ** 2);
-  const time_s = logTimes(1e-6, 100, 100);
+  const time_s = logSpacedTimes(1e-6, 100, 100);
   for (const method of ['posterior-mean', 'bayes', 'fourier'] as const) {
     it(`${method}: recovers the spectrum mass and the first mode`, () => {
       const noise = 3e-4 * rth;
@@ -211,7 +208,7 @@ describe('time-constant spectrum of a finite slab (Carslaw & Jaeger, Conduction 
 });
 
 describe('discrepancy stopping (Morozov 1966)', () => {
-  const time_s = logTimes(1e-6, 100, 100);
+  const time_s = logSpacedTimes(1e-6, 100, 100);
   const r = [0.1, 0.25, 0.4];
   const tau = [1e-4, 1e-3, 1e-2];
   it('stops earlier for larger noise and then fits to the noise level', () => {

@@ -6,11 +6,12 @@ import { fitCalibration, voltageToTemperature } from '../shared/numerics/tsp-cal
 import { NOISE_FLOOR_RELATIVE } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
-import { SILICON_DIE_SLAB, logSpacedTimes, slabRth, slabZth } from './support/conduction-solutions.js';
+import { SILICON_DIE_SLAB, slabRth, slabZth } from './support/conduction-solutions.js';
+import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 
 // Truth: a silicon die slab, flux on one face, isothermal other face
 // (Carslaw & Jaeger 1959); its early times follow the semi-infinite sqrt(t) law.
-const times = logSpacedTimes(1e-6, 8, 100);
+const times = logSpacedTimes(1e-6, 100, 100);
 const rth = slabRth(SILICON_DIE_SLAB);
 const truth = times.map((t) => slabZth(SILICON_DIE_SLAB, t));
 const power_W = 60 / rth; // P x Rth = 60 K, as on a power module bench

@@ -6,11 +6,10 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * integral of the time-constant spectrum, which noise biases upward at long
  * time constants. A curve still rising at its end has not reached steady
  * state, so Rth total is then underestimated and a warning says so. The rise
- * is judged by the least-squares slope of Zth against log10 t over the same
- * window (a rate per decade at the end of the record), not by the rise over
- * the whole last decade: a part whose slowest time constant is a tenth of the
- * record length has settled at the end although Zth still rose a lot during
- * that decade.
+ * is judged within the averaging window itself (its least-squares slope of
+ * Zth against log10 t times its width in decades), not over the whole last
+ * decade: a part whose slowest time constant is a tenth of the record length
+ * has settled at the end although Zth still rose a lot during that decade.
  * The trimmed mean is a standard robust location estimate (Tukey & McLaughlin,
  * Sankhya A 25, 1963): one spike does not move it, and it averages the noise
  * almost as well as the plain mean.
@@ -22,7 +21,7 @@ export const STEADY_STATE_WINDOW_FRACTION = 0.05;
 export const MIN_STEADY_STATE_SAMPLES = 10;
 /** Fraction of the sorted window dropped at each end before averaging. */
 export const STEADY_STATE_TRIM_FRACTION = 0.2;
-/** An end slope above this fraction of Rth total per decade gets a warning. */
+/** A rise within the steady-state window above this fraction of Rth total gets a warning. */
 export const STEADY_STATE_RISE_LIMIT = 0.01;
 
 export interface SteadyState {
@@ -30,8 +29,8 @@ export interface SteadyState {
   /** First time of the averaged window. */
   window_start_s: number;
   samples: number;
-  /** Slope of Zth against log10 t over the window: how fast Zth still rises at the end. */
-  end_rise_K_per_W_per_decade: number;
+  /** How much Zth still rises within the window (least-squares slope times the window's width in decades). */
+  window_rise_K_per_W: number;
   warnings: string[];
 }
 
@@ -50,14 +49,15 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array):
   const rth_K_per_W = trimmedMean(zth_K_per_W.slice(windowStart));
   if (!(rth_K_per_W > 0)) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${rth_K_per_W.toPrecision(3)} K/W; it must rise from 0 to a positive Rth`);
 
-  const end_rise_K_per_W_per_decade = slopePerDecade(time_s, zth_K_per_W, windowStart);
+  const windowDecades = logLast - Math.log10(time_s[windowStart]);
+  const window_rise_K_per_W = slopePerDecade(time_s, zth_K_per_W, windowStart) * windowDecades;
   const warnings: string[] = [];
-  if (end_rise_K_per_W_per_decade > STEADY_STATE_RISE_LIMIT * rth_K_per_W) {
+  if (window_rise_K_per_W > STEADY_STATE_RISE_LIMIT * rth_K_per_W) {
     warnings.push(
-      `Zth still rises by ${((100 * end_rise_K_per_W_per_decade) / rth_K_per_W).toFixed(1)} % of Rth per decade at the end of the record: steady state is not reached and Rth total is underestimated; record longer`,
+      `Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over the last ${windowDecades.toFixed(2)} decades of the record: steady state is not reached and Rth total is underestimated; record longer`,
     );
   }
-  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, end_rise_K_per_W_per_decade, warnings };
+  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, warnings };
 }
 
 /** Least-squares slope of zth against log10 t from `start` to the end. */

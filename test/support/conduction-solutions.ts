@@ -65,11 +65,5 @@ function ierfc(x: number): number {
   return Math.exp(-x * x) / Math.sqrt(Math.PI) - x * (1 - erf(x));
 }
 
-/** Log-spaced times from `first_s` over `decades` decades, `perDecade` samples a decade. */
-export function logSpacedTimes(first_s: number, decades: number, perDecade: number): Float64Array {
-  const count = decades * perDecade + 1;
-  return Float64Array.from({ length: count }, (_, i) => first_s * 10 ** (i / perDecade));
-}
-
 /** A silicon die as a slab (k 148 W/mK, rho c 1.64e6 J/m^3K, handbook values (memory)): 300 um, 5 x 5 mm. */
 export const SILICON_DIE_SLAB: Slab = { thickness_m: 300e-6, area_m2: 25e-6, conductivity_W_per_mK: 148, volumetricHeat_J_per_m3K: 1.64e6 };
