@@ -76,6 +76,15 @@ describe('with a real Redis', () => {
     expectProblem(await upload(context, 'sample_id=S1&power_W=5&current_A=1&voltage_V=5', small), 400, 'REQUEST_INVALID');
   });
 
+  it('reads power and kind from the file\'s "# key: value" lines, as the CLI does, and records them', async () => {
+    const withHeader = Buffer.concat([Buffer.from('# kind: heating\n# power_W: 42.5\n'), small]);
+    const accepted = await upload(context, 'sample_id=S-meta', withHeader);
+    expect(accepted.statusCode, accepted.body).toBe(202);
+    const record = await context.app.inject({ url: accepted.json().links.self, headers: bearer('reader') });
+    expect(record.json().upload).toMatchObject({ power: { power_W: 42.5 }, parameters: { kind: 'heating' } });
+    expectProblem(await upload(context, 'sample_id=S-meta', small), 422, 'POWER_REQUIRED');
+  });
+
   it('404 for unknown routes and unknown ids', async () => {
     expectProblem(await context.app.inject({ url: '/v2/transients', headers: bearer('reader') }), 404, 'ROUTE_NOT_FOUND');
     expectProblem(await context.app.inject({ url: '/v1/transients/upl-none', headers: bearer('reader') }), 404, 'RESOURCE_NOT_FOUND');

@@ -35,6 +35,13 @@ function result(jobId: string, marker: string): ResultRecord {
 }
 
 describe('TransientStore', () => {
+  it('creates the data directory of a new installation, and is ready only then', async () => {
+    const fresh = new TransientStore(join(dataDir, 'new', 'store'));
+    expect(await fresh.isReady()).toBe(false);
+    await fresh.ensureDataDir();
+    expect(await fresh.isReady()).toBe(true);
+  });
+
   it('stores blobs by content hash and reports a repeat as existing', async () => {
     const bytes = new TextEncoder().encode('time_s,zth_K_per_W\n1e-6,0.01\n');
     const first = await store.putBlob(bytes);

@@ -34,6 +34,7 @@ export interface RunningWorkers {
 export async function startWorkers({ config, logger, metricsRegistry }: StartWorkersOptions): Promise<RunningWorkers> {
   const { queue: settings, redisUrl, dataDir } = config;
   const store = new TransientStore(dataDir);
+  await store.ensureDataDir();
   const processes = settings.workerProcesses ?? availableParallelism();
   const analysis = new AnalysisWorker({
     dataDir,

@@ -14,6 +14,7 @@ export interface RunningApi {
 /** Builds the API over the configured store and queue and listens on HOST:PORT. */
 export async function startApi(config: ServiceConfig, logger: Logger): Promise<RunningApi> {
   const store = new TransientStore(config.dataDir);
+  await store.ensureDataDir();
   const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
   const app = await buildApp({ config, logger, store, queue });
   await app.listen({ port: config.port, host: config.host });

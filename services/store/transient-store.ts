@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { access, constants, readdir, readFile, stat, unlink } from 'node:fs/promises';
+import { access, constants, mkdir, readdir, readFile, stat, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { canonicalJson } from '../jobs/canonical-json.js';
@@ -201,6 +201,11 @@ export class TransientStore {
   // ---- health ----
 
   /** Cheap readiness: the data directory exists and this process may write in it. */
+  /** Creates the data directory if it is not there yet: a new installation starts with an empty store. */
+  async ensureDataDir(): Promise<void> {
+    await mkdir(this.dataDir, { recursive: true });
+  }
+
   async isReady(): Promise<boolean> {
     try {
       const info = await stat(this.dataDir);

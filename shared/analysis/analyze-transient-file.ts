@@ -1,5 +1,4 @@
 import { createHash } from 'node:crypto';
-import { Value } from 'typebox/value';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
@@ -16,11 +15,12 @@ import { resampleOnLogTimeGrid } from '../numerics/log-time-grid.js';
 import { zthFromFoster } from '../numerics/foster-zth.js';
 import { fosterNetlist, cauerNetlist } from '../numerics/spice-netlist.js';
 import type { CauerLadder, FosterNetwork } from '../numerics/rc-network.js';
-import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
+import type { AnalysisParameters, Power } from '../schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { Calibration } from '../schemas/calibration.js';
 import { ALGORITHM_VERSION, HEATPATH_VERSION } from './algorithm-version.js';
 import { RESULT_CAUTION } from './result-caution.js';
+import { resolveAnalysisInputs } from './resolve-analysis-inputs.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -56,8 +56,7 @@ const NEGLIGIBLE_STAGE_FRACTION = 1e-9;
  */
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
   const file = parseTransient(input.bytes, input.fileName, input.format);
-  const parameters = resolveParameters(input.parameters ?? {}, file, input.fileName);
-  const power = file.quantity === 'zth_K_per_W' && !input.power ? powerFromMeta(file, input.fileName, false) : input.power ?? powerFromMeta(file, input.fileName, true);
+  const { parameters, power } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
   const power_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
   if (file.quantity === 'voltage_V' && !input.calibration) {
     throw new HeatpathError('CALIBRATION_REQUIRED', `${file.channels.length} voltage_V channel(s) and no calibration`, { file: input.fileName });
@@ -209,44 +208,6 @@ function fosterStages(foster: FosterNetwork): AnalysisResult['foster'] {
 
 function cauerStages(cauer: CauerLadder): AnalysisResult['cauer'] {
   return Array.from(cauer.r_K_per_W, (r, i) => ({ r_K_per_W: r, c_J_per_K: cauer.c_J_per_K[i] }));
-}
-
-/** Explicit parameters, then the file's `kind` metadata, then the schema defaults; validated by the schema. */
-function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFile, fileName: string): AnalysisParameters {
-  const kind = given.kind ?? file.meta.kind;
-  const merged = { ...defaultAnalysisParameters, ...(kind !== undefined ? { kind } : {}), ...stripUndefined(given) };
-  if (!Value.Check(AnalysisParametersSchema, merged)) {
-    const first = [...Value.Errors(AnalysisParametersSchema, merged)][0];
-    const where = first?.instancePath?.replace(/^\//, '') || 'parameters';
-    const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind:" line)` : '';
-    throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, { file: fileName });
-  }
-  if (merged.early_time_start_s !== undefined && merged.early_time_end_s !== undefined && merged.early_time_end_s <= merged.early_time_start_s) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_end_s (${merged.early_time_end_s}) must be later than early_time_start_s (${merged.early_time_start_s})`, { file: fileName });
-  }
-  return merged as AnalysisParameters;
-}
-
-/** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata. */
-function powerFromMeta(file: TransientFile, fileName: string, required: boolean): Power | undefined {
-  const number = (key: string) => (file.meta[key] !== undefined ? Number(file.meta[key]) : undefined);
-  const candidate = file.meta.power_W !== undefined
-    ? { power_W: number('power_W') }
-    : file.meta.current_A !== undefined || file.meta.voltage_V !== undefined
-      ? { current_A: number('current_A'), voltage_V: number('voltage_V') }
-      : undefined;
-  if (candidate === undefined) {
-    if (!required) return undefined;
-    throw new HeatpathError('POWER_REQUIRED', `${file.quantity} input and no power given or found in the file's metadata`, { file: fileName });
-  }
-  if (!Value.Check(PowerSchema, candidate)) {
-    throw new HeatpathError('POWER_REQUIRED', `the file's power metadata ${JSON.stringify(candidate)} is not a positive power_W or current_A with voltage_V`, { file: fileName });
-  }
-  return candidate as Power;
-}
-
-function stripUndefined<T extends object>(value: T): Partial<T> {
-  return Object.fromEntries(Object.entries(value).filter(([, v]) => v !== undefined)) as Partial<T>;
 }
 
 function sha256(data: Uint8Array | string): string {

@@ -5,9 +5,27 @@ import { CalibrationSchema } from '../../../shared/schemas/calibration.js';
 const positive = (description: string) => Type.Number({ exclusiveMinimum: 0, description });
 
 /**
+ * The shared analysis parameters as optional fields WITHOUT their defaults:
+ * fastify fills schema defaults in, and a filled-in `kind: cooling` would
+ * override a heating file's `# kind:` line. What a request leaves out comes
+ * from the file's metadata, then the shared defaults (resolveAnalysisInputs).
+ */
+const partialParameters = Type.Partial(AnalysisParametersSchema).properties;
+const parameterFields = Object.fromEntries(
+  Object.entries(partialParameters).map(([name, field]) => {
+    // A copy with every own property, TypeBox's non-enumerable markers (optional) included, less the default.
+    const copy = Object.defineProperties({}, Object.getOwnPropertyDescriptors(field)) as { default?: unknown; description?: string };
+    const fallback = copy.default;
+    delete copy.default;
+    copy.description = `${copy.description ?? ''} Default: the file's metadata (kind), else ${JSON.stringify(fallback ?? 'automatic')}.`;
+    return [name, copy];
+  }),
+) as unknown as typeof partialParameters;
+
+/**
  * What a bench says about an uploaded transient, flat so the same fields
  * work as query parameters (raw CSV/JSON body) and as multipart fields.
- * Analysis parameters are the shared ones, with their shared defaults.
+ * Analysis parameters are the shared ones (defaults resolved after parsing).
  */
 export const UploadQuerySchema = Type.Object(
   {
@@ -21,7 +39,7 @@ export const UploadQuerySchema = Type.Object(
     voltage_V: Type.Optional(positive('Heating voltage (with current_A).')),
     calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'A stored calibration (POST /v1/calibrations); needed for voltage_V input.' })),
     file_name: Type.Optional(Type.String({ minLength: 1, maxLength: 255, description: 'Name recorded in results and error messages.' })),
-    ...Type.Partial(AnalysisParametersSchema).properties,
+    ...parameterFields,
   },
   { additionalProperties: false },
 );

@@ -3,7 +3,8 @@ import type { FastifyBaseLogger } from 'fastify';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { parseTransient } from '../../../shared/input/parse-transient.js';
 import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
-import { AnalysisParametersSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
+import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
+import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
 import type { ApiKey } from '../../config/api-key-list.js';
 import { jobIdFor } from '../../jobs/job-id.js';
 import type { UploadRecord } from '../../store/store-records.js';
@@ -43,15 +44,16 @@ export async function acceptTransientUpload(
   const { store, queue, log } = deps;
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.fileName, upload.format);
-  const power = powerOf(metadata);
+  const { parameters, power: resolvedPower } = resolveAnalysisInputs(
+    transient,
+    { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
+    upload.fileName,
+  );
+  const power = resolvedPower ?? null;
   const calibrationId = await calibrationIdOf(store, metadata, apiKey);
   if (transient.quantity === 'voltage_V' && calibrationId === null) {
     throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.fileName });
   }
-  if (transient.quantity !== 'zth_K_per_W' && power === null) {
-    throw new HeatpathError('POWER_REQUIRED', `the file holds ${transient.quantity}; give power_W, or current_A and voltage_V`, { file: upload.fileName });
-  }
-  const parameters = parametersOf(metadata);
   const inputSha256 = sha256Hex(upload.bytes);
   const jobId = jobIdFor({ input_sha256: inputSha256, parameters, power, calibration_sha256: calibrationId });
   const describe = (record: UploadRecord, state: JobState): UploadAnswer => ({
@@ -168,14 +170,11 @@ async function calibrationIdOf(store: TransientStore, metadata: UploadMetadata, 
   return metadata.calibration_id;
 }
 
-function parametersOf(metadata: UploadMetadata): AnalysisParameters {
-  const parameters: AnalysisParameters = { ...defaultAnalysisParameters };
+/** The analysis parameters named in the request; the rest come from the file's metadata or the defaults (resolveAnalysisInputs). */
+function givenParametersOf(metadata: UploadMetadata): Partial<AnalysisParameters> {
+  const given: Partial<AnalysisParameters> = {};
   for (const name of Object.keys(AnalysisParametersSchema.properties) as (keyof AnalysisParameters)[]) {
-    if (metadata[name] !== undefined) Object.assign(parameters, { [name]: metadata[name] });
+    if (metadata[name] !== undefined) Object.assign(given, { [name]: metadata[name] });
   }
-  const { early_time_start_s: start, early_time_end_s: end } = parameters;
-  if (start !== undefined && end !== undefined && start >= end) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_start_s (${start}) must be less than early_time_end_s (${end})`);
-  }
-  return parameters;
+  return given;
 }

@@ -1,0 +1,60 @@
+import { Value } from 'typebox/value';
+import { HeatpathError } from '../errors/heatpath-error.js';
+import type { TransientFile } from '../input/transient-file.js';
+import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
+
+/**
+ * The parameters and power an analysis of `file` really uses: what the caller
+ * gave, else the file's `# key: value` metadata (kind; power_W, or current_A
+ * and voltage_V), else the schema defaults. The CLI, the pipeline and the
+ * service's upload route all resolve them here, so a job's id and provenance
+ * name exactly what was computed.
+ */
+export function resolveAnalysisInputs(
+  file: TransientFile,
+  given: { parameters?: Partial<AnalysisParameters>; power?: Power },
+  fileName: string,
+): { parameters: AnalysisParameters; power: Power | undefined } {
+  const parameters = resolveParameters(given.parameters ?? {}, file, fileName);
+  const power = given.power ?? powerFromMeta(file, fileName, file.quantity !== 'zth_K_per_W');
+  return { parameters, power };
+}
+
+/** Explicit parameters, then the file's `kind` metadata, then the schema defaults; validated by the schema. */
+function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFile, fileName: string): AnalysisParameters {
+  const kind = given.kind ?? file.meta.kind;
+  const merged = { ...defaultAnalysisParameters, ...(kind !== undefined ? { kind } : {}), ...stripUndefined(given) };
+  if (!Value.Check(AnalysisParametersSchema, merged)) {
+    const first = [...Value.Errors(AnalysisParametersSchema, merged)][0];
+    const where = first?.instancePath?.replace(/^\//, '') || 'parameters';
+    const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind:" line)` : '';
+    throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, { file: fileName });
+  }
+  if (merged.early_time_start_s !== undefined && merged.early_time_end_s !== undefined && merged.early_time_end_s <= merged.early_time_start_s) {
+    throw new HeatpathError('PARAM_INVALID', `early_time_end_s (${merged.early_time_end_s}) must be later than early_time_start_s (${merged.early_time_start_s})`, { file: fileName });
+  }
+  return merged as AnalysisParameters;
+}
+
+/** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata. */
+function powerFromMeta(file: TransientFile, fileName: string, required: boolean): Power | undefined {
+  const number = (key: string) => (file.meta[key] !== undefined ? Number(file.meta[key]) : undefined);
+  const candidate = file.meta.power_W !== undefined
+    ? { power_W: number('power_W') }
+    : file.meta.current_A !== undefined || file.meta.voltage_V !== undefined
+      ? { current_A: number('current_A'), voltage_V: number('voltage_V') }
+      : undefined;
+  if (candidate === undefined) {
+    if (!required) return undefined;
+    throw new HeatpathError('POWER_REQUIRED', `${file.quantity} input and no power given or found in the file's metadata`, { file: fileName });
+  }
+  if (!Value.Check(PowerSchema, candidate)) {
+    throw new HeatpathError('POWER_REQUIRED', `the file's power metadata ${JSON.stringify(candidate)} is not a positive power_W or current_A with voltage_V`, { file: fileName });
+  }
+  return candidate as Power;
+}
+
+function stripUndefined<T extends object>(value: T): Partial<T> {
+  return Object.fromEntries(Object.entries(value).filter(([, v]) => v !== undefined)) as Partial<T>;
+}
+
