@@ -166,7 +166,8 @@ describe('parseTransient JSON', () => {
     ['too few points', JSON.stringify({ time_s: times.slice(0, 5), voltage_V: values.slice(0, 5) }), 'INPUT_TOO_FEW_POINTS', 4, 'time_s'],
     ['bad meta', JSON.stringify({ time_s: times, voltage_V: values, meta: { a: [1] } }), 'INPUT_BAD_JSON', undefined, 'meta'],
   ];
-  it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, index, column));
+  // JSON places are named as column[index] (from 0), without a line.
+  it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, undefined, index === undefined ? column : `${column}[${index}]`));
 });
 
 describe('parseTransient on arbitrary input', () => {

@@ -11,8 +11,8 @@ const PARSER_MESSAGE_MAX_CHARS = 120;
 /**
  * Parse a JSON transient: {"time_s": [...], "<quantity>": [...]} or a channel
  * map {"time_s": [...], "<quantity>": {"D1": [...], ...}}, plus an optional
- * "meta" object of scalar values. Errors name the key as column and the array
- * index (from 0) as line.
+ * "meta" object of scalar values. Errors name the place as a column with its
+ * array index from 0, e.g. time_s[12] (JSON has no meaningful line).
  */
 export function parseTransientJson(text: string, fileName: string): TransientFile {
   const root = parseJsonText(text, fileName);
@@ -48,7 +48,7 @@ export function parseTransientJson(text: string, fileName: string): TransientFil
       });
     }
   }
-  checkTransientTime(time_s, (i) => ({ file: fileName, line: i, column: TIME_KEY }));
+  checkTransientTime(time_s, (i) => ({ file: fileName, column: `${TIME_KEY}[${i}]` }));
   return { quantity, time_s, channels, meta: readMeta(metaValue, fileName) };
 }
 
@@ -79,7 +79,7 @@ function readNumberArray(value: unknown, fileName: string, column: string): Floa
   const numbers = new Float64Array(value.length);
   for (let i = 0; i < value.length; i++) {
     const element: unknown = value[i];
-    const at: ErrorLocation = { file: fileName, line: i, column: shortenInputText(column) };
+    const at: ErrorLocation = { file: fileName, column: `${shortenInputText(column)}[${i}]` };
     if (typeof element === 'number') {
       if (!Number.isFinite(element)) throw new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] overflows a double`, at);
       numbers[i] = element;
