@@ -136,8 +136,16 @@ describe('parseTransient JSON', () => {
     expect(parsed.channels[1].values[0]).toBe(0.5);
   });
 
+  it('points a calibration sweep handed to analyze at heatpath calibrate', () => {
+    const error = catchHeatpathError(() => parseTransient('# oven sweep\ntemperature_C,voltage_V\n25,0.61\n50,0.56\n', 'sweep.csv'));
+    expect(error.code).toBe('INPUT_MISSING_COLUMN');
+    expect(error.location).toEqual({ file: 'sweep.csv', line: 2 });
+    expect(error.message).toMatch(/heatpath calibrate/);
+  });
+
   it('follows an explicit format over the content', () => {
-    expect(catchHeatpathError(() => parseTransient(JSON.stringify({ time_s: times }), 'c.txt', 'csv')).code).toBe('INPUT_UNKNOWN_COLUMN');
+    // Read as CSV, the JSON's first line is a header without a time_s column.
+    expect(catchHeatpathError(() => parseTransient(JSON.stringify({ time_s: times }), 'c.txt', 'csv')).code).toBe('INPUT_MISSING_COLUMN');
     expect(catchHeatpathError(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'json')).code).toBe('INPUT_BAD_JSON');
     expect(catchHeatpathError(() => parseTransient('[1, 2]', 'c.json', 'json')).code).toBe('INPUT_BAD_JSON');
     expect(catchHeatpathError(() => parseTransient('time_s,voltage_V\n1,2', 'c.txt', 'xml' as 'csv')).code).toBe('INPUT_BAD_FORMAT');

@@ -24,6 +24,11 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
   const table = readNumericCsv(text, fileName, (names, headerLine) => {
     const at = (name: string) => ({ file: fileName, line: headerLine, column: shortenInputText(name) });
     const seenChannels = new Map<string, string>();
+    if (!names.includes(TIME_COLUMN)) {
+      // Checked first: a calibration sweep (temperature_C,voltage_V) handed to analyze is the common case.
+      const sweep = names.includes('temperature_C') && names.includes('voltage_V') ? '; temperature_C with voltage_V looks like a calibration sweep: fit it with `heatpath calibrate`' : '';
+      throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header${sweep}`, { file: fileName, line: headerLine });
+    }
     names.forEach((name, index) => {
       if (name === TIME_COLUMN) {
         if (timeIndex >= 0) throw new HeatpathError('INPUT_DUPLICATE_COLUMN', `${TIME_COLUMN} appears twice`, at(name));
@@ -45,7 +50,6 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
       quantity = columnQuantity;
       valueColumns.push({ index, channel });
     });
-    if (timeIndex < 0) throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header`, { file: fileName, line: headerLine });
     if (quantity === undefined) throw new HeatpathError('INPUT_MISSING_COLUMN', 'no value column in the header', { file: fileName, line: headerLine });
   });
 
