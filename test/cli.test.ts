@@ -85,3 +85,14 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     });
   }
 });
+
+describe('heatpath analyze on an archive with a bad file', () => {
+  it('analyses the good files, reports the bad one on one line, and exits 2', () => {
+    const bad = file('broken.csv', 'time_s,temperature_C\n1e-6,abc\n');
+    const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), bad, join(demo, 'fh-tt2_q15_heating.json'), '--format', 'json');
+    expect(run.code).toBe(2);
+    expect(run.stdout.trim().split('\n').map((line) => JSON.parse(line).source.file)).toEqual([join(demo, 'fh-tt1_m07_cooling.csv'), join(demo, 'fh-tt2_q15_heating.json')]);
+    expect(run.stderr.trim().split('\n')).toHaveLength(1);
+    expect(run.stderr).toMatch(/broken\.csv, line 2, column temperature_C.*\[INPUT_NOT_NUMERIC\]/);
+  });
+});

@@ -4,6 +4,7 @@ import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-fi
 import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { isUserError, userErrorLine } from './user-error-line.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
 import type { Calibration } from '../../shared/schemas/calibration.js';
@@ -27,6 +28,8 @@ ${analysisParametersUsage}
 
 export interface AnalyzeRun {
   results: { file: string; result: AnalysisResult; outDir?: string }[];
+  /** Files the user must fix: the others are analysed all the same. */
+  failures: HeatpathError[];
 }
 
 /** `heatpath analyze`: returns the exit code; writes the report to `print`. */
@@ -53,8 +56,9 @@ export async function runAnalyzeCommand(argv: string[], print: (text: string) =>
   for (const { file, result, outDir } of run.results) {
     print(format === 'json' ? JSON.stringify(result) : formatResultSummary(file, result, outDir));
   }
-  if (format === 'text') print(`Caution: ${RESULT_CAUTION}`);
-  return 0;
+  if (format === 'text' && run.results.length > 0) print(`Caution: ${RESULT_CAUTION}`);
+  for (const failure of run.failures) process.stderr.write(userErrorLine('analyze', failure) + '\n');
+  return run.failures.length > 0 ? 2 : 0;
 }
 
 interface AnalyzeFilesOptions {
@@ -65,21 +69,35 @@ interface AnalyzeFilesOptions {
   createdAt: string;
 }
 
-/** Analyse files one after another in this process; the first user error stops the run. */
+/**
+ * Analyse files one after another in this process. A file with a user error
+ * is reported and skipped, so one bad file in an archive does not cost the
+ * rest; anything else (a defect) stops the run.
+ */
 export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions): Promise<AnalyzeRun> {
   const results: AnalyzeRun['results'] = [];
+  const failures: HeatpathError[] = [];
   for (const file of files) {
-    const bytes = await readInputFile(file);
-    const channelResults = analyzeTransientFile(
-      { bytes, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },
-      options.createdAt,
-    );
+    let channelResults: AnalysisResult[];
+    try {
+      const bytes = await readInputFile(file);
+      channelResults = analyzeTransientFile(
+        { bytes, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },
+        options.createdAt,
+      );
+    } catch (error) {
+      if (isUserError(error)) {
+        failures.push(error);
+        continue;
+      }
+      throw error;
+    }
     for (const result of channelResults) {
       const outDir = options.outRoot ? await writeResultFiles(options.outRoot, file, result, channelResults.length > 1) : undefined;
       results.push({ file, result, outDir });
     }
   }
-  return { results };
+  return { results, failures };
 }
 
 /** DIR/<file stem>[-<channel>]/result.json plus every artifact. */

@@ -23,7 +23,8 @@ export interface ComparedMeasurement {
 export async function analyzeComparedFiles(files: string[], inputs: AnalysisInputs, createdAt: string): Promise<ComparedMeasurement[]> {
   const measurements: ComparedMeasurement[] = [];
   for (const file of files) {
-    const { results } = await analyzeFiles([file], { ...inputs, createdAt });
+    const { results, failures } = await analyzeFiles([file], { ...inputs, createdAt });
+    if (failures.length > 0) throw failures[0];
     if (results.length !== 1) {
       throw new HeatpathError('COMPARISON_SEVERAL_CHANNELS', `${results.length} channels (${results.map((r) => r.result.source.channel).join(', ')})`, { file });
     }

@@ -38,10 +38,13 @@ async function runDemo(): Promise<void> {
   const started = process.hrtime.bigint();
   const voltageFiles = transients.filter((f) => f.includes('fh-tt2_q12'));
   const otherFiles = transients.filter((f) => !voltageFiles.includes(f));
-  const runs = [
-    ...(await analyzeFiles(otherFiles, { parameters: {}, outRoot: outDir, createdAt })).results,
-    ...(await analyzeFiles(voltageFiles, { calibration, parameters: {}, outRoot: outDir, createdAt })).results,
+  const batches = [
+    await analyzeFiles(otherFiles, { parameters: {}, outRoot: outDir, createdAt }),
+    await analyzeFiles(voltageFiles, { calibration, parameters: {}, outRoot: outDir, createdAt }),
   ];
+  const failure = batches.flatMap((batch) => batch.failures)[0];
+  if (failure) throw failure;
+  const runs = batches.flatMap((batch) => batch.results);
   const elapsed_ms = Number(process.hrtime.bigint() - started) / 1e6;
   for (const run of runs) print(formatResultSummary(shown(run.file), run.result, run.outDir && shown(run.outDir)));
 

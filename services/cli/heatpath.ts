@@ -1,5 +1,5 @@
 #!/usr/bin/env node
-import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
+import { isUserError, userErrorLine } from './user-error-line.js';
 import { HEATPATH_VERSION } from '../../shared/analysis/algorithm-version.js';
 import { runAnalyzeCommand } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
@@ -54,8 +54,8 @@ export async function main(argv: string[]): Promise<number> {
   try {
     return await command(rest, print);
   } catch (error) {
-    if (isHeatpathError(error) && error.status < 500) {
-      process.stderr.write(`heatpath ${name}: ${error.message} [${error.code}]\n`);
+    if (isUserError(error)) {
+      process.stderr.write(userErrorLine(name, error) + '\n');
       return 2;
     }
     process.stderr.write(`heatpath ${name}: internal error: ${(error as Error)?.stack ?? String(error)}\nPlease report this with the input file.\n`);

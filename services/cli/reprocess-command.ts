@@ -2,8 +2,8 @@ import { createHash } from 'node:crypto';
 import { appendFile, mkdir, readdir, readFile, writeFile } from 'node:fs/promises';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
-import { analysisOptions } from './analysis-options.js';
-import { runAnalyzeCommand } from './analyze-command.js';
+import { analysisInputsFromOptions } from './analysis-options.js';
+import { analyzeFiles } from './analyze-command.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { uploadTransient, type UploadTarget } from './transient-upload-client.js';
@@ -23,8 +23,6 @@ with the same --out. Writes OUT/reprocess-summary.csv.
 ${uploadOptionsUsage}
   --sample ID             default: the name of each file's folder`;
 
-/** The options heatpath analyze understands, forwarded in local mode. */
-const ANALYZE_OPTIONS = [...Object.keys(analysisOptions), 'compact-stages'];
 const STATE_FILE = 'reprocess-state.jsonl';
 const SUMMARY_FILE = 'reprocess-summary.csv';
 const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
@@ -108,15 +106,14 @@ function serverProcessor(target: UploadTarget, values: Record<string, unknown>):
   };
 }
 
-/** Local mode runs `heatpath analyze --format json --out` on each file, so options and checks are the same. */
+/** Local mode analyses each file as `heatpath analyze --out` does, with the same options and checks. */
 function localProcessor(values: Record<string, unknown>, outDir: string): Processor {
-  const forwarded = ANALYZE_OPTIONS.flatMap((name) => (typeof values[name] === 'string' ? [`--${name}`, values[name] as string] : []));
+  const inputs = analysisInputsFromOptions(values);
   return async (path, relativePath) => {
-    const lines: string[] = [];
     try {
-      await runAnalyzeCommand([path, ...forwarded, '--format', 'json', '--out', join(outDir, 'results', dirname(relativePath))], (text) => lines.push(text));
-      const results = lines.flatMap((text) => text.split('\n')).filter(Boolean).map((line) => JSON.parse(line) as { rth_total_K_per_W: number });
-      return { status: 'ok', job_id: '', detail: `Rth ${results.map((result) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W` };
+      const run = await analyzeFiles([path], { ...(await inputs), outRoot: join(outDir, 'results', dirname(relativePath)), createdAt: new Date().toISOString() });
+      if (run.failures.length > 0) return failureOf(run.failures[0]);
+      return { status: 'ok', job_id: '', detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W` };
     } catch (error) {
       return failureOf(error);
     }

@@ -1,0 +1,11 @@
+import { isHeatpathError, type HeatpathError } from '../../shared/errors/heatpath-error.js';
+
+/** A mistake the user can fix (as opposed to a defect of heatpath). */
+export function isUserError(error: unknown): error is HeatpathError {
+  return isHeatpathError(error) && error.status < 500;
+}
+
+/** The one line a command prints on stderr for a user error: where, what, how to fix, and the stable code. */
+export function userErrorLine(command: string, error: HeatpathError): string {
+  return `heatpath ${command}: ${error.message} [${error.code}]`;
+}
