@@ -65,6 +65,9 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
   };
 }
 
+/** Time beyond HEATPATH_SHUTDOWN_TIMEOUT_MS after which a stopping worker process exits whatever still runs. */
+const SHUTDOWN_GRACE_MS = 5_000;
+
 /** `npm run start:worker`: workers only, until SIGTERM or SIGINT. */
 async function runWorkerProcess(): Promise<void> {
   const config = serviceConfigOrExit({ servesApi: false });
@@ -75,6 +78,13 @@ async function runWorkerProcess(): Promise<void> {
     if (stopping) return;
     stopping = true;
     logger.info({ signal }, 'stopping workers');
+    // The close is bounded by the shutdown timeout; should a child process or a
+    // connection still hold it up (a child signalled while it was starting), exit
+    // anyway a little later: unfinished jobs are taken over when their locks expire.
+    setTimeout(() => {
+      logger.error('workers did not stop within the shutdown timeout: exiting; unfinished jobs will be taken over by another worker');
+      process.exit(1);
+    }, config.queue.shutdownTimeoutMs + SHUTDOWN_GRACE_MS).unref();
     workers.close().then(
       () => process.exit(0),
       (error: unknown) => {
