@@ -29,6 +29,7 @@ import { layeredStackTruth, type LayeredStack, type StackLayer } from '../shared
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 import { fosterToCauer } from '../shared/numerics/foster-to-cauer.js';
+import { fosterFromSpectrum } from '../shared/numerics/foster-from-spectrum.js';
 import { cumulativeStructureFunction } from '../shared/numerics/structure-function.js';
 import { timeConstantSpectrum, type TimeConstantSpectrumOptions } from '../shared/numerics/time-constant-spectrum.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
@@ -68,7 +69,7 @@ const cases = [SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK, IGBT_ON_ALUMINA_
   return { stack, truth, rth, clean: zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, time_s) };
 });
 
-/** Structure-function error of every (stack, seed) curve, as the pipeline builds it (bins above 1e-9 of the total become Foster stages). */
+/** Structure-function error of every (stack, seed) curve, built as the pipeline builds it (fosterFromSpectrum, then Foster -> Cauer). */
 function curveErrors(method: TimeConstantSpectrumOptions['method']): StructureError[] {
   const errors: StructureError[] = [];
   for (const { truth, rth, clean } of cases) {
@@ -77,12 +78,7 @@ function curveErrors(method: TimeConstantSpectrumOptions['method']): StructureEr
       const random = createRandom(seed);
       const zth = clean.map((v) => v + noise_K_per_W * gaussian(random));
       const spectrum = timeConstantSpectrum(time_s, zth, { method, pointsPerDecade: 40, noise_K_per_W });
-      const total = spectrum.r_K_per_W.reduce((a, b) => a + b, 0);
-      const keep = [...spectrum.r_K_per_W.keys()].filter((j) => spectrum.r_K_per_W[j] > 1e-9 * total);
-      const ladder = fosterToCauer({
-        r_K_per_W: Float64Array.from(keep, (j) => spectrum.r_K_per_W[j]),
-        tau_s: Float64Array.from(keep, (j) => spectrum.tau_s[j]),
-      });
+      const ladder = fosterToCauer(fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W));
       errors.push(structureFunctionError(truth.structure, cumulativeStructureFunction(ladder), 0.05, 0.9));
     }
   }

@@ -10,9 +10,8 @@ import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
 import { fosterToCauer } from '../numerics/foster-to-cauer.js';
 import { cumulativeStructureFunction, differentialStructureFunction } from '../numerics/structure-function.js';
 import { cutAtSink } from '../numerics/structure-function-sink.js';
-import { fitCompactFoster } from '../numerics/compact-foster-fit.js';
-import { resampleOnLogTimeGrid } from '../numerics/log-time-grid.js';
-import { zthFromFoster } from '../numerics/foster-zth.js';
+import { fosterFromSpectrum } from '../numerics/foster-from-spectrum.js';
+import { fitCompactModel } from './fit-compact-model.js';
 import { fosterNetlist, cauerNetlist } from '../numerics/spice-netlist.js';
 import type { CauerLadder, FosterNetwork } from '../numerics/rc-network.js';
 import type { AnalysisParameters, Power } from '../schemas/analysis-parameters.js';
@@ -37,17 +36,6 @@ export interface TransientFileInput {
   /** Omitted fields: the file's `kind` metadata, then the schema defaults. */
   parameters?: Partial<AnalysisParameters>;
 }
-
-/**
- * The compact model is fitted on the Zth averaged onto this many points per
- * decade of log time: a handful of stages needs no more, the averaging lowers
- * the noise, and the fit costs a fraction of one on every raw sample. Its
- * error is then measured against every sample.
- */
-const COMPACT_FIT_POINTS_PER_DECADE = 20;
-
-/** Spectrum bins below this fraction of the total carry no heat worth a Foster stage. */
-const NEGLIGIBLE_STAGE_FRACTION = 1e-9;
 
 /**
  * Analyse every channel of one transient file. Pure apart from hashing: the
@@ -176,30 +164,6 @@ function analyzeChannel(
     provenance,
     caution: RESULT_CAUTION,
   };
-}
-
-/** The compact Foster fit on the log-time averaged curve, with its error over every measured sample. */
-function fitCompactModel(time_s: Float64Array, zth_K_per_W: Float64Array, stages: number) {
-  const grid = resampleOnLogTimeGrid(time_s, zth_K_per_W, COMPACT_FIT_POINTS_PER_DECADE);
-  const { foster } = fitCompactFoster(grid.z.map(Math.exp), grid.a, stages);
-  const model = zthFromFoster(foster.r_K_per_W, foster.tau_s, time_s);
-  let sumOfSquares = 0;
-  let max_abs_K_per_W = 0;
-  for (let i = 0; i < time_s.length; i++) {
-    const error = Math.abs(model[i] - zth_K_per_W[i]);
-    sumOfSquares += error * error;
-    max_abs_K_per_W = Math.max(max_abs_K_per_W, error);
-  }
-  return { foster, rms_K_per_W: Math.sqrt(sumOfSquares / time_s.length), max_abs_K_per_W };
-}
-
-/** Foster stages from the spectrum bins: R_i = R(zeta_i) dzeta, tau_i = exp(zeta_i), C_i = tau_i / R_i. */
-function fosterFromSpectrum(tau_s: Float64Array, r_K_per_W: Float64Array): FosterNetwork {
-  const total = r_K_per_W.reduce((a, b) => a + b, 0);
-  const keep: number[] = [];
-  for (let i = 0; i < r_K_per_W.length; i++) if (r_K_per_W[i] > NEGLIGIBLE_STAGE_FRACTION * total) keep.push(i);
-  if (keep.length === 0) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', 'the time-constant spectrum is empty (no heat flow found)');
-  return { r_K_per_W: Float64Array.from(keep, (i) => r_K_per_W[i]), tau_s: Float64Array.from(keep, (i) => tau_s[i]) };
 }
 
 function fosterStages(foster: FosterNetwork): AnalysisResult['foster'] {

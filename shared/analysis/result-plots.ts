@@ -1,12 +1,17 @@
 import type { AnalysisResult } from '../schemas/analysis-result.js';
 import { svgLinePlot } from '../plots/svg-line-plot.js';
+import { zthFromFoster } from '../numerics/foster-zth.js';
 
 const FOOTNOTE = 'heatpath: engineering estimate; see the caution in result.json';
 
 /** SVG plots of one result: Zth with its compact fit, the spectrum, the cumulative and differential structure functions. */
 export function resultPlots(result: AnalysisResult): { name: string; svg: string }[] {
   const subject = `${result.source.file.replace(/^.*[\\/]/, '')} (${result.source.channel})`;
-  const compactZth = result.zth.time_s.map((t) => result.compact.foster.reduce((sum, s) => sum - s.r_K_per_W * Math.expm1(-t / s.tau_s), 0));
+  const compactZth = zthFromFoster(
+    Float64Array.from(result.compact.foster, (s) => s.r_K_per_W),
+    Float64Array.from(result.compact.foster, (s) => s.tau_s),
+    Float64Array.from(result.zth.time_s),
+  );
   return [
     {
       name: 'zth.svg',

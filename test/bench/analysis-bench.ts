@@ -19,10 +19,10 @@ import { zthFromTemperature } from '../../shared/numerics/zth-from-temperature.j
 import { steadyStateRth } from '../../shared/numerics/steady-state.js';
 import { timeConstantSpectrum } from '../../shared/numerics/time-constant-spectrum.js';
 import { defaultAnalysisParameters } from '../../shared/schemas/analysis-parameters.js';
-import { resampleOnLogTimeGrid } from '../../shared/numerics/log-time-grid.js';
 import { fosterToCauer } from '../../shared/numerics/foster-to-cauer.js';
 import { cumulativeStructureFunction, differentialStructureFunction } from '../../shared/numerics/structure-function.js';
-import { fitCompactFoster } from '../../shared/numerics/compact-foster-fit.js';
+import { fitCompactModel } from '../../shared/analysis/fit-compact-model.js';
+import { fosterFromSpectrum } from '../../shared/numerics/foster-from-spectrum.js';
 import { packageRoot } from '../../services/cli/package-root.js';
 import { createRandom, gaussian } from '../support/seeded-random.js';
 
@@ -67,14 +67,10 @@ for (let run = 0; run < files.length; run++) {
   const [zth, tZth] = time(() => zthFromTemperature(parsed.time_s, values, { power_W: POWER_W }, { kind: 'cooling', noise_rms: noise_K }));
   const [, tSteady] = time(() => steadyStateRth(parsed.time_s, zth.zth_K_per_W));
   const [spectrum, tSpectrum] = time(() => timeConstantSpectrum(parsed.time_s, zth.zth_K_per_W, { method: defaultAnalysisParameters.method, pointsPerDecade: defaultAnalysisParameters.points_per_decade, noise_K_per_W: noise_K / POWER_W }));
-  const keep = Array.from(spectrum.r_K_per_W.keys()).filter((i) => spectrum.r_K_per_W[i] > 1e-12);
-  const foster = { r_K_per_W: Float64Array.from(keep, (i) => spectrum.r_K_per_W[i]), tau_s: Float64Array.from(keep, (i) => spectrum.tau_s[i]) };
+  const foster = fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W);
   const [cauer, tCauer] = time(() => fosterToCauer(foster));
   const [, tStructure] = time(() => differentialStructureFunction(cumulativeStructureFunction(cauer)));
-  const [, tCompact] = time(() => {
-    const grid = resampleOnLogTimeGrid(parsed.time_s, zth.zth_K_per_W, 20);
-    return fitCompactFoster(grid.z.map(Math.exp), grid.a, defaultAnalysisParameters.compact_stages);
-  });
+  const [, tCompact] = time(() => fitCompactModel(parsed.time_s, zth.zth_K_per_W, defaultAnalysisParameters.compact_stages));
   const [, tWhole] = time(() => analyzeTransientFile({ bytes, fileName: 'bench.csv' }, '2026-01-01T00:00:00.000Z'));
   if (warm) continue;
   record('parse CSV', tParse);
@@ -85,7 +81,7 @@ for (let run = 0; run < files.length; run++) {
   record('Foster -> Cauer (the spectrum\'s stages)', tCauer);
   stageCounts.push(foster.r_K_per_W.length);
   record('structure functions', tStructure);
-  record('compact 5-stage Foster fit (20 points/decade)', tCompact);
+  record('compact 5-stage Foster fit', tCompact);
   record('whole analyzeTransientFile', tWhole);
 }
 
