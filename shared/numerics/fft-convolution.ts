@@ -30,32 +30,51 @@ export function createFftConvolution(kernel: Float64Array, inputLength: number, 
   }
   // Circular convolution of size >= lagCount reproduces every wanted output of
   // the linear one (see the index ranges used below).
-  let size = 4;
+  let size = 8;
   while (size < lagCount) size *= 2;
   const fft = new FFT(size);
   const real = new Float64Array(size);
   const spectrum = new Float64Array(2 * size);
-  const product = new Float64Array(2 * size);
-  const result = new Float64Array(2 * size);
   const kernelSpectrum = new Float64Array(2 * size);
   real.set(kernel);
   fft.realTransform(kernelSpectrum, real);
-  const halfBins = size / 2;
+  // The product is the spectrum of a real sequence, so it is inverted with a
+  // complex FFT of half the size (even samples as real parts, odd as
+  // imaginary): half the work of a full-size complex inverse.
+  const half = size / 2;
+  const halfFft = new FFT(half);
+  const packed = new Float64Array(2 * half);
+  const unpacked = new Float64Array(2 * half);
+  const twiddleCos = Float64Array.from({ length: half }, (_, k) => Math.cos((2 * Math.PI * k) / size));
+  const twiddleSin = Float64Array.from({ length: half }, (_, k) => Math.sin((2 * Math.PI * k) / size));
 
-  /** Inverse FFT of (input spectrum, conjugated if asked) times the kernel spectrum, into result. */
+  /** Inverse FFT of (input spectrum, conjugated if asked) times the kernel spectrum: unpacked[m] = result sample m. */
   function multiplyByKernel(input: Float64Array, conjugateInput: boolean): void {
     real.fill(0);
     real.set(input);
     fft.realTransform(spectrum, real);
     const sign = conjugateInput ? -1 : 1;
-    for (let f = 0; f <= halfBins; f++) {
+    // spectrum[2f], spectrum[2f + 1] hold bin f for f = 0 .. half (realTransform fills that half).
+    for (let f = 0; f <= half; f++) {
       const re = spectrum[2 * f], im = sign * spectrum[2 * f + 1];
       const kr = kernelSpectrum[2 * f], ki = kernelSpectrum[2 * f + 1];
-      product[2 * f] = re * kr - im * ki;
-      product[2 * f + 1] = re * ki + im * kr;
+      spectrum[2 * f] = re * kr - im * ki;
+      spectrum[2 * f + 1] = re * ki + im * kr;
     }
-    fft.completeSpectrum(product);
-    fft.inverseTransform(result, product);
+    // X_k (k < half) and X_{k + half} = conj(X_{half - k}) give the spectra of the
+    // even samples, E_k = (X_k + X_{k + half}) / 2, and of the odd ones,
+    // O_k = (X_k - X_{k + half}) e^{2 pi i k / size} / 2; invert E + i O.
+    for (let k = 0; k < half; k++) {
+      const xr = spectrum[2 * k], xi = spectrum[2 * k + 1];
+      const yr = spectrum[2 * (half - k)], yi = -spectrum[2 * (half - k) + 1];
+      const er = (xr + yr) / 2, ei = (xi + yi) / 2;
+      const dr = (xr - yr) / 2, di = (xi - yi) / 2;
+      const c = twiddleCos[k], sn = twiddleSin[k];
+      const or = dr * c - di * sn, oi = dr * sn + di * c;
+      packed[2 * k] = er - oi;
+      packed[2 * k + 1] = ei + or;
+    }
+    halfFft.inverseTransform(unpacked, packed);
   }
 
   return {
@@ -64,13 +83,13 @@ export function createFftConvolution(kernel: Float64Array, inputLength: number, 
     convolve(input, output) {
       multiplyByKernel(input, false);
       const shift = inputLength - 1;
-      for (let i = 0; i < outputLength; i++) output[i] = result[2 * (i + shift)];
+      for (let i = 0; i < outputLength; i++) output[i] = unpacked[i + shift];
     },
     correlate(input, output) {
       // conj(input spectrum) times kernel spectrum: cross-correlation.
       multiplyByKernel(input, true);
       const last = inputLength - 1;
-      for (let j = 0; j < inputLength; j++) output[j] = result[2 * (last - j)];
+      for (let j = 0; j < inputLength; j++) output[j] = unpacked[last - j];
     },
   };
 }
