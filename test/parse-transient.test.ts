@@ -30,6 +30,25 @@ function expectErrorAt(text: string, fileName: string, code: string, line: numbe
 const times = logTimes(3, 10);
 
 describe('parseTransient CSV', () => {
+  it('reads every spelling of a decimal number as ECMAScript Number() does, in plain rows and in spaced or quoted rows alike', () => {
+    // Reference: ECMAScript Number() on the same text (ECMA-262 StringToNumber), the parser's definition of a field's value.
+    const spellings = ['1', '+2', '-3.5', '4.', '.5', '6e-3', '7.25E+2', '-.8e1', '0009.1000'];
+    const times = spellings.map((_, i) => `${(i + 1) * 1e-6}`);
+    const rows = [
+      ...spellings.map((v, i) => `${times[i]},${v}`),
+      ...spellings.map((v, i) => ` ${(i + 20) * 1e-6} , "${v}" `),
+      ...logTimes(3, 10).slice(20).map((t) => `${t},1`),
+    ];
+    const parsed = parseTransient(csv('time_s,zth_K_per_W', rows), 'spellings.csv');
+    const values = parsed.channels[0].values;
+    spellings.forEach((v, i) => {
+      expect(values[i]).toBe(Number(v));
+      expect(values[spellings.length + i]).toBe(Number(v));
+    });
+    expect(parsed.time_s[spellings.length]).toBe(20 * 1e-6);
+    expect(parsed.time_s.length).toBe(rows.length);
+  });
+
   it('reads a single-channel comma CSV with metadata, comments, CRLF and BOM', () => {
     const text = '\ufeff# sample: IGBT module 7\r\n# bench: B2\r\n\r\ntime_s,voltage_V\r\n' + coolingRows(times).join('\r\n') + '\r\n# trailing note\r\n';
     const parsed = parseTransient(new TextEncoder().encode(text), 'a.csv');

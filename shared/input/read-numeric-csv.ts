@@ -28,50 +28,152 @@ const META_LINE = /^#\s*([^:]+?)\s*:\s*(.*?)\s*$/;
  * is read, so that header mistakes are reported first.
  */
 export function readNumericCsv(text: string, fileName: string, checkHeader: (names: string[], headerLine: number) => void): NumericCsvTable {
-  const lines = splitLines(text);
+  const lines = new LineCursor(text);
   const meta: [string, string][] = [];
-  let headerIndex = -1;
-  for (let i = 0; i < lines.length; i++) {
-    const line = lines[i].trim();
+  let headerText: string | undefined;
+  while (lines.next()) {
+    const line = lines.text().trim();
     if (line === '') continue;
     if (line.startsWith('#')) {
       const match = META_LINE.exec(line);
       if (match) meta.push([match[1], match[2]]);
       continue;
     }
-    headerIndex = i;
+    headerText = lines.text();
     break;
   }
-  if (headerIndex < 0) throw new HeatpathError('INPUT_EMPTY', 'no header line and no data (only blank or comment lines)', { file: fileName });
+  if (headerText === undefined) throw new HeatpathError('INPUT_EMPTY', 'no header line and no data (only blank or comment lines)', { file: fileName });
 
-  const headerText = lines[headerIndex];
   const separator = detectSeparator(headerText);
   const names = headerText.split(separator).map(cleanField);
-  checkHeader(names, headerIndex + 1);
+  checkHeader(names, lines.number);
 
-  const values: number[][] = names.map(() => []);
-  const rowLineList: number[] = [];
-  for (let i = headerIndex + 1; i < lines.length; i++) {
-    const line = lines[i];
-    const trimmed = line.trim();
-    if (trimmed === '' || trimmed.startsWith('#')) continue;
-    const fields = line.split(separator);
-    if (fields.length !== names.length) {
-      throw new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${names.length} (separator ${JSON.stringify(separator)})`, {
-        file: fileName,
-        line: i + 1,
-      });
+  // No more data rows than lines left: fill typed arrays in place and trim them at the end.
+  const capacity = lines.remaining();
+  const columns = names.map(() => new Float64Array(capacity));
+  const rowLines = new Int32Array(capacity);
+  const row = new Float64Array(names.length);
+  let rows = 0;
+  while (lines.next()) {
+    // Most rows are plain numbers between separators: read them in place, and
+    // take anything else (blanks, comments, quotes, spaces, mistakes) the careful way.
+    if (!readPlainRow(text, lines.start, lines.end, separator, row)) {
+      const line = lines.text();
+      const trimmed = line.trim();
+      if (trimmed === '' || trimmed.startsWith('#')) continue;
+      const fields = line.split(separator);
+      if (fields.length !== names.length) {
+        throw new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${names.length} (separator ${JSON.stringify(separator)})`, {
+          file: fileName,
+          line: lines.number,
+        });
+      }
+      for (let c = 0; c < names.length; c++) row[c] = parseNumber(fields[c], fileName, lines.number, names[c]);
     }
-    for (let c = 0; c < names.length; c++) values[c].push(parseNumber(fields[c], fileName, i + 1, names[c]));
-    rowLineList.push(i + 1);
+    for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
+    rowLines[rows++] = lines.number;
   }
-  const columns = values.map((column) => Float64Array.from(column));
-  return { names, columns, rowLines: Int32Array.from(rowLineList), meta: Object.fromEntries(meta) };
+  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: Object.fromEntries(meta) };
 }
 
-function splitLines(text: string): string[] {
-  if (text.includes('\n')) return text.split('\n').map((line) => (line.endsWith('\r') ? line.slice(0, -1) : line));
-  return text.split('\r');
+/**
+ * The lines of a text, without copying them: LF or CRLF ends when the text
+ * holds any LF (a CR before the LF is dropped), else CR ends.
+ */
+class LineCursor {
+  /** Physical line number (from 1) of the current line. */
+  number = 0;
+  start = 0;
+  end = 0;
+  private nextStart = 0;
+  private readonly lineEnd: string;
+
+  constructor(private readonly source: string) {
+    this.lineEnd = source.includes('\n') ? '\n' : '\r';
+  }
+
+  next(): boolean {
+    if (this.nextStart > this.source.length || (this.nextStart === this.source.length && this.number > 0)) return false;
+    const at = this.source.indexOf(this.lineEnd, this.nextStart);
+    const stop = at < 0 ? this.source.length : at;
+    this.start = this.nextStart;
+    this.end = this.lineEnd === '\n' && stop > this.start && this.source.charCodeAt(stop - 1) === CR ? stop - 1 : stop;
+    this.nextStart = at < 0 ? this.source.length + 1 : at + 1;
+    this.number++;
+    return true;
+  }
+
+  text(): string {
+    return this.source.slice(this.start, this.end);
+  }
+
+  /** How many lines next() can still give, at most. */
+  remaining(): number {
+    let count = 0;
+    for (let at = this.source.indexOf(this.lineEnd, this.nextStart); at >= 0; at = this.source.indexOf(this.lineEnd, at + 1)) count++;
+    return count + 1;
+  }
+}
+
+const CR = 13;
+const PLUS = 43;
+const MINUS = 45;
+const DOT = 46;
+const DIGIT_0 = 48;
+const DIGIT_9 = 57;
+
+/**
+ * Fill `row` from text[start, end) when the line is exactly as many plain
+ * decimal numbers (DECIMAL_NUMBER) as `row` holds, joined by the separator,
+ * and each is finite; false otherwise, with nothing decided about the line.
+ */
+function readPlainRow(text: string, start: number, end: number, separator: string, row: Float64Array): boolean {
+  let fieldStart = start;
+  for (let c = 0; c < row.length; c++) {
+    let fieldEnd = end;
+    if (c < row.length - 1) {
+      fieldEnd = text.indexOf(separator, fieldStart);
+      if (fieldEnd < 0 || fieldEnd >= end) return false;
+    }
+    if (!isPlainDecimal(text, fieldStart, fieldEnd)) return false;
+    const value = Number(text.slice(fieldStart, fieldEnd));
+    if (!Number.isFinite(value)) return false;
+    row[c] = value;
+    fieldStart = fieldEnd + 1;
+  }
+  // The last field's check would have failed on a further separator: the count is right.
+  return true;
+}
+
+/** DECIMAL_NUMBER.test(text.slice(start, end)), without the copy. */
+function isPlainDecimal(text: string, start: number, end: number): boolean {
+  let i = start;
+  let code = text.charCodeAt(i);
+  if (code === PLUS || code === MINUS) code = text.charCodeAt(++i);
+  let digits = 0;
+  while (i < end && code >= DIGIT_0 && code <= DIGIT_9) {
+    digits++;
+    code = text.charCodeAt(++i);
+  }
+  if (i < end && code === DOT) {
+    code = text.charCodeAt(++i);
+    while (i < end && code >= DIGIT_0 && code <= DIGIT_9) {
+      digits++;
+      code = text.charCodeAt(++i);
+    }
+  }
+  if (digits === 0) return false;
+  if (i < end && (code === 101 || code === 69)) {
+    code = text.charCodeAt(++i);
+    if (i < end && (code === PLUS || code === MINUS)) code = text.charCodeAt(++i);
+    let exponentDigits = 0;
+    while (i < end && code >= DIGIT_0 && code <= DIGIT_9) {
+      exponentDigits++;
+      code = text.charCodeAt(++i);
+    }
+    if (exponentDigits === 0) return false;
+  }
+  return i === end;
 }
 
 /** The separator that occurs most often in the header line (comma on a tie or none). */
