@@ -17,7 +17,8 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * inside the artefact fail at once or stop at its end, and windows that run
  * past the die stop where the deviation exceeds the noise. If no window
  * passes, the noise allowance is doubled until one does, and the fit says so.
- * Prefix sums make each window test O(1).
+ * Prefix sums make each window test O(1), and a start is first tested at the
+ * length it would need to win, so most starts cost one test.
  */
 
 /** Candidate window starts lie within this many decades of the first positive time. */
@@ -164,7 +165,18 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
       end = fixedEnd;
     } else {
       end = start + minimumSamples - 1;
-      if (end >= count || !sums.passes(start, end, noise)) continue;
+      if (end >= count) continue;
+      if (best !== undefined) {
+        // To win, this start's window must grow past the best length, so it must
+        // pass at that end and at every end before it: test the far end first,
+        // which rules most starts out in one step, and the rest only then.
+        const mustReach = start + (best[1] - best[0]) + 1;
+        if (mustReach >= count || !sums.passes(start, mustReach, noise)) continue;
+        let reaches = true;
+        for (let e = mustReach - 1; e >= end && reaches; e--) reaches = sums.passes(start, e, noise);
+        if (!reaches) continue;
+        end = Math.max(end, mustReach);
+      } else if (!sums.passes(start, end, noise)) continue;
       while (end + 1 < count && sums.passes(start, end + 1, noise)) end++;
     }
     if (best === undefined || end - start > best[1] - best[0]) best = [start, end];
