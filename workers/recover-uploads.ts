@@ -15,6 +15,12 @@ export interface RecoverySweep {
   uploads: number;
   /** Unfinished jobs of running batches, offered again. */
   batch_jobs: number;
+  /**
+   * Upload records whose raw bytes are not stored: the API writes both side
+   * by side before it answers, so these are uploads a crash interrupted and
+   * nobody was told were accepted. They are not queued.
+   */
+  unacknowledged: string[];
 }
 
 /** Jobs added to Redis per round trip. */
@@ -40,13 +46,16 @@ export class UploadRecovery {
 
   async sweep(): Promise<RecoverySweep> {
     const pending: UploadRecord[] = [];
+    const unacknowledged: string[] = [];
     for (const upload of await this.store.listUploads()) {
-      if (!(await this.store.hasResult(upload.job_id)) && !(await this.store.hasFailure(upload.job_id))) pending.push(upload);
+      if ((await this.store.hasResult(upload.job_id)) || (await this.store.hasFailure(upload.job_id))) continue;
+      if (await this.store.hasBlob(upload.input_sha256)) pending.push(upload);
+      else unacknowledged.push(upload.upload_id);
     }
     for (let start = 0; start < pending.length; start += ENQUEUE_CHUNK) {
       await this.queue.enqueueMany(pending.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.interactive });
     }
-    return { uploads: pending.length, batch_jobs: await this.batches.requeueRunning() };
+    return { uploads: pending.length, batch_jobs: await this.batches.requeueRunning(), unacknowledged };
   }
 
   /** Sweeps now and every interval; a sweep that fails (Redis away) is logged and tried again next time. */
@@ -55,6 +64,9 @@ export class UploadRecovery {
       this.running ??= this.sweep()
         .then((sweep) => {
           if (sweep.uploads + sweep.batch_jobs > 0) this.options.logger?.info({ sweep }, 'recovery offered unfinished jobs to the queue');
+          if (sweep.unacknowledged.length > 0) {
+            this.options.logger?.warn({ upload_ids: sweep.unacknowledged }, 'upload records without raw bytes (a crash came before the answer); not queued');
+          }
           return sweep;
         })
         .catch((error: unknown) => {

@@ -66,6 +66,10 @@ export class TransientStore {
     return { sha256, byte_length: bytes.byteLength, existed };
   }
 
+  async hasBlob(sha256: string): Promise<boolean> {
+    return SHA256_HEX.test(sha256) && exists(this.blobPath(sha256));
+  }
+
   async getBlob(sha256: string): Promise<Uint8Array | null> {
     if (!SHA256_HEX.test(sha256)) return null;
     return readOrNull(this.blobPath(sha256));

@@ -7,7 +7,7 @@ import { TransientStore } from '../../services/store/transient-store.js';
 import type { UploadRecord } from '../../services/store/store-records.js';
 import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './synthetic-upload.js';
 
-/** A temporary store, and uploads put into it the way the API does (blob, then record). */
+/** A temporary store, and uploads put into it as the API does (raw bytes and upload record). */
 export class QueueTestFixture {
   private constructor(readonly dataDir: string, readonly store: TransientStore) {}
 

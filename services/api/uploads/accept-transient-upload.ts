@@ -80,13 +80,12 @@ export async function acceptTransientUpload(
     if (earlier) return replay(earlier.upload_id);
   }
 
-  const blob = await store.putBlob(upload.bytes);
   const record: UploadRecord = {
     upload_id: `upl-${randomUUID()}`,
-    input_sha256: blob.sha256,
+    input_sha256: inputSha256,
     format: formatOf(upload),
     file_name: upload.fileName,
-    byte_length: blob.byte_length,
+    byte_length: upload.bytes.byteLength,
     received_at: new Date().toISOString(),
     sample_id: metadata.sample_id,
     bench: metadata.bench ?? null,
@@ -99,7 +98,11 @@ export async function acceptTransientUpload(
     job_id: jobId,
     uploaded_by: apiKey.name,
   };
-  await store.putUpload(record);
+  // Both durable before the answer, written side by side: each waits for its
+  // own fsyncs, so together they take the time of one. A crash between them
+  // leaves a record without its bytes, which was never acknowledged and which
+  // recovery leaves alone (recover-uploads.ts).
+  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record)]);
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
