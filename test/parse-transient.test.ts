@@ -30,6 +30,24 @@ function expectErrorAt(text: string, fileName: string, code: string, line: numbe
 const times = logTimes(3, 10);
 
 describe('parseTransient CSV', () => {
+  it('gives exactly the double ECMAScript Number() gives for random decimal spellings (fast path and fallback alike)', () => {
+    // Reference: ECMAScript Number() (ECMA-262 StringToNumber, correctly rounded); short
+    // significands take the parser's Clinger fast path, long ones and large exponents Number() itself.
+    const digits = (min: number, max: number) => fc.array(fc.constantFrom(...'0123456789'), { minLength: min, maxLength: max }).map((d) => d.join(''));
+    const decimal = fc
+      .tuple(fc.constantFrom('', '+', '-'), digits(0, 20), fc.boolean(), digits(0, 20), fc.option(fc.tuple(fc.constantFrom('e', 'E'), fc.constantFrom('', '+', '-'), fc.integer({ min: 0, max: 280 }))))
+      .filter(([, whole, , fraction]) => whole.length + fraction.length > 0)
+      .map(([sign, whole, dot, fraction, exponent]) => `${sign}${whole}${dot || fraction.length > 0 ? '.' : ''}${fraction}${exponent ? `${exponent[0]}${exponent[1]}${exponent[2]}` : ''}`);
+    fc.assert(
+      fc.property(fc.array(decimal, { minLength: 1, maxLength: 40 }), (spellings) => {
+        const rows = [...spellings.map((v, i) => `${(i + 1) * 1e-7},${v}`), ...logTimes(3, 10).slice(10).map((t) => `${t},1`)];
+        const values = parseTransient(csv('time_s,zth_K_per_W', rows), 'random.csv').channels[0].values;
+        spellings.forEach((v, i) => expect(Object.is(values[i], Number(v))).toBe(true));
+      }),
+      { numRuns: 300, seed: 20261201 },
+    );
+  });
+
   it('reads every spelling of a decimal number as ECMAScript Number() does, in plain rows and in spaced or quoted rows alike', () => {
     // Reference: ECMAScript Number() on the same text (ECMA-262 StringToNumber), the parser's definition of a field's value.
     const spellings = ['1', '+2', '-3.5', '4.', '.5', '6e-3', '7.25E+2', '-.8e1', '0009.1000'];

@@ -135,14 +135,75 @@ function readPlainRow(text: string, start: number, end: number, separator: strin
       fieldEnd = text.indexOf(separator, fieldStart);
       if (fieldEnd < 0 || fieldEnd >= end) return false;
     }
-    if (!isPlainDecimal(text, fieldStart, fieldEnd)) return false;
-    const value = Number(text.slice(fieldStart, fieldEnd));
-    if (!Number.isFinite(value)) return false;
+    let value = fastDecimal(text, fieldStart, fieldEnd);
+    if (Number.isNaN(value)) {
+      if (!isPlainDecimal(text, fieldStart, fieldEnd)) return false;
+      value = Number(text.slice(fieldStart, fieldEnd));
+      if (!Number.isFinite(value)) return false;
+    }
     row[c] = value;
     fieldStart = fieldEnd + 1;
   }
   // The last field's check would have failed on a further separator: the count is right.
   return true;
+}
+
+/** 10^0 .. 10^22: every one is exactly a double. */
+const EXACT_POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => Number(`1e${k}`));
+/** Significant digits that keep the integer significand exact (10^15 < 2^53). */
+const EXACT_SIGNIFICAND_DIGITS = 15;
+
+/**
+ * The value of a plain decimal in text[start, end) by Clinger's fast path
+ * (W. D. Clinger, How to read floating point numbers accurately, PLDI 1990):
+ * with at most 15 significant digits the significand is an exact double, and
+ * with a decimal exponent within +-22 so is the power of ten, so one
+ * correctly rounded multiplication or division gives exactly what Number()
+ * gives. NaN when the text is not a plain decimal or the path does not apply.
+ */
+function fastDecimal(text: string, start: number, end: number): number {
+  let i = start;
+  let code = text.charCodeAt(i);
+  const negative = code === MINUS;
+  if (negative || code === PLUS) code = text.charCodeAt(++i);
+  let significand = 0;
+  let significantDigits = 0;
+  let anyDigit = false;
+  let scale = 0;
+  while (i < end && code >= DIGIT_0 && code <= DIGIT_9) {
+    anyDigit = true;
+    if (significand !== 0 || code !== DIGIT_0) significantDigits++;
+    significand = significand * 10 + (code - DIGIT_0);
+    code = text.charCodeAt(++i);
+  }
+  if (i < end && code === DOT) {
+    code = text.charCodeAt(++i);
+    while (i < end && code >= DIGIT_0 && code <= DIGIT_9) {
+      anyDigit = true;
+      if (significand !== 0 || code !== DIGIT_0) significantDigits++;
+      significand = significand * 10 + (code - DIGIT_0);
+      scale--;
+      code = text.charCodeAt(++i);
+    }
+  }
+  if (!anyDigit || significantDigits > EXACT_SIGNIFICAND_DIGITS) return NaN;
+  if (i < end && (code === 101 || code === 69)) {
+    code = text.charCodeAt(++i);
+    const negativeExponent = code === MINUS;
+    if (negativeExponent || code === PLUS) code = text.charCodeAt(++i);
+    let exponent = 0;
+    let exponentDigits = 0;
+    while (i < end && code >= DIGIT_0 && code <= DIGIT_9) {
+      if (exponent < 1000) exponent = exponent * 10 + (code - DIGIT_0);
+      exponentDigits++;
+      code = text.charCodeAt(++i);
+    }
+    if (exponentDigits === 0) return NaN;
+    scale += negativeExponent ? -exponent : exponent;
+  }
+  if (i !== end || scale > 22 || scale < -22) return NaN;
+  const magnitude = scale >= 0 ? significand * EXACT_POWERS_OF_TEN[scale] : significand / EXACT_POWERS_OF_TEN[-scale];
+  return negative ? -magnitude : magnitude;
 }
 
 /** DECIMAL_NUMBER.test(text.slice(start, end)), without the copy. */
