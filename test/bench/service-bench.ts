@@ -2,7 +2,11 @@
  * `npm run bench:service`: the service under load, on loopback only.
  *
  * Starts `node dist/services/main.js` (API + W analysis processes) against
- * the local Redis with a fresh prefix and a temporary store, then
+ * the local Redis with a fresh prefix and a temporary store, warms it up
+ * (WARMUP_UPLOADS uploads, one at a time, until their results are stored: the
+ * analysis processes start with the first jobs and the code paths get
+ * compiled, which a service that runs for weeks is past; the slowest warm-up
+ * upload is printed), then
  *  1. uploads N synthetic transients (about 100 kB CSV each) from C bench
  *     clients, each sending every C/R seconds (R uploads/s in all, more than
  *     the workers analyse, so the cores are busy meanwhile): p50/p99 upload
@@ -21,7 +25,7 @@
  * Bounded: every wait has a deadline; everything is removed at the end.
  */
 import { spawn } from 'node:child_process';
-import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
 import { availableParallelism, cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
@@ -44,6 +48,7 @@ const WORKERS = option('workers', availableParallelism());
 const ARCHIVE = Math.min(option('archive', UPLOADS), UPLOADS);
 const SAMPLES_PER_DECADE = option('samples-per-decade', 620);
 const DEADLINE_MS = 15 * 60_000;
+const WARMUP_UPLOADS = 4 * WORKERS;
 const TOKEN = 'bench-token-0123456789abcdef';
 
 function percentile(values: number[], p: number): number {
@@ -66,6 +71,13 @@ async function countResults(dataDir: string): Promise<number> {
   return files.reduce((sum, names) => sum + names.filter((name) => name.endsWith('.json')).length, 0);
 }
 
+/** User plus system CPU seconds of one process so far (Linux /proc; fields 14 and 15 of stat, in clock ticks of 1/100 s). */
+async function processCpuSeconds(pid: number): Promise<number> {
+  const stat = await readFile(`/proc/${pid}/stat`, 'utf8');
+  const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  return (Number(fields[11]) + Number(fields[12])) / 100;
+}
+
 /** jobs/s of `threads` threads analysing files in parallel (the core alone, no service). */
 async function computeBoundJobsPerSecond(files: Buffer[], threads: number): Promise<number> {
   const perThread = Math.min(40, Math.floor(files.length / threads));
@@ -84,6 +96,7 @@ const prefix = randomPrefix();
 const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-bench-'));
 const port = await freePort();
 const files = Array.from({ length: UPLOADS }, (_, i) => syntheticTransientCsv(5000 + i, SAMPLES_PER_DECADE));
+const warmupFiles = Array.from({ length: WARMUP_UPLOADS }, (_, i) => syntheticTransientCsv(4000 + i, SAMPLES_PER_DECADE));
 const meanKb = files.reduce((sum, file) => sum + file.length, 0) / files.length / 1024;
 
 const load = () => loadavg()[0].toFixed(1);
@@ -115,11 +128,32 @@ const queue = new AnalysisQueue({ redisUrl, prefix });
 try {
   await until('the API', async () => (await fetch(`${base}/health/ready`).catch(() => null))?.ok === true);
 
+  const upload = async (body: Buffer, index: number): Promise<number> => {
+    const t0 = performance.now();
+    const response = await fetch(`${base}/v1/transients?sample_id=BENCH-${index % 20}&bench=bench-${index % 4}&power_W=${SYNTHETIC_POWER_W}`, {
+      method: 'POST',
+      headers: { authorization: `Bearer ${TOKEN}`, 'content-type': 'text/csv' },
+      body,
+    });
+    await response.arrayBuffer();
+    if (response.status !== 202) throw new Error(`bench: upload answered HTTP ${response.status}`);
+    return performance.now() - t0;
+  };
+  let slowestWarmupMs = 0;
+  for (const [index, body] of warmupFiles.entries()) slowestWarmupMs = Math.max(slowestWarmupMs, await upload(body, index));
+  await until('the warm-up results', async () => (await countResults(dataDir)) >= WARMUP_UPLOADS, 100);
+  const measuredFrom = new Date().toISOString();
+  console.log(`warm-up: ${WARMUP_UPLOADS} uploads one at a time, slowest ${slowestWarmupMs.toFixed(0)} ms (not counted below)`);
+
   // 1 + 2: uploads while the workers run, then until every result is stored.
+  const clientCpuBefore = process.cpuUsage();
+  const serviceCpuBefore = await processCpuSeconds(service.pid!);
   const latencies: number[] = [];
   let next = 0;
   const started = performance.now();
   const periodMs = RATE > 0 ? (CONCURRENCY / RATE) * 1000 : 0;
+  // Until the last answer: a client that finds no file left after its wait does not count.
+  let lastAnswered = started;
   const client = async (clientIndex: number) => {
     // Staggered starts: the clients' slots are spread evenly over one period.
     let slot = started + (clientIndex * periodMs) / CONCURRENCY;
@@ -129,22 +163,18 @@ try {
       slot += periodMs;
       if (next >= files.length) break;
       const index = next++;
-      const t0 = performance.now();
-      const response = await fetch(`${base}/v1/transients?sample_id=BENCH-${index % 20}&bench=bench-${index % 4}&power_W=${SYNTHETIC_POWER_W}`, {
-        method: 'POST',
-        headers: { authorization: `Bearer ${TOKEN}`, 'content-type': 'text/csv' },
-        body: files[index],
-      });
-      await response.arrayBuffer();
-      if (response.status !== 202) throw new Error(`bench: upload answered HTTP ${response.status}`);
-      latencies.push(performance.now() - t0);
+      latencies.push(await upload(files[index], index));
+      lastAnswered = performance.now();
     }
   };
   await Promise.all(Array.from({ length: CONCURRENCY }, (_, clientIndex) => client(clientIndex)));
-  const uploadSeconds = (performance.now() - started) / 1000;
-  await until('all results', async () => (await countResults(dataDir)) >= UPLOADS, 200);
+  const uploadSeconds = (lastAnswered - started) / 1000;
+  await until('all results', async () => (await countResults(dataDir)) >= WARMUP_UPLOADS + UPLOADS, 200);
   const endToEndSeconds = (performance.now() - started) / 1000;
   const endToEnd = UPLOADS / endToEndSeconds;
+  const clientCpu = process.cpuUsage(clientCpuBefore);
+  const clientCpuSeconds = (clientCpu.user + clientCpu.system) / 1e6;
+  const serviceCpuSeconds = (await processCpuSeconds(service.pid!)) - serviceCpuBefore;
   const baselineAfter = { single: await computeBoundJobsPerSecond(files, 1), parallel: await computeBoundJobsPerSecond(files, WORKERS) };
   const single = (baselineBefore.single + baselineAfter.single) / 2;
   const computeBound = (baselineBefore.parallel + baselineAfter.parallel) / 2;
@@ -158,11 +188,16 @@ try {
     `end to end: ${endToEnd.toFixed(2)} jobs/s = ${((endToEnd / computeBound) * 100).toFixed(0)} % of compute-bound for ${WORKERS} (target >= 80 %), ` +
       `${(endToEnd / single).toFixed(2)} x one process` + (RATE > 0 && RATE * 1.0 < computeBound ? `; uploads at ${RATE}/s cap it: use --rate 0 for throughput` : ''),
   );
+  const coreSeconds = endToEndSeconds * availableParallelism();
+  console.log(
+    `  CPU over those ${endToEndSeconds.toFixed(1)} s: load generator (this process) ${clientCpuSeconds.toFixed(1)} s = ${((clientCpuSeconds / coreSeconds) * 100).toFixed(0)} % of the cores, ` +
+      `API and queue process ${serviceCpuSeconds.toFixed(1)} s = ${((serviceCpuSeconds / coreSeconds) * 100).toFixed(0)} % (the analysis processes have the rest)`,
+  );
 
   // 3: archive reprocess with a changed parameter (new job ids), below any upload's priority.
   const store = new TransientStore(dataDir);
   const batches = new BatchReprocessor(store, queue);
-  const uploads = (await store.listUploads()).slice(0, ARCHIVE);
+  const uploads = (await store.listUploads()).filter((record) => record.received_at >= measuredFrom).slice(0, ARCHIVE);
   const from = uploads[0].received_at;
   const to = new Date(Date.parse(uploads[uploads.length - 1].received_at) + 1).toISOString();
   const batchStarted = performance.now();
