@@ -67,7 +67,6 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
   if (!bytes) throw new UnrecoverableError(`raw transient ${data.input_sha256} of upload ${data.upload_id} is not in the store`);
   const calibration = data.calibration_id ? await store.getCalibration(data.calibration_id) : null;
   if (data.calibration_id && !calibration) throw new UnrecoverableError(`calibration ${data.calibration_id} is not in the store`);
-  await job.updateProgress(10);
 
   const started = performance.now();
   const results = analyzeTransientFile(
@@ -81,6 +80,9 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
     },
     new Date().toISOString(),
   );
+  // One progress report, between the analysis and the stored result: each costs
+  // a round trip through the parent process and Redis, a few per cent of a
+  // typical job's time, and completion itself says 100.
   await job.updateProgress(90);
 
   const wrote = await store.putResult({
@@ -99,7 +101,6 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
     results,
   });
   await notifyCompleted(jobId, upload.upload_id, upload.sample_id, data.batch_id);
-  await job.updateProgress(100);
   return { job_id: jobId, channels: results.length, wrote_result: wrote };
 }
 

@@ -102,10 +102,12 @@ export class AnalysisQueue {
   async getJobState(jobId: string): Promise<AnalysisJobState | null> {
     const job = await this.queue.getJob(jobId);
     if (!job) return null;
+    const state = await job.getState();
     return {
       job_id: jobId,
-      state: await job.getState(),
-      progress: typeof job.progress === 'number' ? job.progress : 0,
+      state,
+      // The processor reports progress once, before it stores the result; completion is 100.
+      progress: state === 'completed' ? 100 : typeof job.progress === 'number' ? job.progress : 0,
       added_at: isoOrNull(job.timestamp),
       started_at: isoOrNull(job.processedOn),
       finished_at: isoOrNull(job.finishedOn),
