@@ -191,7 +191,8 @@ try {
   const coreSeconds = endToEndSeconds * availableParallelism();
   console.log(
     `  CPU over those ${endToEndSeconds.toFixed(1)} s: load generator (this process) ${clientCpuSeconds.toFixed(1)} s = ${((clientCpuSeconds / coreSeconds) * 100).toFixed(0)} % of the cores, ` +
-      `API and queue process ${serviceCpuSeconds.toFixed(1)} s = ${((serviceCpuSeconds / coreSeconds) * 100).toFixed(0)} % (the analysis processes have the rest)`,
+      `API and queue process ${serviceCpuSeconds.toFixed(1)} s = ${((serviceCpuSeconds / coreSeconds) * 100).toFixed(0)} % ` +
+      `(${((serviceCpuSeconds / UPLOADS) * 1000).toFixed(1)} ms per upload and its job; the analysis processes have the rest)`,
   );
 
   // 3: archive reprocess with a changed parameter (new job ids), below any upload's priority.
@@ -200,15 +201,18 @@ try {
   const uploads = (await store.listUploads()).filter((record) => record.received_at >= measuredFrom).slice(0, ARCHIVE);
   const from = uploads[0].received_at;
   const to = new Date(Date.parse(uploads[uploads.length - 1].received_at) + 1).toISOString();
+  const batchCpuBefore = await processCpuSeconds(service.pid!);
   const batchStarted = performance.now();
   const batch = await batches.create({ selection: { received_from: from, received_to: to }, parameters: { compact_stages: 4 }, created_by: 'bench' });
   await until('the batch', async () => (await batches.progress(batch.batch_id))!.pending === 0, 250);
   const batchSeconds = (performance.now() - batchStarted) / 1000;
+  const batchQueueCpuSeconds = (await processCpuSeconds(service.pid!)) - batchCpuBefore;
   const progress = (await batches.progress(batch.batch_id))!;
   const forTenThousand = (batchSeconds / progress.total) * 10_000;
   console.log(
     `archive: ${progress.total} transients reprocessed in ${batchSeconds.toFixed(1)} s = ${((progress.total / batchSeconds / computeBound) * 100).toFixed(0)} % of compute-bound (${progress.failed} failed); ` +
-      `10,000 ${progress.total >= 10_000 ? 'measured' : 'extrapolated'}: ${(forTenThousand / 60).toFixed(1)} min (target <= 5 min)`,
+      `10,000 ${progress.total >= 10_000 ? 'measured' : 'extrapolated'}: ${(forTenThousand / 60).toFixed(1)} min (target <= 5 min); ` +
+      `API and queue process ${((batchQueueCpuSeconds / progress.total) * 1000).toFixed(1)} ms CPU per job`,
   );
   console.log(`load average ${load()} after (above the core count, other processes shared the CPU and the figures are pessimistic)`);
 } finally {
