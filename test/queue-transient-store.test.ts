@@ -71,6 +71,18 @@ describe('TransientStore', () => {
     expect(await store.hasResult('job-y')).toBe(false);
   });
 
+  it('lists the jobs with a result and those with a failure, from the directory listings', async () => {
+    await store.putResult(result('job-done-1', 'a'));
+    await store.putResult(result('job-done-2', 'b'));
+    await store.putFailure({ job_id: 'job-failed-1', upload_id: 'u-1', batch_id: null, failed_at: new Date().toISOString(), code: 'INPUT_NOT_NUMERIC', message: 'x', attempts: 1 });
+    const outcomes = await store.jobOutcomes();
+    expect([...outcomes.done].sort()).toEqual(['job-done-1', 'job-done-2']);
+    expect([...outcomes.failed]).toEqual(['job-failed-1']);
+    // Each agrees with the one-job look-ups.
+    for (const jobId of outcomes.done) expect(await store.hasResult(jobId)).toBe(true);
+    for (const jobId of outcomes.failed) expect(await store.hasFailure(jobId)).toBe(true);
+  });
+
   it('lists uploads by sample, bench, tag and time range, oldest first', async () => {
     await store.putUpload(upload('u3', { received_at: '2026-01-03T00:00:00.000Z', tags: ['night'] }));
     await store.putUpload(upload('u1', { received_at: '2026-01-01T00:00:00.000Z', bench: 'B2' }));

@@ -47,8 +47,9 @@ export class UploadRecovery {
   async sweep(): Promise<RecoverySweep> {
     const pending: UploadRecord[] = [];
     const unacknowledged: string[] = [];
+    const outcomes = await this.store.jobOutcomes();
     for (const upload of await this.store.listUploads()) {
-      if ((await this.store.hasResult(upload.job_id)) || (await this.store.hasFailure(upload.job_id))) continue;
+      if (outcomes.done.has(upload.job_id) || outcomes.failed.has(upload.job_id)) continue;
       if (await this.store.hasBlob(upload.input_sha256)) pending.push(upload);
       else unacknowledged.push(upload.upload_id);
     }

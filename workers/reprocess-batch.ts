@@ -29,8 +29,6 @@ export interface BatchProgress {
 
 /** Jobs added to Redis per round trip. */
 const ENQUEUE_CHUNK = 500;
-/** Store look-ups in flight when counting progress. */
-const COUNT_CHUNK = 256;
 
 /**
  * Reprocessing batches: a selection of stored uploads analysed again with new
@@ -84,54 +82,43 @@ export class BatchReprocessor {
 
   /** Re-queues the unfinished jobs of every running batch (after a Redis loss); returns how many were offered. */
   async requeueRunning(): Promise<number> {
+    const running = (await this.store.listBatches()).filter((batch) => batch.status === 'running');
+    if (running.length === 0) return 0;
+    const outcomes = await this.store.jobOutcomes();
     let offered = 0;
-    for (const batch of await this.store.listBatches()) {
-      if (batch.status !== 'running') continue;
-      const uploads = await Promise.all(batch.entries.map((entry) => this.store.getUpload(entry.upload_id)));
+    for (const batch of running) {
+      // Only unfinished entries need their upload record read again.
+      const unfinished = batch.entries.filter((entry) => !outcomes.done.has(entry.job_id) && !outcomes.failed.has(entry.job_id));
+      const uploads = await Promise.all(unfinished.map((entry) => this.store.getUpload(entry.upload_id)));
       const jobs = uploads.filter((upload): upload is UploadRecord => upload !== null).map((upload) => reprocessedUpload(upload, batch));
-      offered += await this.enqueueMissing(batch, jobs);
+      offered += await this.enqueueMissing(batch, jobs, outcomes);
     }
     return offered;
   }
 
   /** Queues the jobs without a stored outcome; Redis ignores ids it already holds. */
-  private async enqueueMissing(batch: BatchRecord, jobs: UploadRecord[]): Promise<number> {
-    const finished = await this.finishedJobIds(jobs.map((job) => job.job_id));
-    const missing = uniqueByJobId(jobs.filter((job) => !finished.has(job.job_id)));
+  private async enqueueMissing(batch: BatchRecord, jobs: UploadRecord[], known?: { done: Set<string>; failed: Set<string> }): Promise<number> {
+    const outcomes = known ?? (await this.store.jobOutcomes());
+    const missing = uniqueByJobId(jobs.filter((job) => !outcomes.done.has(job.job_id) && !outcomes.failed.has(job.job_id)));
     for (let start = 0; start < missing.length; start += ENQUEUE_CHUNK) {
       await this.queue.enqueueMany(missing.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.batch, batchId: batch.batch_id });
     }
     return missing.length;
   }
 
+  /** Counted from the store's listings: two directory reads per shard, whatever the batch size. */
   private async countProgress(batch: BatchRecord): Promise<BatchProgress> {
+    const outcomes = await this.store.jobOutcomes();
     let done = 0;
     let failed = 0;
-    for (let start = 0; start < batch.entries.length; start += COUNT_CHUNK) {
-      const chunk = batch.entries.slice(start, start + COUNT_CHUNK);
-      const outcomes = await Promise.all(chunk.map((entry) => this.outcomeOf(entry.job_id)));
-      done += outcomes.filter((outcome) => outcome === 'done').length;
-      failed += outcomes.filter((outcome) => outcome === 'failed').length;
+    for (const entry of batch.entries) {
+      if (outcomes.done.has(entry.job_id)) done++;
+      else if (outcomes.failed.has(entry.job_id)) failed++;
     }
     return {
       batch_id: batch.batch_id, status: batch.status, created_at: batch.created_at, algorithm: batch.algorithm,
       total: batch.entries.length, done, failed, pending: batch.entries.length - done - failed,
     };
-  }
-
-  private async finishedJobIds(jobIds: string[]): Promise<Set<string>> {
-    const finished = new Set<string>();
-    for (let start = 0; start < jobIds.length; start += COUNT_CHUNK) {
-      const chunk = jobIds.slice(start, start + COUNT_CHUNK);
-      const outcomes = await Promise.all(chunk.map((jobId) => this.outcomeOf(jobId)));
-      chunk.forEach((jobId, index) => outcomes[index] !== 'pending' && finished.add(jobId));
-    }
-    return finished;
-  }
-
-  private async outcomeOf(jobId: string): Promise<'done' | 'failed' | 'pending'> {
-    if (await this.store.hasResult(jobId)) return 'done';
-    return (await this.store.hasFailure(jobId)) ? 'failed' : 'pending';
   }
 }
 

@@ -121,6 +121,16 @@ export class TransientStore {
     return isStoreId(jobId) && exists(this.shardedPath('failures', jobId));
   }
 
+  /**
+   * The job ids with a stored result, and those with a stored failure, read
+   * from the directory listings (one per shard) rather than one lookup per job:
+   * what batch progress and recovery ask about thousands of jobs at a time.
+   */
+  async jobOutcomes(): Promise<{ done: Set<string>; failed: Set<string> }> {
+    const [done, failed] = await Promise.all([this.shardedIds('results'), this.shardedIds('failures')]);
+    return { done, failed };
+  }
+
   // ---- calibrations ----
 
   /** Stores a calibration under the hash of its canonical JSON (the same calibration twice is one record). */
@@ -204,12 +214,12 @@ export class TransientStore {
 
   // ---- health ----
 
-  /** Cheap readiness: the data directory exists and this process may write in it. */
   /** Creates the data directory if it is not there yet: a new installation starts with an empty store. */
   async ensureDataDir(): Promise<void> {
     await mkdir(this.dataDir, { recursive: true });
   }
 
+  /** Cheap readiness: the data directory exists and this process may write in it. */
   async isReady(): Promise<boolean> {
     try {
       const info = await stat(this.dataDir);
@@ -239,6 +249,14 @@ export class TransientStore {
     const shards = await listNames(root);
     const perShard = await Promise.all(shards.map((shard) => this.readAllIn<T>(join(root, shard))));
     return perShard.flat();
+  }
+
+  private async shardedIds(kind: string): Promise<Set<string>> {
+    const root = join(this.dataDir, kind);
+    const perShard = await Promise.all((await listNames(root)).map((shard) => listNames(join(root, shard))));
+    const ids = new Set<string>();
+    for (const names of perShard) for (const name of names) if (name.endsWith('.json') && !name.startsWith('.')) ids.add(name.slice(0, -'.json'.length));
+    return ids;
   }
 
   private async readAllIn<T>(directory: string): Promise<T[]> {
