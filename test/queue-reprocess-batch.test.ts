@@ -75,6 +75,18 @@ describe('BatchReprocessor (real Redis)', () => {
     expect(await batches.progress('batch-unknown')).toBeNull();
   });
 
+  it('offers a running batch again only when Redis lost its jobs', async () => {
+    await Promise.all([59, 60, 61].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-9' })));
+    const batch = await batches.create({ selection: { bench: 'bench-9' }, parameters: { compact_stages: 3 }, created_by: 'admin' });
+    // Redis holds all three: nothing to offer.
+    expect(await batches.requeueRunning()).toBe(0);
+    // Redis loses its data (every key of this test's prefix), as after a restart without persistence.
+    await deleteKeysWithPrefix(redisUrl, prefix);
+    expect(await batches.requeueRunning()).toBe(3);
+    const record = (await fixture.store.getBatch(batch.batch_id))!;
+    for (const entry of record.entries) expect((await queue.getJobState(entry.job_id))?.state).toBe('prioritized');
+  });
+
   it('refuses an empty selection', async () => {
     await expect(batches.create({ selection: { sample_id: 'nobody' }, created_by: 'admin' })).rejects.toMatchObject({ code: 'BATCH_SELECTION_EMPTY' });
   });

@@ -85,10 +85,17 @@ export class BatchReprocessor {
     const running = (await this.store.listBatches()).filter((batch) => batch.status === 'running');
     if (running.length === 0) return 0;
     const outcomes = await this.store.jobOutcomes();
+    const unfinishedOf = (batch: BatchRecord) => batch.entries.filter((entry) => !outcomes.done.has(entry.job_id) && !outcomes.failed.has(entry.job_id));
+    // While Redis holds at least as many unfinished jobs as the running batches
+    // still need, nothing needs offering; a lost job shows once the queue has
+    // drained below that count, so at worst it is offered later, never lost.
+    const needed = running.reduce((sum, batch) => sum + unfinishedOf(batch).length, 0);
+    const counts = await this.queue.getCounts();
+    if (counts.waiting + counts.prioritized + counts.active + counts.delayed >= needed) return 0;
     let offered = 0;
     for (const batch of running) {
       // Only unfinished entries need their upload record read again.
-      const unfinished = batch.entries.filter((entry) => !outcomes.done.has(entry.job_id) && !outcomes.failed.has(entry.job_id));
+      const unfinished = unfinishedOf(batch);
       const uploads = await Promise.all(unfinished.map((entry) => this.store.getUpload(entry.upload_id)));
       const jobs = uploads.filter((upload): upload is UploadRecord => upload !== null).map((upload) => reprocessedUpload(upload, batch));
       offered += await this.enqueueMissing(batch, jobs, outcomes);
