@@ -1,5 +1,5 @@
 import type { Logger } from 'pino';
-import type { TransientStore } from '../services/store/transient-store.js';
+import { isJobFinished, type TransientStore } from '../services/store/transient-store.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
 import type { BatchReprocessor } from './reprocess-batch.js';
@@ -49,7 +49,7 @@ export class UploadRecovery {
     const unacknowledged: string[] = [];
     const outcomes = await this.store.jobOutcomes();
     for (const upload of await this.store.listUploads()) {
-      if (outcomes.done.has(upload.job_id) || outcomes.failed.has(upload.job_id)) continue;
+      if (isJobFinished(outcomes, upload.job_id)) continue;
       if (await this.store.hasBlob(upload.input_sha256)) pending.push(upload);
       else unacknowledged.push(upload.upload_id);
     }

@@ -3,7 +3,7 @@ import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
-import type { TransientStore } from '../services/store/transient-store.js';
+import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
 import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
 import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
 
@@ -58,8 +58,9 @@ export class BatchReprocessor {
     const jobs = uploads.map((upload) => reprocessedUpload(upload, batch));
     batch.entries = uniqueEntries(jobs);
     await this.store.putBatch(batch);
-    await this.enqueueMissing(batch, jobs);
-    return this.countProgress(batch);
+    const outcomes = await this.store.jobOutcomes();
+    await this.enqueueMissing(batch, jobs, outcomes);
+    return this.countProgress(batch, outcomes);
   }
 
   async progress(batchId: string): Promise<BatchProgress | null> {
@@ -85,18 +86,17 @@ export class BatchReprocessor {
     const running = (await this.store.listBatches()).filter((batch) => batch.status === 'running');
     if (running.length === 0) return 0;
     const outcomes = await this.store.jobOutcomes();
-    const unfinishedOf = (batch: BatchRecord) => batch.entries.filter((entry) => !outcomes.done.has(entry.job_id) && !outcomes.failed.has(entry.job_id));
+    const unfinished = running.map((batch) => batch.entries.filter((entry) => !isJobFinished(outcomes, entry.job_id)));
     // While Redis holds at least as many unfinished jobs as the running batches
     // still need, nothing needs offering; a lost job shows once the queue has
     // drained below that count, so at worst it is offered later, never lost.
-    const needed = running.reduce((sum, batch) => sum + unfinishedOf(batch).length, 0);
+    const needed = unfinished.reduce((sum, entries) => sum + entries.length, 0);
     const counts = await this.queue.getCounts();
     if (counts.waiting + counts.prioritized + counts.active + counts.delayed >= needed) return 0;
     let offered = 0;
-    for (const batch of running) {
+    for (const [index, batch] of running.entries()) {
       // Only unfinished entries need their upload record read again.
-      const unfinished = unfinishedOf(batch);
-      const uploads = await Promise.all(unfinished.map((entry) => this.store.getUpload(entry.upload_id)));
+      const uploads = await Promise.all(unfinished[index].map((entry) => this.store.getUpload(entry.upload_id)));
       const jobs = uploads.filter((upload): upload is UploadRecord => upload !== null).map((upload) => reprocessedUpload(upload, batch));
       offered += await this.enqueueMissing(batch, jobs, outcomes);
     }
@@ -104,9 +104,8 @@ export class BatchReprocessor {
   }
 
   /** Queues the jobs without a stored outcome; Redis ignores ids it already holds. */
-  private async enqueueMissing(batch: BatchRecord, jobs: UploadRecord[], known?: { done: Set<string>; failed: Set<string> }): Promise<number> {
-    const outcomes = known ?? (await this.store.jobOutcomes());
-    const missing = uniqueByJobId(jobs.filter((job) => !outcomes.done.has(job.job_id) && !outcomes.failed.has(job.job_id)));
+  private async enqueueMissing(batch: BatchRecord, jobs: UploadRecord[], outcomes: JobOutcomes): Promise<number> {
+    const missing = uniqueByJobId(jobs.filter((job) => !isJobFinished(outcomes, job.job_id)));
     for (let start = 0; start < missing.length; start += ENQUEUE_CHUNK) {
       await this.queue.enqueueMany(missing.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.batch, batchId: batch.batch_id });
     }
@@ -114,8 +113,8 @@ export class BatchReprocessor {
   }
 
   /** Counted from the store's listings: two directory reads per shard, whatever the batch size. */
-  private async countProgress(batch: BatchRecord): Promise<BatchProgress> {
-    const outcomes = await this.store.jobOutcomes();
+  private async countProgress(batch: BatchRecord, known?: JobOutcomes): Promise<BatchProgress> {
+    const outcomes = known ?? (await this.store.jobOutcomes());
     let done = 0;
     let failed = 0;
     for (const entry of batch.entries) {

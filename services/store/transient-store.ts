@@ -126,7 +126,7 @@ export class TransientStore {
    * from the directory listings (one per shard) rather than one lookup per job:
    * what batch progress and recovery ask about thousands of jobs at a time.
    */
-  async jobOutcomes(): Promise<{ done: Set<string>; failed: Set<string> }> {
+  async jobOutcomes(): Promise<JobOutcomes> {
     const [done, failed] = await Promise.all([this.shardedIds('results'), this.shardedIds('failures')]);
     return { done, failed };
   }
@@ -269,6 +269,16 @@ export class TransientStore {
     }
     return records;
   }
+}
+
+/** Job ids with a stored result (`done`) and with a stored failure (`failed`). */
+export interface JobOutcomes {
+  done: Set<string>;
+  failed: Set<string>;
+}
+
+export function isJobFinished(outcomes: JobOutcomes, jobId: string): boolean {
+  return outcomes.done.has(jobId) || outcomes.failed.has(jobId);
 }
 
 function uploadMatches(upload: UploadRecord, filter: UploadFilter): boolean {

@@ -61,7 +61,7 @@ export function activeSetNnls(input: ActiveSetNnlsInput): ActiveSetNnlsResult {
     const count = factor.count;
     let k = 0;
     for (; k + 4 <= count; k += 4) {
-      const [j0, j1, j2, j3] = [factor.set[k], factor.set[k + 1], factor.set[k + 2], factor.set[k + 3]];
+      const j0 = factor.set[k], j1 = factor.set[k + 1], j2 = factor.set[k + 2], j3 = factor.set[k + 3];
       const c0 = gramColumn(j0), c1 = gramColumn(j1), c2 = gramColumn(j2), c3 = gramColumn(j3);
       const x0 = x[j0], x1 = x[j1], x2 = x[j2], x3 = x[j3];
       for (let i = 0; i < n; i++) gradient[i] = gradient[i] - c0[i] * x0 - c1[i] * x1 - c2[i] * x2 - c3[i] * x3;

@@ -30,6 +30,7 @@ export function createFftConvolution(kernel: Float64Array, inputLength: number, 
   }
   // Circular convolution of size >= lagCount reproduces every wanted output of
   // the linear one (see the index ranges used below).
+  // At least 8, so that the half-size inverse below has the 4 points fft.js needs.
   let size = 8;
   while (size < lagCount) size *= 2;
   const fft = new FFT(size);
