@@ -1,11 +1,13 @@
 import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
+import { parseTransient } from '../shared/input/parse-transient.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { observeAnalysisWorker } from '../workers/worker-metrics.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
+import { syntheticTransientCsv } from './support/synthetic-upload.js';
 
 let redisUrl: string;
 let prefix: string;
@@ -68,6 +70,8 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     expect(result).toMatchObject({ job_id: upload.job_id, upload_id: upload.upload_id, algorithm: ALGORITHM_VERSION, sample_id: 'S-TEST' });
     expect(result!.results.length).toBeGreaterThan(0);
     expect((await queue.getJobState(upload.job_id))?.progress).toBe(100);
+    // Stored without a kept parse (as uploads before the API kept them): the worker parsed and kept it for the next analysis.
+    expect(await fixture.store.getParsedTransient(upload.input_sha256)).toEqual(parseTransient(syntheticTransientCsv(3), upload.file_name));
     await eventually(async () => (await registry.metrics()).includes('heatpath_job_attempts_total{outcome="completed"} 1'));
     expect(await registry.metrics()).toMatch(/heatpath_job_duration_seconds_count 1\n/);
 

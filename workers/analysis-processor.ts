@@ -3,6 +3,8 @@ import { UnrecoverableError, type SandboxedJob } from 'bullmq';
 import { ALGORITHM_VERSION, HEATPATH_VERSION } from '../shared/analysis/algorithm-version.js';
 import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
 import { isHeatpathError } from '../shared/errors/heatpath-error.js';
+import { parseTransient } from '../shared/input/parse-transient.js';
+import type { TransientFile } from '../shared/input/transient-file.js';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import type { AnalysisJobData } from './analysis-queue.js';
@@ -69,9 +71,11 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
   if (data.calibration_id && !calibration) throw new UnrecoverableError(`calibration ${data.calibration_id} is not in the store`);
 
   const started = performance.now();
+  const parsed = await parsedTransient(data.input_sha256, bytes, upload);
   const results = analyzeTransientFile(
     {
       bytes,
+      parsed,
       fileName: upload.file_name,
       format: upload.format,
       power: data.power ?? undefined,
@@ -102,6 +106,15 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
   });
   await notifyCompleted(jobId, upload.upload_id, upload.sample_id, data.batch_id);
   return { job_id: jobId, channels: results.length, wrote_result: wrote };
+}
+
+/** The upload's samples: as the API kept them, else parsed here and kept for the next analysis of the same bytes (an archive reprocess). */
+async function parsedTransient(sha256: string, bytes: Uint8Array, upload: UploadRecord): Promise<TransientFile> {
+  const kept = await store.getParsedTransient(sha256);
+  if (kept) return kept;
+  const parsed = parseTransient(bytes, upload.file_name, upload.format);
+  await store.putParsedTransient(sha256, parsed);
+  return parsed;
 }
 
 async function notifyCompleted(jobId: string, uploadId: string, sampleId: string, batchId: string | null): Promise<void> {

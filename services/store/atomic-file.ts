@@ -26,14 +26,14 @@ async function fsyncPath(path: string, flags: 'r' | 'r+'): Promise<void> {
   }
 }
 
-async function writeTemporary(target: string, bytes: Uint8Array | string): Promise<string> {
+async function writeTemporary(target: string, bytes: Uint8Array | string, durable = true): Promise<string> {
   const directory = dirname(target);
   await ensureDirectory(directory);
   const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
   const handle = await open(temporary, 'wx');
   try {
     await handle.writeFile(bytes);
-    await handle.sync();
+    if (durable) await handle.sync();
   } catch (error) {
     await handle.close();
     await unlink(temporary).catch(() => undefined);
@@ -53,6 +53,20 @@ export async function writeFileAtomic(target: string, bytes: Uint8Array | string
     throw error;
   }
   await fsyncPath(dirname(target), 'r');
+}
+
+/**
+ * Replace `target` atomically but without waiting for the disk: for files
+ * that can be derived again (a crash may lose them, never tear them).
+ */
+export async function writeDerivedFile(target: string, bytes: Uint8Array | string): Promise<void> {
+  const temporary = await writeTemporary(target, bytes, false);
+  try {
+    await rename(temporary, target);
+  } catch (error) {
+    await unlink(temporary).catch(() => undefined);
+    throw error;
+  }
 }
 
 /**

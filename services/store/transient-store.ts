@@ -2,8 +2,11 @@ import { createHash } from 'node:crypto';
 import { access, constants, mkdir, readdir, readFile, stat, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
+import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
+import type { TransientFile } from '../../shared/input/transient-file.js';
 import { canonicalJson } from '../jobs/canonical-json.js';
-import { createFileExclusive, writeFileAtomic } from './atomic-file.js';
+import { createFileExclusive, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
+import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient-codec.js';
 import type {
   BatchRecord,
   CalibrationRecord,
@@ -42,6 +45,7 @@ export interface StoredBlob {
  *
  * Layout (shard = first two hex digits of a hash, to keep directories small):
  *   blobs/<shard>/<sha256>             raw bytes, content-addressed
+ *   parsed/<shard>/<sha256>.<algorithm>.bin  the raw bytes parsed (derived, not fsynced)
  *   uploads/<shard>/<upload_id>.json   UploadRecord
  *   results/<shard>/<job_id>.json      ResultRecord, written once
  *   failures/<shard>/<job_id>.json     FailureRecord, written once
@@ -73,6 +77,21 @@ export class TransientStore {
   async getBlob(sha256: string): Promise<Uint8Array | null> {
     if (!SHA256_HEX.test(sha256)) return null;
     return readOrNull(this.blobPath(sha256));
+  }
+
+  /**
+   * Keeps the parse of a stored blob for the analysis processes. Named by the
+   * algorithm version, since a new parser may read the same bytes otherwise.
+   */
+  async putParsedTransient(sha256: string, file: TransientFile): Promise<void> {
+    await writeDerivedFile(this.parsedPath(requireSha256(sha256)), encodeParsedTransient(file));
+  }
+
+  /** The kept parse of a blob, or null (none kept, another algorithm version's, or unreadable): then parse the blob. */
+  async getParsedTransient(sha256: string): Promise<TransientFile | null> {
+    if (!SHA256_HEX.test(sha256)) return null;
+    const bytes = await readOrNull(this.parsedPath(sha256));
+    return bytes ? decodeParsedTransient(bytes) : null;
   }
 
   // ---- uploads ----
@@ -236,6 +255,10 @@ export class TransientStore {
     return join(this.dataDir, 'blobs', sha256.slice(0, 2), sha256);
   }
 
+  private parsedPath(sha256: string): string {
+    return join(this.dataDir, 'parsed', sha256.slice(0, 2), `${sha256}.${ALGORITHM_VERSION}.bin`);
+  }
+
   private shardedPath(kind: string, id: string): string {
     return join(this.dataDir, kind, sha256Hex(id).slice(0, 2), `${id}.json`);
   }
@@ -294,6 +317,11 @@ function uploadMatches(upload: UploadRecord, filter: UploadFilter): boolean {
 function requireId(id: string): string {
   if (!isStoreId(id)) throw new Error(`not a valid store id: ${JSON.stringify(id)}`);
   return id;
+}
+
+function requireSha256(sha256: string): string {
+  if (!SHA256_HEX.test(sha256)) throw new Error(`not a SHA-256 in hex: ${JSON.stringify(sha256)}`);
+  return sha256;
 }
 
 function isMissing(error: unknown): boolean {

@@ -25,6 +25,8 @@ import { resolveAnalysisInputs } from './resolve-analysis-inputs.js';
 export interface TransientFileInput {
   /** The raw bytes as received; hashed for provenance. */
   bytes: Uint8Array;
+  /** These bytes as parseTransient read them, where a caller already has that (the service parses each upload once); omitted: parsed here. */
+  parsed?: TransientFile;
   /** Name used in error messages and in result.source.file. */
   fileName: string;
   /** Omitted: detected from the content (JSON starts with '{'). */
@@ -43,7 +45,7 @@ export interface TransientFileInput {
  * user must fix.
  */
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
-  const file = parseTransient(input.bytes, input.fileName, input.format);
+  const file = input.parsed ?? parseTransient(input.bytes, input.fileName, input.format);
   const { parameters, power } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
   const power_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
   if (file.quantity === 'voltage_V' && !input.calibration) {

@@ -101,8 +101,9 @@ export async function acceptTransientUpload(
   // Both durable before the answer, written side by side: each waits for its
   // own fsyncs, so together they take the time of one. A crash between them
   // leaves a record without its bytes, which was never acknowledged and which
-  // recovery leaves alone (recover-uploads.ts).
-  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record)]);
+  // recovery leaves alone (recover-uploads.ts). The parse is kept beside them
+  // for the analysis; it is derived, so losing it costs only a parse.
+  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), store.putParsedTransient(inputSha256, transient)]);
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });

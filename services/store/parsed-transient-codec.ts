@@ -1,0 +1,65 @@
+import { endianness } from 'node:os';
+import { isTransientQuantity, type TransientFile } from '../../shared/input/transient-file.js';
+
+/**
+ * A parsed transient as bytes, so that the service parses each upload once
+ * (the API must parse it anyway to answer a bad file with 400) and its
+ * analysis processes start from the samples instead of the text. Parsing a
+ * 100 kB CSV is about a tenth of an analysis.
+ *
+ * Layout: a 4-byte little-endian length L, L bytes of JSON header
+ * ({ quantity, meta, channel_names, samples, byte_order }), zero padding to a
+ * multiple of 8, then the time axis and each channel as raw doubles in the
+ * writer's byte order. A reader on the other byte order, or anything that
+ * does not decode, gets null and parses the raw bytes again.
+ */
+interface ParsedTransientHeader {
+  quantity: string;
+  meta: Record<string, string>;
+  channel_names: string[];
+  samples: number;
+  byte_order: 'LE' | 'BE';
+}
+
+export function encodeParsedTransient(file: TransientFile): Uint8Array {
+  const header: ParsedTransientHeader = {
+    quantity: file.quantity,
+    meta: file.meta,
+    channel_names: file.channels.map((channel) => channel.name),
+    samples: file.time_s.length,
+    byte_order: endianness(),
+  };
+  const headerBytes = Buffer.from(JSON.stringify(header), 'utf8');
+  const dataStart = alignTo8(4 + headerBytes.length);
+  const arrays = [file.time_s, ...file.channels.map((channel) => channel.values)];
+  const out = new Uint8Array(dataStart + arrays.length * file.time_s.length * 8);
+  new DataView(out.buffer).setUint32(0, headerBytes.length, true);
+  out.set(headerBytes, 4);
+  arrays.forEach((values, k) => out.set(new Uint8Array(values.buffer, values.byteOffset, values.byteLength), dataStart + k * header.samples * 8));
+  return out;
+}
+
+export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
+  try {
+    if (bytes.length < 4) return null;
+    const headerLength = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(0, true);
+    const header = JSON.parse(Buffer.from(bytes.buffer, bytes.byteOffset + 4, headerLength).toString('utf8')) as ParsedTransientHeader;
+    const { samples, channel_names: names } = header;
+    const dataStart = alignTo8(4 + headerLength);
+    if (
+      header.byte_order !== endianness() || !isTransientQuantity(header.quantity) || !Number.isInteger(samples) || samples < 0 ||
+      !Array.isArray(names) || bytes.length !== dataStart + (names.length + 1) * samples * 8
+    ) {
+      return null;
+    }
+    // Copy into fresh, aligned arrays: the read buffer's offset need not be a multiple of 8.
+    const array = (k: number) => new Float64Array(bytes.buffer.slice(bytes.byteOffset + dataStart + k * samples * 8, bytes.byteOffset + dataStart + (k + 1) * samples * 8));
+    return { quantity: header.quantity, meta: header.meta, time_s: array(0), channels: names.map((name, k) => ({ name, values: array(k + 1) })) };
+  } catch {
+    return null;
+  }
+}
+
+function alignTo8(length: number): number {
+  return Math.ceil(length / 8) * 8;
+}

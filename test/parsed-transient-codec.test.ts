@@ -1,0 +1,77 @@
+/**
+ * The kept parse of an upload (services/store/parsed-transient-codec.ts) must
+ * give the analysis exactly what parseTransient gives: the same doubles bit
+ * for bit (IEEE 754 binary64 round trip through raw bytes), the same
+ * channels, quantity and metadata. Anything it cannot vouch for decodes to
+ * null, so that the caller parses the raw bytes again.
+ */
+import { mkdtemp, readdir, rm, writeFile } from 'node:fs/promises';
+import { readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { parseTransient } from '../shared/input/parse-transient.js';
+import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
+import { decodeParsedTransient, encodeParsedTransient } from '../services/store/parsed-transient-codec.js';
+import { sha256Hex, TransientStore } from '../services/store/transient-store.js';
+
+const fixture = (name: string) => readFileSync(new URL(`./fixtures/demo-lab/${name}`, import.meta.url));
+
+describe('parsed transient codec', () => {
+  it('round-trips every double, channel, quantity and metadata line of the demo files (CSV with two channels, JSON)', () => {
+    for (const name of ['fh-tt1_m21-m22_cooling.csv', 'fh-tt2_q15_heating.json', 'fh-tt1_m07_cooling.csv']) {
+      const parsed = parseTransient(fixture(name), name);
+      const decoded = decodeParsedTransient(encodeParsedTransient(parsed));
+      expect(decoded).toEqual(parsed);
+    }
+  });
+
+  it('keeps values that decimal text would round: -0, subnormals and 17-digit doubles', () => {
+    const time_s = Float64Array.from([5e-324, 1e-6, 0.1 + 0.2]);
+    const file = { quantity: 'zth_K_per_W' as const, time_s, channels: [{ name: '1', values: Float64Array.from([-0, Number.MIN_VALUE, 1 / 3]) }], meta: { kind: 'cooling' } };
+    const decoded = decodeParsedTransient(encodeParsedTransient(file))!;
+    expect(Object.is(decoded.channels[0].values[0], -0)).toBe(true);
+    expect(Array.from(decoded.time_s)).toEqual(Array.from(time_s));
+    expect(Array.from(decoded.channels[0].values)).toEqual(Array.from(file.channels[0].values));
+  });
+
+  it('decodes from a buffer at an odd offset (a pooled read buffer)', () => {
+    const encoded = encodeParsedTransient(parseTransient(fixture('fh-tt1_m07_cooling.csv'), 'm07.csv'));
+    const pooled = new Uint8Array(encoded.length + 3);
+    pooled.set(encoded, 3);
+    expect(decodeParsedTransient(pooled.subarray(3))).toEqual(decodeParsedTransient(encoded));
+  });
+
+  it('answers null for truncated, corrupted or foreign bytes instead of a wrong transient', () => {
+    const encoded = encodeParsedTransient(parseTransient(fixture('fh-tt1_m07_cooling.csv'), 'm07.csv'));
+    expect(decodeParsedTransient(encoded.subarray(0, encoded.length - 8))).toBeNull();
+    expect(decodeParsedTransient(new Uint8Array(0))).toBeNull();
+    expect(decodeParsedTransient(new TextEncoder().encode('time_s,zth_K_per_W\n'))).toBeNull();
+    const otherByteOrder = Buffer.from(encoded);
+    const header = otherByteOrder.indexOf('"LE"') >= 0 ? otherByteOrder.indexOf('"LE"') : otherByteOrder.indexOf('"BE"');
+    otherByteOrder.write(otherByteOrder.toString('utf8', header, header + 4) === '"LE"' ? '"BE"' : '"LE"', header);
+    expect(decodeParsedTransient(otherByteOrder)).toBeNull();
+  });
+});
+
+describe('TransientStore kept parses', () => {
+  it('keeps a parse per blob and algorithm version, and treats a damaged one as absent', async () => {
+    const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-parsed-'));
+    try {
+      const store = new TransientStore(dataDir);
+      const bytes = fixture('fh-tt1_m07_cooling.csv');
+      const sha256 = sha256Hex(bytes);
+      expect(await store.getParsedTransient(sha256)).toBeNull();
+      const parsed = parseTransient(bytes, 'm07.csv');
+      await store.putParsedTransient(sha256, parsed);
+      expect(await store.getParsedTransient(sha256)).toEqual(parsed);
+      const shard = join(dataDir, 'parsed', sha256.slice(0, 2));
+      expect(await readdir(shard)).toEqual([`${sha256}.${ALGORITHM_VERSION}.bin`]);
+      await writeFile(join(shard, `${sha256}.${ALGORITHM_VERSION}.bin`), 'not a parse');
+      expect(await store.getParsedTransient(sha256)).toBeNull();
+      expect(await store.getParsedTransient('../etc/passwd')).toBeNull();
+    } finally {
+      await rm(dataDir, { recursive: true, force: true });
+    }
+  });
+});
