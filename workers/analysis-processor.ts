@@ -21,10 +21,13 @@ import { WebhookNotifier } from './webhook-notifier.js';
 
 /**
  * Analysis yields the CPU to the API, Redis and the workers' lock renewal on
- * the same machine (Unix niceness 10): bench uploads stay fast while the
- * cores are busy, and idle cores are still used in full.
+ * the same machine (Unix niceness 19, the lowest): bench uploads stay fast
+ * while the cores are busy, and idle cores are still used in full. With one
+ * analysis process more than cores (workers/main.ts), niceness 10 let the
+ * upload p99 of `npm run bench:service` reach 47-102 ms on 2 cores; at 19 it
+ * stayed at 25-28 ms in three runs.
  */
-const ANALYSIS_NICENESS = 10;
+const ANALYSIS_NICENESS = 19;
 setPriority(ANALYSIS_NICENESS);
 
 const settings = readProcessorSettings();

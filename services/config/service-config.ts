@@ -21,7 +21,7 @@ export const ServiceEnvSchema = Type.Object({
   HEATPATH_RATE_LIMIT_PER_MINUTE: Type.Integer({ minimum: 1, default: 1200, description: 'Requests per API key per minute; more get 429.' }),
   HEATPATH_REDIS_ANSWER_MS: Type.Integer({ minimum: 50, default: 2000, description: 'How long an API request waits for Redis; then uploads are answered as stored (queued later) and reads get 503.' }),
   HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: '^[^:]+$', default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
-  HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core.' })),
+  HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core plus one.' })),
   HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration; a dead worker\'s job is taken over by another after about this long.' }),
   HEATPATH_STALLED_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'How often workers look for jobs whose worker died.' }),
   HEATPATH_RECOVERY_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 60_000, description: 'How often stored uploads without a result are offered to the queue again (after a Redis loss).' }),
@@ -51,7 +51,7 @@ export interface ServiceConfig {
 /** Queue and worker settings, shared by the API (producer) and the workers. */
 export interface QueueConfig {
   prefix: string;
-  /** Null: one per CPU core. */
+  /** Null: one per CPU core plus one (workers/main.ts). */
   workerProcesses: number | null;
   lockDurationMs: number;
   stalledIntervalMs: number;
