@@ -1,7 +1,7 @@
 /**
  * `npm run bench:service`: the service under load, on loopback only.
  *
- * Starts `node dist/services/main.js` (API + W analysis processes) against
+ * Starts `node dist/services/main.js` (API and its analysis processes) against
  * the local Redis with a fresh prefix and a temporary store, warms it up
  * (WARMUP_UPLOADS uploads, one at a time, until their results are stored: the
  * analysis processes start with the first jobs and the code paths get
@@ -13,18 +13,22 @@
  *     latency (accepted = stored durably). --rate 0 sends back to back, which
  *     measures the most uploads/s instead (latency then grows with C);
  *  2. end-to-end throughput: jobs/s from the first upload to the last stored
- *     result, against the compute-bound throughput of the same cores (W
- *     threads running analyzeTransientFile in a loop, no queue: on cores that
- *     share a physical core this is less than W times one process) and the
- *     single-process throughput;
+ *     result, against the compute-bound throughput of the same cores (one
+ *     thread per core running analyzeTransientFile on the raw bytes in a
+ *     loop, no queue, measured before and after the service run: on cores
+ *     that share a physical core this is less than the core count times one
+ *     thread) and the single-thread throughput;
  *  3. an archive reprocess: a batch over the stored uploads with a changed
- *     parameter; the time for 10,000 is measured when --archive 10000, else
- *     extrapolated linearly (and said so).
- * Options: --uploads N (200) --concurrency C (50) --rate R (20) --workers W (cores)
+ *     parameter (their parses, kept by the API at upload, are reused); the
+ *     time for 10,000 is measured when --archive 10000, else extrapolated
+ *     linearly (and said so).
+ * Options: --uploads N (200) --concurrency C (50) --rate R (20)
+ *          --workers W (analysis processes; default: the service's own default)
  *          --archive M (= uploads) --samples-per-decade S (620, about 100 kB).
  * Bounded: every wait has a deadline; everything is removed at the end.
  */
 import { spawn } from 'node:child_process';
+import { Agent, request } from 'node:http';
 import { mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
 import { availableParallelism, cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -44,11 +48,13 @@ const option = (name: string, fallback: number) => {
 const UPLOADS = option('uploads', 200);
 const CONCURRENCY = option('concurrency', 50);
 const RATE = option('rate', 20);
-const WORKERS = option('workers', availableParallelism());
+const CORES = availableParallelism();
+/** Analysis processes of the service; 0 leaves HEATPATH_WORKER_PROCESSES unset (the service's default). */
+const WORKERS = option('workers', 0);
 const ARCHIVE = Math.min(option('archive', UPLOADS), UPLOADS);
 const SAMPLES_PER_DECADE = option('samples-per-decade', 620);
 const DEADLINE_MS = 15 * 60_000;
-const WARMUP_UPLOADS = 4 * WORKERS;
+const WARMUP_UPLOADS = 4 * CORES;
 const TOKEN = 'bench-token-0123456789abcdef';
 
 function percentile(values: number[], p: number): number {
@@ -80,7 +86,7 @@ async function processCpuSeconds(pid: number): Promise<number> {
 
 /** jobs/s of `threads` threads analysing files in parallel (the core alone, no service). */
 async function computeBoundJobsPerSecond(files: Buffer[], threads: number): Promise<number> {
-  const perThread = Math.min(40, Math.floor(files.length / threads));
+  const perThread = Math.min(80, Math.floor(files.length / threads));
   const script = new URL('./analysis-loop-thread.js', import.meta.url);
   const runs = await Promise.all(
     Array.from({ length: threads }, (_, thread) => {
@@ -103,11 +109,11 @@ const load = () => loadavg()[0].toFixed(1);
 console.log(`heatpath service bench: ${cpus()[0]?.model ?? 'cpu'} x${availableParallelism()}, Node ${process.version}, load average ${load()} before`);
 console.log(
   `  ${UPLOADS} uploads of ${meanKb.toFixed(0)} kB from ${CONCURRENCY} clients ${RATE > 0 ? `at ${RATE} uploads/s in all` : 'back to back'}, ` +
-    `${WORKERS} analysis processes, archive ${ARCHIVE}`,
+    `${WORKERS > 0 ? WORKERS : 'the default number of'} analysis processes on ${CORES} cores, archive ${ARCHIVE}`,
 );
 
 // Measured before and after the service run: the mean evens out other load on a shared machine.
-const baselineBefore = { single: await computeBoundJobsPerSecond(files, 1), parallel: await computeBoundJobsPerSecond(files, WORKERS) };
+const baselineBefore = { single: await computeBoundJobsPerSecond(files, 1), parallel: await computeBoundJobsPerSecond(files, CORES) };
 const service = spawn(process.execPath, [join(packageRoot(import.meta.url), 'dist', 'services', 'main.js')], {
   stdio: ['ignore', 'ignore', 'inherit'],
   env: {
@@ -118,26 +124,34 @@ const service = spawn(process.execPath, [join(packageRoot(import.meta.url), 'dis
     HEATPATH_DATA_DIR: dataDir,
     HEATPATH_QUEUE_PREFIX: prefix,
     HEATPATH_API_KEYS: `bench:admin:${TOKEN}`,
-    HEATPATH_WORKER_PROCESSES: String(WORKERS),
+    HEATPATH_WORKER_PROCESSES: WORKERS > 0 ? String(WORKERS) : undefined,
     HEATPATH_RATE_LIMIT_PER_MINUTE: String(1_000_000),
     HEATPATH_LOG_LEVEL: 'warn',
   },
 });
 const base = `http://127.0.0.1:${port}`;
 const queue = new AnalysisQueue({ redisUrl, prefix });
+// node:http with kept-alive connections, one per client: the load generator
+// shares the cores with the service, and fetch() cost about three times the
+// CPU per 100 kB upload.
+const agent = new Agent({ keepAlive: true, maxSockets: CONCURRENCY });
 try {
   await until('the API', async () => (await fetch(`${base}/health/ready`).catch(() => null))?.ok === true);
 
-  const upload = async (body: Buffer, index: number): Promise<number> => {
+  const upload = (body: Buffer, index: number): Promise<number> => {
     const t0 = performance.now();
-    const response = await fetch(`${base}/v1/transients?sample_id=BENCH-${index % 20}&bench=bench-${index % 4}&power_W=${SYNTHETIC_POWER_W}`, {
-      method: 'POST',
-      headers: { authorization: `Bearer ${TOKEN}`, 'content-type': 'text/csv' },
-      body,
+    const path = `/v1/transients?sample_id=BENCH-${index % 20}&bench=bench-${index % 4}&power_W=${SYNTHETIC_POWER_W}`;
+    return new Promise((resolve, reject) => {
+      const sent = request(`${base}${path}`, {
+        method: 'POST', agent,
+        headers: { authorization: `Bearer ${TOKEN}`, 'content-type': 'text/csv', 'content-length': body.length },
+      }, (response) => {
+        response.resume();
+        response.once('end', () => (response.statusCode === 202 ? resolve(performance.now() - t0) : reject(new Error(`bench: upload answered HTTP ${response.statusCode}`))));
+      });
+      sent.once('error', reject);
+      sent.end(body);
     });
-    await response.arrayBuffer();
-    if (response.status !== 202) throw new Error(`bench: upload answered HTTP ${response.status}`);
-    return performance.now() - t0;
   };
   let slowestWarmupMs = 0;
   for (const [index, body] of warmupFiles.entries()) slowestWarmupMs = Math.max(slowestWarmupMs, await upload(body, index));
@@ -175,17 +189,17 @@ try {
   const clientCpu = process.cpuUsage(clientCpuBefore);
   const clientCpuSeconds = (clientCpu.user + clientCpu.system) / 1e6;
   const serviceCpuSeconds = (await processCpuSeconds(service.pid!)) - serviceCpuBefore;
-  const baselineAfter = { single: await computeBoundJobsPerSecond(files, 1), parallel: await computeBoundJobsPerSecond(files, WORKERS) };
+  const baselineAfter = { single: await computeBoundJobsPerSecond(files, 1), parallel: await computeBoundJobsPerSecond(files, CORES) };
   const single = (baselineBefore.single + baselineAfter.single) / 2;
   const computeBound = (baselineBefore.parallel + baselineAfter.parallel) / 2;
 
   console.log(`uploads: p50 ${percentile(latencies, 50).toFixed(1)} ms, p99 ${percentile(latencies, 99).toFixed(1)} ms, ${(UPLOADS / uploadSeconds).toFixed(0)} uploads/s (target p99 <= 50 ms with 50 bench clients)`);
   console.log(
     `core alone: one thread ${single.toFixed(2)} jobs/s (before ${baselineBefore.single.toFixed(2)}, after ${baselineAfter.single.toFixed(2)}); ` +
-      `${WORKERS} threads ${computeBound.toFixed(2)} jobs/s (before ${baselineBefore.parallel.toFixed(2)}, after ${baselineAfter.parallel.toFixed(2)})`,
+      `${CORES} threads ${computeBound.toFixed(2)} jobs/s (before ${baselineBefore.parallel.toFixed(2)}, after ${baselineAfter.parallel.toFixed(2)})`,
   );
   console.log(
-    `end to end: ${endToEnd.toFixed(2)} jobs/s = ${((endToEnd / computeBound) * 100).toFixed(0)} % of compute-bound for ${WORKERS} (target >= 80 %), ` +
+    `end to end: ${endToEnd.toFixed(2)} jobs/s = ${((endToEnd / computeBound) * 100).toFixed(0)} % of compute-bound for ${CORES} cores (target >= 80 %), ` +
       `${(endToEnd / single).toFixed(2)} x one process` + (RATE > 0 && RATE * 1.0 < computeBound ? `; uploads at ${RATE}/s cap it: use --rate 0 for throughput` : ''),
   );
   const coreSeconds = endToEndSeconds * availableParallelism();
@@ -216,6 +230,7 @@ try {
   );
   console.log(`load average ${load()} after (above the core count, other processes shared the CPU and the figures are pessimistic)`);
 } finally {
+  agent.destroy();
   service.kill('SIGTERM');
   await new Promise((resolve) => service.once('exit', resolve));
   await queue.close();
