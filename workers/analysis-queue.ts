@@ -121,6 +121,20 @@ export class AnalysisQueue {
     return counts as AnalysisQueueCounts;
   }
 
+  /** The job as Redis holds it (its state and data), or null. */
+  async getHeldJob(jobId: string): Promise<{ state: string; data: AnalysisJobData } | null> {
+    const job = await this.queue.getJob(jobId);
+    return job ? { state: await job.getState(), data: job.data } : null;
+  }
+
+  /** Moves a failed job back to the queue with its attempts reset; false when Redis does not hold it as failed. */
+  async retryFailed(jobId: string): Promise<boolean> {
+    const job = await this.queue.getJob(jobId);
+    if (!job || (await job.getState()) !== 'failed') return false;
+    await job.retry('failed', { resetAttemptsMade: true, resetAttemptsStarted: true });
+    return true;
+  }
+
   /** Removes a job of this batch that has not started; returns whether it was removed. */
   async removeWaitingBatchJob(jobId: string, batchId: string): Promise<boolean> {
     const job = await this.queue.getJob(jobId);

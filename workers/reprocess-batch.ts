@@ -129,7 +129,8 @@ export class BatchReprocessor {
 }
 
 /** The upload as this batch analyses it: its parameters and calibration replaced, its job id recomputed. */
-function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
+/** The job a batch makes of one upload: its parameters and calibration over the upload's, under the batch's algorithm version. */
+export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
   const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
   const calibrationId = batch.calibration_id ?? upload.calibration_id;
   const jobId = jobIdFor({ input_sha256: upload.input_sha256, parameters, power: upload.power, calibration_sha256: calibrationId, algorithm: batch.algorithm });

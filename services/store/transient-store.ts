@@ -132,6 +132,11 @@ export class TransientStore {
     return createFileExclusive(this.shardedPath('failures', requireId(record.job_id)), JSON.stringify(record));
   }
 
+  /** Removes a job's final failure (before it is retried); returns whether there was one. */
+  async deleteFailure(jobId: string): Promise<boolean> {
+    return isStoreId(jobId) && unlinkIfPresent(this.shardedPath('failures', jobId));
+  }
+
   async getFailure(jobId: string): Promise<FailureRecord | null> {
     return isStoreId(jobId) ? readJson<FailureRecord>(this.shardedPath('failures', jobId)) : null;
   }
@@ -204,14 +209,7 @@ export class TransientStore {
 
   /** Returns whether a registration was removed. */
   async deleteWebhook(webhookId: string): Promise<boolean> {
-    if (!isStoreId(webhookId)) return false;
-    try {
-      await unlink(this.flatPath('webhooks', webhookId));
-      return true;
-    } catch (error) {
-      if (isMissing(error)) return false;
-      throw error;
-    }
+    return isStoreId(webhookId) && unlinkIfPresent(this.flatPath('webhooks', webhookId));
   }
 
   // ---- idempotency keys ----
@@ -334,6 +332,17 @@ async function exists(path: string): Promise<boolean> {
     return true;
   } catch {
     return false;
+  }
+}
+
+/** Removes a file; false when there was none. */
+async function unlinkIfPresent(path: string): Promise<boolean> {
+  try {
+    await unlink(path);
+    return true;
+  } catch (error) {
+    if (isMissing(error)) return false;
+    throw error;
   }
 }
 

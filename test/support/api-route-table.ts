@@ -24,6 +24,7 @@ export const apiRouteTable: ApiRouteCase[] = [
   { method: 'GET', url: '/v1/jobs/:job_id/result', permission: 'read' },
   { method: 'GET', url: '/v1/jobs/:job_id/artifacts', permission: 'read' },
   { method: 'GET', url: '/v1/jobs/:job_id/artifacts/:name', permission: 'read' },
+  { method: 'POST', url: '/v1/jobs/:job_id/retry', permission: 'admin' },
   { method: 'POST', url: '/v1/calibrations', permission: 'upload' },
   { method: 'GET', url: '/v1/calibrations', permission: 'read' },
   { method: 'GET', url: '/v1/calibrations/:calibration_id', permission: 'read' },

@@ -6,6 +6,8 @@ import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js'
 import type { ResultRecord } from '../../store/store-records.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
+import { FailedJobRetry } from '../../../workers/retry-failed-job.js';
+import { unavailableQueue } from '../jobs/unavailable-queue.js';
 import { JobStatusSchema, readJobStatus } from '../jobs/job-status.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 
@@ -20,6 +22,10 @@ const ArtifactListSchema = Type.Object({
 
 /** Jobs: status while they run, then the stored result and the files derived from it. */
 export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue }> = async (app, { store, queue }) => {
+  const retries = new FailedJobRetry(store, queue);
+  const jobLinks = (jobId: string) => ({ self: `/v1/jobs/${jobId}`, result: `/v1/jobs/${jobId}/result`, artifacts: `/v1/jobs/${jobId}/artifacts` });
+  const JobAnswerSchema = Type.Object({ ...JobStatusSchema.properties, links: Type.Object({ self: Type.String(), result: Type.String(), artifacts: Type.String() }) });
+
   /** The stored result, or the problem saying why there is none yet. */
   async function requireResult(jobId: string): Promise<ResultRecord> {
     const result = await store.getResult(jobId);
@@ -40,14 +46,37 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
         tags: ['jobs'],
         summary: 'State, progress, timings and error of a job',
         params: JobParams,
-        response: { 200: Type.Object({ ...JobStatusSchema.properties, links: Type.Object({ self: Type.String(), result: Type.String(), artifacts: Type.String() }) }) },
+        response: { 200: JobAnswerSchema },
       },
     },
     async (request) => {
       const { job_id } = request.params;
       const status = await readJobStatus(store, queue, job_id);
       if (status === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} is not known`);
-      return { ...status, links: { self: `/v1/jobs/${job_id}`, result: `/v1/jobs/${job_id}/result`, artifacts: `/v1/jobs/${job_id}/artifacts` } };
+      return { ...status, links: jobLinks(job_id) };
+    },
+  );
+
+  app.post(
+    '/v1/jobs/:job_id/retry',
+    {
+      config: { permission: 'admin' },
+      schema: {
+        tags: ['jobs'],
+        summary: 'Run a failed job again',
+        description:
+          'For a job that failed for a reason outside its input (store or Redis outage, a crash), once that is mended: its stored failure is removed and it is queued ' +
+          'with fresh attempts, at its upload\'s or batch\'s priority. A job whose input or parameters were at fault, or that completed, is refused (409); a job still queued or running is left as it is.',
+        params: JobParams,
+        response: { 202: JobAnswerSchema },
+      },
+    },
+    async (request, reply) => {
+      const { job_id } = request.params;
+      await retries.retry(job_id).catch(unavailableQueue('the job is queued by the recovery sweep once Redis answers again, or retry then'));
+      const status = await readJobStatus(store, queue, job_id);
+      if (status === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} is not known`);
+      return reply.status(202).send({ ...status, links: jobLinks(job_id) });
     },
   );
 

@@ -1,0 +1,106 @@
+/**
+ * Retrying failed jobs (POST /v1/jobs/:job_id/retry) against a real Redis and
+ * a real sandboxed worker. The failure that can be mended is staged as a raw
+ * transient missing from the store (restored later, as from a backup); the
+ * one that cannot is a file the parser refuses. Expected states follow the
+ * API's own contract (README, OpenAPI description of the route).
+ */
+import { rm } from 'node:fs/promises';
+import { join } from 'node:path';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { BatchReprocessor } from '../workers/reprocess-batch.js';
+import { JOB_PRIORITY } from '../workers/analysis-queue.js';
+import type { UploadRecord } from '../services/store/store-records.js';
+import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
+import { eventually } from './support/queue-test-fixture.js';
+import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-upload.js';
+import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';
+import { jobIdFor } from '../services/jobs/job-id.js';
+
+let ctx: ApiTestContext;
+let worker: AnalysisWorker;
+
+beforeEach(async () => {
+  ctx = await startApiTestApp();
+  worker = new AnalysisWorker({ dataDir: ctx.config.dataDir, redisUrl: ctx.redisUrl, prefix: ctx.prefix });
+});
+afterEach(async () => {
+  await worker.close(5_000);
+  await ctx.close();
+});
+
+/** An upload record and its raw bytes as the API stores them (the API would refuse bad bytes at once: this is how such a job reaches a worker). */
+async function storedUpload(seed: number, bytes: Buffer = syntheticTransientCsv(seed)): Promise<UploadRecord> {
+  const blob = await ctx.store.putBlob(bytes);
+  const power = { power_W: SYNTHETIC_POWER_W };
+  const upload: UploadRecord = {
+    upload_id: `u-lost-${seed}`, input_sha256: blob.sha256, format: 'csv', file_name: `lost-${seed}.csv`, byte_length: bytes.length,
+    received_at: new Date().toISOString(), sample_id: 'S-RETRY', bench: 'bench-1', channel: null, cycle_count: null, tags: [], power,
+    calibration_id: null, parameters: defaultAnalysisParameters, uploaded_by: 'test',
+    job_id: jobIdFor({ input_sha256: blob.sha256, parameters: defaultAnalysisParameters, power, calibration_sha256: null }),
+  };
+  await ctx.store.putUpload(upload);
+  return upload;
+}
+
+/** A stored upload whose raw bytes were then lost. */
+async function uploadWithLostBytes(seed: number): Promise<{ upload: UploadRecord; bytes: Buffer }> {
+  const bytes = syntheticTransientCsv(seed);
+  const upload = await storedUpload(seed, bytes);
+  await rm(join(ctx.config.dataDir, 'blobs', upload.input_sha256.slice(0, 2), upload.input_sha256));
+  return { upload, bytes };
+}
+
+const retry = (jobId: string, role: 'admin' | 'bench' = 'admin') => ctx.app.inject({ method: 'POST', url: `/v1/jobs/${jobId}/retry`, headers: bearer(role) });
+const jobState = async (jobId: string) => (await ctx.app.inject({ method: 'GET', url: `/v1/jobs/${jobId}`, headers: bearer('reader') })).json().state as string;
+
+describe('retrying failed jobs', () => {
+  it('runs a job that failed for a lost raw transient again once the bytes are restored, with one result and no failure left', async () => {
+    const { upload, bytes } = await uploadWithLostBytes(11);
+    await ctx.queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    await eventually(async () => (await ctx.store.getFailure(upload.job_id)) !== null);
+    expect(await jobState(upload.job_id)).toBe('failed');
+
+    await ctx.store.putBlob(bytes);
+    const answer = await retry(upload.job_id);
+    expect(answer.statusCode).toBe(202);
+    expect(['queued', 'active', 'completed']).toContain(answer.json().state);
+    await eventually(() => ctx.store.hasResult(upload.job_id));
+    expect(await ctx.store.getFailure(upload.job_id)).toBeNull();
+    await eventually(async () => (await jobState(upload.job_id)) === 'completed');
+
+    // Done now: a second retry is refused and changes nothing.
+    const again = await retry(upload.job_id);
+    expect(again.statusCode).toBe(409);
+    expect(again.json().code).toBe('JOB_NOT_RETRYABLE');
+  });
+
+  it('retries a failed batch job at batch priority under its batch, and the batch counts it done', async () => {
+    const { upload, bytes } = await uploadWithLostBytes(12);
+    const batches = new BatchReprocessor(ctx.store, ctx.queue);
+    const batch = await batches.create({ selection: { sample_id: 'S-RETRY' }, parameters: { compact_stages: 3 }, created_by: 'test' });
+    const [entry] = (await ctx.store.getBatch(batch.batch_id))!.entries;
+    expect(entry.job_id).not.toBe(upload.job_id);
+    await eventually(async () => (await batches.progress(batch.batch_id))!.failed === 1);
+
+    await ctx.store.putBlob(bytes);
+    expect((await retry(entry.job_id)).statusCode).toBe(202);
+    await eventually(async () => (await batches.progress(batch.batch_id))!.done === 1);
+    expect((await ctx.store.getResult(entry.job_id))!.batch_id).toBe(batch.batch_id);
+    expect((await batches.progress(batch.batch_id))!.failed).toBe(0);
+  });
+
+  it('refuses a job whose input was at fault (409, failure kept), an unknown job (404) and a bench key (403)', async () => {
+    const bad = await storedUpload(13, Buffer.from('time_s,temperature_C\n'));
+    await ctx.queue.enqueue(bad, { priority: JOB_PRIORITY.interactive });
+    await eventually(async () => (await ctx.store.getFailure(bad.job_id)) !== null);
+    const refused = await retry(bad.job_id);
+    expect(refused.statusCode).toBe(409);
+    expect(refused.json().code).toBe('JOB_NOT_RETRYABLE');
+    expect(refused.json().detail).toMatch(/INPUT_\w+ .*input or parameters are at fault/);
+    expect(await ctx.store.getFailure(bad.job_id)).not.toBeNull();
+    expect((await retry('job-nobody-knows')).statusCode).toBe(404);
+    expect((await retry('job-nobody-knows', 'bench')).statusCode).toBe(403);
+  });
+});

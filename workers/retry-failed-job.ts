@@ -1,0 +1,46 @@
+import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import type { TransientStore } from '../services/store/transient-store.js';
+import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
+import { reprocessedUpload } from './reprocess-batch.js';
+
+export type RetryOutcome = 'queued' | 'already-queued';
+
+/**
+ * Runs a failed job again, for the admin, once whatever made it fail (a full
+ * disk, a store or Redis outage, a killed machine) is mended. A final failure
+ * is stored, and recovery and re-uploads leave a failed job alone, so without
+ * this only new parameters (a batch) would redo it.
+ *
+ * A failure whose input or parameters were at fault (it has an error code)
+ * is deterministic: the same job would fail the same way, so it is refused.
+ * The stored failure is removed before the job is queued: should queueing
+ * fail (Redis away), the job is pending again and the recovery sweep or the
+ * batch re-queue offers it, and the admin may retry once more.
+ */
+export class FailedJobRetry {
+  constructor(private readonly store: TransientStore, private readonly queue: AnalysisQueue) {}
+
+  async retry(jobId: string): Promise<RetryOutcome> {
+    if (await this.store.hasResult(jobId)) throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} completed: its result is stored`);
+    const failure = await this.store.getFailure(jobId);
+    if (failure?.code) {
+      throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} failed with ${failure.code} (${failure.message}): its input or parameters are at fault`);
+    }
+    const held = await this.queue.getHeldJob(jobId);
+    if (held && held.state !== 'failed') return 'already-queued';
+    const origin = failure ?? held?.data;
+    if (!origin) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known: neither a stored failure nor the queue names it`);
+    const upload = await this.store.getUpload(origin.upload_id);
+    if (!upload) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${origin.upload_id} of job ${jobId} is not stored`);
+    const batch = origin.batch_id ? await this.store.getBatch(origin.batch_id) : null;
+    if (origin.batch_id && !batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${origin.batch_id} of job ${jobId} is not stored`);
+    const job = batch ? reprocessedUpload(upload, batch) : upload;
+    if (job.job_id !== jobId) throw new HeatpathError('INTERNAL_ERROR', `job ${jobId} does not follow from upload ${upload.upload_id}${batch ? ` and batch ${batch.batch_id}` : ''}`);
+
+    await this.store.deleteFailure(jobId);
+    if (!(await this.queue.retryFailed(jobId))) {
+      await this.queue.enqueue(job, { priority: batch ? JOB_PRIORITY.batch : JOB_PRIORITY.interactive, batchId: batch?.batch_id ?? null });
+    }
+    return 'queued';
+  }
+}
