@@ -1,7 +1,7 @@
 import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { pino, type Logger } from 'pino';
-import type { Registry } from 'prom-client';
+import { collectDefaultMetrics, Registry } from 'prom-client';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { ServiceConfig } from '../services/config/service-config.js';
 import { serviceConfigOrExit } from '../services/config/service-config-or-exit.js';
@@ -12,6 +12,7 @@ import { BatchReprocessor } from './reprocess-batch.js';
 import { WebhookDeliveryWorker } from './webhook-delivery.js';
 import { WebhookRegistry } from './webhook-registry.js';
 import { observeAnalysisWorker } from './worker-metrics.js';
+import { startWorkerMetricsServer, type WorkerMetricsServer } from './worker-metrics-server.js';
 
 export interface StartWorkersOptions {
   config: ServiceConfig;
@@ -83,7 +84,17 @@ const SHUTDOWN_GRACE_MS = 5_000;
 async function runWorkerProcess(): Promise<void> {
   const config = serviceConfigOrExit({ servesApi: false });
   const logger = pino({ level: config.logLevel, name: 'heatpath-worker' });
-  const workers = await startWorkers({ config, logger });
+  let metrics: WorkerMetricsServer | undefined;
+  let metricsRegistry: Registry | undefined;
+  if (config.queue.workerMetricsPort !== null) {
+    metricsRegistry = new Registry();
+    collectDefaultMetrics({ register: metricsRegistry, prefix: 'heatpath_worker_' });
+  }
+  const workers = await startWorkers({ config, logger, metricsRegistry });
+  if (metricsRegistry) {
+    metrics = await startWorkerMetricsServer(metricsRegistry, { host: config.host, port: config.queue.workerMetricsPort! });
+    logger.info({ url: `http://${config.host}:${metrics.port}/metrics` }, 'worker metrics served');
+  }
   let stopping = false;
   const stop = (signal: string) => {
     if (stopping) return;
@@ -96,7 +107,7 @@ async function runWorkerProcess(): Promise<void> {
       logger.error('workers did not stop within the shutdown timeout: exiting; unfinished jobs will be taken over by another worker');
       process.exit(1);
     }, config.queue.shutdownTimeoutMs + SHUTDOWN_GRACE_MS).unref();
-    workers.close().then(
+    Promise.all([workers.close(), metrics?.close()]).then(
       () => process.exit(0),
       (error: unknown) => {
         logger.error({ err: error }, 'workers did not stop cleanly');

@@ -22,6 +22,7 @@ export const ServiceEnvSchema = Type.Object({
   HEATPATH_REDIS_ANSWER_MS: Type.Integer({ minimum: 50, default: 2000, description: 'How long an API request waits for Redis; then uploads are answered as stored (queued later) and reads get 503.' }),
   HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: '^[^:]+$', default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
   HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core plus one.' })),
+  HEATPATH_WORKER_METRICS_PORT: Type.Optional(Type.Integer({ minimum: 0, maximum: 65535, description: 'Port on HOST where a worker process started alone (npm run start:worker) serves its job metrics at /metrics for Prometheus, without a key; unset: none (npm start serves them on the API\'s /metrics).' })),
   HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration; a dead worker\'s job is taken over by another after about this long.' }),
   HEATPATH_STALLED_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'How often workers look for jobs whose worker died.' }),
   HEATPATH_RECOVERY_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 60_000, description: 'How often stored uploads without a result are offered to the queue again (after a Redis loss).' }),
@@ -53,6 +54,8 @@ export interface QueueConfig {
   prefix: string;
   /** Null: one per CPU core plus one (workers/main.ts). */
   workerProcesses: number | null;
+  /** Null: a worker started alone serves no metrics. */
+  workerMetricsPort: number | null;
   lockDurationMs: number;
   stalledIntervalMs: number;
   recoveryIntervalMs: number;
@@ -95,6 +98,7 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { serves
     queue: {
       prefix: valid.HEATPATH_QUEUE_PREFIX,
       workerProcesses: valid.HEATPATH_WORKER_PROCESSES ?? null,
+      workerMetricsPort: valid.HEATPATH_WORKER_METRICS_PORT ?? null,
       lockDurationMs: valid.HEATPATH_LOCK_DURATION_MS,
       stalledIntervalMs: valid.HEATPATH_STALLED_INTERVAL_MS,
       recoveryIntervalMs: valid.HEATPATH_RECOVERY_INTERVAL_MS,

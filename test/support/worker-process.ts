@@ -15,6 +15,8 @@ export interface WorkerProcessSettings {
   lockDurationMs?: number;
   stalledIntervalMs?: number;
   recoveryIntervalMs?: number;
+  /** HEATPATH_WORKER_METRICS_PORT; omitted: no metrics served. */
+  metricsPort?: number;
 }
 
 /**
@@ -41,6 +43,7 @@ export class WorkerProcess {
         HEATPATH_STALLED_INTERVAL_MS: String(settings.stalledIntervalMs ?? 1_000),
         HEATPATH_RECOVERY_INTERVAL_MS: String(settings.recoveryIntervalMs ?? 60_000),
         HEATPATH_LOG_LEVEL: 'warn',
+        HEATPATH_WORKER_METRICS_PORT: settings.metricsPort === undefined ? undefined : String(settings.metricsPort),
       },
     });
     const keep = (chunk: Buffer) => (this.output = (this.output + chunk.toString()).slice(-4000));
