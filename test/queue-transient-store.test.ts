@@ -96,6 +96,20 @@ describe('TransientStore', () => {
     expect(await store.getUpload('u2')).toEqual(upload('u2', { received_at: '2026-01-02T00:00:00.000Z', sample_id: 'S2' }));
   });
 
+  it('lists uploads another process stored after this one first listed, and ones stored during a listing', async () => {
+    const otherProcess = new TransientStore(dataDir);
+    expect(await store.listUploads({ sample_id: 'S1' })).toEqual([]);
+    await otherProcess.putUpload(upload('u1'));
+    expect((await store.listUploads({ sample_id: 'S1' })).map((u) => u.upload_id)).toEqual(['u1']);
+    // Listings that overlap a write: the one asked after the write completed sees it.
+    const during = store.listUploads();
+    await otherProcess.putUpload(upload('u2', { received_at: '2026-01-02T00:00:00.000Z' }));
+    const after = store.listUploads();
+    expect((await during).length).toBeGreaterThanOrEqual(1);
+    expect((await after).map((u) => u.upload_id)).toEqual(['u1', 'u2']);
+    expect((await store.listUploadSummaries({ sample_id: 'S1' })).map((u) => [u.upload_id, u.job_id])).toEqual([['u1', 'job-u1'], ['u2', 'job-u2']]);
+  });
+
   it('refuses ids that could escape the data directory', async () => {
     await expect(store.putUpload(upload('../evil'))).rejects.toThrow(/not a valid store id/);
     expect(await store.getUpload('../evil')).toBeNull();

@@ -48,10 +48,11 @@ export class UploadRecovery {
     const pending: UploadRecord[] = [];
     const unacknowledged: string[] = [];
     const outcomes = await this.store.jobOutcomes();
-    for (const upload of await this.store.listUploads()) {
-      if (isJobFinished(outcomes, upload.job_id)) continue;
-      if (await this.store.hasBlob(upload.input_sha256)) pending.push(upload);
-      else unacknowledged.push(upload.upload_id);
+    for (const summary of await this.store.listUploadSummaries()) {
+      if (isJobFinished(outcomes, summary.job_id)) continue;
+      const upload = (await this.store.hasBlob(summary.input_sha256)) ? await this.store.getUpload(summary.upload_id) : null;
+      if (upload) pending.push(upload);
+      else unacknowledged.push(summary.upload_id);
     }
     for (let start = 0; start < pending.length; start += ENQUEUE_CHUNK) {
       await this.queue.enqueueMany(pending.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.interactive });
