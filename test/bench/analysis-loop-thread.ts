@@ -7,7 +7,8 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-file.js';
 
 const { files, power_W } = workerData as { files: Uint8Array[]; power_W: number };
-analyzeTransientFile({ bytes: files[0], fileName: 'warm.csv', power: { power_W } }, 'bench');
+// A fresh thread compiles as it goes: a few analyses first, as the service's long-lived processes are past that.
+for (const bytes of files.slice(0, 5)) analyzeTransientFile({ bytes, fileName: 'warm.csv', power: { power_W } }, 'bench');
 const started = performance.now();
 files.forEach((bytes, index) => analyzeTransientFile({ bytes, fileName: `f${index}.csv`, power: { power_W } }, 'bench'));
 parentPort!.postMessage({ files: files.length, ms: performance.now() - started });
