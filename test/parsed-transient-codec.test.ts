@@ -55,21 +55,22 @@ describe('parsed transient codec', () => {
 });
 
 describe('TransientStore kept parses', () => {
-  it('keeps a parse per blob and algorithm version, and treats a damaged one as absent', async () => {
+  it('keeps a parse per blob, format and algorithm version, and treats a damaged one as absent', async () => {
     const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-parsed-'));
     try {
       const store = new TransientStore(dataDir);
       const bytes = fixture('fh-tt1_m07_cooling.csv');
       const sha256 = sha256Hex(bytes);
-      expect(await store.getParsedTransient(sha256)).toBeNull();
+      expect(await store.getParsedTransient(sha256, 'csv')).toBeNull();
       const parsed = parseTransient(bytes, 'm07.csv');
-      await store.putParsedTransient(sha256, parsed);
-      expect(await store.getParsedTransient(sha256)).toEqual(parsed);
+      await store.putParsedTransient(sha256, 'csv', parsed);
+      expect(await store.getParsedTransient(sha256, 'json')).toBeNull();
+      expect(await store.getParsedTransient(sha256, 'csv')).toEqual(parsed);
       const shard = join(dataDir, 'parsed', sha256.slice(0, 2));
-      expect(await readdir(shard)).toEqual([`${sha256}.${ALGORITHM_VERSION}.bin`]);
-      await writeFile(join(shard, `${sha256}.${ALGORITHM_VERSION}.bin`), 'not a parse');
-      expect(await store.getParsedTransient(sha256)).toBeNull();
-      expect(await store.getParsedTransient('../etc/passwd')).toBeNull();
+      expect(await readdir(shard)).toEqual([`${sha256}.csv.${ALGORITHM_VERSION}.bin`]);
+      await writeFile(join(shard, `${sha256}.csv.${ALGORITHM_VERSION}.bin`), 'not a parse');
+      expect(await store.getParsedTransient(sha256, 'csv')).toBeNull();
+      expect(await store.getParsedTransient('../etc/passwd', 'csv')).toBeNull();
     } finally {
       await rm(dataDir, { recursive: true, force: true });
     }

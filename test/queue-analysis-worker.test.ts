@@ -71,7 +71,7 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     expect(result!.results.length).toBeGreaterThan(0);
     expect((await queue.getJobState(upload.job_id))?.progress).toBe(100);
     // Stored without a kept parse (as uploads before the API kept them): the worker parsed and kept it for the next analysis.
-    expect(await fixture.store.getParsedTransient(upload.input_sha256)).toEqual(parseTransient(syntheticTransientCsv(3), upload.file_name));
+    expect(await fixture.store.getParsedTransient(upload.input_sha256, 'csv')).toEqual(parseTransient(syntheticTransientCsv(3), upload.file_name));
     await eventually(async () => (await registry.metrics()).includes('heatpath_job_attempts_total{outcome="completed"} 1'));
     expect(await registry.metrics()).toMatch(/heatpath_job_duration_seconds_count 1\n/);
 

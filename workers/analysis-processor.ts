@@ -113,10 +113,10 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
 
 /** The upload's samples: as the API kept them, else parsed here and kept for the next analysis of the same bytes (an archive reprocess). */
 async function parsedTransient(sha256: string, bytes: Uint8Array, upload: UploadRecord): Promise<TransientFile> {
-  const kept = await store.getParsedTransient(sha256);
+  const kept = await store.getParsedTransient(sha256, upload.format);
   if (kept) return kept;
   const parsed = parseTransient(bytes, upload.file_name, upload.format);
-  await store.putParsedTransient(sha256, parsed);
+  await store.putParsedTransient(sha256, upload.format, parsed);
   return parsed;
 }
 

@@ -54,7 +54,7 @@ export interface StoredBlob {
  *
  * Layout (shard = first two hex digits of a hash, to keep directories small):
  *   blobs/<shard>/<sha256>             raw bytes, content-addressed
- *   parsed/<shard>/<sha256>.<algorithm>.bin  the raw bytes parsed (derived, not fsynced)
+ *   parsed/<shard>/<sha256>.<format>.<algorithm>.bin  the raw bytes parsed (derived, not fsynced)
  *   uploads/<shard>/<upload_id>.json   UploadRecord
  *   results/<shard>/<job_id>.json      ResultRecord, written once
  *   failures/<shard>/<job_id>.json     FailureRecord, written once
@@ -94,17 +94,18 @@ export class TransientStore {
   }
 
   /**
-   * Keeps the parse of a stored blob for the analysis processes. Named by the
-   * algorithm version, since a new parser may read the same bytes otherwise.
+   * Keeps the parse of a stored blob, read as `format`, for the analysis
+   * processes. Named by the algorithm version too, since a new parser may
+   * read the same bytes otherwise.
    */
-  async putParsedTransient(sha256: string, file: TransientFile): Promise<void> {
-    await writeDerivedFile(this.parsedPath(requireSha256(sha256)), encodeParsedTransient(file));
+  async putParsedTransient(sha256: string, format: UploadRecord['format'], file: TransientFile): Promise<void> {
+    await writeDerivedFile(this.parsedPath(requireSha256(sha256), format), encodeParsedTransient(file));
   }
 
-  /** The kept parse of a blob, or null (none kept, another algorithm version's, or unreadable): then parse the blob. */
-  async getParsedTransient(sha256: string): Promise<TransientFile | null> {
+  /** The kept parse of a blob read as `format`, or null (none kept, another algorithm version's, or unreadable): then parse the blob. */
+  async getParsedTransient(sha256: string, format: UploadRecord['format']): Promise<TransientFile | null> {
     if (!SHA256_HEX.test(sha256)) return null;
-    const bytes = await readOrNull(this.parsedPath(sha256));
+    const bytes = await readOrNull(this.parsedPath(sha256, format));
     return bytes ? decodeParsedTransient(bytes) : null;
   }
 
@@ -314,8 +315,8 @@ export class TransientStore {
     return join(this.dataDir, 'blobs', sha256.slice(0, 2), sha256);
   }
 
-  private parsedPath(sha256: string): string {
-    return join(this.dataDir, 'parsed', sha256.slice(0, 2), `${sha256}.${ALGORITHM_VERSION}.bin`);
+  private parsedPath(sha256: string, format: UploadRecord['format']): string {
+    return join(this.dataDir, 'parsed', sha256.slice(0, 2), `${sha256}.${format === 'json' ? 'json' : 'csv'}.${ALGORITHM_VERSION}.bin`);
   }
 
   private shardedPath(kind: string, id: string): string {

@@ -103,7 +103,7 @@ export async function acceptTransientUpload(
   // leaves a record without its bytes, which was never acknowledged and which
   // recovery leaves alone (recover-uploads.ts). The parse is kept beside them
   // for the analysis; it is derived, so losing it costs only a parse.
-  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), store.putParsedTransient(inputSha256, transient)]);
+  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), store.putParsedTransient(inputSha256, record.format, transient)]);
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
