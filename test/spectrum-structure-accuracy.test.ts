@@ -22,6 +22,12 @@
  * scale: blurring the exact spectrum by a gaussian of 0.1 decade standard
  * deviation already gives 0.011-0.025 / 0.05-0.12 on these stacks, while the
  * linear resolution of a 3e-4-relative-noise curve is about half a decade.
+ * Measured and left out: posterior-mean on the noiseless curves gives
+ * 0.047-0.072 at the 90th percentile (its noise floor of 3e-4 of the final
+ * value is this noise level); 20, 60 and 80 grid points per decade give
+ * 0.084, 0.073 and 0.069 on average; a Levenberg-Marquardt fit of a Cauer
+ * ladder (R on a log C_sum grid, 20 per decade, started from posterior-mean)
+ * with a total-variation prior on log K gives 0.082 on average, worst 0.115.
  */
 import { describe, expect, it } from 'vitest';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
