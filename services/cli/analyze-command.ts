@@ -4,6 +4,7 @@ import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-fi
 import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { parseTransient } from '../../shared/input/parse-transient.js';
 import { isUserError, userErrorLine } from './user-error-line.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
@@ -27,7 +28,8 @@ ${analysisParametersUsage}
                           per line`;
 
 export interface AnalyzeRun {
-  results: { file: string; result: AnalysisResult; outDir?: string }[];
+  /** meta: the file's `# key: value` lines, which results do not carry. */
+  results: { file: string; result: AnalysisResult; meta: Record<string, string>; outDir?: string }[];
   /** Files the user must fix: the others are analysed all the same. */
   failures: HeatpathError[];
 }
@@ -79,10 +81,13 @@ export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions
   const failures: HeatpathError[] = [];
   for (const file of files) {
     let channelResults: AnalysisResult[];
+    let meta: Record<string, string>;
     try {
       const bytes = await readInputFile(file);
+      const parsed = parseTransient(bytes, file);
+      meta = parsed.meta;
       channelResults = analyzeTransientFile(
-        { bytes, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },
+        { bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },
         options.createdAt,
       );
     } catch (error) {
@@ -94,7 +99,7 @@ export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions
     }
     for (const result of channelResults) {
       const outDir = options.outRoot ? await writeResultFiles(options.outRoot, file, result, channelResults.length > 1) : undefined;
-      results.push({ file, result, outDir });
+      results.push({ file, result, meta, outDir });
     }
   }
   return { results, failures };

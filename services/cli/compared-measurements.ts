@@ -5,13 +5,11 @@
  * it.
  */
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
-import { parseTransient } from '../../shared/input/parse-transient.js';
 import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';
 import type { CumulativeStructureFunction } from '../../shared/numerics/structure-function.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
 import type { AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
-import { readInputFile } from './read-input-file.js';
 
 export interface ComparedMeasurement {
   file: string;
@@ -28,8 +26,7 @@ export async function analyzeComparedFiles(files: string[], inputs: AnalysisInpu
     if (results.length !== 1) {
       throw new HeatpathError('COMPARISON_SEVERAL_CHANNELS', `${results.length} channels (${results.map((r) => r.result.source.channel).join(', ')})`, { file });
     }
-    const meta = parseTransient(await readInputFile(file), file).meta;
-    measurements.push({ file, result: results[0].result, meta });
+    measurements.push({ file, result: results[0].result, meta: results[0].meta });
   }
   return measurements;
 }
