@@ -6,7 +6,7 @@
  */
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';
-import type { CumulativeStructureFunction } from '../../shared/numerics/structure-function.js';
+import { resultCumulativeStructure } from '../../shared/analysis/result-structure-function.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
 import type { AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
@@ -31,10 +31,6 @@ export async function analyzeComparedFiles(files: string[], inputs: AnalysisInpu
   return measurements;
 }
 
-export function cumulativeStructure(result: AnalysisResult): CumulativeStructureFunction {
-  return { r_K_per_W: Float64Array.from(result.structure.cumulative.r_K_per_W), c_J_per_K: Float64Array.from(result.structure.cumulative.c_J_per_K) };
-}
-
 export function interfaceMeasurement(result: AnalysisResult): InterfaceMeasurement {
-  return { time_s: Float64Array.from(result.zth.time_s), zth_K_per_W: Float64Array.from(result.zth.zth_K_per_W), structure: cumulativeStructure(result) };
+  return { time_s: Float64Array.from(result.zth.time_s), zth_K_per_W: Float64Array.from(result.zth.zth_K_per_W), structure: resultCumulativeStructure(result) };
 }

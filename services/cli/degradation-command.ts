@@ -1,18 +1,9 @@
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
+import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES, type DegradationComparison } from '../../shared/analysis/package-degradation.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
-import { structureFunctionShift, type StructureFunctionShift } from '../../shared/numerics/structure-function-shift.js';
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
-import { analyzeComparedFiles, cumulativeStructure, type ComparedMeasurement } from './compared-measurements.js';
-
-/** An Rth rise of 20 % is a commonly used end-of-life criterion in power cycling (memory). */
-const DEFAULT_RTH_RISE_LIMIT_PERCENT = 20;
-
-export const DEGRADATION_NOTES = [
-  'The shift is R_sum(C) of a later measurement minus the reference\'s at equal C_sum: it starts where the degraded layer sits, counted from the junction, and settles at the resistance that layer added.',
-  'Bond-wire damage shows in the on-state voltage, not in the structure function (common practice).',
-  'The end-of-life flag marks an Rth rise above the limit; 20 % is recalled from memory as common in power-cycling practice: the qualification plan and AQG 324 decide.',
-];
+import { analyzeComparedFiles, type ComparedMeasurement } from './compared-measurements.js';
 
 export const degradationUsage = `heatpath degradation REFERENCE FILE... [options]
 
@@ -56,16 +47,11 @@ export async function runDegradationCommand(argv: string[], print: (text: string
 export interface DegradationRow {
   measurement: ComparedMeasurement;
   cycles: number | null;
-  rthChangePercent: number;
-  exceedsLimit: boolean;
-  shift: StructureFunctionShift;
+  comparison: DegradationComparison;
 }
 
 function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, limitPercent: number): DegradationRow {
-  const rthRef = reference.result.rth_total_K_per_W;
-  const rthChangePercent = ((measurement.result.rth_total_K_per_W - rthRef) / rthRef) * 100;
-  const shift = structureFunctionShift(cumulativeStructure(reference.result), cumulativeStructure(measurement.result));
-  return { measurement, cycles: cycleCount(measurement), rthChangePercent, exceedsLimit: rthChangePercent > limitPercent, shift };
+  return { measurement, cycles: cycleCount(measurement), comparison: compareForDegradation(reference.result, measurement.result, limitPercent) };
 }
 
 /** The file's `# cycle_count:` header as a number; null when absent or not a number. */
@@ -81,20 +67,7 @@ export function degradationReport(reference: ComparedMeasurement, rows: Degradat
     heatpath_degradation: 1,
     reference: { file: reference.file, cycles: cycleCount(reference), rth_total_K_per_W: reference.result.rth_total_K_per_W },
     rth_rise_limit_percent: limitPercent,
-    later: rows.map(({ measurement, cycles, rthChangePercent, exceedsLimit, shift }) => ({
-      file: measurement.file,
-      cycles,
-      rth_total_K_per_W: measurement.result.rth_total_K_per_W,
-      rth_change_percent: rthChangePercent,
-      rth_rise_exceeds_limit: exceedsLimit,
-      shift_start: shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K },
-      added_r_K_per_W: shift.settled_shift_K_per_W,
-      structure_rth_change_K_per_W: shift.rth_change_K_per_W,
-      shift_threshold_K_per_W: shift.threshold_K_per_W,
-      shift_scatter_K_per_W: shift.scatter_K_per_W,
-      curves: { c_J_per_K: Array.from(shift.c_J_per_K), reference_r_K_per_W: Array.from(shift.reference_r_K_per_W), shift_K_per_W: Array.from(shift.shift_K_per_W) },
-      warnings: [...measurement.result.quality.warnings, ...shift.warnings],
-    })),
+    later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
     notes: DEGRADATION_NOTES,
     caution: RESULT_CAUTION,
   };
@@ -104,19 +77,19 @@ export function degradationReport(reference: ComparedMeasurement, rows: Degradat
 export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number): string {
   const referenceCycles = cycleCount(reference);
   const header = ['file', 'cycles', 'Rth total', 'change', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
-  const table = rows.map(({ measurement, cycles, rthChangePercent, exceedsLimit, shift }) => [
+  const table = rows.map(({ measurement, cycles, comparison }) => [
     measurement.file,
     cycles === null ? '-' : String(cycles),
-    `${measurement.result.rth_total_K_per_W.toPrecision(4)} K/W`,
-    `${rthChangePercent >= 0 ? '+' : ''}${rthChangePercent.toFixed(1)} %`,
-    shift.start === null ? 'no shift' : `${shift.start.reference_r_K_per_W.toPrecision(3)} K/W`,
-    shift.start === null ? '-' : `${shift.start.c_J_per_K.toPrecision(3)} J/K`,
-    shift.settled_shift_K_per_W === null ? '-' : `${shift.settled_shift_K_per_W.toPrecision(3)} K/W`,
-    exceedsLimit ? 'END OF LIFE?' : 'no',
+    `${comparison.rth_total_K_per_W.toPrecision(4)} K/W`,
+    `${comparison.rth_change_percent >= 0 ? '+' : ''}${comparison.rth_change_percent.toFixed(1)} %`,
+    comparison.shift_start === null ? 'no shift' : `${comparison.shift_start.r_sum_K_per_W.toPrecision(3)} K/W`,
+    comparison.shift_start === null ? '-' : `${comparison.shift_start.c_sum_J_per_K.toPrecision(3)} J/K`,
+    comparison.added_r_K_per_W === null ? '-' : `${comparison.added_r_K_per_W.toPrecision(3)} K/W`,
+    comparison.rth_rise_exceeds_limit ? 'END OF LIFE?' : 'no',
   ]);
   const widths = header.map((h, column) => Math.max(h.length, ...table.map((row) => row[column].length)));
   const line = (cells: string[]) => '  ' + cells.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('   ');
-  const warnings = rows.flatMap(({ measurement, shift }) => shift.warnings.map((w) => `  ${measurement.file}: ${w}`));
+  const warnings = rows.flatMap(({ measurement, comparison }) => comparison.warnings.map((w) => `  ${measurement.file}: ${w}`));
   return [
     `Package degradation against ${reference.file}` +
       `${referenceCycles === null ? '' : ` (${referenceCycles} cycles)`}: Rth total ${reference.result.rth_total_K_per_W.toPrecision(4)} K/W`,
