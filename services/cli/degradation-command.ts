@@ -1,5 +1,6 @@
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
-import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES, type DegradationComparison } from '../../shared/analysis/package-degradation.js';
+import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../shared/analysis/package-degradation.js';
+import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';

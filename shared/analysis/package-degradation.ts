@@ -6,6 +6,7 @@
  */
 import { structureFunctionShift } from '../numerics/structure-function-shift.js';
 import type { AnalysisResult } from '../schemas/analysis-result.js';
+import type { DegradationComparison } from '../schemas/degradation-comparison.js';
 import { resultCumulativeStructure } from './result-structure-function.js';
 
 /** An Rth rise of 20 % is a commonly used end-of-life criterion in power cycling (memory). */
@@ -16,22 +17,6 @@ export const DEGRADATION_NOTES = [
   'Bond-wire damage shows in the on-state voltage, not in the structure function (common practice).',
   'The end-of-life flag marks an Rth rise above the limit; 20 % is recalled from memory as common in power-cycling practice: the qualification plan and AQG 324 decide.',
 ];
-
-export interface DegradationComparison {
-  rth_total_K_per_W: number;
-  rth_change_percent: number;
-  rth_rise_exceeds_limit: boolean;
-  /** Where the structure function starts to shift (the degraded layer), or null when no shift persists. */
-  shift_start: { r_sum_K_per_W: number; c_sum_J_per_K: number } | null;
-  /** The resistance the degraded layer added, where the shift settles. */
-  added_r_K_per_W: number | null;
-  structure_rth_change_K_per_W: number;
-  shift_threshold_K_per_W: number;
-  shift_scatter_K_per_W: number;
-  curves: { c_J_per_K: number[]; reference_r_K_per_W: number[]; shift_K_per_W: number[] };
-  /** The later analysis's own warnings, then the comparison's. */
-  warnings: string[];
-}
 
 export function compareForDegradation(reference: AnalysisResult, later: AnalysisResult, rthRiseLimitPercent: number): DegradationComparison {
   const rthReference = reference.rth_total_K_per_W;

@@ -29,6 +29,7 @@ export const apiRouteTable: ApiRouteCase[] = [
   { method: 'GET', url: '/v1/calibrations', permission: 'read' },
   { method: 'GET', url: '/v1/calibrations/:calibration_id', permission: 'read' },
   { method: 'GET', url: '/v1/samples/:sample_id/results', permission: 'read' },
+  { method: 'GET', url: '/v1/samples/:sample_id/degradation', permission: 'read' },
   { method: 'POST', url: '/v1/batches', permission: 'admin' },
   { method: 'GET', url: '/v1/batches', permission: 'read' },
   { method: 'GET', url: '/v1/batches/:batch_id', permission: 'read' },

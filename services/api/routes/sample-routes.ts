@@ -5,6 +5,9 @@ import type { TransientStore } from '../../store/transient-store.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 import { UploadLinksSchema } from '../schemas/upload-record-schema.js';
 import { uploadLinks } from '../uploads/accept-transient-upload.js';
+import { sampleDegradation } from '../samples/sample-degradation.js';
+import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
+import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 
 const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed')], {
   description: 'From the store: pending until a result or a final failure is recorded.',
@@ -29,6 +32,28 @@ const SampleEntrySchema = Type.Object({
     description: 'Jobs of reprocessing batches for this upload, oldest batch first.',
   }),
   links: UploadLinksSchema,
+});
+
+const MeasurementSchema = Type.Object({
+  upload_id: Type.String(),
+  received_at: Type.String(),
+  cycle_count: Type.Union([Type.Integer(), Type.Null()]),
+  job_id: Type.String(),
+  rth_total_K_per_W: Type.Number(),
+});
+
+const SampleDegradationSchema = Type.Object({
+  sample_id: Type.String(),
+  channel: Type.String(),
+  batch_id: Type.Union([Type.String(), Type.Null()]),
+  rth_rise_limit_percent: Type.Number(),
+  reference: MeasurementSchema,
+  later: Type.Array(Type.Object({ ...MeasurementSchema.properties, ...DegradationComparisonSchema.properties }), { description: 'In cycle order.' }),
+  not_included: Type.Array(Type.Object({ upload_id: Type.String(), job_id: Type.Union([Type.String(), Type.Null()]), reason: Type.String() }), {
+    description: 'Uploads of the sample left out: analysis pending or failed, the channel missing, or not in the batch.',
+  }),
+  notes: Type.Array(Type.String()),
+  caution: Type.String(),
 });
 
 /** The LIMS view: every transient of a sample, oldest first, with its job outcomes. */
@@ -81,5 +106,31 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
       // Embedded results go out as JSON.stringify writes them, as on /v1/jobs/:job_id/result.
       return reply.serializer(JSON.stringify).send({ sample_id, transients });
     },
+  );
+
+  app.get(
+    '/v1/samples/:sample_id/degradation',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['samples'],
+        summary: 'Degradation of a device over power cycling',
+        description:
+          'Its completed analyses in cycle order (cycle_count, then arrival), each compared with the reference (the first, or ?reference_upload_id=) by Rth total ' +
+          'and by where and how much its cumulative structure function shifted, as `heatpath degradation` compares files. ' + DEGRADATION_NOTES.join(' '),
+        params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
+        querystring: Type.Object(
+          {
+            channel: Type.Optional(Type.String({ maxLength: 64, description: 'The result channel to follow; needed when the results have several.' })),
+            reference_upload_id: Type.Optional(Type.String({ maxLength: 160, description: 'The reference measurement; default: the first in cycle order.' })),
+            batch_id: Type.Optional(Type.String({ maxLength: 160, description: 'Read the jobs of this reprocessing batch instead of the uploads\' own jobs.' })),
+            rth_rise_limit_percent: Type.Number({ exclusiveMinimum: 0, default: DEFAULT_RTH_RISE_LIMIT_PERCENT, description: 'Flag an Rth rise above this (20 % is a common end-of-life criterion, recalled from memory; the qualification plan and AQG 324 decide).' }),
+          },
+          { additionalProperties: false },
+        ),
+        response: { 200: SampleDegradationSchema },
+      },
+    },
+    async (request) => sampleDegradation(store, request.params.sample_id, request.query),
   );
 };

@@ -90,7 +90,7 @@ export async function acceptTransientUpload(
     sample_id: metadata.sample_id,
     bench: metadata.bench ?? null,
     channel: metadata.channel ?? null,
-    cycle_count: metadata.cycle_count ?? null,
+    cycle_count: metadata.cycle_count ?? cycleCountOf(transient.meta),
     tags: metadata.tags ?? [],
     power,
     calibration_id: calibrationId,
@@ -149,6 +149,12 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
 /** As the parser decides when not told: JSON when the text starts with '{' (trim drops a byte-order mark too). */
 function formatOf(upload: UploadRequest): UploadRecord['format'] {
   return upload.format ?? (upload.bytes.toString('utf8').trimStart().startsWith('{') ? 'json' : 'csv');
+}
+
+/** The file's `# cycle_count:` line when the request names none, as `heatpath degradation` reads it: a whole number of cycles, else none. */
+function cycleCountOf(meta: Record<string, string>): number | null {
+  const text = meta.cycle_count?.trim();
+  return text !== undefined && /^\d+$/.test(text) && Number.isSafeInteger(Number(text)) ? Number(text) : null;
 }
 
 function powerOf(metadata: UploadMetadata): Power | null {

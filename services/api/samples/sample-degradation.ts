@@ -1,0 +1,111 @@
+import { canonicalJson } from '../../jobs/canonical-json.js';
+import { compareForDegradation, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
+import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
+import type { DegradationComparison } from '../../../shared/schemas/degradation-comparison.js';
+import type { UploadRecord } from '../../store/store-records.js';
+import type { TransientStore } from '../../store/transient-store.js';
+
+export interface SampleDegradationOptions {
+  /** The result channel to follow; omitted: the only one. */
+  channel?: string;
+  /** The reference measurement; omitted: the first in cycle order. */
+  reference_upload_id?: string;
+  /** Read each upload's job of this reprocessing batch instead of its own job. */
+  batch_id?: string;
+  rth_rise_limit_percent: number;
+}
+
+interface Measurement {
+  upload: UploadRecord;
+  job_id: string;
+  result: AnalysisResult;
+}
+
+const measurementOf = ({ upload, job_id, result }: Measurement) => ({
+  upload_id: upload.upload_id, received_at: upload.received_at, cycle_count: upload.cycle_count, job_id, rth_total_K_per_W: result.rth_total_K_per_W,
+});
+
+/**
+ * The LIMS view of a power-cycling campaign for one device: its completed
+ * analyses in cycle order (cycle_count, then arrival; uploads without a cycle
+ * count last), each compared with the reference as `heatpath degradation`
+ * compares files. Uploads still pending, failed, or without the channel are
+ * listed apart with the reason.
+ */
+export async function sampleDegradation(store: TransientStore, sampleId: string, options: SampleDegradationOptions) {
+  const uploads = await store.listUploads({ sample_id: sampleId });
+  if (uploads.length === 0) throw new HeatpathError('RESOURCE_NOT_FOUND', `sample ${sampleId} has no stored uploads`);
+  const jobOf = await jobChooser(store, options.batch_id);
+  const notIncluded: { upload_id: string; job_id: string | null; reason: string }[] = [];
+  const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
+  for (const upload of inCycleOrder(uploads)) {
+    const jobId = jobOf(upload);
+    if (jobId === null) {
+      notIncluded.push({ upload_id: upload.upload_id, job_id: null, reason: `not part of batch ${options.batch_id}` });
+      continue;
+    }
+    const record = await store.getResult(jobId);
+    if (record) found.push({ upload, job_id: jobId, results: record.results as AnalysisResult[] });
+    else notIncluded.push({ upload_id: upload.upload_id, job_id: jobId, reason: (await store.hasFailure(jobId)) ? 'the analysis failed' : 'the analysis is pending' });
+  }
+  const channel = options.channel ?? onlyChannel(found);
+  const measurements: Measurement[] = [];
+  for (const { upload, job_id, results } of found) {
+    const result = results.find((candidate) => candidate.source.channel === channel);
+    if (result) measurements.push({ upload, job_id, result });
+    else notIncluded.push({ upload_id: upload.upload_id, job_id, reason: `no channel ${channel} (it has ${results.map((r) => r.source.channel).join(', ')})` });
+  }
+  const referenceIndex = options.reference_upload_id === undefined ? 0 : measurements.findIndex((m) => m.upload.upload_id === options.reference_upload_id);
+  if (referenceIndex < 0) {
+    throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${options.reference_upload_id} is not a completed analysis of channel ${channel} of sample ${sampleId}`);
+  }
+  if (measurements.length < 2) {
+    throw new HeatpathError('DEGRADATION_TOO_FEW_RESULTS', `sample ${sampleId} has ${measurements.length} completed analysis(es) of channel ${channel}, ${notIncluded.length} upload(s) not included`);
+  }
+  const reference = measurements[referenceIndex];
+  const later = measurements.filter((_, index) => index !== referenceIndex).map((measurement) => ({
+    ...measurementOf(measurement),
+    ...withComparabilityWarning(compareForDegradation(reference.result, measurement.result, options.rth_rise_limit_percent), reference.result, measurement.result),
+  }));
+  return {
+    sample_id: sampleId,
+    channel,
+    batch_id: options.batch_id ?? null,
+    rth_rise_limit_percent: options.rth_rise_limit_percent,
+    reference: measurementOf(reference),
+    later,
+    not_included: notIncluded,
+    notes: DEGRADATION_NOTES,
+    caution: RESULT_CAUTION,
+  };
+}
+
+/** Cycle count first (the campaign's own clock), then arrival; uploads without a cycle count after the others. */
+function inCycleOrder(uploads: UploadRecord[]): UploadRecord[] {
+  const cycles = (upload: UploadRecord) => upload.cycle_count ?? Number.POSITIVE_INFINITY;
+  return [...uploads].sort((a, b) => cycles(a) - cycles(b) || a.received_at.localeCompare(b.received_at) || a.upload_id.localeCompare(b.upload_id));
+}
+
+async function jobChooser(store: TransientStore, batchId: string | undefined): Promise<(upload: UploadRecord) => string | null> {
+  if (batchId === undefined) return (upload) => upload.job_id;
+  const batch = await store.getBatch(batchId);
+  if (!batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${batchId} is not stored`);
+  const jobs = new Map(batch.entries.map((entry) => [entry.upload_id, entry.job_id]));
+  return (upload) => jobs.get(upload.upload_id) ?? null;
+}
+
+function onlyChannel(found: { results: AnalysisResult[] }[]): string {
+  const channels = [...new Set(found.flatMap(({ results }) => results.map((result) => result.source.channel)))];
+  if (channels.length > 1) throw new HeatpathError('REQUEST_INVALID', `the sample's results have channels ${channels.join(', ')}: choose one with ?channel=`);
+  return channels[0] ?? '1';
+}
+
+/** Structure functions compare like with like only under the same algorithm version and parameters. */
+function withComparabilityWarning(comparison: DegradationComparison, reference: AnalysisResult, later: AnalysisResult): DegradationComparison {
+  const same = reference.provenance.algorithm === later.provenance.algorithm && canonicalJson(reference.provenance.parameters) === canonicalJson(later.provenance.parameters);
+  if (same) return comparison;
+  const warning = `analysed with ${reference.provenance.algorithm === later.provenance.algorithm ? 'other parameters' : `algorithm ${later.provenance.algorithm}`} than the reference (${reference.provenance.algorithm}): reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id= to compare like with like`;
+  return { ...comparison, warnings: [...comparison.warnings, warning] };
+}

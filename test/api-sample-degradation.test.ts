@@ -1,0 +1,98 @@
+/**
+ * The LIMS's degradation trend of a power-cycling campaign
+ * (GET /v1/samples/:sample_id/degradation), real Redis and a real worker, on
+ * the bundled synthetic campaign of module M31 (test/fixtures/demo-lab: the
+ * SiC module stack whose die attach keeps 100, 90, 70 and 45 % of its
+ * conductivity at 0, 20 000, 40 000 and 60 000 cycles). Expected values: the
+ * stack's exact ladder (method-notes section 7, shared/models/layered-stack.ts)
+ * says where the die attach sits and what R the crack adds; the tolerances
+ * are those of test/cli-rthjc-degradation.test.ts. The trend must also equal
+ * what `heatpath degradation` reports for the same files.
+ */
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
+import { SIC_POWER_MODULE_STACK } from '../shared/models/example-stacks.js';
+import { layeredStackTruth } from '../shared/models/layered-stack.js';
+import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
+import { cliWorkspace, DEMO_DIR } from './support/cli-process.js';
+import { eventually } from './support/queue-test-fixture.js';
+import { rSumThroughLayer } from './support/stack-measurement.js';
+import { withLayerConductivity } from './support/stack-variants.js';
+
+const campaign = ['000000', '020000', '040000', '060000'].map((cycles) => join(DEMO_DIR, `fh-tt1_m31_cycle-${cycles}.csv`));
+const { heatpath } = cliWorkspace('heatpath-trend-');
+let ctx: ApiTestContext;
+let worker: AnalysisWorker;
+const uploadIds: string[] = [];
+
+beforeAll(async () => {
+  ctx = await startApiTestApp();
+  worker = new AnalysisWorker({ dataDir: ctx.config.dataDir, redisUrl: ctx.redisUrl, prefix: ctx.prefix });
+  // Out of cycle order, as an archive might arrive: the trend orders by the files' cycle counts.
+  for (const file of [campaign[2], campaign[0], campaign[3], campaign[1]]) {
+    const answer = await ctx.app.inject({ method: 'POST', url: '/v1/transients?sample_id=M31', headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: readFileSync(file) });
+    expect(answer.statusCode).toBe(202);
+    uploadIds.push(answer.json().upload_id);
+  }
+  await eventually(async () => (await Promise.all(uploadIds.map(async (id) => ctx.store.hasResult((await ctx.store.getUpload(id))!.job_id)))).every(Boolean));
+}, 60_000);
+afterAll(async () => {
+  await worker.close(5_000);
+  await ctx.close();
+});
+
+const trend = (query = '') => ctx.app.inject({ method: 'GET', url: `/v1/samples/M31/degradation${query}`, headers: bearer('reader') });
+
+describe('GET /v1/samples/:sample_id/degradation', () => {
+  it('orders the campaign by the files\' cycle counts and places the crack at the die attach with the R it added', async () => {
+    const answer = await trend();
+    expect(answer.statusCode).toBe(200);
+    const report = answer.json();
+    expect(report.reference.cycle_count).toBe(0);
+    expect(report.later.map((row: { cycle_count: number }) => row.cycle_count)).toEqual([20000, 40000, 60000]);
+    const changes = report.later.map((row: { rth_change_percent: number }) => row.rth_change_percent);
+    expect(changes[0]).toBeLessThan(changes[1]);
+    expect(changes[1]).toBeLessThan(changes[2]);
+
+    const truth = layeredStackTruth(SIC_POWER_MODULE_STACK);
+    const attachStart = rSumThroughLayer(SIC_POWER_MODULE_STACK, truth, 'SiC die');
+    const attachEnd = rSumThroughLayer(SIC_POWER_MODULE_STACK, truth, 'die attach solder');
+    const cracked = withLayerConductivity(SIC_POWER_MODULE_STACK, 'die attach solder', 0.45);
+    const added = rSumThroughLayer(cracked, layeredStackTruth(cracked), 'die attach solder') - attachEnd;
+    const last = report.later[2];
+    expect(last.shift_start.r_sum_K_per_W).toBeGreaterThan(attachStart - 0.01);
+    expect(last.shift_start.r_sum_K_per_W).toBeLessThan(attachEnd);
+    expect(Math.abs(last.added_r_K_per_W / added - 1)).toBeLessThan(0.05);
+    expect(report.not_included).toEqual([]);
+    expect(report.caution).toBe(RESULT_CAUTION);
+  });
+
+  it('reports what heatpath degradation reports for the same files', async () => {
+    const cli = heatpath('degradation', ...campaign, '--format', 'json');
+    expect(cli.code).toBe(0);
+    const fromCli = JSON.parse(cli.stdout);
+    const fromService = (await trend()).json();
+    expect(fromService.reference.rth_total_K_per_W).toBe(fromCli.reference.rth_total_K_per_W);
+    fromCli.later.forEach((row: Record<string, unknown>, index: number) => {
+      const { file: _file, cycles: _cycles, ...comparison } = row;
+      const { upload_id: _u, received_at: _r, cycle_count: _c, job_id: _j, ...served } = fromService.later[index];
+      expect(served).toEqual(comparison);
+    });
+  });
+
+  it('takes another reference and limit, and refuses what it cannot answer', async () => {
+    const reference = (await trend()).json().later[0].upload_id as string;
+    const report = (await trend(`?reference_upload_id=${reference}&rth_rise_limit_percent=1`)).json();
+    expect(report.reference.cycle_count).toBe(20000);
+    expect(report.later.map((row: { cycle_count: number }) => row.cycle_count)).toEqual([0, 40000, 60000]);
+    expect(report.later[2].rth_rise_exceeds_limit).toBe(true);
+
+    expect((await trend('?channel=M99')).json().code).toBe('DEGRADATION_TOO_FEW_RESULTS');
+    expect((await trend('?reference_upload_id=upl-nobody')).statusCode).toBe(404);
+    expect((await trend('?rth_rise_limit_percent=0')).statusCode).toBe(400);
+    expect((await ctx.app.inject({ method: 'GET', url: '/v1/samples/NOBODY/degradation', headers: bearer('reader') })).statusCode).toBe(404);
+  });
+});
