@@ -45,6 +45,10 @@ describe('parsed transient codec', () => {
   it('answers null for truncated, corrupted or foreign bytes instead of a wrong transient', () => {
     const encoded = encodeParsedTransient(parseTransient(fixture('fh-tt1_m07_cooling.csv'), 'm07.csv'));
     expect(decodeParsedTransient(encoded.subarray(0, encoded.length - 8))).toBeNull();
+    // A block that never reached the disk (the file is not fsynced): right length, zeros inside.
+    const zeroed = Uint8Array.from(encoded);
+    zeroed.fill(0, encoded.length - 4096, encoded.length - 2048);
+    expect(decodeParsedTransient(zeroed)).toBeNull();
     expect(decodeParsedTransient(new Uint8Array(0))).toBeNull();
     expect(decodeParsedTransient(new TextEncoder().encode('time_s,zth_K_per_W\n'))).toBeNull();
     const otherByteOrder = Buffer.from(encoded);

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { endianness } from 'node:os';
 import { isTransientQuantity, type TransientFile } from '../../shared/input/transient-file.js';
 
@@ -8,10 +9,13 @@ import { isTransientQuantity, type TransientFile } from '../../shared/input/tran
  * 100 kB CSV is about a tenth of an analysis.
  *
  * Layout: a 4-byte little-endian length L, L bytes of JSON header
- * ({ quantity, meta, channel_names, samples, byte_order }), zero padding to a
- * multiple of 8, then the time axis and each channel as raw doubles in the
- * writer's byte order. A reader on the other byte order, or anything that
- * does not decode, gets null and parses the raw bytes again.
+ * ({ quantity, meta, channel_names, samples, byte_order, data_sha256 }), zero
+ * padding to a multiple of 8, then the time axis and each channel as raw
+ * doubles in the writer's byte order. The file is not fsynced (it can be
+ * derived again), so after a power loss it may hold blocks that never
+ * reached the disk: the SHA-256 of the doubles makes such a file, a reader on
+ * the other byte order, or anything else that does not decode, give null, and
+ * the caller parses the raw bytes again rather than analyse wrong samples.
  */
 interface ParsedTransientHeader {
   quantity: string;
@@ -19,23 +23,28 @@ interface ParsedTransientHeader {
   channel_names: string[];
   samples: number;
   byte_order: 'LE' | 'BE';
+  data_sha256: string;
 }
 
 export function encodeParsedTransient(file: TransientFile): Uint8Array {
+  const samples = file.time_s.length;
+  const arrays = [file.time_s, ...file.channels.map((channel) => channel.values)];
+  const data = new Uint8Array(arrays.length * samples * 8);
+  arrays.forEach((values, k) => data.set(new Uint8Array(values.buffer, values.byteOffset, values.byteLength), k * samples * 8));
   const header: ParsedTransientHeader = {
     quantity: file.quantity,
     meta: file.meta,
     channel_names: file.channels.map((channel) => channel.name),
-    samples: file.time_s.length,
+    samples,
     byte_order: endianness(),
+    data_sha256: createHash('sha256').update(data).digest('hex'),
   };
   const headerBytes = Buffer.from(JSON.stringify(header), 'utf8');
   const dataStart = alignTo8(4 + headerBytes.length);
-  const arrays = [file.time_s, ...file.channels.map((channel) => channel.values)];
-  const out = new Uint8Array(dataStart + arrays.length * file.time_s.length * 8);
+  const out = new Uint8Array(dataStart + data.length);
   new DataView(out.buffer).setUint32(0, headerBytes.length, true);
   out.set(headerBytes, 4);
-  arrays.forEach((values, k) => out.set(new Uint8Array(values.buffer, values.byteOffset, values.byteLength), dataStart + k * header.samples * 8));
+  out.set(data, dataStart);
   return out;
 }
 
@@ -48,7 +57,8 @@ export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
     const dataStart = alignTo8(4 + headerLength);
     if (
       header.byte_order !== endianness() || !isTransientQuantity(header.quantity) || !Number.isInteger(samples) || samples < 0 ||
-      !Array.isArray(names) || bytes.length !== dataStart + (names.length + 1) * samples * 8
+      !Array.isArray(names) || bytes.length !== dataStart + (names.length + 1) * samples * 8 ||
+      createHash('sha256').update(bytes.subarray(dataStart)).digest('hex') !== header.data_sha256
     ) {
       return null;
     }
