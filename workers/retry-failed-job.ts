@@ -3,8 +3,6 @@ import type { TransientStore } from '../services/store/transient-store.js';
 import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
 import { reprocessedUpload } from './reprocess-batch.js';
 
-export type RetryOutcome = 'queued' | 'already-queued';
-
 /**
  * Runs a failed job again, for the admin, once whatever made it fail (a full
  * disk, a store or Redis outage, a killed machine) is mended. A final failure
@@ -20,14 +18,15 @@ export type RetryOutcome = 'queued' | 'already-queued';
 export class FailedJobRetry {
   constructor(private readonly store: TransientStore, private readonly queue: AnalysisQueue) {}
 
-  async retry(jobId: string): Promise<RetryOutcome> {
+  /** Queues the failed job again; a job Redis still holds queued or running is left as it is. */
+  async retry(jobId: string): Promise<void> {
     if (await this.store.hasResult(jobId)) throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} completed: its result is stored`);
     const failure = await this.store.getFailure(jobId);
     if (failure?.code) {
       throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} failed with ${failure.code} (${failure.message}): its input or parameters are at fault`);
     }
     const held = await this.queue.getHeldJob(jobId);
-    if (held && held.state !== 'failed') return 'already-queued';
+    if (held && held.state !== 'failed') return;
     const origin = failure ?? held?.data;
     if (!origin) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known: neither a stored failure nor the queue names it`);
     const upload = await this.store.getUpload(origin.upload_id);
@@ -41,6 +40,5 @@ export class FailedJobRetry {
     if (!(await this.queue.retryFailed(jobId))) {
       await this.queue.enqueue(job, { priority: batch ? JOB_PRIORITY.batch : JOB_PRIORITY.interactive, batchId: batch?.batch_id ?? null });
     }
-    return 'queued';
   }
 }
