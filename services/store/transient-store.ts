@@ -1,12 +1,14 @@
 import { createHash } from 'node:crypto';
-import { access, constants, mkdir, readdir, readFile, stat, unlink } from 'node:fs/promises';
-import { basename, join } from 'node:path';
+import { access, constants, mkdir, stat } from 'node:fs/promises';
+import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { canonicalJson } from '../jobs/canonical-json.js';
 import { createFileExclusive, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
 import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient-codec.js';
+import { exists, listNames, readJson, readOrNull, unlinkIfPresent } from './store-files.js';
+import { UploadSummaryIndex, type UploadSummary } from './upload-summary-index.js';
 import type {
   BatchRecord,
   CalibrationRecord,
@@ -31,15 +33,6 @@ export function isStoreId(id: string): boolean {
 export function sha256Hex(bytes: Uint8Array | string): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
-
-/**
- * What listing and recovery need of an upload record. Upload records are
- * written once, so each process reads each record once and keeps this much of
- * it (about 0.5 kB of heap): listings then cost the directory reads plus the
- * records they return (46-86 ms per sample listing at 20,000 uploads,
- * measured) instead of a read of every record (about 2 s).
- */
-export type UploadSummary = Pick<UploadRecord, 'upload_id' | 'sample_id' | 'bench' | 'tags' | 'received_at' | 'job_id' | 'input_sha256'>;
 
 export interface StoredBlob {
   sha256: string;
@@ -68,12 +61,11 @@ export interface StoredBlob {
  * records use an exclusive create: the first writer wins, later ones are no-ops.
  */
 export class TransientStore {
-  /** Upload summaries by record path, this process's view of uploads/ (see UploadSummary). */
-  private readonly uploadSummaries = new Map<string, UploadSummary>();
-  private summaryScan: Promise<void> | null = null;
-  private nextSummaryScan: Promise<void> | null = null;
+  private readonly uploadSummaries: UploadSummaryIndex;
 
-  constructor(readonly dataDir: string) {}
+  constructor(readonly dataDir: string) {
+    this.uploadSummaries = new UploadSummaryIndex(join(dataDir, 'uploads'), LIST_READ_CONCURRENCY);
+  }
 
   // ---- raw transients ----
 
@@ -114,7 +106,7 @@ export class TransientStore {
   async putUpload(record: UploadRecord): Promise<void> {
     const path = this.shardedPath('uploads', requireId(record.upload_id));
     await writeFileAtomic(path, JSON.stringify(record));
-    this.uploadSummaries.set(path, summaryOf(record));
+    this.uploadSummaries.note(path, record);
   }
 
   async getUpload(uploadId: string): Promise<UploadRecord | null> {
@@ -123,10 +115,7 @@ export class TransientStore {
 
   /** Summaries of the uploads matching every given field of the filter, oldest first. */
   async listUploadSummaries(filter: UploadFilter = {}): Promise<UploadSummary[]> {
-    await this.scanUploadSummaries();
-    return [...this.uploadSummaries.values()]
-      .filter((upload) => uploadMatches(upload, filter))
-      .sort((a, b) => a.received_at.localeCompare(b.received_at) || a.upload_id.localeCompare(b.upload_id));
+    return this.uploadSummaries.list(filter);
   }
 
   /** Uploads matching every given field of the filter, oldest first. */
@@ -138,40 +127,6 @@ export class TransientStore {
       for (const record of read) if (record !== null) records.push(record);
     }
     return records;
-  }
-
-  /**
-   * Brings this process's summaries up to date with uploads/ (records other
-   * processes wrote). A call during a scan waits for the next scan, which
-   * starts after the running one, so it sees every record written before it
-   * was made; calls meanwhile share that next scan.
-   */
-  private scanUploadSummaries(): Promise<void> {
-    if (this.summaryScan === null) {
-      this.summaryScan = this.readNewUploadSummaries().finally(() => (this.summaryScan = null));
-      return this.summaryScan;
-    }
-    this.nextSummaryScan ??= this.summaryScan.then(
-      () => undefined,
-      () => undefined,
-    ).then(() => {
-      this.nextSummaryScan = null;
-      return this.scanUploadSummaries();
-    });
-    return this.nextSummaryScan;
-  }
-
-  private async readNewUploadSummaries(): Promise<void> {
-    const root = join(this.dataDir, 'uploads');
-    const perShard = await Promise.all((await listNames(root)).map(async (shard) => (await listNames(join(root, shard))).map((name) => join(root, shard, name))));
-    const unseen = perShard.flat().filter((path) => path.endsWith('.json') && !basename(path).startsWith('.') && !this.uploadSummaries.has(path));
-    for (let start = 0; start < unseen.length; start += LIST_READ_CONCURRENCY) {
-      const chunk = unseen.slice(start, start + LIST_READ_CONCURRENCY);
-      const read = await Promise.all(chunk.map((path) => readJson<UploadRecord>(path)));
-      read.forEach((record, k) => {
-        if (record !== null) this.uploadSummaries.set(chunk[k], summaryOf(record));
-      });
-    }
   }
 
   // ---- results and failures ----
@@ -357,21 +312,6 @@ export function isJobFinished(outcomes: JobOutcomes, jobId: string): boolean {
   return outcomes.done.has(jobId) || outcomes.failed.has(jobId);
 }
 
-function summaryOf(record: UploadRecord): UploadSummary {
-  const { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256 } = record;
-  return { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256 };
-}
-
-function uploadMatches(upload: UploadSummary, filter: UploadFilter): boolean {
-  return (
-    (filter.sample_id === undefined || upload.sample_id === filter.sample_id) &&
-    (filter.bench === undefined || upload.bench === filter.bench) &&
-    (filter.tag === undefined || upload.tags.includes(filter.tag)) &&
-    (filter.received_from === undefined || upload.received_at >= filter.received_from) &&
-    (filter.received_to === undefined || upload.received_at < filter.received_to)
-  );
-}
-
 function requireId(id: string): string {
   if (!isStoreId(id)) throw new Error(`not a valid store id: ${JSON.stringify(id)}`);
   return id;
@@ -382,49 +322,3 @@ function requireSha256(sha256: string): string {
   return sha256;
 }
 
-function isMissing(error: unknown): boolean {
-  return (error as NodeJS.ErrnoException).code === 'ENOENT';
-}
-
-async function exists(path: string): Promise<boolean> {
-  try {
-    await access(path);
-    return true;
-  } catch {
-    return false;
-  }
-}
-
-/** Removes a file; false when there was none. */
-async function unlinkIfPresent(path: string): Promise<boolean> {
-  try {
-    await unlink(path);
-    return true;
-  } catch (error) {
-    if (isMissing(error)) return false;
-    throw error;
-  }
-}
-
-async function readOrNull(path: string): Promise<Uint8Array | null> {
-  try {
-    return await readFile(path);
-  } catch (error) {
-    if (isMissing(error)) return null;
-    throw error;
-  }
-}
-
-async function readJson<T>(path: string): Promise<T | null> {
-  const bytes = await readOrNull(path);
-  return bytes === null ? null : (JSON.parse(Buffer.from(bytes).toString('utf8')) as T);
-}
-
-async function listNames(directory: string): Promise<string[]> {
-  try {
-    return await readdir(directory);
-  } catch (error) {
-    if (isMissing(error)) return [];
-    throw error;
-  }
-}
