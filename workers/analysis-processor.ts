@@ -116,7 +116,8 @@ async function parsedTransient(sha256: string, bytes: Uint8Array, upload: Upload
   const kept = await store.getParsedTransient(sha256, upload.format);
   if (kept) return kept;
   const parsed = parseTransient(bytes, upload.file_name, upload.format);
-  await store.putParsedTransient(sha256, upload.format, parsed);
+  // Derived: a parse that cannot be kept is made again next time, never a failed job.
+  await store.putParsedTransient(sha256, upload.format, parsed).catch(() => undefined);
   return parsed;
 }
 

@@ -30,7 +30,13 @@ async function writeTemporary(target: string, bytes: Uint8Array | string, durabl
   const directory = dirname(target);
   await ensureDirectory(directory);
   const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
-  const handle = await open(temporary, 'wx');
+  const handle = await open(temporary, 'wx').catch(async (error: NodeJS.ErrnoException) => {
+    // The directory went away since this process made it (an admin cleared a derived folder): make it again.
+    if (error.code !== 'ENOENT') throw error;
+    createdDirectories.delete(directory);
+    await ensureDirectory(directory);
+    return open(temporary, 'wx');
+  });
   try {
     await handle.writeFile(bytes);
     if (durable) await handle.sync();
@@ -67,6 +73,18 @@ export async function writeDerivedFile(target: string, bytes: Uint8Array | strin
     await unlink(temporary).catch(() => undefined);
     throw error;
   }
+}
+
+/** Removes `target` and fsyncs its directory, so the removal survives a power loss; false when there was no file. */
+export async function removeFileDurably(target: string): Promise<boolean> {
+  try {
+    await unlink(target);
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') return false;
+    throw error;
+  }
+  await fsyncPath(dirname(target), 'r');
+  return true;
 }
 
 /**

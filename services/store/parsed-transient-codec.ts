@@ -9,7 +9,8 @@ import { isTransientQuantity, type TransientFile } from '../../shared/input/tran
  * 100 kB CSV is about a tenth of an analysis.
  *
  * Layout: a 4-byte little-endian length L, L bytes of JSON header
- * ({ quantity, meta, channel_names, samples, byte_order, data_sha256 }), zero
+ * ({ kept_parse: 1, quantity, meta, channel_names, samples, byte_order,
+ * data_sha256 }; kept_parse is this layout's version), zero
  * padding to a multiple of 8, then the time axis and each channel as raw
  * doubles in the writer's byte order. The file is not fsynced (it can be
  * derived again), so after a power loss it may hold blocks that never
@@ -17,7 +18,10 @@ import { isTransientQuantity, type TransientFile } from '../../shared/input/tran
  * the other byte order, or anything else that does not decode, give null, and
  * the caller parses the raw bytes again rather than analyse wrong samples.
  */
+const LAYOUT_VERSION = 1;
+
 interface ParsedTransientHeader {
+  kept_parse: number;
   quantity: string;
   meta: Record<string, string>;
   channel_names: string[];
@@ -32,6 +36,7 @@ export function encodeParsedTransient(file: TransientFile): Uint8Array {
   const data = new Uint8Array(arrays.length * samples * 8);
   arrays.forEach((values, k) => data.set(new Uint8Array(values.buffer, values.byteOffset, values.byteLength), k * samples * 8));
   const header: ParsedTransientHeader = {
+    kept_parse: LAYOUT_VERSION,
     quantity: file.quantity,
     meta: file.meta,
     channel_names: file.channels.map((channel) => channel.name),
@@ -52,12 +57,14 @@ export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
   try {
     if (bytes.length < 4) return null;
     const headerLength = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(0, true);
-    const header = JSON.parse(Buffer.from(bytes.buffer, bytes.byteOffset + 4, headerLength).toString('utf8')) as ParsedTransientHeader;
+    if (4 + headerLength > bytes.length) return null;
+    const header = JSON.parse(Buffer.from(bytes.subarray(4, 4 + headerLength)).toString('utf8')) as ParsedTransientHeader;
     const { samples, channel_names: names } = header;
     const dataStart = alignTo8(4 + headerLength);
     if (
-      header.byte_order !== endianness() || !isTransientQuantity(header.quantity) || !Number.isInteger(samples) || samples < 0 ||
-      !Array.isArray(names) || bytes.length !== dataStart + (names.length + 1) * samples * 8 ||
+      header.kept_parse !== LAYOUT_VERSION || header.byte_order !== endianness() || !isTransientQuantity(header.quantity) || !Number.isInteger(samples) || samples < 0 ||
+      !Array.isArray(names) || !names.every((name) => typeof name === 'string') || !isStringRecord(header.meta) ||
+      bytes.length !== dataStart + (names.length + 1) * samples * 8 ||
       createHash('sha256').update(bytes.subarray(dataStart)).digest('hex') !== header.data_sha256
     ) {
       return null;
@@ -68,6 +75,10 @@ export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
   } catch {
     return null;
   }
+}
+
+function isStringRecord(value: unknown): value is Record<string, string> {
+  return typeof value === 'object' && value !== null && !Array.isArray(value) && Object.values(value).every((entry) => typeof entry === 'string');
 }
 
 function alignTo8(length: number): number {

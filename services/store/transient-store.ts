@@ -5,7 +5,7 @@ import type { Calibration } from '../../shared/schemas/calibration.js';
 import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { canonicalJson } from '../jobs/canonical-json.js';
-import { createFileExclusive, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
+import { createFileExclusive, removeFileDurably, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
 import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient-codec.js';
 import { exists, listNames, readJson, readOrNull, unlinkIfPresent } from './store-files.js';
 import { UploadSummaryIndex, type UploadSummary } from './upload-summary-index.js';
@@ -94,10 +94,10 @@ export class TransientStore {
     await writeDerivedFile(this.parsedPath(requireSha256(sha256), format), encodeParsedTransient(file));
   }
 
-  /** The kept parse of a blob read as `format`, or null (none kept, another algorithm version's, or unreadable): then parse the blob. */
+  /** The kept parse of a blob read as `format`, or null (none kept, another algorithm version's, damaged, or not readable at all): then parse the blob. */
   async getParsedTransient(sha256: string, format: UploadRecord['format']): Promise<TransientFile | null> {
     if (!SHA256_HEX.test(sha256)) return null;
-    const bytes = await readOrNull(this.parsedPath(sha256, format));
+    const bytes = await readOrNull(this.parsedPath(sha256, format)).catch(() => null);
     return bytes ? decodeParsedTransient(bytes) : null;
   }
 
@@ -151,7 +151,7 @@ export class TransientStore {
 
   /** Removes a job's final failure (before it is retried); returns whether there was one. */
   async deleteFailure(jobId: string): Promise<boolean> {
-    return isStoreId(jobId) && unlinkIfPresent(this.shardedPath('failures', jobId));
+    return isStoreId(jobId) && removeFileDurably(this.shardedPath('failures', jobId));
   }
 
   async getFailure(jobId: string): Promise<FailureRecord | null> {

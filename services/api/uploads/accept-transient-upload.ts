@@ -102,8 +102,12 @@ export async function acceptTransientUpload(
   // own fsyncs, so together they take the time of one. A crash between them
   // leaves a record without its bytes, which was never acknowledged and which
   // recovery leaves alone (recover-uploads.ts). The parse is kept beside them
-  // for the analysis; it is derived, so losing it costs only a parse.
-  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), store.putParsedTransient(inputSha256, record.format, transient)]);
+  // for the analysis; it is derived, so failing to keep it costs only a parse
+  // later and never fails the upload.
+  const keepParse = store
+    .putParsedTransient(inputSha256, record.format, transient)
+    .catch((error: unknown) => log.warn({ err: error, upload_id: record.upload_id }, 'parse not kept; the analysis parses the raw bytes'));
+  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), keepParse]);
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
