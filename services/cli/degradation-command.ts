@@ -2,6 +2,7 @@ import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../shared/analysis/package-degradation.js';
 import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { cycleCountFromMeta } from '../../shared/input/cycle-count.js';
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
 import { analyzeComparedFiles, type ComparedMeasurement } from './compared-measurements.js';
@@ -52,21 +53,14 @@ export interface DegradationRow {
 }
 
 function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, limitPercent: number): DegradationRow {
-  return { measurement, cycles: cycleCount(measurement), comparison: compareForDegradation(reference.result, measurement.result, limitPercent) };
-}
-
-/** The file's `# cycle_count:` header as a number; null when absent or not a number. */
-function cycleCount(measurement: ComparedMeasurement): number | null {
-  const text = measurement.meta.cycle_count;
-  const value = text === undefined ? NaN : Number(text);
-  return text !== undefined && text.trim() !== '' && Number.isFinite(value) ? value : null;
+  return { measurement, cycles: cycleCountFromMeta(measurement.meta), comparison: compareForDegradation(reference.result, measurement.result, limitPercent) };
 }
 
 /** The JSON object of `heatpath degradation --format json`. */
 export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number) {
   return {
     heatpath_degradation: 1,
-    reference: { file: reference.file, cycles: cycleCount(reference), rth_total_K_per_W: reference.result.rth_total_K_per_W },
+    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W },
     rth_rise_limit_percent: limitPercent,
     later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
     notes: DEGRADATION_NOTES,
@@ -76,7 +70,7 @@ export function degradationReport(reference: ComparedMeasurement, rows: Degradat
 
 /** The readable table of `heatpath degradation`: one row per later file. */
 export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number): string {
-  const referenceCycles = cycleCount(reference);
+  const referenceCycles = cycleCountFromMeta(reference.meta);
   const header = ['file', 'cycles', 'Rth total', 'change', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
   const table = rows.map(({ measurement, cycles, comparison }) => [
     measurement.file,

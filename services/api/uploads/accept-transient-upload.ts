@@ -1,6 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import type { FastifyBaseLogger } from 'fastify';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { cycleCountFromMeta } from '../../../shared/input/cycle-count.js';
 import { parseTransient } from '../../../shared/input/parse-transient.js';
 import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
@@ -90,7 +91,7 @@ export async function acceptTransientUpload(
     sample_id: metadata.sample_id,
     bench: metadata.bench ?? null,
     channel: metadata.channel ?? null,
-    cycle_count: metadata.cycle_count ?? cycleCountOf(transient.meta),
+    cycle_count: metadata.cycle_count ?? cycleCountFromMeta(transient.meta),
     tags: metadata.tags ?? [],
     power,
     calibration_id: calibrationId,
@@ -153,12 +154,6 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
 /** As the parser decides when not told: JSON when the text starts with '{' (trim drops a byte-order mark too). */
 function formatOf(upload: UploadRequest): UploadRecord['format'] {
   return upload.format ?? (upload.bytes.toString('utf8').trimStart().startsWith('{') ? 'json' : 'csv');
-}
-
-/** The file's `# cycle_count:` line when the request names none, as `heatpath degradation` reads it: a whole number of cycles, else none. */
-function cycleCountOf(meta: Record<string, string>): number | null {
-  const text = meta.cycle_count?.trim();
-  return text !== undefined && /^\d+$/.test(text) && Number.isSafeInteger(Number(text)) ? Number(text) : null;
 }
 
 function powerOf(metadata: UploadMetadata): Power | null {
