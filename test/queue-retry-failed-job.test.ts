@@ -91,6 +91,20 @@ describe('retrying failed jobs', () => {
     expect((await batches.progress(batch.batch_id))!.failed).toBe(0);
   });
 
+  it('refuses a failed job of a cancelled batch and keeps its failure', async () => {
+    const { upload } = await uploadWithLostBytes(14);
+    const batches = new BatchReprocessor(ctx.store, ctx.queue);
+    const batch = await batches.create({ selection: { sample_id: 'S-RETRY' }, parameters: { compact_stages: 2 }, created_by: 'test' });
+    const [entry] = (await ctx.store.getBatch(batch.batch_id))!.entries;
+    await eventually(async () => (await ctx.store.getFailure(entry.job_id)) !== null);
+    await batches.cancel(batch.batch_id);
+    const refused = await retry(entry.job_id);
+    expect(refused.statusCode).toBe(409);
+    expect(refused.json().detail).toMatch(/cancelled/);
+    expect(await ctx.store.getFailure(entry.job_id)).not.toBeNull();
+    expect(upload.job_id).not.toBe(entry.job_id);
+  });
+
   it('refuses a job whose input was at fault (409, failure kept), an unknown job (404) and a bench key (403)', async () => {
     const bad = await storedUpload(13, Buffer.from('time_s,temperature_C\n'));
     await ctx.queue.enqueue(bad, { priority: JOB_PRIORITY.interactive });

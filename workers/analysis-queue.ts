@@ -127,11 +127,20 @@ export class AnalysisQueue {
     return job ? { state: await job.getState(), data: job.data } : null;
   }
 
-  /** Moves a failed job back to the queue with its attempts reset; false when Redis does not hold it as failed. */
+  /**
+   * Moves a failed job back to the queue with its attempts reset; false when
+   * Redis does not hold the job. A job that left the failed state meanwhile
+   * (another retry was quicker) counts as moved.
+   */
   async retryFailed(jobId: string): Promise<boolean> {
     const job = await this.queue.getJob(jobId);
-    if (!job || (await job.getState()) !== 'failed') return false;
-    await job.retry('failed', { resetAttemptsMade: true, resetAttemptsStarted: true });
+    if (!job) return false;
+    if ((await job.getState()) !== 'failed') return true;
+    try {
+      await job.retry('failed', { resetAttemptsMade: true, resetAttemptsStarted: true });
+    } catch (error) {
+      if ((await job.getState()) === 'failed') throw error;
+    }
     return true;
   }
 

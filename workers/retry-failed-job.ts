@@ -10,10 +10,11 @@ import { reprocessedUpload } from './reprocess-batch.js';
  * this only new parameters (a batch) would redo it.
  *
  * A failure whose input or parameters were at fault (it has an error code)
- * is deterministic: the same job would fail the same way, so it is refused.
- * The stored failure is removed before the job is queued: should queueing
- * fail (Redis away), the job is pending again and the recovery sweep or the
- * batch re-queue offers it, and the admin may retry once more.
+ * is deterministic: the same job would fail the same way, so it is refused,
+ * and so is a job of a cancelled batch (start a new batch instead). The
+ * stored failure is removed before the job is queued, so that a new failure
+ * can be recorded; should queueing fail (Redis away), it is written back and
+ * the admin retries once Redis answers.
  */
 export class FailedJobRetry {
   constructor(private readonly store: TransientStore, private readonly queue: AnalysisQueue) {}
@@ -33,12 +34,18 @@ export class FailedJobRetry {
     if (!upload) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${origin.upload_id} of job ${jobId} is not stored`);
     const batch = origin.batch_id ? await this.store.getBatch(origin.batch_id) : null;
     if (origin.batch_id && !batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${origin.batch_id} of job ${jobId} is not stored`);
+    if (batch?.status === 'cancelled') throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} belongs to batch ${batch.batch_id}, which was cancelled: start a new batch to reprocess its uploads`);
     const job = batch ? reprocessedUpload(upload, batch) : upload;
     if (job.job_id !== jobId) throw new HeatpathError('INTERNAL_ERROR', `job ${jobId} does not follow from upload ${upload.upload_id}${batch ? ` and batch ${batch.batch_id}` : ''}`);
 
     await this.store.deleteFailure(jobId);
-    if (!(await this.queue.retryFailed(jobId))) {
-      await this.queue.enqueue(job, { priority: batch ? JOB_PRIORITY.batch : JOB_PRIORITY.interactive, batchId: batch?.batch_id ?? null });
+    try {
+      if (!(await this.queue.retryFailed(jobId))) {
+        await this.queue.enqueue(job, { priority: batch ? JOB_PRIORITY.batch : JOB_PRIORITY.interactive, batchId: batch?.batch_id ?? null });
+      }
+    } catch (error) {
+      if (failure) await this.store.putFailure(failure);
+      throw error;
     }
   }
 }
