@@ -67,6 +67,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(last.shift_start.r_sum_K_per_W).toBeLessThan(attachEnd);
     expect(Math.abs(last.added_r_K_per_W / added - 1)).toBeLessThan(0.05);
     expect(report.not_included).toEqual([]);
+    expect(report.warnings).toEqual([]);
     expect(report.caution).toBe(RESULT_CAUTION);
   });
 

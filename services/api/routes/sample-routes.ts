@@ -50,8 +50,9 @@ const SampleDegradationSchema = Type.Object({
   reference: MeasurementSchema,
   later: Type.Array(Type.Object({ ...MeasurementSchema.properties, ...DegradationComparisonSchema.properties }), { description: 'In cycle order.' }),
   not_included: Type.Array(Type.Object({ upload_id: Type.String(), job_id: Type.Union([Type.String(), Type.Null()]), reason: Type.String() }), {
-    description: 'Uploads of the sample left out: analysis pending or failed, the channel missing, or not in the batch.',
+    description: 'Uploads of the sample left out: analysis pending or failed, the channel missing, not in the batch, or not comparable with the reference.',
   }),
+  warnings: Type.Array(Type.String()),
   notes: Type.Array(Type.String()),
   caution: Type.String(),
 });
@@ -124,13 +125,13 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
             channel: Type.Optional(Type.String({ maxLength: 64, description: 'The result channel to follow; needed when the results have several.' })),
             reference_upload_id: Type.Optional(Type.String({ maxLength: 160, description: 'The reference measurement; default: the first in cycle order.' })),
             batch_id: Type.Optional(Type.String({ maxLength: 160, description: 'Read the jobs of this reprocessing batch instead of the uploads\' own jobs.' })),
-            rth_rise_limit_percent: Type.Number({ exclusiveMinimum: 0, default: DEFAULT_RTH_RISE_LIMIT_PERCENT, description: 'Flag an Rth rise above this (20 % is a common end-of-life criterion, recalled from memory; the qualification plan and AQG 324 decide).' }),
+            rth_rise_limit_percent: Type.Optional(Type.Number({ exclusiveMinimum: 0, default: DEFAULT_RTH_RISE_LIMIT_PERCENT, description: 'Flag an Rth rise above this (20 % is a common end-of-life criterion, recalled from memory; the qualification plan and AQG 324 decide).' })),
           },
           { additionalProperties: false },
         ),
         response: { 200: SampleDegradationSchema },
       },
     },
-    async (request) => sampleDegradation(store, request.params.sample_id, request.query),
+    async (request) => sampleDegradation(store, request.params.sample_id, { ...request.query, rth_rise_limit_percent: request.query.rth_rise_limit_percent ?? DEFAULT_RTH_RISE_LIMIT_PERCENT }),
   );
 };

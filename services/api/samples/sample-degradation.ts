@@ -1,7 +1,8 @@
 import { canonicalJson } from '../../jobs/canonical-json.js';
 import { compareForDegradation, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
-import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { reprocessedUpload } from '../../../workers/reprocess-batch.js';
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { DegradationComparison } from '../../../shared/schemas/degradation-comparison.js';
 import type { UploadRecord } from '../../store/store-records.js';
@@ -65,10 +66,22 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     throw new HeatpathError('DEGRADATION_TOO_FEW_RESULTS', `sample ${sampleId} has ${measurements.length} completed analysis(es) of channel ${channel}, ${notIncluded.length} upload(s) not included`);
   }
   const reference = measurements[referenceIndex];
-  const later = measurements.filter((_, index) => index !== referenceIndex).map((measurement) => ({
-    ...measurementOf(measurement),
-    ...withComparabilityWarning(compareForDegradation(reference.result, measurement.result, options.rth_rise_limit_percent), reference.result, measurement.result),
-  }));
+  const later = [];
+  for (const measurement of measurements.filter((_, index) => index !== referenceIndex)) {
+    try {
+      const comparison = compareForDegradation(reference.result, measurement.result, options.rth_rise_limit_percent);
+      later.push({ ...measurementOf(measurement), ...withComparabilityWarning(comparison, reference.result, measurement.result) });
+    } catch (error) {
+      // One measurement that cannot be compared (another device, no common C_sum range) leaves the others' trend standing.
+      if (!isHeatpathError(error)) throw error;
+      notIncluded.push({ upload_id: measurement.upload.upload_id, job_id: measurement.job_id, reason: `not comparable with the reference: ${error.message}` });
+    }
+  }
+  const warnings: string[] = [];
+  const firstUpload = inCycleOrder(uploads)[0];
+  if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
+    warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
+  }
   return {
     sample_id: sampleId,
     channel,
@@ -77,6 +90,7 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     reference: measurementOf(reference),
     later,
     not_included: notIncluded,
+    warnings,
     notes: DEGRADATION_NOTES,
     caution: RESULT_CAUTION,
   };
@@ -92,8 +106,12 @@ async function jobChooser(store: TransientStore, batchId: string | undefined): P
   if (batchId === undefined) return (upload) => upload.job_id;
   const batch = await store.getBatch(batchId);
   if (!batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${batchId} is not stored`);
-  const jobs = new Map(batch.entries.map((entry) => [entry.upload_id, entry.job_id]));
-  return (upload) => jobs.get(upload.upload_id) ?? null;
+  // A batch lists one entry per job: uploads of identical content share it, so ask by job, not by upload.
+  const jobs = new Set(batch.entries.map((entry) => entry.job_id));
+  return (upload) => {
+    const jobId = reprocessedUpload(upload, batch).job_id;
+    return jobs.has(jobId) ? jobId : null;
+  };
 }
 
 function onlyChannel(found: { results: AnalysisResult[] }[]): string {
