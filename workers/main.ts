@@ -87,14 +87,16 @@ async function runWorkerProcess(): Promise<void> {
   let metrics: WorkerMetricsServer | undefined;
   let metricsRegistry: Registry | undefined;
   if (config.queue.workerMetricsPort !== null) {
+    // Bound before any job is taken: a port in use stops the process here, not mid-job.
     metricsRegistry = new Registry();
     collectDefaultMetrics({ register: metricsRegistry, prefix: 'heatpath_worker_' });
-  }
-  const workers = await startWorkers({ config, logger, metricsRegistry });
-  if (metricsRegistry) {
-    metrics = await startWorkerMetricsServer(metricsRegistry, { host: config.host, port: config.queue.workerMetricsPort! });
+    metrics = await startWorkerMetricsServer(metricsRegistry, { host: config.host, port: config.queue.workerMetricsPort }).catch((error: NodeJS.ErrnoException) => {
+      process.stderr.write(`heatpath: the worker metrics cannot be served on ${config.host}:${config.queue.workerMetricsPort} (${error.code ?? error.message}): free the port or set another HEATPATH_WORKER_METRICS_PORT\n`);
+      process.exit(1);
+    });
     logger.info({ url: `http://${config.host}:${metrics.port}/metrics` }, 'worker metrics served');
   }
+  const workers = await startWorkers({ config, logger, metricsRegistry });
   let stopping = false;
   const stop = (signal: string) => {
     if (stopping) return;
