@@ -50,9 +50,11 @@ export class UploadRecovery {
     const outcomes = await this.store.jobOutcomes();
     for (const summary of await this.store.listUploadSummaries()) {
       if (isJobFinished(outcomes, summary.job_id)) continue;
-      const upload = (await this.store.hasBlob(summary.input_sha256)) ? await this.store.getUpload(summary.upload_id) : null;
-      if (upload) pending.push(upload);
-      else unacknowledged.push(summary.upload_id);
+      // A record removed since this process read it is no upload any more.
+      const upload = await this.store.getUpload(summary.upload_id);
+      if (!upload) continue;
+      if (await this.store.hasBlob(upload.input_sha256)) pending.push(upload);
+      else unacknowledged.push(upload.upload_id);
     }
     for (let start = 0; start < pending.length; start += ENQUEUE_CHUNK) {
       await this.queue.enqueueMany(pending.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.interactive });
