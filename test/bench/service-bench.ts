@@ -154,6 +154,7 @@ try {
         method: 'POST', agent,
         headers: { authorization: `Bearer ${TOKEN}`, 'content-type': 'text/csv', 'content-length': body.length },
       }, (response) => {
+        response.once('error', reject).once('aborted', () => reject(new Error('bench: upload answer aborted')));
         response.resume();
         response.once('end', () => (response.statusCode === 202 ? resolve(performance.now() - t0) : reject(new Error(`bench: upload answered HTTP ${response.statusCode}`))));
       });
@@ -208,7 +209,8 @@ try {
   const parallel = mean(baselines.map((b) => b.parallel));
   const ratios = rounds.map((r, k) => r.endToEnd / ((baselines[k].parallel + baselines[k + 1].parallel) / 2));
   const sortedRatios = [...ratios].sort((a, b) => a - b);
-  const medianRatio = sortedRatios[Math.floor((sortedRatios.length - 1) / 2)];
+  const middle = sortedRatios.length / 2;
+  const medianRatio = sortedRatios.length % 2 === 1 ? sortedRatios[Math.floor(middle)] : (sortedRatios[middle - 1] + sortedRatios[middle]) / 2;
   const endToEnd = mean(rounds.map((r) => r.endToEnd));
   const sum = (key: 'seconds' | 'uploadSeconds' | 'clientCpuSeconds' | 'serviceCpuSeconds') => rounds.reduce((total, r) => total + r[key], 0);
 
