@@ -52,6 +52,9 @@ async function uploadWithLostBytes(seed: number): Promise<{ upload: UploadRecord
   return { upload, bytes };
 }
 
+/** Failed for good: the stored failure and the queue's state (the processor stores the first just before the queue records the second). */
+const failedFor = (jobId: string) =>
+  eventually(async () => (await ctx.store.getFailure(jobId)) !== null && (await ctx.queue.getJobState(jobId))?.state === 'failed');
 const retry = (jobId: string, role: 'admin' | 'bench' = 'admin') => ctx.app.inject({ method: 'POST', url: `/v1/jobs/${jobId}/retry`, headers: bearer(role) });
 const jobState = async (jobId: string) => (await ctx.app.inject({ method: 'GET', url: `/v1/jobs/${jobId}`, headers: bearer('reader') })).json().state as string;
 
@@ -59,7 +62,7 @@ describe('retrying failed jobs', () => {
   it('runs a job that failed for a lost raw transient again once the bytes are restored, with one result and no failure left', async () => {
     const { upload, bytes } = await uploadWithLostBytes(11);
     await ctx.queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
-    await eventually(async () => (await ctx.store.getFailure(upload.job_id)) !== null);
+    await failedFor(upload.job_id);
     expect(await jobState(upload.job_id)).toBe('failed');
 
     await ctx.store.putBlob(bytes);
@@ -82,7 +85,8 @@ describe('retrying failed jobs', () => {
     const batch = await batches.create({ selection: { sample_id: 'S-RETRY' }, parameters: { compact_stages: 3 }, created_by: 'test' });
     const [entry] = (await ctx.store.getBatch(batch.batch_id))!.entries;
     expect(entry.job_id).not.toBe(upload.job_id);
-    await eventually(async () => (await batches.progress(batch.batch_id))!.failed === 1);
+    await failedFor(entry.job_id);
+    expect((await batches.progress(batch.batch_id))!.failed).toBe(1);
 
     await ctx.store.putBlob(bytes);
     expect((await retry(entry.job_id)).statusCode).toBe(202);
@@ -96,7 +100,7 @@ describe('retrying failed jobs', () => {
     const batches = new BatchReprocessor(ctx.store, ctx.queue);
     const batch = await batches.create({ selection: { sample_id: 'S-RETRY' }, parameters: { compact_stages: 2 }, created_by: 'test' });
     const [entry] = (await ctx.store.getBatch(batch.batch_id))!.entries;
-    await eventually(async () => (await ctx.store.getFailure(entry.job_id)) !== null);
+    await failedFor(entry.job_id);
     await batches.cancel(batch.batch_id);
     const refused = await retry(entry.job_id);
     expect(refused.statusCode).toBe(409);
@@ -108,7 +112,7 @@ describe('retrying failed jobs', () => {
   it('refuses a job whose input was at fault (409, failure kept), an unknown job (404) and a bench key (403)', async () => {
     const bad = await storedUpload(13, Buffer.from('time_s,temperature_C\n'));
     await ctx.queue.enqueue(bad, { priority: JOB_PRIORITY.interactive });
-    await eventually(async () => (await ctx.store.getFailure(bad.job_id)) !== null);
+    await failedFor(bad.job_id);
     const refused = await retry(bad.job_id);
     expect(refused.statusCode).toBe(409);
     expect(refused.json().code).toBe('JOB_NOT_RETRYABLE');

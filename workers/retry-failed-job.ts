@@ -27,7 +27,6 @@ export class FailedJobRetry {
       throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} failed with ${failure.code} (${failure.message}): its input or parameters are at fault`);
     }
     const held = await this.queue.getHeldJob(jobId);
-    if (held && held.state !== 'failed') return;
     const origin = failure ?? held?.data;
     if (!origin) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known: neither a stored failure nor the queue names it`);
     const upload = await this.store.getUpload(origin.upload_id);
@@ -35,6 +34,11 @@ export class FailedJobRetry {
     const batch = origin.batch_id ? await this.store.getBatch(origin.batch_id) : null;
     if (origin.batch_id && !batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${origin.batch_id} of job ${jobId} is not stored`);
     if (batch?.status === 'cancelled') throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} belongs to batch ${batch.batch_id}, which was cancelled: start a new batch to reprocess its uploads`);
+    if (held && held.state !== 'failed') {
+      // The processor stores the failure just before the queue marks the job failed.
+      if (failure) throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} is still ending its last attempt (${held.state} in the queue): retry in a few seconds`);
+      return;
+    }
     const job = batch ? reprocessedUpload(upload, batch) : upload;
     if (job.job_id !== jobId) throw new HeatpathError('INTERNAL_ERROR', `job ${jobId} does not follow from upload ${upload.upload_id}${batch ? ` and batch ${batch.batch_id}` : ''}`);
 
