@@ -30,9 +30,11 @@ export interface RunningWorkers {
 /**
  * Analysis processes when HEATPATH_WORKER_PROCESSES is not set: one per core
  * plus one, so that while one process waits for the store, Redis or its next
- * job another has the core. On 2 cores, 3 processes instead of 2 raised the
- * end-to-end throughput of `npm run bench:service -- --rate 0` from 62-68 %
- * to 72-94 % of compute-bound (noisy machine, several runs each).
+ * job another has the core. On 2 cores, 3 processes instead of 2 first raised
+ * the end-to-end throughput of `npm run bench:service -- --rate 0` from
+ * 62-68 % to 72-94 % of compute-bound; later runs, on the same machine whose
+ * speed had drifted, showed no clear difference either way. At niceness 19
+ * (analysis-processor.ts) the extra process does not slow uploads.
  */
 export function defaultAnalysisProcesses(): number {
   return availableParallelism() + 1;

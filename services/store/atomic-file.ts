@@ -26,7 +26,7 @@ async function fsyncPath(path: string, flags: 'r' | 'r+'): Promise<void> {
   }
 }
 
-async function writeTemporary(target: string, bytes: Uint8Array | string, durable = true): Promise<string> {
+async function writeTemporary(target: string, bytes: Uint8Array | string, durable: boolean): Promise<string> {
   const directory = dirname(target);
   await ensureDirectory(directory);
   const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
@@ -49,16 +49,20 @@ async function writeTemporary(target: string, bytes: Uint8Array | string, durabl
   return temporary;
 }
 
-/** Replace `target` atomically: readers see the old or the new content, never a part. */
-export async function writeFileAtomic(target: string, bytes: Uint8Array | string): Promise<void> {
-  const temporary = await writeTemporary(target, bytes);
+async function replaceFile(target: string, bytes: Uint8Array | string, durable: boolean): Promise<void> {
+  const temporary = await writeTemporary(target, bytes, durable);
   try {
     await rename(temporary, target);
   } catch (error) {
     await unlink(temporary).catch(() => undefined);
     throw error;
   }
-  await fsyncPath(dirname(target), 'r');
+  if (durable) await fsyncPath(dirname(target), 'r');
+}
+
+/** Replace `target` atomically: readers see the old or the new content, never a part. */
+export async function writeFileAtomic(target: string, bytes: Uint8Array | string): Promise<void> {
+  await replaceFile(target, bytes, true);
 }
 
 /**
@@ -66,13 +70,7 @@ export async function writeFileAtomic(target: string, bytes: Uint8Array | string
  * that can be derived again (a crash may lose them, never tear them).
  */
 export async function writeDerivedFile(target: string, bytes: Uint8Array | string): Promise<void> {
-  const temporary = await writeTemporary(target, bytes, false);
-  try {
-    await rename(temporary, target);
-  } catch (error) {
-    await unlink(temporary).catch(() => undefined);
-    throw error;
-  }
+  await replaceFile(target, bytes, false);
 }
 
 /** Removes `target` and fsyncs its directory, so the removal survives a power loss; false when there was no file. */
@@ -93,7 +91,7 @@ export async function removeFileDurably(target: string): Promise<boolean> {
  * the existing file is left untouched.
  */
 export async function createFileExclusive(target: string, bytes: Uint8Array | string): Promise<boolean> {
-  const temporary = await writeTemporary(target, bytes);
+  const temporary = await writeTemporary(target, bytes, true);
   try {
     await link(temporary, target);
   } catch (error) {

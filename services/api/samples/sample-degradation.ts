@@ -41,7 +41,8 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   const jobOf = await jobChooser(store, options.batch_id);
   const notIncluded: { upload_id: string; job_id: string | null; reason: string }[] = [];
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
-  for (const upload of inCycleOrder(uploads)) {
+  const ordered = inCycleOrder(uploads);
+  for (const upload of ordered) {
     const jobId = jobOf(upload);
     if (jobId === null) {
       notIncluded.push({ upload_id: upload.upload_id, job_id: null, reason: `not part of batch ${options.batch_id}` });
@@ -78,7 +79,7 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     }
   }
   const warnings: string[] = [];
-  const firstUpload = inCycleOrder(uploads)[0];
+  const firstUpload = ordered[0];
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
   }
