@@ -96,7 +96,7 @@ describe('retrying failed jobs', () => {
   });
 
   it('refuses a failed job of a cancelled batch and keeps its failure', async () => {
-    const { upload } = await uploadWithLostBytes(14);
+    await uploadWithLostBytes(14);
     const batches = new BatchReprocessor(ctx.store, ctx.queue);
     const batch = await batches.create({ selection: { sample_id: 'S-RETRY' }, parameters: { compact_stages: 2 }, created_by: 'test' });
     const [entry] = (await ctx.store.getBatch(batch.batch_id))!.entries;
@@ -106,7 +106,6 @@ describe('retrying failed jobs', () => {
     expect(refused.statusCode).toBe(409);
     expect(refused.json().detail).toMatch(/cancelled/);
     expect(await ctx.store.getFailure(entry.job_id)).not.toBeNull();
-    expect(upload.job_id).not.toBe(entry.job_id);
   });
 
   it('refuses a job whose input was at fault (409, failure kept), an unknown job (404) and a bench key (403)', async () => {

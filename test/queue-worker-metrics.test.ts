@@ -4,6 +4,7 @@
  * format (the exposition format of the Prometheus project's documentation:
  * `name{label="value"} number` lines), real Redis, real sandboxed processor.
  */
+import { createServer } from 'node:net';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { freePort } from './support/free-port.js';
@@ -49,5 +50,19 @@ describe('worker metrics port', () => {
     const other = await fetch(`http://127.0.0.1:${port}/v1/jobs`);
     expect(other.status).toBe(404);
     await other.text();
+  }, 30_000);
+
+  it('stops before taking any job, with a line naming the variable, when the port is taken', async () => {
+    const { url } = await testRedis();
+    const taken = createServer();
+    const port = await freePort();
+    await new Promise<void>((resolve) => taken.listen(port, '127.0.0.1', resolve));
+    cleanups.push(() => new Promise((resolve) => taken.close(resolve)));
+    const worker = new WorkerProcess({ redisUrl: url, prefix: randomPrefix(), dataDir: fixture.dataDir, metricsPort: port });
+    cleanups.push(() => worker.kill());
+    // 'close', not 'exit': the stderr line must have been read too.
+    const code = await new Promise<number | null>((resolve) => worker.child.once('close', resolve));
+    expect(code).toBe(1);
+    expect(worker.log).toMatch(/HEATPATH_WORKER_METRICS_PORT/);
   }, 30_000);
 });
