@@ -9,9 +9,9 @@
  * decades (90th percentile) over 5-90 % of Rth total.
  *
  * Rth total meets its target (worst case about 0.1 %). The structure-function
- * target is NOT MET: reached per case (median / p90 decades) SiC module
- * 0.031 / 0.065 (temperature) and 0.027 / 0.074 (voltage), TO-247 0.017 /
- * 0.068 and 0.022 / 0.071. The bounds below are those levels with a margin,
+ * target is NOT MET in every case: reached per case (median / p90 decades)
+ * SiC module 0.025 / 0.053 (temperature) and 0.023 / 0.063 (voltage), TO-247
+ * 0.014 / 0.058 and 0.018 / 0.049. The bounds below are those levels with a margin,
  * a regression guard; test/spectrum-structure-accuracy.test.ts explains the
  * resolution limit behind them.
  */
@@ -73,8 +73,8 @@ describe('whole pipeline on layered stacks (truth: exact eigendecomposition of t
       expect(result.early_time.window_start_s).toBeGreaterThan(6.5e-6);
       expect(Math.abs(result.early_time.t0_value - (25 + power_W * rth))).toBeLessThan(0.0025 * power_W * rth);
       const error = structureFunctionError(truth.structure, result.structure.cumulative);
-      expect(error.median_decades).toBeLessThan(0.04);
-      expect(error.p90_decades).toBeLessThan(0.09);
+      expect(error.median_decades).toBeLessThan(0.035);
+      expect(error.p90_decades).toBeLessThan(0.08);
     });
   }
 });

@@ -15,7 +15,7 @@
  *
  * The project's target is 0.02 decades (median) and 0.06 (90th percentile).
  * NOT MET at the 90th percentile. Level reached, average / worst curve of the
- * twelve: posterior-mean median 0.019 / 0.032, p90 0.071 / 0.087; bayes
+ * twelve: posterior-mean median 0.017 / 0.026, p90 0.063 / 0.084; bayes
  * 0.030 / 0.049, 0.097 / 0.121; fourier 0.039 / 0.059, 0.16 / 0.34 decades. The bounds below
  * are those levels with a small margin, kept as a regression guard, and the
  * comparison test keeps the recommended method ahead of the other two. For
@@ -28,6 +28,10 @@
  * 0.084, 0.073 and 0.069 on average; a Levenberg-Marquardt fit of a Cauer
  * ladder (R on a log C_sum grid, 20 per decade, started from posterior-mean)
  * with a total-variation prior on log K gives 0.082 on average, worst 0.115.
+ * More posterior samples lower the average but not the worst curve: 48
+ * paired samples give 0.059 on average, 0.081 worst, at three times the cost.
+ * Averaging the structure functions of the single samples (in log C at equal
+ * R) instead of their spectra gives 0.28: each sample is a staircase.
  */
 import { describe, expect, it } from 'vitest';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
@@ -98,8 +102,9 @@ describe('structure function from the spectrum vs the exact layered-stack ladder
   const results = { 'posterior-mean': curveErrors('posterior-mean'), bayes: curveErrors('bayes'), fourier: curveErrors('fourier') };
 
   it('posterior-mean: worst-curve median and 90th-percentile error in log10 C_sum (level reached, target not met)', () => {
-    expect(worst(results['posterior-mean'], 'median_decades')).toBeLessThan(0.04);
-    expect(worst(results['posterior-mean'], 'p90_decades')).toBeLessThan(0.1);
+    expect(worst(results['posterior-mean'], 'median_decades')).toBeLessThan(0.035);
+    expect(worst(results['posterior-mean'], 'p90_decades')).toBeLessThan(0.095);
+    expect(average(results['posterior-mean'], 'p90_decades')).toBeLessThan(0.067);
     // The project's median target, on average over the twelve curves.
     expect(average(results['posterior-mean'], 'median_decades')).toBeLessThan(0.02);
   });

@@ -4,4 +4,4 @@
  * ids include it, so a change makes the archive reprocessable.
  */
 export const HEATPATH_VERSION = '0.1.0';
-export const ALGORITHM_VERSION = 'analysis-2';
+export const ALGORITHM_VERSION = 'analysis-3';
