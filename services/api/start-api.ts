@@ -24,6 +24,10 @@ export async function startApi(config: ServiceConfig, logger: Logger): Promise<R
     (uploads) => logger.info({ uploads: uploads.length }, 'upload summaries read'),
     (error: unknown) => logger.warn({ err: error }, 'upload summaries not read; the first listing reads them'),
   );
+  store.pruneStaleParses().then(
+    (removed) => { if (removed > 0) logger.info({ removed }, 'kept parses of an earlier parser version removed'); },
+    (error: unknown) => logger.warn({ err: error }, 'kept parses of an earlier parser version not removed; they take space but nothing reads them'),
+  );
   return {
     app,
     queue,

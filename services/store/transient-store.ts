@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { access, constants, mkdir, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
-import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
+import { PARSER_VERSION } from '../../shared/analysis/algorithm-version.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { canonicalJson } from '../jobs/canonical-json.js';
 import { createFileExclusive, removeFileDurably, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
@@ -23,6 +23,8 @@ import type {
 /** Ids that are safe as file names: no separators, no leading dot. */
 const STORE_ID = /^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$/;
 const SHA256_HEX = /^[0-9a-f]{64}$/;
+/** A kept parse's file name: <sha256>.<format>.<parser version>.bin (temporary files start with a dot). */
+const KEPT_PARSE_NAME = /^[0-9a-f]{64}\.(csv|json)\.[A-Za-z0-9_-]+\.bin$/;
 /** Parallel file reads when listing: enough to hide latency, few enough to stay polite. */
 const LIST_READ_CONCURRENCY = 32;
 
@@ -47,7 +49,7 @@ export interface StoredBlob {
  *
  * Layout (shard = first two hex digits of a hash, to keep directories small):
  *   blobs/<shard>/<sha256>             raw bytes, content-addressed
- *   parsed/<shard>/<sha256>.<format>.<algorithm>.bin  the raw bytes parsed (derived, not fsynced)
+ *   parsed/<shard>/<sha256>.<format>.<parser>.bin  the raw bytes parsed (derived, not fsynced)
  *   uploads/<shard>/<upload_id>.json   UploadRecord
  *   results/<shard>/<job_id>.json      ResultRecord, written once
  *   failures/<shard>/<job_id>.json     FailureRecord, written once
@@ -87,18 +89,35 @@ export class TransientStore {
 
   /**
    * Keeps the parse of a stored blob, read as `format`, for the analysis
-   * processes. Named by the algorithm version too, since a new parser may
-   * read the same bytes otherwise.
+   * processes. Named by the parser version too, since a new parser may read
+   * the same bytes otherwise.
    */
   async putParsedTransient(sha256: string, format: UploadRecord['format'], file: TransientFile): Promise<void> {
     await writeDerivedFile(this.parsedPath(requireSha256(sha256), format), encodeParsedTransient(file));
   }
 
-  /** The kept parse of a blob read as `format`, or null (none kept, another algorithm version's, damaged, or not readable at all): then parse the blob. */
+  /** The kept parse of a blob read as `format`, or null (none kept, another parser version's, damaged, or not readable at all): then parse the blob. */
   async getParsedTransient(sha256: string, format: UploadRecord['format']): Promise<TransientFile | null> {
     if (!SHA256_HEX.test(sha256)) return null;
     const bytes = await readOrNull(this.parsedPath(sha256, format)).catch(() => null);
     return bytes ? decodeParsedTransient(bytes) : null;
+  }
+
+  /**
+   * Removes the kept parses of other parser versions, which nothing reads
+   * again once the parser changed; returns how many. Another process's
+   * temporary files are left alone.
+   */
+  async pruneStaleParses(): Promise<number> {
+    const root = join(this.dataDir, 'parsed');
+    const current = `.${PARSER_VERSION}.bin`;
+    let removed = 0;
+    for (const shard of await listNames(root)) {
+      const stale = (await listNames(join(root, shard))).filter((name) => KEPT_PARSE_NAME.test(name) && !name.endsWith(current));
+      await Promise.all(stale.map((name) => unlinkIfPresent(join(root, shard, name))));
+      removed += stale.length;
+    }
+    return removed;
   }
 
   // ---- uploads ----
@@ -271,7 +290,7 @@ export class TransientStore {
   }
 
   private parsedPath(sha256: string, format: UploadRecord['format']): string {
-    return join(this.dataDir, 'parsed', sha256.slice(0, 2), `${sha256}.${format === 'json' ? 'json' : 'csv'}.${ALGORITHM_VERSION}.bin`);
+    return join(this.dataDir, 'parsed', sha256.slice(0, 2), `${sha256}.${format === 'json' ? 'json' : 'csv'}.${PARSER_VERSION}.bin`);
   }
 
   private shardedPath(kind: string, id: string): string {

@@ -5,3 +5,10 @@
  */
 export const HEATPATH_VERSION = '0.1.0';
 export const ALGORITHM_VERSION = 'analysis-3';
+/**
+ * Version of what the input parsers make of a file's bytes. The service keeps
+ * each upload's parse under this name, so it changes only when a parser may
+ * read the same bytes differently (and then ALGORITHM_VERSION changes too);
+ * a new analysis method alone leaves the kept parses of the archive valid.
+ */
+export const PARSER_VERSION = 'parse-1';
