@@ -15,7 +15,7 @@
  *
  * The project's target is 0.02 decades (median) and 0.06 (90th percentile).
  * NOT MET at the 90th percentile. Level reached, average / worst curve of the
- * twelve: posterior-mean median 0.017 / 0.026, p90 0.063 / 0.084; bayes
+ * twelve: posterior-mean median 0.018 / 0.027, p90 0.064 / 0.082; bayes
  * 0.030 / 0.049, 0.097 / 0.121; fourier 0.039 / 0.059, 0.16 / 0.34 decades. The bounds below
  * are those levels with a small margin, kept as a regression guard, and the
  * comparison test keeps the recommended method ahead of the other two. For
@@ -29,9 +29,9 @@
  * ladder (R on a log C_sum grid, 20 per decade, started from posterior-mean)
  * with a total-variation prior on log K gives 0.082 on average, worst 0.115.
  * Another seed of the posterior samples moves the average 90th percentile
- * by about 0.002 (0.061-0.064 over four seeds). More posterior samples
+ * by up to 0.003 (0.061-0.067 over four seeds). More posterior samples
  * lower the average but not the worst curve: 48
- * paired samples give 0.059 on average, 0.081 worst, at three times the cost.
+ * paired samples give 0.059 on average, 0.081 worst, at four times the cost.
  * Averaging the structure functions of the single samples (in log C at equal
  * R) instead of their spectra gives 0.28: each sample is a staircase.
  */

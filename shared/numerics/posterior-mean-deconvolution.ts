@@ -23,7 +23,7 @@
  * curve is uninformative and sharp at well-determined time constants. On the
  * layered-stack truth models (test/spectrum-structure-accuracy.test.ts) the
  * structure-function error against the early-stopped multiplicative
- * iteration fell by about 45 % in the median and 35 % in the 90th
+ * iteration fell by about 40 % in the median and a third in the 90th
  * percentile; a single Tikhonov fit (second differences, weight chosen by the
  * discrepancy principle) and a single least-squares fit were tried and lost;
  * a weak randomised second-difference prior in every sample did no better

@@ -12,8 +12,8 @@
  * 'posterior-mean' (the recommended default) is the mean of exact
  * non-negative least-squares fits to noise-perturbed copies of the curve
  * (posterior-mean-deconvolution.ts). On the layered-stack truth models it
- * cut the structure-function error by about 45 % in the median and 35 % in
- * the 90th percentile against 'bayes' (more against 'fourier'),
+ * cut the structure-function error by about 40 % in the median and a third
+ * in the 90th percentile against 'bayes' (more against 'fourier'),
  * which share one limit: a single regularised or early-stopped estimate
  * blurs every peak to the linear resolution of the noisy curve.
  *
@@ -81,13 +81,15 @@ const DISCREPANCY_FACTOR = 1.05;
 /**
  * Samples of the posterior-mean method, in antithetic pairs. On the
  * layered-stack truth models (3 stacks x 4 seeds) the mean 90th-percentile
- * structure-function error was, for 8 / 16 / 32 / 48 samples: independent
- * draws 0.071 / 0.066 / 0.064 / -, paired 0.067 / 0.063 / 0.061 / 0.059
- * decades; the worst curve stayed at 0.08 (a bias, not scatter). Each sample
- * costs about half a millisecond, and 16 keeps the whole analysis well inside
- * its time budget.
+ * structure-function error was, for 8 / 12 / 16 / 32 / 48 samples:
+ * independent draws 0.071 / - / 0.066 / 0.064 / -, paired 0.067 / 0.064 /
+ * 0.063 / 0.061 / 0.059 decades (12 and 16 over four sample seeds:
+ * 0.061-0.067 and 0.061-0.064); the worst curve stayed at 0.08 (a bias, not
+ * scatter). Each sample costs about 0.6 ms here and about twice that on the
+ * slower of the project's reference machines, where 12 keeps the whole
+ * analysis inside its 25 ms with a margin and 16 would not.
  */
-const POSTERIOR_SAMPLES = 16;
+const POSTERIOR_SAMPLES = 12;
 /**
  * Least noise the posterior samples perturb the curve with, as a fraction of
  * its final value. The method needs the lines of its samples to wander where
