@@ -9,7 +9,7 @@ import { mkdtemp, readdir, rm, writeFile } from 'node:fs/promises';
 import { readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import { PARSER_VERSION } from '../shared/analysis/algorithm-version.js';
 import { decodeParsedTransient, encodeParsedTransient } from '../services/store/parsed-transient-codec.js';
@@ -60,45 +60,40 @@ describe('parsed transient codec', () => {
 });
 
 describe('TransientStore kept parses', () => {
+  let dataDir: string;
+  let store: TransientStore;
+  const bytes = fixture('fh-tt1_m07_cooling.csv');
+  const sha256 = sha256Hex(bytes);
+  const shard = () => join(dataDir, 'parsed', sha256.slice(0, 2));
+  beforeEach(async () => {
+    dataDir = await mkdtemp(join(tmpdir(), 'heatpath-parsed-'));
+    store = new TransientStore(dataDir);
+  });
+  afterEach(async () => {
+    await rm(dataDir, { recursive: true, force: true });
+  });
+
   it('keeps a parse per blob, format and parser version, and treats a damaged one as absent', async () => {
-    const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-parsed-'));
-    try {
-      const store = new TransientStore(dataDir);
-      const bytes = fixture('fh-tt1_m07_cooling.csv');
-      const sha256 = sha256Hex(bytes);
-      expect(await store.getParsedTransient(sha256, 'csv')).toBeNull();
-      const parsed = parseTransient(bytes, 'm07.csv');
-      await store.putParsedTransient(sha256, 'csv', parsed);
-      expect(await store.getParsedTransient(sha256, 'json')).toBeNull();
-      expect(await store.getParsedTransient(sha256, 'csv')).toEqual(parsed);
-      const shard = join(dataDir, 'parsed', sha256.slice(0, 2));
-      expect(await readdir(shard)).toEqual([`${sha256}.csv.${PARSER_VERSION}.bin`]);
-      await writeFile(join(shard, `${sha256}.csv.${PARSER_VERSION}.bin`), 'not a parse');
-      expect(await store.getParsedTransient(sha256, 'csv')).toBeNull();
-      expect(await store.getParsedTransient('../etc/passwd', 'csv')).toBeNull();
-    } finally {
-      await rm(dataDir, { recursive: true, force: true });
-    }
+    expect(await store.getParsedTransient(sha256, 'csv')).toBeNull();
+    const parsed = parseTransient(bytes, 'm07.csv');
+    await store.putParsedTransient(sha256, 'csv', parsed);
+    expect(await store.getParsedTransient(sha256, 'json')).toBeNull();
+    expect(await store.getParsedTransient(sha256, 'csv')).toEqual(parsed);
+    expect(await readdir(shard())).toEqual([`${sha256}.csv.${PARSER_VERSION}.bin`]);
+    await writeFile(join(shard(), `${sha256}.csv.${PARSER_VERSION}.bin`), 'not a parse');
+    expect(await store.getParsedTransient(sha256, 'csv')).toBeNull();
+    expect(await store.getParsedTransient('../etc/passwd', 'csv')).toBeNull();
   });
 
   it("prunes other parser versions' parses, and neither the current ones nor a writer's temporary file", async () => {
-    const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-parsed-'));
-    try {
-      const store = new TransientStore(dataDir);
-      const bytes = fixture('fh-tt1_m07_cooling.csv');
-      const sha256 = sha256Hex(bytes);
-      const parsed = parseTransient(bytes, 'm07.csv');
-      await store.putParsedTransient(sha256, 'csv', parsed);
-      const shard = join(dataDir, 'parsed', sha256.slice(0, 2));
-      // Named as an earlier release named them (by its algorithm version), and a temporary file as atomic-file.ts names them.
-      await writeFile(join(shard, `${sha256}.csv.analysis-2.bin`), 'stale');
-      await writeFile(join(shard, '.tmp-1234-0a1b2c3d4e5f'), 'in flight');
-      expect(await store.pruneStaleParses()).toBe(1);
-      expect((await readdir(shard)).sort()).toEqual(['.tmp-1234-0a1b2c3d4e5f', `${sha256}.csv.${PARSER_VERSION}.bin`]);
-      expect(await store.getParsedTransient(sha256, 'csv')).toEqual(parsed);
-      expect(await store.pruneStaleParses()).toBe(0);
-    } finally {
-      await rm(dataDir, { recursive: true, force: true });
-    }
+    const parsed = parseTransient(bytes, 'm07.csv');
+    await store.putParsedTransient(sha256, 'csv', parsed);
+    // Named as an earlier release named them (by its algorithm version), and a temporary file as atomic-file.ts names them.
+    await writeFile(join(shard(), `${sha256}.csv.analysis-2.bin`), 'stale');
+    await writeFile(join(shard(), '.tmp-1234-0a1b2c3d4e5f'), 'in flight');
+    expect(await store.pruneStaleParses()).toBe(1);
+    expect((await readdir(shard())).sort()).toEqual(['.tmp-1234-0a1b2c3d4e5f', `${sha256}.csv.${PARSER_VERSION}.bin`]);
+    expect(await store.getParsedTransient(sha256, 'csv')).toEqual(parsed);
+    expect(await store.pruneStaleParses()).toBe(0);
   });
 });
