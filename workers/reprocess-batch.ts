@@ -128,7 +128,6 @@ export class BatchReprocessor {
   }
 }
 
-/** The upload as this batch analyses it: its parameters and calibration replaced, its job id recomputed. */
 /** The job a batch makes of one upload: its parameters and calibration over the upload's, under the batch's algorithm version. */
 export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
   const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
