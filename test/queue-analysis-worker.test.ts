@@ -91,7 +91,8 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     expect(await first.close(20_000)).toBe('drained');
     workers.splice(workers.indexOf(first), 1);
     startWorker();
-    await eventually(async () => (await Promise.all(uploads.map((u) => fixture.store.hasResult(u.job_id)))).every(Boolean));
+    // Completed, not only stored: a result file is visible a moment before its writer removes its temporary file.
+    await eventually(async () => (await Promise.all(uploads.map((u) => queue.getJobState(u.job_id)))).every((s) => s?.state === 'completed'));
     expect((await fixture.resultFiles()).sort()).toEqual(uploads.map((u) => `${u.job_id}.json`).sort());
   });
 });
