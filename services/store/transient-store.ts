@@ -57,6 +57,7 @@ export interface StoredBlob {
  *   batches/<batch_id>.json            BatchRecord
  *   webhooks/<webhook_id>.json         WebhookRecord
  *   idempotency/<shard>/<sha256(key)>.json IdempotencyRecord, written once
+ *   derived/upload-summaries.json      what listings need of every upload record (derived, not fsynced)
  *
  * Every write is atomic and durable (see atomic-file.ts), so several API and
  * worker processes may share the directory (a shared volume). Write-once
@@ -66,7 +67,11 @@ export class TransientStore {
   private readonly uploadSummaries: UploadSummaryIndex;
 
   constructor(readonly dataDir: string) {
-    this.uploadSummaries = new UploadSummaryIndex(join(dataDir, 'uploads'), LIST_READ_CONCURRENCY);
+    this.uploadSummaries = new UploadSummaryIndex({
+      root: join(dataDir, 'uploads'),
+      snapshotPath: join(dataDir, 'derived', 'upload-summaries.json'),
+      readConcurrency: LIST_READ_CONCURRENCY,
+    });
   }
 
   // ---- raw transients ----

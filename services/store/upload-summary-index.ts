@@ -1,4 +1,5 @@
-import { basename, join } from 'node:path';
+import { basename, join, relative } from 'node:path';
+import { writeDerivedFile } from './atomic-file.js';
 import type { UploadFilter, UploadRecord } from './store-records.js';
 import { listNames, readJson } from './store-files.js';
 
@@ -11,14 +12,57 @@ import { listNames, readJson } from './store-files.js';
  */
 export type UploadSummary = Pick<UploadRecord, 'upload_id' | 'sample_id' | 'bench' | 'tags' | 'received_at' | 'job_id' | 'input_sha256'>;
 
-/** This process's summaries of the upload records under one sharded folder, kept up to date with what other processes write there. */
+/** Change when UploadSummary changes: a snapshot of another format is ignored (and replaced). */
+export const UPLOAD_SUMMARY_SNAPSHOT_FORMAT = 'upload-summaries-1';
+
+interface UploadSummarySnapshot {
+  format: string;
+  /** [record path relative to the uploads folder, summary]. */
+  entries: [string, UploadSummary][];
+}
+
+export interface UploadSummaryIndexOptions {
+  /** The sharded folder of upload records. */
+  root: string;
+  /** Where the snapshot of every summary is kept (derived: a lost or stale one only costs reads). */
+  snapshotPath: string;
+  /** Parallel record reads while scanning. */
+  readConcurrency: number;
+  /** Summaries not in the last snapshot before a listing writes a new one. Default 1000. */
+  snapshotEvery?: number;
+}
+
+/**
+ * This process's summaries of the upload records under one sharded folder,
+ * kept up to date with what other processes write there.
+ *
+ * A process's first scan starts from a snapshot of the summaries that some
+ * process wrote earlier, so a restart reads only the records written since
+ * (a lab's archive grows by thousands of uploads a week). Records are written
+ * once, so a snapshot's summary of a record that is still listed is still
+ * right; one of a record that is gone is not used. The snapshot is derived:
+ * written without fsync, replaced atomically by whichever process last had
+ * `snapshotEvery` summaries more than it held.
+ */
 export class UploadSummaryIndex {
   /** By record path. */
   private readonly summaries = new Map<string, UploadSummary>();
   private scan: Promise<void> | null = null;
   private nextScan: Promise<void> | null = null;
+  private snapshotLoaded = false;
+  /** Summaries in the snapshot this process last read or wrote. */
+  private snapshotSize = 0;
+  private readonly root: string;
+  private readonly snapshotPath: string;
+  private readonly readConcurrency: number;
+  private readonly snapshotEvery: number;
 
-  constructor(private readonly root: string, private readonly readConcurrency: number) {}
+  constructor(options: UploadSummaryIndexOptions) {
+    this.root = options.root;
+    this.snapshotPath = options.snapshotPath;
+    this.readConcurrency = options.readConcurrency;
+    this.snapshotEvery = options.snapshotEvery ?? 1000;
+  }
 
   /** A record this process has just written. */
   note(path: string, record: UploadRecord): void {
@@ -54,8 +98,17 @@ export class UploadSummaryIndex {
   }
 
   private async readUnseen(): Promise<void> {
+    const snapshot = this.snapshotLoaded ? null : await this.readSnapshot();
+    this.snapshotLoaded = true;
     const perShard = await Promise.all((await listNames(this.root)).map(async (shard) => (await listNames(join(this.root, shard))).map((name) => join(this.root, shard, name))));
-    const unseen = perShard.flat().filter((path) => path.endsWith('.json') && !basename(path).startsWith('.') && !this.summaries.has(path));
+    let unseen = perShard.flat().filter((path) => path.endsWith('.json') && !basename(path).startsWith('.') && !this.summaries.has(path));
+    if (snapshot) {
+      unseen = unseen.filter((path) => {
+        const summary = snapshot.get(relative(this.root, path));
+        if (summary) this.summaries.set(path, summary);
+        return !summary;
+      });
+    }
     for (let start = 0; start < unseen.length; start += this.readConcurrency) {
       const chunk = unseen.slice(start, start + this.readConcurrency);
       const read = await Promise.all(chunk.map((path) => readJson<UploadRecord>(path)));
@@ -63,6 +116,25 @@ export class UploadSummaryIndex {
         if (record !== null) this.summaries.set(chunk[k], summaryOf(record));
       });
     }
+    if (this.summaries.size - this.snapshotSize >= this.snapshotEvery) await this.writeSnapshot();
+  }
+
+  /** The snapshot's summaries by relative path; null when there is none or it is of another format (then every record is read). */
+  private async readSnapshot(): Promise<Map<string, UploadSummary> | null> {
+    const snapshot = await readJson<UploadSummarySnapshot>(this.snapshotPath).catch(() => null);
+    if (snapshot?.format !== UPLOAD_SUMMARY_SNAPSHOT_FORMAT || !Array.isArray(snapshot.entries)) return null;
+    this.snapshotSize = snapshot.entries.length;
+    return new Map(snapshot.entries);
+  }
+
+  private async writeSnapshot(): Promise<void> {
+    const entries = [...this.summaries].map(([path, summary]): [string, UploadSummary] => [relative(this.root, path), summary]);
+    const snapshot: UploadSummarySnapshot = { format: UPLOAD_SUMMARY_SNAPSHOT_FORMAT, entries };
+    // A snapshot that cannot be written costs the next process's start reads, never a listing.
+    await writeDerivedFile(this.snapshotPath, JSON.stringify(snapshot)).then(
+      () => (this.snapshotSize = entries.length),
+      () => undefined,
+    );
   }
 }
 

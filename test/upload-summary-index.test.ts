@@ -1,0 +1,88 @@
+/**
+ * The upload summaries' snapshot: a process that starts on a large store reads
+ * the records written since some process last wrote the snapshot, not every
+ * record, and what it lists is the same as without the snapshot. (Behaviour
+ * of the project's own store; no outside reference applies.)
+ */
+import { mkdir, mkdtemp, readFile, rm, unlink, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { dirname, join } from 'node:path';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';
+import { sha256Hex } from '../services/store/transient-store.js';
+import type { UploadRecord } from '../services/store/store-records.js';
+import { UPLOAD_SUMMARY_SNAPSHOT_FORMAT, UploadSummaryIndex } from '../services/store/upload-summary-index.js';
+
+let dataDir: string;
+let root: string;
+let snapshotPath: string;
+
+beforeEach(async () => {
+  dataDir = await mkdtemp(join(tmpdir(), 'heatpath-summaries-'));
+  root = join(dataDir, 'uploads');
+  snapshotPath = join(dataDir, 'derived', 'upload-summaries.json');
+});
+afterEach(async () => {
+  await rm(dataDir, { recursive: true, force: true });
+});
+
+function upload(id: string, sample_id = 'S1'): UploadRecord {
+  return {
+    upload_id: id, input_sha256: 'a'.repeat(64), format: 'csv', file_name: `${id}.csv`, byte_length: 10,
+    received_at: `2026-01-0${id.slice(1)}T00:00:00.000Z`, sample_id, bench: 'B1', channel: null, cycle_count: null,
+    tags: [], power: { power_W: 10 }, calibration_id: null, parameters: defaultAnalysisParameters,
+    job_id: `job-${id}`, uploaded_by: 'bench',
+  };
+}
+
+/** Where TransientStore keeps an upload record. */
+const recordPath = (id: string) => join(root, sha256Hex(id).slice(0, 2), `${id}.json`);
+
+async function writeRecord(record: UploadRecord): Promise<void> {
+  await mkdir(dirname(recordPath(record.upload_id)), { recursive: true });
+  await writeFile(recordPath(record.upload_id), JSON.stringify(record));
+}
+
+const newIndex = () => new UploadSummaryIndex({ root, snapshotPath, readConcurrency: 4, snapshotEvery: 2 });
+const listed = async (index: UploadSummaryIndex, filter = {}) => (await index.list(filter)).map((u) => `${u.upload_id}:${u.sample_id}`);
+
+describe('UploadSummaryIndex snapshot', () => {
+  it('is written once enough summaries are new, and a new process lists from it plus the records written since', async () => {
+    for (const id of ['u1', 'u2', 'u3']) await writeRecord(upload(id));
+    expect(await listed(newIndex())).toEqual(['u1:S1', 'u2:S1', 'u3:S1']);
+    const snapshot = JSON.parse(await readFile(snapshotPath, 'utf8'));
+    expect(snapshot.format).toBe(UPLOAD_SUMMARY_SNAPSHOT_FORMAT);
+    expect(snapshot.entries).toHaveLength(3);
+
+    // Records are written once; rewriting one behind the index's back shows which source the next process used.
+    await writeRecord(upload('u2', 'S-rewritten'));
+    await writeRecord(upload('u4'));
+    await unlink(recordPath('u1'));
+    expect(await listed(newIndex())).toEqual(['u2:S1', 'u3:S1', 'u4:S1']);
+  });
+
+  it('is ignored when it is of another format or damaged: every record is read', async () => {
+    for (const id of ['u1', 'u2']) await writeRecord(upload(id));
+    await mkdir(dirname(snapshotPath), { recursive: true });
+    const u1 = { ...upload('u1', 'S-from-snapshot') };
+    await writeFile(snapshotPath, JSON.stringify({ format: 'upload-summaries-0', entries: [[`${sha256Hex('u1').slice(0, 2)}/u1.json`, u1]] }));
+    expect(await listed(newIndex())).toEqual(['u1:S1', 'u2:S1']);
+
+    await writeFile(snapshotPath, '{"format": "upload-summ');
+    expect(await listed(newIndex())).toEqual(['u1:S1', 'u2:S1']);
+    // ...and replaced by a good one.
+    expect(JSON.parse(await readFile(snapshotPath, 'utf8')).entries).toHaveLength(2);
+  });
+
+  it('is not rewritten while fewer summaries than snapshotEvery are new', async () => {
+    for (const id of ['u1', 'u2']) await writeRecord(upload(id));
+    const index = newIndex();
+    await index.list({});
+    await writeRecord(upload('u3'));
+    expect(await listed(index)).toEqual(['u1:S1', 'u2:S1', 'u3:S1']);
+    expect(JSON.parse(await readFile(snapshotPath, 'utf8')).entries).toHaveLength(2);
+    await writeRecord(upload('u4'));
+    expect(await listed(index, { sample_id: 'S1' })).toEqual(['u1:S1', 'u2:S1', 'u3:S1', 'u4:S1']);
+    expect(JSON.parse(await readFile(snapshotPath, 'utf8')).entries).toHaveLength(4);
+  });
+});
