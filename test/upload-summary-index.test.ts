@@ -29,7 +29,7 @@ afterEach(async () => {
 function upload(id: string, sample_id = 'S1'): UploadRecord {
   return {
     upload_id: id, input_sha256: 'a'.repeat(64), format: 'csv', file_name: `${id}.csv`, byte_length: 10,
-    received_at: `2026-01-0${id.slice(1)}T00:00:00.000Z`, sample_id, bench: 'B1', channel: null, cycle_count: null,
+    received_at: `2026-01-${id.slice(1).padStart(2, '0')}T00:00:00.000Z`, sample_id, bench: 'B1', channel: null, cycle_count: null,
     tags: [], power: { power_W: 10 }, calibration_id: null, parameters: defaultAnalysisParameters,
     job_id: `job-${id}`, uploaded_by: 'bench',
   };
@@ -74,15 +74,27 @@ describe('UploadSummaryIndex snapshot', () => {
     expect(JSON.parse(await readFile(snapshotPath, 'utf8')).entries).toHaveLength(2);
   });
 
-  it('is not rewritten while fewer summaries than snapshotEvery are new', async () => {
+  it('is not rewritten while fewer summaries than snapshotEvery, or than a quarter of the snapshot, are new', async () => {
+    const snapshotSize = async () => JSON.parse(await readFile(snapshotPath, 'utf8')).entries.length;
     for (const id of ['u1', 'u2']) await writeRecord(upload(id));
     const index = newIndex();
     await index.list({});
     await writeRecord(upload('u3'));
     expect(await listed(index)).toEqual(['u1:S1', 'u2:S1', 'u3:S1']);
-    expect(JSON.parse(await readFile(snapshotPath, 'utf8')).entries).toHaveLength(2);
+    expect(await snapshotSize()).toBe(2);
     await writeRecord(upload('u4'));
     expect(await listed(index, { sample_id: 'S1' })).toEqual(['u1:S1', 'u2:S1', 'u3:S1', 'u4:S1']);
-    expect(JSON.parse(await readFile(snapshotPath, 'utf8')).entries).toHaveLength(4);
+    expect(await snapshotSize()).toBe(4);
+
+    // A snapshot of 12: 2 new summaries are snapshotEvery, but less than a quarter of it; 3 are not.
+    for (let k = 5; k <= 12; k++) await writeRecord(upload(`u${k}`));
+    await index.list({});
+    expect(await snapshotSize()).toBe(12);
+    for (const id of ['u13', 'u14']) await writeRecord(upload(id));
+    await index.list({});
+    expect(await snapshotSize()).toBe(12);
+    await writeRecord(upload('u15'));
+    await index.list({});
+    expect(await snapshotSize()).toBe(15);
   });
 });

@@ -28,7 +28,12 @@ export interface UploadSummaryIndexOptions {
   snapshotPath: string;
   /** Parallel record reads while scanning. */
   readConcurrency: number;
-  /** Summaries not in the last snapshot before a listing writes a new one. Default 1000. */
+  /**
+   * Summaries not in the last snapshot before a listing writes a new one, at
+   * least; and at least a quarter of that snapshot, so the snapshots of a big
+   * store (32 MB and 150 ms of JSON.stringify on the event loop at 100,000
+   * uploads, measured) are written ever more rarely. Default 1000.
+   */
   snapshotEvery?: number;
 }
 
@@ -42,7 +47,7 @@ export interface UploadSummaryIndexOptions {
  * once, so a snapshot's summary of a record that is still listed is still
  * right; one of a record that is gone is not used. The snapshot is derived:
  * written without fsync, replaced atomically by whichever process last had
- * `snapshotEvery` summaries more than it held.
+ * enough summaries more than it held (see snapshotEvery).
  */
 export class UploadSummaryIndex {
   /** By record path. */
@@ -116,7 +121,7 @@ export class UploadSummaryIndex {
         if (record !== null) this.summaries.set(chunk[k], summaryOf(record));
       });
     }
-    if (this.summaries.size - this.snapshotSize >= this.snapshotEvery) await this.writeSnapshot();
+    if (this.summaries.size - this.snapshotSize >= Math.max(this.snapshotEvery, this.snapshotSize / 4)) await this.writeSnapshot();
   }
 
   /** The snapshot's summaries by relative path; null when there is none or it is of another format (then every record is read). */
