@@ -32,6 +32,7 @@ import { bayesDeconvolution } from './bayes-deconvolution.js';
 import { fourierDeconvolution } from './fourier-deconvolution.js';
 import { createFftConvolution } from './fft-convolution.js';
 import { posteriorMeanDeconvolution } from './posterior-mean-deconvolution.js';
+import { gaussianSmoothing } from './gaussian-smoothing.js';
 
 export interface TimeConstantSpectrumOptions {
   method: 'posterior-mean' | 'bayes' | 'fourier';
@@ -113,6 +114,19 @@ const POSTERIOR_NOISE_FLOOR_FRACTION = 3e-4;
  * noise floor are perturbed at the floor, untempered (the slab test).
  */
 const POSTERIOR_TEMPERING = 2;
+/**
+ * The posterior mean is smoothed by a gaussian of this many grid steps. Each
+ * sample puts its lines on the grid, so a time constant between two grid
+ * points is split between them differently from sample to sample, and twelve
+ * samples leave that snapping visible as bin-to-bin roughness. On the
+ * layered-stack truth models (3 stacks x 4 seeds, 40 points per decade)
+ * 0.5, 0.8, 1, 1.2 and 2.4 steps gave a mean 90th-percentile
+ * structure-function error of 0.061, 0.060, 0.060, 0.060 and 0.064 decades
+ * against 0.064 without, and a mean median of 0.017 against 0.018; over
+ * three other sample seeds 0.060-0.064 against 0.061-0.067; at 20 and 80
+ * points per decade 0.066 against 0.071 and 0.063 against 0.065.
+ */
+const POSTERIOR_SMOOTHING_STEPS = 1;
 /** Fixed seed of the posterior samples: the same curve always gives the same spectrum. */
 const POSTERIOR_SEED = 20140101;
 /** Free-set solves per sample: a fit visits each of its few tens of lines a few times. */
@@ -141,7 +155,8 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
       samples: POSTERIOR_SAMPLES, seed: POSTERIOR_SEED, maxSolvesPerSample: MAX_SOLVES_PER_SAMPLE,
     });
     if (result.unconverged > 0) warnings.push(`${result.unconverged} of ${POSTERIOR_SAMPLES} posterior samples stopped at ${MAX_SOLVES_PER_SAMPLE} active-set solves before reaching the least-squares optimum`);
-    return { tau_s, r_K_per_W: result.mean, iterations: result.solves, residual_rms_K_per_W: integralResidualRms(grid, low, result.mean), warnings };
+    const r = gaussianSmoothing(result.mean, POSTERIOR_SMOOTHING_STEPS);
+    return { tau_s, r_K_per_W: r, iterations: result.solves, residual_rms_K_per_W: integralResidualRms(grid, low, r), warnings };
   }
   const fourier = fourierSpectrum(grid, low, nx, noise_K_per_W);
   if (fourier.clippedFraction > 0.01) warnings.push(`Fourier estimate: negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins`);
