@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 
-const { heatpath, file, work } = cliWorkspace('heatpath-cli-');
+const { heatpath, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
 
 const goodRows = Array.from({ length: 400 }, (_, i) => {
   const t = 1e-6 * 10 ** (i / 50);
@@ -64,6 +64,18 @@ describe('heatpath analyze', () => {
     const run = heatpath('analyze', join(demo, 'fh-tt2_q12_cooling.csv'), '--calibration', cal, '--format', 'json');
     expect(run.code).toBe(0);
     expect(JSON.parse(run.stdout).source.quantity).toBe('voltage_V');
+  });
+});
+
+describe('heatpath analyze into a pipe that its reader closes early (| head)', () => {
+  it('drops the rest of the printout without a stack trace, finishes the run and writes every --out file', async () => {
+    const files = ['fh-tt1_m07_cooling.csv', 'fh-tt1_m31_cycle-000000.csv', 'fh-tt1_m31_cycle-020000.csv', 'fh-tt1_m31_cycle-040000.csv'];
+    const out = join(work, 'closed-pipe');
+    const run = await heatpathReadingFirstChunk('analyze', ...files.map((name) => join(demo, name)), '--format', 'json', '--out', out);
+    expect(run.firstChunk).toMatch(/^\{"heatpath_result"/);
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+    for (const name of files) expect(existsSync(join(out, name.replace(/\.csv$/, ''), 'result.json'))).toBe(true);
   });
 });
 

@@ -63,4 +63,11 @@ export async function main(argv: string[]): Promise<number> {
   }
 }
 
+// A reader that stops early (`heatpath analyze ... | head`) closes the pipe: drop
+// the rest of the printout, as Unix tools do, but finish the run, so files
+// written with --out are complete.
+process.stdout.on('error', (error: NodeJS.ErrnoException) => {
+  if (error.code !== 'EPIPE' && error.code !== 'ERR_STREAM_DESTROYED') throw error;
+});
+
 process.exitCode = await main(process.argv.slice(2));

@@ -3,7 +3,7 @@
  * (dist/heatpath-cli.mjs, as npx runs it; `npm run build` makes it) in a child
  * process, in a scratch folder that the test file removes afterwards.
  */
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -24,6 +24,21 @@ export function cliWorkspace(prefix: string) {
     heatpath(...args: string[]) {
       const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work });
       return { code: run.status, stdout: run.stdout, stderr: run.stderr };
+    },
+    /** Runs `heatpath` with a reader that takes the first chunk of its printout and closes the pipe (`| head`). */
+    heatpathReadingFirstChunk(...args: string[]): Promise<{ code: number | null; firstChunk: string; stderr: string }> {
+      return new Promise((resolve, reject) => {
+        const child = spawn(process.execPath, [cli, ...args], { cwd: work, stdio: ['ignore', 'pipe', 'pipe'] });
+        let firstChunk = '';
+        let stderr = '';
+        child.stdout.once('data', (chunk: Buffer) => {
+          firstChunk = chunk.toString('utf8');
+          child.stdout.destroy();
+        });
+        child.stderr.on('data', (chunk: Buffer) => (stderr += chunk.toString('utf8')));
+        child.on('error', reject);
+        child.on('close', (code) => resolve({ code, firstChunk, stderr }));
+      });
     },
     file(name: string, content: string): string {
       const path = join(work, name);
