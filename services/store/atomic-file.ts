@@ -1,6 +1,7 @@
 import { randomBytes } from 'node:crypto';
-import { link, mkdir, open, rename, unlink } from 'node:fs/promises';
+import { link, open, rename, unlink } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
+import { makeDirectory } from './make-directory.js';
 
 /**
  * Crash-safe file writes for a store shared by several processes: the bytes go
@@ -13,7 +14,7 @@ const createdDirectories = new Set<string>();
 
 async function ensureDirectory(directory: string): Promise<void> {
   if (createdDirectories.has(directory)) return;
-  await mkdir(directory, { recursive: true });
+  await makeDirectory(directory);
   createdDirectories.add(directory);
 }
 
