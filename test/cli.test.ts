@@ -90,6 +90,9 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     ['a bad method', () => ['analyze', 'x.csv', '--method', 'magic'], /--method must be one of bayes, fourier/],
     ['points per decade out of range', () => ['analyze', file('ok.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--points-per-decade', '5'], /points_per_decade/],
     ['a broken calibration file', () => ['analyze', file('ok2.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '1', '--calibration', file('cal.json', '{"model":"linear"}')], /CALIBRATION_BAD_FILE/],
+    ['an --out folder below a file', () => ['analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--out', join(file('taken', 'a file'), 'out')], /taken.*a parent is a file, not a folder.*FILE_NOT_WRITABLE/],
+    ['an --out folder the file system refuses (/proc)', () => ['analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--out', '/proc/heatpath-out'], /\/proc\/heatpath-out.*FILE_NOT_WRITABLE/],
+    ['a calibration --out in a missing folder', () => ['calibrate', join(demo, 'fh-tt2_q12_calibration-points.csv'), '--model', 'linear', '--out', join(work, 'missing', 'cal.json')], /missing.*cal\.json.*FILE_NOT_WRITABLE/],
   ];
   for (const [what, args, message] of cases) {
     it(what, () => {

@@ -1,4 +1,3 @@
-import { mkdir, writeFile } from 'node:fs/promises';
 import { basename, extname, join } from 'node:path';
 import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-file.js';
 import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
@@ -13,6 +12,7 @@ import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, po
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { formatResultSummary } from './format-result-summary.js';
 import { readInputFile } from './read-input-file.js';
+import { makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
 export const analyzeUsage = `heatpath analyze FILE... [options]
 
@@ -109,9 +109,9 @@ export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions
 async function writeResultFiles(outRoot: string, file: string, result: AnalysisResult, severalChannels: boolean): Promise<string> {
   const stem = basename(file, extname(file));
   const dir = join(outRoot, severalChannels ? `${stem}-${safeName(result.source.channel)}` : stem);
-  await mkdir(dir, { recursive: true });
-  await writeFile(join(dir, 'result.json'), JSON.stringify(result, null, 2) + '\n');
-  for (const artifact of resultArtifacts(result)) await writeFile(join(dir, artifact.name), artifact.content);
+  await makeOutputDirectory(dir);
+  await writeOutputFile(join(dir, 'result.json'), JSON.stringify(result, null, 2) + '\n');
+  for (const artifact of resultArtifacts(result)) await writeOutputFile(join(dir, artifact.name), artifact.content);
   return dir;
 }
 

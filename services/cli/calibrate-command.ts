@@ -1,4 +1,4 @@
-import { writeFile } from 'node:fs/promises';
+import { writeOutputFile } from './write-output-file.js';
 import { createHash } from 'node:crypto';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCalibrationPoints } from '../../shared/input/parse-calibration-points.js';
@@ -47,7 +47,7 @@ export async function runCalibrateCommand(argv: string[], print: (text: string) 
     ].join('\n') + '\n',
   );
   if (values.out) {
-    await writeFile(values.out as string, JSON.stringify(calibration, null, 2) + '\n');
+    await writeOutputFile(values.out as string, JSON.stringify(calibration, null, 2) + '\n');
     print(`  written to          ${values.out}\n`);
   }
   return 0;

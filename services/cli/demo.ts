@@ -6,7 +6,8 @@
  * power-cycling campaign of module M31 and finds Rth-JC of module M41 by two
  * interfaces.
  */
-import { mkdir, readdir } from 'node:fs/promises';
+import { readdir } from 'node:fs/promises';
+import { makeOutputDirectory } from './write-output-file.js';
 import { join, relative } from 'node:path';
 import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
@@ -25,7 +26,7 @@ const print = (text: string) => process.stdout.write(text.endsWith('\n') ? text 
 const shown = (path: string) => relative(process.cwd(), path) || '.';
 
 async function runDemo(): Promise<void> {
-  await mkdir(outDir, { recursive: true });
+  await makeOutputDirectory(outDir);
   const files = (await readdir(dataDir)).sort();
   const transients = files.filter((f) => !f.includes('calibration-points')).map((f) => join(dataDir, f));
   print(`heatpath demo: ${transients.length} SYNTHETIC transients of the invented Fernhill Power Reliability Lab (${shown(dataDir)})\n`);

@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
-import { appendFile, mkdir, readdir, readFile, writeFile } from 'node:fs/promises';
+import { readdir, readFile } from 'node:fs/promises';
+import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { analysisInputsFromOptions } from './analysis-options.js';
@@ -61,7 +62,7 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
   const processFile = values.local ? localProcessor(values, outDir) : serverProcessor(uploadTargetFrom(values, 'reprocess'), values);
 
   const files = (await listTransientFiles(archive, outDir)).map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
-  await mkdir(outDir, { recursive: true });
+  await makeOutputDirectory(outDir);
   const outcomes = await readState(join(outDir, STATE_FILE));
   const progress = new ProgressReport(files.length);
 
@@ -78,7 +79,7 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
       }
       const outcome: FileOutcome = { file: relativePath, sha256, ...(await processFile(path, relativePath, bytes)) };
       outcomes.set(relativePath, outcome);
-      await appendFile(join(outDir, STATE_FILE), JSON.stringify(outcome) + '\n');
+      await appendOutputFile(join(outDir, STATE_FILE), JSON.stringify(outcome) + '\n');
       progress.record(relativePath, outcome.status, false);
     }
   };
@@ -86,7 +87,7 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
   progress.finish();
 
   const inRun = files.map(({ relativePath }) => outcomes.get(relativePath)!).filter(Boolean);
-  await writeFile(join(outDir, SUMMARY_FILE), summaryCsv(inRun));
+  await writeOutputFile(join(outDir, SUMMARY_FILE), summaryCsv(inRun));
   const count = (status: FileOutcome['status']) => inRun.filter((outcome) => outcome.status === status).length;
   print(`${files.length} files: ${count('ok')} ok, ${count('rejected')} rejected, ${count('failed')} failed (${progress.skipped} done before); summary ${join(outDir, SUMMARY_FILE)}`);
   return count('rejected') > 0 ? 2 : count('failed') > 0 ? 1 : 0;

@@ -52,6 +52,7 @@ export const errorCatalogue = {
   // ---- CLI usage ----
   CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and options.' },
   FILE_NOT_READABLE: { status: 400, title: 'A file cannot be read', hint: 'Check the path and its permissions.' },
+  FILE_NOT_WRITABLE: { status: 400, title: 'An output file or folder cannot be written', hint: 'Choose an output path (--out) inside a folder you may write to.' },
 
   // ---- service: configuration ----
   CONFIG_INVALID: { status: 500, title: 'The service configuration is not valid', hint: 'Fix the environment variables listed above and start again; README.md lists them with their defaults.' },

@@ -22,7 +22,8 @@ export function cliWorkspace(prefix: string) {
   return {
     work,
     heatpath(...args: string[]) {
-      const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work });
+      // Bounded: a hang (a loop on some file system) fails the test instead of stalling the run.
+      const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work, timeout: 60_000 });
       return { code: run.status, stdout: run.stdout, stderr: run.stderr };
     },
     /** Runs `heatpath` with a reader that takes the first chunk of its printout and closes the pipe (`| head`). */
