@@ -1,6 +1,7 @@
 import { pino } from 'pino';
 import { startWorkers } from '../workers/main.js';
 import { serviceConfigOrExit } from './config/service-config-or-exit.js';
+import { startedOrExit } from './config/started-or-exit.js';
 import { AnalysisQueue } from '../workers/analysis-queue.js';
 import { withQueueDeadline } from './api/jobs/deadline-queue.js';
 import { closeOnSignals, startApi } from './api/start-api.js';
@@ -26,8 +27,8 @@ if (!redisAnswers) {
   process.exit(1);
 }
 
-const api = await startApi(config, logger);
-const workers = await startWorkers({ config, logger, metricsRegistry: api.app.metricsRegistry });
+const api = await startedOrExit('the API', startApi(config, logger));
+const workers = await startedOrExit('the analysis workers', startWorkers({ config, logger, metricsRegistry: api.app.metricsRegistry }));
 closeOnSignals(logger, async () => {
   await api.close();
   await workers.close();

@@ -5,6 +5,7 @@ import { collectDefaultMetrics, Registry } from 'prom-client';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { ServiceConfig } from '../services/config/service-config.js';
 import { serviceConfigOrExit } from '../services/config/service-config-or-exit.js';
+import { startedOrExit } from '../services/config/started-or-exit.js';
 import { AnalysisQueue } from './analysis-queue.js';
 import { AnalysisWorker } from './analysis-worker.js';
 import { UploadRecovery } from './recover-uploads.js';
@@ -98,7 +99,7 @@ async function runWorkerProcess(): Promise<void> {
     });
     logger.info({ url: `http://${config.host}:${metrics.port}/metrics` }, 'worker metrics served');
   }
-  const workers = await startWorkers({ config, logger, metricsRegistry });
+  const workers = await startedOrExit('the analysis workers', startWorkers({ config, logger, metricsRegistry }));
   let stopping = false;
   const stop = (signal: string) => {
     if (stopping) return;

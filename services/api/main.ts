@@ -1,5 +1,6 @@
 import { pino } from 'pino';
 import { serviceConfigOrExit } from '../config/service-config-or-exit.js';
+import { startedOrExit } from '../config/started-or-exit.js';
 import { closeOnSignals, startApi } from './start-api.js';
 
 /**
@@ -9,5 +10,5 @@ import { closeOnSignals, startApi } from './start-api.js';
  */
 const config = serviceConfigOrExit();
 const logger = pino({ level: config.logLevel, name: 'heatpath-api' });
-const api = await startApi(config, logger);
+const api = await startedOrExit('the API', startApi(config, logger));
 closeOnSignals(logger, api.close);

@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { access, constants, mkdir, stat } from 'node:fs/promises';
+import { access, constants, stat } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { PARSER_VERSION } from '../../shared/analysis/algorithm-version.js';
@@ -8,6 +8,8 @@ import { canonicalJson } from '../jobs/canonical-json.js';
 import { createFileExclusive, removeFileDurably, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
 import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient-codec.js';
 import { exists, listNames, readJson, readOrNull, unlinkIfPresent } from './store-files.js';
+import { fileErrorReason } from './file-error-reason.js';
+import { makeDirectory } from './make-directory.js';
 import { UploadSummaryIndex, type UploadSummary } from './upload-summary-index.js';
 import type {
   BatchRecord,
@@ -274,7 +276,11 @@ export class TransientStore {
 
   /** Creates the data directory if it is not there yet: a new installation starts with an empty store. */
   async ensureDataDir(): Promise<void> {
-    await mkdir(this.dataDir, { recursive: true });
+    try {
+      await makeDirectory(this.dataDir);
+    } catch (error) {
+      throw new Error(`the data directory ${this.dataDir} cannot be created (${fileErrorReason(error)}): point HEATPATH_DATA_DIR at a folder this user may write to`);
+    }
   }
 
   /** Cheap readiness: the data directory exists and this process may write in it. */
