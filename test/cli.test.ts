@@ -87,6 +87,7 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     ['no power for temperature input', () => ['analyze', file('nopower.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`)], /POWER_REQUIRED/],
     ['voltage without a calibration', () => ['analyze', file('volts.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '10'], /CALIBRATION_REQUIRED/],
     ['an unknown option', () => ['analyze', 'x.csv', '--bogus'], /CLI_USAGE/],
+    ['a value starting with a dash, as its own argument', () => ['analyze', 'x.csv', '--power-w', '-5'], /ambiguous.*use '--power-w=-XYZ'.*CLI_USAGE/],
     ['a bad method', () => ['analyze', 'x.csv', '--method', 'magic'], /--method must be one of bayes, fourier/],
     ['points per decade out of range', () => ['analyze', file('ok.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--points-per-decade', '5'], /points_per_decade/],
     ['a broken calibration file', () => ['analyze', file('ok2.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '1', '--calibration', file('cal.json', '{"model":"linear"}')], /CALIBRATION_BAD_FILE/],

@@ -36,7 +36,7 @@ export interface AnalyzeRun {
 
 /** `heatpath analyze`: returns the exit code; writes the report to `print`. */
 export async function runAnalyzeCommand(argv: string[], print: (text: string) => void): Promise<number> {
-  const { values, positionals } = parseCommandLine('analyze', argv, {
+  const { values, positionals } = parseCommandLine(argv, {
     ...analysisOptions,
     'compact-stages': { type: 'string' },
     out: { type: 'string' },

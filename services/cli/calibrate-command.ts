@@ -17,7 +17,7 @@ voltage_V). Prints the fit; --out writes the calibration file that
 const models = CalibrationModelSchema.anyOf.map((literal) => literal.const) as CalibrationModel[];
 
 export async function runCalibrateCommand(argv: string[], print: (text: string) => void): Promise<number> {
-  const { values, positionals } = parseCommandLine('calibrate', argv, {
+  const { values, positionals } = parseCommandLine(argv, {
     model: { type: 'string' },
     out: { type: 'string' },
     help: { type: 'boolean', short: 'h' },

@@ -3,12 +3,16 @@ import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
 
-/** node:util parseArgs, with unknown or malformed options reported as CLI_USAGE. */
-export function parseCommandLine(command: string, argv: string[], options: Options) {
+/**
+ * node:util parseArgs, with unknown or malformed options reported as
+ * CLI_USAGE on one line. Its message is kept whole: for a value that starts
+ * with a dash (--power-w -5) the later lines say how to write it.
+ */
+export function parseCommandLine(argv: string[], options: Options) {
   try {
     return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
   } catch (error) {
-    throw new HeatpathError('CLI_USAGE', `heatpath ${command}: ${(error as Error).message.split('\n')[0]}`);
+    throw new HeatpathError('CLI_USAGE', (error as Error).message.replace(/\s*\n\s*/g, ' ').replace(/\.$/, ''));
   }
 }
 

@@ -42,7 +42,7 @@ type Processor = (path: string, relativePath: string, bytes: Buffer) => Promise<
 
 /** `heatpath reprocess`: exit 0 all done, 2 some files were rejected, 1 some could not be processed. */
 export async function runReprocessCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
-  const { values, positionals } = parseCommandLine('reprocess', argv, {
+  const { values, positionals } = parseCommandLine(argv, {
     ...uploadOptionSpecs,
     local: { type: 'boolean' },
     out: { type: 'string' },
