@@ -61,10 +61,12 @@ async function call(path: string, init: RequestInit & { role?: keyof typeof test
   return response;
 }
 
-/** A JSON answer, checked field by field by the tests. */
+/** A JSON answer, checked field by field by the tests; it must say it is JSON (RFC 8259 media type), as a LIMS client may insist. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 async function getJson(path: string): Promise<any> {
-  return (await call(path)).json();
+  const response = await call(path);
+  expect(response.headers.get('content-type')).toMatch(/^application\/json(;|$)/);
+  return response.json();
 }
 
 async function finishedJob(jobPath: string): Promise<{ state: string; error: unknown }> {
@@ -97,6 +99,7 @@ describe('upload to result over HTTP, Redis and a worker', () => {
   it('returns the same results as analyzeTransientFile (the CLI) for the same file, but for created_at', async () => {
     const response = await call(upload.links.result);
     expect(response.status).toBe(200);
+    expect(response.headers.get('content-type')).toBe('application/json; charset=utf-8');
     const record = (await response.json()) as { results: AnalysisResult[] };
     const served = record.results;
     const expected = analyzeTransientFile({ bytes: csv, fileName, format: 'csv', power: { power_W: SYNTHETIC_POWER_W } }, served[0].provenance.created_at);

@@ -95,7 +95,8 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
     async (request, reply) => {
       const record = await requireResult(request.params.job_id);
       // JSON.stringify, as the CLI prints results: the schema documents them, it does not reshape them.
-      return reply.serializer(JSON.stringify).send({ ...record, results: record.results as AnalysisResult[] });
+      // A custom serializer leaves the media type unset: say it.
+      return reply.type('application/json; charset=utf-8').serializer(JSON.stringify).send({ ...record, results: record.results as AnalysisResult[] });
     },
   );
 

@@ -105,7 +105,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         })),
       );
       // Embedded results go out as JSON.stringify writes them, as on /v1/jobs/:job_id/result.
-      return reply.serializer(JSON.stringify).send({ sample_id, transients });
+      return reply.type('application/json; charset=utf-8').serializer(JSON.stringify).send({ sample_id, transients });
     },
   );
 
