@@ -40,5 +40,7 @@ function formatMessage(title: string, detail: string, hint: string, at: ErrorLoc
     at.line !== undefined ? `line ${at.line}` : undefined,
     at.column !== undefined ? `column ${at.column}` : undefined,
   ].filter(Boolean).join(', ');
-  return `${where ? where + ': ' : ''}${title}: ${detail}. ${hint}`;
+  // A detail that ends its own sentence (a question, a quoted path ending in a period) gets no second stop.
+  const stop = /[.?!]$/.test(detail) ? '' : '.';
+  return `${where ? where + ': ' : ''}${title}: ${detail}${stop} ${hint}`;
 }
