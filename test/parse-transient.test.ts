@@ -22,7 +22,7 @@ function coolingRows(times: number[]): string[] {
 }
 
 
-function expectErrorAt(text: string, fileName: string, code: string, line: number | undefined, column: string | undefined): void {
+function expectErrorAt(text: string, fileName: string, code: string, line: number | undefined, column: number | string | undefined): void {
   const error = catchHeatpathError(() => parseTransient(text, fileName));
   expect(error.code).toBe(code);
   expect(error.location).toEqual({ file: fileName, line, column });
@@ -196,7 +196,7 @@ describe('parseTransient JSON', () => {
     return array;
   };
   const jsonCases: [string, string, string, number | undefined, string | undefined][] = [
-    ['malformed', '{"time_s": [1, 2', 'INPUT_BAD_JSON', undefined, undefined],
+
     ['missing time_s', JSON.stringify({ voltage_V: values }), 'INPUT_MISSING_COLUMN', undefined, undefined],
     ['missing values', JSON.stringify({ time_s: times }), 'INPUT_MISSING_COLUMN', undefined, undefined],
     ['empty channel map', JSON.stringify({ time_s: times, voltage_V: {} }), 'INPUT_MISSING_COLUMN', undefined, 'voltage_V'],
@@ -212,6 +212,12 @@ describe('parseTransient JSON', () => {
     ['too few points', JSON.stringify({ time_s: times.slice(0, 5), voltage_V: values.slice(0, 5) }), 'INPUT_TOO_FEW_POINTS', 4, 'time_s'],
     ['bad meta', JSON.stringify({ time_s: times, voltage_V: values, meta: { a: [1] } }), 'INPUT_BAD_JSON', undefined, 'meta'],
   ];
+  // Syntax errors: line and column (from 1) of the character position JSON.parse names.
+  it('names the line and column of a JSON syntax error', () => {
+    expectErrorAt('{"time_s": [1, 2', 'bad.json', 'INPUT_BAD_JSON', 1, 17);
+    // The "2" after "1 " on the third line.
+    expectErrorAt('{\n  "time_s": [1, 2],\n  "temperature_C": [1 2]\n}', 'bad.json', 'INPUT_BAD_JSON', 3, 23);
+  });
   // JSON places are named as column[index] (from 0), without a line.
   it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, undefined, index === undefined ? column : `${column}[${index}]`));
 });

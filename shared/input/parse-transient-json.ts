@@ -57,8 +57,24 @@ function parseJsonText(text: string, fileName: string): unknown {
     return JSON.parse(text);
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
-    throw new HeatpathError('INPUT_BAD_JSON', message.slice(0, PARSER_MESSAGE_MAX_CHARS), { file: fileName });
+    throw new HeatpathError('INPUT_BAD_JSON', message.slice(0, PARSER_MESSAGE_MAX_CHARS), { file: fileName, ...syntaxErrorPlace(text, message) });
   }
+}
+
+/** Line and column (from 1) of a JSON.parse error whose message names the character position; nothing when it does not. */
+function syntaxErrorPlace(text: string, message: string): { line?: number; column?: number } {
+  const match = /at position (\d+)/.exec(message);
+  if (!match) return {};
+  const position = Math.min(Number(match[1]), text.length);
+  let line = 1;
+  let lineStart = 0;
+  for (let i = 0; i < position; i++) {
+    if (text.charCodeAt(i) === 10) {
+      line++;
+      lineStart = i + 1;
+    }
+  }
+  return { line, column: position - lineStart + 1 };
 }
 
 function readChannels(value: unknown, quantity: TransientQuantity, fileName: string): TransientChannel[] {
