@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { extrapolateSqrtTime } from '../shared/numerics/sqrt-time-extrapolation.js';
+import { extrapolateSqrtTime, MIN_WINDOW_TIME_RATIO } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
@@ -87,6 +87,34 @@ describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)',
     const values = times.map((t) => 100 - 3 * Math.log10(t / 1e-7));
     const { fit } = extrapolateSqrtTime(times, values, { noise_rms: 1e-4 });
     expect(fit.warnings.join(' ')).toMatch(/holds only to \d+ times the noise/);
+  });
+
+  it('on a densely sampled curve with periodic interference, spans at least 1.2 times in time and keeps Tj(0) near the truth', () => {
+    // 2000 samples per decade and an interference line of 0.05 K that aliases to about 0.8 rad per sample,
+    // 20 times the white noise: 8 samples then span 1 % in time, and a window that short fitted to one
+    // wiggle put Tj(0) far off (on a Zth input of 1.1 K/W it moved Rth by a tenth).
+    const dense = logSpacedTimes(1e-6, 1e-2, 2000);
+    const random = createRandom(11);
+    const values = dense.map((t, i) => {
+      const zth = semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K);
+      return tj0_C - power_W * zth + 0.05 * Math.sin(7.1 * i) + 0.0025 * gaussian(random);
+    });
+    const { fit } = extrapolateSqrtTime(dense, values, { noise_rms: estimateNoiseRms(values), slopeSign: -1 });
+    expect(fit.window_end_s / fit.window_start_s).toBeGreaterThanOrEqual(MIN_WINDOW_TIME_RATIO);
+    expect(fit.slope_per_sqrt_s).toBeLessThan(0);
+    expect(Math.abs(fit.y0 - tj0_C)).toBeLessThan(0.1);
+  });
+
+  it('prefers a window whose slope has the given sign, and falls back to the other sign with a warning', () => {
+    const values = semiInfiniteCooling(0.02, 4);
+    const falling = extrapolateSqrtTime(times, values, { noise_rms: estimateNoiseRms(values), slopeSign: -1 });
+    expect(falling.fit.slope_per_sqrt_s).toBeLessThan(0);
+    expect(falling.fit.warnings.join(' ')).not.toMatch(/no sqrt\(t\) window/);
+    // Told that a clean falling curve rises (the other kind): no window does, so a falling one is used and said so.
+    const clean = times.map((t) => tj0_C - power_W * semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K));
+    const told = extrapolateSqrtTime(times, clean, { noise_rms: 0, slopeSign: 1 });
+    expect(told.fit.slope_per_sqrt_s).toBeLessThan(0);
+    expect(told.fit.warnings).toContain('no sqrt(t) window rises as the curve should; the early-time correction uses one that falls');
   });
 
   const bad: [string, Parameters<typeof extrapolateSqrtTime>[2]][] = [

@@ -19,12 +19,27 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * passes, the noise allowance is doubled until one does, and the fit says so.
  * Prefix sums make each window test O(1), and a start is first tested at the
  * length it would need to win, so most starts cost one test.
+ *
+ * An automatic window also spans at least MIN_WINDOW_TIME_RATIO in time.
+ * With `slopeSign` given, an automatic window must also run the way the
+ * curve physically does (a heated surface warms, a cooling one cools): a
+ * short window of the wrong slope fitted to interference extrapolated a
+ * 2-sample wiggle to an offset of a tenth of Rth. Only when no window runs
+ * that way is the sign let go, with a warning (a curve of the other kind).
  */
 
 /** Candidate window starts lie within this many decades of the first positive time. */
 export const START_SCAN_DECADES = 2;
 /** Fewest samples in an automatic window. */
 export const MIN_WINDOW_SAMPLES = 8;
+/**
+ * An automatic window ends at least this many times later than it starts:
+ * the extrapolation to t = 0 then reaches at most about ten times the
+ * window's own span in sqrt(t). On densely sampled curves 8 samples can span
+ * less than 1 % in time, and such a window fitted to a wiggle of interference
+ * put the value at t = 0 a tenth of Rth away.
+ */
+export const MIN_WINDOW_TIME_RATIO = 1.2;
 /** Fewest samples in a window given by the caller (two parameters and a residual). */
 export const MIN_OVERRIDE_WINDOW_SAMPLES = 3;
 /** A window passes when its reduced chi-square is below 1 + CHI_SQUARE_Z * sqrt(2 / dof). */
@@ -45,6 +60,8 @@ export interface SqrtTimeOptions {
   start_s?: number;
   /** Window end; found automatically when omitted. */
   end_s?: number;
+  /** The sign the slope b of y = y0 + b sqrt(t) must have in an automatic window (+1 rising, -1 falling). */
+  slopeSign?: 1 | -1;
 }
 
 export interface SqrtTimeFit {
@@ -77,15 +94,23 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   const sums = new WindowSums(time_s, values);
   const noiseFloor = NOISE_FLOOR_RELATIVE * valueRange(values);
   const warnings: string[] = [];
-  let noiseAllowance = Math.max(options.noise_rms, noiseFloor);
-  let window = chooseWindow(time_s, sums, options, noiseAllowance);
-  for (let doubling = 1; window === undefined && doubling <= MAX_NOISE_DOUBLINGS; doubling++) {
-    noiseAllowance *= 2;
-    window = chooseWindow(time_s, sums, options, noiseAllowance);
-    if (window !== undefined) {
-      warnings.push(`the sqrt(t) law holds only to ${2 ** doubling} times the noise; the early-time correction is uncertain`);
+  const search = (slopeSign: 1 | -1 | undefined) => {
+    let noiseAllowance = Math.max(options.noise_rms, noiseFloor);
+    for (let doubling = 0; doubling <= MAX_NOISE_DOUBLINGS; doubling++, noiseAllowance *= 2) {
+      const found = chooseWindow(time_s, sums, options, noiseAllowance, slopeSign);
+      if (found !== undefined) return { found, doubling };
     }
+    return undefined;
+  };
+  let searched = search(options.slopeSign);
+  if (searched === undefined && options.slopeSign !== undefined) {
+    searched = search(undefined);
+    if (searched !== undefined) warnings.push(`no sqrt(t) window ${options.slopeSign > 0 ? 'rises' : 'falls'} as the curve should; the early-time correction uses one that ${options.slopeSign > 0 ? 'falls' : 'rises'}`);
   }
+  if (searched !== undefined && searched.doubling > 0) {
+    warnings.push(`the sqrt(t) law holds only to ${2 ** searched.doubling} times the noise; the early-time correction is uncertain`);
+  }
+  const window = searched?.found;
   if (window === undefined) {
     throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', 'no time window follows the sqrt(t) law of a heated die surface; give early_time_start_s and early_time_end_s');
   }
@@ -138,8 +163,8 @@ function checkArguments(time_s: Float64Array, values: Float64Array, options: Sqr
   }
 }
 
-/** [start, end] sample indices of the window, or undefined when none passes at this noise. */
-function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeOptions, noise: number): [number, number] | undefined {
+/** [start, end] sample indices of the window, or undefined when none passes at this noise (and, automatic, has the slope sign). */
+function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeOptions, noise: number, slopeSign: 1 | -1 | undefined): [number, number] | undefined {
   const count = time_s.length;
   const fixedStart = options.start_s === undefined ? undefined : firstIndexAtOrAfter(time_s, options.start_s);
   const fixedEnd = options.end_s === undefined ? undefined : lastIndexAtOrBefore(time_s, options.end_s);
@@ -150,6 +175,7 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
     return [fixedStart, fixedEnd];
   }
 
+  const passes = (start: number, end: number) => sums.passes(start, end, noise) && (slopeSign === undefined || sums.slopeSign(start, end) === slopeSign);
   const firstPositive = time_s.findIndex((t) => t > 0);
   const scanLimit_s = time_s[firstPositive] * 10 ** START_SCAN_DECADES;
   const minimumSamples = fixedStart === undefined ? MIN_WINDOW_SAMPLES : MIN_OVERRIDE_WINDOW_SAMPLES;
@@ -160,31 +186,45 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
   let best: [number, number] | undefined;
   for (const start of starts) {
     let end: number;
+    const shortestEnd = Math.max(start + minimumSamples - 1, firstIndexAtOrAfterTime(time_s, MIN_WINDOW_TIME_RATIO * time_s[start]));
     if (fixedEnd !== undefined) {
-      if (fixedEnd - start + 1 < minimumSamples || !sums.passes(start, fixedEnd, noise)) continue;
+      if (fixedEnd < shortestEnd || !passes(start, fixedEnd)) continue;
       end = fixedEnd;
     } else {
-      end = start + minimumSamples - 1;
+      end = shortestEnd;
       if (end >= count) continue;
       if (best !== undefined) {
         // To win, this start's window must grow past the best length, so it must
         // pass at that end and at every end before it: test the far end first,
         // which rules most starts out in one step, and the rest only then.
         const mustReach = start + (best[1] - best[0]) + 1;
-        if (mustReach >= count || !sums.passes(start, mustReach, noise)) continue;
+        if (mustReach >= count || !passes(start, mustReach)) continue;
         let reaches = true;
-        for (let e = mustReach - 1; e >= end && reaches; e--) reaches = sums.passes(start, e, noise);
+        for (let e = mustReach - 1; e >= end && reaches; e--) reaches = passes(start, e);
         if (!reaches) continue;
         end = Math.max(end, mustReach);
-      } else if (!sums.passes(start, end, noise)) continue;
-      while (end + 1 < count && sums.passes(start, end + 1, noise)) end++;
+      } else if (!passes(start, end)) continue;
+      while (end + 1 < count && passes(start, end + 1)) end++;
     }
     if (best === undefined || end - start > best[1] - best[0]) best = [start, end];
   }
-  if (best === undefined && fixedStart !== undefined && options.end_s === undefined) {
+  // Reported by the search without the sign, which runs when this one finds nothing.
+  if (best === undefined && fixedStart !== undefined && options.end_s === undefined && slopeSign === undefined) {
     throw new HeatpathError('PARAM_INVALID', `fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples follow early_time_start_s = ${options.start_s} s`);
   }
   return best;
+}
+
+/** The first index whose time is at least t_s (binary search; the length when none is). */
+function firstIndexAtOrAfterTime(time_s: Float64Array, t_s: number): number {
+  let low = 0;
+  let high = time_s.length;
+  while (low < high) {
+    const middle = (low + high) >>> 1;
+    if (time_s[middle] < t_s) low = middle + 1;
+    else high = middle;
+  }
+  return low;
 }
 
 function firstIndexAtOrAfter(time_s: Float64Array, bound_s: number): number {
@@ -239,6 +279,14 @@ class WindowSums {
       this.xy[i + 1] = this.xy[i] + x * y;
       this.yy[i + 1] = this.yy[i] + y * y;
     }
+  }
+
+  /** The sign of the least-squares slope over samples start..end (0 for a flat line). */
+  slopeSign(start: number, end: number): number {
+    const n = end - start + 1;
+    const sx = this.x[end + 1] - this.x[start];
+    const sy = this.y[end + 1] - this.y[start];
+    return Math.sign(this.xy[end + 1] - this.xy[start] - (sx * sy) / n);
   }
 
   /** Whether the straight-line residual over samples start..end is consistent with the noise. */
