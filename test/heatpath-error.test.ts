@@ -8,7 +8,7 @@ import { HeatpathError } from '../shared/errors/heatpath-error.js';
 describe('HeatpathError message', () => {
   it('names the place, the catalogue title, the detail and the hint', () => {
     const error = new HeatpathError('INPUT_NOT_NUMERIC', '"abc"', { file: 'bench.csv', line: 7, column: 'temperature_C' });
-    expect(error.message).toBe('bench.csv, line 7, column temperature_C: A field is not a number: "abc". Use plain decimal numbers with a point as decimal separator (1e-6, 0.5).');
+    expect(error.message).toBe('bench.csv, line 7, column temperature_C: A field is not a number: "abc". Use plain decimal numbers (1e-6, 0.5); a decimal comma (0,5) is read only when the columns are separated by semicolons or tabs.');
     expect(error).toMatchObject({ code: 'INPUT_NOT_NUMERIC', status: 400 });
   });
 

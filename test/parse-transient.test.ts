@@ -49,6 +49,25 @@ describe('parseTransient CSV', () => {
     );
   });
 
+  it('reads a decimal comma in semicolon- and tab-separated files as the same number with a point, and refuses it between commas', () => {
+    // Reference: ECMAScript Number() of the spelling with a point (ECMA-262 StringToNumber).
+    const spellings = ['0,5', '-1,25e-3', ',75', '3,', '"2,5"', '12'];
+    const point = (v: string) => Number(v.replaceAll('"', '').replace(',', '.'));
+    for (const separator of [';', '\t']) {
+      const rows = [
+        ...spellings.map((v, i) => `${String((i + 1) * 1e-7).replace('.', ',')}${separator}${v}`),
+        ...logTimes(3, 10).slice(10).map((t) => `${t}${separator}1`),
+      ];
+      const parsed = parseTransient(csv(`time_s${separator}zth_K_per_W`, rows), 'locale.csv');
+      spellings.forEach((v, i) => expect(Object.is(parsed.channels[0].values[i], point(v))).toBe(true));
+      expect(parsed.time_s[0]).toBe(1e-7);
+    }
+    const error = catchHeatpathError(() => parseTransient(csv('time_s,zth_K_per_W', ['0,001,25', ...logTimes(3, 10).map((t) => `${t},1`)]), 'ambiguous.csv'));
+    expect(error.code).toBe('INPUT_ROW_LENGTH');
+    // Two commas are not a decimal comma even between semicolons.
+    expect(catchHeatpathError(() => parseTransient(csv('time_s;zth_K_per_W', ['1e-7;1,2,3', ...logTimes(3, 10).slice(1).map((t) => `${t};1`)]), 'x.csv')).code).toBe('INPUT_NOT_NUMERIC');
+  });
+
   it('reads every spelling of a decimal number as ECMAScript Number() does, in plain rows and in spaced or quoted rows alike', () => {
     // Reference: ECMAScript Number() on the same text (ECMA-262 StringToNumber), the parser's definition of a field's value.
     const spellings = ['1', '+2', '-3.5', '4.', '.5', '6e-3', '7.25E+2', '-.8e1', '0009.1000'];
@@ -126,7 +145,7 @@ describe('parseTransient CSV', () => {
     ['duplicate time column', csv('time_s,voltage_V,time_s', ['1,2,3']), 'INPUT_DUPLICATE_COLUMN', 1, 'time_s'],
     ['wrong field count', csv('time_s,voltage_V', ['1e-6,2', '2e-6,3,4']), 'INPUT_ROW_LENGTH', 3, undefined],
     ['empty field', csv('time_s,voltage_V', ['1e-6,']), 'INPUT_NOT_NUMERIC', 2, 'voltage_V'],
-    ['decimal comma', 'time_s;voltage_V\n1e-6;0,61', 'INPUT_NOT_NUMERIC', 2, 'voltage_V'],
+    ['two decimal commas', 'time_s;voltage_V\n1e-6;0,6,1', 'INPUT_NOT_NUMERIC', 2, 'voltage_V'],
     ['NaN', csv('time_s,voltage_V', ['1e-6,NaN']), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
     ['Inf', csv('time_s,voltage_V', ['1e-6,-inf']), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
     ['overflow', csv('time_s,voltage_V', ['1e-6,1e999']), 'INPUT_NOT_FINITE', 2, 'voltage_V'],

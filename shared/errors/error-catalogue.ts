@@ -16,7 +16,7 @@ export const errorCatalogue = {
   INPUT_MIXED_QUANTITIES: { status: 400, title: 'Value columns measure different quantities', hint: 'Put columns of one quantity (all voltage_V, all temperature_C or all zth_K_per_W) in one file.' },
   INPUT_DUPLICATE_COLUMN: { status: 400, title: 'A column name appears twice', hint: 'Give each channel its own name, for example temperature_C@A and temperature_C@B.' },
   INPUT_ROW_LENGTH: { status: 400, title: 'A row has the wrong number of fields', hint: 'Every data row needs one field per header column, separated like the header.' },
-  INPUT_NOT_NUMERIC: { status: 400, title: 'A field is not a number', hint: 'Use plain decimal numbers with a point as decimal separator (1e-6, 0.5).' },
+  INPUT_NOT_NUMERIC: { status: 400, title: 'A field is not a number', hint: 'Use plain decimal numbers (1e-6, 0.5); a decimal comma (0,5) is read only when the columns are separated by semicolons or tabs.' },
   INPUT_NOT_FINITE: { status: 400, title: 'A field is NaN or infinite', hint: 'Remove or repeat-measure the sample; heatpath does not interpolate over missing values.' },
   INPUT_NEGATIVE_TIME: { status: 400, title: 'A time is negative', hint: 'Times are seconds since the power step, starting at or after zero.' },
   INPUT_DUPLICATE_TIME: { status: 400, title: 'A time appears twice', hint: 'Remove the repeated sample; each time must be unique.' },

@@ -6,7 +6,10 @@ import { quoteInputText, shortenInputText } from './quote-input-text.js';
  * CRLF or CR line ends, one header line
  * whose separator (comma, semicolon or tab) is used for every row, `#`
  * comment lines and blank lines anywhere, `# key: value` comment lines before
- * the header as metadata, and plain decimal numbers in every data field.
+ * the header as metadata, and plain decimal numbers in every data field. In a
+ * file separated by semicolons or tabs a decimal comma (0,5) is read as well,
+ * as spreadsheets set to a European locale write it; with commas as
+ * separators it would be ambiguous, so there only the point is.
  */
 export interface NumericCsvTable {
   /** Header names, trimmed and unquoted. */
@@ -20,6 +23,7 @@ export interface NumericCsvTable {
 
 const SEPARATORS = [',', ';', '\t'] as const;
 const DECIMAL_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+const DECIMAL_COMMA_NUMBER = /^[+-]?(?:\d+,\d*|,\d+)(?:[eE][+-]?\d+)?$/;
 const NOT_FINITE_WORD = /^[+-]?(?:nan|inf|infinity)$/i;
 const META_LINE = /^#\s*([^:]+?)\s*:\s*(.*?)\s*$/;
 
@@ -68,7 +72,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
           line: lines.number,
         });
       }
-      for (let c = 0; c < names.length; c++) row[c] = parseNumber(fields[c], fileName, lines.number, names[c]);
+      for (let c = 0; c < names.length; c++) row[c] = parseNumber(fields[c], separator, fileName, lines.number, names[c]);
     }
     for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
     rowLines[rows++] = lines.number;
@@ -224,11 +228,12 @@ function cleanField(field: string): string {
   return unquoted.trim();
 }
 
-function parseNumber(field: string, fileName: string, line: number, name: string): number {
+function parseNumber(field: string, separator: string, fileName: string, line: number, name: string): number {
   // Most fields are plain numbers: skip the trimming and unquoting for them.
   const plain = DECIMAL_NUMBER.test(field);
-  const text = plain ? field : cleanField(field);
-  if (!plain && !DECIMAL_NUMBER.test(text)) {
+  let text = plain ? field : cleanField(field);
+  if (!plain && separator !== ',' && DECIMAL_COMMA_NUMBER.test(text)) text = text.replace(',', '.');
+  else if (!plain && !DECIMAL_NUMBER.test(text)) {
     const at = { file: fileName, line, column: shortenInputText(name) };
     if (NOT_FINITE_WORD.test(text)) throw new HeatpathError('INPUT_NOT_FINITE', quoteInputText(text), at);
     throw new HeatpathError('INPUT_NOT_NUMERIC', text === '' ? 'the field is empty' : quoteInputText(text), at);
