@@ -3,10 +3,10 @@ import { dirname } from 'node:path';
 
 /**
  * Creates a folder and its missing parents, like mkdir -p, but ends on every
- * file system. Node's recursive mkdir loops forever at full CPU where a
- * parent exists yet refuses children with ENOENT (under /proc, through a
- * dangling symlink); here each folder is tried at most twice, and an ENOENT
- * once its parent exists is final.
+ * file system. Node 20's recursive mkdir loops forever at full CPU where a
+ * parent exists yet refuses children with ENOENT (under /proc); here each
+ * folder is tried at most twice, and an ENOENT once its parent exists is
+ * final.
  */
 export async function makeDirectory(path: string): Promise<void> {
   if (await created(path)) return;

@@ -23,9 +23,9 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * An automatic window also spans at least MIN_WINDOW_TIME_RATIO in time.
  * With `slopeSign` given, an automatic window must also run the way the
  * curve physically does (a heated surface warms, a cooling one cools): a
- * short window of the wrong slope fitted to interference extrapolated a
- * 2-sample wiggle to an offset of a tenth of Rth. Only when no window runs
- * that way is the sign let go, with a warning (a curve of the other kind).
+ * short window of the wrong slope, fitted to interference, put the value at
+ * t = 0 a tenth of Rth away. Only when no window runs that way is the sign
+ * let go, with a warning (a curve of the other kind).
  */
 
 /** Candidate window starts lie within this many decades of the first positive time. */
