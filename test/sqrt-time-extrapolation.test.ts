@@ -109,12 +109,15 @@ describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)',
     const values = semiInfiniteCooling(0.02, 4);
     const falling = extrapolateSqrtTime(times, values, { noise_rms: estimateNoiseRms(values), slopeSign: -1 });
     expect(falling.fit.slope_per_sqrt_s).toBeLessThan(0);
-    expect(falling.fit.warnings.join(' ')).not.toMatch(/no sqrt\(t\) window/);
+    expect(falling.fit.warnings.join(' ')).not.toMatch(/check the transient kind/);
     // Told that a clean falling curve rises (the other kind): no window does, so a falling one is used and said so.
     const clean = times.map((t) => tj0_C - power_W * semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K));
     const told = extrapolateSqrtTime(times, clean, { noise_rms: 0, slopeSign: 1 });
     expect(told.fit.slope_per_sqrt_s).toBeLessThan(0);
-    expect(told.fit.warnings).toContain('no sqrt(t) window rises as the curve should; the early-time correction uses one that falls');
+    expect(told.fit.warnings).toContain('the sqrt(t) window falls where the curve should rise; check the transient kind');
+    // A window given by the caller is not searched, but its slope is still checked.
+    const given = extrapolateSqrtTime(times, clean, { noise_rms: 0, slopeSign: 1, start_s: 1e-5, end_s: 1e-3 });
+    expect(given.fit.warnings).toContain('the sqrt(t) window falls where the curve should rise; check the transient kind');
   });
 
   const bad: [string, Parameters<typeof extrapolateSqrtTime>[2]][] = [

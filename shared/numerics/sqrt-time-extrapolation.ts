@@ -25,7 +25,8 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * curve physically does (a heated surface warms, a cooling one cools): a
  * short window of the wrong slope, fitted to interference, put the value at
  * t = 0 a tenth of Rth away. Only when no window runs that way is the sign
- * let go, with a warning (a curve of the other kind).
+ * let go; a window that runs the other way, found so or given, is warned of
+ * (a curve of the other kind).
  */
 
 /** Candidate window starts lie within this many decades of the first positive time. */
@@ -103,10 +104,7 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
     return undefined;
   };
   let searched = search(options.slopeSign);
-  if (searched === undefined && options.slopeSign !== undefined) {
-    searched = search(undefined);
-    if (searched !== undefined) warnings.push(`no sqrt(t) window ${options.slopeSign > 0 ? 'rises' : 'falls'} as the curve should; the early-time correction uses one that ${options.slopeSign > 0 ? 'falls' : 'rises'}`);
-  }
+  if (searched === undefined && options.slopeSign !== undefined) searched = search(undefined);
   if (searched !== undefined && searched.doubling > 0) {
     warnings.push(`the sqrt(t) law holds only to ${2 ** searched.doubling} times the noise; the early-time correction is uncertain`);
   }
@@ -121,6 +119,11 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   const noise = Math.max(options.noise_rms, noiseFloor);
   if (line.residualRms > POOR_FIT_NOISE_RATIO * noise && warnings.length === 0) {
     warnings.push(`the sqrt(t) fit residual is ${(line.residualRms / noise).toFixed(1)} times the noise`);
+  }
+  // A window that runs the other way: the automatic search found no other, or the caller gave it.
+  if (options.slopeSign !== undefined && Math.sign(line.slope) === -options.slopeSign) {
+    const [should, does] = options.slopeSign > 0 ? ['rise', 'falls'] : ['fall', 'rises'];
+    warnings.push(`the sqrt(t) window ${does} where the curve should ${should}; check the transient kind`);
   }
   if (time_s[end] < SHORT_WINDOW_TIME_RATIO * time_s[start]) {
     warnings.push(`the sqrt(t) window ${time_s[start]} s to ${time_s[end]} s is short; the value at t = 0 is poorly anchored`);

@@ -66,9 +66,6 @@ export function zthFromTemperature(time_s: Float64Array, temperature_C: Float64A
   const { corrected, report } = correctEarlyTime(time_s, temperature_C, options, sign);
   const zth_K_per_W = new Float64Array(time_s.length);
   for (let i = 0; i < time_s.length; i++) zth_K_per_W[i] = (sign * (corrected[i] - report.t0_value)) / power_W;
-  if (sign * report.slope_per_sqrt_s < 0) {
-    report.warnings.push(`the early-time slope has the sign of a ${options.kind === 'cooling' ? 'heating' : 'cooling'} curve; check the transient kind`);
-  }
   assertRising(zth_K_per_W, options.kind);
   return { time_s, zth_K_per_W, power_W, early_time: report };
 }
