@@ -1,4 +1,3 @@
-import { writeOutputFile } from './write-output-file.js';
 import { createHash } from 'node:crypto';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCalibrationPoints } from '../../shared/input/parse-calibration-points.js';
@@ -6,6 +5,7 @@ import { fitCalibration } from '../../shared/numerics/tsp-calibration.js';
 import { CalibrationModelSchema, type CalibrationModel } from '../../shared/schemas/calibration.js';
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
+import { writeOutputFile } from './write-output-file.js';
 
 export const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly2|poly3|poly4|exp [--out CAL.json]
 

@@ -7,7 +7,6 @@
  * interfaces.
  */
 import { readdir } from 'node:fs/promises';
-import { makeOutputDirectory } from './write-output-file.js';
 import { join, relative } from 'node:path';
 import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
@@ -18,6 +17,7 @@ import { formatResultSummary } from './format-result-summary.js';
 import { packageRoot } from './package-root.js';
 import { readCalibrationFile } from './read-calibration-file.js';
 import { runRthjcCommand } from './rthjc-command.js';
+import { makeOutputDirectory } from './write-output-file.js';
 
 const root = packageRoot(import.meta.url);
 const dataDir = join(root, 'test', 'fixtures', 'demo-lab');

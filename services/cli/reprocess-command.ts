@@ -1,6 +1,5 @@
 import { createHash } from 'node:crypto';
 import { readdir, readFile } from 'node:fs/promises';
-import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { analysisInputsFromOptions } from './analysis-options.js';
@@ -9,6 +8,7 @@ import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { uploadTransient, type UploadTarget } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
+import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
 export const reprocessUsage = `heatpath reprocess DIR (--server URL --key TOKEN | --local) [--out DIR] [options]
 

@@ -1,4 +1,4 @@
-/** A file-system error in a few words a user can act on, for reading or for writing `path`. */
+/** A file-system error in a few words a user can act on, as met while reading a file or while writing one (and its folders). */
 export function fileErrorReason(error: unknown, access: 'read' | 'write' = 'write'): string {
   const code = (error as NodeJS.ErrnoException | undefined)?.code;
   switch (code) {
