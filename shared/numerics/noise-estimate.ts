@@ -1,4 +1,5 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { median } from './median.js';
 
 /**
  * RMS noise of a raw transient in its own units, from the third differences
@@ -38,7 +39,7 @@ export function estimateNoiseRms(values: Float64Array): number {
     differences[i] = values[i + 3] - 3 * values[i + 2] + 3 * values[i + 1] - values[i];
   }
   const deviations = new Float64Array(count);
-  const centre = median(differences.slice());
+  const centre = median(differences);
   for (let i = 0; i < count; i++) deviations[i] = Math.abs(differences[i] - centre);
   const robustScale = median(deviations) * MAD_TO_SIGMA_NORMAL;
   const clip = CLIP_SIGMAS * robustScale;
@@ -53,11 +54,4 @@ export function estimateNoiseRms(values: Float64Array): number {
   }
   if (kept === 0) return 0;
   return Math.sqrt(sumSquares / kept / CLIPPED_SECOND_MOMENT / THIRD_DIFFERENCE_VARIANCE_GAIN);
-}
-
-/** Median of a scratch array (reordered in place). */
-function median(values: Float64Array): number {
-  values.sort();
-  const middle = values.length >> 1;
-  return values.length % 2 === 1 ? values[middle] : 0.5 * (values[middle - 1] + values[middle]);
 }
