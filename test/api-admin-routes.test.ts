@@ -1,4 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
+import { jobIdFor } from '../services/jobs/job-id.js';
 import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
 import { syntheticTransientCsv } from './support/synthetic-upload.js';
 
@@ -60,6 +62,31 @@ describe('batches', () => {
     const cancelled = await post(batch.links.cancel, {});
     expect(cancelled.json()).toMatchObject({ batch_id: batch.batch_id, status: 'cancelled' });
     expect((await post('/v1/batches/batch-none/cancel', {})).json()).toMatchObject({ status: 404 });
+  });
+
+  it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {
+    const uploaded = await context.app.inject({
+      method: 'POST',
+      url: '/v1/transients?sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8',
+      headers: { ...bearer('bench'), 'content-type': 'text/csv' },
+      payload: syntheticTransientCsv(42, 10),
+    });
+    expect(uploaded.statusCode, uploaded.body).toBe(202);
+    const upload = (await context.store.getUpload(uploaded.json().upload_id))!;
+    expect(upload.parameters).toMatchObject({ kind: 'heating', method: 'bayes', compact_stages: 8, points_per_decade: 40 });
+    const created = await post('/v1/batches', { selection: { sample_id: 'B-2' }, parameters: { points_per_decade: 60 } });
+    expect(created.statusCode, created.body).toBe(202);
+    const [entry] = (await context.store.getBatch(created.json().batch_id))!.entries;
+    // Schema defaults filled into the batch's parameters would have made this a cooling, posterior-mean, 5-stage job.
+    const expected = jobIdFor({
+      input_sha256: upload.input_sha256,
+      parameters: { ...upload.parameters, points_per_decade: 60 },
+      power: upload.power,
+      calibration_sha256: upload.calibration_id,
+      algorithm: ALGORITHM_VERSION,
+    });
+    expect(entry.job_id).toBe(expected);
+    await post(created.json().links.cancel, {});
   });
 });
 

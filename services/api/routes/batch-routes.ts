@@ -1,10 +1,10 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
-import { AnalysisParametersSchema } from '../../../shared/schemas/analysis-parameters.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { BatchProgress, BatchReprocessor } from '../../../workers/reprocess-batch.js';
 import { unavailableQueue } from '../jobs/unavailable-queue.js';
+import { analysisParameterOverrides } from '../schemas/analysis-parameter-overrides.js';
 
 const BatchParams = Type.Object({ batch_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
 
@@ -22,7 +22,12 @@ const BatchRequestSchema = Type.Object(
       },
       { additionalProperties: false, description: 'Every given field must match; {} selects the whole archive.' },
     ),
-    parameters: Type.Optional(Type.Partial(AnalysisParametersSchema, { description: 'Replace these parameters of each upload; omitted: reprocess with the current algorithm version.' })),
+    parameters: Type.Optional(
+      Type.Object(analysisParameterOverrides(() => "Omitted: the upload's own."), {
+        additionalProperties: false,
+        description: 'Replace these parameters of each upload and keep its others; omitted: reprocess with the current algorithm version.',
+      }),
+    ),
     calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'Replace each upload\'s calibration by this stored one.' })),
   },
   { additionalProperties: false },

@@ -1,26 +1,10 @@
 import { Type, type Static } from 'typebox';
-import { AnalysisParametersSchema } from '../../../shared/schemas/analysis-parameters.js';
 import { CalibrationSchema } from '../../../shared/schemas/calibration.js';
+import { analysisParameterOverrides } from './analysis-parameter-overrides.js';
 
 const positive = (description: string) => Type.Number({ exclusiveMinimum: 0, description });
 
-/**
- * The shared analysis parameters as optional fields WITHOUT their defaults:
- * fastify fills schema defaults in, and a filled-in `kind: cooling` would
- * override a heating file's `# kind:` line. What a request leaves out comes
- * from the file's metadata, then the shared defaults (resolveAnalysisInputs).
- */
-const partialParameters = Type.Partial(AnalysisParametersSchema).properties;
-const parameterFields = Object.fromEntries(
-  Object.entries(partialParameters).map(([name, field]) => {
-    // A copy with every own property, TypeBox's non-enumerable markers (optional) included, less the default.
-    const copy = Object.defineProperties({}, Object.getOwnPropertyDescriptors(field)) as { default?: unknown; description?: string };
-    const fallback = copy.default;
-    delete copy.default;
-    copy.description = `${copy.description ?? ''} Default: the file's metadata (kind), else ${JSON.stringify(fallback ?? 'automatic')}.`;
-    return [name, copy];
-  }),
-) as unknown as typeof partialParameters;
+const parameterFields = analysisParameterOverrides((schemaDefault) => `Default: the file's metadata (kind), else ${schemaDefault}.`);
 
 /**
  * What a bench says about an uploaded transient, flat so the same fields
