@@ -76,6 +76,26 @@ describe('with a real Redis', () => {
     expectProblem(await upload(context, 'sample_id=S1&power_W=5&current_A=1&voltage_V=5', small), 400, 'REQUEST_INVALID');
   });
 
+  it('400 for query and multipart numbers that are not written as such, instead of rounding or reading them another way', async () => {
+    for (const query of ['points_per_decade=40.9', 'compact_stages=5.5', 'cycle_count=0x10', 'cycle_count=1.5', 'power_W=', 'power_W=50W']) {
+      const fields = query.startsWith('power_W') ? `sample_id=S1&${query}` : `sample_id=S1&power_W=50&${query}`;
+      const problem = expectProblem(await upload(context, fields, small), 400, 'REQUEST_INVALID');
+      expect(problem.errors.map((error: { field: string }) => error.field).join(' ')).toContain(query.split('=')[0]);
+    }
+    const form = multipart([
+      { name: 'sample_id', value: 'S1' },
+      { name: 'power_W', value: '50' },
+      { name: 'cycle_count', value: '1.5' },
+      { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expectProblem(response, 400, 'REQUEST_INVALID');
+    // Plain decimal and exponent forms are numbers (JSON's number grammar, RFC 8259 section 6, with a leading + allowed).
+    const accepted = await upload(context, 'sample_id=S1&power_W=5e1&points_per_decade=%2B40&cycle_count=20000&tags=pc', small);
+    expect(accepted.statusCode, accepted.body).toBe(202);
+    expect(await context.store.getUpload(accepted.json().upload_id)).toMatchObject({ power: { power_W: 50 }, cycle_count: 20000, tags: ['pc'], parameters: { points_per_decade: 40 } });
+  });
+
   it('reads power and kind from the file\'s "# key: value" lines, as the CLI does, and records them', async () => {
     const withHeader = Buffer.concat([Buffer.from('# kind: heating\n# power_W: 42.5\n'), small]);
     const accepted = await upload(context, 'sample_id=S-meta', withHeader);

@@ -1,6 +1,7 @@
 import fastifyMultipart from '@fastify/multipart';
-import { TypeBoxValidatorCompiler, type FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
-import { Type } from 'typebox';
+import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
+import { Type, type TObject } from 'typebox';
+import { Compile } from 'typebox/compile';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
@@ -8,6 +9,7 @@ import { JobStateSchema, JobStatusSchema, readJobStatus, storedJobStatus } from 
 import { UploadLinksSchema, UploadRecordSchema } from '../schemas/upload-record-schema.js';
 import { UploadMetadataSchema, UploadQuerySchema } from '../schemas/transient-metadata.js';
 import { acceptTransientUpload, uploadCaution, uploadLinks } from '../uploads/accept-transient-upload.js';
+import { typedFieldsFromText } from '../uploads/typed-fields-from-text.js';
 import { readMultipartUpload, readRawUpload } from '../uploads/read-upload-request.js';
 
 const UploadAnswerSchema = Type.Object({
@@ -32,8 +34,15 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
   app,
   { store, queue, maxUploadBytes },
 ) => {
-  // Raw bodies are Buffers, which JSON-Schema validators cannot type; TypeBox's own compiler checks the query and headers here.
-  app.setValidatorCompiler(TypeBoxValidatorCompiler);
+  // Raw bodies are Buffers, which JSON-Schema validators cannot type; TypeBox checks the query and headers here,
+  // with numbers and lists read strictly from the query's text (typed-fields-from-text.ts).
+  app.setValidatorCompiler(({ schema, httpPart }) => {
+    const validator = Compile(schema as TObject);
+    return (value) => {
+      const converted = httpPart === 'querystring' ? typedFieldsFromText(schema as TObject, value as Record<string, unknown>) : value;
+      return validator.Check(converted) ? { value: converted } : { error: validator.Errors(converted) };
+    };
+  });
   // The raw bytes are what is stored and hashed: no JSON parsing of the body here.
   app.removeContentTypeParser('application/json');
   app.addContentTypeParser(['text/csv', 'text/plain', 'application/json'], { parseAs: 'buffer', bodyLimit: maxUploadBytes }, (_request, body, done) =>

@@ -4,6 +4,7 @@ import { Compile } from 'typebox/compile';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientFormat } from '../../../shared/input/parse-transient.js';
 import { UploadMetadataSchema, type UploadMetadata, type UploadQuery } from '../schemas/transient-metadata.js';
+import { typedFieldsFromText } from './typed-fields-from-text.js';
 
 /** An upload as received, before anything is checked but its metadata. */
 export interface UploadRequest {
@@ -72,9 +73,7 @@ const metadataValidator = Compile(UploadMetadataSchema);
 
 /** Both forms end here: one TypeBox schema decides what metadata is valid. */
 function validateMetadata(fields: Record<string, unknown>, source: 'querystring' | 'multipart'): UploadMetadata {
-  // Single `tags` fields arrive as strings; the schema wants a list.
-  if (typeof fields.tags === 'string') fields = { ...fields, tags: [fields.tags] };
-  const value = metadataValidator.Default(metadataValidator.Convert(fields));
+  const value = typedFieldsFromText(UploadMetadataSchema, fields);
   if (metadataValidator.Check(value)) return value;
   const validation = metadataValidator.Errors(value).map((issue) => ({ instancePath: issue.instancePath, message: issue.message }));
   // Shaped like fastify's own validation errors, so the problem handler lists the fields the same way.

@@ -1,0 +1,23 @@
+import type { TObject } from 'typebox';
+
+const INTEGER_TEXT = /^[+-]?\d+$/;
+const NUMBER_TEXT = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * Query parameters and multipart fields arrive as text: a field the schema
+ * types as integer or number becomes a number when it is written as one, and
+ * one typed as a list becomes a list of one when given once. Any other text
+ * is left as it is, for the schema check to refuse. TypeBox's own
+ * conversion is lenient on purpose and would take `points_per_decade=40.9`
+ * as 40, `cycle_count=0x10` as 16 and an empty `power_W=` as 0.
+ */
+export function typedFieldsFromText(schema: TObject, fields: Record<string, unknown>): Record<string, unknown> {
+  const typed: Record<string, unknown> = { ...fields };
+  for (const [name, value] of Object.entries(fields)) {
+    if (typeof value !== 'string') continue;
+    const type = (schema.properties[name] as { type?: unknown } | undefined)?.type;
+    if ((type === 'integer' && INTEGER_TEXT.test(value)) || (type === 'number' && NUMBER_TEXT.test(value))) typed[name] = Number(value);
+    else if (type === 'array') typed[name] = [value];
+  }
+  return typed;
+}
