@@ -16,7 +16,11 @@ const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('complet
 const JobOutcomeSchema = Type.Object({
   job_id: Type.String(),
   outcome: OutcomeSchema,
-  result: Type.Optional(ResultRecordSchema),
+  result: Type.Optional(
+    Type.Omit(ResultRecordSchema, ['upload_id', 'sample_id'], {
+      description: "The job's stored result, without the upload and sample it was first queued for: uploads of the same content and parameters share a job.",
+    }),
+  ),
 });
 
 const SampleEntrySchema = Type.Object({
@@ -61,7 +65,10 @@ const SampleDegradationSchema = Type.Object({
 export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> = async (app, { store }) => {
   async function outcomeOf(jobId: string, includeResult: boolean) {
     const result = await store.getResult(jobId);
-    if (result) return { job_id: jobId, outcome: 'completed' as const, ...(includeResult && { result: { ...result, results: result.results as AnalysisResult[] } }) };
+    if (result) {
+      const { upload_id: _firstUpload, sample_id: _firstSample, ...shared } = result;
+      return { job_id: jobId, outcome: 'completed' as const, ...(includeResult && { result: { ...shared, results: shared.results as AnalysisResult[] } }) };
+    }
     return { job_id: jobId, outcome: (await store.hasFailure(jobId)) ? ('failed' as const) : ('pending' as const) };
   }
 

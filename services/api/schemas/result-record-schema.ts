@@ -7,9 +7,9 @@ const nullableString = Type.Union([Type.String(), Type.Null()]);
 /** A stored result (services/store/store-records.ts ResultRecord) as the API returns it. */
 export const ResultRecordSchema = Type.Object({
   job_id: Type.String(),
-  upload_id: Type.String(),
+  upload_id: Type.String({ description: 'The upload the job was first queued for; later uploads of the same content and parameters share the job and this result.' }),
   input_sha256: Type.String(),
-  sample_id: Type.String(),
+  sample_id: Type.String({ description: 'The sample of that first upload.' }),
   algorithm: Type.String({ description: 'Algorithm version that produced the results.' }),
   heatpath_version: Type.String(),
   parameters: AnalysisParametersSchema,
