@@ -60,8 +60,15 @@ describe('batches', () => {
       expect.objectContaining({ batch_id: batch.batch_id }),
     ]);
     const cancelled = await post(batch.links.cancel, {});
-    expect(cancelled.json()).toMatchObject({ batch_id: batch.batch_id, status: 'cancelled' });
+    expect(cancelled.json()).toMatchObject({ batch_id: batch.batch_id, status: 'cancelled', pending: 0, cancelled: 1 });
     expect((await post('/v1/batches/batch-none/cancel', {})).json()).toMatchObject({ status: 404 });
+
+    // Its job left the queue: it is reported cancelled, in the job route and the sample listing, and cannot be retried.
+    const [entry] = (await context.store.getBatch(batch.batch_id))!.entries;
+    expect((await context.app.inject({ url: `/v1/jobs/${entry.job_id}`, headers: bearer('reader') })).json()).toMatchObject({ job_id: entry.job_id, state: 'cancelled' });
+    expect((await post(`/v1/jobs/${entry.job_id}/retry`, {})).json()).toMatchObject({ status: 409, code: 'JOB_NOT_RETRYABLE' });
+    const listing = (await context.app.inject({ url: '/v1/samples/B-1/results', headers: bearer('reader') })).json();
+    expect(listing.transients[0].reprocessed).toEqual([expect.objectContaining({ batch_id: batch.batch_id, job_id: entry.job_id, outcome: 'cancelled' })]);
   });
 
   it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {

@@ -157,7 +157,7 @@ describe('upload to result over HTTP, Redis and a worker', () => {
       progress = await getJson(batch.links.self);
       return progress.pending === 0;
     }, 200);
-    expect(progress).toMatchObject({ total: 1, done: 1, failed: 0, pending: 0 });
+    expect(progress).toMatchObject({ status: 'finished', total: 1, done: 1, failed: 0, pending: 0, cancelled: 0 });
     const listing = await getJson('/v1/samples/LOT7-D3/results');
     expect(listing.transients[0].reprocessed).toEqual([expect.objectContaining({ batch_id: batch.batch_id, outcome: 'completed' })]);
   }, 120_000);

@@ -66,7 +66,7 @@ describe('BatchReprocessor (real Redis)', () => {
     await queue.enqueue(interactive, { priority: JOB_PRIORITY.interactive });
     const batch = await batches.create({ selection: { bench: 'bench-7' }, parameters: { points_per_decade: 30 }, created_by: 'admin' });
     const cancelled = await batches.cancel(batch.batch_id);
-    expect(cancelled).toMatchObject({ status: 'cancelled', total: uploads.length, pending: uploads.length });
+    expect(cancelled).toMatchObject({ status: 'cancelled', total: uploads.length, pending: 0, cancelled: uploads.length });
     const record = (await fixture.store.getBatch(batch.batch_id))!;
     for (const entry of record.entries) expect(await queue.getJobState(entry.job_id)).toBeNull();
     expect((await queue.getJobState(interactive.job_id))?.state).toBe('prioritized');

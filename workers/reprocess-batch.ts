@@ -18,13 +18,17 @@ export interface BatchRequest {
 
 export interface BatchProgress {
   batch_id: string;
-  status: BatchRecord['status'];
+  /** finished: running and every job has an outcome. */
+  status: 'running' | 'finished' | 'cancelled';
   created_at: string;
   algorithm: string;
   total: number;
   done: number;
   failed: number;
+  /** Unfinished jobs of a running batch. */
   pending: number;
+  /** Unfinished jobs of a cancelled batch: they will not run (one running when it was cancelled still finishes and counts as done or failed). */
+  cancelled: number;
 }
 
 /** Jobs added to Redis per round trip. */
@@ -121,9 +125,11 @@ export class BatchReprocessor {
       if (outcomes.done.has(entry.job_id)) done++;
       else if (outcomes.failed.has(entry.job_id)) failed++;
     }
+    const unfinished = batch.entries.length - done - failed;
+    const cancelled = batch.status === 'cancelled';
     return {
-      batch_id: batch.batch_id, status: batch.status, created_at: batch.created_at, algorithm: batch.algorithm,
-      total: batch.entries.length, done, failed, pending: batch.entries.length - done - failed,
+      batch_id: batch.batch_id, status: cancelled ? 'cancelled' : unfinished === 0 ? 'finished' : 'running', created_at: batch.created_at, algorithm: batch.algorithm,
+      total: batch.entries.length, done, failed, pending: cancelled ? 0 : unfinished, cancelled: cancelled ? unfinished : 0,
     };
   }
 }

@@ -28,12 +28,16 @@ export class FailedJobRetry {
     }
     const held = await this.queue.getHeldJob(jobId);
     const origin = failure ?? held?.data;
-    if (!origin) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known: neither a stored failure nor the queue names it`);
+    if (!origin) {
+      const batches = await this.store.batchesWithJob(jobId);
+      if (batches.length > 0 && batches.every((batch) => batch.status === 'cancelled')) throw cancelledBatchJob(jobId, batches[0].batch_id);
+      throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known: neither a stored failure nor the queue names it`);
+    }
     const upload = await this.store.getUpload(origin.upload_id);
     if (!upload) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${origin.upload_id} of job ${jobId} is not stored`);
     const batch = origin.batch_id ? await this.store.getBatch(origin.batch_id) : null;
     if (origin.batch_id && !batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${origin.batch_id} of job ${jobId} is not stored`);
-    if (batch?.status === 'cancelled') throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} belongs to batch ${batch.batch_id}, which was cancelled: start a new batch to reprocess its uploads`);
+    if (batch?.status === 'cancelled') throw cancelledBatchJob(jobId, batch.batch_id);
     if (held && held.state !== 'failed') {
       // The processor stores the failure just before the queue marks the job failed.
       if (failure) throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} is still ending its last attempt (${held.state} in the queue): retry in a few seconds`);
@@ -52,4 +56,8 @@ export class FailedJobRetry {
       throw error;
     }
   }
+}
+
+function cancelledBatchJob(jobId: string, batchId: string): HeatpathError {
+  return new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} belongs to batch ${batchId}, which was cancelled: start a new batch to reprocess its uploads`);
 }

@@ -235,6 +235,11 @@ export class TransientStore {
     return records.sort((a, b) => a.created_at.localeCompare(b.created_at));
   }
 
+  /** The batches that asked for this job, oldest first. */
+  async batchesWithJob(jobId: string): Promise<BatchRecord[]> {
+    return (await this.listBatches()).filter((batch) => batch.entries.some((entry) => entry.job_id === jobId));
+  }
+
   // ---- webhooks ----
 
   async putWebhook(record: WebhookRecord): Promise<void> {

@@ -7,7 +7,8 @@ const nullableString = Type.Union([Type.String(), Type.Null()]);
 
 /**
  * A job's state in our own words. `stored`: the upload is safe on disk but
- * not queued yet (Redis was away); recovery queues it.
+ * not queued yet (Redis was away); recovery queues it. `cancelled`: a job of
+ * a cancelled reprocessing batch that had not started.
  */
 export const JobStateSchema = Type.Union([
   Type.Literal('stored'),
@@ -16,6 +17,7 @@ export const JobStateSchema = Type.Union([
   Type.Literal('retrying'),
   Type.Literal('completed'),
   Type.Literal('failed'),
+  Type.Literal('cancelled'),
 ]);
 export type JobState = Static<typeof JobStateSchema>;
 
@@ -57,7 +59,11 @@ export async function readJobStatus(store: TransientStore, queue: AnalysisQueue,
     };
   }
   const queued = await queue.getJobState(jobId).catch(unavailableQueue('the job state is unknown until it answers again'));
-  return queued ? fromQueue(queued) : null;
+  if (queued) return fromQueue(queued);
+  // Not in the queue: a job of a reprocessing batch was removed when the batch was cancelled, or Redis lost it (recovery queues it again).
+  const batches = await store.batchesWithJob(jobId);
+  if (batches.length === 0) return null;
+  return { ...storedJobStatus(jobId), state: batches.every((batch) => batch.status === 'cancelled') ? 'cancelled' : 'stored' };
 }
 
 /** A job whose upload is stored but which no queue knows (yet). */

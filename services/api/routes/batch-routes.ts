@@ -35,13 +35,16 @@ const BatchRequestSchema = Type.Object(
 
 const BatchProgressSchema = Type.Object({
   batch_id: Type.String(),
-  status: Type.Union([Type.Literal('running'), Type.Literal('cancelled')]),
+  status: Type.Union([Type.Literal('running'), Type.Literal('finished'), Type.Literal('cancelled')], {
+    description: 'finished: every job has an outcome (done or failed); cancelled: jobs not started were removed.',
+  }),
   created_at: Type.String(),
   algorithm: Type.String({ description: 'Algorithm version the batch analyses with.' }),
   total: Type.Integer(),
   done: Type.Integer(),
   failed: Type.Integer(),
-  pending: Type.Integer(),
+  pending: Type.Integer({ description: 'Jobs of a running batch without an outcome yet.' }),
+  cancelled: Type.Integer({ description: 'Jobs of a cancelled batch that will not run.' }),
   links: Type.Object({ self: Type.String(), cancel: Type.String() }),
 });
 

@@ -9,8 +9,8 @@ import { sampleDegradation } from '../samples/sample-degradation.js';
 import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 
-const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed')], {
-  description: 'From the store: pending until a result or a final failure is recorded.',
+const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed'), Type.Literal('cancelled')], {
+  description: 'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that did not run.',
 });
 
 const JobOutcomeSchema = Type.Object({
@@ -63,13 +63,14 @@ const SampleDegradationSchema = Type.Object({
 
 /** The LIMS view: every transient of a sample, oldest first, with its job outcomes. */
 export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> = async (app, { store }) => {
-  async function outcomeOf(jobId: string, includeResult: boolean) {
+  async function outcomeOf(jobId: string, includeResult: boolean, batchCancelled = false) {
     const result = await store.getResult(jobId);
     if (result) {
       const { upload_id: _firstUpload, sample_id: _firstSample, ...shared } = result;
       return { job_id: jobId, outcome: 'completed' as const, ...(includeResult && { result: { ...shared, results: shared.results as AnalysisResult[] } }) };
     }
-    return { job_id: jobId, outcome: (await store.hasFailure(jobId)) ? ('failed' as const) : ('pending' as const) };
+    if (await store.hasFailure(jobId)) return { job_id: jobId, outcome: 'failed' as const };
+    return { job_id: jobId, outcome: batchCancelled ? ('cancelled' as const) : ('pending' as const) };
   }
 
   app.get(
@@ -105,7 +106,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
             batches.flatMap((batch) =>
               batch.entries
                 .filter((entry) => entry.upload_id === upload.upload_id && entry.job_id !== upload.job_id)
-                .map(async (entry) => ({ batch_id: batch.batch_id, ...(await outcomeOf(entry.job_id, include_results)) })),
+                .map(async (entry) => ({ batch_id: batch.batch_id, ...(await outcomeOf(entry.job_id, include_results, batch.status === 'cancelled')) })),
             ),
           ),
           links: uploadLinks(upload),
