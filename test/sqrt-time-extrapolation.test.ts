@@ -5,6 +5,7 @@ import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
 import { SILICON_DIE_SLAB, semiInfiniteZth } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
+import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 
 const ARTEFACT_END_S = 8e-6;
 const times = logSpacedTimes(1e-6, 1e-2, 100);
@@ -118,6 +119,33 @@ describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)',
     // A window given by the caller is not searched, but its slope is still checked.
     const given = extrapolateSqrtTime(times, clean, { noise_rms: 0, slopeSign: 1, start_s: 1e-5, end_s: 1e-3 });
     expect(given.fit.warnings).toContain('the sqrt(t) window falls where the curve should rise; check the transient kind');
+  });
+
+  it('takes t = 0 at the first sample, and says so, when the line lands on the wrong side of it (sparse early samples)', () => {
+    // A cooling curve of an invented 5-stage Foster network (Zth(0) = 0, Zth(inf) = sum R = 1.17 K/W) sampled
+    // linearly every 50 ms after a first sample at 10 us: nothing early follows a sqrt(t) law.
+    const r = Float64Array.of(0.01, 0.09, 0.28, 0.24, 0.55);
+    const tau = Float64Array.of(1.4e-5, 8.6e-4, 1.2e-2, 0.19, 3.7);
+    const linear = Float64Array.from({ length: 2000 }, (_, i) => 1e-5 + ((100 - 1e-5) * i) / 1999);
+    const random = createRandom(5);
+    const zth = zthFromFoster(r, tau, linear);
+    const values = zth.map((z) => tj0_C - 50 * z + 0.01 * gaussian(random));
+    const { fit, corrected } = extrapolateSqrtTime(linear, values, { noise_rms: 0.01, slopeSign: -1 });
+    expect(fit.warnings.join(' ')).toMatch(/beyond the first sample it fits/);
+    expect(fit.y0).toBe(values[fit.start_index]);
+    expect(fit.slope_per_sqrt_s).toBe(0);
+    for (let i = 0; i < fit.start_index; i++) expect(corrected[i]).toBe(fit.y0);
+    // Tj(0) from the first sample misses only the 10 us before it: 50 W x Zth(10 us) = 0.25 K here.
+    expect(Math.abs(fit.y0 - tj0_C)).toBeLessThan(50 * zthFromFoster(r, tau, Float64Array.of(1e-5))[0] + 0.05);
+  });
+
+  it('warns when the window starts after a millisecond, when heat has usually left the chip', () => {
+    const late = logSpacedTimes(2e-3, 1, 100);
+    const values = late.map((t) => tj0_C - power_W * semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K));
+    const { fit } = extrapolateSqrtTime(late, values, { noise_rms: 0, slopeSign: -1 });
+    expect(fit.warnings.join(' ')).toMatch(/starts at 0\.002 s, when heat has usually left the chip/);
+    const early = extrapolateSqrtTime(times, semiInfiniteCooling(0.02, 1), { noise_rms: 0.02, slopeSign: -1 });
+    expect(early.fit.warnings.join(' ')).not.toMatch(/left the chip/);
   });
 
   const bad: [string, Parameters<typeof extrapolateSqrtTime>[2]][] = [

@@ -53,6 +53,14 @@ export const MAX_NOISE_DOUBLINGS = 10;
 export const SHORT_WINDOW_TIME_RATIO = 3;
 /** A residual above this multiple of the noise gets a warning. */
 export const POOR_FIT_NOISE_RATIO = 2;
+/**
+ * A window starting later than this gets a warning: the sqrt(t) law holds
+ * only while the heat has not crossed the chip, for power chips of 100 to
+ * 400 um some 0.1 to 2 ms (d^2 / alpha with silicon's alpha = 8.8e-5 m^2/s,
+ * memory), and windows from some microseconds to a few hundred are common
+ * practice. A later start extrapolates over time the law no longer covers.
+ */
+export const LATE_WINDOW_START_S = 1e-3;
 
 export interface SqrtTimeOptions {
   /** RMS noise of `values`, in their units (see noise-estimate.ts). */
@@ -128,9 +136,32 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   if (time_s[end] < SHORT_WINDOW_TIME_RATIO * time_s[start]) {
     warnings.push(`the sqrt(t) window ${time_s[start]} s to ${time_s[end]} s is short; the value at t = 0 is poorly anchored`);
   }
+  if (time_s[start] > LATE_WINDOW_START_S) {
+    warnings.push(
+      `the sqrt(t) window starts at ${time_s[start]} s, when heat has usually left the chip; the value at t = 0 may be off and Rth total too low: ` +
+        'measure from a few microseconds after switching, or give the window',
+    );
+  }
+  // Physically the value at t = 0 lies beyond the first sample the line fits, on the side the curve comes from
+  // (a cooling curve starts hotter). A line that ends up on the other side, beyond the noise, does not describe
+  // the curve (too few early samples, a record that starts too late): then t = 0 is taken at that first sample.
+  const y0StandardError = noise * line.y0Leverage;
+  const wrongSide =
+    options.slopeSign !== undefined &&
+    Math.sign(line.slope) !== -options.slopeSign &&
+    options.slopeSign * (values[start] - line.y0) < -CHI_SQUARE_Z * Math.hypot(noise, y0StandardError);
+  if (wrongSide) {
+    warnings.push(
+      `the sqrt(t) line puts the value at t = 0 (${line.y0.toPrecision(6)}) beyond the first sample it fits (${values[start].toPrecision(6)} at ${time_s[start]} s), ` +
+        'so it does not describe this curve; the first sample was taken as the value at t = 0, and what the curve did before it is missing from Zth and Rth total: ' +
+        'measure from a few microseconds after switching, with dense early samples, or give the window',
+    );
+  }
+  const y0 = wrongSide ? values[start] : line.y0;
+  const slope = wrongSide ? 0 : line.slope;
 
   const corrected = Float64Array.from(values);
-  for (let i = 0; i < start; i++) corrected[i] = line.y0 + line.slope * Math.sqrt(time_s[i]);
+  for (let i = 0; i < start; i++) corrected[i] = y0 + slope * Math.sqrt(time_s[i]);
   return {
     fit: {
       window_start_s: time_s[start],
@@ -138,9 +169,9 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
       start_index: start,
       end_index: end,
       points,
-      y0: line.y0,
-      y0_standard_error: noise * line.y0Leverage,
-      slope_per_sqrt_s: line.slope,
+      y0,
+      y0_standard_error: wrongSide ? noise : y0StandardError,
+      slope_per_sqrt_s: slope,
       residual_rms: line.residualRms,
       automatic: options.start_s === undefined && options.end_s === undefined,
       warnings,
