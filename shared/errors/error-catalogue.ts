@@ -69,7 +69,7 @@ export const errorCatalogue = {
   JOB_NOT_RETRYABLE: { status: 409, title: 'The job cannot be retried', hint: 'Only a job that failed for a reason outside its input (the store, Redis, a crash) can be retried; a job whose input or parameters were at fault fails the same way again: fix them and upload again, or start a batch with other parameters.' },
   IDEMPOTENCY_KEY_REUSED: { status: 409, title: 'The Idempotency-Key was used for a different request', hint: 'Use a fresh Idempotency-Key for every distinct upload; repeat a key only to retry the same upload.' },
   UPLOAD_TOO_LARGE: { status: 413, title: 'The upload is too large', hint: 'Split the measurement or ask the admin to raise HEATPATH_MAX_UPLOAD_BYTES.' },
-  MEDIA_TYPE_UNSUPPORTED: { status: 415, title: 'The Content-Type is not supported', hint: 'Send text/csv, application/json or multipart/form-data (file field plus metadata fields).' },
+  MEDIA_TYPE_UNSUPPORTED: { status: 415, title: 'The Content-Type is not supported', hint: 'Uploads (POST /v1/transients) take text/csv, application/json or multipart/form-data (a file part plus metadata fields); every other route takes application/json.' },
   RATE_LIMITED: { status: 429, title: 'Too many requests for this API key', hint: 'Wait for the Retry-After seconds, then retry; the admin sets HEATPATH_RATE_LIMIT_PER_MINUTE.' },
   SERVICE_UNAVAILABLE: { status: 503, title: 'A backing service is unavailable', hint: 'Retry later; the admin should check Redis and the data directory (see /health/ready).' },
   INTERNAL_ERROR: { status: 500, title: 'Internal error', hint: 'Retry; if it persists, send the request id to the service admin.' },

@@ -3,6 +3,7 @@ import fastifyPlugin from 'fastify-plugin';
 import { errorCatalogue, type ErrorCode } from '../../../shared/errors/error-catalogue.js';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { problemMediaType, problemResponse, problemTypeUri, type Problem } from '../schemas/problem-schema.js';
+import { plainValidationIssues } from './validation-issues.js';
 
 /**
  * Every error leaves the service as RFC 9457 problem+json with a stable code
@@ -85,15 +86,12 @@ function toHeatpathError(error: FastifyError): HeatpathError {
 }
 
 function describeValidation(error: FastifyError): string {
-  return (error.validation ?? [])
-    .map((issue) => `${error.validationContext ?? 'request'}${issue.instancePath || ''} ${issue.message ?? 'is invalid'}`)
+  return plainValidationIssues(error.validation ?? [], error.validationContext ?? 'request')
+    .map((issue) => `${issue.field} ${issue.message}`)
     .join('; ');
 }
 
 function validationErrors(error: FastifyError): Problem['errors'] {
   if (!error.validation) return undefined;
-  return error.validation.map((issue) => ({
-    field: `${error.validationContext ?? 'request'}${issue.instancePath || ''}`,
-    message: issue.message ?? 'is invalid',
-  }));
+  return plainValidationIssues(error.validation, error.validationContext ?? 'request');
 }

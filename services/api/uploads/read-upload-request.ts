@@ -75,7 +75,7 @@ const metadataValidator = Compile(UploadMetadataSchema);
 function validateMetadata(fields: Record<string, unknown>, source: 'querystring' | 'multipart'): UploadMetadata {
   const value = typedFieldsFromText(UploadMetadataSchema, fields);
   if (metadataValidator.Check(value)) return value;
-  const validation = metadataValidator.Errors(value).map((issue) => ({ instancePath: issue.instancePath, message: issue.message }));
+  const validation = metadataValidator.Errors(value);
   // Shaped like fastify's own validation errors, so the problem handler lists the fields the same way.
   throw Object.assign(new Error(`${source} metadata is invalid`), { statusCode: 400, validation, validationContext: source });
 }

@@ -1,0 +1,53 @@
+/** One schema violation as fastify's validators (ajv, TypeBox) report it. */
+export interface ValidationIssue {
+  keyword?: string;
+  instancePath?: string;
+  params?: Record<string, unknown>;
+  message?: string;
+}
+
+/** A violation in plain words: the field as `context/path` and what is wrong with it. */
+export interface PlainIssue {
+  field: string;
+  message: string;
+}
+
+/**
+ * Schema violations in the words a bench script's author needs: a value
+ * outside a list is "must be one of a, b, c" (the validators report one
+ * "must be equal to constant" per allowed value, then "must match a schema
+ * in anyOf"), and an unknown field is named ("must NOT have additional
+ * properties" does not say which; TypeBox adds "schema is false").
+ */
+export function plainValidationIssues(issues: readonly ValidationIssue[], context: string): PlainIssue[] {
+  const allowed = new Map<string, unknown[]>();
+  for (const issue of issues) {
+    if (issue.keyword === 'const' && issue.params && 'allowedValue' in issue.params) {
+      const path = issue.instancePath ?? '';
+      allowed.set(path, [...(allowed.get(path) ?? []), issue.params.allowedValue]);
+    }
+  }
+  const plain: PlainIssue[] = [];
+  const seen = new Set<string>();
+  const add = (field: string, message: string) => {
+    if (seen.has(`${field} ${message}`)) return;
+    seen.add(`${field} ${message}`);
+    plain.push({ field, message });
+  };
+  for (const issue of issues) {
+    const path = issue.instancePath ?? '';
+    const field = `${context}${path}`;
+    const values = allowed.get(path);
+    if (values !== undefined && (issue.keyword === 'const' || issue.keyword === 'anyOf')) {
+      add(field, `must be one of ${values.map((value) => JSON.stringify(value)).join(', ')}`);
+    } else if (issue.keyword === 'additionalProperties') {
+      const named = issue.params?.additionalProperty ?? issue.params?.additionalProperties;
+      for (const name of [named].flat()) if (typeof name === 'string') add(`${field}/${name}`, 'is not a known field');
+    } else if (issue.keyword === 'boolean' && issue.message === 'schema is false') {
+      add(field, 'is not a known field');
+    } else {
+      add(field, issue.message ?? 'is invalid');
+    }
+  }
+  return plain;
+}
