@@ -3,6 +3,7 @@ import { HeatpathError } from '../errors/heatpath-error.js';
 import { quoteInputText } from '../input/quote-input-text.js';
 import { CalibrationSchema, type Calibration, type CalibrationModel } from '../schemas/calibration.js';
 import { fitPolynomial, solveLeastSquares } from './least-squares.js';
+import { valueRange } from './value-range.js';
 
 /**
  * Calibration of a temperature-sensitive parameter (TSP, JESD51-1): the
@@ -43,8 +44,8 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
   const coefficients = degree === undefined ? fitExponential(voltage_V, temperature_C) : fitPolynomial(voltage_V, temperature_C, degree);
   if (coefficients === undefined) throw new HeatpathError('CALIBRATION_TOO_FEW_POINTS', `the points do not determine the ${model} model`);
 
-  const voltage_range_V: [number, number] = [Math.min(...voltage_V), Math.max(...voltage_V)];
-  const temperature_range_C: [number, number] = [Math.min(...temperature_C), Math.max(...temperature_C)];
+  const voltage_range_V = valueRange(voltage_V);
+  const temperature_range_C = valueRange(temperature_C);
   const fitted = evaluate(model, coefficients, voltage_V);
   let squares = 0;
   for (let i = 0; i < count; i++) squares += (fitted[i] - temperature_C[i]) ** 2;
@@ -138,8 +139,7 @@ function assertMonotonic(calibration: Calibration, low_V: number, high_V: number
 
 /** T = c0 + c1 exp(c2 V): fitted as a + b exp(k u) with u = (V - centre) / halfSpan, then mapped back. */
 function fitExponential(voltage_V: Float64Array, temperature_C: Float64Array): Float64Array | undefined {
-  const low = Math.min(...voltage_V);
-  const high = Math.max(...voltage_V);
+  const [low, high] = valueRange(voltage_V);
   const centre = (low + high) / 2;
   const halfSpan = (high - low) / 2;
   const u = voltage_V.map((v) => (v - centre) / halfSpan);
