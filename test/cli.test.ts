@@ -6,6 +6,7 @@ import { createHash } from 'node:crypto';
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 
 const { heatpath, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
@@ -64,6 +65,25 @@ describe('heatpath analyze', () => {
     const run = heatpath('analyze', join(demo, 'fh-tt2_q12_cooling.csv'), '--calibration', cal, '--format', 'json');
     expect(run.code).toBe(0);
     expect(JSON.parse(run.stdout).source.quantity).toBe('voltage_V');
+  });
+});
+
+describe('heatpath analyze on a long record', () => {
+  it('analyses 200 000 samples with --out: the tables keep every sample, the plots draw at most MAX_DRAWN_POINTS per line', () => {
+    // Every 10 us for 2 s, as a bench sampling linearly records a long cooling; the Zth of goodRows' two RC stages.
+    const rows = Array.from({ length: 200_000 }, (_, i) => {
+      const t = (i + 1) * 1e-5;
+      return `${t.toPrecision(8)},${(0.8 * (1 - Math.exp(-t / 1e-3)) + 0.4 * (1 - Math.exp(-t / 0.5))).toFixed(9)}`;
+    });
+    const out = join(work, 'long-out');
+    const run = heatpath('analyze', file('long.csv', `time_s,zth_K_per_W\n${rows.join('\n')}\n`), '--out', out);
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+    const zthRows = readFileSync(join(out, 'long', 'zth.csv'), 'utf8').split('\n').filter((line) => /^\d/.test(line));
+    expect(zthRows).toHaveLength(200_000);
+    const polylines = [...readFileSync(join(out, 'long', 'zth.svg'), 'utf8').matchAll(/<polyline points="([^"]*)"/g)];
+    expect(polylines).toHaveLength(2); // the measurement and the compact fit
+    for (const [, points] of polylines) expect(points.split(' ').length).toBeLessThanOrEqual(MAX_DRAWN_POINTS);
   });
 });
 

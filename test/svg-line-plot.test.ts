@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { svgLinePlot } from '../shared/plots/svg-line-plot.js';
+import { MAX_DRAWN_POINTS, svgLinePlot } from '../shared/plots/svg-line-plot.js';
 
 describe('svgLinePlot', () => {
   const plot = svgLinePlot({
@@ -23,5 +23,25 @@ describe('svgLinePlot', () => {
   it('leaves out points a log axis cannot show', () => {
     const svg = svgLinePlot({ title: 't', xLabel: 'x', yLabel: 'y', xLog: false, yLog: true, series: [{ label: 's', x: [0, 1, 2], y: [0, 10, 100] }] });
     expect(svg.match(/<polyline points="([^"]*)"/)![1].split(' ')).toHaveLength(2);
+  });
+
+  it('plots 200 000 points, drawing at most MAX_DRAWN_POINTS of them, the first, the last and the extremes among them', () => {
+    // A bench sampling every 10 us for 2 s (common practice for long records), with one spike up and one down.
+    const length = 200_000;
+    const x = Float64Array.from({ length }, (_, i) => (i + 1) * 1e-5);
+    const y = Float64Array.from(x, (t) => 1 - Math.exp(-t / 0.1));
+    y[150_000] = 2;
+    y[150_001] = -1;
+    const polyline = (xs: ArrayLike<number>, ys: ArrayLike<number>) =>
+      svgLinePlot({ title: 't', xLabel: 'x', yLabel: 'y', xLog: true, yLog: false, series: [{ label: 's', x: xs, y: ys }] }).match(/<polyline points="([^"]*)"/)![1].split(' ');
+    const drawn = polyline(x, y);
+    expect(drawn.length).toBeLessThanOrEqual(MAX_DRAWN_POINTS);
+    // These four points span the same axes, so the plot of them alone, every point drawn, says where they go.
+    const keyIndices = [0, 150_000, 150_001, length - 1];
+    const keyPoints = polyline(keyIndices.map((i) => x[i]), keyIndices.map((i) => y[i]));
+    expect(drawn[0]).toBe(keyPoints[0]);
+    expect(drawn.at(-1)).toBe(keyPoints[3]);
+    expect(drawn).toContain(keyPoints[1]);
+    expect(drawn).toContain(keyPoints[2]);
   });
 });

@@ -3,6 +3,8 @@
  * enough for Zth, spectra and structure functions to be looked at in a
  * browser or embedded in a report, without a plotting stack on the server.
  */
+import { valueRange } from '../numerics/value-range.js';
+import { pixelColumnDecimation } from './pixel-column-decimation.js';
 
 export interface PlotSeries {
   label: string;
@@ -27,15 +29,23 @@ const WIDTH = 720;
 const HEIGHT = 440;
 const MARGIN = { left: 78, right: 24, top: 40, bottom: 78 };
 const COLOURS = ['#1f5fa8', '#c4572a', '#3d8b3d', '#7a4fa0', '#8a6d1e'];
+const PLOT_WIDTH = WIDTH - MARGIN.left - MARGIN.right;
+const PLOT_HEIGHT = HEIGHT - MARGIN.top - MARGIN.bottom;
+
+/**
+ * The most points drawn of one series: four per pixel column. A longer series
+ * (a bench sampling every microsecond records 10^5..10^6 points) is drawn from
+ * the first, last, lowest and highest point of each column, which looks the
+ * same and keeps the SVG under 30 kB per series; the CSV tables keep every point.
+ */
+export const MAX_DRAWN_POINTS = 4 * (PLOT_WIDTH + 1);
 
 export function svgLinePlot(plot: LinePlot): string {
-  const points = plot.series.flatMap((s) => Array.from(s.x, (x, i) => [x, s.y[i]] as const)).filter(([x, y]) => usable(x, plot.xLog) && usable(y, plot.yLog));
-  const xAxis = axis(points.map(([x]) => x), plot.xLog);
-  const yAxis = axis(points.map(([, y]) => y).concat(plot.yLog ? [] : [0]), plot.yLog);
-  const plotWidth = WIDTH - MARGIN.left - MARGIN.right;
-  const plotHeight = HEIGHT - MARGIN.top - MARGIN.bottom;
-  const px = (x: number) => MARGIN.left + plotWidth * xAxis.fraction(x);
-  const py = (y: number) => MARGIN.top + plotHeight * (1 - yAxis.fraction(y));
+  const shown = plot.series.map((series) => usablePoints(series, plot));
+  const xAxis = axis(rangeOf(shown.map((points) => valueRange(points.x))), plot.xLog);
+  const yAxis = axis(rangeOf(shown.map((points) => valueRange(points.y)).concat(plot.yLog ? [] : [[0, 0]])), plot.yLog);
+  const px = (x: number) => MARGIN.left + PLOT_WIDTH * xAxis.fraction(x);
+  const py = (y: number) => MARGIN.top + PLOT_HEIGHT * (1 - yAxis.fraction(y));
 
   const parts: string[] = [
     `<svg xmlns="http://www.w3.org/2000/svg" width="${WIDTH}" height="${HEIGHT}" viewBox="0 0 ${WIDTH} ${HEIGHT}" font-family="sans-serif" font-size="12">`,
@@ -44,24 +54,25 @@ export function svgLinePlot(plot: LinePlot): string {
   ];
   for (const tick of xAxis.ticks) {
     const x = px(tick).toFixed(1);
-    parts.push(`<line x1="${x}" y1="${MARGIN.top}" x2="${x}" y2="${MARGIN.top + plotHeight}" stroke="#e4e4e4"/>`);
-    parts.push(`<text x="${x}" y="${MARGIN.top + plotHeight + 16}" text-anchor="middle">${formatTick(tick, plot.xLog)}</text>`);
+    parts.push(`<line x1="${x}" y1="${MARGIN.top}" x2="${x}" y2="${MARGIN.top + PLOT_HEIGHT}" stroke="#e4e4e4"/>`);
+    parts.push(`<text x="${x}" y="${MARGIN.top + PLOT_HEIGHT + 16}" text-anchor="middle">${formatTick(tick, plot.xLog)}</text>`);
   }
   for (const tick of yAxis.ticks) {
     const y = py(tick).toFixed(1);
-    parts.push(`<line x1="${MARGIN.left}" y1="${y}" x2="${MARGIN.left + plotWidth}" y2="${y}" stroke="#e4e4e4"/>`);
+    parts.push(`<line x1="${MARGIN.left}" y1="${y}" x2="${MARGIN.left + PLOT_WIDTH}" y2="${y}" stroke="#e4e4e4"/>`);
     parts.push(`<text x="${MARGIN.left - 6}" y="${y}" text-anchor="end" dominant-baseline="middle">${formatTick(tick, plot.yLog)}</text>`);
   }
-  parts.push(`<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${plotWidth}" height="${plotHeight}" fill="none" stroke="#555555"/>`);
-  parts.push(`<text x="${MARGIN.left + plotWidth / 2}" y="${HEIGHT - 44}" text-anchor="middle">${escapeXml(plot.xLabel)}</text>`);
-  parts.push(`<text transform="translate(18 ${MARGIN.top + plotHeight / 2}) rotate(-90)" text-anchor="middle">${escapeXml(plot.yLabel)}</text>`);
+  parts.push(`<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${PLOT_WIDTH}" height="${PLOT_HEIGHT}" fill="none" stroke="#555555"/>`);
+  parts.push(`<text x="${MARGIN.left + PLOT_WIDTH / 2}" y="${HEIGHT - 44}" text-anchor="middle">${escapeXml(plot.xLabel)}</text>`);
+  parts.push(`<text transform="translate(18 ${MARGIN.top + PLOT_HEIGHT / 2}) rotate(-90)" text-anchor="middle">${escapeXml(plot.yLabel)}</text>`);
 
   plot.series.forEach((series, index) => {
     const colour = COLOURS[index % COLOURS.length];
-    const coordinates: string[] = [];
-    for (let i = 0; i < series.x.length; i++) {
-      if (usable(series.x[i], plot.xLog) && usable(series.y[i], plot.yLog)) coordinates.push(`${px(series.x[i]).toFixed(1)},${py(series.y[i]).toFixed(1)}`);
-    }
+    const { x, y } = shown[index];
+    const x_px = x.map(px);
+    const y_px = y.map(py);
+    const drawn = x.length > MAX_DRAWN_POINTS ? pixelColumnDecimation(x_px, y_px) : Array.from(x, (_, i) => i);
+    const coordinates = drawn.map((i) => `${x_px[i].toFixed(1)},${y_px[i].toFixed(1)}`);
     if (series.bars) {
       const base = py(plot.yLog ? yAxis.min : Math.max(0, yAxis.min)).toFixed(1);
       const path = coordinates.map((c) => `M${c.split(',')[0]},${base}V${c.split(',')[1]}`).join('');
@@ -89,9 +100,31 @@ function usable(value: number, log: boolean): boolean {
   return Number.isFinite(value) && (!log || value > 0);
 }
 
-function axis(values: number[], log: boolean): Axis {
-  let min = values.length ? Math.min(...values) : log ? 1 : 0;
-  let max = values.length ? Math.max(...values) : log ? 10 : 1;
+/** The points of a series its axes can show (finite, and positive on a log axis). */
+function usablePoints(series: PlotSeries, plot: LinePlot): { x: Float64Array; y: Float64Array } {
+  const length = Math.min(series.x.length, series.y.length);
+  const x = new Float64Array(length);
+  const y = new Float64Array(length);
+  let count = 0;
+  for (let i = 0; i < length; i++) {
+    if (usable(series.x[i], plot.xLog) && usable(series.y[i], plot.yLog)) {
+      x[count] = series.x[i];
+      y[count] = series.y[i];
+      count++;
+    }
+  }
+  return { x: x.subarray(0, count), y: y.subarray(0, count) };
+}
+
+/** The range spanning the given ranges (one per series: a short list); [Infinity, -Infinity] for none. */
+function rangeOf(ranges: [number, number][]): [number, number] {
+  return [Math.min(...ranges.map(([min]) => min)), Math.max(...ranges.map(([, max]) => max))];
+}
+
+function axis([lowest, highest]: [number, number], log: boolean): Axis {
+  const empty = !(lowest <= highest);
+  let min = empty ? (log ? 1 : 0) : lowest;
+  let max = empty ? (log ? 10 : 1) : highest;
   if (log) {
     min = 10 ** Math.floor(Math.log10(min));
     max = 10 ** Math.ceil(Math.log10(max));
