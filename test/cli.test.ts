@@ -3,9 +3,10 @@
  * process (npm test builds first), on the bundled synthetic demo files.
  */
 import { createHash } from 'node:crypto';
-import { existsSync, readFileSync } from 'node:fs';
+import { copyFileSync, existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { makeDirectory } from '../services/store/make-directory.js';
 import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 
@@ -65,6 +66,23 @@ describe('heatpath analyze', () => {
     const run = heatpath('analyze', join(demo, 'fh-tt2_q12_cooling.csv'), '--calibration', cal, '--format', 'json');
     expect(run.code).toBe(0);
     expect(JSON.parse(run.stdout).source.quantity).toBe('voltage_V');
+  });
+});
+
+describe('heatpath analyze --out with inputs that share a file name', () => {
+  it('gives each its own folder, named after its parent folder or numbered, and prints where each went', async () => {
+    // Labs name every device's file cooling.csv, in a folder per device.
+    for (const device of ['devX', 'devY']) await makeDirectory(join(work, 'lab', device));
+    copyFileSync(join(demo, 'fh-tt1_m07_cooling.csv'), join(work, 'lab', 'devX', 'cooling.csv'));
+    copyFileSync(join(demo, 'fh-tt2_q15_heating.json'), join(work, 'lab', 'devX', 'cooling.json'));
+    copyFileSync(join(demo, 'fh-tt1_m31_cycle-020000.csv'), join(work, 'lab', 'devY', 'cooling.csv'));
+    const inputs = ['lab/devX/cooling.csv', 'lab/devX/cooling.json', 'lab/devY/cooling.csv'];
+    const run = heatpath('analyze', ...inputs, '--out', 'outc');
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+    const folders = [join('outc', 'devX', 'cooling'), join('outc', 'devX', 'cooling-2'), join('outc', 'devY', 'cooling')];
+    expect([...run.stdout.matchAll(/written to +(.*)\/$/gm)].map(([, dir]) => dir)).toEqual(folders);
+    folders.forEach((folder, i) => expect(JSON.parse(readFileSync(join(work, folder, 'result.json'), 'utf8')).source.file).toBe(inputs[i]));
   });
 });
 

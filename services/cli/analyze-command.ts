@@ -1,4 +1,4 @@
-import { basename, extname, join } from 'node:path';
+import { join } from 'node:path';
 import { analyzeTransientFile } from '../../shared/analysis/analyze-transient-file.js';
 import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
@@ -12,6 +12,7 @@ import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, po
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { formatResultSummary } from './format-result-summary.js';
 import { readInputFile } from './read-input-file.js';
+import { claimFolder, resultFolderNames } from './result-folder-names.js';
 import { makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
 export const analyzeUsage = `heatpath analyze FILE... [options]
@@ -79,7 +80,9 @@ interface AnalyzeFilesOptions {
 export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions): Promise<AnalyzeRun> {
   const results: AnalyzeRun['results'] = [];
   const failures: HeatpathError[] = [];
-  for (const file of files) {
+  const folderNames = resultFolderNames(files);
+  const written = new Set<string>();
+  for (const [index, file] of files.entries()) {
     let channelResults: AnalysisResult[];
     let meta: Record<string, string>;
     try {
@@ -98,17 +101,16 @@ export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions
       throw error;
     }
     for (const result of channelResults) {
-      const outDir = options.outRoot ? await writeResultFiles(options.outRoot, file, result, channelResults.length > 1) : undefined;
+      const folder = channelResults.length > 1 ? `${folderNames[index]}-${safeName(result.source.channel)}` : folderNames[index];
+      const outDir = options.outRoot ? await writeResultFiles(claimFolder(join(options.outRoot, folder), written), result) : undefined;
       results.push({ file, result, meta, outDir });
     }
   }
   return { results, failures };
 }
 
-/** DIR/<file stem>[-<channel>]/result.json plus every artifact. */
-async function writeResultFiles(outRoot: string, file: string, result: AnalysisResult, severalChannels: boolean): Promise<string> {
-  const stem = basename(file, extname(file));
-  const dir = join(outRoot, severalChannels ? `${stem}-${safeName(result.source.channel)}` : stem);
+/** DIR/<folder name>[-<channel>]/result.json plus every artifact (folder names: result-folder-names.ts). */
+async function writeResultFiles(dir: string, result: AnalysisResult): Promise<string> {
   await makeOutputDirectory(dir);
   await writeOutputFile(join(dir, 'result.json'), JSON.stringify(result, null, 2) + '\n');
   for (const artifact of resultArtifacts(result)) await writeOutputFile(join(dir, artifact.name), artifact.content);
