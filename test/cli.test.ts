@@ -10,7 +10,7 @@ import { makeDirectory } from '../services/store/make-directory.js';
 import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 
-const { heatpath, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
+const { heatpath, heatpathPrintingTo, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
 
 const goodRows = Array.from({ length: 400 }, (_, i) => {
   const t = 1e-6 * 10 ** (i / 50);
@@ -114,6 +114,18 @@ describe('heatpath analyze into a pipe that its reader closes early (| head)', (
     expect(run.stderr).toBe('');
     expect(run.code).toBe(0);
     for (const name of files) expect(existsSync(join(out, name.replace(/\.csv$/, ''), 'result.json'))).toBe(true);
+  });
+});
+
+describe('heatpath analyze printing to a full device (> /dev/full)', () => {
+  it('says on one line that standard output cannot be written, exits 2, and still writes every --out file', () => {
+    // /dev/full answers every write with ENOSPC (Linux, full(4)); the test needs it rather than skipping without it.
+    expect(existsSync('/dev/full'), 'this test needs /dev/full (Linux)').toBe(true);
+    const files = ['fh-tt1_m07_cooling.csv', 'fh-tt2_q15_heating.json'];
+    const out = join(work, 'full-device');
+    const run = heatpathPrintingTo('/dev/full', 'analyze', ...files.map((name) => join(demo, name)), '--format', 'json', '--out', out);
+    expectUserError(run, /^heatpath analyze: standard output: .*no space left on the device.*\[FILE_NOT_WRITABLE\]\n$/);
+    for (const name of files) expect(existsSync(join(out, name.replace(/\.(csv|json)$/, ''), 'result.json'))).toBe(true);
   });
 });
 

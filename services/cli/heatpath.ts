@@ -1,5 +1,7 @@
 #!/usr/bin/env node
 import { isUserError, userErrorLine } from './user-error-line.js';
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { fileErrorReason } from '../store/file-error-reason.js';
 import { HEATPATH_VERSION } from '../../shared/analysis/algorithm-version.js';
 import { runAnalyzeCommand } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
@@ -65,9 +67,17 @@ export async function main(argv: string[]): Promise<number> {
 
 // A reader that stops early (`heatpath analyze ... | head`) closes the pipe: drop
 // the rest of the printout, as Unix tools do, but finish the run, so files
-// written with --out are complete.
+// written with --out are complete. Any other failure to write the printout (a
+// full disk, an I/O error) also drops the rest and finishes the run, and is one
+// user error line on stderr with exit code 2: the printout is incomplete.
+let printoutFailed = false;
 process.stdout.on('error', (error: NodeJS.ErrnoException) => {
-  if (error.code !== 'EPIPE' && error.code !== 'ERR_STREAM_DESTROYED') throw error;
+  if (error.code === 'EPIPE' || error.code === 'ERR_STREAM_DESTROYED' || printoutFailed) return;
+  printoutFailed = true;
+  const failure = new HeatpathError('FILE_NOT_WRITABLE', `${fileErrorReason(error, 'write')}; the printout is incomplete`, { file: 'standard output' });
+  process.stderr.write(userErrorLine(process.argv[2] ?? '', failure) + '\n');
+  if (process.exitCode === 0) process.exitCode = 2; // the run had finished
 });
 
-process.exitCode = await main(process.argv.slice(2));
+const exitCode = await main(process.argv.slice(2));
+process.exitCode = printoutFailed && exitCode === 0 ? 2 : exitCode;

@@ -7,5 +7,5 @@ export function isUserError(error: unknown): error is HeatpathError {
 
 /** The one line a command prints on stderr for a user error: where, what, how to fix, and the stable code. */
 export function userErrorLine(command: string, error: HeatpathError): string {
-  return `heatpath ${command}: ${error.message} [${error.code}]`;
+  return `heatpath${command ? ` ${command}` : ''}: ${error.message} [${error.code}]`;
 }

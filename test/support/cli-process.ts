@@ -4,7 +4,7 @@
  * process, in a scratch folder that the test file removes afterwards.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { closeSync, mkdtempSync, openSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, expect } from 'vitest';
@@ -25,6 +25,16 @@ export function cliWorkspace(prefix: string) {
       // Bounded: a hang (a loop on some file system) fails the test instead of stalling the run.
       const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work, timeout: 60_000 });
       return { code: run.status, stdout: run.stdout, stderr: run.stderr };
+    },
+    /** Runs `heatpath` with its standard output sent to `path` (`> path`), for outputs that fail (/dev/full). */
+    heatpathPrintingTo(path: string, ...args: string[]) {
+      const stdout = openSync(path, 'w');
+      try {
+        const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work, timeout: 60_000, stdio: ['ignore', stdout, 'pipe'] });
+        return { code: run.status, stderr: run.stderr };
+      } finally {
+        closeSync(stdout);
+      }
     },
     /** Runs `heatpath` with a reader that takes the first chunk of its printout and closes the pipe (`| head`). */
     heatpathReadingFirstChunk(...args: string[]): Promise<{ code: number | null; firstChunk: string; stderr: string }> {
