@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { PARSER_VERSION } from '../../shared/analysis/algorithm-version.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
-import { canonicalJson } from '../jobs/canonical-json.js';
+import { calibrationIdOf } from '../jobs/calibration-id.js';
 import { createFileExclusive, removeFileDurably, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
 import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient-codec.js';
 import { exists, listNames, readJson, readOrNull, unlinkIfPresent } from './store-files.js';
@@ -202,7 +202,7 @@ export class TransientStore {
 
   /** Stores a calibration under the hash of its canonical JSON (the same calibration twice is one record). */
   async putCalibration(calibration: Calibration, storedBy: string): Promise<CalibrationRecord> {
-    const calibrationId = sha256Hex(canonicalJson(calibration));
+    const calibrationId = calibrationIdOf(calibration);
     const existing = await this.getCalibration(calibrationId);
     if (existing) return existing;
     const record: CalibrationRecord = { calibration_id: calibrationId, calibration, stored_at: new Date().toISOString(), stored_by: storedBy };

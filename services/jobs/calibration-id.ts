@@ -1,0 +1,13 @@
+import { createHash } from 'node:crypto';
+import type { Calibration } from '../../shared/schemas/calibration.js';
+import { canonicalJson } from './canonical-json.js';
+
+/**
+ * The id of a calibration: SHA-256 of its canonical JSON, so the same
+ * calibration has the same id wherever it comes from (stored on the service,
+ * or read from a file by `heatpath reprocess --local`). Job ids name the
+ * calibration by it.
+ */
+export function calibrationIdOf(calibration: Calibration): string {
+  return createHash('sha256').update(canonicalJson(calibration), 'utf8').digest('hex');
+}
