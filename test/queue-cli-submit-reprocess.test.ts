@@ -105,6 +105,13 @@ describe('heatpath reprocess', () => {
     expect((await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n')).toHaveLength(stateLines);
   });
 
+  it('lists each option once in its help', async () => {
+    expect(await runReprocessCommand(['--help'], print)).toBe(0);
+    const options = printed.join('\n').match(/^\s+--[a-z-]+/gm)!.map((option) => option.trim());
+    expect(options).toContain('--sample');
+    expect(options.length).toBe(new Set(options).size);
+  });
+
   it('submits an archive to a server, one sample per folder', async () => {
     await writeTransient('lab/SAMPLE-9/t1.csv', 81);
     await writeTransient('lab/SAMPLE-9/t2.csv', 82);

@@ -21,8 +21,7 @@ with the same --out. Writes OUT/reprocess-summary.csv.
   --out DIR               state, summary and local results (default ./heatpath-reprocess)
   --concurrency N         uploads in flight (server mode, default 4)
   --calibration CAL.json  TSP calibration file (local mode)
-${uploadOptionsUsage}
-  --sample ID             default: the name of each file's folder`;
+${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}`;
 
 const STATE_FILE = 'reprocess-state.jsonl';
 const SUMMARY_FILE = 'reprocess-summary.csv';

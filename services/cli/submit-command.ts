@@ -11,7 +11,7 @@ Upload measured transients to the heatpath service, one after the other,
 retrying while the server is busy or away. Prints one line per file:
 FILE<TAB>JOB_ID<TAB>STATE. Submitting a file twice is safe (same job).
 
-${uploadOptionsUsage}
+${uploadOptionsUsage()}
 
 Exit codes: 0 all accepted, 2 a file or option must be fixed (takes
 precedence), 1 the server could not be reached.`;

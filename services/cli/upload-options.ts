@@ -32,15 +32,18 @@ export const uploadOptionSpecs = {
   ...Object.fromEntries(Object.keys(METADATA_OPTIONS).map((name) => [name, { type: 'string' }])),
 } as const;
 
-export const uploadOptionsUsage = `  --server URL            the heatpath service, e.g. http://heatpath.lab:8080
+/** Help text of the upload options; `sampleHelp` says what --sample means to the command. */
+export function uploadOptionsUsage(sampleHelp = 'LIMS sample id'): string {
+  return `  --server URL            the heatpath service, e.g. http://heatpath.lab:8080
   --key TOKEN             API key (role bench or admin)
-  --sample ID             LIMS sample id
+  --sample ID             ${sampleHelp}
   --bench B --channel C --cycle-count N --tag T (repeatable)
   --power-w P | --current-a I --voltage-v V
   --calibration-id ID     a calibration stored on the server
   --kind, --method, --points-per-decade, --early-start-s, --early-end-s,
   --compact-stages        analysis parameters (as for heatpath analyze)
   --retries N             attempts per file when the server is busy or away (default 5)`;
+}
 
 /** Server, key and attempts from the options; CLI_USAGE when one is missing. */
 export function uploadTargetFrom(values: Record<string, unknown>, command: string): UploadTarget {
