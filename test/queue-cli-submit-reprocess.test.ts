@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { mkdir, mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -105,6 +106,52 @@ describe('heatpath reprocess', () => {
     expect((await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n')).toHaveLength(stateLines);
   });
 
+  it('analyses files again when the settings change (method, points per decade, power), and skips them when they do not', async () => {
+    await writeTransient('archive/D1/t1.csv', 73);
+    await writeTransient('archive/D2/t2.csv', 74);
+    const out = join(workDir, 'out');
+    const args = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)];
+    const methodOf = async (file: string) => JSON.parse(await readFile(join(out, 'results', file, 'result.json'), 'utf8')).provenance.method;
+    const summaryRows = async () => (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n').slice(1).map((row) => row.split(','));
+    expect(await runReprocessCommand(args, print)).toBe(0);
+    expect(await methodOf('D1/t1')).toBe('posterior-mean');
+    const firstJobs = (await summaryRows()).map((row) => row[3]);
+    expect(firstJobs.every((jobId) => /^job-[0-9a-f]{40}$/.test(jobId))).toBe(true);
+
+    expect(await runReprocessCommand([...args, '--method', 'fourier'], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/2 files: 2 ok, 0 rejected, 0 failed \(0 done before, 2 redone\)/);
+    expect(await methodOf('D1/t1')).toBe('fourier');
+    expect(await methodOf('D2/t2')).toBe('fourier');
+    const redone = await summaryRows();
+    expect(redone.map((row) => row[4].startsWith('redone: settings changed;'))).toEqual([true, true]);
+    expect(redone.map((row) => row[3])).not.toContain(firstJobs[0]);
+
+    // The same settings again, one of them given explicitly at its default: nothing to do.
+    expect(await runReprocessCommand([...args, '--method', 'fourier', '--kind', 'cooling'], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(2 done before\)/);
+
+    expect(await runReprocessCommand([...args, '--method', 'fourier', '--points-per-decade', '20'], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(0 done before, 2 redone\)/);
+    const otherPower = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(2 * SYNTHETIC_POWER_W), '--method', 'fourier', '--points-per-decade', '20'];
+    expect(await runReprocessCommand(otherPower, print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(0 done before, 2 redone\)/);
+  });
+
+  it('reads a state file that did not record the settings: those files run once more, then are done before', async () => {
+    await writeTransient('archive/D1/t1.csv', 75);
+    const out = join(workDir, 'out');
+    const bytes = await readFile(join(workDir, 'archive/D1/t1.csv'));
+    await mkdir(out, { recursive: true });
+    // A line as the command wrote it before it recorded the job of each file.
+    const sha256 = createHash('sha256').update(bytes).digest('hex');
+    await writeFile(join(out, 'reprocess-state.jsonl'), JSON.stringify({ file: 'D1/t1.csv', sha256, status: 'ok', job_id: '', detail: 'Rth 1 K/W' }) + '\n');
+    const args = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)];
+    expect(await runReprocessCommand(args, print)).toBe(0);
+    expect(errors.join('')).toContain('1/1 ok (redone: settings of the earlier run not recorded) D1/t1.csv');
+    expect(await runReprocessCommand(args, print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(1 done before\)/);
+  });
+
   it('lists each option once in its help', async () => {
     expect(await runReprocessCommand(['--help'], print)).toBe(0);
     const options = printed.join('\n').match(/^\s+--[a-z-]+/gm)!.map((option) => option.trim());
@@ -121,5 +168,45 @@ describe('heatpath reprocess', () => {
     expect(uploads.map((upload) => upload.file_name).sort()).toEqual(['t1.csv', 't2.csv']);
     const summary = await readFile(join(out, 'reprocess-summary.csv'), 'utf8');
     for (const upload of uploads) expect(summary).toContain(upload.job_id);
+  });
+});
+
+describe('heatpath reprocess to a server (real API, real Redis)', () => {
+  it('submits the archive again with other settings, names each file by the job id the server gives it, and skips what it has', async () => {
+    await writeTransient('lab/SAMPLE-10/t1.csv', 83);
+    await writeTransient('lab/SAMPLE-10/t2.csv', 84);
+    const out = join(workDir, 'out');
+    const args = [join(workDir, 'lab'), ...serverOptions(), '--out', out];
+    const stateLines = async () => (await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n').map((line) => JSON.parse(line));
+
+    expect(await runReprocessCommand(args, print)).toBe(0);
+    const first = await stateLines();
+    expect(first.every((line) => line.key === line.job_id)).toBe(true);
+
+    expect(await runReprocessCommand([...args, '--method', 'fourier'], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(0 done before, 2 redone\)/);
+    const uploads = await api.store.listUploads({ sample_id: 'SAMPLE-10' });
+    expect(uploads.map((upload) => upload.parameters.method).sort()).toEqual(['fourier', 'fourier', 'posterior-mean', 'posterior-mean']);
+    const second = (await stateLines()).slice(2);
+    expect(second.every((line) => line.key === line.job_id && !first.some((earlier) => earlier.job_id === line.job_id))).toBe(true);
+
+    expect(await runReprocessCommand([...args, '--method', 'fourier'], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(2 done before\)/);
+    expect(await api.store.listUploads({ sample_id: 'SAMPLE-10' })).toHaveLength(4);
+  });
+
+  it('does not count files analysed locally as submitted to the server', async () => {
+    await writeTransient('lab/SAMPLE-11/t1.csv', 85);
+    const out = join(workDir, 'out');
+    expect(await runReprocessCommand([join(workDir, 'lab'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)], print)).toBe(0);
+    expect(await runReprocessCommand([join(workDir, 'lab'), ...serverOptions(), '--out', out], print)).toBe(0);
+    expect(errors.join('')).toContain('1/1 ok (redone: done before locally) SAMPLE-11/t1.csv');
+    expect(await api.store.listUploads({ sample_id: 'SAMPLE-11' })).toHaveLength(1);
+  });
+
+  it('takes a calibration file only with --local, and a stored calibration only on a server', async () => {
+    const archive = join(workDir, 'lab');
+    await expect(runReprocessCommand([archive, ...serverOptions(), '--calibration', 'cal.json'], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
+    await expect(runReprocessCommand([archive, '--local', '--calibration-id', 'a'.repeat(64)], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
   });
 });

@@ -4,6 +4,7 @@ import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseTransient } from '../../shared/input/parse-transient.js';
+import type { TransientFile } from '../../shared/input/transient-file.js';
 import { isUserError, userErrorLine } from './user-error-line.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
@@ -72,22 +73,31 @@ interface AnalyzeFilesOptions {
   createdAt: string;
 }
 
+/** A file its caller has already read and parsed (`heatpath reprocess` parses each file to name its job). */
+export interface ReadTransientFile {
+  file: string;
+  bytes: Buffer;
+  parsed: TransientFile;
+}
+
 /**
  * Analyse files one after another in this process. A file with a user error
  * is reported and skipped, so one bad file in an archive does not cost the
  * rest; anything else (a defect) stops the run.
  */
-export async function analyzeFiles(files: string[], options: AnalyzeFilesOptions): Promise<AnalyzeRun> {
+export async function analyzeFiles(files: (string | ReadTransientFile)[], options: AnalyzeFilesOptions): Promise<AnalyzeRun> {
   const results: AnalyzeRun['results'] = [];
   const failures: HeatpathError[] = [];
-  const folderNames = resultFolderNames(files);
+  const names = files.map((entry) => (typeof entry === 'string' ? entry : entry.file));
+  const folderNames = resultFolderNames(names);
   const written = new Set<string>();
-  for (const [index, file] of files.entries()) {
+  for (const [index, entry] of files.entries()) {
+    const file = names[index];
     let channelResults: AnalysisResult[];
     let meta: Record<string, string>;
     try {
-      const bytes = await readInputFile(file);
-      const parsed = parseTransient(bytes, file);
+      const bytes = typeof entry === 'string' ? await readInputFile(file) : entry.bytes;
+      const parsed = typeof entry === 'string' ? parseTransient(bytes, file) : entry.parsed;
       meta = parsed.meta;
       channelResults = analyzeTransientFile(
         { bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },

@@ -1,11 +1,15 @@
 import { createHash } from 'node:crypto';
-import { readdir, readFile } from 'node:fs/promises';
+import { readdir } from 'node:fs/promises';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
-import { analysisInputsFromOptions } from './analysis-options.js';
+import type { TransientFile } from '../../shared/input/transient-file.js';
+import { calibrationIdOf } from '../jobs/calibration-id.js';
+import { analysisInputsFromOptions, type AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
+import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
+import { readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
 import { uploadTransient, type UploadTarget } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
@@ -13,31 +17,30 @@ import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-
 export const reprocessUsage = `heatpath reprocess DIR (--server URL --key TOKEN | --local) [--out DIR] [options]
 
 Walk an archive folder (every .csv and .json below DIR) and submit each
-transient to a heatpath server, or analyse it here with --local. Resumable:
-files already done (same content) are skipped when the command runs again
-with the same --out. Writes OUT/reprocess-summary.csv.
+transient to a heatpath server, or analyse it here with --local.
+
+Resumable: OUT/reprocess-state.jsonl remembers each file's job (its content,
+analysis parameters, power, calibration and algorithm version). Run again
+with the same --out, a file done before with the same job is skipped; one
+done under other settings, or changed, is done again (with --local its
+results in OUT/results/ are replaced: give another --out to keep both).
+Writes OUT/reprocess-summary.csv.
 
   --local                 analyse on this machine (results in OUT/results/)
   --out DIR               state, summary and local results (default ./heatpath-reprocess)
   --concurrency N         uploads in flight (server mode, default 4)
-  --calibration CAL.json  TSP calibration file (local mode)
-${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}`;
+  --calibration CAL.json  TSP calibration file (local mode; on a server: --calibration-id)
+${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}
+
+Exit codes: 0 all done, 2 a file or option must be fixed (takes precedence),
+1 a file could not be processed (run again to retry it).`;
 
 const STATE_FILE = 'reprocess-state.jsonl';
 const SUMMARY_FILE = 'reprocess-summary.csv';
 const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
 
-/** One line of the state file: the outcome for one archive file. */
-interface FileOutcome {
-  file: string;
-  sha256: string;
-  /** ok: submitted or analysed; rejected: the file must be fixed; failed: try again. */
-  status: 'ok' | 'rejected' | 'failed';
-  job_id: string;
-  detail: string;
-}
-
-type Processor = (path: string, relativePath: string, bytes: Buffer) => Promise<Pick<FileOutcome, 'status' | 'job_id' | 'detail'>>;
+type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail'>;
+type Processor = (path: string, relativePath: string, bytes: Buffer, job: { jobId: string; parsed?: TransientFile }) => Promise<Processed>;
 
 /** `heatpath reprocess`: exit 0 all done, 2 some files were rejected, 1 some could not be processed. */
 export async function runReprocessCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
@@ -55,15 +58,32 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
   }
   if (positionals.length !== 1) throw new HeatpathError('CLI_USAGE', 'heatpath reprocess needs exactly one archive DIR');
   if (Boolean(values.local) === Boolean(values.server)) throw new HeatpathError('CLI_USAGE', 'heatpath reprocess needs either --server URL --key TOKEN or --local');
+  if (values.local && values['calibration-id'] !== undefined) {
+    throw new HeatpathError('CLI_USAGE', '--calibration-id names a calibration stored on a server; with --local give the calibration file, --calibration CAL.json');
+  }
+  if (!values.local && values.calibration !== undefined) {
+    throw new HeatpathError('CLI_USAGE', '--calibration CAL.json is for --local; on a server name a stored calibration with --calibration-id ID');
+  }
   const archive = resolve(positionals[0]);
   const outDir = resolve((values.out as string | undefined) ?? 'heatpath-reprocess');
   const concurrency = values.local ? 1 : numberOption('concurrency', values.concurrency as string | undefined, { positive: true, integer: true }) ?? 4;
-  const processFile = values.local ? localProcessor(values, outDir) : serverProcessor(uploadTargetFrom(values, 'reprocess'), values);
+  const inputs = await analysisInputsFromOptions(values);
+  const settings: ReprocessSettings = {
+    parameters: inputs.parameters,
+    power: inputs.power,
+    calibration_sha256: inputs.calibration ? calibrationIdOf(inputs.calibration) : ((values['calibration-id'] as string | undefined) ?? null),
+  };
+  const uploadTarget = values.local ? undefined : uploadTargetFrom(values, 'reprocess');
+  const target = uploadTarget ? new URL(uploadTarget.server).href : 'local';
+  const processFile = uploadTarget ? serverProcessor(uploadTarget, values) : localProcessor(inputs, outDir);
 
   const files = (await listTransientFiles(archive, outDir)).map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
   await makeOutputDirectory(outDir);
-  const outcomes = await readState(join(outDir, STATE_FILE));
+  const outcomes = await readReprocessState(join(outDir, STATE_FILE));
+  const thisRun = new Map<string, FileOutcome>();
   const progress = new ProgressReport(files.length);
+  let skipped = 0;
+  let redone = 0;
 
   let next = 0;
   const work = async () => {
@@ -71,24 +91,42 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
       const { path, relativePath } = files[next++];
       const bytes = await readInputFile(path);
       const sha256 = createHash('sha256').update(bytes).digest('hex');
+      const job = archiveFileJobId(bytes, path, sha256, settings);
       const earlier = outcomes.get(relativePath);
-      if (earlier && earlier.sha256 === sha256 && earlier.status !== 'failed') {
-        progress.record(relativePath, earlier.status, true);
+      const reason = earlier ? whyAgain(earlier, { sha256, key: job.jobId, target }) : null;
+      if (earlier && reason === null) {
+        thisRun.set(relativePath, earlier);
+        skipped++;
+        progress.record(relativePath, earlier.status, 'done before');
         continue;
       }
-      const outcome: FileOutcome = { file: relativePath, sha256, ...(await processFile(path, relativePath, bytes)) };
+      const note = earlier && earlier.status !== 'failed' ? `redone: ${reason}` : undefined;
+      if (note) redone++;
+      const processed = await processFile(path, relativePath, bytes, job);
+      const outcome: FileOutcome = {
+        file: relativePath,
+        sha256,
+        key: job.jobId,
+        target,
+        ...processed,
+        detail: note ? `${note}; ${processed.detail}` : processed.detail,
+      };
       outcomes.set(relativePath, outcome);
+      thisRun.set(relativePath, outcome);
       await appendOutputFile(join(outDir, STATE_FILE), JSON.stringify(outcome) + '\n');
-      progress.record(relativePath, outcome.status, false);
+      progress.record(relativePath, outcome.status, note);
     }
   };
   await Promise.all(Array.from({ length: Math.min(concurrency, Math.max(files.length, 1)) }, work));
   progress.finish();
 
-  const inRun = files.map(({ relativePath }) => outcomes.get(relativePath)!).filter(Boolean);
+  const inRun = files.map(({ relativePath }) => thisRun.get(relativePath)).filter((outcome) => outcome !== undefined);
   await writeOutputFile(join(outDir, SUMMARY_FILE), summaryCsv(inRun));
   const count = (status: FileOutcome['status']) => inRun.filter((outcome) => outcome.status === status).length;
-  print(`${files.length} files: ${count('ok')} ok, ${count('rejected')} rejected, ${count('failed')} failed (${progress.skipped} done before); summary ${join(outDir, SUMMARY_FILE)}`);
+  print(
+    `${files.length} files: ${count('ok')} ok, ${count('rejected')} rejected, ${count('failed')} failed ` +
+      `(${skipped} done before${redone > 0 ? `, ${redone} redone` : ''}); summary ${join(outDir, SUMMARY_FILE)}`,
+  );
   return count('rejected') > 0 ? 2 : count('failed') > 0 ? 1 : 0;
 }
 
@@ -106,21 +144,25 @@ function serverProcessor(target: UploadTarget, values: Record<string, unknown>):
   };
 }
 
-/** Local mode analyses each file as `heatpath analyze --out` does, with the same options and checks. */
-function localProcessor(values: Record<string, unknown>, outDir: string): Processor {
-  const inputs = analysisInputsFromOptions(values);
-  return async (path, relativePath) => {
+/**
+ * Local mode analyses each file as `heatpath analyze --out` does, with the
+ * same options and checks, into OUT/results/<its folder>/: a file done again
+ * replaces its earlier results there.
+ */
+function localProcessor(inputs: AnalysisInputs, outDir: string): Processor {
+  return async (path, relativePath, bytes, { jobId, parsed }) => {
     try {
-      const run = await analyzeFiles([path], { ...(await inputs), outRoot: join(outDir, 'results', dirname(relativePath)), createdAt: new Date().toISOString() });
+      const file = parsed ? { file: path, bytes, parsed } : path;
+      const run = await analyzeFiles([file], { ...inputs, outRoot: join(outDir, 'results', dirname(relativePath)), createdAt: new Date().toISOString() });
       if (run.failures.length > 0) return failureOf(run.failures[0]);
-      return { status: 'ok', job_id: '', detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W` };
+      return { status: 'ok', job_id: jobId, detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W` };
     } catch (error) {
       return failureOf(error);
     }
   };
 }
 
-function failureOf(error: unknown): Pick<FileOutcome, 'status' | 'job_id' | 'detail'> {
+function failureOf(error: unknown): Processed {
   if (isHeatpathError(error)) return { status: error.status < 500 ? 'rejected' : 'failed', job_id: '', detail: `${error.code}: ${error.detail}` };
   return { status: 'failed', job_id: '', detail: (error as Error).message ?? String(error) };
 }
@@ -147,26 +189,6 @@ async function listTransientFiles(root: string, skip: string): Promise<string[]>
   return files;
 }
 
-async function readState(path: string): Promise<Map<string, FileOutcome>> {
-  const outcomes = new Map<string, FileOutcome>();
-  let text = '';
-  try {
-    text = await readFile(path, 'utf8');
-  } catch {
-    return outcomes;
-  }
-  // A line cut short by an interrupted run is ignored: that file runs again.
-  for (const line of text.split('\n')) {
-    try {
-      const outcome = JSON.parse(line) as FileOutcome;
-      outcomes.set(outcome.file, outcome);
-    } catch {
-      continue;
-    }
-  }
-  return outcomes;
-}
-
 function summaryCsv(outcomes: FileOutcome[]): string {
   const quote = (text: string) => (/[",\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text);
   const rows = outcomes.map((o) => [o.file, o.sha256, o.status, o.job_id, o.detail].map(quote).join(','));
@@ -176,18 +198,17 @@ function summaryCsv(outcomes: FileOutcome[]): string {
 /** A bar redrawn in place on a terminal; one plain line per file otherwise (logs, CI). */
 class ProgressReport {
   private done = 0;
-  skipped = 0;
   private readonly counts = { ok: 0, rejected: 0, failed: 0 };
   private readonly tty = Boolean(process.stderr.isTTY);
 
   constructor(private readonly total: number) {}
 
-  record(file: string, status: FileOutcome['status'], skipped: boolean): void {
+  /** note: 'done before', why the file was done again, or nothing. */
+  record(file: string, status: FileOutcome['status'], note: string | undefined): void {
     this.done++;
     this.counts[status]++;
-    if (skipped) this.skipped++;
     if (!this.tty) {
-      process.stderr.write(`${this.done}/${this.total} ${status}${skipped ? ' (done before)' : ''} ${file}\n`);
+      process.stderr.write(`${this.done}/${this.total} ${status}${note ? ` (${note})` : ''} ${file}\n`);
       return;
     }
     const width = 30;

@@ -1,0 +1,41 @@
+import { resolveAnalysisInputs } from '../../shared/analysis/resolve-analysis-inputs.js';
+import { parseTransient } from '../../shared/input/parse-transient.js';
+import type { TransientFile } from '../../shared/input/transient-file.js';
+import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
+import { jobIdFor } from '../jobs/job-id.js';
+import { isUserError } from './user-error-line.js';
+
+/** What a `heatpath reprocess` run was asked to analyse with: the same for every file of the run. */
+export interface ReprocessSettings {
+  parameters: Partial<AnalysisParameters>;
+  power?: Power;
+  /** The calibration's id (services/jobs/calibration-id.ts), or null. */
+  calibration_sha256: string | null;
+}
+
+/**
+ * The job id of one archive file under a run's settings: jobIdFor its content,
+ * the parameters and power resolved against the file as the analysis resolves
+ * them (its `# kind:` and power header lines), the calibration id and the
+ * running ALGORITHM_VERSION, so it is the id the service gives the same
+ * upload. `reprocess` compares it with the state file to decide that a file
+ * was done before. A file that cannot be parsed, or whose settings do not
+ * resolve, gets the id of the settings as given: its rejection is remembered
+ * for these settings only. The parse is returned for the analysis to reuse.
+ */
+export function archiveFileJobId(
+  bytes: Uint8Array,
+  fileName: string,
+  input_sha256: string,
+  settings: ReprocessSettings,
+): { jobId: string; parsed?: TransientFile } {
+  const { calibration_sha256 } = settings;
+  try {
+    const parsed = parseTransient(bytes, fileName);
+    const { parameters, power } = resolveAnalysisInputs(parsed, settings, fileName);
+    return { jobId: jobIdFor({ input_sha256, parameters, power: power ?? null, calibration_sha256 }), parsed };
+  } catch (error) {
+    if (!isUserError(error)) throw error;
+    return { jobId: jobIdFor({ input_sha256, parameters: settings.parameters, power: settings.power ?? null, calibration_sha256 }) };
+  }
+}
