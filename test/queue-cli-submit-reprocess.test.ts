@@ -152,6 +152,25 @@ describe('heatpath reprocess', () => {
     expect(printed.at(-1)).toMatch(/\(1 done before\)/);
   });
 
+  it('stops after the file in progress when asked, writes the summary of what was done, and resumes from there', async () => {
+    for (const [i, name] of ['a', 'b', 'c'].entries()) await writeTransient(`archive/D1/${name}.csv`, 76 + i);
+    const out = join(workDir, 'out');
+    const args = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)];
+    const stop = new AbortController();
+    // Ctrl-C as the first file is reported.
+    vi.mocked(process.stderr.write).mockImplementation((text) => {
+      if (String(text).startsWith('1/3 ')) stop.abort();
+      return errors.push(String(text)) > 0;
+    });
+    expect(await runReprocessCommand(args, print, stop.signal)).toBe(130);
+    expect(printed.at(-1)).toMatch(/^stopped after 1 of 3 files: 1 ok, .*run again to resume/);
+    const summary = (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n');
+    expect(summary.slice(1).map((row) => row.split(',')[0])).toEqual(['D1/a.csv']);
+
+    expect(await runReprocessCommand(args, print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/^3 files: 3 ok, 0 rejected, 0 failed \(1 done before\)/);
+  });
+
   it('lists each option once in its help', async () => {
     expect(await runReprocessCommand(['--help'], print)).toBe(0);
     const options = printed.join('\n').match(/^\s+--[a-z-]+/gm)!.map((option) => option.trim());

@@ -24,7 +24,8 @@ analysis parameters, power, calibration and algorithm version). Run again
 with the same --out, a file done before with the same job is skipped; one
 done under other settings, or changed, is done again (with --local its
 results in OUT/results/ are replaced: give another --out to keep both).
-Writes OUT/reprocess-summary.csv.
+Writes OUT/reprocess-summary.csv, also when stopped by Ctrl-C (which lets
+the files in progress finish; press it again to stop at once).
 
   --local                 analyse on this machine (results in OUT/results/)
   --out DIR               state, summary and local results (default ./heatpath-reprocess)
@@ -33,17 +34,27 @@ Writes OUT/reprocess-summary.csv.
 ${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}
 
 Exit codes: 0 all done, 2 a file or option must be fixed (takes precedence),
-1 a file could not be processed (run again to retry it).`;
+1 a file could not be processed (run again to retry it), 130 stopped by Ctrl-C.`;
 
 const STATE_FILE = 'reprocess-state.jsonl';
 const SUMMARY_FILE = 'reprocess-summary.csv';
 const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
+/** Exit code of a run stopped by Ctrl-C: 128 + SIGINT, as shells report it. */
+const EXIT_INTERRUPTED = 130;
 
 type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail'>;
 type Processor = (path: string, relativePath: string, bytes: Buffer, job: { jobId: string; parsed?: TransientFile }) => Promise<Processed>;
 
-/** `heatpath reprocess`: exit 0 all done, 2 some files were rejected, 1 some could not be processed. */
-export async function runReprocessCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
+/**
+ * `heatpath reprocess`: exit 0 all done, 2 some files were rejected, 1 some
+ * could not be processed, 130 stopped. `stop` ends the run after the files in
+ * progress; omitted, Ctrl-C (SIGINT) does.
+ */
+export async function runReprocessCommand(
+  argv: string[],
+  print: (text: string) => void = (text) => process.stdout.write(`${text}\n`),
+  stop?: AbortSignal,
+): Promise<number> {
   const { values, positionals } = parseCommandLine(argv, {
     ...uploadOptionSpecs,
     local: { type: 'boolean' },
@@ -82,12 +93,14 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
   const outcomes = await readReprocessState(join(outDir, STATE_FILE));
   const thisRun = new Map<string, FileOutcome>();
   const progress = new ProgressReport(files.length);
+  const ctrlC = stop ? undefined : stopOnCtrlC();
+  const stopped = stop ?? ctrlC!.signal;
   let skipped = 0;
   let redone = 0;
 
   let next = 0;
   const work = async () => {
-    while (next < files.length) {
+    while (next < files.length && !stopped.aborted) {
       const { path, relativePath } = files[next++];
       const bytes = await readInputFile(path);
       const sha256 = createHash('sha256').update(bytes).digest('hex');
@@ -117,17 +130,34 @@ export async function runReprocessCommand(argv: string[], print: (text: string) 
       progress.record(relativePath, outcome.status, note);
     }
   };
-  await Promise.all(Array.from({ length: Math.min(concurrency, Math.max(files.length, 1)) }, work));
-  progress.finish();
+  try {
+    await Promise.all(Array.from({ length: Math.min(concurrency, Math.max(files.length, 1)) }, work));
+  } finally {
+    ctrlC?.release();
+    progress.finish();
+  }
 
   const inRun = files.map(({ relativePath }) => thisRun.get(relativePath)).filter((outcome) => outcome !== undefined);
   await writeOutputFile(join(outDir, SUMMARY_FILE), summaryCsv(inRun));
   const count = (status: FileOutcome['status']) => inRun.filter((outcome) => outcome.status === status).length;
+  const interrupted = inRun.length < files.length;
   print(
-    `${files.length} files: ${count('ok')} ok, ${count('rejected')} rejected, ${count('failed')} failed ` +
-      `(${skipped} done before${redone > 0 ? `, ${redone} redone` : ''}); summary ${join(outDir, SUMMARY_FILE)}`,
+    `${interrupted ? `stopped after ${inRun.length} of ${files.length}` : files.length} files: ${count('ok')} ok, ${count('rejected')} rejected, ${count('failed')} failed ` +
+      `(${skipped} done before${redone > 0 ? `, ${redone} redone` : ''}); ${interrupted ? 'run again to resume; ' : ''}summary ${join(outDir, SUMMARY_FILE)}`,
   );
+  if (interrupted) return EXIT_INTERRUPTED;
   return count('rejected') > 0 ? 2 : count('failed') > 0 ? 1 : 0;
+}
+
+/** The first Ctrl-C ends the run after the files in progress; a second one stops the process at once (Node's default). */
+function stopOnCtrlC(): { signal: AbortSignal; release: () => void } {
+  const controller = new AbortController();
+  const onSigint = () => {
+    process.stderr.write('\nheatpath reprocess: stopping after the files in progress (Ctrl-C again to stop at once)\n');
+    controller.abort();
+  };
+  process.once('SIGINT', onSigint);
+  return { signal: controller.signal, release: () => process.removeListener('SIGINT', onSigint) };
 }
 
 function serverProcessor(target: UploadTarget, values: Record<string, unknown>): Processor {
