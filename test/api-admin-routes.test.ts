@@ -38,6 +38,13 @@ describe('webhooks', () => {
 });
 
 describe('batches', () => {
+  it('names the allowed values and the unknown field of a bad request body (ajv issues in plain words)', async () => {
+    const unknown = (await post('/v1/batches', { selection: { tags: 'pc' } })).json();
+    expect(unknown).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: 'body/selection/tags is not a known field' });
+    const notAllowed = (await post('/v1/batches', { selection: {}, parameters: { method: 'magic' } })).json();
+    expect(notAllowed).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: 'body/parameters/method must be one of "posterior-mean", "bayes", "fourier"' });
+  });
+
   it('refuses an empty selection (422) and a malformed time (400)', async () => {
     expect((await post('/v1/batches', { selection: { sample_id: 'NO-SUCH-SAMPLE' } })).json()).toMatchObject({ status: 422, code: 'BATCH_SELECTION_EMPTY' });
     expect((await post('/v1/batches', { selection: { received_from: 'yesterday' } })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
