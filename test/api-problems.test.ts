@@ -239,6 +239,14 @@ describe('with Redis down', () => {
     expect(shown.json().job.state).toBe('stored');
   });
 
+  it('stores a batch and answers 202 state "stored", so that an admin does not start it twice', async () => {
+    const response = await context.app.inject({ method: 'POST', url: '/v1/batches', headers: bearer('admin'), payload: { selection: { sample_id: 'S-down' } } });
+    expect(response.statusCode, response.body).toBe(202);
+    const answer = response.json();
+    expect(answer).toMatchObject({ state: 'stored', status: 'running', total: 1, pending: 1 });
+    expect(await context.store.getBatch(answer.batch_id)).toMatchObject({ batch_id: answer.batch_id, status: 'running' });
+  });
+
   it('503 where only Redis knows the answer, and /health/ready says which check failed', async () => {
     expectProblem(await context.app.inject({ url: '/v1/jobs/job-unknown', headers: bearer('reader') }), 503, 'SERVICE_UNAVAILABLE');
     const ready = await context.app.inject({ url: '/health/ready' });

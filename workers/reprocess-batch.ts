@@ -1,6 +1,6 @@
 import { randomBytes } from 'node:crypto';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
-import { HeatpathError } from '../shared/errors/heatpath-error.js';
+import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.js';
 import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
@@ -44,7 +44,11 @@ const ENQUEUE_CHUNK = 500;
 export class BatchReprocessor {
   constructor(private readonly store: TransientStore, private readonly queue: AnalysisQueue) {}
 
-  async create(request: BatchRequest): Promise<BatchProgress> {
+  /**
+   * Stores the batch, then queues its jobs. `stored`: Redis did not answer, and
+   * recovery queues the jobs once it does (as an upload answered `stored`).
+   */
+  async create(request: BatchRequest): Promise<BatchProgress & { state: 'queued' | 'stored' }> {
     const uploads = await this.store.listUploads(request.selection);
     if (uploads.length === 0) throw new HeatpathError('BATCH_SELECTION_EMPTY', `no stored upload matches ${JSON.stringify(request.selection)}`);
     const batch: BatchRecord = {
@@ -63,8 +67,14 @@ export class BatchReprocessor {
     batch.entries = uniqueEntries(jobs);
     await this.store.putBatch(batch);
     const outcomes = await this.store.jobOutcomes();
-    await this.enqueueMissing(batch, jobs, outcomes);
-    return this.countProgress(batch, outcomes);
+    let state: 'queued' | 'stored' = 'queued';
+    try {
+      await this.enqueueMissing(batch, jobs, outcomes);
+    } catch (error) {
+      if (isHeatpathError(error)) throw error;
+      state = 'stored';
+    }
+    return { ...(await this.countProgress(batch, outcomes)), state };
   }
 
   async progress(batchId: string): Promise<BatchProgress | null> {

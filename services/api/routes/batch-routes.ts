@@ -48,7 +48,7 @@ const BatchProgressSchema = Type.Object({
   links: Type.Object({ self: Type.String(), cancel: Type.String() }),
 });
 
-const withLinks = (progress: BatchProgress) => ({
+const withLinks = <T extends BatchProgress>(progress: T) => ({
   ...progress,
   links: { self: `/v1/batches/${progress.batch_id}`, cancel: `/v1/batches/${progress.batch_id}/cancel` },
 });
@@ -64,14 +64,19 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
         summary: 'Reprocess stored transients',
         description: 'Queues one job per selected upload, below the benches\' uploads in priority. Uploads whose job already has an outcome are counted, not redone.',
         body: BatchRequestSchema,
-        response: { 202: BatchProgressSchema },
+        response: {
+          202: Type.Object({
+            ...BatchProgressSchema.properties,
+            state: Type.Union([Type.Literal('queued'), Type.Literal('stored')], {
+              description: 'stored: the batch is kept but Redis did not answer; its jobs are queued when Redis is back.',
+            }),
+          }),
+        },
       },
     },
     async (request, reply) => {
       const { selection, parameters, calibration_id } = request.body;
-      const progress = await batches
-        .create({ selection, parameters, calibration_id, created_by: request.apiKey!.name })
-        .catch(unavailableQueue('the batch may be stored; it is queued when Redis is back'));
+      const progress = await batches.create({ selection, parameters, calibration_id, created_by: request.apiKey!.name });
       return reply.status(202).header('location', `/v1/batches/${progress.batch_id}`).send(withLinks(progress));
     },
   );
