@@ -138,6 +138,17 @@ describe('with a real Redis', () => {
     expectProblem(response, 413, 'UPLOAD_TOO_LARGE');
   });
 
+  it('400, not 413, for a multipart body with two file parts', async () => {
+    const form = multipart([
+      { name: 'sample_id', value: 'S1' },
+      { name: 'power_W', value: '50' },
+      { name: 'file', value: small, filename: 'a.csv', type: 'text/csv' },
+      { name: 'file', value: small, filename: 'b.csv', type: 'text/csv' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(expectProblem(response, 400, 'REQUEST_INVALID').detail).toMatch(/more than one file part; send exactly one, named "file"/);
+  });
+
   it('415 for a media type the upload does not take', async () => {
     expectProblem(await upload(context, 'sample_id=S1&power_W=50', '<transient/>', { 'content-type': 'application/xml' }), 415, 'MEDIA_TYPE_UNSUPPORTED');
   });

@@ -89,6 +89,12 @@ function formatFromName(fileName: string): TransientFormat | undefined {
 /** Malformed multipart (the parser's own errors carry no status) is the client's fault. */
 function asClientError(error: unknown): unknown {
   if (isHeatpathError(error)) return error;
+  const code = (error as { code?: string }).code;
+  // The parser counts parts and fields as a size limit (413), but a second file is a request of the wrong shape.
+  if (code === 'FST_FILES_LIMIT') return new HeatpathError('REQUEST_INVALID', 'multipart holds more than one file part; send exactly one, named "file"');
+  if (code === 'FST_PARTS_LIMIT' || code === 'FST_FIELDS_LIMIT') {
+    return new HeatpathError('REQUEST_INVALID', `multipart holds too many parts or fields (${(error as Error).message}); send one "file" part and the metadata fields, or one "meta" field`);
+  }
   const status = (error as { statusCode?: number }).statusCode;
   if (status === 413) return error;
   return new HeatpathError('REQUEST_INVALID', `multipart body is malformed: ${(error as Error).message}`);
