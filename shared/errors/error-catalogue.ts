@@ -32,11 +32,11 @@ export const errorCatalogue = {
   CALIBRATION_OUT_OF_RANGE: { status: 422, title: 'A measured voltage lies outside the calibrated range', hint: 'Extend the calibration sweep to cover the measured temperatures.' },
   CALIBRATION_BAD_FILE: { status: 400, title: 'The calibration file is not valid', hint: 'Create it with `heatpath calibrate POINTS.csv --out CAL.json`.' },
   CALIBRATION_POINTS_COLUMNS: { status: 400, title: 'The calibration points need exactly the columns temperature_C and voltage_V', hint: 'Write the header temperature_C,voltage_V (either order) and one row per calibration point.' },
-  CALIBRATION_REQUIRED: { status: 422, title: 'Voltage input needs a calibration', hint: 'Pass --calibration CAL.json (CLI) or a calibration (service) to convert voltage_V to temperature.' },
+  CALIBRATION_REQUIRED: { status: 422, title: 'Voltage input needs a calibration', hint: 'Give a calibration to convert voltage_V to temperature: --calibration CAL.json on the command line; calibration_id (a stored one) or an inline calibration in the multipart meta field for an upload.' },
 
   // ---- analysis parameters and physics ----
-  PARAM_INVALID: { status: 400, title: 'An analysis parameter is invalid', hint: 'See `heatpath analyze --help` for the allowed values.' },
-  POWER_REQUIRED: { status: 422, title: 'The heating power is missing', hint: 'Give the power (--power-w) or current and voltage (--current-a and --voltage-v); zth_K_per_W input needs none.' },
+  PARAM_INVALID: { status: 400, title: 'An analysis parameter is invalid', hint: 'The allowed values: `heatpath analyze --help` on the command line, /docs for the service.' },
+  POWER_REQUIRED: { status: 422, title: 'The heating power is missing', hint: 'Give the heating power: --power-w, or --current-a with --voltage-v, on the command line; power_W, or current_A with voltage_V, for an upload; or a `# power_W:` line in the file. zth_K_per_W input needs none.' },
   ANALYSIS_NOT_ANALYSABLE: { status: 422, title: 'The transient cannot be analysed', hint: 'Check that the curve is a cooling or heating transient of the stated kind and spans several decades of time.' },
 
   // ---- comparing two measurements (dual-interface Rth-JC, degradation) ----
