@@ -68,6 +68,22 @@ describe('parseTransient CSV', () => {
     expect(catchHeatpathError(() => parseTransient(csv('time_s;zth_K_per_W', ['1e-7;1,2,3', ...logTimes(3, 10).slice(1).map((t) => `${t};1`)]), 'x.csv')).code).toBe('INPUT_NOT_NUMERIC');
   });
 
+  it('reads spreadsheet exports: a separator ending every line, rows of separators alone, UTF-16 "Unicode text" with its byte-order mark', () => {
+    // Reference: the same table written plainly (comma-separated UTF-8), parsed by the same parser.
+    const plain = parseTransient(csv('time_s,temperature_C', coolingRows(times)), 'plain.csv');
+    const semicolonRows = coolingRows(times).map((row) => `${row.replace(',', ';').replace('.', ',')};`);
+    const exported = `time_s;temperature_C;\n${semicolonRows.join('\n')}\n;;\n;;\n`;
+    const fromSpreadsheet = parseTransient(exported, 'export.csv');
+    expect(fromSpreadsheet.channels[0].values).toEqual(plain.channels[0].values);
+    expect(fromSpreadsheet.time_s).toEqual(plain.time_s);
+    // UTF-16LE with BOM (FF FE), tab-separated, CRLF: the layout of a spreadsheet's "Unicode text" (RFC 2781 for UTF-16).
+    const tabText = '\ufeff' + ['time_s\ttemperature_C', ...coolingRows(times).map((row) => row.replace(',', '\t'))].join('\r\n');
+    const utf16 = parseTransient(Buffer.from(tabText, 'utf16le'), 'unicode.txt');
+    expect(utf16.channels[0].values).toEqual(plain.channels[0].values);
+    // Without a separator at the end of the header, one at the end of a row is still a field too many.
+    expectErrorAt(`time_s;temperature_C\n${semicolonRows.join('\n')}`, 'x.csv', 'INPUT_ROW_LENGTH', 2, undefined);
+  });
+
   it('reads every spelling of a decimal number as ECMAScript Number() does, in plain rows and in spaced or quoted rows alike', () => {
     // Reference: ECMAScript Number() on the same text (ECMA-262 StringToNumber), the parser's definition of a field's value.
     const spellings = ['1', '+2', '-3.5', '4.', '.5', '6e-3', '7.25E+2', '-.8e1', '0009.1000'];

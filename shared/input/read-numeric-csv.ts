@@ -5,8 +5,10 @@ import { quoteInputText, shortenInputText } from './quote-input-text.js';
  * The CSV dialect heatpath reads (transients and calibration points): LF,
  * CRLF or CR line ends, one header line
  * whose separator (comma, semicolon or tab) is used for every row, `#`
- * comment lines and blank lines anywhere, `# key: value` comment lines before
- * the header as metadata, and plain decimal numbers in every data field. In a
+ * comment lines and blank lines (also rows of separators alone) anywhere,
+ * `# key: value` comment lines before the header as metadata, a separator at
+ * the end of every line when the header has one (spreadsheet exports), and
+ * plain decimal numbers in every data field. In a
  * file separated by semicolons or tabs a decimal comma (0,5) is read as well,
  * as spreadsheets set to a European locale write it; with commas as
  * separators it would be ambiguous, so there only the point is.
@@ -50,6 +52,9 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
 
   const separator = detectSeparator(headerText);
   const names = headerText.split(separator).map(cleanField);
+  // Spreadsheets often end every line with a separator: an empty last header name is that, not a column.
+  const trailingSeparator = names.length > 1 && names[names.length - 1] === '';
+  if (trailingSeparator) names.pop();
   checkHeader(names, lines.number);
 
   // No more data rows than lines left: fill typed arrays in place and trim them at the end.
@@ -61,11 +66,15 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   while (lines.next()) {
     // Most rows are plain numbers between separators: read them in place, and
     // take anything else (blanks, comments, quotes, spaces, mistakes) the careful way.
-    if (!readPlainRow(text, lines.start, lines.end, separator, row)) {
+    const end = trailingSeparator && text[lines.end - 1] === separator ? lines.end - 1 : lines.end;
+    if (!readPlainRow(text, lines.start, end, separator, row)) {
       const line = lines.text();
       const trimmed = line.trim();
       if (trimmed === '' || trimmed.startsWith('#')) continue;
       const fields = line.split(separator);
+      // A row of separators alone is a blank row of a spreadsheet export.
+      if (fields.every((field) => field.trim() === '')) continue;
+      if (trailingSeparator && fields.length === names.length + 1 && fields[names.length].trim() === '') fields.pop();
       if (fields.length !== names.length) {
         throw new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${names.length} (separator ${JSON.stringify(separator)})`, {
           file: fileName,
