@@ -7,7 +7,7 @@
 import { Type } from 'typebox';
 import { Compile } from 'typebox/compile';
 import { describe, expect, it } from 'vitest';
-import { plainValidationIssues } from '../services/api/plugins/validation-issues.js';
+import { plainValidationIssues } from '../shared/schemas/plain-validation-issues.js';
 
 const Schema = Type.Object(
   { method: Type.Optional(Type.Union([Type.Literal('posterior-mean'), Type.Literal('bayes'), Type.Literal('fourier')])), stages: Type.Optional(Type.Integer()) },

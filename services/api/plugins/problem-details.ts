@@ -3,7 +3,7 @@ import fastifyPlugin from 'fastify-plugin';
 import { errorCatalogue, type ErrorCode } from '../../../shared/errors/error-catalogue.js';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { problemMediaType, problemResponse, problemTypeUri, type Problem } from '../schemas/problem-schema.js';
-import { plainValidationIssues } from './validation-issues.js';
+import { plainValidationIssues } from '../../../shared/schemas/plain-validation-issues.js';
 
 /**
  * Every error leaves the service as RFC 9457 problem+json with a stable code
