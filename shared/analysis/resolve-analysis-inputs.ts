@@ -2,6 +2,7 @@ import { Value } from 'typebox/value';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
+import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
 
 /**
  * The parameters and power an analysis of `file` really uses: what the caller
@@ -22,12 +23,13 @@ export function resolveAnalysisInputs(
 
 /** Explicit parameters, then the file's `kind` metadata, then the schema defaults; validated by the schema. */
 function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFile, fileName: string): AnalysisParameters {
-  const kind = given.kind ?? file.meta.kind;
+  // A "# kind: Cooling" line is meant as cooling: case and spaces are not information.
+  const kind = given.kind ?? file.meta.kind?.trim().toLowerCase();
   const merged = { ...defaultAnalysisParameters, ...(kind !== undefined ? { kind } : {}), ...stripUndefined(given) };
   if (!Value.Check(AnalysisParametersSchema, merged)) {
-    const first = [...Value.Errors(AnalysisParametersSchema, merged)][0];
-    const where = first?.instancePath?.replace(/^\//, '') || 'parameters';
-    const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind:" line)` : '';
+    const [first] = plainValidationIssues(Value.Errors(AnalysisParametersSchema, merged), '');
+    const where = first?.field.replace(/^\//, '') || 'parameters';
+    const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind: ${file.meta.kind}" line)` : '';
     throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, { file: fileName });
   }
   if (merged.early_time_start_s !== undefined && merged.early_time_end_s !== undefined && merged.early_time_end_s <= merged.early_time_start_s) {
@@ -38,7 +40,7 @@ function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFi
 
 /** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata. */
 function powerFromMeta(file: TransientFile, fileName: string, required: boolean): Power | undefined {
-  const number = (key: string) => (file.meta[key] !== undefined ? Number(file.meta[key]) : undefined);
+  const number = (key: string) => (file.meta[key] !== undefined ? metadataNumber(file.meta[key], key) : undefined);
   const candidate = file.meta.power_W !== undefined
     ? { power_W: number('power_W') }
     : file.meta.current_A !== undefined || file.meta.voltage_V !== undefined
@@ -49,9 +51,24 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean)
     throw new HeatpathError('POWER_REQUIRED', `${file.quantity} input and no power given or found in the file's metadata`, { file: fileName });
   }
   if (!Value.Check(PowerSchema, candidate)) {
-    throw new HeatpathError('POWER_REQUIRED', `the file's power metadata ${JSON.stringify(candidate)} is not a positive power_W or current_A with voltage_V`, { file: fileName });
+    const lines = Object.keys(candidate).map((key) => `"# ${key}: ${file.meta[key] ?? ''}"`).join(' and ');
+    throw new HeatpathError('POWER_REQUIRED', `the file's ${lines} is not a positive power_W, or current_A with voltage_V, in plain numbers`, { file: fileName });
   }
   return candidate as Power;
+}
+
+const METADATA_NUMBER = /^[+-]?(?:\d+[.,]?\d*|[.,]\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * A number on a "# key: value" line: a plain decimal, with a decimal point or
+ * comma (the line holds one value, so a comma is not ambiguous there), and
+ * optionally the key's own unit after it ("51.3 W" for power_W). Anything
+ * else is NaN, which the power check refuses with the line's text.
+ */
+function metadataNumber(text: string, key: string): number {
+  const unit = key.slice(key.lastIndexOf('_') + 1);
+  const value = text.trim().replace(new RegExp(`\\s*${unit}$`), '');
+  return METADATA_NUMBER.test(value) ? Number(value.replace(',', '.')) : Number.NaN;
 }
 
 function stripUndefined<T extends object>(value: T): Partial<T> {

@@ -1,0 +1,40 @@
+/**
+ * The parameters and power an analysis uses when the file's "# key: value"
+ * lines give them. Expected values are the numbers and words written in
+ * those lines; the unit after a number is the key's own (power_W in W).
+ */
+import { describe, expect, it } from 'vitest';
+import { resolveAnalysisInputs } from '../shared/analysis/resolve-analysis-inputs.js';
+import { parseTransient } from '../shared/input/parse-transient.js';
+import { catchHeatpathError } from './support/catch-heatpath-error.js';
+
+const rows = Array.from({ length: 31 }, (_, i) => `${1e-6 * 10 ** (i / 10)};${(80 - i).toFixed(1).replace('.', ',')}`);
+const fileWith = (...meta: string[]) => parseTransient([...meta, 'time_s;temperature_C', ...rows].join('\n'), 'bench.csv');
+
+describe('resolveAnalysisInputs from the file header', () => {
+  it.each([
+    ['# power_W: 51.3', 51.3],
+    ['# power_W: 51,3', 51.3],
+    ['# power_W: 51.3 W', 51.3],
+    ['# power_W:51,3W', 51.3],
+  ])('reads %s as %d W', (line, power_W) => {
+    expect(resolveAnalysisInputs(fileWith(line), {}, 'bench.csv').power).toEqual({ power_W });
+  });
+
+  it('reads current and voltage with their units', () => {
+    expect(resolveAnalysisInputs(fileWith('# current_A: 10 A', '# voltage_V: 1,9 V'), {}, 'bench.csv').power).toEqual({ current_A: 10, voltage_V: 1.9 });
+  });
+
+  it.each(['# power_W: abc', '# power_W: 51.3 kW', '# power_W: 1,2,3', '# power_W: -5'])('refuses %s, quoting the line', (line) => {
+    const error = catchHeatpathError(() => resolveAnalysisInputs(fileWith(line), {}, 'bench.csv'));
+    expect(error.code).toBe('POWER_REQUIRED');
+    expect(error.detail).toContain(`"${line}"`);
+  });
+
+  it('reads "# kind: Heating" as heating, and names the allowed kinds for a word it does not know', () => {
+    expect(resolveAnalysisInputs(fileWith('# power_W: 50', '# kind:  Heating '), {}, 'bench.csv').parameters.kind).toBe('heating');
+    const error = catchHeatpathError(() => resolveAnalysisInputs(fileWith('# power_W: 50', '# kind: warming'), {}, 'bench.csv'));
+    expect(error.code).toBe('PARAM_INVALID');
+    expect(error.detail).toBe('kind (from the file\'s "# kind: warming" line): must be one of "cooling", "heating"');
+  });
+});
