@@ -29,6 +29,8 @@ describe('every protected route refuses requests without a valid key (401)', () 
       const response = await send(route, headers);
       expect(response.statusCode).toBe(401);
       expect(response.headers['content-type']).toMatch(/^application\/problem\+json/);
+      // RFC 6750 section 3: the challenge names the Bearer scheme.
+      expect(response.headers['www-authenticate']).toMatch(/^Bearer /);
       expect(response.json()).toMatchObject({ status: 401, code });
     });
   }

@@ -127,7 +127,7 @@ describe('with a real Redis', () => {
   it('413 above HEATPATH_MAX_UPLOAD_BYTES, for raw and multipart bodies', async () => {
     const large = syntheticTransientCsv(13, 40);
     expect(large.byteLength).toBeGreaterThan(4096);
-    expectProblem(await upload(context, 'sample_id=S1&power_W=50', large), 413, 'UPLOAD_TOO_LARGE');
+    expect(expectProblem(await upload(context, 'sample_id=S1&power_W=50', large), 413, 'UPLOAD_TOO_LARGE').detail).toMatch(/the limit is 4096 bytes \(HEATPATH_MAX_UPLOAD_BYTES\)/);
     const form = multipart([
       { name: 'sample_id', value: 'S1' },
       { name: 'power_W', value: '50' },
@@ -259,7 +259,10 @@ describe('with Redis down', () => {
   });
 
   it('503 where only Redis knows the answer, and /health/ready says which check failed', async () => {
-    expectProblem(await context.app.inject({ url: '/v1/jobs/job-unknown', headers: bearer('reader') }), 503, 'SERVICE_UNAVAILABLE');
+    const unavailable = await context.app.inject({ url: '/v1/jobs/job-unknown', headers: bearer('reader') });
+    expectProblem(unavailable, 503, 'SERVICE_UNAVAILABLE');
+    // RFC 9110 section 10.2.3: a 503 may say when to try again.
+    expect(Number(unavailable.headers['retry-after'])).toBeGreaterThan(0);
     const ready = await context.app.inject({ url: '/health/ready' });
     expect(expectProblem(ready, 503, 'SERVICE_UNAVAILABLE').checks).toEqual({ redis: 'unavailable', store: 'ok' });
     expect((await context.app.inject({ url: '/health/live' })).statusCode).toBe(200);

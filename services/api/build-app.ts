@@ -48,7 +48,7 @@ export async function buildApp(deps: AppDependencies) {
     ajv: { customOptions: { removeAdditional: false } },
   }).withTypeProvider<TypeBoxTypeProvider>();
 
-  await app.register(problemDetailsPlugin);
+  await app.register(problemDetailsPlugin, { maxUploadBytes: config.maxUploadBytes });
   await app.register(apiKeyAuthPlugin, { apiKeys: config.apiKeys });
   await app.register(perKeyRateLimitPlugin, { perMinute: config.rateLimitPerMinute });
   await app.register(openApiDocsPlugin);

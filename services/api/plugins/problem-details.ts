@@ -10,7 +10,10 @@ import { plainValidationIssues } from '../../../shared/schemas/plain-validation-
  * from the error catalogue. Also declares the problem responses on every
  * route, so the OpenAPI document shows them.
  */
-export const problemDetailsPlugin = fastifyPlugin(async function problemDetails(app: FastifyInstance) {
+/** Seconds a client is told to wait before trying again after a 503 (Redis or the store away). */
+const RETRY_AFTER_UNAVAILABLE_S = 5;
+
+export const problemDetailsPlugin = fastifyPlugin(async function problemDetails(app: FastifyInstance, options: { maxUploadBytes: number }) {
   app.addHook('onRoute', (route) => {
     route.schema ??= {};
     const responses = (route.schema.response ??= {}) as Record<string, unknown>;
@@ -21,7 +24,7 @@ export const problemDetailsPlugin = fastifyPlugin(async function problemDetails(
   app.setErrorHandler((error: FastifyError, request, reply) => {
     const heatpathError = error.code === 'FST_ERR_CTP_INVALID_MEDIA_TYPE'
       ? new HeatpathError('MEDIA_TYPE_UNSUPPORTED', `Content-Type ${request.headers['content-type'] ?? '(none)'} is not accepted by ${request.method} ${request.routeOptions.url}`)
-      : toHeatpathError(error);
+      : toHeatpathError(error, options.maxUploadBytes);
     if (heatpathError.status >= 500) request.log.error({ err: error }, 'request failed');
     else request.log.info({ code: heatpathError.code, detail: heatpathError.detail }, 'request refused');
     return sendProblem(request, reply, heatpathError, validationErrors(error));
@@ -54,6 +57,9 @@ export function sendProblem(
     ...(errors && { errors }),
     ...extensions,
   };
+  // RFC 6750 section 3: a 401 names the scheme it wants; RFC 9110 section 10.2.3: a 503 says when to try again.
+  if (error.status === 401) reply.header('www-authenticate', 'Bearer realm="heatpath"');
+  if (error.status === 503 && !reply.hasHeader('retry-after')) reply.header('retry-after', String(RETRY_AFTER_UNAVAILABLE_S));
   return reply.status(error.status).type(problemMediaType).send(problem);
 }
 
@@ -73,13 +79,14 @@ const statusCodes: Record<number, ErrorCode> = {
 /** File-system failures of the store: the data directory is full, read-only or gone. */
 const storeFailures = new Set(['ENOSPC', 'EDQUOT', 'EROFS', 'EACCES', 'EPERM', 'ENOTDIR', 'ENOENT', 'EIO']);
 
-function toHeatpathError(error: FastifyError): HeatpathError {
+function toHeatpathError(error: FastifyError, maxUploadBytes: number): HeatpathError {
   if (isHeatpathError(error)) return error;
   if (error.validation) return new HeatpathError('REQUEST_INVALID', describeValidation(error));
   if (error.code !== undefined && storeFailures.has(error.code) && 'syscall' in error) {
     return new HeatpathError('SERVICE_UNAVAILABLE', `the data directory cannot be used (${error.code})`);
   }
   const status = error.statusCode ?? 500;
+  if (status === 413) return new HeatpathError('UPLOAD_TOO_LARGE', `${error.message}: the limit is ${maxUploadBytes} bytes (HEATPATH_MAX_UPLOAD_BYTES)`);
   const code = statusCodes[status] ?? (status >= 400 && status < 500 ? 'REQUEST_INVALID' : 'INTERNAL_ERROR');
   // Internal messages may leak paths or stack details: only 4xx texts are meant for clients.
   return new HeatpathError(code, status < 500 ? error.message : 'the service failed to handle this request');
