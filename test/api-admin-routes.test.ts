@@ -48,6 +48,8 @@ describe('batches', () => {
   it('refuses an empty selection (422) and a malformed time (400)', async () => {
     expect((await post('/v1/batches', { selection: { sample_id: 'NO-SUCH-SAMPLE' } })).json()).toMatchObject({ status: 422, code: 'BATCH_SELECTION_EMPTY' });
     expect((await post('/v1/batches', { selection: { received_from: 'yesterday' } })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
+    const reversed = { received_from: '2026-12-02T00:00:00Z', received_to: '2026-12-01T00:00:00Z' };
+    expect((await post('/v1/batches', { selection: reversed })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: expect.stringMatching(/must be before/) });
   });
 
   it('creates a batch over stored uploads, lists it and cancels it', async () => {

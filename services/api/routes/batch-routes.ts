@@ -76,6 +76,10 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
     },
     async (request, reply) => {
       const { selection, parameters, calibration_id } = request.body;
+      const { received_from: from, received_to: to } = selection;
+      if (from !== undefined && to !== undefined && !(Date.parse(from) < Date.parse(to))) {
+        throw new HeatpathError('REQUEST_INVALID', `selection.received_from (${from}) must be before selection.received_to (${to})`);
+      }
       const progress = await batches.create({ selection, parameters, calibration_id, created_by: request.apiKey!.name });
       return reply.status(202).header('location', `/v1/batches/${progress.batch_id}`).send(withLinks(progress));
     },
