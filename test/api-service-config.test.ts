@@ -53,6 +53,8 @@ describe('loadServiceConfig', () => {
     expect(error.code).toBe('CONFIG_INVALID');
     expect(error.message).toContain('PORT');
     expect(error.message).toContain('REDIS_URL');
+    // One problem a line, and what to do on a line of its own.
+    expect(error.message).toMatch(/\n  - [^\n]*REDIS_URL[^\n]*\nFix the environment variables/);
     // Keys are checked only once the plain variables are valid.
     expect(configError({ HEATPATH_API_KEYS: 'x:boss:short,y' }).message).toMatch(/role "boss"[\s\S]*shorter than 16[\s\S]*entry 2 is not name:role:token/);
   });

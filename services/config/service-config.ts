@@ -80,9 +80,9 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { serves
   const problems = [...Value.Errors(ServiceEnvSchema, converted)].map((error) => describeEnvProblem(error.instancePath, error.message));
   const keys = servesApi && Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
   if (problems.length > 0) {
-    // One line per problem; HeatpathError appends ". <hint>" to the last.
+    // One line per problem, then HeatpathError's hint on a line of its own.
     const lines = problems.map((problem) => `\n  - ${problem.replace(/\.$/, '')}`);
-    throw new HeatpathError('CONFIG_INVALID', `${problems.length} problem${problems.length > 1 ? 's' : ''}:${lines.join('')}`);
+    throw new HeatpathError('CONFIG_INVALID', `${problems.length} problem${problems.length > 1 ? 's' : ''}:${lines.join('')}\n`);
   }
   const valid = converted as ServiceEnv;
   return {

@@ -40,7 +40,8 @@ function formatMessage(title: string, detail: string, hint: string, at: ErrorLoc
     at.line !== undefined ? `line ${at.line}` : undefined,
     at.column !== undefined ? `column ${at.column}` : undefined,
   ].filter(Boolean).join(', ');
-  // A detail that ends its own sentence (a question, a quoted path ending in a period) gets no second stop.
-  const stop = /[.?!]$/.test(detail) ? '' : '.';
-  return `${where ? where + ': ' : ''}${title}: ${detail}${stop} ${hint}`;
+  // A detail that ends its own sentence (a question, a quoted path ending in a period) gets no second stop;
+  // one that ends a list of lines puts the hint on a line of its own.
+  const stop = detail.endsWith('\n') ? '' : /[.?!]$/.test(detail) ? ' ' : '. ';
+  return `${where ? where + ': ' : ''}${title}: ${detail}${stop}${hint}`;
 }
