@@ -34,6 +34,15 @@ describe('webhooks', () => {
   it('refuses URLs off the allowlist (422) and unknown fields (400)', async () => {
     expect((await post('/v1/webhooks', { url: 'http://10.0.0.1:9/hook' })).json()).toMatchObject({ status: 422, code: 'WEBHOOK_URL_NOT_ALLOWED' });
     expect((await post('/v1/webhooks', { url: 'http://127.0.0.1:9/x', secret: 'mine' })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
+    expect((await post('/v1/webhooks', { url: 'not a url' })).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
+  });
+
+  it('refuses to register one URL twice (409), which would deliver every event twice', async () => {
+    const first = await post('/v1/webhooks', { url: 'http://127.0.0.1:9/lims/twice' });
+    expect(first.statusCode).toBe(201);
+    const again = (await post('/v1/webhooks', { url: 'http://127.0.0.1:9/lims/twice', events: ['job.failed'] })).json();
+    expect(again).toMatchObject({ status: 409, code: 'WEBHOOK_ALREADY_REGISTERED', detail: expect.stringContaining(first.json().webhook_id) });
+    await context.app.inject({ method: 'DELETE', url: `/v1/webhooks/${first.json().webhook_id}`, headers: bearer('admin') });
   });
 });
 

@@ -50,7 +50,7 @@ afterEach(async () => {
   await fixture.remove();
 });
 
-const payload: WebhookPayload = {
+const payload: Omit<WebhookPayload, 'links'> = {
   event: 'job.completed', job_id: 'job-abc', upload_id: 'u1', sample_id: 'S1', batch_id: null, error: null, occurred_at: '2026-01-01T00:00:00.000Z',
 };
 
@@ -74,7 +74,7 @@ describe('webhooks (real Redis, local receiver)', () => {
     expect(received).toHaveLength(2);
     const now = Math.floor(Date.now() / 1000);
     for (const { body, headers } of received) {
-      expect(JSON.parse(body)).toEqual(payload);
+      expect(JSON.parse(body)).toEqual({ ...payload, links: { self: '/v1/jobs/job-abc', result: '/v1/jobs/job-abc/result', artifacts: '/v1/jobs/job-abc/artifacts' } });
       expect(headers['content-type']).toBe('application/json');
       expect(headers['heatpath-event']).toBe('job.completed');
       const signature = headers[WEBHOOK_SIGNATURE_HEADER.toLowerCase()] as string;

@@ -1,4 +1,5 @@
 import { Queue } from 'bullmq';
+import { jobLinks } from '../services/jobs/job-links.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import type { WebhookEvent } from '../services/store/store-records.js';
 import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
@@ -15,6 +16,8 @@ export interface WebhookPayload {
   /** Present for job.failed. */
   error: { code: string | null; message: string } | null;
   occurred_at: string;
+  /** The job's state, result and artifacts, relative to the service's base URL. */
+  links: { self: string; result: string; artifacts: string };
 }
 
 /** One delivery: the body is fixed when queued, so every retry sends the same bytes. */
@@ -57,7 +60,8 @@ export class WebhookNotifier {
   }
 
   /** Returns the number of deliveries queued (0 when nobody subscribed). */
-  async notify(payload: WebhookPayload): Promise<number> {
+  async notify(event: Omit<WebhookPayload, 'links'>): Promise<number> {
+    const payload: WebhookPayload = { ...event, links: jobLinks(event.job_id) };
     const subscribed = (await this.store.listWebhooks()).filter((webhook) => webhook.events.includes(payload.event));
     if (subscribed.length === 0) return 0;
     const body = JSON.stringify(payload);

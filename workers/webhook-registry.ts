@@ -25,7 +25,11 @@ export class WebhookRegistry {
 
   /** Registers a URL; the returned record carries the secret the receiver verifies signatures with. */
   async register(url: string, events: readonly WebhookEvent[], createdBy: string): Promise<WebhookRecord> {
+    if (originOf(url) === null) throw new HeatpathError('REQUEST_INVALID', `${JSON.stringify(url)} is not an http:// or https:// URL`);
     if (!this.isAllowed(url)) throw new HeatpathError('WEBHOOK_URL_NOT_ALLOWED', `${url} is not allowed`);
+    const registered = (await this.store.listWebhooks()).find((webhook) => webhook.url.trim() === url.trim());
+    // Two registrations of one URL would deliver every event twice.
+    if (registered) throw new HeatpathError('WEBHOOK_ALREADY_REGISTERED', `${url} is webhook ${registered.webhook_id}`);
     const record: WebhookRecord = {
       webhook_id: `wh-${randomBytes(8).toString('hex')}`,
       url,

@@ -10,6 +10,7 @@ import { FailedJobRetry } from '../../../workers/retry-failed-job.js';
 import { unavailableQueue } from '../jobs/unavailable-queue.js';
 import { JobStatusSchema, readJobStatus } from '../jobs/job-status.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
+import { jobLinks } from '../../jobs/job-links.js';
 
 const JobParams = Type.Object({ job_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
 
@@ -23,7 +24,6 @@ const ArtifactListSchema = Type.Object({
 /** Jobs: status while they run, then the stored result and the files derived from it. */
 export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue }> = async (app, { store, queue }) => {
   const retries = new FailedJobRetry(store, queue);
-  const jobLinks = (jobId: string) => ({ self: `/v1/jobs/${jobId}`, result: `/v1/jobs/${jobId}/result`, artifacts: `/v1/jobs/${jobId}/artifacts` });
   const JobAnswerSchema = Type.Object({ ...JobStatusSchema.properties, links: Type.Object({ self: Type.String(), result: Type.String(), artifacts: Type.String() }) });
 
   /** The stored result, or the problem saying why there is none yet. */
