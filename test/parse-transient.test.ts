@@ -238,6 +238,7 @@ describe('parseTransient JSON', () => {
     ['unknown key', JSON.stringify({ time_s: times, current_A: values }), 'INPUT_UNKNOWN_COLUMN', undefined, 'current_A'],
     ['mixed quantities', JSON.stringify({ time_s: times, voltage_V: values, temperature_C: values }), 'INPUT_MIXED_QUANTITIES', undefined, 'temperature_C'],
     ['length mismatch', JSON.stringify({ time_s: times, voltage_V: { D1: values.slice(1) } }), 'INPUT_ROW_LENGTH', undefined, 'voltage_V@D1'],
+    ['length mismatch of a plain array', JSON.stringify({ time_s: times, voltage_V: values.slice(1) }), 'INPUT_ROW_LENGTH', undefined, 'voltage_V'],
     ['string element', JSON.stringify({ time_s: times, voltage_V: withElement(values, 4, '0.6') }), 'INPUT_NOT_NUMERIC', 4, 'voltage_V'],
     ['null element', JSON.stringify({ time_s: times, voltage_V: withElement(values, 2, null) }), 'INPUT_NOT_FINITE', 2, 'voltage_V'],
     ['overflowing number', JSON.stringify({ time_s: times, voltage_V: values }).replace('[1,', '[1e999,'), 'INPUT_NOT_FINITE', 0, 'voltage_V'],
@@ -252,6 +253,8 @@ describe('parseTransient JSON', () => {
     expectErrorAt('{"time_s": [1, 2', 'bad.json', 'INPUT_BAD_JSON', 1, 17);
     // The "2" after "1 " on the third line.
     expectErrorAt('{\n  "time_s": [1, 2],\n  "temperature_C": [1 2]\n}', 'bad.json', 'INPUT_BAD_JSON', 3, 23);
+    // A text that stops early: JSON.parse names no position, so the place is the end of the text.
+    expectErrorAt('{\n  "time_s": ', 'bad.json', 'INPUT_BAD_JSON', 2, 13);
   });
   // JSON places are named as column[index] (from 0), without a line.
   it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, undefined, index === undefined ? column : `${column}[${index}]`));

@@ -44,7 +44,7 @@ export function parseTransientJson(text: string, fileName: string): TransientFil
     if (channel.values.length !== time_s.length) {
       throw new HeatpathError('INPUT_ROW_LENGTH', `${channel.values.length} values for ${time_s.length} times`, {
         file: fileName,
-        column: columnName(quantity, channel.name),
+        column: Array.isArray(quantityValue) ? quantity : columnName(quantity, channel.name),
       });
     }
   }
@@ -64,8 +64,9 @@ function parseJsonText(text: string, fileName: string): unknown {
 /** Line and column (from 1) of a JSON.parse error whose message names the character position; nothing when it does not. */
 function syntaxErrorPlace(text: string, message: string): { line?: number; column?: number } {
   const match = /at position (\d+)/.exec(message);
-  if (!match) return {};
-  const position = Math.min(Number(match[1]), text.length);
+  // "Unexpected end of JSON input" names no position: the text stops early, so the place is its end.
+  if (!match && !/end of JSON input/.test(message)) return {};
+  const position = match ? Math.min(Number(match[1]), text.length) : text.length;
   let line = 1;
   let lineStart = 0;
   for (let i = 0; i < position; i++) {
@@ -93,20 +94,23 @@ function readChannels(value: unknown, quantity: TransientQuantity, fileName: str
 function readNumberArray(value: unknown, fileName: string, column: string): Float64Array {
   if (!Array.isArray(value)) throw new HeatpathError('INPUT_BAD_JSON', `${quoteInputText(column)} is not an array of numbers`, { file: fileName, column: shortenInputText(column) });
   const numbers = new Float64Array(value.length);
-  for (let i = 0; i < value.length; i++) {
+  // The scan builds no error text: see DEVELOPERS.md on checks over long arrays.
+  let i = 0;
+  for (; i < value.length; i++) {
     const element: unknown = value[i];
-    const at: ErrorLocation = { file: fileName, column: `${shortenInputText(column)}[${i}]` };
-    if (typeof element === 'number') {
-      if (!Number.isFinite(element)) throw new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] overflows a double`, at);
-      numbers[i] = element;
-    } else if (element === null) {
-      throw new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] is null (a NaN or infinity written by a JSON serialiser?)`, at);
-    } else {
-      const shown = typeof element === 'string' ? element : (JSON.stringify(element) ?? String(element));
-      throw new HeatpathError('INPUT_NOT_NUMERIC', `${column}[${i}] is ${quoteInputText(shown)}`, at);
-    }
+    if (typeof element !== 'number' || !Number.isFinite(element)) break;
+    numbers[i] = element;
   }
+  if (i < value.length) throw notANumberError(value[i], fileName, column, i);
   return numbers;
+}
+
+function notANumberError(element: unknown, fileName: string, column: string, i: number): HeatpathError {
+  const at: ErrorLocation = { file: fileName, column: `${shortenInputText(column)}[${i}]` };
+  if (typeof element === 'number') return new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] overflows a double`, at);
+  if (element === null) return new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] is null (a NaN or infinity written by a JSON serialiser?)`, at);
+  const shown = typeof element === 'string' ? element : (JSON.stringify(element) ?? String(element));
+  return new HeatpathError('INPUT_NOT_NUMERIC', `${column}[${i}] is ${quoteInputText(shown)}`, at);
 }
 
 function readMeta(value: unknown, fileName: string): Record<string, string> {
