@@ -69,6 +69,16 @@ describe('with a real Redis', () => {
     expect(problem).toMatchObject({ line: 6, column: 'temperature_C', file: 'upload.csv' });
   });
 
+  it("keeps a caller's X-Request-Id and echoes it; makes one up for a missing or odd one", async () => {
+    const traced = await upload(context, 'sample_id=S1', small, { 'x-request-id': 'lims-4711.a' });
+    expect(traced.headers['x-request-id']).toBe('lims-4711.a');
+    expect(traced.json().request_id).toBe('lims-4711.a');
+    for (const headers of [{}, { 'x-request-id': 'two words' }]) {
+      const answer = await context.app.inject({ url: '/v1/batches', headers: { ...bearer('reader'), ...headers } });
+      expect(answer.headers['x-request-id']).toMatch(/^[0-9a-f-]{36}$/);
+    }
+  });
+
   it('400 lists the invalid or unknown query fields instead of dropping them', async () => {
     const problem = expectProblem(await upload(context, 'sample_id=S1&power_w=50&cycle_count=-3', small), 400, 'REQUEST_INVALID');
     expect(problem.errors.map((error: { field: string }) => error.field).join(' ')).toMatch(/power_w|cycle_count/);

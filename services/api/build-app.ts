@@ -30,6 +30,8 @@ export interface AppDependencies {
   queue: AnalysisQueue;
 }
 
+const REQUEST_ID = /^[A-Za-z0-9._:-]{1,128}$/;
+
 /**
  * The HTTP API: plugins first (errors, auth, limits, docs, metrics), then
  * one plugin per route group. Not listening yet: the caller decides
@@ -41,13 +43,20 @@ export async function buildApp(deps: AppDependencies) {
   const app = Fastify({
     loggerInstance: logger,
     bodyLimit: config.maxUploadBytes,
-    genReqId: () => randomUUID(),
+    // A caller's own request id (a LIMS tracing its calls) is kept when it is a plain token; otherwise a fresh one.
+    genReqId: (request) => {
+      const given = request.headers['x-request-id'];
+      return typeof given === 'string' && REQUEST_ID.test(given) ? given : randomUUID();
+    },
     // Ids and names in paths may be long (SHA-256 hex); keep the default 100 as a lower bound.
     routerOptions: { maxParamLength: 200 },
     // Unknown fields are refused (400), not silently dropped: a mistyped power_W must not pass.
     ajv: { customOptions: { removeAdditional: false } },
   }).withTypeProvider<TypeBoxTypeProvider>();
 
+  app.addHook('onSend', async (request, reply) => {
+    reply.header('x-request-id', request.id);
+  });
   await app.register(problemDetailsPlugin, { maxUploadBytes: config.maxUploadBytes });
   await app.register(apiKeyAuthPlugin, { apiKeys: config.apiKeys });
   await app.register(perKeyRateLimitPlugin, { perMinute: config.rateLimitPerMinute });
