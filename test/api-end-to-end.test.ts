@@ -115,6 +115,11 @@ describe('upload to result over HTTP, Redis and a worker', () => {
     const served = await call(`${upload.links.job}/artifacts/compact-cauer.cir`);
     expect(served.headers.get('content-type')).toBe(netlist.media_type);
     expect(await served.text()).toBe(netlist.content);
+    // A name or channel it does not have: 404 listing what it has.
+    const wrongName = await (await call(`${upload.links.job}/artifacts/cauer.spice`)).json();
+    expect(wrongName).toMatchObject({ status: 404, detail: expect.stringContaining('compact-cauer.cir') });
+    const wrongChannel = await (await call(`${upload.links.job}/artifacts/zth.csv?channel=9`)).json();
+    expect(wrongChannel).toMatchObject({ status: 404, detail: expect.stringMatching(/no channel 9; its channels: 1$/) });
   });
 
   it('lists the upload for the LIMS by sample, with the result embedded on request', async () => {

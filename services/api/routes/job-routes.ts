@@ -139,8 +139,12 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
       const { channel } = request.query;
       const chosen = channel === undefined ? results : results.filter((result) => result.source.channel === channel);
       if (chosen.length > 1) throw new HeatpathError('REQUEST_INVALID', `job ${job_id} has channels ${results.map((r) => r.source.channel).join(', ')}: add ?channel=`);
-      const artifact = chosen.length === 1 ? resultArtifacts(chosen[0]).find((candidate) => candidate.name === name) : undefined;
-      if (!artifact) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} has no artifact ${name}${channel === undefined ? '' : ` for channel ${channel}`}`);
+      if (chosen.length === 0) {
+        throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} has no channel ${channel}; its channels: ${results.map((r) => r.source.channel).join(', ')}`);
+      }
+      const artifacts = resultArtifacts(chosen[0]);
+      const artifact = artifacts.find((candidate) => candidate.name === name);
+      if (!artifact) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${job_id} has no artifact ${name}; its artifacts: ${artifacts.map((a) => a.name).join(', ')}`);
       return reply.type(artifact.media_type).send(artifact.content);
     },
   );
