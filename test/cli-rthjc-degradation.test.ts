@@ -97,6 +97,20 @@ describe('heatpath degradation', () => {
   });
 });
 
+describe('heatpath degradation with a bad later file', () => {
+  it('reports the good files, names the bad one on stderr and exits 2; a bad reference stops it', () => {
+    const bad = file('cycle-030000-broken.csv', 'time_s,temperature_C\n1e-6,oops\n');
+    const run = heatpath('degradation', campaign[0], bad, campaign[3], '--format', 'json');
+    expect(run.code).toBe(2);
+    const report = JSON.parse(run.stdout);
+    expect(report.later.map((row: { file: string }) => row.file)).toEqual([campaign[3]]);
+    expect(run.stderr.trim().split('\n')).toEqual([expect.stringMatching(/cycle-030000-broken\.csv, line 2.*INPUT_NOT_NUMERIC/)]);
+    const noReference = heatpath('degradation', bad, campaign[3]);
+    expect(noReference.code).toBe(2);
+    expect(noReference.stdout).toBe('');
+  });
+});
+
 describe('rthjc and degradation user errors: exit code 2 and one line', () => {
   // A two-stage Foster curve over four decades from first_s, its time constants placed inside them.
   const zthRows = (first_s: number) =>

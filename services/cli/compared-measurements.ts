@@ -17,18 +17,26 @@ export interface ComparedMeasurement {
   meta: Record<string, string>;
 }
 
-/** Analyse each file; a file with several channels is refused (which channel to compare would be a guess). */
-export async function analyzeComparedFiles(files: string[], inputs: AnalysisInputs, createdAt: string): Promise<ComparedMeasurement[]> {
+/**
+ * Analyse each file; a file that cannot be analysed, or has several channels
+ * (which channel to compare would be a guess), is a failure of its own, so
+ * that one bad file of a campaign does not cost the others.
+ */
+export async function analyzeComparedFiles(
+  files: string[],
+  inputs: AnalysisInputs,
+  createdAt: string,
+): Promise<{ measurements: ComparedMeasurement[]; failures: HeatpathError[] }> {
   const measurements: ComparedMeasurement[] = [];
+  const failures: HeatpathError[] = [];
   for (const file of files) {
-    const { results, failures } = await analyzeFiles([file], { ...inputs, createdAt });
-    if (failures.length > 0) throw failures[0];
-    if (results.length !== 1) {
-      throw new HeatpathError('COMPARISON_SEVERAL_CHANNELS', `${results.length} channels (${results.map((r) => r.result.source.channel).join(', ')})`, { file });
-    }
-    measurements.push({ file, result: results[0].result, meta: results[0].meta });
+    const { results, failures: failed } = await analyzeFiles([file], { ...inputs, createdAt });
+    if (failed.length > 0) failures.push(...failed);
+    else if (results.length !== 1) {
+      failures.push(new HeatpathError('COMPARISON_SEVERAL_CHANNELS', `${results.length} channels (${results.map((r) => r.result.source.channel).join(', ')})`, { file }));
+    } else measurements.push({ file, result: results[0].result, meta: results[0].meta });
   }
-  return measurements;
+  return { measurements, failures };
 }
 
 export function interfaceMeasurement(result: AnalysisResult): InterfaceMeasurement {

@@ -6,6 +6,7 @@ import { cycleCountFromMeta } from '../../shared/input/cycle-count.js';
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
 import { analyzeComparedFiles, type ComparedMeasurement } from './compared-measurements.js';
+import { userErrorLine } from './user-error-line.js';
 
 export const degradationUsage = `heatpath degradation REFERENCE FILE... [options]
 
@@ -40,10 +41,14 @@ export async function runDegradationCommand(argv: string[], print: (text: string
   const limitPercent = numberOption('rth-rise-limit-percent', values['rth-rise-limit-percent'] as string | undefined, { positive: true }) ?? DEFAULT_RTH_RISE_LIMIT_PERCENT;
   const inputs = await analysisInputsFromOptions(values);
 
-  const [reference, ...later] = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
+  const { measurements, failures } = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
+  // Without its reference nothing can be compared; a later file that fails is left out of the table and reported.
+  if (measurements[0]?.file !== positionals[0]) throw failures[0];
+  const [reference, ...later] = measurements;
   const rows = later.map((measurement) => degradationRow(reference, measurement, limitPercent));
   print(format === 'json' ? JSON.stringify(degradationReport(reference, rows, limitPercent)) : formatDegradation(reference, rows, limitPercent));
-  return 0;
+  for (const failure of failures) process.stderr.write(userErrorLine('degradation', failure) + '\n');
+  return failures.length > 0 ? 2 : 0;
 }
 
 export interface DegradationRow {

@@ -46,7 +46,9 @@ export async function runRthjcCommand(argv: string[], print: (text: string) => v
   const epsilonOffset_K_per_W = numberOption('epsilon-offset-k-per-w', values['epsilon-offset-k-per-w'] as string | undefined, { positive: true });
   const inputs = await analysisInputsFromOptions(values);
 
-  const [a, b] = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
+  const { measurements, failures } = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
+  if (failures.length > 0) throw failures[0];
+  const [a, b] = measurements;
   const comparison = dualInterfaceRthjc(interfaceMeasurement(a.result), interfaceMeasurement(b.result), { epsilonSlope, epsilonOffset_K_per_W });
   print(format === 'json' ? JSON.stringify(rthjcReport(a, b, comparison)) : formatRthjc(a, b, comparison));
   return 0;
