@@ -115,6 +115,30 @@ describe('batches', () => {
   });
 });
 
+describe('sample listing in pages', () => {
+  it('gives at most ?limit= transients, oldest first, and a next cursor until the last page', async () => {
+    const ids: string[] = [];
+    for (const seed of [61, 62, 63]) {
+      const uploaded = await context.app.inject({
+        method: 'POST',
+        url: '/v1/transients?sample_id=PAGED-1&power_W=50',
+        headers: { ...bearer('bench'), 'content-type': 'text/csv' },
+        payload: syntheticTransientCsv(seed, 10),
+      });
+      ids.push(uploaded.json().upload_id);
+    }
+    const get = async (url: string) => (await context.app.inject({ url, headers: bearer('reader') })).json();
+    const first = await get('/v1/samples/PAGED-1/results?limit=2');
+    expect(first.transients.map((t: { upload_id: string }) => t.upload_id)).toEqual(ids.slice(0, 2));
+    expect(first.next).toBe(ids[1]);
+    const second = await get(first.links.next);
+    expect(second.transients.map((t: { upload_id: string }) => t.upload_id)).toEqual(ids.slice(2));
+    expect(second).toMatchObject({ next: null, links: { next: null } });
+    expect((await get('/v1/samples/PAGED-1/results')).transients).toHaveLength(3);
+    expect(await get('/v1/samples/PAGED-1/results?after=upl-none')).toMatchObject({ status: 404, code: 'RESOURCE_NOT_FOUND' });
+  });
+});
+
 describe('calibrations', () => {
   const temperature_C = [20, 45, 70, 95, 120, 145];
   const voltage_V = temperature_C.map((t) => 0.65 - 0.0021 * (t - 20));

@@ -146,7 +146,25 @@ export class TransientStore {
 
   /** Uploads matching every given field of the filter, oldest first. */
   async listUploads(filter: UploadFilter = {}): Promise<UploadRecord[]> {
+    return this.readUploads(await this.listUploadSummaries(filter));
+  }
+
+  /**
+   * At most `limit` of those uploads, starting after the upload `after` (none:
+   * from the first); `next` is the last one returned when more follow, else
+   * null. Only the page's records are read. An `after` that matches none of
+   * them is null: the caller says so rather than start over.
+   */
+  async listUploadPage(filter: UploadFilter, after: string | undefined, limit: number): Promise<{ uploads: UploadRecord[]; next: string | null } | null> {
     const summaries = await this.listUploadSummaries(filter);
+    const start = after === undefined ? 0 : summaries.findIndex((summary) => summary.upload_id === after) + 1;
+    if (start === 0 && after !== undefined) return null;
+    const page = summaries.slice(start, start + limit);
+    const more = start + limit < summaries.length;
+    return { uploads: await this.readUploads(page), next: more && page.length > 0 ? page[page.length - 1].upload_id : null };
+  }
+
+  private async readUploads(summaries: UploadSummary[]): Promise<UploadRecord[]> {
     const records: UploadRecord[] = [];
     for (let start = 0; start < summaries.length; start += LIST_READ_CONCURRENCY) {
       const read = await Promise.all(summaries.slice(start, start + LIST_READ_CONCURRENCY).map((summary) => this.getUpload(summary.upload_id)));

@@ -8,6 +8,7 @@ import { uploadLinks } from '../uploads/accept-transient-upload.js';
 import { sampleDegradation } from '../samples/sample-degradation.js';
 import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
+import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 
 const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed'), Type.Literal('cancelled')], {
   description: 'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that did not run.',
@@ -61,6 +62,10 @@ const SampleDegradationSchema = Type.Object({
   caution: Type.String(),
 });
 
+/** Transients per page of a sample listing: a power-cycling sample gathers thousands, each result some 200 kB. */
+const DEFAULT_SAMPLE_PAGE = 200;
+const MAX_SAMPLE_PAGE = 5000;
+
 /** The LIMS view: every transient of a sample, oldest first, with its job outcomes. */
 export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> = async (app, { store }) => {
   async function outcomeOf(jobId: string, includeResult: boolean, batchCancelled = false) {
@@ -82,16 +87,29 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         summary: 'Every transient of a sample with its job outcomes',
         params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
         querystring: Type.Object(
-          { include_results: Type.Boolean({ default: false, description: 'Embed each completed result.' }) },
+          {
+            include_results: Type.Boolean({ default: false, description: 'Embed each completed result.' }),
+            limit: Type.Integer({ minimum: 1, maximum: MAX_SAMPLE_PAGE, default: DEFAULT_SAMPLE_PAGE, description: 'Transients per page.' }),
+            after: Type.Optional(Type.String({ maxLength: 160, description: 'Start after this upload: the `next` of the page before.' })),
+          },
           { additionalProperties: false },
         ),
-        response: { 200: Type.Object({ sample_id: Type.String(), transients: Type.Array(SampleEntrySchema) }) },
+        response: {
+          200: Type.Object({
+            sample_id: Type.String(),
+            transients: Type.Array(SampleEntrySchema),
+            next: Type.Union([Type.String(), Type.Null()], { description: 'Pass as ?after= for the next page; null on the last page.' }),
+            links: Type.Object({ next: Type.Union([Type.String(), Type.Null()]) }),
+          }),
+        },
       },
     },
     async (request, reply) => {
       const { sample_id } = request.params;
-      const { include_results } = request.query;
-      const [uploads, batches] = await Promise.all([store.listUploads({ sample_id }), store.listBatches()]);
+      const { include_results, limit, after } = request.query;
+      const [page, batches] = await Promise.all([store.listUploadPage({ sample_id }, after, limit), store.listBatches()]);
+      if (page === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${after} is not one of sample ${sample_id}'s: pass the \`next\` of the page before as ?after=`);
+      const { uploads, next } = page;
       const transients = await Promise.all(
         uploads.map(async (upload) => ({
           upload_id: upload.upload_id,
@@ -113,7 +131,8 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         })),
       );
       // Embedded results go out as JSON.stringify writes them, as on /v1/jobs/:job_id/result.
-      return reply.type('application/json; charset=utf-8').serializer(JSON.stringify).send({ sample_id, transients });
+      const nextLink = next === null ? null : `/v1/samples/${encodeURIComponent(sample_id)}/results?${new URLSearchParams({ after: next, limit: String(limit), ...(include_results && { include_results: 'true' }) })}`;
+      return reply.type('application/json; charset=utf-8').serializer(JSON.stringify).send({ sample_id, transients, next, links: { next: nextLink } });
     },
   );
 
