@@ -6,6 +6,8 @@ import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { CalibrationSchema, type Calibration } from '../shared/schemas/calibration.js';
 import { Value } from 'typebox/value';
 import { createRandom, gaussian } from './support/seeded-random.js';
+import { readFileSync } from 'node:fs';
+import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
 
 
 const temperatures_C = Float64Array.from({ length: 11 }, (_, i) => 20 + 15 * i); // 20..170 degC oven sweep
@@ -66,6 +68,55 @@ describe('fitCalibration', () => {
     expect(cal.residual_rms_K).toBeLessThan(1e-9);
     const mid = 0.575;
     expect(cal.sensitivity_mV_per_K).toBeCloseTo(1e3 / (c[1] * c[2] * Math.exp(c[2] * mid)), 6);
+  });
+
+  describe('exp: the best T = c0 + c1 exp(c2 V), never worse than the line it contains as c2 -> 0', () => {
+    // Independent reference: brute-force variable projection, a dense scan of the rate c2 (both signs,
+    // 1e-5 .. 1e2 per volt, 2000 per decade) with c0, c1 solved at each rate from the 2 x 2 normal
+    // equations by mathjs lusolve; the exponential is centred at the mid voltage to keep them well conditioned.
+    function referenceExpRms(t: Float64Array, v: Float64Array): { rms_K: number; c2_per_V: number } {
+      const centre = (Math.min(...v) + Math.max(...v)) / 2;
+      let best = { rms_K: Infinity, c2_per_V: Number.NaN };
+      for (let i = 0; i <= 14000; i++) {
+        for (const sign of [1, -1]) {
+          const c2 = sign * 10 ** (-5 + i / 2000);
+          const e = Array.from(v, (x) => Math.exp(c2 * (x - centre)));
+          const sum = (f: (j: number) => number) => e.reduce((acc, _, j) => acc + f(j), 0);
+          const normal = [[e.length, sum((j) => e[j])], [sum((j) => e[j]), sum((j) => e[j] ** 2)]];
+          const right = [sum((j) => t[j]), sum((j) => e[j] * t[j])];
+          const [[c0], [c1]] = lusolve(normal, right) as number[][];
+          const rms = Math.sqrt(sum((j) => (t[j] - c0 - c1 * e[j]) ** 2) / e.length);
+          if (rms < best.rms_K) best = { rms_K: rms, c2_per_V: c2 };
+        }
+      }
+      return best;
+    }
+
+    it('on the demo sweep of Q12 reaches the reference optimum (0.02897 K), below the linear fit (0.02910 K)', () => {
+      const path = new URL('./fixtures/demo-lab/fh-tt2_q12_calibration-points.csv', import.meta.url);
+      const points = parseCalibrationPoints(readFileSync(path), 'fh-tt2_q12_calibration-points.csv');
+      const exp = fitCalibration(points.temperature_C, points.voltage_V, 'exp');
+      const linear = fitCalibration(points.temperature_C, points.voltage_V, 'linear');
+      const reference = referenceExpRms(points.temperature_C, points.voltage_V);
+      expect(reference.rms_K).toBeCloseTo(0.02897, 5);
+      expect(linear.residual_rms_K).toBeCloseTo(0.02910, 5);
+      // The scan's step in c2 is 0.12 %: ours may be a hair below its best point, never above it.
+      expect(exp.residual_rms_K).toBeLessThanOrEqual(reference.rms_K + 1e-9);
+      expect(exp.residual_rms_K).toBeGreaterThan(reference.rms_K - 1e-6);
+      expect(exp.coefficients[2] / reference.c2_per_V).toBeCloseTo(1, 2);
+      expect(exp.residual_rms_K).toBeLessThan(linear.residual_rms_K);
+    });
+
+    it('on straight and nearly straight noisy sweeps is as good as the linear fit', () => {
+      const random = createRandom(11);
+      for (const curvature_V_per_K2 of [0, 1e-7, -1e-7, 1e-6]) {
+        const voltages = temperatures_C.map((t) => 0.65 - 2e-3 * (t - 25) + curvature_V_per_K2 * (t - 25) ** 2 + 2e-5 * gaussian(random));
+        const exp = fitCalibration(temperatures_C, voltages, 'exp');
+        const linear = fitCalibration(temperatures_C, voltages, 'linear');
+        expect(exp.residual_rms_K).toBeLessThanOrEqual(linear.residual_rms_K * (1 + 1e-9));
+        expect(exp.residual_rms_K).toBeLessThanOrEqual(referenceExpRms(temperatures_C, voltages).rms_K + 1e-9);
+      }
+    });
   });
 
   it.each([

@@ -2,17 +2,15 @@ import { Value } from 'typebox/value';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { quoteInputText } from '../input/quote-input-text.js';
 import { CalibrationSchema, type Calibration, type CalibrationModel } from '../schemas/calibration.js';
-import { fitPolynomial, solveLeastSquares } from './least-squares.js';
+import { fitPolynomial } from './least-squares.js';
+import { fitOffsetExponential } from './offset-exponential-fit.js';
 import { valueRange } from './value-range.js';
 
 /**
  * Calibration of a temperature-sensitive parameter (TSP, JESD51-1): the
  * junction temperature as a function of the sense voltage, fitted to an oven
  * or chiller sweep. Polynomials (order 1-4) by linear least squares;
- * T = c0 + c1 exp(c2 V) by a grid over the rate c2 with c0, c1 solved
- * linearly at each rate (variable projection, Golub & Pereyra, SIAM J. Numer.
- * Anal. 10, 1973), then Levenberg-Marquardt (Marquardt, J. SIAM 11, 1963) on
- * all three. The K-factor of JESD51-1 is the inverse sensitivity, in K/mV.
+ * T = c0 + c1 exp(c2 V) by `fitOffsetExponential`. The K-factor of JESD51-1 is the inverse sensitivity, in K/mV.
  */
 
 /** Measured voltages may lie outside the calibrated range by this fraction of its span. */
@@ -22,9 +20,6 @@ export const MONOTONIC_CHECK_POINTS = 257;
 
 const PARAMETER_COUNT: Record<CalibrationModel, number> = { linear: 2, poly2: 3, poly3: 4, poly4: 5, exp: 3 };
 const POLYNOMIAL_DEGREE: Partial<Record<CalibrationModel, number>> = { linear: 1, poly2: 2, poly3: 3, poly4: 4 };
-/** Rates k of exp(k u), u the voltage scaled to [-1, 1], tried before the Levenberg-Marquardt refinement. */
-const EXP_RATE_GRID = Array.from({ length: 41 }, (_, i) => 0.01 * 10 ** (i / 12)).flatMap((k) => [k, -k]);
-const EXP_MAX_ITERATIONS = 200;
 
 export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Array, model: CalibrationModel): Calibration {
   const parameters = PARAMETER_COUNT[model];
@@ -41,7 +36,7 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
     throw new HeatpathError('CALIBRATION_TOO_FEW_POINTS', `${model} has ${parameters} coefficients; ${count} points at ${distinctVoltages} distinct voltages`);
   }
   const degree = POLYNOMIAL_DEGREE[model];
-  const coefficients = degree === undefined ? fitExponential(voltage_V, temperature_C) : fitPolynomial(voltage_V, temperature_C, degree);
+  const coefficients = degree === undefined ? fitOffsetExponential(voltage_V, temperature_C) : fitPolynomial(voltage_V, temperature_C, degree);
   if (coefficients === undefined) throw new HeatpathError('CALIBRATION_TOO_FEW_POINTS', `the points do not determine the ${model} model`);
 
   const voltage_range_V = valueRange(voltage_V);
@@ -135,72 +130,4 @@ function assertMonotonic(calibration: Calibration, low_V: number, high_V: number
     }
     sign = slope;
   }
-}
-
-/** T = c0 + c1 exp(c2 V): fitted as a + b exp(k u) with u = (V - centre) / halfSpan, then mapped back. */
-function fitExponential(voltage_V: Float64Array, temperature_C: Float64Array): Float64Array | undefined {
-  const [low, high] = valueRange(voltage_V);
-  const centre = (low + high) / 2;
-  const halfSpan = (high - low) / 2;
-  const u = voltage_V.map((v) => (v - centre) / halfSpan);
-
-  let best: { a: number; b: number; k: number; squares: number } | undefined;
-  for (const k of EXP_RATE_GRID) {
-    const candidate = linearPartAt(u, temperature_C, k);
-    if (candidate !== undefined && (best === undefined || candidate.squares < best.squares)) best = { ...candidate, k };
-  }
-  if (best === undefined) return undefined;
-
-  // Levenberg-Marquardt on (a, b, k), damping scaled by the Jacobian column norms.
-  let { a, b, k, squares } = best;
-  let damping = 1e-3;
-  const count = u.length;
-  for (let iteration = 0; iteration < EXP_MAX_ITERATIONS; iteration++) {
-    const design = new Float64Array((count + 3) * 3);
-    const rhs = new Float64Array(count + 3);
-    const columnSquares = [0, 0, 0];
-    for (let i = 0; i < count; i++) {
-      const e = Math.exp(k * u[i]);
-      const row = [1, e, b * u[i] * e];
-      row.forEach((value, j) => {
-        design[i * 3 + j] = value;
-        columnSquares[j] += value * value;
-      });
-      rhs[i] = temperature_C[i] - (a + b * e);
-    }
-    for (let j = 0; j < 3; j++) design[(count + j) * 3 + j] = Math.sqrt(damping * columnSquares[j]);
-    const step = solveLeastSquares(design, count + 3, 3, rhs);
-    if (step === undefined) break;
-    const trial = { a: a + step[0], b: b + step[1], k: k + step[2] };
-    const trialSquares = squaresOf(u, temperature_C, trial.a, trial.b, trial.k);
-    if (trialSquares <= squares) {
-      const converged = Math.abs(step[2]) <= 1e-15 * Math.max(1, Math.abs(k)) || squares - trialSquares <= 1e-30 * squares;
-      ({ a, b, k } = trial);
-      squares = trialSquares;
-      damping = Math.max(damping / 10, 1e-12);
-      if (converged) break;
-    } else {
-      damping *= 10;
-      if (damping > 1e12) break;
-    }
-  }
-  return Float64Array.from([a, b * Math.exp((-k * centre) / halfSpan), k / halfSpan]);
-}
-
-/** a, b minimising |a + b exp(k u) - T| at a fixed rate k. */
-function linearPartAt(u: Float64Array, temperature_C: Float64Array, k: number): { a: number; b: number; squares: number } | undefined {
-  const design = new Float64Array(u.length * 2);
-  for (let i = 0; i < u.length; i++) {
-    design[2 * i] = 1;
-    design[2 * i + 1] = Math.exp(k * u[i]);
-  }
-  const solution = solveLeastSquares(design, u.length, 2, temperature_C);
-  if (solution === undefined) return undefined;
-  return { a: solution[0], b: solution[1], squares: squaresOf(u, temperature_C, solution[0], solution[1], k) };
-}
-
-function squaresOf(u: Float64Array, temperature_C: Float64Array, a: number, b: number, k: number): number {
-  let sum = 0;
-  for (let i = 0; i < u.length; i++) sum += (temperature_C[i] - a - b * Math.exp(k * u[i])) ** 2;
-  return sum;
 }
