@@ -156,6 +156,21 @@ describe('calibrations', () => {
     expect(listed.json().calibrations.map((c: { calibration_id: string }) => c.calibration_id)).toEqual([fromCsv.json().calibration_id]);
   });
 
+  it('answers and stores the fit\'s warnings, and keeps them out of the calibration id', async () => {
+    // The same sweep written in millivolts: a warning, not a refusal (series strings can read that high).
+    const millivolts = voltage_V.map((v) => 1e3 * v);
+    const fitted = await post('/v1/calibrations', { model: 'linear', points: { temperature_C, voltage_V: millivolts } }, 'bench');
+    expect(fitted.statusCode, fitted.body).toBe(201);
+    const { calibration, calibration_id } = fitted.json();
+    expect(calibration.warnings).toEqual([expect.stringMatching(/millivolts/)]);
+    const got = await context.app.inject({ url: `/v1/calibrations/${calibration_id}`, headers: bearer('reader') });
+    expect(got.json().calibration.warnings).toEqual(calibration.warnings);
+    const { warnings: _warnings, ...withoutWarnings } = calibration;
+    const storedAsIs = await post('/v1/calibrations', { calibration: withoutWarnings }, 'bench');
+    expect(storedAsIs.statusCode, storedAsIs.body).toBe(201);
+    expect(storedAsIs.json().calibration_id).toBe(calibration_id);
+  });
+
   it('refuses ambiguous requests (400), too few points (422) and unknown ids (404)', async () => {
     expect((await post('/v1/calibrations', { model: 'linear' }, 'bench')).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
     expect((await post('/v1/calibrations', { points: { temperature_C, voltage_V } }, 'bench')).json()).toMatchObject({ status: 400 });

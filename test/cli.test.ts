@@ -67,6 +67,24 @@ describe('heatpath analyze', () => {
     expect(run.code).toBe(0);
     expect(JSON.parse(run.stdout).source.quantity).toBe('voltage_V');
   });
+
+  it('warns of a calibration sweep in millivolts in its output and in the calibration file, which analyze still reads', () => {
+    const rows = readFileSync(join(demo, 'fh-tt2_q12_calibration-points.csv'), 'utf8')
+      .split('\n')
+      .filter((line) => /^[0-9]/.test(line))
+      .map((line) => line.split(',').map(Number));
+    const points = file('q12-mV.csv', `temperature_C,voltage_V\n${rows.map(([t, v]) => `${t},${(1e3 * v).toFixed(3)}`).join('\n')}\n`);
+    const cal = join(work, 'q12-mV.json');
+    const calibrate = heatpath('calibrate', points, '--model', 'linear', '--out', cal);
+    expect(calibrate.code).toBe(0);
+    expect(calibrate.stdout).toMatch(/warning +voltage_V runs from 349\.954 to 612\.62 V at -2100 mV\/K.*millivolts/);
+    const calibration = JSON.parse(readFileSync(cal, 'utf8'));
+    expect(calibration.warnings).toEqual([expect.stringMatching(/divide voltage_V by 1000/)]);
+    const volts = file('mV-cooling.csv', `time_s,voltage_V\n${goodRows.map((row) => row.replace(/,(.*)$/, (_, v) => `,${(480 + 100 * Number(v)).toFixed(6)}`)).join('\n')}\n`);
+    const run = heatpath('analyze', volts, '--calibration', cal, '--power-w', '10', '--format', 'json');
+    expect(run.stderr).toBe('');
+    expect(run.code).toBe(0);
+  });
 });
 
 describe('heatpath analyze --out with inputs that share a file name', () => {

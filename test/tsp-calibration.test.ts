@@ -132,6 +132,52 @@ describe('fitCalibration', () => {
   });
 });
 
+describe('fitCalibration warnings', () => {
+  const sweep_C = Float64Array.from([25, 50, 75, 100, 125, 150]);
+
+  it('none on a good diode sweep, and none written to the file', () => {
+    expect(fitCalibration(temperatures_C, diodeVoltage_V, 'linear')).not.toHaveProperty('warnings');
+  });
+
+  it('warns of a residual RMS above 0.5 K and names the step against the trend of a non-monotonic sweep', () => {
+    // The voltage of a silicon diode falls with temperature (common practice); this sweep rises twice.
+    const upAndDown_V = Float64Array.from([0.612, 0.56, 0.59, 0.455, 0.52, 0.35]);
+    const cal = fitCalibration(sweep_C, upAndDown_V, 'linear');
+    expect(cal.residual_rms_K).toBeGreaterThan(0.5);
+    expect(cal.warnings).toHaveLength(1);
+    expect(cal.warnings![0]).toMatch(/residual RMS of \S+ K \(above 0\.5 K\)/);
+    expect(cal.warnings![0]).toMatch(/not monotonic: from 100 to 125 degC the voltage rises by 0\.0650 V/);
+    expect(Value.Check(CalibrationSchema, cal)).toBe(true);
+    expect(validateCalibration(JSON.parse(JSON.stringify(cal)), 'cal.json').warnings).toEqual(cal.warnings);
+  });
+
+  it('refuses a model that turns inside the swept voltages rather than warning', () => {
+    // T = 100 - 1000 (V - 0.5)^2 sampled on both sides of its turn at 0.5 V.
+    const voltages_V = Float64Array.from([0.40, 0.45, 0.50, 0.55, 0.60]);
+    const temps = voltages_V.map((v) => 100 - 1000 * (v - 0.5) ** 2);
+    expect(catchHeatpathError(() => fitCalibration(temps, voltages_V, 'poly2')).code).toBe('CALIBRATION_NOT_MONOTONIC');
+  });
+
+  it('warns that a sweep in millivolts labelled voltage_V looks like millivolts', () => {
+    // The same -2 mV/K diode written in mV: 650 .. 360 "V" and -2000 "mV/K".
+    const cal = fitCalibration(temperatures_C, diodeVoltage_V.map((v) => 1e3 * v), 'linear');
+    expect(cal.sensitivity_mV_per_K).toBeCloseTo(-2000, 6);
+    expect(cal.warnings).toHaveLength(1);
+    expect(cal.warnings![0]).toMatch(/millivolts, divide voltage_V by 1000/);
+  });
+
+  it.each([
+    // Junction values: silicon diodes about 0.65 V and -2 mV/K, blue LEDs about 3 V and -2 mV/K (common practice, memory).
+    ['a steep sensitivity alone (-200 mV/K at 11..41 V)', (t: number) => 41 - 0.2 * (t - 20), true],
+    ['high volts alone (33 blue LEDs in series: 99 V, -66 mV/K), legitimate, so only a warning', (t: number) => 33 * (3 - 2e-3 * (t - 25)), true],
+    ['a threshold-voltage TSP (-10 mV/K at 4 V, memory)', (t: number) => 4 - 1e-2 * (t - 25), false],
+    ['40 silicon diodes in series (26 V, -80 mV/K)', (t: number) => 40 * (0.65 - 2e-3 * (t - 25)), false],
+  ])('plausibility: %s -> warned %s', (_label, volts, warned) => {
+    const cal = fitCalibration(temperatures_C, temperatures_C.map(volts), 'linear');
+    expect((cal.warnings ?? []).some((w) => w.includes('millivolts'))).toBe(warned);
+  });
+});
+
 describe('voltageToTemperature', () => {
   const cal = fitCalibration(temperatures_C, diodeVoltage_V, 'linear');
   const [low, high] = cal.voltage_range_V;

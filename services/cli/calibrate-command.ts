@@ -12,7 +12,9 @@ export const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly
 Fit the temperature-sensitive parameter: temperature_C as a function of
 voltage_V from a calibration sweep (CSV with columns temperature_C and
 voltage_V). Prints the fit; --out writes the calibration file that
-\`heatpath analyze --calibration\` reads.`;
+\`heatpath analyze --calibration\` reads. A model that is not monotonic over
+the calibrated voltages is refused; a residual RMS above 0.5 K and volts
+that look like millivolts are warned of, in the output and in the file.`;
 
 const models = CalibrationModelSchema.anyOf.map((literal) => literal.const) as CalibrationModel[];
 
@@ -44,6 +46,7 @@ export async function runCalibrateCommand(argv: string[], print: (text: string) 
       `  coefficients        ${calibration.coefficients.map((c) => c.toPrecision(8)).join(', ')}`,
       `  residual RMS        ${calibration.residual_rms_K.toPrecision(3)} K`,
       `  sensitivity         ${calibration.sensitivity_mV_per_K.toPrecision(4)} mV/K (K-factor ${calibration.k_factor_K_per_mV.toPrecision(4)} K/mV)`,
+      ...(calibration.warnings ?? []).map((warning) => `  warning             ${warning}`),
     ].join('\n') + '\n',
   );
   if (values.out) {

@@ -28,7 +28,7 @@ export const errorCatalogue = {
   // ---- calibration ----
   CALIBRATION_TOO_FEW_POINTS: { status: 422, title: 'Too few calibration points for the model', hint: 'A polynomial of order n needs at least n + 2 points; add points or choose a lower order.' },
   CALIBRATION_BAD_MODEL: { status: 400, title: 'Unknown calibration model', hint: 'Choose one of linear, poly2, poly3, poly4, exp.' },
-  CALIBRATION_NOT_MONOTONIC: { status: 422, title: 'The calibration curve is not monotonic over its range', hint: 'Check the points (a swapped row?) or choose a lower-order model.' },
+  CALIBRATION_NOT_MONOTONIC: { status: 422, title: 'The calibration curve is not monotonic over its range', hint: "A TSP's voltage must fall (or rise) steadily with temperature: check the points (a swapped row, a step taken before the device settled?) or choose a lower-order model." },
   CALIBRATION_OUT_OF_RANGE: { status: 422, title: 'A measured voltage lies outside the calibrated range', hint: 'Extend the calibration sweep to cover the measured temperatures.' },
   CALIBRATION_BAD_FILE: { status: 400, title: 'The calibration file is not valid', hint: 'Create it with `heatpath calibrate POINTS.csv --out CAL.json`.' },
   CALIBRATION_POINTS_COLUMNS: { status: 400, title: 'The calibration points need exactly the columns temperature_C and voltage_V', hint: 'Write the header temperature_C,voltage_V (either order) and one row per calibration point.' },

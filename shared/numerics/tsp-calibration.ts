@@ -4,6 +4,7 @@ import { quoteInputText } from '../input/quote-input-text.js';
 import { CalibrationSchema, type Calibration, type CalibrationModel } from '../schemas/calibration.js';
 import { fitPolynomial } from './least-squares.js';
 import { fitOffsetExponential } from './offset-exponential-fit.js';
+import { calibrationWarnings } from './tsp-calibration-warnings.js';
 import { valueRange } from './value-range.js';
 
 /**
@@ -58,7 +59,8 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
     points: count,
   };
   assertMonotonic(calibration, voltage_range_V[0], voltage_range_V[1]);
-  return calibration;
+  const warnings = calibrationWarnings(calibration, temperature_C, voltage_V);
+  return warnings.length > 0 ? { ...calibration, warnings } : calibration;
 }
 
 /** Junction temperature of each voltage; voltages beyond the calibrated range plus the margin are refused. */

@@ -28,6 +28,11 @@ export const CalibrationSchema = Type.Object(
     sensitivity_mV_per_K: Type.Number({ description: 'dV/dT at the middle of the range (negative for a diode).' }),
     k_factor_K_per_mV: Type.Number({ description: 'Inverse sensitivity, as JESD51-1 defines the K-factor.' }),
     points: Type.Integer({ minimum: 2 }),
+    warnings: Type.Optional(
+      Type.Array(Type.String(), {
+        description: 'What the fit found doubtful (a large residual, implausible volts); absent when nothing. Not part of the calibration id.',
+      }),
+    ),
     created_at: Type.Optional(Type.String()),
     source: Type.Optional(Type.String()),
   },
