@@ -60,10 +60,13 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     calibration_sha256: input.calibration ? sha256(JSON.stringify(input.calibration)) : null,
     created_at: createdAt,
   };
+  const calibrationWarning = sharedCalibrationWarning(file);
   return file.channels.map((channel) => {
     const context = { file: input.fileName, column: file.channels.length > 1 ? `${file.quantity}@${channel.name}` : file.quantity };
     try {
-      return analyzeChannel(file, channel.values, channel.name, parameters, power_W, input.calibration, provenance, input.fileName);
+      const result = analyzeChannel(file, channel.values, channel.name, parameters, power_W, input.calibration, provenance, input.fileName);
+      if (calibrationWarning !== undefined) result.quality.warnings.unshift(calibrationWarning);
+      return result;
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) {
         throw new HeatpathError(error.code, error.detail, context);
@@ -71,6 +74,20 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
       throw error;
     }
   });
+}
+
+/**
+ * A file of several voltage channels is usually several devices measured
+ * together, each with its own TSP; the one calibration given converts them
+ * all, which the results say.
+ */
+function sharedCalibrationWarning(file: TransientFile): string | undefined {
+  if (file.quantity !== 'voltage_V' || file.channels.length < 2) return undefined;
+  const names = file.channels.map((channel) => `voltage_V@${channel.name}`).join(', ');
+  return (
+    `one calibration converted all ${file.channels.length} voltage channels of this file (${names}) to temperature: ` +
+    'devices with calibrations of their own must be analysed with them, so split the file into one file per channel (or upload each channel on its own) and give each its calibration.'
+  );
 }
 
 function analyzeChannel(
