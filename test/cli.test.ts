@@ -153,6 +153,7 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     ['a non-numeric field', () => ['analyze', file('bad.csv', `time_s,zth_K_per_W\n${goodRows.slice(0, 3).join('\n')}\n1e-1,abc\n`)], /bad\.csv, line 5.*not a number/i],
     ['time not increasing', () => ['analyze', file('order.csv', `time_s,zth_K_per_W\n${[...goodRows.slice(0, 30), goodRows[10], ...goodRows.slice(30)].join('\n')}\n`)], /order\.csv, line 32/],
     ['no power for temperature input', () => ['analyze', file('nopower.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`)], /POWER_REQUIRED/],
+    ['a heating curve without its kind', () => ['analyze', file('heating.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`), '--power-w', '10'], /really cooling\? If it is a heating transient, say so: --kind heating on the command line; kind=heating for an upload; or a `# kind: heating` line in the file.*ANALYSIS_NOT_ANALYSABLE/],
     ['voltage without a calibration', () => ['analyze', file('volts.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '10'], /CALIBRATION_REQUIRED/],
     ['an unknown option', () => ['analyze', 'x.csv', '--bogus'], /CLI_USAGE/],
     ['a value starting with a dash, as its own argument', () => ['analyze', 'x.csv', '--power-w', '-5'], /ambiguous.*use '--power-w=-XYZ'.*CLI_USAGE/],

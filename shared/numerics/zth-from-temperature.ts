@@ -114,7 +114,15 @@ function correctEarlyTime(
 function assertRising(zth_K_per_W: Float64Array, kind: TransientKind | 'input'): void {
   const final = zth_K_per_W[zth_K_per_W.length - 1];
   if (!(final > 0)) {
-    const advice = kind === 'input' ? 'Zth must rise from 0' : `is the transient really ${kind}?`;
-    throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${final.toPrecision(3)} K/W; ${advice}`);
+    throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${final.toPrecision(3)} K/W; ${kind === 'input' ? 'Zth must rise from 0' : otherKindAdvice(kind)}`);
   }
+}
+
+/** What a user whose transient is of the other kind than the one stated gives instead, wherever they state it. */
+function otherKindAdvice(kind: TransientKind): string {
+  const other: TransientKind = kind === 'cooling' ? 'heating' : 'cooling';
+  return (
+    `is the transient really ${kind}? If it is a ${other} transient, say so: ` +
+    `--kind ${other} on the command line; kind=${other} for an upload; or a \`# kind: ${other}\` line in the file`
+  );
 }
