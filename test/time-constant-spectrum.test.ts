@@ -220,6 +220,22 @@ describe('discrepancy stopping (Morozov 1966)', () => {
     expect(iterations[0]).toBeLessThan(iterations[1]);
   });
 
+  // The Fourier estimate is bayes's start (the module's own design); its cancelled ringing is
+  // about the spectrum a user gets only when the refinement left that start as it was.
+  it('reports the Fourier start\'s ringing for bayes only when no iteration refined it', () => {
+    const refined = 1e-4;
+    const zth = fosterZth(r, tau, time_s, refined, 9);
+    const fourier = timeConstantSpectrum(time_s, zth, { method: 'fourier', pointsPerDecade: 40, noise_K_per_W: refined });
+    expect(fourier.warnings.join(' ')).toMatch(/^Fourier estimate: negative ringing/);
+    const bayes = timeConstantSpectrum(time_s, zth, { method: 'bayes', pointsPerDecade: 40, noise_K_per_W: refined });
+    expect(bayes.iterations).toBeGreaterThan(0);
+    expect(bayes.warnings.join(' ')).not.toMatch(/Fourier|ringing/);
+    const unrefined = 3e-2;
+    const start = timeConstantSpectrum(time_s, fosterZth(r, tau, time_s, unrefined, 9), { method: 'bayes', pointsPerDecade: 40, noise_K_per_W: unrefined });
+    expect(start.iterations).toBe(0);
+    expect(start.warnings.join(' ')).toMatch(/the Fourier estimate the Bayesian refinement starts from already fitted to the noise level, so the spectrum is that estimate, whose negative ringing/);
+  });
+
   it('rejects a grid density outside 10-200 points per decade', () => {
     const zth = fosterZth(r, tau, time_s, 0, 1);
     expect(() => timeConstantSpectrum(time_s, zth, { method: 'bayes', pointsPerDecade: 5, noise_K_per_W: 1e-4 })).toThrow(/points_per_decade/);

@@ -138,6 +138,8 @@ const POSTERIOR_SMOOTHING_STEPS = 1;
 const POSTERIOR_SEED = 20140101;
 /** Free-set solves per sample: a fit visits each of its few tens of lines a few times. */
 const MAX_SOLVES_PER_SAMPLE = 2000;
+/** The Fourier estimate's cancelled negative ringing gets a warning above this fraction of the spectrum's mass. */
+const RINGING_WARNING_FRACTION = 0.01;
 /** Floor added to the Fourier start, as a fraction of Rth spread over all columns: a multiplicative update cannot revive an exact zero. */
 const START_FLOOR_FRACTION = 1e-3;
 
@@ -166,28 +168,28 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
     return { tau_s, r_K_per_W: r, iterations: result.solves, residual_rms_K_per_W: integralResidualRms(grid, low, r), warnings };
   }
   const fourier = fourierSpectrum(grid, low, nx, noise_K_per_W);
-  if (fourier.clippedFraction > 0.01) warnings.push(`Fourier estimate: negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins`);
-  let r = fourier.r;
-  let iterations = 0;
-  if (options.method === 'bayes') {
-    // zeta_j = z_0 + (j - low) dz; increment row i (cell z_i..z_{i+1}) minus column j has lag p - (nx - 1) = i - j.
-    const incrementKernel = new Float64Array(nx + ny - 2);
-    for (let p = 0; p < incrementKernel.length; p++) incrementKernel[p] = cellIncrement((p - (nx - 1) + low) * dz, dz);
-    const firstRow = new Float64Array(nx);
-    for (let j = 0; j < nx; j++) firstRow[j] = timeConstantStepResponse((low - j) * dz);
-    const total = Math.max(grid.a[ny - 1], 1e-30);
-    const initial = new Float64Array(nx);
-    for (let j = 0; j < nx; j++) initial[j] = fourier.r[j] + (START_FLOOR_FRACTION * total) / nx;
-    const result = bayesDeconvolution({
-      incrementKernel, firstRow, unknownCount: nx, a: grid.a, varianceFactor: grid.varianceFactor, initial,
-      targetRms: DISCREPANCY_FACTOR * noise_K_per_W,
-      maxIterations: MAX_BAYES_ITERATIONS, integralWeight: INTEGRAL_MISFIT_WEIGHT,
-    });
-    r = result.solution;
-    iterations = result.iterations;
-    if (!result.reachedTarget) warnings.push(`deconvolution stopped after ${result.iterations} iterations with residual ${result.residualRms.toPrecision(3)} K/W above the noise level ${noise_K_per_W.toPrecision(3)} K/W`);
+  const ringing = fourier.clippedFraction > RINGING_WARNING_FRACTION ? `negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins` : null;
+  if (options.method === 'fourier') {
+    if (ringing) warnings.push(`Fourier estimate: ${ringing}`);
+    return { tau_s, r_K_per_W: fourier.r, iterations: 0, residual_rms_K_per_W: integralResidualRms(grid, low, fourier.r), warnings };
   }
-  return { tau_s, r_K_per_W: r, iterations, residual_rms_K_per_W: integralResidualRms(grid, low, r), warnings };
+  // zeta_j = z_0 + (j - low) dz; increment row i (cell z_i..z_{i+1}) minus column j has lag p - (nx - 1) = i - j.
+  const incrementKernel = new Float64Array(nx + ny - 2);
+  for (let p = 0; p < incrementKernel.length; p++) incrementKernel[p] = cellIncrement((p - (nx - 1) + low) * dz, dz);
+  const firstRow = new Float64Array(nx);
+  for (let j = 0; j < nx; j++) firstRow[j] = timeConstantStepResponse((low - j) * dz);
+  const total = Math.max(grid.a[ny - 1], 1e-30);
+  const initial = new Float64Array(nx);
+  for (let j = 0; j < nx; j++) initial[j] = fourier.r[j] + (START_FLOOR_FRACTION * total) / nx;
+  const result = bayesDeconvolution({
+    incrementKernel, firstRow, unknownCount: nx, a: grid.a, varianceFactor: grid.varianceFactor, initial,
+    targetRms: DISCREPANCY_FACTOR * noise_K_per_W,
+    maxIterations: MAX_BAYES_ITERATIONS, integralWeight: INTEGRAL_MISFIT_WEIGHT,
+  });
+  // The Fourier estimate is only where the refinement starts; its ringing describes the result only when no iteration changed it.
+  if (ringing && result.iterations === 0) warnings.push(`the Fourier estimate the Bayesian refinement starts from already fitted to the noise level, so the spectrum is that estimate, whose ${ringing}`);
+  if (!result.reachedTarget) warnings.push(`deconvolution stopped after ${result.iterations} iterations with residual ${result.residualRms.toPrecision(3)} K/W above the noise level ${noise_K_per_W.toPrecision(3)} K/W`);
+  return { tau_s, r_K_per_W: result.solution, iterations: result.iterations, residual_rms_K_per_W: integralResidualRms(grid, low, result.solution), warnings };
 }
 
 /** s(x + dz) - s(x): the share of a unit time constant's rise inside one grid cell. */
