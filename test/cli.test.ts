@@ -104,6 +104,25 @@ describe('heatpath analyze --out with inputs that share a file name', () => {
   });
 });
 
+describe('heatpath analyze --compact-stages', () => {
+  // goodRows is the Zth of two RC stages: its Foster form has exactly two time constants (Szekely & Van Bien 1988),
+  // so twelve non-negative stages cannot all carry heat.
+  it('says how many of the stages asked for it kept and why', () => {
+    const run = heatpath('analyze', file('two-stages.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--compact-stages', '12', '--format', 'json');
+    expect(run.code).toBe(0);
+    const result = JSON.parse(run.stdout);
+    expect(result.compact.stages).toBe(result.compact.foster.length);
+    expect(result.compact.stages).toBeLessThan(12);
+    expect(result.quality.warnings).toContainEqual(expect.stringMatching(new RegExp(`^compact model: ${result.compact.stages} of the 12 stages asked for were kept; the fit keeps every resistance >= 0 and gave ${12 - result.compact.stages} stages? none`)));
+  });
+
+  it('counts one stage in the singular', () => {
+    const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--compact-stages', '1');
+    expect(run.code).toBe(0);
+    expect(run.stdout).toMatch(/compact Foster {3}1 stage, fit rms/);
+  });
+});
+
 describe('heatpath analyze on a long record', () => {
   it('analyses 200 000 samples with --out: the tables keep every sample, the plots draw at most MAX_DRAWN_POINTS per line', () => {
     // Every 10 us for 2 s, as a bench sampling linearly records a long cooling; the Zth of goodRows' two RC stages.

@@ -11,15 +11,20 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
       ? `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}`
       : '  early time       not applied',
     quality.noise_K !== null ? `  noise            ${quality.noise_K.toPrecision(2)} K RMS` : `  noise            ${quality.noise_K_per_W.toPrecision(2)} K/W RMS`,
-    `  spectrum         ${result.provenance.method}, ${quality.deconvolution_iterations} iterations, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
-    `  Foster / Cauer   ${result.foster.length} / ${result.cauer.length} stages`,
-    `  compact Foster   ${compact.stages} stages, fit rms ${compact.fit_rms_K_per_W.toPrecision(2)} K/W, max ${(100 * compact.fit_max_rel).toFixed(2)} % of Rth`,
+    `  spectrum         ${result.provenance.method}, ${counted(quality.deconvolution_iterations, 'iteration')}, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
+    `  Foster / Cauer   ${result.foster.length} / ${counted(result.cauer.length, 'stage')}`,
+    `  compact Foster   ${counted(compact.stages, 'stage')}, fit rms ${compact.fit_rms_K_per_W.toPrecision(2)} K/W, max ${(100 * compact.fit_max_rel).toFixed(2)} % of Rth`,
     '                   R [K/W]      tau [s]',
     ...compact.foster.map((s) => `                   ${fixed(s.r_K_per_W).padEnd(12)} ${s.tau_s.toExponential(3)}`),
     `  warnings         ${quality.warnings.length === 0 ? 'none' : quality.warnings.join('\n                   ')}`,
   ];
   if (outDir) lines.push(`  written to       ${outDir}/`);
   return lines.join('\n') + '\n';
+}
+
+/** "1 stage", "11 stages". */
+function counted(count: number, noun: string): string {
+  return `${count} ${noun}${count === 1 ? '' : 's'}`;
 }
 
 function fixed(value: number): string {

@@ -135,6 +135,7 @@ function analyzeChannel(
   const differential = differentialStructureFunction(cumulative);
 
   const compact = fitCompactModel(time_s, zth.zth_K_per_W, parameters.compact_stages);
+  warnings.push(...compact.warnings);
   const compactCauer = fosterToCauer(compact.foster);
   const subcircuit = `${fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '')}_${channelName}`;
   const rth = steady.rth_K_per_W;
