@@ -87,6 +87,32 @@ describe('heatpath analyze', () => {
   });
 });
 
+describe('heatpath analyze with a calibration or power the input does not need', () => {
+  // JESD51-1: a TSP calibration converts a voltage to a temperature, and P divides a temperature rise into Zth;
+  // temperature_C input needs no calibration, zth_K_per_W input neither.
+  it('warns that the calibration of a temperature_C input was not used and records no calibration hash', () => {
+    const cal = join(work, 'unused-cal.json');
+    expect(heatpath('calibrate', join(demo, 'fh-tt2_q12_calibration-points.csv'), '--model', 'linear', '--out', cal).code).toBe(0);
+    const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--calibration', cal, '--format', 'json');
+    expect(run.code).toBe(0);
+    const result = JSON.parse(run.stdout);
+    expect(result.quality.warnings).toContain('calibration not used: the input is temperature_C, which needs none');
+    expect(result.provenance.calibration_sha256).toBeNull();
+  });
+
+  it('warns that the power given for a zth_K_per_W input was ignored, and neither records nor prints it', () => {
+    const zth = file('zth-with-power.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`);
+    const json = JSON.parse(heatpath('analyze', zth, '--power-w', '50', '--format', 'json').stdout);
+    expect(json.power_W).toBeNull();
+    expect(json.quality.noise_K).toBeNull();
+    expect(json.quality.warnings).toContain('power not used: the input is zth_K_per_W, which needs none; the heating power of 50 W was ignored');
+    const text = heatpath('analyze', zth, '--power-w', '50');
+    expect(text.code).toBe(0);
+    expect(text.stdout).not.toMatch(/at P =/);
+    expect(text.stdout).toMatch(/power not used/);
+  });
+});
+
 describe('heatpath analyze --out with inputs that share a file name', () => {
   it('gives each its own folder, named after its parent folder or numbered, and prints where each went', async () => {
     // Labs name every device's file cooling.csv, in a folder per device.

@@ -2,6 +2,9 @@ import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
+import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
+import { jobIdFor } from '../services/jobs/job-id.js';
+import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { observeAnalysisWorker } from '../workers/worker-metrics.js';
@@ -81,6 +84,23 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     await queue.enqueue(again, { priority: JOB_PRIORITY.interactive });
     expect((await queue.getJobState(upload.job_id))?.state).toBe('completed');
     expect(await fixture.resultFiles()).toEqual([`${upload.job_id}.json`]);
+  });
+
+  it('records a calibration given for a temperature_C upload as not used, as the CLI does', async () => {
+    // A TSP calibration converts voltage_V only (JESD51-1); the synthetic upload is temperature_C.
+    const calibration = fitCalibration(Float64Array.from([25, 50, 75, 100, 125]), Float64Array.from([0.65, 0.6, 0.55, 0.5, 0.45]), 'linear');
+    const { calibration_id } = await fixture.store.putCalibration(calibration, 'test');
+    const plain = await fixture.storeUpload(4);
+    const upload = await fixture.storeUpload(4, undefined, {
+      upload_id: 'u-with-calibration', calibration_id,
+      job_id: jobIdFor({ input_sha256: plain.input_sha256, parameters: plain.parameters, power: plain.power, calibration_sha256: calibration_id }),
+    });
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    startWorker();
+    await eventually(() => fixture.store.hasResult(upload.job_id));
+    const [result] = (await fixture.store.getResult(upload.job_id))!.results as AnalysisResult[];
+    expect(result.quality.warnings).toContain('calibration not used: the input is temperature_C, which needs none');
+    expect(result.provenance.calibration_sha256).toBeNull();
   });
 
   it('finishes every job exactly once across a worker restart with jobs in flight', async () => {

@@ -31,9 +31,9 @@ export interface TransientFileInput {
   fileName: string;
   /** Omitted: detected from the content (JSON starts with '{'). */
   format?: 'csv' | 'json';
-  /** Heating power; omitted: from the file's power_W or current_A and voltage_V metadata. Not needed for zth_K_per_W input. */
+  /** Heating power; omitted: from the file's power_W or current_A and voltage_V metadata. Not used for zth_K_per_W input (a given or file one gets a warning, so that the CLI and the service, which resolves the file's power on upload, agree). */
   power?: Power;
-  /** Needed for voltage_V input. */
+  /** Needed for voltage_V input; not used for any other (a given one gets a warning). */
   calibration?: Calibration;
   /** Omitted fields: the file's `kind` metadata, then the schema defaults. */
   parameters?: Partial<AnalysisParameters>;
@@ -47,24 +47,32 @@ export interface TransientFileInput {
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
   const file = input.parsed ?? parseTransient(input.bytes, input.fileName, input.format);
   const { parameters, power } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
-  const power_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
   if (file.quantity === 'voltage_V' && !input.calibration) {
     throw new HeatpathError('CALIBRATION_REQUIRED', `${file.channels.length} voltage_V channel(s) and no calibration`, { file: input.fileName });
   }
+  // Zth input needs neither power nor calibration, temperature input no calibration: what is given and
+  // not used is neither recorded as used nor silently dropped.
+  const calibration = file.quantity === 'voltage_V' ? input.calibration : undefined;
+  const resolvedPower_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
+  const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
+  const unused = [
+    ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
+    ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
+  ];
   const provenance = {
     version: HEATPATH_VERSION,
     algorithm: ALGORITHM_VERSION,
     method: parameters.method,
     parameters,
     input_sha256: sha256(input.bytes),
-    calibration_sha256: input.calibration ? sha256(JSON.stringify(input.calibration)) : null,
+    calibration_sha256: calibration ? sha256(JSON.stringify(calibration)) : null,
     created_at: createdAt,
   };
   const calibrationWarning = sharedCalibrationWarning(file);
   return file.channels.map((channel) => {
     const context = { file: input.fileName, column: file.channels.length > 1 ? `${file.quantity}@${channel.name}` : file.quantity };
     try {
-      const result = analyzeChannel(file, channel.values, channel.name, parameters, power_W, input.calibration, provenance, input.fileName);
+      const result = analyzeChannel(file, channel.values, channel.name, parameters, power_W, calibration, provenance, input.fileName, unused);
       if (calibrationWarning !== undefined) result.quality.warnings.unshift(calibrationWarning);
       return result;
     } catch (error) {
@@ -99,9 +107,10 @@ function analyzeChannel(
   calibration: Calibration | undefined,
   provenance: AnalysisResult['provenance'],
   fileName: string,
+  inputWarnings: string[],
 ): AnalysisResult {
   const time_s = file.time_s;
-  const warnings: string[] = [];
+  const warnings: string[] = [...inputWarnings];
   const window = { early_time_start_s: parameters.early_time_start_s, early_time_end_s: parameters.early_time_end_s };
 
   let zth: ZthCurve;
@@ -109,7 +118,7 @@ function analyzeChannel(
   let noise_K_per_W: number;
   if (file.quantity === 'zth_K_per_W') {
     noise_K_per_W = estimateNoiseRms(values);
-    noise_K = power_W !== null ? noise_K_per_W * power_W : null;
+    noise_K = null;
     zth = zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window });
   } else {
     const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, values) : values;

@@ -14,7 +14,7 @@ export const AnalysisResultSchema = Type.Object({
   heatpath_result: Type.Literal(1, { description: 'Layout version of this object.' }),
   source: Type.Object({ file: Type.String(), channel: Type.String(), quantity: Type.String(), points: Type.Integer() }),
   rth_total_K_per_W: Type.Number(),
-  power_W: Type.Union([Type.Number(), Type.Null()]),
+  power_W: Type.Union([Type.Number(), Type.Null()], { description: 'Heating power the Zth was computed with; null for zth_K_per_W input, which needs none.' }),
   zth: Type.Object({ time_s: Numbers, zth_K_per_W: Numbers }),
   spectrum: Type.Object({ tau_s: Numbers, r_K_per_W: Numbers }),
   foster: Type.Array(FosterStageSchema),
@@ -42,7 +42,7 @@ export const AnalysisResultSchema = Type.Object({
     residual_rms: Type.Number({ description: 'RMS residual of the sqrt(t) fit, in the units of t0_value.' }),
   }),
   quality: Type.Object({
-    noise_K: Type.Union([Type.Number(), Type.Null()], { description: 'RMS noise of the junction temperature; null for zth_K_per_W input without power.' }),
+    noise_K: Type.Union([Type.Number(), Type.Null()], { description: 'RMS noise of the junction temperature; null for zth_K_per_W input.' }),
     noise_K_per_W: Type.Number({ description: 'RMS noise of Zth.' }),
     deconvolution_iterations: Type.Integer(),
     deconvolution_residual_rms: Type.Number(),
