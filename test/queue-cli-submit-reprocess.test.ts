@@ -72,6 +72,15 @@ describe('heatpath submit (real API, real Redis)', () => {
     expect(errors.every((line) => line.split('\n').filter(Boolean).length === 1 && !/\n\s+at /.test(line))).toBe(true);
   });
 
+  it('names the line and column the server found a fault at, in the one-line style of local errors', async () => {
+    // The third line's temperature is not a number: the server answers problem+json (RFC 9457) with line and column.
+    const path = join(workDir, 'bad-cell.csv');
+    await writeFile(path, 'time_s,temperature_C\n1e-6,80.1\n1e-5,abc\n');
+    expect(await runSubmitCommand([path, ...serverOptions(), '--sample', 'S-65'], print)).toBe(2);
+    expect(errors).toHaveLength(1);
+    expect(errors[0]).toMatch(new RegExp(`^heatpath submit: ${path.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}, line 3, column temperature_C: The server refused the transient: INPUT_NOT_NUMERIC: .*\\[SUBMIT_REJECTED\\]\n$`));
+  });
+
   it('exits 1 when the server cannot be reached, and 2 for a wrong key', async () => {
     const file = await writeTransient('c.csv', 64);
     const nowhere = `http://127.0.0.1:${await freePort()}`;

@@ -3,6 +3,7 @@ import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-err
 import { parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { uploadTransient } from './transient-upload-client.js';
+import { userErrorLine } from './user-error-line.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 
 export const submitUsage = `heatpath submit FILE... --server URL --key TOKEN --sample ID [options]
@@ -32,11 +33,15 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
   let unreachable = false;
   for (const file of positionals) {
     try {
-      const uploaded = await uploadTransient(target, await readInputFile(file), basename(file), metadata);
+      const bytes = await readInputFile(file);
+      // The server knows the file by its base name; the user's error line names it as they did, like local errors.
+      const uploaded = await uploadTransient(target, bytes, basename(file), metadata).catch((error: unknown) => {
+        throw isHeatpathError(error) ? new HeatpathError(error.code, error.detail, { ...error.location, file }) : error;
+      });
       print(`${file}\t${uploaded.job_id}\t${uploaded.state}`);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
-      process.stderr.write(`heatpath submit: ${error.message} [${error.code}]\n`);
+      process.stderr.write(userErrorLine('submit', error) + '\n');
       if (error.status < 500) mustFix = true;
       else unreachable = true;
     }

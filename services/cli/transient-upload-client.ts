@@ -25,7 +25,8 @@ const MAX_BACKOFF_MS = 10_000;
  * parameters. The Idempotency-Key is a hash of bytes and metadata, so a retry
  * (or a second run of a bench script) is answered with the first upload.
  * Throws SUBMIT_REJECTED when the server refuses the file (the user must fix
- * it) and SERVER_UNREACHABLE when every attempt failed.
+ * it; at the line and column the server names) and SERVER_UNREACHABLE when
+ * every attempt failed. Errors name the file `fileName`.
  */
 export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, fileName: string, metadata: URLSearchParams): Promise<UploadedTransient> {
   const query = new URLSearchParams(metadata);
@@ -46,7 +47,7 @@ export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, f
       const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
       if (response.ok) return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state) };
       lastProblem = describeProblem(response.status, answer);
-      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName });
+      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName, ...problemPlace(answer) });
       retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
     } catch (error) {
       if (error instanceof HeatpathError) throw error;
@@ -67,6 +68,14 @@ function looksLikeJson(bytes: Uint8Array): boolean {
     return byte === 0x7b; // '{'
   }
   return false;
+}
+
+/** The line and column in the file that a problem+json answer names (services/api/schemas/problem-schema.ts), if any. */
+function problemPlace(answer: Record<string, unknown>): { line?: number; column?: number | string } {
+  return {
+    ...(Number.isInteger(answer.line) && { line: answer.line as number }),
+    ...((typeof answer.column === 'string' || Number.isInteger(answer.column)) && { column: answer.column as number | string }),
+  };
 }
 
 function describeProblem(status: number, answer: Record<string, unknown>): string {
