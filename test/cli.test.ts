@@ -10,7 +10,7 @@ import { makeDirectory } from '../services/store/make-directory.js';
 import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 
-const { heatpath, heatpathPrintingTo, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
+const { heatpath, heatpathReading, heatpathPrintingTo, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
 
 const goodRows = Array.from({ length: 400 }, (_, i) => {
   const t = 1e-6 * 10 ** (i / 50);
@@ -127,6 +127,29 @@ describe('heatpath analyze --out with inputs that share a file name', () => {
     const folders = [join('outc', 'devX', 'cooling'), join('outc', 'devX', 'cooling-2'), join('outc', 'devY', 'cooling')];
     expect([...run.stdout.matchAll(/written to +(.*)\/$/gm)].map(([, dir]) => dir)).toEqual(folders);
     folders.forEach((folder, i) => expect(JSON.parse(readFileSync(join(work, folder, 'result.json'), 'utf8')).source.file).toBe(inputs[i]));
+  });
+});
+
+describe('heatpath analyze - (standard input, common command-line practice)', () => {
+  it('analyses a transient piped in as it does the file, naming it stdin', () => {
+    const path = join(demo, 'fh-tt1_m07_cooling.csv');
+    const piped = heatpathReading(readFileSync(path, 'utf8'), 'analyze', '-', '--format', 'json');
+    expect(piped.stderr).toBe('');
+    expect(piped.code).toBe(0);
+    const fromStdin = JSON.parse(piped.stdout);
+    const fromFile = JSON.parse(heatpath('analyze', path, '--format', 'json').stdout);
+    expect(fromStdin.source.file).toBe('stdin');
+    expect(fromStdin.rth_total_K_per_W).toBe(fromFile.rth_total_K_per_W);
+    expect(fromStdin.provenance.input_sha256).toBe(fromFile.provenance.input_sha256);
+  });
+
+  it('names stdin in the error line of a bad transient', () => {
+    expectUserError(heatpathReading('time_s,temperature_C\n1e-6,abc\n', 'analyze', '-'), /^heatpath analyze: stdin, line 2, column temperature_C: .*\[INPUT_NOT_NUMERIC\]/);
+  });
+
+  it('refuses - given twice, and - for a command that does not read standard input', () => {
+    expectUserError(heatpathReading('', 'analyze', '-', '-'), /standard input.*can be given once.*\[CLI_USAGE\]/);
+    expectUserError(heatpathReading('', 'calibrate', '-', '--model', 'linear'), /standard input.*heatpath analyze only.*\[CLI_USAGE\]/);
   });
 });
 

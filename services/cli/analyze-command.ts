@@ -13,6 +13,7 @@ import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, po
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { formatResultSummary } from './format-result-summary.js';
 import { readInputFile } from './read-input-file.js';
+import { readStandardInput, STANDARD_INPUT_ARGUMENT, STANDARD_INPUT_NAME } from './standard-input.js';
 import { claimFolder, resultFolderNames } from './result-folder-names.js';
 import { makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
@@ -20,7 +21,8 @@ export const analyzeUsage = `heatpath analyze FILE... [options]
 
 Analyse cooling or heating transients (CSV or JSON) into Zth, the
 time-constant spectrum, Foster and Cauer networks, structure functions and a
-compact model with SPICE netlists.
+compact model with SPICE netlists. A FILE of - reads one transient from
+standard input; results name it stdin.
 
 ${powerAndCalibrationUsage}
 ${analysisParametersUsage}
@@ -50,6 +52,9 @@ export async function runAnalyzeCommand(argv: string[], print: (text: string) =>
     return 0;
   }
   if (positionals.length === 0) throw new HeatpathError('CLI_USAGE', 'heatpath analyze needs at least one FILE');
+  if (positionals.filter((file) => file === STANDARD_INPUT_ARGUMENT).length > 1) {
+    throw new HeatpathError('CLI_USAGE', `'${STANDARD_INPUT_ARGUMENT}' (standard input) can be given once; save the other transients as files`);
+  }
 
   const format = choiceOption('format', values.format as string | undefined, ['text', 'json'] as const) ?? 'text';
   const { power, calibration, parameters } = await analysisInputsFromOptions(values);
@@ -88,7 +93,7 @@ export interface ReadTransientFile {
 export async function analyzeFiles(files: (string | ReadTransientFile)[], options: AnalyzeFilesOptions): Promise<AnalyzeRun> {
   const results: AnalyzeRun['results'] = [];
   const failures: HeatpathError[] = [];
-  const names = files.map((entry) => (typeof entry === 'string' ? entry : entry.file));
+  const names = files.map((entry) => (typeof entry !== 'string' ? entry.file : entry === STANDARD_INPUT_ARGUMENT ? STANDARD_INPUT_NAME : entry));
   const folderNames = resultFolderNames(names);
   const written = new Set<string>();
   for (const [index, entry] of files.entries()) {
@@ -96,7 +101,7 @@ export async function analyzeFiles(files: (string | ReadTransientFile)[], option
     let channelResults: AnalysisResult[];
     let meta: Record<string, string>;
     try {
-      const bytes = typeof entry === 'string' ? await readInputFile(file) : entry.bytes;
+      const bytes = typeof entry !== 'string' ? entry.bytes : entry === STANDARD_INPUT_ARGUMENT ? await readStandardInput() : await readInputFile(file);
       const parsed = typeof entry === 'string' ? parseTransient(bytes, file) : entry.parsed;
       meta = parsed.meta;
       channelResults = analyzeTransientFile(

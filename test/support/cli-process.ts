@@ -26,6 +26,11 @@ export function cliWorkspace(prefix: string) {
       const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work, timeout: 60_000 });
       return { code: run.status, stdout: run.stdout, stderr: run.stderr };
     },
+    /** Runs `heatpath` with `input` on its standard input (`< file`, `cmd | heatpath`). */
+    heatpathReading(input: string, ...args: string[]) {
+      const run = spawnSync(process.execPath, [cli, ...args], { encoding: 'utf8', cwd: work, timeout: 60_000, input });
+      return { code: run.status, stdout: run.stdout, stderr: run.stderr };
+    },
     /** Runs `heatpath` with its standard output sent to `path` (`> path`), for outputs that fail (/dev/full). */
     heatpathPrintingTo(path: string, ...args: string[]) {
       const stdout = openSync(path, 'w');
