@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
-import { calibrationIdOf } from '../services/jobs/calibration-id.js';
+import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
 import type { Calibration } from '../shared/schemas/calibration.js';
 
 const calibration: Calibration = {

@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { makeDirectory } from '../services/store/make-directory.js';
 import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
+import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
 
 const { heatpath, heatpathReading, heatpathPrintingTo, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
 
@@ -65,7 +66,10 @@ describe('heatpath analyze', () => {
     expect(calibration.sensitivity_mV_per_K).toBeCloseTo(-2.1, 1);
     const run = heatpath('analyze', join(demo, 'fh-tt2_q12_cooling.csv'), '--calibration', cal, '--format', 'json');
     expect(run.code).toBe(0);
-    expect(JSON.parse(run.stdout).source.quantity).toBe('voltage_V');
+    const result = JSON.parse(run.stdout);
+    expect(result.source.quantity).toBe('voltage_V');
+    // Provenance names the calibration by the id the service gives it: SHA-256 (FIPS 180-4, node:crypto) of its canonical JSON.
+    expect(result.provenance.calibration_sha256).toBe(calibrationIdOf(calibration));
   });
 
   it('warns of a calibration sweep in millivolts in its output and in the calibration file, which analyze still reads', () => {

@@ -3,7 +3,7 @@ import { readdir } from 'node:fs/promises';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
-import { calibrationIdOf } from '../jobs/calibration-id.js';
+import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
 import { analysisInputsFromOptions, type AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
 import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
 import { defaultAnalysisParameters, type AnalysisParameters, type Power } from '../../shared/schemas/analysis-parameters.js';
-import { canonicalJson } from './canonical-json.js';
+import { canonicalJson } from '../../shared/schemas/canonical-json.js';
 
 /** Everything that determines an analysis result. */
 export interface JobIdentity {

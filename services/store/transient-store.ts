@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { PARSER_VERSION } from '../../shared/analysis/algorithm-version.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
-import { calibrationIdOf } from '../jobs/calibration-id.js';
+import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
 import { createFileExclusive, removeFileDurably, writeDerivedFile, writeFileAtomic } from './atomic-file.js';
 import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient-codec.js';
 import { exists, listNames, readJson, readOrNull, unlinkIfPresent } from './store-files.js';

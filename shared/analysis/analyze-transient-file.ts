@@ -20,6 +20,7 @@ import type { Calibration } from '../schemas/calibration.js';
 import { ALGORITHM_VERSION, HEATPATH_VERSION } from './algorithm-version.js';
 import { RESULT_CAUTION } from './result-caution.js';
 import { resolveAnalysisInputs } from './resolve-analysis-inputs.js';
+import { calibrationIdOf } from '../schemas/calibration-id.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -65,7 +66,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     method: parameters.method,
     parameters,
     input_sha256: sha256(input.bytes),
-    calibration_sha256: calibration ? sha256(JSON.stringify(calibration)) : null,
+    calibration_sha256: calibration ? calibrationIdOf(calibration) : null,
     created_at: createdAt,
   };
   const calibrationWarning = sharedCalibrationWarning(file);

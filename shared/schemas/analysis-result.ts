@@ -54,7 +54,7 @@ export const AnalysisResultSchema = Type.Object({
     method: Type.String(),
     parameters: AnalysisParametersSchema,
     input_sha256: Type.String(),
-    calibration_sha256: Type.Union([Type.String(), Type.Null()]),
+    calibration_sha256: Type.Union([Type.String(), Type.Null()], { description: "The calibration's id: SHA-256 of its canonical JSON, the service's calibration_id; null when none was used." }),
     created_at: Type.String(),
   }),
   caution: Type.String(),

@@ -1,4 +1,4 @@
-import { canonicalJson } from '../../jobs/canonical-json.js';
+import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
 import { compareForDegradation, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';

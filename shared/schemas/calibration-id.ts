@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import type { Calibration } from '../../shared/schemas/calibration.js';
+import type { Calibration } from './calibration.js';
 import { canonicalJson } from './canonical-json.js';
 
 /**
