@@ -21,6 +21,11 @@ describe('resolveAnalysisInputs from the file header', () => {
     expect(resolveAnalysisInputs(fileWith(line), {}, 'bench.csv').power).toEqual({ power_W });
   });
 
+  it('reads header lines a spreadsheet padded with separators ("# kind: heating;;")', () => {
+    const padded = parseTransient(['# kind: heating;', '# power_W: 51,3 W;;', 'time_s;temperature_C;', ...rows.map((row) => `${row};`)].join('\n'), 'sheet.csv');
+    expect(resolveAnalysisInputs(padded, {}, 'sheet.csv')).toMatchObject({ power: { power_W: 51.3 }, parameters: { kind: 'heating' } });
+  });
+
   it('reads current and voltage with their units', () => {
     expect(resolveAnalysisInputs(fileWith('# current_A: 10 A', '# voltage_V: 1,9 V'), {}, 'bench.csv').power).toEqual({ current_A: 10, voltage_V: 1.9 });
   });

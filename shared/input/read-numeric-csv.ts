@@ -51,6 +51,8 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   if (headerText === undefined) throw new HeatpathError('INPUT_EMPTY', 'no header line and no data (only blank or comment lines)', { file: fileName });
 
   const separator = detectSeparator(headerText);
+  // A spreadsheet pads every line to its columns, "# kind: cooling;" among them: the padding is not part of the value.
+  const metaEntries = meta.map(([key, value]): [string, string] => [key, trimTrailing(value, separator)]);
   const names = headerText.split(separator).map(cleanField);
   // Spreadsheets often end every line with a separator: an empty last header name is that, not a column.
   const trailingSeparator = names.length > 1 && names[names.length - 1] === '';
@@ -86,7 +88,14 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
     for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
     rowLines[rows++] = lines.number;
   }
-  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: Object.fromEntries(meta) };
+  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: Object.fromEntries(metaEntries) };
+}
+
+/** `value` without the separators and spaces at its end. */
+function trimTrailing(value: string, separator: string): string {
+  let end = value.length;
+  while (end > 0 && (value[end - 1] === separator || value[end - 1] === ' ')) end--;
+  return value.slice(0, end);
 }
 
 /**
