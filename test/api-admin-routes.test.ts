@@ -42,6 +42,8 @@ describe('webhooks', () => {
     expect(first.statusCode).toBe(201);
     const again = (await post('/v1/webhooks', { url: 'http://127.0.0.1:9/lims/twice', events: ['job.failed'] })).json();
     expect(again).toMatchObject({ status: 409, code: 'WEBHOOK_ALREADY_REGISTERED', detail: expect.stringContaining(first.json().webhook_id) });
+    // The same receiver spelt otherwise (scheme and host case, the default port; WHATWG URL serialisation).
+    expect((await post('/v1/webhooks', { url: 'HTTP://127.0.0.1:9/lims/twice' })).json()).toMatchObject({ status: 409 });
     await context.app.inject({ method: 'DELETE', url: `/v1/webhooks/${first.json().webhook_id}`, headers: bearer('admin') });
   });
 });

@@ -27,7 +27,8 @@ export class WebhookRegistry {
   async register(url: string, events: readonly WebhookEvent[], createdBy: string): Promise<WebhookRecord> {
     if (originOf(url) === null) throw new HeatpathError('REQUEST_INVALID', `${JSON.stringify(url)} is not an http:// or https:// URL`);
     if (!this.isAllowed(url)) throw new HeatpathError('WEBHOOK_URL_NOT_ALLOWED', `${url} is not allowed`);
-    const registered = (await this.store.listWebhooks()).find((webhook) => webhook.url.trim() === url.trim());
+    // Compared as URLs, not as text: HTTP://Host:80/x and http://host/x are one receiver (WHATWG URL serialisation).
+    const registered = (await this.store.listWebhooks()).find((webhook) => sameUrl(webhook.url, url));
     // Two registrations of one URL would deliver every event twice.
     if (registered) throw new HeatpathError('WEBHOOK_ALREADY_REGISTERED', `${url} is webhook ${registered.webhook_id}`);
     const record: WebhookRecord = {
@@ -57,5 +58,13 @@ function originOf(url: string): string | null {
     return parsed.protocol === 'http:' || parsed.protocol === 'https:' ? parsed.origin : null;
   } catch {
     return null;
+  }
+}
+
+function sameUrl(a: string, b: string): boolean {
+  try {
+    return new URL(a.trim()).href === new URL(b.trim()).href;
+  } catch {
+    return false;
   }
 }
