@@ -266,6 +266,10 @@ describe('with Redis down', () => {
     const answer = response.json();
     expect(answer).toMatchObject({ state: 'stored', status: 'running', total: 1, pending: 1 });
     expect(await context.store.getBatch(answer.batch_id)).toMatchObject({ batch_id: answer.batch_id, status: 'running' });
+    // Cancelling it works too: the store says so at once, and a job Redis still holds ends unanalysed when it comes up.
+    const cancelled = await context.app.inject({ method: 'POST', url: answer.links.cancel, headers: bearer('admin') });
+    expect(cancelled.statusCode, cancelled.body).toBe(200);
+    expect(cancelled.json()).toMatchObject({ status: 'cancelled', cancelled: 1 });
   });
 
   it('503 where only Redis knows the answer, and /health/ready says which check failed', async () => {

@@ -75,6 +75,21 @@ describe('BatchReprocessor (real Redis)', () => {
     expect(await batches.progress('batch-unknown')).toBeNull();
   });
 
+  it('ends the jobs of a batch cancelled in the store unanalysed, though Redis still held them (cancelled while Redis was away)', async () => {
+    await Promise.all([64, 65].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-11' })));
+    const batch = await batches.create({ selection: { bench: 'bench-11' }, parameters: { points_per_decade: 25 }, created_by: 'admin' });
+    const record = (await fixture.store.getBatch(batch.batch_id))!;
+    // What cancel leaves when Redis does not answer: the store says cancelled, the queue still holds the jobs.
+    await fixture.store.putBatch({ ...record, status: 'cancelled', cancelled_at: new Date().toISOString() });
+    worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+    await eventually(async () => {
+      const states = await Promise.all(record.entries.map((entry) => queue.getJobState(entry.job_id)));
+      return states.every((state) => state === null || state.state === 'completed');
+    }, 100);
+    for (const entry of record.entries) expect(await fixture.store.hasResult(entry.job_id)).toBe(false);
+    expect(await batches.progress(batch.batch_id)).toMatchObject({ status: 'cancelled', done: 0, cancelled: 2 });
+  });
+
   it('offers a running batch again only when Redis lost its jobs', async () => {
     await Promise.all([59, 60, 61].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-9' })));
     const batch = await batches.create({ selection: { bench: 'bench-9' }, parameters: { compact_stages: 3 }, created_by: 'admin' });

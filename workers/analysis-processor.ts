@@ -42,7 +42,7 @@ const notifier = new WebhookNotifier(store, {
 export interface AnalysisJobOutcome {
   job_id: string;
   channels: number;
-  /** False when another attempt had already stored the result. */
+  /** False when another attempt had already stored the result, or the job's batch was cancelled. */
   wrote_result: boolean;
 }
 
@@ -52,6 +52,10 @@ export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobDa
   if (existing) {
     await notifyCompleted(jobId, existing.upload_id, existing.sample_id, existing.batch_id);
     return { job_id: jobId, channels: existing.results.length, wrote_result: false };
+  }
+  // A batch cancelled while Redis was away (or between queueing and now) keeps its jobs in the queue: they end here, unanalysed.
+  if (job.data.batch_id !== null && (await store.getBatch(job.data.batch_id))?.status === 'cancelled') {
+    return { job_id: jobId, channels: 0, wrote_result: false };
   }
   const upload = await store.getUpload(job.data.upload_id);
   try {

@@ -82,7 +82,12 @@ export class BatchReprocessor {
     return batch ? this.countProgress(batch) : null;
   }
 
-  /** Stops a batch: its jobs that have not started are removed; running ones finish. */
+  /**
+   * Stops a batch: its jobs that have not started are removed; running ones
+   * finish. The store says cancelled first, and the processor ends a job of a
+   * cancelled batch unanalysed, so a job Redis still holds (it did not answer
+   * here) does not run either.
+   */
   async cancel(batchId: string): Promise<BatchProgress | null> {
     const batch = await this.store.getBatch(batchId);
     if (!batch) return null;
@@ -91,7 +96,12 @@ export class BatchReprocessor {
       batch.cancelled_at = new Date().toISOString();
       await this.store.putBatch(batch);
     }
-    for (const entry of batch.entries) await this.queue.removeWaitingBatchJob(entry.job_id, batch.batch_id);
+    try {
+      for (const entry of batch.entries) await this.queue.removeWaitingBatchJob(entry.job_id, batch.batch_id);
+    } catch (error) {
+      if (isHeatpathError(error)) throw error;
+      // Redis away: its jobs stay queued and end unanalysed when they come up.
+    }
     return this.countProgress(batch);
   }
 

@@ -3,7 +3,6 @@ import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { BatchProgress, BatchReprocessor } from '../../../workers/reprocess-batch.js';
-import { unavailableQueue } from '../jobs/unavailable-queue.js';
 import { analysisParameterOverrides } from '../schemas/analysis-parameter-overrides.js';
 
 const BatchParams = Type.Object({ batch_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
@@ -124,7 +123,7 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
       },
     },
     async (request) => {
-      const progress = await batches.cancel(request.params.batch_id).catch(unavailableQueue('the batch is marked cancelled once Redis answers again'));
+      const progress = await batches.cancel(request.params.batch_id);
       if (!progress) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${request.params.batch_id} is not stored`);
       return withLinks(progress);
     },
