@@ -87,6 +87,7 @@ describe('batches', () => {
     const [entry] = (await context.store.getBatch(batch.batch_id))!.entries;
     expect((await context.app.inject({ url: `/v1/jobs/${entry.job_id}`, headers: bearer('reader') })).json()).toMatchObject({ job_id: entry.job_id, state: 'cancelled' });
     expect((await post(`/v1/jobs/${entry.job_id}/retry`, {})).json()).toMatchObject({ status: 409, code: 'JOB_NOT_RETRYABLE' });
+    expect((await context.app.inject({ url: `/v1/jobs/${entry.job_id}/result`, headers: bearer('reader') })).json()).toMatchObject({ status: 409, code: 'JOB_CANCELLED' });
     const listing = (await context.app.inject({ url: '/v1/samples/B-1/results', headers: bearer('reader') })).json();
     expect(listing.transients[0].reprocessed).toEqual([expect.objectContaining({ batch_id: batch.batch_id, job_id: entry.job_id, outcome: 'cancelled' })]);
   });

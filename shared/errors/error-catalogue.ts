@@ -65,6 +65,7 @@ export const errorCatalogue = {
   ROUTE_NOT_FOUND: { status: 404, title: 'No such route', hint: 'See /docs for the routes; they live under /v1.' },
   RESOURCE_NOT_FOUND: { status: 404, title: 'No such resource', hint: 'Check the id; ids come from the answers of earlier requests (upload, calibration, batch, webhook).' },
   RESULT_NOT_READY: { status: 409, title: 'The job has no result yet', hint: 'Poll the job (its links.self) until its state is completed, or register a webhook.' },
+  JOB_CANCELLED: { status: 409, title: 'The job was cancelled with its batch', hint: 'It will not run: start a new batch (POST /v1/batches) to reprocess its upload.' },
   JOB_FAILED: { status: 422, title: 'The analysis job failed', hint: 'See the job\'s error (GET /v1/jobs/{job_id}); fix the input or parameters and upload again.' },
   JOB_NOT_RETRYABLE: { status: 409, title: 'The job cannot be retried', hint: 'Only a job that failed for a reason outside its input (the store, Redis, a crash) can be retried; a job whose input or parameters were at fault fails the same way again: fix them and upload again, or start a batch with other parameters.' },
   IDEMPOTENCY_KEY_REUSED: { status: 409, title: 'The Idempotency-Key was used for a different request', hint: 'Use a fresh Idempotency-Key for every distinct upload; repeat a key only to retry the same upload.' },

@@ -35,6 +35,7 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
     if (status.state === 'failed') {
       throw new HeatpathError('JOB_FAILED', `job ${jobId} failed${status.error?.code ? ` with ${status.error.code}` : ''}: ${status.error?.message ?? 'no reason recorded'}`);
     }
+    if (status.state === 'cancelled') throw new HeatpathError('JOB_CANCELLED', `job ${jobId} belongs to a cancelled batch and did not run`);
     throw new HeatpathError('RESULT_NOT_READY', `job ${jobId} is ${status.state}`);
   }
 
