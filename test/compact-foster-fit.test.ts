@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { fitCompactFoster } from '../shared/numerics/compact-foster-fit.js';
+import { COMPACT_TOTAL_R_TOLERANCE, fitCompactModel } from '../shared/analysis/fit-compact-model.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { slabRth, slabZth, SILICON_DIE_SLAB } from './support/conduction-solutions.js';
@@ -48,5 +49,28 @@ describe('compact Foster fit', () => {
     expect(() => fitCompactFoster(time_s, zth, 0)).toThrow(HeatpathError);
     expect(() => fitCompactFoster(time_s, zth, 4)).toThrow(/9 at the least/);
     expect(() => fitCompactFoster(Float64Array.from([1, 1, 2]), Float64Array.from([0, 0, 0]), 1)).toThrow(/strictly increasing/);
+  });
+});
+
+describe('compact model warnings (fitCompactModel)', () => {
+  // A known 4-stage Foster network (Zth(inf) = sum R = 1 K/W) sampled 1 us .. 100 s.
+  const r_K_per_W = Float64Array.from([0.05, 0.15, 0.3, 0.5]);
+  const tau_s = Float64Array.from([1e-4, 3e-3, 0.1, 3]);
+  const time_s = logSpacedTimes(1e-6, 100, 37);
+
+  it('warns when one stage cannot hold the curve and its sum of R misses the end of Zth', () => {
+    const { foster, warnings } = fitCompactModel(time_s, zthFromFoster(r_K_per_W, tau_s, time_s), 1);
+    const total = foster.r_K_per_W.reduce((sum, r) => sum + r, 0);
+    expect(Math.abs(total - 1)).toBeGreaterThan(COMPACT_TOTAL_R_TOLERANCE);
+    expect(warnings).toEqual([expect.stringMatching(/stages add up to .* below the curve's end/)]);
+    expect(fitCompactModel(time_s, zthFromFoster(r_K_per_W, tau_s, time_s), 4).warnings).toEqual([]);
+  });
+
+  it('warns of a stage faster than the first sample: it stands for the rise before the curve starts', () => {
+    // A stage of 10 ns is fully risen at the first sample (1 us): the curve starts at 0.05 K/W, not at 0.
+    const withFast = zthFromFoster(Float64Array.of(0.05, 0.45, 0.5), Float64Array.of(1e-8, 1e-2, 1), time_s);
+    const { foster, warnings } = fitCompactModel(time_s, withFast, 3);
+    expect(foster.tau_s[0]).toBeLessThan(time_s[0]);
+    expect(warnings).toContainEqual(expect.stringMatching(/fastest stage .* faster than the first sample/));
   });
 });

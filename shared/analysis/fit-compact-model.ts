@@ -11,6 +11,9 @@ import type { FosterNetwork } from '../numerics/rc-network.js';
  */
 export const COMPACT_FIT_POINTS_PER_DECADE = 20;
 
+/** The compact stages' sum of R may differ this much from the curve's end before a warning: a few stages fit within it. */
+export const COMPACT_TOTAL_R_TOLERANCE = 0.02;
+
 /**
  * The compact Foster fit on the log-time averaged curve, with its error over
  * every measured sample, and a warning when it has fewer stages than asked
@@ -28,6 +31,19 @@ export function fitCompactModel(
   const warnings = left > 0
     ? [`compact model: ${kept} of the ${stages} stages asked for were kept; the fit keeps every resistance >= 0 and gave ${left} ${left === 1 ? 'stage' : 'stages'} none, which ${left === 1 ? 'was' : 'were'} left out`]
     : [];
+  const fastest = foster.tau_s[0];
+  if (fastest < time_s[0]) {
+    warnings.push(`compact model: its fastest stage (tau ${fastest.toPrecision(3)} s) is faster than the first sample at ${time_s[0].toPrecision(3)} s; it stands for the rise before the curve starts, not for a layer`);
+  }
+  const total_K_per_W = foster.r_K_per_W.reduce((sum, r) => sum + r, 0);
+  const final_K_per_W = zth_K_per_W[zth_K_per_W.length - 1];
+  const deviation = total_K_per_W / final_K_per_W - 1;
+  if (Math.abs(deviation) > COMPACT_TOTAL_R_TOLERANCE) {
+    warnings.push(
+      `compact model: its stages add up to ${total_K_per_W.toPrecision(4)} K/W, ${(100 * Math.abs(deviation)).toFixed(1)} % ${deviation < 0 ? 'below' : 'above'} the curve's end; ` +
+        'a circuit simulation with it reaches a steady state off by as much: ask for more stages',
+    );
+  }
   const model = zthFromFoster(foster.r_K_per_W, foster.tau_s, time_s);
   let sumOfSquares = 0;
   let max_abs_K_per_W = 0;
