@@ -52,7 +52,7 @@ export const errorCatalogue = {
   // ---- CLI usage ----
   CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and options.' },
   FILE_NOT_READABLE: { status: 400, title: 'A file cannot be read', hint: 'Check the path and its permissions.' },
-  FILE_NOT_WRITABLE: { status: 400, title: 'An output file or folder cannot be written', hint: 'Choose an output path (--out) inside a folder you may write to.' },
+  FILE_NOT_WRITABLE: { status: 400, title: 'An output file or folder cannot be written', hint: 'Choose an output path (--out) inside a folder you may write to, on a disk with room; for standard output, a destination that takes it.' },
 
   // ---- service: configuration ----
   CONFIG_INVALID: { status: 500, title: 'The service configuration is not valid', hint: 'Fix the environment variables listed above and start again; README.md lists them with their defaults.' },
@@ -69,7 +69,7 @@ export const errorCatalogue = {
   JOB_FAILED: { status: 422, title: 'The analysis job failed', hint: 'See the job\'s error (GET /v1/jobs/{job_id}); fix the input or parameters and upload again.' },
   JOB_NOT_RETRYABLE: { status: 409, title: 'The job cannot be retried', hint: 'Only a job that failed for a reason outside its input (the store, Redis, a crash) can be retried; a job whose input or parameters were at fault fails the same way again: fix them and upload again, or start a batch with other parameters.' },
   IDEMPOTENCY_KEY_REUSED: { status: 409, title: 'The Idempotency-Key was used for a different request', hint: 'Use a fresh Idempotency-Key for every distinct upload; repeat a key only to retry the same upload.' },
-  UPLOAD_TOO_LARGE: { status: 413, title: 'The upload is too large', hint: 'Split the measurement or ask the admin to raise HEATPATH_MAX_UPLOAD_BYTES.' },
+  UPLOAD_TOO_LARGE: { status: 413, title: 'The upload is too large', hint: 'Send fewer samples (100 to 200 per decade of log-spaced time carry what the analysis needs), or ask the admin to raise HEATPATH_MAX_UPLOAD_BYTES.' },
   MEDIA_TYPE_UNSUPPORTED: { status: 415, title: 'The Content-Type is not supported', hint: 'Uploads (POST /v1/transients) take text/csv, application/json or multipart/form-data (a file part plus metadata fields); every other route takes application/json.' },
   RATE_LIMITED: { status: 429, title: 'Too many requests for this API key', hint: 'Wait for the Retry-After seconds, then retry; the admin sets HEATPATH_RATE_LIMIT_PER_MINUTE.' },
   SERVICE_UNAVAILABLE: { status: 503, title: 'A backing service is unavailable', hint: 'Retry later; the admin should check Redis and the data directory (see /health/ready).' },

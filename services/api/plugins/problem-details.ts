@@ -58,7 +58,7 @@ export function sendProblem(
     ...extensions,
   };
   // RFC 6750 section 3: a 401 names the scheme it wants; RFC 9110 section 10.2.3: a 503 says when to try again.
-  if (error.status === 401) reply.header('www-authenticate', 'Bearer realm="heatpath"');
+  if (error.status === 401) reply.header('www-authenticate', `Bearer realm="heatpath"${error.code === 'AUTH_KEY_INVALID' ? ', error="invalid_token"' : ''}`);
   if (error.status === 503 && !reply.hasHeader('retry-after')) reply.header('retry-after', String(RETRY_AFTER_UNAVAILABLE_S));
   return reply.status(error.status).type(problemMediaType).send(problem);
 }
