@@ -158,6 +158,16 @@ describe('fitCalibration warnings', () => {
     expect(catchHeatpathError(() => fitCalibration(temps, voltages_V, 'poly2')).code).toBe('CALIBRATION_NOT_MONOTONIC');
   });
 
+  it('refuses a V-shaped sweep whose best line is flat: no voltage tells the temperature', () => {
+    // 0.60 V at 25 degC down to 0.552 V at 85 degC and back to 0.60 V at 145 degC: the least-squares line T(V) is flat
+    // (slope near 0), so the linear model maps every voltage to about 85 degC.
+    const temps = Float64Array.from([25, 45, 65, 85, 105, 125, 145]);
+    const vShaped = temps.map((t) => 0.552 + 0.048 * Math.abs(t - 85) / 60);
+    const error = catchHeatpathError(() => fitCalibration(temps, vShaped, 'linear'));
+    expect(error.code).toBe('CALIBRATION_NOT_MONOTONIC');
+    expect(error.detail).toMatch(/the voltage does not follow the temperature/);
+  });
+
   it('warns that a sweep in millivolts labelled voltage_V looks like millivolts', () => {
     // The same -2 mV/K diode written in mV: 650 .. 360 "V" and -2000 "mV/K".
     const cal = fitCalibration(temperatures_C, diodeVoltage_V.map((v) => 1e3 * v), 'linear');

@@ -16,6 +16,8 @@ import { valueRange } from './value-range.js';
 
 /** Measured voltages may lie outside the calibrated range by this fraction of its span. */
 export const CALIBRATION_RANGE_MARGIN = 0.1;
+/** A fit must map the sweep's voltages onto at least this fraction of its temperature span; less means V does not determine T. */
+const MIN_FITTED_SPAN_FRACTION = 0.5;
 /** dT/dV is checked for a constant sign at this many evenly spaced voltages. */
 export const MONOTONIC_CHECK_POINTS = 257;
 
@@ -59,6 +61,16 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
     points: count,
   };
   assertMonotonic(calibration, voltage_range_V[0], voltage_range_V[1]);
+  // A sweep whose voltage rises and falls has a flat best line: every voltage then means about one temperature.
+  const [fittedLow_C, fittedHigh_C] = evaluate(model, coefficients, Float64Array.of(voltage_range_V[0], voltage_range_V[1]));
+  const measuredSpan_C = temperature_range_C[1] - temperature_range_C[0];
+  if (Math.abs(fittedHigh_C - fittedLow_C) < MIN_FITTED_SPAN_FRACTION * measuredSpan_C) {
+    throw new HeatpathError(
+      'CALIBRATION_NOT_MONOTONIC',
+      `the voltage does not follow the temperature: the ${model} fit maps the whole sweep (${voltage_range_V[0]}..${voltage_range_V[1]} V) to ` +
+        `${Math.min(fittedLow_C, fittedHigh_C).toPrecision(4)}..${Math.max(fittedLow_C, fittedHigh_C).toPrecision(4)} degC of the ${temperature_range_C[0]}..${temperature_range_C[1]} degC measured`,
+    );
+  }
   const warnings = calibrationWarnings(calibration, temperature_C, voltage_V);
   return warnings.length > 0 ? { ...calibration, warnings } : calibration;
 }
