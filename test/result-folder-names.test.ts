@@ -13,11 +13,17 @@ describe('resultFolderNames', () => {
     expect(resultFolderNames(['devX/cooling.csv', 'devY/cooling.csv', 'devY/heating.csv'])).toEqual([join('devX', 'cooling'), join('devY', 'cooling'), 'heating']);
   });
 
-  it('goes up as many folders as it takes, the same number for every file of the name', () => {
+  it('names each by its folders below those the files of the name have in common', () => {
     expect(resultFolderNames(['a/run1/cooling.csv', 'b/run1/cooling.csv', 'b/run2/cooling.csv'])).toEqual([
       join('a', 'run1', 'cooling'),
       join('b', 'run1', 'cooling'),
       join('b', 'run2', 'cooling'),
+    ]);
+    // Different depths: no folder above the common one (here "lab") is taken, and a file in it keeps its bare name.
+    expect(resultFolderNames(['lab/devX/cooling.csv', 'lab/a/devZ/cooling.csv', 'lab/cooling.csv'])).toEqual([
+      join('devX', 'cooling'),
+      join('a', 'devZ', 'cooling'),
+      'cooling',
     ]);
   });
 

@@ -3,12 +3,13 @@ import { basename, dirname, extname, join, resolve, sep } from 'node:path';
 /**
  * The folder under --out for each input file of one call: the file's name
  * without its extension; where inputs share that name (labs name every
- * device's file cooling.csv, in a folder per device), it is prefixed with as
- * many of their parent folders as tell them apart, nested as they are on disk
- * (devX/cooling, devY/cooling), which is how `reprocess --local` lays out an
- * archive's results. Names are compared without case, as on the file systems
- * of Windows and macOS. Files in one folder that differ only in their extension
- * (or one file given twice) keep the same name here: `claimFolder` numbers them.
+ * device's file cooling.csv, in a folder per device), it is prefixed with the
+ * folders of its path below those all files of that name have in common,
+ * nested as they are on disk (devX/cooling, devY/cooling), which is how
+ * `reprocess --local` lays out an archive's results. Names are compared
+ * without case, as on the file systems of Windows and macOS. Files in one
+ * folder that differ only in their extension (or one file given twice) keep
+ * the same name here: `claimFolder` numbers them.
  */
 export function resultFolderNames(files: string[]): string[] {
   const stems = files.map((file) => basename(file, extname(file)));
@@ -21,16 +22,18 @@ export function resultFolderNames(files: string[]): string[] {
     else groups.set(stem.toLowerCase(), [index]);
   });
   for (const group of groups.values()) {
-    const lastFolders = (index: number, depth: number) => parents[index].slice(Math.max(0, parents[index].length - depth));
-    const distinctAt = (depth: number) => distinctCount(group.map((index) => lastFolders(index, depth).join('/')));
-    const folders = distinctAt(Infinity);
-    if (folders < 2) continue;
-    const deepest = group.reduce((most, index) => Math.max(most, parents[index].length), 0);
-    let depth = 1;
-    while (depth < deepest && distinctAt(depth) < folders) depth++;
-    for (const index of group) names[index] = join(...lastFolders(index, depth), stems[index]);
+    if (group.length < 2) continue;
+    const shared = commonPrefixLength(group.map((index) => parents[index]));
+    for (const index of group) names[index] = join(...parents[index].slice(shared), stems[index]);
   }
   return names;
+}
+
+/** How many leading folders all the paths share (compared without case). */
+function commonPrefixLength(paths: string[][]): number {
+  let length = 0;
+  while (paths.every((path) => length < path.length && path[length].toLowerCase() === paths[0][length].toLowerCase())) length++;
+  return length;
 }
 
 /**
@@ -43,8 +46,4 @@ export function claimFolder(dir: string, written: Set<string>): string {
   for (let number = 2; written.has(claimed.toLowerCase()); number++) claimed = `${dir}-${number}`;
   written.add(claimed.toLowerCase());
   return claimed;
-}
-
-function distinctCount(values: string[]): number {
-  return new Set(values.map((value) => value.toLowerCase())).size;
 }
