@@ -30,7 +30,7 @@ export const JobStatusSchema = Type.Object({
     queued_at: nullableString,
     started_at: nullableString,
     finished_at: nullableString,
-    duration_ms: Type.Union([Type.Number(), Type.Null()], { description: 'Analysis time of the finished job.' }),
+    duration_ms: Type.Union([Type.Number(), Type.Null()], { description: 'Time the analysis of the finished job took, from its parse to its result; started_at to finished_at also holds reading the inputs, a first start of the analysis process and storing the result.' }),
   }),
   error: Type.Union([Type.Object({ code: nullableString, message: Type.String() }), Type.Null()]),
 });
