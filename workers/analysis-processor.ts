@@ -39,6 +39,20 @@ const notifier = new WebhookNotifier(store, {
   backoffDelayMs: settings.webhookBackoffDelayMs,
 });
 
+/** A running batch's status is read again after this long: a batch record holds every job of the batch, a megabyte for 10,000. */
+const BATCH_STATUS_TTL_MS = 2_000;
+const batchStatuses = new Map<string, { cancelled: boolean; read_ms: number }>();
+
+/** Whether the batch was cancelled; a cancel is final, so only a running batch is read again, and not for every job. */
+async function batchCancelled(batchId: string): Promise<boolean> {
+  const known = batchStatuses.get(batchId);
+  const now = performance.now();
+  if (known && (known.cancelled || now - known.read_ms < BATCH_STATUS_TTL_MS)) return known.cancelled;
+  const cancelled = (await store.getBatch(batchId))?.status === 'cancelled';
+  batchStatuses.set(batchId, { cancelled, read_ms: now });
+  return cancelled;
+}
+
 export interface AnalysisJobOutcome {
   job_id: string;
   channels: number;
@@ -54,7 +68,7 @@ export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobDa
     return { job_id: jobId, channels: existing.results.length, wrote_result: false };
   }
   // A batch cancelled while Redis was away (or between queueing and now) keeps its jobs in the queue: they end here, unanalysed.
-  if (job.data.batch_id !== null && (await store.getBatch(job.data.batch_id))?.status === 'cancelled') {
+  if (job.data.batch_id !== null && (await batchCancelled(job.data.batch_id))) {
     return { job_id: jobId, channels: 0, wrote_result: false };
   }
   const upload = await store.getUpload(job.data.upload_id);
