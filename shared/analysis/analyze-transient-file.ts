@@ -56,7 +56,8 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const calibration = file.quantity === 'voltage_V' ? input.calibration : undefined;
   const resolvedPower_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
-  const unused = [
+  const inputWarnings = [
+    ...sharedCalibrationWarning(file),
     ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
@@ -69,13 +70,10 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     calibration_sha256: calibration ? calibrationIdOf(calibration) : null,
     created_at: createdAt,
   };
-  const calibrationWarning = sharedCalibrationWarning(file);
   return file.channels.map((channel) => {
     const context = { file: input.fileName, column: file.channels.length > 1 ? `${file.quantity}@${channel.name}` : file.quantity };
     try {
-      const result = analyzeChannel(file, channel.values, channel.name, parameters, power_W, calibration, provenance, input.fileName, unused);
-      if (calibrationWarning !== undefined) result.quality.warnings.unshift(calibrationWarning);
-      return result;
+      return analyzeChannel(file, channel.values, channel.name, parameters, power_W, calibration, provenance, input.fileName, inputWarnings);
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) {
         throw new HeatpathError(error.code, error.detail, context);
@@ -90,13 +88,13 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
  * together, each with its own TSP; the one calibration given converts them
  * all, which the results say.
  */
-function sharedCalibrationWarning(file: TransientFile): string | undefined {
-  if (file.quantity !== 'voltage_V' || file.channels.length < 2) return undefined;
+function sharedCalibrationWarning(file: TransientFile): string[] {
+  if (file.quantity !== 'voltage_V' || file.channels.length < 2) return [];
   const names = file.channels.map((channel) => `voltage_V@${channel.name}`).join(', ');
-  return (
+  return [
     `one calibration converted all ${file.channels.length} voltage channels of this file (${names}) to temperature: ` +
-    'devices with calibrations of their own must be analysed with them, so split the file into one file per channel (or upload each channel on its own) and give each its calibration.'
-  );
+      'devices with calibrations of their own must be analysed with them, so split the file into one file per channel (or upload each channel on its own) and give each its calibration.',
+  ];
 }
 
 function analyzeChannel(
