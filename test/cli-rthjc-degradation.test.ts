@@ -6,6 +6,7 @@
  * the SiC module is its exact R_sum through the copper baseplate; the M31
  * campaign's die attach is at 100, 90, 70 and 45 % conductivity.
  */
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
@@ -60,6 +61,26 @@ describe('heatpath rthjc', () => {
     expect(run.stdout).toContain('epsilon = 0.01 x Rth-JC + 0.003 K/W');
     expect(run.stdout).toContain('recalled from JESD51-14 (2010) from memory');
     expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
+  });
+
+  it("says what the pair gives away: the same measurement twice, different powers, curves that part at their start; and the files' own warnings in text too", () => {
+    const same = heatpath('rthjc', dry, dry);
+    expect(same.stdout).toContain('A and B are the same measurement');
+    // JESD51-14: two measurements of one device at one power. Changing only the power line halves B's Zth,
+    // so the curves part at once.
+    const halfPower = file('grease-25W.csv', readFileSync(greased, 'utf8').replace('# power_W: 50', '# power_W: 25'));
+    const mismatch = heatpath('rthjc', dry, halfPower, '--format', 'json');
+    const warnings: string[] = JSON.parse(mismatch.stdout).warnings;
+    expect(warnings).toContainEqual(expect.stringMatching(/A was heated with 50 W and B with 25 W/));
+    expect(warnings).toContainEqual(expect.stringMatching(/the curves part at .* before heat can reach the case/));
+    // A file cut at 50 ms carries its own warning (not settled): the text lists it as the JSON does.
+    const lines = readFileSync(dry, 'utf8').split('\n');
+    const short = file('dry-short.csv', lines.filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= 0.05).join('\n'));
+    const text = heatpath('rthjc', short, greased);
+    const json = JSON.parse(heatpath('rthjc', short, greased, '--format', 'json').stdout);
+    const own = json.warnings.filter((w: string) => w.startsWith('A: '));
+    expect(own.length).toBeGreaterThan(0);
+    for (const warning of own) expect(text.stdout).toContain(warning);
   });
 });
 

@@ -79,7 +79,7 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
       scatter_K_per_W: structure.scatter_K_per_W,
       curves: { c_J_per_K: Array.from(structure.c_J_per_K), lower_r_K_per_W: Array.from(structure.lower_r_K_per_W), higher_r_K_per_W: Array.from(structure.higher_r_K_per_W) },
     },
-    warnings: [...a.result.quality.warnings.map((w) => `A: ${w}`), ...b.result.quality.warnings.map((w) => `B: ${w}`), ...comparison.warnings],
+    warnings: rthjcWarnings(a, b, comparison),
     caution: RESULT_CAUTION,
   };
 }
@@ -89,6 +89,7 @@ export function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comp
   const { zth_criterion: zth, structure_criterion: structure } = comparison;
   const lowerMark = (which: 'first' | 'second') => (comparison.lower === which ? '   (lower curve: the better interface)' : '');
   const rthjc = (value: number | null) => (value === null ? 'not found' : `${value.toPrecision(4)} K/W`);
+  const warnings = rthjcWarnings(a, b, comparison);
   const lines = [
     'Junction-to-case resistance by two interfaces (transient dual interface method, JESD51-14)',
     `  A  ${a.file}   Rth total ${a.result.rth_total_K_per_W.toPrecision(4)} K/W${lowerMark('first')}`,
@@ -100,8 +101,36 @@ export function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comp
       (structure.separation_c_J_per_K !== null ? `   separation at C_sum ${structure.separation_c_J_per_K.toPrecision(3)} J/K` : '') +
       `, threshold ${structure.threshold_K_per_W.toPrecision(2)} K/W`,
     `  note                  ${EPSILON_DEFAULTS_NOTE}`,
-    `  warnings              ${comparison.warnings.length === 0 ? 'none' : comparison.warnings.join('\n                        ')}`,
+    `  warnings              ${warnings.length === 0 ? 'none' : warnings.join('\n                        ')}`,
     `Caution: ${RESULT_CAUTION}`,
   ];
   return lines.join('\n') + '\n';
 }
+
+/**
+ * Every warning of a comparison: each measurement's own (A:, B:), what the
+ * pair gives away about itself, and the method's.
+ */
+function rthjcWarnings(a: ComparedMeasurement, b: ComparedMeasurement, comparison: DualInterfaceRthjc): string[] {
+  const pair: string[] = [];
+  if (a.result.provenance.input_sha256 === b.result.provenance.input_sha256) {
+    pair.push('A and B are the same measurement (the same bytes): the method compares two measurements of one device with different interfaces to the heatsink');
+  }
+  const [powerA, powerB] = [a.result.power_W, b.result.power_W];
+  if (powerA !== null && powerB !== null && Math.abs(powerA / powerB - 1) > POWER_MISMATCH_FRACTION) {
+    pair.push(`A was heated with ${powerA} W and B with ${powerB} W: the method compares two measurements of one device at one heating power; check the power of each`);
+  }
+  const { separation_time_s: separation, time_s } = comparison.zth_criterion;
+  if (separation !== null && time_s.length > 0 && separation < EARLY_SEPARATION_FACTOR * time_s[0]) {
+    pair.push(
+      `the curves part at ${formatTime(separation)}, at the start of their common time range, before heat can reach the case: ` +
+        'check that both are the same device, at the same power and with the same calibration; Rth-JC from them means nothing',
+    );
+  }
+  return [...a.result.quality.warnings.map((w) => `A: ${w}`), ...b.result.quality.warnings.map((w) => `B: ${w}`), ...pair, ...comparison.warnings];
+}
+
+/** Powers that differ by more than this are warned of: JESD51-14 compares two measurements of one device at one power. */
+const POWER_MISMATCH_FRACTION = 0.02;
+/** Curves that part within this factor of their first common time part where only the chip is heated: not a case interface. */
+const EARLY_SEPARATION_FACTOR = 10;
