@@ -59,6 +59,15 @@ describe('loadServiceConfig', () => {
     expect(configError({ HEATPATH_API_KEYS: 'x:boss:short,y' }).message).toMatch(/role "boss"[\s\S]*shorter than 16[\s\S]*entry 2 is not name:role:token/);
   });
 
+  it('reads numbers strictly, names the allowed values and the value given, and checks the webhook allowlist', () => {
+    const error = configError({ HEATPATH_API_KEYS: `b:bench:${benchToken}`, PORT: '80.5', HEATPATH_RATE_LIMIT_PER_MINUTE: '1.5', HEATPATH_LOG_LEVEL: 'verbose', HEATPATH_WEBHOOK_ALLOWLIST: 'http://lims.lab:8080, not a url' });
+    expect(error.message).toContain('PORT must be integer (it is "80.5")');
+    expect(error.message).toContain('HEATPATH_RATE_LIMIT_PER_MINUTE must be integer (it is "1.5")');
+    expect(error.message).toMatch(/HEATPATH_LOG_LEVEL must be one of "fatal", .*"trace" \(it is "verbose"\)/);
+    expect(error.message).toContain('HEATPATH_WEBHOOK_ALLOWLIST entry "not a url" is not an origin');
+    expect(error.message).not.toContain('lims.lab:8080"');
+  });
+
   it('refuses to start without keys and never echoes a token', () => {
     expect(configError({}).message).toContain('No API keys');
     const error = configError({ HEATPATH_API_KEYS: `dup:reader:${benchToken},dup:admin:${benchToken}` });

@@ -3,6 +3,8 @@ import { resolve } from 'node:path';
 import { Type, type Static } from 'typebox';
 import { Value } from 'typebox/value';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { plainValidationIssues } from '../../shared/schemas/plain-validation-issues.js';
+import { typedFieldsFromText } from '../../shared/schemas/typed-fields-from-text.js';
 import { parseApiKeyList, type ApiKey } from './api-key-list.js';
 
 /**
@@ -76,9 +78,15 @@ export interface ServiceConfigOptions {
 export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { servesApi = true }: ServiceConfigOptions = {}): ServiceConfig {
   const known = Object.keys(ServiceEnvSchema.properties);
   const given = Object.fromEntries(known.filter((name) => env[name] !== undefined && env[name] !== '').map((name) => [name, env[name]]));
-  const converted = Value.Default(ServiceEnvSchema, Value.Convert(ServiceEnvSchema, given));
-  const problems = [...Value.Errors(ServiceEnvSchema, converted)].map((error) => describeEnvProblem(error.instancePath, error.message));
+  // Numbers are read strictly (PORT=80.5 or HEATPATH_RATE_LIMIT_PER_MINUTE=1.5 is an error, not 80 or 1).
+  const converted = Value.Default(ServiceEnvSchema, typedFieldsFromText(ServiceEnvSchema, given));
+  const problems = plainValidationIssues(Value.Errors(ServiceEnvSchema, converted), '').map((issue) => describeEnvProblem(issue.field, issue.message, given));
   const keys = servesApi && Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
+  for (const entry of String(given.HEATPATH_WEBHOOK_ALLOWLIST ?? '').split(',').map((item) => item.trim()).filter(Boolean)) {
+    if (!/^https?:\/\/[^/]+/i.test(entry) || !URL.canParse(entry)) {
+      problems.push(`HEATPATH_WEBHOOK_ALLOWLIST entry ${JSON.stringify(entry)} is not an origin: write scheme://host:port, for example http://lims.lab.local:8080`);
+    }
+  }
   if (problems.length > 0) {
     // One line per problem, then HeatpathError's hint on a line of its own.
     const lines = problems.map((problem) => `\n  - ${problem.replace(/\.$/, '')}`);
@@ -108,10 +116,11 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { serves
   };
 }
 
-function describeEnvProblem(instancePath: string, message: string): string {
+function describeEnvProblem(instancePath: string, message: string, given: Record<string, unknown>): string {
   const name = instancePath.replace(/^\//, '');
   const description = (ServiceEnvSchema.properties as Record<string, { description?: string }>)[name]?.description ?? '';
-  return description ? `${name} ${message}: ${description}` : `${name} ${message}`;
+  const value = typeof given[name] === 'string' && !/KEY|TOKEN/.test(name) ? ` (it is ${JSON.stringify(given[name])})` : '';
+  return `${name} ${message}${value}${description ? `: ${description}` : ''}`;
 }
 
 function loadApiKeys(env: ServiceEnv, problems: string[]): ApiKey[] {

@@ -9,7 +9,7 @@ import { JobStateSchema, JobStatusSchema, readJobStatus, storedJobStatus } from 
 import { UploadLinksSchema, UploadRecordSchema } from '../schemas/upload-record-schema.js';
 import { UploadMetadataSchema, UploadQuerySchema } from '../schemas/transient-metadata.js';
 import { acceptTransientUpload, uploadCaution, uploadLinks } from '../uploads/accept-transient-upload.js';
-import { typedFieldsFromText } from '../uploads/typed-fields-from-text.js';
+import { typedFieldsFromText } from '../../../shared/schemas/typed-fields-from-text.js';
 import { readMultipartUpload, readRawUpload } from '../uploads/read-upload-request.js';
 
 const UploadAnswerSchema = Type.Object({

@@ -4,7 +4,7 @@ import { Compile } from 'typebox/compile';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientFormat } from '../../../shared/input/parse-transient.js';
 import { UploadMetadataSchema, type UploadMetadata, type UploadQuery } from '../schemas/transient-metadata.js';
-import { typedFieldsFromText } from './typed-fields-from-text.js';
+import { typedFieldsFromText } from '../../../shared/schemas/typed-fields-from-text.js';
 
 /** An upload as received, before anything is checked but its metadata. */
 export interface UploadRequest {
