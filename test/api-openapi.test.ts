@@ -48,6 +48,10 @@ describe('the OpenAPI document', () => {
     for (const { path, method, operation } of operations()) {
       const statuses = Object.keys(operation.responses);
       expect(statuses.some((status) => /^2\d\d$/.test(status)), `${method} ${path}`).toBe(true);
+      // OpenAPI 3.1 section 4.8.17: a response's description; ours says what the answer is, not the generator's placeholder.
+      for (const status of statuses.filter((code) => /^2\d\d$/.test(code))) {
+        expect(operation.responses[status].description, `${method} ${path} ${status}`).not.toBe('Default Response');
+      }
       for (const range of ['4XX', '5XX']) {
         expect(operation.responses[range]?.content, `${method} ${path} ${range}`).toHaveProperty(['application/problem+json']);
       }
