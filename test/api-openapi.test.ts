@@ -5,7 +5,7 @@ import { startApiTestApp, type ApiTestContext } from './support/api-test-app.js'
 let context: ApiTestContext;
 let document: {
   openapi: string;
-  paths: Record<string, Record<string, { security?: unknown[]; responses: Record<string, { content?: Record<string, unknown> }> }>>;
+  paths: Record<string, Record<string, { security?: unknown[]; responses: Record<string, { description?: string; content?: Record<string, unknown> }> }>>;
   components: { securitySchemes: Record<string, unknown> };
 };
 beforeAll(async () => {
