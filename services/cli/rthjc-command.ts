@@ -120,17 +120,8 @@ function rthjcWarnings(a: ComparedMeasurement, b: ComparedMeasurement, compariso
   if (powerA !== null && powerB !== null && Math.abs(powerA / powerB - 1) > POWER_MISMATCH_FRACTION) {
     pair.push(`A was heated with ${powerA} W and B with ${powerB} W: the method compares two measurements of one device at one heating power; check the power of each`);
   }
-  const { separation_time_s: separation, time_s } = comparison.zth_criterion;
-  if (separation !== null && time_s.length > 0 && separation < EARLY_SEPARATION_FACTOR * time_s[0]) {
-    pair.push(
-      `the curves part at ${formatTime(separation)}, at the start of their common time range, before heat can reach the case: ` +
-        'check that both are the same device, at the same power and with the same calibration; Rth-JC from them means nothing',
-    );
-  }
   return [...a.result.quality.warnings.map((w) => `A: ${w}`), ...b.result.quality.warnings.map((w) => `B: ${w}`), ...pair, ...comparison.warnings];
 }
 
 /** Powers that differ by more than this are warned of: JESD51-14 compares two measurements of one device at one power. */
 const POWER_MISMATCH_FRACTION = 0.02;
-/** Curves that part within this factor of their first common time part where only the chip is heated: not a case interface. */
-const EARLY_SEPARATION_FACTOR = 10;

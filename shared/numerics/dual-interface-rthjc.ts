@@ -40,6 +40,13 @@ import type { CumulativeStructureFunction } from './structure-function.js';
 import { structureFunctionShift, type StructureFunctionShiftOptions } from './structure-function-shift.js';
 
 /** One measurement: its Zth curve at the raw sample times and its cumulative structure function. */
+
+/**
+ * Curves that part within this factor of their earliest common time part
+ * while heat is still in the chip (a microsecond-scale start against a case
+ * interface at milliseconds and beyond): not at an interface.
+ */
+const EARLY_SEPARATION_FACTOR = 10;
 export interface InterfaceMeasurement {
   time_s: Float64Array;
   zth_K_per_W: Float64Array;
@@ -129,8 +136,11 @@ export function dualInterfaceRthjc(first: InterfaceMeasurement, second: Interfac
   let epsilonAtSeparation: number | null = null;
   if (found === null) {
     warnings.push(`Zth criterion: delta never stays above epsilon = ${settings.epsilonSlope} x Rth-JC + ${settings.epsilonOffset_K_per_W} K/W: no separation found (same interface twice?)`);
-  } else if (found.index === 0) {
-    warnings.push('Zth criterion: the curves differ already at the earliest common time: different devices, powers, calibrations or early-time corrections, not the interface; no Rth-JC');
+  } else if (Math.exp(valueAtPosition(common.z, found.position)) < EARLY_SEPARATION_FACTOR * Math.exp(common.z[0])) {
+    warnings.push(
+      `Zth criterion: the curves part within a factor ${EARLY_SEPARATION_FACTOR} of their earliest common time, where only the chip is heated: ` +
+        'different devices, powers, calibrations or early-time corrections, not the interface; no Rth-JC',
+    );
   } else {
     zthRthjc = valueAtPosition(lowerZth, found.position);
     separation_time_s = Math.exp(valueAtPosition(common.z, found.position));
