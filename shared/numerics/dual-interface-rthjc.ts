@@ -135,7 +135,10 @@ export function dualInterfaceRthjc(first: InterfaceMeasurement, second: Interfac
   let separation_time_s: number | null = null;
   let epsilonAtSeparation: number | null = null;
   if (found === null) {
-    warnings.push(`Zth criterion: delta never stays above epsilon = ${settings.epsilonSlope} x Rth-JC + ${settings.epsilonOffset_K_per_W} K/W: no separation found (same interface twice?)`);
+    warnings.push(
+      `Zth criterion: delta never stays above epsilon = ${settings.epsilonSlope} x Rth-JC + ${settings.epsilonOffset_K_per_W} K/W up to ${Math.exp(common.z[common.z.length - 1]).toPrecision(3)} s, ` +
+        'where the shorter record ends: no separation found (the same interface twice, or a record too short to reach the case?)',
+    );
   } else if (Math.exp(valueAtPosition(common.z, found.position)) < EARLY_SEPARATION_FACTOR * Math.exp(common.z[0])) {
     warnings.push(
       `Zth criterion: the curves part within a factor ${EARLY_SEPARATION_FACTOR} of their earliest common time, where only the chip is heated: ` +
@@ -191,7 +194,8 @@ export function dualInterfaceRthjc(first: InterfaceMeasurement, second: Interfac
       lower_r_K_per_W: shift.reference_r_K_per_W,
       higher_r_K_per_W: shift.later_r_K_per_W,
     },
-    warnings: [...warnings, ...shift.warnings.map((w) => `structure-function criterion: ${w}`)],
+    // Without a start the shift's one warning says what this criterion's own says.
+    warnings: [...warnings, ...(shift.start === null ? [] : shift.warnings).map((w) => `structure-function criterion: ${w}`)],
   };
 }
 

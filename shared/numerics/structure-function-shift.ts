@@ -111,7 +111,7 @@ export function structureFunctionShift(
   let start: StructureFunctionShift['start'] = null;
   let settled_shift_K_per_W: number | null = null;
   if (found === null) {
-    warnings.push(`no shift above ${threshold_K_per_W.toPrecision(2)} K/W persists (over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond): no degraded layer found`);
+    warnings.push(`no shift above ${threshold_K_per_W.toPrecision(2)} K/W persists (over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond): the structure functions do not part`);
   } else {
     start = { c_J_per_K: logInterpolate(c_J_per_K, found.position), reference_r_K_per_W: valueAtPosition(refR, found.position), grid_index: found.index };
     if (found.index === 0) {
