@@ -115,6 +115,19 @@ describe('heatpath reprocess', () => {
     expect((await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n')).toHaveLength(stateLines);
   });
 
+  it('gives files of one folder that differ only in their extension results folders of their own', async () => {
+    await writeTransient('archive/D3/cooling.csv', 73);
+    const rows = syntheticTransientCsv(74).toString('utf8').trim().split('\n').slice(1).map((row) => row.split(',').map(Number));
+    await writeFile(join(workDir, 'archive/D3/cooling.json'), JSON.stringify({ time_s: rows.map((r) => r[0]), temperature_C: rows.map((r) => r[1]) }));
+    await writeTransient('archive/D3/heating-free.csv', 75);
+    const out = join(workDir, 'out');
+    expect(await runReprocessCommand([join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)], print)).toBe(0);
+    const source = async (folder: string) => JSON.parse(await readFile(join(out, 'results', 'D3', folder, 'result.json'), 'utf8')).source.file as string;
+    expect(await source('cooling-csv')).toMatch(/cooling\.csv$/);
+    expect(await source('cooling-json')).toMatch(/cooling\.json$/);
+    expect(await source('heating-free')).toMatch(/heating-free\.csv$/);
+  });
+
   it('analyses files again when the settings change (method, points per decade, power), and skips them when they do not', async () => {
     await writeTransient('archive/D1/t1.csv', 73);
     await writeTransient('archive/D2/t2.csv', 74);

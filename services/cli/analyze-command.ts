@@ -83,6 +83,8 @@ export interface ReadTransientFile {
   file: string;
   bytes: Buffer;
   parsed: TransientFile;
+  /** Its result folder under outRoot; omitted: named from the file (result-folder-names.ts). */
+  folder?: string;
 }
 
 /**
@@ -94,7 +96,10 @@ export async function analyzeFiles(files: (string | ReadTransientFile)[], option
   const results: AnalyzeRun['results'] = [];
   const failures: HeatpathError[] = [];
   const names = files.map((entry) => (typeof entry !== 'string' ? entry.file : entry === STANDARD_INPUT_ARGUMENT ? STANDARD_INPUT_NAME : entry));
-  const folderNames = resultFolderNames(names);
+  const folderNames = resultFolderNames(names).map((name, index) => {
+    const entry = files[index];
+    return typeof entry !== 'string' && entry.folder !== undefined ? entry.folder : name;
+  });
   const written = new Set<string>();
   for (const [index, entry] of files.entries()) {
     const file = names[index];

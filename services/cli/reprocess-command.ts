@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import { readdir } from 'node:fs/promises';
-import { basename, dirname, join, relative, resolve, sep } from 'node:path';
+import { basename, dirname, extname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
@@ -86,9 +86,8 @@ export async function runReprocessCommand(
   };
   const uploadTarget = values.local ? undefined : uploadTargetFrom(values, 'reprocess');
   const target = uploadTarget ? new URL(uploadTarget.server).href : 'local';
-  const processFile = uploadTarget ? serverProcessor(uploadTarget, values) : localProcessor(inputs, outDir);
-
   const files = (await listTransientFiles(archive, outDir)).map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
+  const processFile = uploadTarget ? serverProcessor(uploadTarget, values) : localProcessor(inputs, outDir, resultFolderOf(files.map((f) => f.relativePath)));
   await makeOutputDirectory(outDir);
   const outcomes = await readReprocessState(join(outDir, STATE_FILE));
   const thisRun = new Map<string, FileOutcome>();
@@ -179,16 +178,33 @@ function serverProcessor(target: UploadTarget, values: Record<string, unknown>):
  * same options and checks, into OUT/results/<its folder>/: a file done again
  * replaces its earlier results there.
  */
-function localProcessor(inputs: AnalysisInputs, outDir: string): Processor {
+function localProcessor(inputs: AnalysisInputs, outDir: string, folderOf: (relativePath: string) => string): Processor {
   return async (path, relativePath, bytes, { jobId, parsed }) => {
     try {
-      const file = parsed ? { file: path, bytes, parsed } : path;
+      const file = parsed ? { file: path, bytes, parsed, folder: folderOf(relativePath) } : path;
       const run = await analyzeFiles([file], { ...inputs, outRoot: join(outDir, 'results', dirname(relativePath)), createdAt: new Date().toISOString() });
       if (run.failures.length > 0) return failureOf(run.failures[0]);
       return { status: 'ok', job_id: jobId, detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W` };
     } catch (error) {
       return failureOf(error);
     }
+  };
+}
+
+/**
+ * The result folder of each archive file, under results/<its folder>/: its
+ * name without the extension, or with it (cooling-csv, cooling-json) where
+ * files of one folder differ only in their extension. Decided from the whole
+ * listing, so a resumed run names every file as the first did.
+ */
+function resultFolderOf(relativePaths: string[]): (relativePath: string) => string {
+  const stemOf = (path: string) => path.slice(0, path.length - extname(path).length).toLowerCase();
+  const counts = new Map<string, number>();
+  for (const path of relativePaths) counts.set(stemOf(path), (counts.get(stemOf(path)) ?? 0) + 1);
+  return (relativePath) => {
+    const extension = extname(relativePath);
+    const stem = basename(relativePath, extension);
+    return (counts.get(stemOf(relativePath)) ?? 0) > 1 ? `${stem}-${extension.slice(1)}` : stem;
   };
 }
 
