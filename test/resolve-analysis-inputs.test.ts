@@ -42,4 +42,17 @@ describe('resolveAnalysisInputs from the file header', () => {
     expect(error.code).toBe('PARAM_INVALID');
     expect(error.detail).toBe('kind (from the file\'s "# kind: warming" line): must be one of "cooling", "heating"');
   });
+
+  it('says when a given power or kind contradicts the header line, and uses the given one', () => {
+    const file = fileWith('# power_W: 51.3', '# kind: cooling');
+    const overridden = resolveAnalysisInputs(file, { power: { power_W: 60 }, parameters: { kind: 'heating' } }, 'bench.csv');
+    expect(overridden).toMatchObject({ power: { power_W: 60 }, parameters: { kind: 'heating' } });
+    expect(overridden.warnings).toEqual([
+      'kind heating was given, and used, where the file\'s "# kind: cooling" line says otherwise',
+      "a heating power of 60 W was given, and used, where the file's header lines say 51.3 W",
+    ]);
+    // The same values given again (as the service's workers do with what the upload resolved) are no contradiction.
+    expect(resolveAnalysisInputs(file, { power: { power_W: 51.3 }, parameters: { kind: 'cooling' } }, 'bench.csv').warnings).toEqual([]);
+    expect(resolveAnalysisInputs(file, { power: { current_A: 10, voltage_V: 5.13 } }, 'bench.csv').warnings).toEqual([]);
+  });
 });

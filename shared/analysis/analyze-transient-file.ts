@@ -47,7 +47,7 @@ export interface TransientFileInput {
  */
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
   const file = input.parsed ?? parseTransient(input.bytes, input.fileName, input.format);
-  const { parameters, power } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
+  const { parameters, power, warnings: headerWarnings } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
   if (file.quantity === 'voltage_V' && !input.calibration) {
     throw new HeatpathError('CALIBRATION_REQUIRED', `${file.channels.length} voltage_V channel(s) and no calibration`, { file: input.fileName });
   }
@@ -57,6 +57,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const resolvedPower_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
+    ...headerWarnings,
     ...sharedCalibrationWarning(file),
     ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),

@@ -15,10 +15,44 @@ export function resolveAnalysisInputs(
   file: TransientFile,
   given: { parameters?: Partial<AnalysisParameters>; power?: Power },
   fileName: string,
-): { parameters: AnalysisParameters; power: Power | undefined } {
+): { parameters: AnalysisParameters; power: Power | undefined; warnings: string[] } {
   const parameters = resolveParameters(given.parameters ?? {}, file, fileName);
   const power = given.power ?? powerFromMeta(file, fileName, file.quantity !== 'zth_K_per_W');
-  return { parameters, power };
+  return { parameters, power, warnings: overriddenHeaderLines(file, given, fileName) };
+}
+
+/**
+ * What the caller gave that contradicts the file's own header lines: the
+ * caller wins, but a bench script that sends another power than the file
+ * states is more often a mistake than a correction, so the result says so.
+ */
+function overriddenHeaderLines(file: TransientFile, given: { parameters?: Partial<AnalysisParameters>; power?: Power }, fileName: string): string[] {
+  const warnings: string[] = [];
+  const fileKind = file.meta.kind?.trim().toLowerCase();
+  if (given.parameters?.kind !== undefined && fileKind !== undefined && fileKind !== given.parameters.kind) {
+    warnings.push(`kind ${given.parameters.kind} was given, and used, where the file's "# kind: ${file.meta.kind}" line says otherwise`);
+  }
+  // Zth input uses no power (analyze-transient-file.ts says so itself).
+  if (given.power !== undefined && file.quantity !== 'zth_K_per_W') {
+    let filePower: Power | undefined;
+    try {
+      filePower = powerFromMeta(file, fileName, false);
+    } catch {
+      filePower = undefined; // a header power that cannot be read is no contradiction worth more than its own error
+    }
+    const [givenW, fileW] = [watts(given.power), filePower === undefined ? undefined : watts(filePower)];
+    if (fileW !== undefined && Math.abs(givenW / fileW - 1) > POWER_DISAGREEMENT_FRACTION) {
+      warnings.push(`a heating power of ${givenW} W was given, and used, where the file's header lines say ${fileW} W`);
+    }
+  }
+  return warnings;
+}
+
+/** Powers closer than this count as the same (rounding in a bench script). */
+const POWER_DISAGREEMENT_FRACTION = 1e-3;
+
+function watts(power: Power): number {
+  return 'power_W' in power ? power.power_W : power.current_A * power.voltage_V;
 }
 
 /** Compiled once: every upload and every analysis checks its parameters (14 us with the interpreted checker, 0.2 us compiled, measured). */
