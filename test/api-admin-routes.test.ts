@@ -11,6 +11,9 @@ beforeAll(async () => {
 afterAll(async () => context.close());
 
 const post = (url: string, payload: object, role: 'admin' | 'bench' = 'admin') => context.app.inject({ method: 'POST', url, headers: bearer(role), payload });
+/** A bench upload of a small synthetic CSV transient (test/support/synthetic-upload.ts) with the given query. */
+const uploadCsv = (query: string, seed: number) =>
+  context.app.inject({ method: 'POST', url: `/v1/transients?${query}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: syntheticTransientCsv(seed, 10) });
 
 describe('webhooks', () => {
   it('registers an allowed URL once with its secret, lists it without, removes it', async () => {
@@ -64,12 +67,7 @@ describe('batches', () => {
   });
 
   it('creates a batch over stored uploads, lists it and cancels it', async () => {
-    const uploaded = await context.app.inject({
-      method: 'POST',
-      url: '/v1/transients?sample_id=B-1&power_W=50&tags=lot9',
-      headers: { ...bearer('bench'), 'content-type': 'text/csv' },
-      payload: syntheticTransientCsv(41, 10),
-    });
+    const uploaded = await uploadCsv('sample_id=B-1&power_W=50&tags=lot9', 41);
     expect(uploaded.statusCode).toBe(202);
     const created = await post('/v1/batches', { selection: { tag: 'lot9' }, parameters: { method: 'fourier' } });
     expect(created.statusCode, created.body).toBe(202);
@@ -93,12 +91,7 @@ describe('batches', () => {
   });
 
   it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {
-    const uploaded = await context.app.inject({
-      method: 'POST',
-      url: '/v1/transients?sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8',
-      headers: { ...bearer('bench'), 'content-type': 'text/csv' },
-      payload: syntheticTransientCsv(42, 10),
-    });
+    const uploaded = await uploadCsv('sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8', 42);
     expect(uploaded.statusCode, uploaded.body).toBe(202);
     const upload = (await context.store.getUpload(uploaded.json().upload_id))!;
     expect(upload.parameters).toMatchObject({ kind: 'heating', method: 'bayes', compact_stages: 8, points_per_decade: 40 });
@@ -122,12 +115,7 @@ describe('sample listing in pages', () => {
   it('gives at most ?limit= transients, oldest first, and a next cursor until the last page', async () => {
     const ids: string[] = [];
     for (const seed of [61, 62, 63]) {
-      const uploaded = await context.app.inject({
-        method: 'POST',
-        url: '/v1/transients?sample_id=PAGED-1&power_W=50',
-        headers: { ...bearer('bench'), 'content-type': 'text/csv' },
-        payload: syntheticTransientCsv(seed, 10),
-      });
+      const uploaded = await uploadCsv('sample_id=PAGED-1&power_W=50', seed);
       ids.push(uploaded.json().upload_id);
     }
     const get = async (url: string) => (await context.app.inject({ url, headers: bearer('reader') })).json();
