@@ -4,7 +4,7 @@ import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { estimateNoiseRms } from '../numerics/noise-estimate.js';
 import { voltageToTemperature } from '../numerics/tsp-calibration.js';
-import { zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
+import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
 import { steadyStateRth } from '../numerics/steady-state.js';
 import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
 import { fosterToCauer } from '../numerics/foster-to-cauer.js';
@@ -54,7 +54,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   // Zth input needs neither power nor calibration, temperature input no calibration: what is given and
   // not used is neither recorded as used nor silently dropped.
   const calibration = file.quantity === 'voltage_V' ? input.calibration : undefined;
-  const resolvedPower_W = power ? ('power_W' in power ? power.power_W : power.current_A * power.voltage_V) : null;
+  const resolvedPower_W = power ? heatingPower_W(power) : null;
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
     ...headerWarnings,

@@ -3,6 +3,7 @@ import { HeatpathError } from '../errors/heatpath-error.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
+import { heatingPower_W } from '../numerics/zth-from-temperature.js';
 
 /**
  * The parameters and power an analysis of `file` really uses: what the caller
@@ -28,7 +29,7 @@ export function resolveAnalysisInputs(
  */
 function overriddenHeaderLines(file: TransientFile, given: { parameters?: Partial<AnalysisParameters>; power?: Power }, fileName: string): string[] {
   const warnings: string[] = [];
-  const fileKind = file.meta.kind?.trim().toLowerCase();
+  const fileKind = kindLine(file);
   if (given.parameters?.kind !== undefined && fileKind !== undefined && fileKind !== given.parameters.kind) {
     warnings.push(`kind ${given.parameters.kind} was given, and used, where the file's "# kind: ${file.meta.kind}" line says otherwise`);
   }
@@ -40,7 +41,7 @@ function overriddenHeaderLines(file: TransientFile, given: { parameters?: Partia
     } catch {
       filePower = undefined; // a header power that cannot be read is no contradiction worth more than its own error
     }
-    const [givenW, fileW] = [watts(given.power), filePower === undefined ? undefined : watts(filePower)];
+    const [givenW, fileW] = [heatingPower_W(given.power), filePower === undefined ? undefined : heatingPower_W(filePower)];
     if (fileW !== undefined && Math.abs(givenW / fileW - 1) > POWER_DISAGREEMENT_FRACTION) {
       warnings.push(`a heating power of ${givenW} W was given, and used, where the file's header lines say ${fileW} W`);
     }
@@ -51,8 +52,9 @@ function overriddenHeaderLines(file: TransientFile, given: { parameters?: Partia
 /** Powers closer than this count as the same (rounding in a bench script). */
 const POWER_DISAGREEMENT_FRACTION = 1e-3;
 
-function watts(power: Power): number {
-  return 'power_W' in power ? power.power_W : power.current_A * power.voltage_V;
+/** The file's "# kind:" line as a kind: "# kind: Cooling" is meant as cooling, case and spaces are not information. */
+function kindLine(file: TransientFile): string | undefined {
+  return file.meta.kind?.trim().toLowerCase();
 }
 
 /** Compiled once: every upload and every analysis checks its parameters (14 us with the interpreted checker, 0.2 us compiled, measured). */
@@ -61,8 +63,7 @@ const powerValidator = Compile(PowerSchema);
 
 /** Explicit parameters, then the file's `kind` metadata, then the schema defaults; validated by the schema. */
 function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFile, fileName: string): AnalysisParameters {
-  // A "# kind: Cooling" line is meant as cooling: case and spaces are not information.
-  const kind = given.kind ?? file.meta.kind?.trim().toLowerCase();
+  const kind = given.kind ?? kindLine(file);
   const merged = { ...defaultAnalysisParameters, ...(kind !== undefined ? { kind } : {}), ...stripUndefined(given) };
   if (!parametersValidator.Check(merged)) {
     const [first] = plainValidationIssues(parametersValidator.Errors(merged), '');

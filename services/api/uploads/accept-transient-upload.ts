@@ -42,7 +42,7 @@ export async function acceptTransientUpload(
   apiKey: ApiKey,
   idempotencyKey: string | undefined,
 ): Promise<{ answer: UploadAnswer; replayed: boolean }> {
-  const { store, queue, log } = deps;
+  const { store, log } = deps;
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.fileName, upload.format);
   const { parameters, power: resolvedPower } = resolveAnalysisInputs(
