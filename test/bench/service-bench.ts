@@ -28,7 +28,10 @@
  *          compute-bound figures measured just before and after it, and the
  *          median ratio reported (this machine's speed drifts by tens of per
  *          cent between runs a minute apart)
- *          --archive M (= uploads) --samples-per-decade S (620, about 100 kB).
+ *          --archive M (= uploads) --samples-per-decade S (620, about 100 kB)
+ *          --warmup U (10 per analysis process)
+ *          --cpu-profile DIR (V8 CPU profiles of the service's processes, for
+ *          chrome://inspect or any .cpuprofile viewer; profiling slows them).
  * Bounded: every wait has a deadline; everything is removed at the end.
  */
 import { spawn } from 'node:child_process';
@@ -40,6 +43,7 @@ import { Worker } from 'node:worker_threads';
 import { TransientStore } from '../../services/store/transient-store.js';
 import { packageRoot } from '../../services/cli/package-root.js';
 import { AnalysisQueue } from '../../workers/analysis-queue.js';
+import { defaultAnalysisProcesses } from '../../workers/main.js';
 import { BatchReprocessor } from '../../workers/reprocess-batch.js';
 import { freePort } from '../support/free-port.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from '../support/redis-connection.js';
@@ -50,6 +54,8 @@ const option = (name: string, fallback: number) => {
   return at > 0 ? Number(process.argv[at + 1]) : fallback;
 };
 const UPLOADS = option('uploads', 200);
+/** --cpu-profile DIR: the service process and its analysis processes (which inherit the flag) write V8 CPU profiles there when they exit. */
+const PROFILE_DIR = process.argv.includes('--cpu-profile') ? process.argv[process.argv.indexOf('--cpu-profile') + 1] : undefined;
 /** Upload rounds, each between two compute-bound measurements: the machine's speed drifts between runs. */
 const ROUNDS = Math.max(1, option('rounds', 1));
 const CONCURRENCY = option('concurrency', 50);
@@ -60,7 +66,9 @@ const WORKERS = option('workers', 0);
 const ARCHIVE = Math.min(option('archive', UPLOADS), UPLOADS * ROUNDS);
 const SAMPLES_PER_DECADE = option('samples-per-decade', 620);
 const DEADLINE_MS = 15 * 60_000;
-const WARMUP_UPLOADS = 4 * CORES;
+const ANALYSIS_PROCESSES = WORKERS > 0 ? WORKERS : defaultAnalysisProcesses();
+/** Warm-up uploads: about ten jobs per analysis process before timing, as the compute-bound threads run five first (each process compiles the analysis as it goes). */
+const WARMUP_UPLOADS = option('warmup', 10 * ANALYSIS_PROCESSES);
 const TOKEN = 'bench-token-0123456789abcdef';
 
 function percentile(values: number[], p: number): number {
@@ -88,6 +96,19 @@ async function processCpuSeconds(pid: number): Promise<number> {
   const stat = await readFile(`/proc/${pid}/stat`, 'utf8');
   const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
   return (Number(fields[11]) + Number(fields[12])) / 100;
+}
+
+/** CPU seconds of the service's child processes (the analysis processes BullMQ forks), found by their parent pid. */
+async function childProcessesCpuSeconds(parentPid: number): Promise<number> {
+  let total = 0;
+  for (const entry of await readdir('/proc')) {
+    if (!/^\d+$/.test(entry)) continue;
+    const stat = await readFile(`/proc/${entry}/stat`, 'utf8').catch(() => null);
+    if (stat === null) continue;
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    if (Number(fields[1]) === parentPid) total += (Number(fields[11]) + Number(fields[12])) / 100;
+  }
+  return total;
 }
 
 /** jobs/s of `threads` threads analysing files in parallel (the core alone, no service). */
@@ -122,7 +143,7 @@ console.log(
 /** The core alone, one thread and one per core; measured before and after every round, whose figure is judged against the mean of the two. */
 const computeBound = async () => ({ single: await computeBoundJobsPerSecond(files, 1), parallel: await computeBoundJobsPerSecond(files, CORES) });
 const baselines = [await computeBound()];
-const service = spawn(process.execPath, [join(packageRoot(import.meta.url), 'dist', 'services', 'main.js')], {
+const service = spawn(process.execPath, [...(PROFILE_DIR ? ['--cpu-prof', `--cpu-prof-dir=${PROFILE_DIR}`] : []), join(packageRoot(import.meta.url), 'dist', 'services', 'main.js')], {
   stdio: ['ignore', 'ignore', 'inherit'],
   env: {
     ...process.env,
@@ -170,11 +191,12 @@ try {
 
   // 1 + 2: uploads while the workers run, then until every result is stored; once per round.
   const latencies: number[] = [];
-  const rounds: { endToEnd: number; seconds: number; uploadSeconds: number; clientCpuSeconds: number; serviceCpuSeconds: number }[] = [];
+  const rounds: { endToEnd: number; seconds: number; uploadSeconds: number; clientCpuSeconds: number; serviceCpuSeconds: number; analysisCpuSeconds: number }[] = [];
   for (let round = 0; round < ROUNDS; round++) {
     const roundFiles = files.slice(round * UPLOADS, (round + 1) * UPLOADS);
     const clientCpuBefore = process.cpuUsage();
     const serviceCpuBefore = await processCpuSeconds(service.pid!);
+    const analysisCpuBefore = await childProcessesCpuSeconds(service.pid!);
     let next = 0;
     const started = performance.now();
     const periodMs = RATE > 0 ? (CONCURRENCY / RATE) * 1000 : 0;
@@ -201,6 +223,7 @@ try {
       endToEnd: UPLOADS / seconds, seconds, uploadSeconds: (lastAnswered - started) / 1000,
       clientCpuSeconds: (clientCpu.user + clientCpu.system) / 1e6,
       serviceCpuSeconds: (await processCpuSeconds(service.pid!)) - serviceCpuBefore,
+      analysisCpuSeconds: (await childProcessesCpuSeconds(service.pid!)) - analysisCpuBefore,
     });
     baselines.push(await computeBound());
   }
@@ -212,7 +235,7 @@ try {
   const middle = sortedRatios.length / 2;
   const medianRatio = sortedRatios.length % 2 === 1 ? sortedRatios[Math.floor(middle)] : (sortedRatios[middle - 1] + sortedRatios[middle]) / 2;
   const endToEnd = mean(rounds.map((r) => r.endToEnd));
-  const sum = (key: 'seconds' | 'uploadSeconds' | 'clientCpuSeconds' | 'serviceCpuSeconds') => rounds.reduce((total, r) => total + r[key], 0);
+  const sum = (key: 'seconds' | 'uploadSeconds' | 'clientCpuSeconds' | 'serviceCpuSeconds' | 'analysisCpuSeconds') => rounds.reduce((total, r) => total + r[key], 0);
 
   console.log(`uploads: p50 ${percentile(latencies, 50).toFixed(1)} ms, p99 ${percentile(latencies, 99).toFixed(1)} ms, ${((UPLOADS * ROUNDS) / sum('uploadSeconds')).toFixed(0)} uploads/s (target p99 <= 50 ms with 50 bench clients)`);
   const range = (values: number[]) => `${Math.min(...values).toFixed(1)}-${Math.max(...values).toFixed(1)}`;
@@ -229,7 +252,9 @@ try {
   console.log(
     `  CPU over those ${sum('seconds').toFixed(1)} s: load generator (this process) ${sum('clientCpuSeconds').toFixed(1)} s = ${((sum('clientCpuSeconds') / coreSeconds) * 100).toFixed(0)} % of the cores, ` +
       `API and queue process ${sum('serviceCpuSeconds').toFixed(1)} s = ${((sum('serviceCpuSeconds') / coreSeconds) * 100).toFixed(0)} % ` +
-      `(${((sum('serviceCpuSeconds') / (UPLOADS * ROUNDS)) * 1000).toFixed(1)} ms per upload and its job; the analysis processes have the rest)`,
+      `(${((sum('serviceCpuSeconds') / (UPLOADS * ROUNDS)) * 1000).toFixed(1)} ms per upload and its job), ` +
+      `analysis processes ${sum('analysisCpuSeconds').toFixed(1)} s = ${((sum('analysisCpuSeconds') / coreSeconds) * 100).toFixed(0)} % ` +
+      `(${((sum('analysisCpuSeconds') / (UPLOADS * ROUNDS)) * 1000).toFixed(1)} ms per job; the core alone takes ${(1000 / single).toFixed(1)} ms on one thread)`,
   );
 
   // 3: archive reprocess with a changed parameter (new job ids), below any upload's priority.
