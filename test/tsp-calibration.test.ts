@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { lusolve, multiply, transpose } from 'mathjs';
-import { CALIBRATION_RANGE_MARGIN, fitCalibration, validateCalibration, voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
+import { CALIBRATION_RANGE_MARGIN, calibrationExtrapolationWarnings, fitCalibration, validateCalibration, voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
 import { fitPolynomial, solveLeastSquares } from '../shared/numerics/least-squares.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { CalibrationSchema, type Calibration } from '../shared/schemas/calibration.js';
@@ -203,6 +203,16 @@ describe('voltageToTemperature', () => {
     expect(() => voltageToTemperature(cal, Float64Array.from([low - 0.99 * CALIBRATION_RANGE_MARGIN * span]))).not.toThrow();
     expect(catchHeatpathError(() => voltageToTemperature(cal, Float64Array.from([0.6, high + 1.01 * CALIBRATION_RANGE_MARGIN * span]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
     expect(catchHeatpathError(() => voltageToTemperature(cal, Float64Array.from([Number.NaN]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
+  });
+
+  it('warns of samples converted beyond the sweep, with their count and the farthest distance', () => {
+    // Exact construction: two of four samples lie outside the calibrated voltages, the farther by 2 % of the span.
+    const voltages = Float64Array.from([low + 0.5 * span, high, high + 0.01 * span, low - 0.02 * span]);
+    const [warning] = calibrationExtrapolationWarnings(cal, voltages);
+    expect(warning).toContain('2 of 4 samples lie outside the calibrated');
+    expect(warning).toContain(`by up to ${(0.02 * span * 1000).toPrecision(3)} mV (2.0 % of the span)`);
+    expect(warning).toContain('extend the calibration sweep');
+    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low, high, 0.5 * (low + high)]))).toEqual([]);
   });
 
   it('refuses a calibration that turns within the measured voltages', () => {

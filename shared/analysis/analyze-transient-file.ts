@@ -3,7 +3,7 @@ import { HeatpathError } from '../errors/heatpath-error.js';
 import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { estimateNoiseRms } from '../numerics/noise-estimate.js';
-import { voltageToTemperature } from '../numerics/tsp-calibration.js';
+import { calibrationExtrapolationWarnings, voltageToTemperature } from '../numerics/tsp-calibration.js';
 import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
 import { steadyStateRth } from '../numerics/steady-state.js';
 import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
@@ -122,6 +122,7 @@ function analyzeChannel(
     zth = zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window });
   } else {
     const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, values) : values;
+    if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values));
     noise_K = estimateNoiseRms(temperature_C);
     noise_K_per_W = noise_K / power_W!;
     zth = zthFromTemperature(time_s, temperature_C, { power_W: power_W! }, { kind: parameters.kind, noise_rms: noise_K, ...window });

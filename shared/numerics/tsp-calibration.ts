@@ -96,6 +96,32 @@ export function voltageToTemperature(calibration: Calibration, voltage_V: Float6
   return evaluate(calibration.model, calibration.coefficients, voltage_V);
 }
 
+/**
+ * What a conversion extrapolates: voltages outside the calibrated range but
+ * within its margin are converted by the fit beyond the sweep, where nothing
+ * checked it (a polynomial of high order or an exponential can bend away
+ * there), so the result says how many samples and how far.
+ */
+export function calibrationExtrapolationWarnings(calibration: Calibration, voltage_V: Float64Array): string[] {
+  const [low, high] = calibration.voltage_range_V;
+  let outside = 0;
+  let farthest_V = 0;
+  for (let i = 0; i < voltage_V.length; i++) {
+    const beyond_V = Math.max(low - voltage_V[i], voltage_V[i] - high);
+    if (beyond_V > 0) {
+      outside++;
+      farthest_V = Math.max(farthest_V, beyond_V);
+    }
+  }
+  if (outside === 0) return [];
+  const [lowest_C, highest_C] = calibration.temperature_range_C;
+  return [
+    `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
+      `(${((100 * farthest_V) / (high - low)).toPrecision(2)} % of the span): their temperatures are extrapolated by the ${calibration.model} fit beyond the sweep's ` +
+      `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient`,
+  ];
+}
+
 /** Check a calibration file's content against the schema and the model's coefficient count. */
 export function validateCalibration(json: unknown, fileName: string): Calibration {
   if (!Value.Check(CalibrationSchema, json)) {
