@@ -227,8 +227,13 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     ['no power for temperature input', () => ['analyze', file('nopower.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`)], /POWER_REQUIRED/],
     ['a heating curve without its kind', () => ['analyze', file('heating.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`), '--power-w', '10'], /really cooling\? If it is a heating transient, say so: --kind heating on the command line; kind=heating for an upload; or a `# kind: heating` line in the file.*ANALYSIS_NOT_ANALYSABLE/],
     ['voltage without a calibration', () => ['analyze', file('volts.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '10'], /CALIBRATION_REQUIRED/],
-    ['an unknown option', () => ['analyze', 'x.csv', '--bogus'], /CLI_USAGE/],
-    ['a value starting with a dash, as its own argument', () => ['analyze', 'x.csv', '--power-w', '-5'], /ambiguous.*use '--power-w=-XYZ'.*CLI_USAGE/],
+    ['an unknown option', () => ['analyze', 'x.csv', '--bogus'], /unknown option --bogus for analyze\. Run `heatpath --help` for the commands and `heatpath COMMAND --help` for the options of one\. \[CLI_USAGE\]/],
+    ['a mistyped option, with the one meant', () => ['analyze', 'x.csv', '--powerw', '51'], /unknown option --powerw for analyze: did you mean --power-w\?.*CLI_USAGE/],
+    ['a shortened option, with the one meant', () => ['analyze', 'x.csv', '--early-start', '1e-5'], /did you mean --early-start-s\?/],
+    ['an unknown short option, with the one meant', () => ['analyze', 'x.csv', '-o', 'x'], /unknown option -o for analyze: did you mean --out\?/],
+    ['an option another command has', () => ['degradation', 'a.csv', 'b.csv', '--compact-stages', '3'], /unknown option --compact-stages for degradation.*CLI_USAGE/],
+    ['a mistyped command, with the one meant', () => ['analyse', 'x.csv'], /^heatpath: unknown command "analyse"\. Did you mean `heatpath analyze`\?/],
+    ['a negative number as its own argument, judged as a number', () => ['analyze', 'x.csv', '--power-w', '-5'], /--power-w must be a positive number, got "-5".*CLI_USAGE/],
     ['a bad method', () => ['analyze', 'x.csv', '--method', 'magic'], /--method must be one of bayes, fourier/],
     ['points per decade out of range', () => ['analyze', file('ok.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--points-per-decade', '5'], /points_per_decade/],
     ['a broken calibration file', () => ['analyze', file('ok2.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '1', '--calibration', file('cal.json', '{"model":"linear"}')], /CALIBRATION_BAD_FILE/],
@@ -241,6 +246,17 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
       expectUserError(heatpath(...args()), message);
     });
   }
+});
+
+describe('heatpath analyze options written as in the files\' header lines', () => {
+  it('reads a decimal comma in a number and a choice in any case, as `# power_W: 51,3` and `# kind: Cooling` are read', () => {
+    const path = join(demo, 'fh-tt1_m07_cooling.csv');
+    const written = heatpath('analyze', path, '--power-w', '51,3', '--kind', 'Cooling', '--format', 'json');
+    expect(written.stderr).toBe('');
+    const result = JSON.parse(written.stdout);
+    expect(result.power_W).toBe(51.3);
+    expect(result.provenance.parameters.kind).toBe('cooling');
+  });
 });
 
 describe('heatpath analyze on an archive with a bad file', () => {

@@ -40,7 +40,7 @@ export interface AnalyzeRun {
 
 /** `heatpath analyze`: returns the exit code; writes the report to `print`. */
 export async function runAnalyzeCommand(argv: string[], print: (text: string) => void): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, {
+  const { values, positionals } = parseCommandLine('analyze', argv, {
     ...analysisOptions,
     'compact-stages': { type: 'string' },
     out: { type: 'string' },

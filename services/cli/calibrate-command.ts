@@ -19,7 +19,7 @@ that look like millivolts are warned of, in the output and in the file.`;
 const models = CalibrationModelSchema.anyOf.map((literal) => literal.const) as CalibrationModel[];
 
 export async function runCalibrateCommand(argv: string[], print: (text: string) => void): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, {
+  const { values, positionals } = parseCommandLine('calibrate', argv, {
     model: { type: 'string' },
     out: { type: 'string' },
     help: { type: 'boolean', short: 'h' },

@@ -26,7 +26,7 @@ ${analysisParametersUsage}
 
 /** `heatpath degradation`: returns the exit code; writes the report to `print`. */
 export async function runDegradationCommand(argv: string[], print: (text: string) => void): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, {
+  const { values, positionals } = parseCommandLine('degradation', argv, {
     ...analysisOptions,
     'rth-rise-limit-percent': { type: 'string' },
     format: { type: 'string' },

@@ -9,6 +9,7 @@ import { runDegradationCommand } from './degradation-command.js';
 import { runReprocessCommand } from './reprocess-command.js';
 import { runRthjcCommand } from './rthjc-command.js';
 import { runSubmitCommand } from './submit-command.js';
+import { closestName } from './closest-name.js';
 
 const overview = `heatpath ${HEATPATH_VERSION}: thermal transient analysis
 
@@ -50,7 +51,8 @@ export async function main(argv: string[]): Promise<number> {
   }
   const command = commands[name];
   if (!command) {
-    process.stderr.write(`heatpath: unknown command "${name.slice(0, 40)}". Run \`heatpath --help\` for the commands.\n`);
+    const meant = closestName(name, Object.keys(commands));
+    process.stderr.write(`heatpath: unknown command "${name.slice(0, 40)}".${meant ? ` Did you mean \`heatpath ${meant}\`?` : ''} Run \`heatpath --help\` for the commands.\n`);
     return 2;
   }
   try {

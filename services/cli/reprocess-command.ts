@@ -55,7 +55,7 @@ export async function runReprocessCommand(
   print: (text: string) => void = (text) => process.stdout.write(`${text}\n`),
   stop?: AbortSignal,
 ): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, {
+  const { values, positionals } = parseCommandLine('reprocess', argv, {
     ...uploadOptionSpecs,
     local: { type: 'boolean' },
     out: { type: 'string' },

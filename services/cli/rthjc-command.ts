@@ -29,7 +29,7 @@ ${analysisParametersUsage}
 
 /** `heatpath rthjc`: returns the exit code; writes the report to `print`. */
 export async function runRthjcCommand(argv: string[], print: (text: string) => void): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, {
+  const { values, positionals } = parseCommandLine('rthjc', argv, {
     ...analysisOptions,
     'epsilon-slope': { type: 'string' },
     'epsilon-offset-k-per-w': { type: 'string' },

@@ -19,7 +19,7 @@ precedence), 1 the server could not be reached.`;
 
 /** `heatpath submit`: for bench scripts. Errors are one line per file on stderr. */
 export async function runSubmitCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, { ...uploadOptionSpecs, help: { type: 'boolean', short: 'h' } });
+  const { values, positionals } = parseCommandLine('submit', argv, { ...uploadOptionSpecs, help: { type: 'boolean', short: 'h' } });
   if (values.help) {
     print(submitUsage);
     return 0;

@@ -50,7 +50,7 @@ export const errorCatalogue = {
   NUMERICS_NOT_CONVERGED: { status: 500, title: 'A numerical routine did not converge', hint: 'This is a heatpath defect: report the input file and the analysis parameters to the maintainers.' },
 
   // ---- CLI usage ----
-  CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and options.' },
+  CLI_USAGE: { status: 400, title: 'The command line is not valid', hint: 'Run `heatpath --help` for the commands and `heatpath COMMAND --help` for the options of one.' },
   FILE_NOT_READABLE: { status: 400, title: 'A file cannot be read', hint: 'Check the path and its permissions.' },
   FILE_NOT_WRITABLE: { status: 400, title: 'An output file or folder cannot be written', hint: 'Choose an output path (--out) inside a folder you may write to, on a disk with room; for standard output, a destination that takes it.' },
 
