@@ -38,7 +38,8 @@ const print = (text: string) => void printed.push(text);
 async function writeTransient(name: string, seed: number): Promise<string> {
   const path = join(workDir, name);
   await mkdir(join(path, '..'), { recursive: true });
-  await writeFile(path, seed < 0 ? 'time_s,temperature_C\n' : syntheticTransientCsv(seed));
+  // seed < 0: a file with a cell that is not a number, on line 3.
+  await writeFile(path, seed < 0 ? 'time_s,temperature_C\n1e-6,88.1\n2e-6,88.1x\n' : syntheticTransientCsv(seed));
   return path;
 }
 
@@ -108,6 +109,8 @@ describe('heatpath reprocess', () => {
       ['D2/t2.csv', 'ok'],
     ]);
     expect(printed.at(-1)).toMatch(/3 files: 2 ok, 1 rejected, 0 failed \(0 done before\)/);
+    // The summary keeps where the bad cell is, as `analyze` prints it.
+    expect(summary[2]).toMatch(/INPUT_NOT_NUMERIC: .*broken\.csv, line 3, column temperature_C: .*88\.1x/);
 
     const stateLines = (await readFile(join(out, 'reprocess-state.jsonl'), 'utf8')).trim().split('\n').length;
     expect(await runReprocessCommand(args, print)).toBe(2);

@@ -9,6 +9,7 @@ import { analyzeFiles } from './analyze-command.js';
 import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
+import { userErrorLine } from './user-error-line.js';
 import { readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
 import { uploadTransient, type UploadTarget } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
@@ -42,7 +43,8 @@ const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
 /** Exit code of a run stopped by Ctrl-C: 128 + SIGINT, as shells report it. */
 const EXIT_INTERRUPTED = 130;
 
-type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail'>;
+/** A file's outcome; `problem` is the one stderr line of a rejected or failed file, as `analyze` prints it. */
+type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail'> & { problem?: string };
 type Processor = (path: string, relativePath: string, bytes: Buffer, job: { jobId: string; parsed?: TransientFile }) => Promise<Processed>;
 
 /**
@@ -115,18 +117,19 @@ export async function runReprocessCommand(
       const note = earlier && earlier.status !== 'failed' ? `redone: ${reason}` : undefined;
       if (note) redone++;
       const processed = await processFile(path, relativePath, bytes, job);
+      const { problem, ...result } = processed;
       const outcome: FileOutcome = {
         file: relativePath,
         sha256,
         key: job.jobId,
         target,
-        ...processed,
-        detail: note ? `${note}; ${processed.detail}` : processed.detail,
+        ...result,
+        detail: note ? `${note}; ${result.detail}` : result.detail,
       };
       outcomes.set(relativePath, outcome);
       thisRun.set(relativePath, outcome);
       await appendOutputFile(join(outDir, STATE_FILE), JSON.stringify(outcome) + '\n');
-      progress.record(relativePath, outcome.status, note);
+      progress.record(relativePath, outcome.status, note, problem);
     }
   };
   try {
@@ -208,9 +211,13 @@ function resultFolderOf(relativePaths: string[]): (relativePath: string) => stri
   };
 }
 
+/** The summary's detail keeps the whole message, with the line and column, so the cell can be found among thousands of files. */
 function failureOf(error: unknown): Processed {
-  if (isHeatpathError(error)) return { status: error.status < 500 ? 'rejected' : 'failed', job_id: '', detail: `${error.code}: ${error.detail}` };
-  return { status: 'failed', job_id: '', detail: (error as Error).message ?? String(error) };
+  if (isHeatpathError(error)) {
+    return { status: error.status < 500 ? 'rejected' : 'failed', job_id: '', detail: `${error.code}: ${error.message}`, problem: userErrorLine('reprocess', error) };
+  }
+  const message = (error as Error)?.message ?? String(error);
+  return { status: 'failed', job_id: '', detail: message, problem: `heatpath reprocess: ${message}` };
 }
 
 /** The archive's folder naming is the lab's sample naming: use the file's folder. */
@@ -249,14 +256,16 @@ class ProgressReport {
 
   constructor(private readonly total: number) {}
 
-  /** note: 'done before', why the file was done again, or nothing. */
-  record(file: string, status: FileOutcome['status'], note: string | undefined): void {
+  /** note: 'done before', why the file was done again, or nothing; problem: the error line of a rejected or failed file. */
+  record(file: string, status: FileOutcome['status'], note: string | undefined, problem?: string): void {
     this.done++;
     this.counts[status]++;
     if (!this.tty) {
-      process.stderr.write(`${this.done}/${this.total} ${status}${note ? ` (${note})` : ''} ${file}\n`);
+      process.stderr.write(`${this.done}/${this.total} ${status}${note ? ` (${note})` : ''} ${file}\n${problem ? `${problem}\n` : ''}`);
       return;
     }
+    // Above the bar, which is drawn again below it.
+    if (problem) process.stderr.write(`\r\x1b[K${problem}\n`);
     const width = 30;
     const filled = this.total === 0 ? width : Math.round((this.done / this.total) * width);
     process.stderr.write(
