@@ -54,8 +54,10 @@ describe('loadServiceConfig', () => {
     expect(error.message).toContain('PORT');
     expect(error.message).toContain('REDIS_URL');
     // One problem a line, and what to do on a line of its own.
-    expect(error.message).toMatch(/\n  - [^\n]*REDIS_URL[^\n]*\nFix the environment variables/);
-    // Keys are checked only once the plain variables are valid.
+    expect(error.message).toMatch(/\n  - [^\n]*REDIS_URL[^\n]*\n  - /);
+    expect(error.message).toMatch(/\n  - [^\n]*\nFix the environment variables/);
+    // The keys are checked beside the plain variables, so one start names every problem.
+    expect(error.message).toMatch(/4 problems:[\s\S]*PORT[\s\S]*REDIS_URL[\s\S]*role "boss"[\s\S]*shorter than 16/);
     expect(configError({ HEATPATH_API_KEYS: 'x:boss:short,y' }).message).toMatch(/role "boss"[\s\S]*shorter than 16[\s\S]*entry 2 is not name:role:token/);
   });
 

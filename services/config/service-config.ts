@@ -81,7 +81,8 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { serves
   // Numbers are read strictly (PORT=80.5 or HEATPATH_RATE_LIMIT_PER_MINUTE=1.5 is an error, not 80 or 1).
   const converted = Value.Default(ServiceEnvSchema, typedFieldsFromText(ServiceEnvSchema, given));
   const problems = plainValidationIssues(Value.Errors(ServiceEnvSchema, converted), '').map((issue) => describeEnvProblem(issue.field, issue.message, given));
-  const keys = servesApi && Value.Check(ServiceEnvSchema, converted) ? loadApiKeys(converted, problems) : [];
+  // Checked whatever else is wrong, so that one start lists every problem.
+  const keys = servesApi ? loadApiKeys(given.HEATPATH_API_KEYS as string | undefined, given.HEATPATH_API_KEYS_FILE as string | undefined, problems) : [];
   for (const entry of String(given.HEATPATH_WEBHOOK_ALLOWLIST ?? '').split(',').map((item) => item.trim()).filter(Boolean)) {
     if (!/^https?:\/\/[^/]+/i.test(entry) || !URL.canParse(entry)) {
       problems.push(`HEATPATH_WEBHOOK_ALLOWLIST entry ${JSON.stringify(entry)} is not an origin: write scheme://host:port, for example http://lims.lab.local:8080`);
@@ -123,22 +124,22 @@ function describeEnvProblem(instancePath: string, message: string, given: Record
   return `${name} ${message}${value}${description ? `: ${description}` : ''}`;
 }
 
-function loadApiKeys(env: ServiceEnv, problems: string[]): ApiKey[] {
-  if (env.HEATPATH_API_KEYS !== undefined && env.HEATPATH_API_KEYS_FILE !== undefined) {
+function loadApiKeys(keyList: string | undefined, keysFile: string | undefined, problems: string[]): ApiKey[] {
+  if (keyList !== undefined && keysFile !== undefined) {
     problems.push('HEATPATH_API_KEYS and HEATPATH_API_KEYS_FILE are both set: set only one.');
     return [];
   }
-  if (env.HEATPATH_API_KEYS_FILE !== undefined) {
+  if (keysFile !== undefined) {
     let text: string;
     try {
-      text = readFileSync(env.HEATPATH_API_KEYS_FILE, 'utf8');
+      text = readFileSync(keysFile, 'utf8');
     } catch (error) {
-      problems.push(`HEATPATH_API_KEYS_FILE: cannot read ${env.HEATPATH_API_KEYS_FILE} (${(error as Error).message}).`);
+      problems.push(`HEATPATH_API_KEYS_FILE: cannot read ${keysFile} (${(error as Error).message}).`);
       return [];
     }
     return collect(parseApiKeyList(text, 'HEATPATH_API_KEYS_FILE'), problems);
   }
-  if (env.HEATPATH_API_KEYS !== undefined) return collect(parseApiKeyList(env.HEATPATH_API_KEYS, 'HEATPATH_API_KEYS'), problems);
+  if (keyList !== undefined) return collect(parseApiKeyList(keyList, 'HEATPATH_API_KEYS'), problems);
   problems.push('No API keys: set HEATPATH_API_KEYS=name:role:token[,...] or HEATPATH_API_KEYS_FILE (roles: bench, reader, admin; tokens of 16 or more characters, e.g. from `openssl rand -hex 24`).');
   return [];
 }
