@@ -90,6 +90,9 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(report.reference.cycle_count).toBe(20000);
     expect(report.later.map((row: { cycle_count: number }) => row.cycle_count)).toEqual([0, 40000, 60000]);
     expect(report.later[2].rth_rise_exceeds_limit).toBe(true);
+    // The 0-cycle measurement is compared with a later reference: said, so its change is not read forwards.
+    expect(report.warnings).toEqual([expect.stringMatching(/^the reference asked for, upload \S+ \(20000 cycles\), is not the sample's earliest measurement: 1 earlier one \(0 cycles\) is listed under later too/)]);
+    expect((await trend()).json().warnings).toEqual([]);
 
     expect((await trend('?channel=M99')).json().code).toBe('DEGRADATION_TOO_FEW_RESULTS');
     expect((await trend('?reference_upload_id=upl-nobody')).statusCode).toBe(404);

@@ -83,6 +83,13 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
   }
+  if (options.reference_upload_id !== undefined && referenceIndex > 0) {
+    const earlier = measurements.slice(0, referenceIndex).map((m) => m.upload.cycle_count ?? 'unknown');
+    warnings.push(
+      `the reference asked for, upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), is not the sample's earliest measurement: ` +
+        `${earlier.length} earlier one${earlier.length > 1 ? 's' : ''} (${earlier.join(', ')} cycles) ${earlier.length > 1 ? 'are' : 'is'} listed under later too, where a change reads backwards in time`,
+    );
+  }
   return {
     sample_id: sampleId,
     channel,
