@@ -19,15 +19,23 @@
  * ceramic starts at 0.147 K/W, the baseplate solder at 0.320 K/W), and the
  * added R is within 5 % (measured within 2.5 % over six seeds for cracks
  * adding 0.09 and 0.18 K/W, with the bayes and the posterior-mean
- * deconvolution). The detection limit: a crack adding 0.03 K/W (2.7 % of Rth)
- * sits at the noise-aware threshold (0.012 .. 0.022 K/W) and was placed at the
- * attach in four of six seeds, so it is checked on exact curves only.
+ * deconvolution). The detection limit: a crack adding 0.032 K/W (2.7 % of
+ * Rth, attach at 70 % conductivity) sits at the 1 %-of-Rth floor of the
+ * threshold (0.0117 K/W) and was placed inside the attach in six of six seeds
+ * (22, 23, 25 .. 28; measured before and after the median-based noise
+ * estimate); in this file it is checked on exact curves.
+ *
+ * The noise estimate and the location check are also tested on constructed
+ * pairs of curves: R_sum(C) = C / (100 J/K per K/W) (a homogeneous layer, on
+ * which the common grid's linear reading is exact), sampled 20 per decade,
+ * with a chosen dR added; the expected values follow from that construction.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { SIC_POWER_MODULE_STACK } from '../shared/models/example-stacks.js';
 import { layeredStackTruth, type StackTruth } from '../shared/models/layered-stack.js';
 import type { InterfaceMeasurement } from '../shared/numerics/dual-interface-rthjc.js';
 import { structureFunctionShift } from '../shared/numerics/structure-function-shift.js';
+import type { CumulativeStructureFunction } from '../shared/numerics/structure-function.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { analysedStackMeasurement, rSumThroughLayer } from './support/stack-measurement.js';
 import { withLayerConductivity } from './support/stack-variants.js';
@@ -86,12 +94,13 @@ describe('structure-function shift of a cracking die attach', () => {
     const shift = structureFunctionShift(measuredReference.structure, analysedStackMeasurement(reference, 24).structure);
     expect(shift.start).toBeNull();
     expect(shift.settled_shift_K_per_W).toBeNull();
-    expect(shift.warnings.some((w) => w.includes('the structure functions do not part'))).toBe(true);
-    // Two deconvolutions of 0.01 K noise leave wiggles of several mK/W (0.008 K/W here): the noise-aware
-    // threshold rises above the 1 %-of-Rth floor (0.0117 K/W) to three times that.
-    expect(shift.scatter_K_per_W).toBeGreaterThan(0.002);
-    expect(shift.scatter_K_per_W).toBeLessThan(0.02);
-    expect(shift.threshold_K_per_W).toBeGreaterThan(0.01 * measuredReference.structure.r_K_per_W.at(-1)!);
+    expect(shift.warnings.some((w) => w.includes(`no shift above the detection limit of ${shift.threshold_K_per_W.toPrecision(2)} K/W at this noise`))).toBe(true);
+    // Most negative values of dR lie next to the junction, where two deconvolutions of 0.01 K noise agree
+    // to about 1 mK/W (measured 0.0012 K/W); the threshold is then the 1 %-of-Rth floor (0.0117 K/W),
+    // and the persistence test keeps the larger wiggles further out from being taken for a layer.
+    expect(shift.scatter_K_per_W).toBeGreaterThan(0.0002);
+    expect(shift.scatter_K_per_W).toBeLessThan(0.004);
+    expect(shift.threshold_K_per_W).toBeCloseTo(0.01 * measuredReference.structure.r_K_per_W.at(-1)!, 10);
   });
 
   it('warns when the curves differ from the junction on (an offset, not a layer)', () => {
@@ -101,7 +110,44 @@ describe('structure-function shift of a cracking die attach', () => {
     expect(shift.warnings.some((w) => w.includes('next to the junction'))).toBe(true);
   });
 
+  it('one deep spike among small negative values does not set the threshold (constructed curves)', () => {
+    // 15 values of -0.002 K/W next to the junction, a step of 0.03 K/W from node 40, one spike of -0.07 K/W at node 80.
+    const dR = Float64Array.from({ length: 101 }, (_, k) => (k < 30 ? (k % 2 === 0 ? 0.002 : -0.002) : k >= 40 ? 0.03 : 0));
+    dR[80] = -0.07;
+    const shift = structureFunctionShift(...constructedPair(dR));
+    // Median of |negative dR| over 16 values is 0.002 K/W; the RMS would be 0.0176 K/W and the threshold 0.053 K/W, above the step.
+    expect(shift.scatter_K_per_W).toBeCloseTo(1.4826 * 0.002, 6);
+    expect(shift.threshold_K_per_W).toBeCloseTo(0.01, 6);
+    expect(shift.start?.grid_index).toBe(40);
+    expect(shift.settled_shift_K_per_W).toBeCloseTo(0.03, 10);
+    expect(shift.warnings).toEqual([]);
+  });
+
+  it('says the location is not well determined when noise dips below the threshold after the layer (constructed curves)', () => {
+    // A step of 0.03 K/W from node 40, but every third value from node 42 to 72 back at 0: no run of five points
+    // above the threshold starts before node 73, while a least-squares step fits at node 40 (each dip costs less
+    // than the two points above it gain).
+    const dR = Float64Array.from({ length: 101 }, (_, k) => (k >= 40 && !(k >= 42 && k <= 72 && (k - 42) % 3 === 0) ? 0.03 : 0));
+    const [reference, later] = constructedPair(dR);
+    const shift = structureFunctionShift(reference, later);
+    expect(shift.start?.grid_index).toBe(73);
+    expect(shift.settled_shift_K_per_W).toBeCloseTo(0.03, 10);
+    const warning = shift.warnings.find((w) => w.startsWith('where the shift starts is not well determined at this noise'));
+    expect(warning).toContain(`fits best at C_sum ${shift.c_J_per_K[40].toPrecision(3)} J/K`);
+    // The same step without the dips: both readings agree, no warning.
+    const clean = structureFunctionShift(reference, constructedPair(Float64Array.from(dR, (_, k) => (k >= 40 ? 0.03 : 0)))[1]);
+    expect(clean.start?.grid_index).toBe(40);
+    expect(clean.warnings).toEqual([]);
+  });
+
   it('rejects a negative threshold with PARAM_INVALID', () => {
     expect(catchHeatpathError(() => structureFunctionShift(reference.structure, reference.structure, { minimumShift_K_per_W: -1 })).code).toBe('PARAM_INVALID');
   });
 });
+
+/** R_sum(C) = C / 100 on 20 nodes per decade from 1e-3 J/K, and the same plus dR: a pair whose common grid is these nodes. */
+function constructedPair(dR_K_per_W: Float64Array): [CumulativeStructureFunction, CumulativeStructureFunction] {
+  const c_J_per_K = Float64Array.from(dR_K_per_W, (_, k) => 1e-3 * 10 ** (k / 20));
+  const r_K_per_W = Float64Array.from(c_J_per_K, (c) => c / 100);
+  return [{ c_J_per_K, r_K_per_W }, { c_J_per_K, r_K_per_W: Float64Array.from(r_K_per_W, (r, k) => r + dR_K_per_W[k]) }];
+}

@@ -24,12 +24,27 @@
  *
  * The noise of dR is read from its negative side: a layer can only add
  * resistance (and in the dual-interface use the worse interface only adds),
- * so values of dR below zero are noise alone, and for zero-mean symmetric
- * noise their RMS estimates its standard deviation. Point-to-point estimators
- * (third differences, as in noise-estimate.ts) would miss the slow wiggles
- * that two independent deconvolutions leave, which are the larger part. The defaults were
- * chosen on synthetic layered stacks (test/structure-function-shift.test.ts),
- * not taken from a standard: they are parameters.
+ * so values of dR below zero are noise alone. For zero-mean symmetric noise
+ * of standard deviation sigma, |dR| there is half-normal with median
+ * 0.6745 sigma, so sigma = 1.4826 x median(|dR < 0|): the median absolute
+ * deviation about the known centre 0, with the normal consistency factor
+ * 1 / Phi^-1(3/4) (Hampel, JASA 69, 1974; Rousseeuw & Croux, JASA 88, 1993)
+ * *(memory)*. Its breakdown point is 50 %: one spike at a steep point (a cold
+ * plate's 0.07 K/W dip among values of a few mK/W) cannot set the threshold,
+ * as it did with the RMS this replaces. With a shift present the negative
+ * values are those where the noise beat the shift, so the estimate errs high:
+ * the threshold then errs on the side of no detection. Point-to-point
+ * estimators (third differences, as in noise-estimate.ts) would miss the slow
+ * wiggles that two independent deconvolutions leave, which are the larger part.
+ *
+ * Where the shift starts is read twice: where it first exceeds the threshold
+ * for good, and where a step from 0 to the settled shift fits dR best in
+ * least squares. A clear step gives both within a few grid points; when noise
+ * dips below the threshold after the layer, the first lands layers too far,
+ * and the two disagreeing is reported: the location is then not well determined.
+ * The defaults were chosen on synthetic layered stacks
+ * (test/structure-function-shift.test.ts), not taken from a standard: they
+ * are parameters.
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { median } from './median.js';
@@ -45,7 +60,7 @@ export interface StructureFunctionShiftOptions {
   minimumShift_K_per_W?: number;
   /** ... and at least this fraction of the reference's R total. */
   minimumShiftFraction?: number;
-  /** ... and at least this many times the noise of dR (the RMS of its negative values). */
+  /** ... and at least this many times the noise of dR (1.4826 x the median of |dR| over its negative values). */
   scatterFactor?: number;
   /** The excess must persist over this many decades of C_sum ... */
   persistDecades?: number;
@@ -53,6 +68,8 @@ export interface StructureFunctionShiftOptions {
   remainingFraction?: number;
   /** The settled shift is the median of dR from this many decades beyond the start to the end of the common range. */
   settleDecades?: number;
+  /** Warn that the location is not well determined when the threshold crossing and the best-fitting step lie more than this many decades of C_sum apart. */
+  locationDecades?: number;
 }
 
 export const STRUCTURE_FUNCTION_SHIFT_DEFAULTS: Required<StructureFunctionShiftOptions> = {
@@ -63,6 +80,7 @@ export const STRUCTURE_FUNCTION_SHIFT_DEFAULTS: Required<StructureFunctionShiftO
   persistDecades: 0.25,
   remainingFraction: 0.9,
   settleDecades: 0.3,
+  locationDecades: 0.25,
 };
 
 const MIN_NEGATIVE_POINTS = 3;
@@ -74,7 +92,7 @@ export interface StructureFunctionShift {
   later_r_K_per_W: Float64Array;
   /** dR(C) = R_later(C) - R_ref(C). */
   shift_K_per_W: Float64Array;
-  /** Noise of dR: the RMS of its negative values (0 when fewer than three are negative). */
+  /** Noise of dR: 1.4826 x the median of |dR| over its negative values (0 when fewer than three are negative). */
   scatter_K_per_W: number;
   /** The threshold the shift had to exceed. */
   threshold_K_per_W: number;
@@ -102,7 +120,7 @@ export function structureFunctionShift(
   const rth_change_K_per_W = later.r_K_per_W[later.r_K_per_W.length - 1] - referenceTotal;
   const warnings: string[] = [];
 
-  const scatter_K_per_W = negativeSideRms(shift_K_per_W);
+  const scatter_K_per_W = negativeSideScale(shift_K_per_W);
   const threshold_K_per_W = Math.max(settings.minimumShift_K_per_W, settings.minimumShiftFraction * referenceTotal, settings.scatterFactor * scatter_K_per_W);
   const persistPoints = Math.max(2, Math.round(settings.persistDecades * settings.pointsPerDecade));
   const excess = Float64Array.from(shift_K_per_W, (d) => d - threshold_K_per_W);
@@ -111,7 +129,10 @@ export function structureFunctionShift(
   let start: StructureFunctionShift['start'] = null;
   let settled_shift_K_per_W: number | null = null;
   if (found === null) {
-    warnings.push(`no shift above ${threshold_K_per_W.toPrecision(2)} K/W persists (over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond): the structure functions do not part`);
+    warnings.push(
+      `no shift above the detection limit of ${threshold_K_per_W.toPrecision(2)} K/W at this noise (noise of the shift ${scatter_K_per_W.toPrecision(2)} K/W) persists ` +
+        `over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond: a layer that added less cannot be told from noise`,
+    );
   } else {
     start = { c_J_per_K: logInterpolate(c_J_per_K, found.position), reference_r_K_per_W: valueAtPosition(refR, found.position), grid_index: found.index };
     if (found.index === 0) {
@@ -120,6 +141,14 @@ export function structureFunctionShift(
     const settleFrom = found.index + Math.round(settings.settleDecades * settings.pointsPerDecade);
     if (settleFrom < count) {
       settled_shift_K_per_W = median(shift_K_per_W.slice(settleFrom));
+      const step = leastSquaresStepIndex(shift_K_per_W, settled_shift_K_per_W);
+      if (Math.abs(step - found.index) > settings.locationDecades * settings.pointsPerDecade) {
+        warnings.push(
+          `where the shift starts is not well determined at this noise: it exceeds the threshold for good from C_sum ${start.c_J_per_K.toPrecision(3)} J/K (R_sum ${start.reference_r_K_per_W.toPrecision(3)} K/W), ` +
+            `but a step to the settled ${settled_shift_K_per_W.toPrecision(2)} K/W fits best at C_sum ${c_J_per_K[step].toPrecision(3)} J/K (R_sum ${refR[step].toPrecision(3)} K/W); ` +
+            'the added R holds, but which layer degraded is uncertain: repeat both measurements or average several to place it',
+        );
+      }
     } else {
       warnings.push(`the shift starts within ${settings.settleDecades} decades of the end of the common C_sum range: its settled value cannot be read`);
     }
@@ -138,17 +167,30 @@ export function structureFunctionShift(
   };
 }
 
-/** RMS of the negative values; 0 when there are fewer than MIN_NEGATIVE_POINTS of them (no noise to speak of). */
-function negativeSideRms(values: Float64Array): number {
-  let sum = 0;
-  let count = 0;
-  for (const value of values) {
-    if (value < 0) {
-      sum += value * value;
-      count++;
+/** 1.4826 x the median of |negative values| (see the header); 0 when there are fewer than MIN_NEGATIVE_POINTS of them. */
+function negativeSideScale(values: Float64Array): number {
+  const magnitudes: number[] = [];
+  for (const value of values) if (value < 0) magnitudes.push(-value);
+  return magnitudes.length >= MIN_NEGATIVE_POINTS ? 1.4826 * median(Float64Array.from(magnitudes)) : 0;
+}
+
+/**
+ * Where a step from 0 to `settled` fits dR best in least squares: the sum of
+ * squares left of k (about 0) and right of k (about settled) is
+ * const - 2 settled sum_{j>=k} (dR_j - settled / 2), so the best k maximises that tail sum.
+ */
+function leastSquaresStepIndex(shift_K_per_W: Float64Array, settled_K_per_W: number): number {
+  let best = shift_K_per_W.length - 1;
+  let bestSum = -Infinity;
+  let tail = 0;
+  for (let k = shift_K_per_W.length - 1; k >= 0; k--) {
+    tail += shift_K_per_W[k] - settled_K_per_W / 2;
+    if (tail >= bestSum) {
+      bestSum = tail;
+      best = k;
     }
   }
-  return count >= MIN_NEGATIVE_POINTS ? Math.sqrt(sum / count) : 0;
+  return best;
 }
 
 /** A grid that is uniform in log C, read at a fractional position: geometric between neighbours. */
