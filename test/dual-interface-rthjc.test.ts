@@ -68,6 +68,17 @@ describe('dual interface Rth-JC, SiC power module (case surface: the end of the 
     expect(result.zth_criterion.delta_noise_K_per_W).toBeLessThan(2e-4);
   });
 
+  it('measures the disagreement of the two criteria against the smaller estimate', () => {
+    const result = dualInterfaceRthjc(dry, greased);
+    const [a, b] = [result.zth_criterion.rthjc_K_per_W!, result.structure_criterion.rthjc_K_per_W!];
+    const gap = Math.abs(a - b);
+    expect(gap).toBeGreaterThan(0);
+    // A limit between the gap relative to the mean and relative to the smaller value: only the latter exceeds it.
+    const limit = (gap / ((a + b) / 2) + gap / Math.min(a, b)) / 2;
+    const judged = dualInterfaceRthjc(dry, greased, { agreementFraction: limit });
+    expect(judged.warnings.some((w) => w.startsWith(`the two criteria disagree by ${((100 * gap) / Math.min(a, b)).toFixed(0)} %`))).toBe(true);
+  });
+
   it('finds no separation between two measurements of the same setup with independent noise', () => {
     const again = analysedStackMeasurement(module.greasedTruth, 13);
     const result = dualInterfaceRthjc(again, greased);

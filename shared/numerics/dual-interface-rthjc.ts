@@ -64,7 +64,7 @@ export interface DualInterfaceOptions {
   persistPoints?: number;
   /** ... and at this fraction or more of the grid points from there to the end. */
   remainingFraction?: number;
-  /** Warn when the two estimates differ by more than this fraction of their mean. */
+  /** Warn when the two estimates differ by more than this fraction of the smaller one. */
   agreementFraction?: number;
   /** The structure-function criterion's threshold and grid. */
   structure?: StructureFunctionShiftOptions;
@@ -166,7 +166,8 @@ export function dualInterfaceRthjc(first: InterfaceMeasurement, second: Interfac
   }
 
   if (zthRthjc !== null && structureRthjc !== null) {
-    const disagreement = Math.abs(zthRthjc - structureRthjc) / ((zthRthjc + structureRthjc) / 2);
+    // Against the smaller estimate: relative to the mean, the estimate that is off would enlarge the yardstick it is judged by.
+    const disagreement = Math.abs(zthRthjc - structureRthjc) / Math.min(zthRthjc, structureRthjc);
     if (disagreement > settings.agreementFraction) {
       warnings.push(`the two criteria disagree by ${(100 * disagreement).toFixed(0)} % (more than ${(100 * settings.agreementFraction).toFixed(0)} %): check the interfaces, the clamping and the early-time correction; repeat the measurement`);
     }
