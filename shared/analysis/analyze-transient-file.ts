@@ -59,6 +59,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const inputWarnings = [
     ...headerWarnings,
     ...sharedCalibrationWarning(file),
+    ...sharedPowerWarning(file, power_W),
     ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
@@ -82,6 +83,20 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
       throw error;
     }
   });
+}
+
+/**
+ * A file carries one heating power for all its channels, but devices in
+ * series at the same current dissipate different powers: each result says
+ * which power it was analysed with and how to give each device its own.
+ */
+function sharedPowerWarning(file: TransientFile, power_W: number | null): string[] {
+  if (power_W === null || file.channels.length < 2) return [];
+  const names = file.channels.map((channel) => `${file.quantity}@${channel.name}`).join(', ');
+  return [
+    `every channel of this file (${names}) was analysed with the same heating power of ${power_W} W: ` +
+      'if the devices dissipated different powers (for example in series at the same current), their Zth is wrong; split the file into one file per channel (or upload each channel on its own) and give each its power.',
+  ];
 }
 
 /**
