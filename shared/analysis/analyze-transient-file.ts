@@ -47,7 +47,7 @@ export interface TransientFileInput {
  */
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
   const file = input.parsed ?? parseTransient(input.bytes, input.fileName, input.format);
-  const { parameters, power, warnings: headerWarnings } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
+  const { parameters, power, channelPowers, warnings: headerWarnings } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
   if (file.quantity === 'voltage_V' && !input.calibration) {
     throw new HeatpathError('CALIBRATION_REQUIRED', `${file.channels.length} voltage_V channel(s) and no calibration`, { file: input.fileName });
   }
@@ -59,7 +59,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const inputWarnings = [
     ...headerWarnings,
     ...sharedCalibrationWarning(file),
-    ...sharedPowerWarning(file, power_W),
+    ...(channelPowers ? [] : sharedPowerWarning(file, power_W)),
     ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
@@ -75,7 +75,9 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   return file.channels.map((channel) => {
     const context = { file: input.fileName, column: file.channels.length > 1 ? `${file.quantity}@${channel.name}` : file.quantity };
     try {
-      return analyzeChannel(file, channel.values, channel.name, parameters, power_W, calibration, provenance, input.fileName, inputWarnings);
+      const channelPower = channelPowers?.get(channel.name);
+      const channelPower_W = channelPower ? heatingPower_W(channelPower) : power_W;
+      return analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, provenance, input.fileName, inputWarnings);
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) {
         throw new HeatpathError(error.code, error.detail, context);
@@ -95,7 +97,7 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
   const names = file.channels.map((channel) => `${file.quantity}@${channel.name}`).join(', ');
   return [
     `every channel of this file (${names}) was analysed with the same heating power of ${power_W} W: ` +
-      'if the devices dissipated different powers (for example in series at the same current), their Zth is wrong; split the file into one file per channel (or upload each channel on its own) and give each its power.',
+      `if the devices dissipated different powers (for example in series at the same current), their Zth is wrong; give each channel its power in the file (a "# power_W@${file.channels[0].name}: ..." line per channel), or split the file into one file per channel.`,
   ];
 }
 

@@ -11,15 +11,48 @@ import { heatingPower_W } from '../numerics/zth-from-temperature.js';
  * and voltage_V), else the schema defaults. The CLI, the pipeline and the
  * service's upload route all resolve them here, so a job's id and provenance
  * name exactly what was computed.
+ *
+ * A file of several channels may give each its own power (`# power_W@M21:`,
+ * or `# current_A@M21:` with `# voltage_V@M21:`), as devices in series at one
+ * current dissipate different powers: then `channelPowers` holds one per
+ * channel (a channel without a line of its own takes the file's `# power_W:`)
+ * and `power` is undefined, unless the caller gave one, which is used for
+ * every channel.
  */
 export function resolveAnalysisInputs(
   file: TransientFile,
   given: { parameters?: Partial<AnalysisParameters>; power?: Power },
   fileName: string,
-): { parameters: AnalysisParameters; power: Power | undefined; warnings: string[] } {
+): { parameters: AnalysisParameters; power: Power | undefined; channelPowers: Map<string, Power> | undefined; warnings: string[] } {
   const parameters = resolveParameters(given.parameters ?? {}, file, fileName);
-  const power = given.power ?? powerFromMeta(file, fileName, file.quantity !== 'zth_K_per_W');
-  return { parameters, power, warnings: overriddenHeaderLines(file, given, fileName) };
+  const usesPower = file.quantity !== 'zth_K_per_W';
+  const channelPowers = given.power === undefined && usesPower ? channelPowersFromMeta(file, fileName) : undefined;
+  const power = given.power ?? (channelPowers ? undefined : powerFromMeta(file, fileName, usesPower));
+  return { parameters, power, channelPowers, warnings: overriddenHeaderLines(file, given, fileName) };
+}
+
+/** Header keys of a heating power; a channel's own carry `@channel`. */
+const POWER_KEYS = ['power_W', 'current_A', 'voltage_V'] as const;
+
+/** The channels' own powers from `# power_W@CHANNEL:` lines (or current and voltage), undefined when the file has none. */
+function channelPowersFromMeta(file: TransientFile, fileName: string): Map<string, Power> | undefined {
+  const named = Object.keys(file.meta).filter((key) => POWER_KEYS.some((base) => key.startsWith(`${base}@`)));
+  if (named.length === 0) return undefined;
+  const channels = file.channels.map((channel) => channel.name);
+  const stray = named.find((key) => !channels.includes(key.slice(key.indexOf('@') + 1)));
+  if (stray !== undefined) {
+    throw new HeatpathError('POWER_REQUIRED', `the file's "# ${stray}:" line names no channel of the file (its channels: ${channels.join(', ')})`, { file: fileName });
+  }
+  const fileWide = powerFromMeta(file, fileName, false);
+  return new Map(
+    channels.map((name) => {
+      const own = powerFromMeta(file, fileName, false, `@${name}`) ?? fileWide;
+      if (own === undefined) {
+        throw new HeatpathError('POWER_REQUIRED', `channel ${name} has no "# power_W@${name}:" line, and the file no "# power_W:" line for the channels without one of their own`, { file: fileName });
+      }
+      return [name, own];
+    }),
+  );
 }
 
 /**
@@ -44,6 +77,16 @@ function overriddenHeaderLines(file: TransientFile, given: { parameters?: Partia
     const [givenW, fileW] = [heatingPower_W(given.power), filePower === undefined ? undefined : heatingPower_W(filePower)];
     if (fileW !== undefined && Math.abs(givenW / fileW - 1) > POWER_DISAGREEMENT_FRACTION) {
       warnings.push(`a heating power of ${givenW} W was given, and used, where the file's header lines say ${fileW} W`);
+    }
+    let channelPowers: Map<string, Power> | undefined;
+    try {
+      channelPowers = channelPowersFromMeta(file, fileName);
+    } catch {
+      channelPowers = undefined;
+    }
+    if (channelPowers !== undefined) {
+      const own = [...channelPowers].map(([name, power]) => `${name} ${heatingPower_W(power)} W`).join(', ');
+      warnings.push(`a heating power of ${givenW} W was given, and used for every channel, where the file's header lines give each channel its own (${own})`);
     }
   }
   return warnings;
@@ -77,12 +120,12 @@ function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFi
   return merged as AnalysisParameters;
 }
 
-/** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata. */
-function powerFromMeta(file: TransientFile, fileName: string, required: boolean): Power | undefined {
-  const number = (key: string) => (file.meta[key] !== undefined ? metadataNumber(file.meta[key], key) : undefined);
-  const candidate = file.meta.power_W !== undefined
+/** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata; `channel` ("@M21") reads a channel's own lines. */
+function powerFromMeta(file: TransientFile, fileName: string, required: boolean, channel = ''): Power | undefined {
+  const number = (key: string) => (file.meta[key + channel] !== undefined ? metadataNumber(file.meta[key + channel], key) : undefined);
+  const candidate = file.meta[`power_W${channel}`] !== undefined
     ? { power_W: number('power_W') }
-    : file.meta.current_A !== undefined || file.meta.voltage_V !== undefined
+    : file.meta[`current_A${channel}`] !== undefined || file.meta[`voltage_V${channel}`] !== undefined
       ? { current_A: number('current_A'), voltage_V: number('voltage_V') }
       : undefined;
   if (candidate === undefined) {
@@ -90,7 +133,7 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean)
     throw new HeatpathError('POWER_REQUIRED', `${file.quantity} input and no power given or found in the file's metadata`, { file: fileName });
   }
   if (!powerValidator.Check(candidate)) {
-    const lines = Object.keys(candidate).map((key) => `"# ${key}: ${file.meta[key] ?? ''}"`).join(' and ');
+    const lines = Object.keys(candidate).map((key) => `"# ${key}${channel}: ${file.meta[key + channel] ?? ''}"`).join(' and ');
     throw new HeatpathError('POWER_REQUIRED', `the file's ${lines} is not a positive power_W, or current_A with voltage_V, in plain numbers`, { file: fileName });
   }
   return candidate as Power;

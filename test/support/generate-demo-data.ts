@@ -93,10 +93,14 @@ export async function generateDemoData(dir: string = DEMO_DIR): Promise<string[]
   }
   await put('fh-tt2_q12_calibration-points.csv', sweep.join('\n') + '\n');
 
-  // FH-TT1: two modules measured together on one cold plate (one file, two channels).
+  // FH-TT1: two modules in series on one cold plate, heated by one current (one file, two channels):
+  // their forward voltages differ, so each dissipates its own power, given per channel.
   const a = syntheticTransient(module.foster, baseOptions(21, { power_W: 48 }));
-  const b = syntheticTransient(layeredStackTruth(withDieAttachConductivity(SIC_POWER_MODULE_STACK, 0.7)).foster, baseOptions(22, { power_W: 48 }));
-  await put('fh-tt1_m21-m22_cooling.csv', csv({ sample: 'M21+M22', bench: 'FH-TT1', kind: 'cooling', power_W: 48 }, ['time_s', 'temperature_C@M21', 'temperature_C@M22'], a.time_s, [a.values, b.values]));
+  const b = syntheticTransient(layeredStackTruth(withDieAttachConductivity(SIC_POWER_MODULE_STACK, 0.7)).foster, baseOptions(22, { power_W: 49.2 }));
+  await put(
+    'fh-tt1_m21-m22_cooling.csv',
+    csv({ sample: 'M21+M22', bench: 'FH-TT1', kind: 'cooling', 'power_W@M21': 48, 'power_W@M22': 49.2 }, ['time_s', 'temperature_C@M21', 'temperature_C@M22'], a.time_s, [a.values, b.values]),
+  );
 
   // FH-TT1: power-cycling campaign of module M31, re-measured every 20 000 cycles while the die attach cracks.
   const campaign: [number, number][] = [[0, 1], [20000, 0.9], [40000, 0.7], [60000, 0.45]];
