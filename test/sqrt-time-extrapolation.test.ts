@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { extrapolateSqrtTime, MIN_WINDOW_TIME_RATIO } from '../shared/numerics/sqrt-time-extrapolation.js';
+import { extrapolateSqrtTime, LATEST_WINDOW_END_S, MIN_WINDOW_TIME_RATIO } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
@@ -32,8 +32,9 @@ describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)',
     expect(fit.automatic).toBe(true);
     expect(fit.window_start_s).toBeGreaterThanOrEqual(ARTEFACT_END_S);
     expect(fit.window_start_s).toBeLessThan(2 * ARTEFACT_END_S);
-    // The whole curve follows the law, so the window should run to (nearly) the end.
-    expect(fit.window_end_s).toBeGreaterThan(0.5 * times[times.length - 1]);
+    // The whole curve follows the law, so the window runs to 2 ms, after which the law holds for no real chip.
+    expect(fit.window_end_s).toBeLessThanOrEqual(LATEST_WINDOW_END_S);
+    expect(fit.window_end_s).toBeGreaterThan(0.9 * LATEST_WINDOW_END_S);
     expect(Math.abs(fit.y0 - tj0_C)).toBeLessThan(3 * fit.y0_standard_error);
     expect(fit.y0_standard_error).toBeLessThan(noise_K);
     expect(fit.slope_per_sqrt_s / slope_K_per_sqrt_s).toBeCloseTo(1, 2);
@@ -139,13 +140,21 @@ describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)',
     expect(Math.abs(fit.y0 - tj0_C)).toBeLessThan(50 * zthFromFoster(r, tau, Float64Array.of(1e-5))[0] + 0.05);
   });
 
-  it('warns when the window starts after a millisecond, when heat has usually left the chip', () => {
-    const late = logSpacedTimes(2e-3, 1, 100);
-    const values = late.map((t) => tj0_C - power_W * semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K));
-    const { fit } = extrapolateSqrtTime(late, values, { noise_rms: 0, slopeSign: -1 });
-    expect(fit.warnings.join(' ')).toMatch(/starts at 0\.002 s, when heat has usually left the chip/);
+  it('warns when the window starts after 50 us or ends after 2 ms, when heat has crossed a thin or any chip', () => {
+    const semiInfinite = (t: number) => tj0_C - power_W * semiInfiniteZth(t, SILICON_DIE_SLAB.area_m2, SILICON_DIE_SLAB.conductivity_W_per_mK, SILICON_DIE_SLAB.volumetricHeat_J_per_m3K);
+    const from100us = logSpacedTimes(1e-4, 1, 100);
+    const startsLate = extrapolateSqrtTime(from100us, from100us.map(semiInfinite), { noise_rms: 0, slopeSign: -1 });
+    expect(startsLate.fit.warnings.join(' ')).toMatch(/starts at 0\.0001 s, when heat has already crossed a thin chip/);
+    // A record that starts after 2 ms gets the earliest window long enough (1.2 times in time: 9 samples at
+    // 100 per decade), which ends after 2 ms.
+    const from2ms = logSpacedTimes(2e-3, 1, 100);
+    const endsLate = extrapolateSqrtTime(from2ms, from2ms.map(semiInfinite), { noise_rms: 0, slopeSign: -1 });
+    expect([endsLate.fit.window_start_s, endsLate.fit.points]).toEqual([2e-3, 9]);
+    expect(endsLate.fit.warnings.join(' ')).toMatch(/ends at 0\.0024\d* s, after heat has crossed even a 400 um chip/);
+    const given = extrapolateSqrtTime(times, semiInfiniteCooling(0.02, 1), { noise_rms: 0.02, slopeSign: -1, start_s: 1e-5, end_s: 5e-3 });
+    expect(given.fit.warnings.join(' ')).toMatch(/ends at 0\.0048\d* s, after heat has crossed even a 400 um chip/);
     const early = extrapolateSqrtTime(times, semiInfiniteCooling(0.02, 1), { noise_rms: 0.02, slopeSign: -1 });
-    expect(early.fit.warnings.join(' ')).not.toMatch(/left the chip/);
+    expect(early.fit.warnings.join(' ')).not.toMatch(/crossed/);
   });
 
   const bad: [string, Parameters<typeof extrapolateSqrtTime>[2]][] = [

@@ -12,11 +12,15 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * Automatic window: every window [i, j] is tested by its least-squares
  * residual against the noise (reduced chi-square within
  * CHI_SQUARE_Z standard deviations of 1). For each candidate start in the
- * first START_SCAN_DECADES decades the window grows until the test fails;
- * the longest window wins (the earliest start on a tie). Windows that start
- * inside the artefact fail at once or stop at its end, and windows that run
- * past the die stop where the deviation exceeds the noise. If no window
- * passes, the noise allowance is doubled until one does, and the fit says so.
+ * first START_SCAN_DECADES decades the window grows until the test fails
+ * or it reaches LATEST_WINDOW_END_S, after which the law holds for no chip;
+ * the longest window wins (the earliest start on a tie). As all end by the
+ * same time, a later start wins only where earlier ones fail the test.
+ * Windows that start inside the artefact fail at once or stop at its end.
+ * The noise test alone does not stop a window that runs past the die: where
+ * heat spreads in the package the curve can follow a straight line in
+ * sqrt(t) again, for decades. If no window passes, the noise allowance is
+ * doubled until one does, and the fit says so.
  * Prefix sums make each window test O(1), and a start is first tested at the
  * length it would need to win, so most starts cost one test.
  *
@@ -54,13 +58,29 @@ export const SHORT_WINDOW_TIME_RATIO = 3;
 /** A residual above this multiple of the noise gets a warning. */
 export const POOR_FIT_NOISE_RATIO = 2;
 /**
- * A window starting later than this gets a warning: the sqrt(t) law holds
- * only while the heat has not crossed the chip, for power chips of 100 to
- * 400 um some 0.1 to 2 ms (d^2 / alpha with silicon's alpha = 8.8e-5 m^2/s,
- * memory), and windows from some microseconds to a few hundred are common
- * practice. A later start extrapolates over time the law no longer covers.
+ * A window starting later than this gets a warning. The law is that of a
+ * semi-infinite body, so it holds only until the heat reaches the bottom of
+ * the chip. For a chip of thickness d and diffusivity alpha the first image
+ * term of the slab solution (Carslaw & Jaeger 1959, method of images)
+ * changes it by 2 sqrt(pi) ierfc(d / sqrt(alpha t)): 0.4 % at d^2 / (4 alpha),
+ * 18 % at d^2 / alpha. Power chips are some 100 to 400 um thick (memory);
+ * with alpha = 8.8e-5 m^2/s for silicon and 1.7e-4 for SiC (memory),
+ * d^2 / (4 alpha) is 28 us for 100 um of silicon and 48 us for 180 um of
+ * SiC. A later start extrapolates over time the law may no longer cover.
  */
-export const LATE_WINDOW_START_S = 1e-3;
+export const LATE_WINDOW_START_S = 5e-5;
+/**
+ * An automatic window ends by this time, unless it starts too late to hold
+ * MIN_WINDOW_SAMPLES and MIN_WINDOW_TIME_RATIO by then: then it ends as soon
+ * as it does. Later windows, given or found, get a warning. For 400 um of
+ * silicon, the thickest common power chips, d^2 / alpha is 1.8 ms (see
+ * LATE_WINDOW_START_S): after 2 ms the law holds for no chip. A window that
+ * ran on passed the noise test where heat spreads in the tab and the sink
+ * (a TO-247 part's transient from 0.7 to 340 ms fits a straight line in
+ * sqrt(t) within its 0.08 K noise) and, being the longest, won: Tj(0) came
+ * out 0.7 K low and Rth total 7 % low.
+ */
+export const LATEST_WINDOW_END_S = 2e-3;
 
 export interface SqrtTimeOptions {
   /** RMS noise of `values`, in their units (see noise-estimate.ts). */
@@ -136,10 +156,15 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   if (time_s[end] < SHORT_WINDOW_TIME_RATIO * time_s[start]) {
     warnings.push(`the sqrt(t) window ${time_s[start]} s to ${time_s[end]} s is short; the value at t = 0 is poorly anchored`);
   }
-  if (time_s[start] > LATE_WINDOW_START_S) {
+  if (time_s[end] > LATEST_WINDOW_END_S) {
     warnings.push(
-      `the sqrt(t) window starts at ${time_s[start]} s, when heat has usually left the chip; the value at t = 0 may be off and Rth total too low: ` +
-        'measure from a few microseconds after switching, or give the window',
+      `the sqrt(t) window ends at ${time_s[end]} s, after heat has crossed even a 400 um chip (about 2 ms), so the law no longer holds there; ` +
+        'the value at t = 0 may be off, and Rth total with it: give a window that ends before heat crosses your chip (d^2 / alpha), or measure from a few microseconds after switching',
+    );
+  } else if (time_s[start] > LATE_WINDOW_START_S) {
+    warnings.push(
+      `the sqrt(t) window starts at ${time_s[start]} s, when heat has already crossed a thin chip (100 um of silicon by about 30 us); ` +
+        'the value at t = 0 may be off, and Rth total with it: measure from a few microseconds after switching, or give a window that ends before heat crosses your chip (d^2 / alpha)',
     );
   }
   // Physically the value at t = 0 lies beyond the first sample the line fits, on the side the curve comes from
@@ -217,6 +242,8 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
   if (fixedStart !== undefined) starts.push(fixedStart);
   else for (let i = 0; i < count && time_s[i] <= scanLimit_s; i++) starts.push(i);
 
+  // The last sample an automatic end may reach (a sample at 2 ms written as 0.00200000 still counts).
+  const lastEndByLaw = firstIndexAtOrAfterTime(time_s, LATEST_WINDOW_END_S * (1 + 1e-12)) - 1;
   let best: [number, number] | undefined;
   for (const start of starts) {
     let end: number;
@@ -227,18 +254,19 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
     } else {
       end = shortestEnd;
       if (end >= count) continue;
+      const lastEnd = Math.min(count - 1, Math.max(lastEndByLaw, shortestEnd));
       if (best !== undefined) {
         // To win, this start's window must grow past the best length, so it must
         // pass at that end and at every end before it: test the far end first,
         // which rules most starts out in one step, and the rest only then.
         const mustReach = start + (best[1] - best[0]) + 1;
-        if (mustReach >= count || !passes(start, mustReach)) continue;
+        if (mustReach > lastEnd || !passes(start, mustReach)) continue;
         let reaches = true;
         for (let e = mustReach - 1; e >= end && reaches; e--) reaches = passes(start, e);
         if (!reaches) continue;
         end = Math.max(end, mustReach);
       } else if (!passes(start, end)) continue;
-      while (end + 1 < count && passes(start, end + 1)) end++;
+      while (end < lastEnd && passes(start, end + 1)) end++;
     }
     if (best === undefined || end - start > best[1] - best[0]) best = [start, end];
   }
@@ -377,3 +405,4 @@ function fitLine(time_s: Float64Array, values: Float64Array, start: number, end:
     y0Leverage: Math.sqrt(1 / n + (meanX * meanX) / sxx),
   };
 }
+
