@@ -102,7 +102,7 @@ export interface SqrtTimeFit {
   points: number;
   /** Extrapolated value at t = 0. */
   y0: number;
-  /** Standard error of y0 from the noise and the window's leverage. */
+  /** Standard error of y0: the noise through the window's leverage, and how the window bends (bendError). */
   y0_standard_error: number;
   /** b in y = y0 + b sqrt(t), in value units per sqrt(second). */
   slope_per_sqrt_s: number;
@@ -170,11 +170,12 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   // Physically the value at t = 0 lies beyond the first sample the line fits, on the side the curve comes from
   // (a cooling curve starts hotter). A line that ends up on the other side, beyond the noise, does not describe
   // the curve (too few early samples, a record that starts too late): then t = 0 is taken at that first sample.
-  const y0StandardError = noise * line.y0Leverage;
+  const y0NoiseError = noise * line.y0Leverage;
+  const y0StandardError = Math.hypot(y0NoiseError, bendError(time_s, values, start, end, line, noise));
   const wrongSide =
     options.slopeSign !== undefined &&
     Math.sign(line.slope) !== -options.slopeSign &&
-    options.slopeSign * (values[start] - line.y0) < -CHI_SQUARE_Z * Math.hypot(noise, y0StandardError);
+    options.slopeSign * (values[start] - line.y0) < -CHI_SQUARE_Z * Math.hypot(noise, y0NoiseError);
   if (wrongSide) {
     warnings.push(
       `the sqrt(t) line puts the value at t = 0 (${line.y0.toPrecision(6)}) beyond the first sample it fits (${values[start].toPrecision(6)} at ${time_s[start]} s), ` +
@@ -363,6 +364,21 @@ class WindowSums {
     const dof = n - 2;
     return residualSquares <= noise * noise * dof * (1 + CHI_SQUARE_Z * Math.sqrt(2 / dof));
   }
+}
+
+/**
+ * The part of the standard error of the value at t = 0 that the noise does not explain: a window that
+ * runs past where the law holds bends, and the value moves when only its earlier half is fitted. The
+ * shift d has the variance v = noise^2 (leverage_half^2 - leverage^2) from the noise alone (the whole
+ * window's estimate is the efficient one under the law, so the two errors are nested), so d^2 - v
+ * estimates the squared bias without counting the noise twice.
+ */
+function bendError(time_s: Float64Array, values: Float64Array, start: number, end: number, line: LineFit, noise: number): number {
+  const halfEnd = start + Math.max(MIN_OVERRIDE_WINDOW_SAMPLES - 1, Math.floor((end - start) / 2));
+  if (halfEnd >= end) return 0;
+  const half = fitLine(time_s, values, start, halfEnd);
+  const shiftVariance = noise * noise * (half.y0Leverage ** 2 - line.y0Leverage ** 2);
+  return Math.sqrt(Math.max(0, (half.y0 - line.y0) ** 2 - shiftVariance));
 }
 
 interface LineFit {
