@@ -66,7 +66,8 @@ describe('with a real Redis', () => {
     const lines = small.toString('utf8').split('\n');
     lines[5] = lines[5].replace(/,.*/, ',twelve');
     const problem = expectProblem(await upload(context, 'sample_id=S1&power_W=50', lines.join('\n')), 400, 'INPUT_NOT_NUMERIC');
-    expect(problem).toMatchObject({ line: 6, column: 'temperature_C', file: 'upload.csv' });
+    // A raw body is named after its sample (<sample_id>.csv).
+    expect(problem).toMatchObject({ line: 6, column: 'temperature_C', file: 'S1.csv' });
   });
 
   it("keeps a caller's X-Request-Id and echoes it; makes one up for a missing or odd one", async () => {

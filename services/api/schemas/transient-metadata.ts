@@ -22,7 +22,7 @@ export const UploadQuerySchema = Type.Object(
     current_A: Type.Optional(positive('Heating current (with voltage_V).')),
     voltage_V: Type.Optional(positive('Heating voltage (with current_A).')),
     calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'A stored calibration (POST /v1/calibrations); needed for voltage_V input.' })),
-    file_name: Type.Optional(Type.String({ minLength: 1, maxLength: 255, description: 'Name recorded in results and error messages.' })),
+    file_name: Type.Optional(Type.String({ minLength: 1, maxLength: 255, description: 'Name recorded in results and error messages, and the stem of the netlists\' subcircuit names. Default: the multipart file\'s name, else <sample_id>.csv (or .json).' })),
     ...parameterFields,
   },
   { additionalProperties: false },

@@ -22,7 +22,8 @@ export function readRawUpload(request: FastifyRequest, query: Partial<UploadQuer
   const format = rawFormats[request.mediaType ?? ''];
   const bytes = Buffer.isBuffer(request.body) ? request.body : Buffer.alloc(0);
   const metadata = validateMetadata({ ...query }, 'querystring');
-  return { bytes, format, fileName: metadata.file_name ?? `upload.${format}`, metadata };
+  // Named after the sample: the result's netlists name their subcircuits after the file, and a SPICE deck that includes several devices needs them apart.
+  return { bytes, format, fileName: metadata.file_name ?? `${metadata.sample_id}.${format}`, metadata };
 }
 
 /**
