@@ -11,7 +11,7 @@
  * artefact, temperature_C.
  *
  * Targets from the project's issue: Rth total within 0.5 % (met on every
- * stack, worst 0.09 %); cumulative structure function within 0.02 decades of
+ * stack, worst 0.08 %); cumulative structure function within 0.02 decades of
  * C_sum (median) and 0.06 (90th percentile) over 5-90 % of Rth. Reached on
  * these 12 stacks, average / worst: median 0.017 / 0.027 (the target is met
  * on average), 90th percentile 0.062 / 0.085, NOT MET on every stack (6 of

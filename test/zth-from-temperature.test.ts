@@ -48,7 +48,7 @@ describe('zthFromTemperature', () => {
       const noise = noiseSeries(0.02, seed);
       const cooling = times.map((t, i) => ambient_C + power_W * (rth - truth[i]) + artefact(t) + noise[i]);
       const curve = zthFromTemperature(times, cooling, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(cooling) });
-      expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
+      expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W, estimateNoiseRms(curve.zth_K_per_W)).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
     }
   });
 
@@ -62,7 +62,7 @@ describe('zthFromTemperature', () => {
       const voltage_V = times.map((t, i) => toVoltage(ambient_C + power_W * (rth - truth[i]) + noise[i]) + 2e-3 * artefact(t));
       const temperature_C = voltageToTemperature(calibration, voltage_V);
       const curve = zthFromTemperature(times, temperature_C, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(temperature_C) });
-      expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
+      expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W, estimateNoiseRms(curve.zth_K_per_W)).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
     }
   });
 

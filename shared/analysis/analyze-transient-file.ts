@@ -146,7 +146,7 @@ function analyzeChannel(
   }
   warnings.push(...zth.early_time.warnings);
 
-  const steady = steadyStateRth(time_s, zth.zth_K_per_W);
+  const steady = steadyStateRth(time_s, zth.zth_K_per_W, noise_K_per_W);
   warnings.push(...steady.warnings);
 
   const spectrum = timeConstantSpectrum(time_s, zth.zth_K_per_W, {
