@@ -2,9 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { fitCompactFoster } from '../shared/numerics/compact-foster-fit.js';
 import { COMPACT_TOTAL_R_TOLERANCE, fitCompactModel } from '../shared/analysis/fit-compact-model.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
+import { steadyStateRth } from '../shared/numerics/steady-state.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { slabRth, slabZth, SILICON_DIE_SLAB } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
+import { createRandom, gaussian } from './support/seeded-random.js';
 
 describe('compact Foster fit', () => {
   it('recovers a known 4-stage network from noiseless data', () => {
@@ -43,6 +45,21 @@ describe('compact Foster fit', () => {
     for (let j = 1; j < 5; j++) expect(fit.foster.tau_s[j]).toBeGreaterThan(fit.foster.tau_s[j - 1]);
   });
 
+  it('holds the slowest tau at the last time, so that a noisy tail cannot buy a stage of tens of K/W', () => {
+    // A known network whose slowest stage (460 s) has not settled at the record's end (1000 s), with 5 mK/W of seeded
+    // noise: unbounded (up to 1000 x the last time), this draw put 24 K/W into a stage of 1e6 s.
+    const r_K_per_W = Float64Array.of(0.05, 0.3, 0.2, 1.5);
+    const tau_s = Float64Array.of(3e-3, 0.15, 1.4, 460);
+    const time_s = logSpacedTimes(1e-4, 1000, 20);
+    const random = createRandom(3);
+    const zth = zthFromFoster(r_K_per_W, tau_s, time_s).map((z) => z + 0.005 * gaussian(random));
+    const fit = fitCompactFoster(time_s, zth, 5);
+    expect(fit.tau_bound_s).toBeCloseTo(1000, 6);
+    expect(fit.foster.tau_s[fit.foster.tau_s.length - 1]).toBeLessThanOrEqual(fit.tau_bound_s);
+    // The network's sum of R is 2.05 K/W; the fit, which must extrapolate the last 10 % of the slow stage, is within 1 %.
+    expect(Math.abs(fit.foster.r_K_per_W.reduce((sum, r) => sum + r, 0) / 2.05 - 1)).toBeLessThan(0.01);
+  });
+
   it('rejects bad stage counts and too few samples', () => {
     const time_s = logSpacedTimes(1e-3, 1e-2, 5);
     const zth = Float64Array.from(time_s, (t) => 1 - Math.exp(-t));
@@ -58,18 +75,32 @@ describe('compact model warnings (fitCompactModel)', () => {
   const tau_s = Float64Array.from([1e-4, 3e-3, 0.1, 3]);
   const time_s = logSpacedTimes(1e-6, 100, 37);
 
-  it('warns when one stage cannot hold the curve and its sum of R misses the end of Zth', () => {
-    const { foster, warnings } = fitCompactModel(time_s, zthFromFoster(r_K_per_W, tau_s, time_s), 1);
+  it('warns when one stage cannot hold the curve and its sum of R misses Rth total: ask for more stages', () => {
+    const zth = zthFromFoster(r_K_per_W, tau_s, time_s);
+    const steady = steadyStateRth(time_s, zth, 0);
+    const { foster, warnings } = fitCompactModel(time_s, zth, 1, steady);
     const total = foster.r_K_per_W.reduce((sum, r) => sum + r, 0);
     expect(Math.abs(total - 1)).toBeGreaterThan(COMPACT_TOTAL_R_TOLERANCE);
-    expect(warnings).toEqual([expect.stringMatching(/stages add up to .* below the curve's end/)]);
-    expect(fitCompactModel(time_s, zthFromFoster(r_K_per_W, tau_s, time_s), 4).warnings).toEqual([]);
+    expect(warnings).toEqual([expect.stringMatching(/stages add up to .* below Rth total .* ask for more stages/)]);
+    expect(fitCompactModel(time_s, zth, 4, steady).warnings).toEqual([]);
+  });
+
+  it('on a record that ends before steady state, says so instead of asking for more stages', () => {
+    // The slow stage (1000 s) of this known network has made 10 % of its rise at the record's end (100 s).
+    const short = zthFromFoster(Float64Array.of(0.3, 0.7), Float64Array.of(0.01, 1000), time_s);
+    const steady = steadyStateRth(time_s, short, 0);
+    expect(steady.steady).toBe(false);
+    const { foster, warnings } = fitCompactModel(time_s, short, 2, steady);
+    expect(foster.tau_s[foster.tau_s.length - 1]).toBeCloseTo(100, 6);
+    expect(warnings).toEqual([
+      expect.stringMatching(/record ends before steady state, so its slowest stages are extrapolated: .* slowest tau is held at 100 s, the record's length .* more stages do not help: record longer/),
+    ]);
   });
 
   it('warns of a stage faster than the first sample: it stands for the rise before the curve starts', () => {
     // A stage of 10 ns is fully risen at the first sample (1 us): the curve starts at 0.05 K/W, not at 0.
     const withFast = zthFromFoster(Float64Array.of(0.05, 0.45, 0.5), Float64Array.of(1e-8, 1e-2, 1), time_s);
-    const { foster, warnings } = fitCompactModel(time_s, withFast, 3);
+    const { foster, warnings } = fitCompactModel(time_s, withFast, 3, steadyStateRth(time_s, withFast, 0));
     expect(foster.tau_s[0]).toBeLessThan(time_s[0]);
     expect(warnings).toContainEqual(expect.stringMatching(/fastest stage .* faster than the first sample/));
   });

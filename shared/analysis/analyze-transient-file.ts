@@ -161,7 +161,7 @@ function analyzeChannel(
   const cumulative = cutAtSink(cumulativeStructureFunction(cauer));
   const differential = differentialStructureFunction(cumulative);
 
-  const compact = fitCompactModel(time_s, zth.zth_K_per_W, parameters.compact_stages);
+  const compact = fitCompactModel(time_s, zth.zth_K_per_W, parameters.compact_stages, steady);
   warnings.push(...compact.warnings);
   const compactCauer = fosterToCauer(compact.foster);
   const subcircuit = `${fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '')}_${channelName}`;

@@ -12,7 +12,8 @@
  * (BIT 15, 1975). Eliminating the R's removes the narrow valleys that make
  * a joint fit of R and tau crawl.
  * Start: taus spread log-uniformly over the times in which the curve rises
- * from 2 % to 98 % of its last value.
+ * from 2 % to 98 % of its last value. The taus range from three decades below
+ * the first time up to the last time (MAX_TAU_PER_LAST_TIME).
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
 import type { FosterNetwork } from './rc-network.js';
@@ -24,7 +25,20 @@ export interface CompactFosterFit {
   max_abs_K_per_W: number;
   /** max |fit - Zth| divided by the last Zth sample (the curve's Rth estimate). */
   max_rel: number;
+  /** The largest tau the fit may give: MAX_TAU_PER_LAST_TIME times the last time. */
+  tau_bound_s: number;
 }
+
+/**
+ * The slowest stage's tau is at most this multiple of the last time fitted.
+ * A stage with tau = t_last has made 1 - 1/e = 63 % of its rise by then; a
+ * slower one rises over the record almost in proportion to t
+ * (R (1 - exp(-t / tau)) ~ (R / tau) t), which fixes R / tau, its heat
+ * capacity, but not R. Unbounded, a fit bent a noisy tail with a stage of
+ * 227 K/W at 1e6 s (a TO-247 on a large heatsink, recorded to 1000 s, whose
+ * Rth is 2.2 K/W), and a circuit simulation would reach that steady state.
+ */
+export const MAX_TAU_PER_LAST_TIME = 1;
 
 const MAX_STAGES = 12;
 const MAX_ITERATIONS = 200;
@@ -33,15 +47,16 @@ const RELATIVE_IMPROVEMENT_STOP = 1e-10;
 /** The starting taus cover the times in which Zth rises between these fractions of its last value. */
 const RISE_START_FRACTION = 0.02;
 const RISE_END_FRACTION = 0.98;
-/** ln tau may range three decades beyond the sampled times either way. */
-const LOG_TAU_MARGIN = Math.log(1e3);
+/** ln tau may range three decades below the first time: so fast a stage stands for the rise before the curve starts. */
+const LOG_TAU_MARGIN_BELOW = Math.log(1e3);
 
 export function fitCompactFoster(time_s: Float64Array, zth_K_per_W: Float64Array, stages: number): CompactFosterFit {
   assertFitInput(time_s, zth_K_per_W, stages);
   const m = time_s.length;
   const n = stages;
-  const logTauMin = Math.log(time_s[0]) - LOG_TAU_MARGIN;
-  const logTauMax = Math.log(time_s[m - 1]) + LOG_TAU_MARGIN;
+  const logTauMin = Math.log(time_s[0]) - LOG_TAU_MARGIN_BELOW;
+  const tau_bound_s = MAX_TAU_PER_LAST_TIME * time_s[m - 1];
+  const logTauMax = Math.log(tau_bound_s);
 
   let logTau = initialLogTaus(time_s, zth_K_per_W, n);
   let current = projectedFit(time_s, zth_K_per_W, logTau);
@@ -86,6 +101,7 @@ export function fitCompactFoster(time_s: Float64Array, zth_K_per_W: Float64Array
     rms_K_per_W: Math.sqrt(current.sumOfSquares / m),
     max_abs_K_per_W: maxAbs,
     max_rel: maxAbs / Math.abs(zth_K_per_W[m - 1]),
+    tau_bound_s,
   };
 }
 

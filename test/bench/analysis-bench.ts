@@ -65,12 +65,12 @@ for (let run = 0; run < files.length; run++) {
   const values = parsed.channels[0].values;
   const [noise_K, tNoise] = time(() => estimateNoiseRms(values));
   const [zth, tZth] = time(() => zthFromTemperature(parsed.time_s, values, { power_W: POWER_W }, { kind: 'cooling', noise_rms: noise_K }));
-  const [, tSteady] = time(() => steadyStateRth(parsed.time_s, zth.zth_K_per_W, noise_K / POWER_W));
+  const [steady, tSteady] = time(() => steadyStateRth(parsed.time_s, zth.zth_K_per_W, noise_K / POWER_W));
   const [spectrum, tSpectrum] = time(() => timeConstantSpectrum(parsed.time_s, zth.zth_K_per_W, { method: defaultAnalysisParameters.method, pointsPerDecade: defaultAnalysisParameters.points_per_decade, noise_K_per_W: noise_K / POWER_W }));
   const foster = fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W);
   const [cauer, tCauer] = time(() => fosterToCauer(foster));
   const [, tStructure] = time(() => differentialStructureFunction(cumulativeStructureFunction(cauer)));
-  const [, tCompact] = time(() => fitCompactModel(parsed.time_s, zth.zth_K_per_W, defaultAnalysisParameters.compact_stages));
+  const [, tCompact] = time(() => fitCompactModel(parsed.time_s, zth.zth_K_per_W, defaultAnalysisParameters.compact_stages, steady));
   const [, tWhole] = time(() => analyzeTransientFile({ bytes, fileName: 'bench.csv' }, '2026-01-01T00:00:00.000Z'));
   if (warm) continue;
   record('parse CSV', tParse);
