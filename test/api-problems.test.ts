@@ -305,6 +305,24 @@ describe('with the data directory unusable', () => {
   });
 });
 
+describe('with the data directory\'s file system fuller than one largest upload', () => {
+  let context: ApiTestContext;
+  beforeAll(async () => {
+    // Exact construction: a body limit of 2^50 bytes (1 PiB) is more than any test machine has free.
+    context = await startApiTestApp({ HEATPATH_MAX_UPLOAD_BYTES: String(2 ** 50) });
+  });
+  afterAll(async () => {
+    await context.close();
+  });
+
+  it('/health/ready reports the store unavailable and says it is full', async () => {
+    const ready = await context.app.inject({ url: '/health/ready' });
+    const problem = expectProblem(ready, 503, 'SERVICE_UNAVAILABLE');
+    expect(problem.checks).toEqual({ redis: 'ok', store: 'unavailable' });
+    expect(problem.detail).toMatch(/store unavailable \(full: /);
+  });
+});
+
 /** A loopback port nothing listens on (taken, then released). */
 async function closedPort(): Promise<number> {
   const server = createServer();

@@ -1,4 +1,4 @@
-import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { mkdtemp, readdir, rm, statfs } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
@@ -37,9 +37,9 @@ function result(jobId: string, marker: string): ResultRecord {
 describe('TransientStore', () => {
   it('creates the data directory of a new installation, and is ready only then', async () => {
     const fresh = new TransientStore(join(dataDir, 'new', 'store'));
-    expect(await fresh.isReady()).toBe(false);
+    expect((await fresh.readiness()).ready).toBe(false);
     await fresh.ensureDataDir();
-    expect(await fresh.isReady()).toBe(true);
+    expect((await fresh.readiness()).ready).toBe(true);
   });
 
   it('stores blobs by content hash and reports a repeat as existing', async () => {
@@ -136,7 +136,17 @@ describe('TransientStore', () => {
   });
 
   it('is ready on a writable directory and not on a missing one', async () => {
-    expect(await store.isReady()).toBe(true);
-    expect(await new TransientStore(join(dataDir, 'missing')).isReady()).toBe(false);
+    expect(await store.readiness()).toEqual({ ready: true });
+    expect((await new TransientStore(join(dataDir, 'missing')).readiness()).ready).toBe(false);
+  });
+
+  it('is not ready, and says full, when its file system has less free space than asked for', async () => {
+    // Exact construction: ask for half, and for a GiB more than, what statfs says this user may still write.
+    const space = await statfs(dataDir);
+    const free = space.bavail * space.bsize;
+    expect(await store.readiness(free / 2)).toEqual({ ready: true });
+    const full = await store.readiness(free + 2 ** 30);
+    expect(full.ready).toBe(false);
+    expect(full.ready === false && full.reason).toMatch(/^full: /);
   });
 });

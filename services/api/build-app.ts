@@ -63,7 +63,7 @@ export async function buildApp(deps: AppDependencies) {
   await app.register(openApiDocsPlugin);
   await app.register(serviceMetricsPlugin, { queue });
 
-  await app.register(healthRoutes, { store, queue });
+  await app.register(healthRoutes, { store, queue, maxUploadBytes: config.maxUploadBytes });
   await app.register(metricsRoutes);
   await app.register(transientRoutes, { store, queue, maxUploadBytes: config.maxUploadBytes });
   await app.register(jobRoutes, { store, queue });

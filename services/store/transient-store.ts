@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { access, constants, stat } from 'node:fs/promises';
+import { access, constants, stat, statfs } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { PARSER_VERSION } from '../../shared/analysis/algorithm-version.js';
@@ -306,14 +306,24 @@ export class TransientStore {
     }
   }
 
-  /** Cheap readiness: the data directory exists and this process may write in it. */
-  async isReady(): Promise<boolean> {
+  /**
+   * Cheap readiness: the data directory exists, this process may write in it,
+   * and its file system has at least `minFreeBytes` free for this user (a full
+   * disk fails every write while the directory still looks writable).
+   */
+  async readiness(minFreeBytes = 0): Promise<StoreReadiness> {
     try {
       const info = await stat(this.dataDir);
+      if (!info.isDirectory()) return { ready: false, reason: `${this.dataDir} is not a folder` };
       await access(this.dataDir, constants.W_OK);
-      return info.isDirectory();
-    } catch {
-      return false;
+      const space = await statfs(this.dataDir);
+      const freeBytes = space.bavail * space.bsize;
+      if (freeBytes < minFreeBytes) {
+        return { ready: false, reason: `full: ${mebibytes(freeBytes)} free on the data directory's file system, ${mebibytes(minFreeBytes)} needed: free space or grow the volume` };
+      }
+      return { ready: true };
+    } catch (error) {
+      return { ready: false, reason: `${this.dataDir}: ${fileErrorReason(error, 'read')}` };
     }
   }
 
@@ -353,6 +363,21 @@ export class TransientStore {
     }
     return records;
   }
+}
+
+/**
+ * Free space the store needs to be ready: one largest upload plus a margin
+ * for its record, its kept parse and the results of the jobs in flight (a
+ * result is some 200 kB).
+ */
+export function storeFreeBytesNeeded(maxUploadBytes: number): number {
+  return maxUploadBytes + 64 * 2 ** 20;
+}
+
+export type StoreReadiness = { ready: true } | { ready: false; reason: string };
+
+function mebibytes(bytes: number): string {
+  return `${(bytes / 2 ** 20).toFixed(1)} MiB`;
 }
 
 /** Job ids with a stored result (`done`) and with a stored failure (`failed`). */

@@ -1,7 +1,7 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
-import type { TransientStore } from '../../store/transient-store.js';
+import { storeFreeBytesNeeded, type TransientStore } from '../../store/transient-store.js';
 import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { sendProblem } from '../plugins/problem-details.js';
 import { problemResponse } from '../schemas/problem-schema.js';
@@ -11,9 +11,13 @@ const ChecksSchema = Type.Object({ redis: CheckSchema, store: CheckSchema });
 
 /**
  * Probes for orchestrators and load balancers; public. Live: the process
- * answers. Ready: Redis and the data directory answer too.
+ * answers. Ready: Redis and the data directory answer too, and the data
+ * directory has room for one more largest upload.
  */
-export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue }> = async (app, { store, queue }) => {
+export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue; maxUploadBytes: number }> = async (
+  app,
+  { store, queue, maxUploadBytes },
+) => {
   app.get(
     '/health/live',
     {
@@ -32,12 +36,12 @@ export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
       },
     },
     async (request, reply) => {
-      const [redisReady, storeReady] = await Promise.all([queue.ping().catch(() => false), store.isReady()]);
-      const checks = { redis: redisReady ? 'ok' : 'unavailable', store: storeReady ? 'ok' : 'unavailable' } as const;
-      if (redisReady && storeReady) return { status: 'ready' as const, checks };
-      const down = Object.entries(checks).filter(([, state]) => state !== 'ok').map(([name]) => name);
+      const [redisReady, storeReadiness] = await Promise.all([queue.ping().catch(() => false), store.readiness(storeFreeBytesNeeded(maxUploadBytes))]);
+      const checks = { redis: redisReady ? 'ok' : 'unavailable', store: storeReadiness.ready ? 'ok' : 'unavailable' } as const;
+      if (redisReady && storeReadiness.ready) return { status: 'ready' as const, checks };
+      const down = [...(redisReady ? [] : ['redis unavailable']), ...(storeReadiness.ready ? [] : [`store unavailable (${storeReadiness.reason})`])];
       // Uploads are still stored while only Redis is away; readiness tells the operator.
-      return sendProblem(request, reply, new HeatpathError('SERVICE_UNAVAILABLE', `not ready: ${down.join(' and ')} unavailable`), undefined, { checks });
+      return sendProblem(request, reply, new HeatpathError('SERVICE_UNAVAILABLE', `not ready: ${down.join(' and ')}`), undefined, { checks });
     },
   );
 };
