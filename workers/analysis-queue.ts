@@ -1,4 +1,4 @@
-import { Queue, type JobsOptions } from 'bullmq';
+import { Queue, type Job, type JobsOptions } from 'bullmq';
 import type { AnalysisParameters, Power } from '../shared/schemas/analysis-parameters.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import { DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL, producerConnection } from './redis-connections.js';
@@ -135,13 +135,14 @@ export class AnalysisQueue {
   async retryFailed(jobId: string): Promise<boolean> {
     const job = await this.queue.getJob(jobId);
     if (!job) return false;
-    if ((await job.getState()) !== 'failed') return true;
-    try {
-      await job.retry('failed', { resetAttemptsMade: true, resetAttemptsStarted: true });
-    } catch (error) {
-      if ((await job.getState()) === 'failed') throw error;
-    }
+    await moveFailedBack(job);
     return true;
+  }
+
+  /** Moves the job back to the queue with its attempts reset when Redis holds it as failed; true when it did. */
+  async rerunIfFailed(jobId: string): Promise<boolean> {
+    const job = await this.queue.getJob(jobId);
+    return job ? moveFailedBack(job) : false;
   }
 
   /** Removes a job of this batch that has not started; returns whether it was removed. */
@@ -170,6 +171,18 @@ export class AnalysisQueue {
 
   private addOptions(jobId: string, priority: number): JobsOptions {
     return { ...this.jobOptions, jobId, priority };
+  }
+}
+
+/** Moves a failed job back with fresh attempts; false when it was not failed (a job that left the failed state meanwhile too). */
+async function moveFailedBack(job: Job<AnalysisJobData>): Promise<boolean> {
+  if ((await job.getState()) !== 'failed') return false;
+  try {
+    await job.retry('failed', { resetAttemptsMade: true, resetAttemptsStarted: true });
+    return true;
+  } catch (error) {
+    if ((await job.getState()) === 'failed') throw error;
+    return false;
   }
 }
 

@@ -2,7 +2,7 @@ import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { pino, type Logger } from 'pino';
 import { collectDefaultMetrics, Registry } from 'prom-client';
-import { TransientStore } from '../services/store/transient-store.js';
+import { storeFreeBytesNeeded, TransientStore } from '../services/store/transient-store.js';
 import type { ServiceConfig } from '../services/config/service-config.js';
 import { serviceConfigOrExit } from '../services/config/service-config-or-exit.js';
 import { startedOrExit } from '../services/config/started-or-exit.js';
@@ -64,7 +64,11 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
 
   const webhooks = new WebhookDeliveryWorker(store, new WebhookRegistry(store, settings.webhookAllowlist), { redisUrl, prefix: settings.prefix });
   const queue = new AnalysisQueue({ redisUrl, prefix: settings.prefix });
-  const recovery = new UploadRecovery(store, queue, new BatchReprocessor(store, queue), { intervalMs: settings.recoveryIntervalMs, logger });
+  const recovery = new UploadRecovery(store, queue, new BatchReprocessor(store, queue), {
+    intervalMs: settings.recoveryIntervalMs,
+    minFreeBytes: storeFreeBytesNeeded(config.maxUploadBytes),
+    logger,
+  });
   recovery.start();
   logger.info({ processes, prefix: settings.prefix, data_dir: dataDir }, 'analysis workers started');
 

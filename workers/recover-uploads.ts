@@ -7,12 +7,22 @@ import type { BatchReprocessor } from './reprocess-batch.js';
 export interface UploadRecoveryOptions {
   /** Time between sweeps in ms. Default 60000. */
   intervalMs?: number;
+  /** Free space the store needs before failed jobs are run again (see rerun_failed). Default 0. */
+  minFreeBytes?: number;
   logger?: Logger;
 }
 
 export interface RecoverySweep {
   /** Uploads without a stored result or failure, offered to the queue again. */
   uploads: number;
+  /**
+   * Jobs of those uploads that Redis holds as failed although the store has
+   * no failure record: the failure could not be stored (a full or failing
+   * store), so it was never final; they are run again with fresh attempts
+   * once the store is ready. Redis would otherwise keep them failed for days
+   * and ignore the offer.
+   */
+  rerun_failed: string[];
   /** Unfinished jobs of running batches, offered again. */
   batch_jobs: number;
   /**
@@ -31,7 +41,9 @@ const ENQUEUE_CHUNK = 500;
  * queue. A sweep offers every stored upload that has neither a result nor a
  * final failure to the queue again; Redis ignores job ids it still holds, so
  * only jobs it lost (a Redis restart without persistence, an upload stored
- * while Redis was away) are queued anew. Runs at start and then periodically.
+ * while Redis was away) are queued anew, and jobs it holds as failed whose
+ * failure the store never recorded are run again. Runs at start and then
+ * periodically.
  */
 export class UploadRecovery {
   private timer: NodeJS.Timeout | undefined;
@@ -59,7 +71,19 @@ export class UploadRecovery {
     for (let start = 0; start < pending.length; start += ENQUEUE_CHUNK) {
       await this.queue.enqueueMany(pending.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.interactive });
     }
-    return { uploads: pending.length, batch_jobs: await this.batches.requeueRunning(), unacknowledged };
+    return { uploads: pending.length, rerun_failed: await this.rerunUnrecordedFailures(pending), batch_jobs: await this.batches.requeueRunning(), unacknowledged };
+  }
+
+  /** Runs again the pending uploads' jobs that Redis holds as failed; none while the store could not record their outcome either. */
+  private async rerunUnrecordedFailures(pending: UploadRecord[]): Promise<string[]> {
+    if (pending.length === 0 || !(await this.store.readiness(this.options.minFreeBytes)).ready) return [];
+    const rerun: string[] = [];
+    for (const upload of pending) {
+      // Read again: the processor stores a final failure just before Redis marks the job failed, maybe after this sweep began.
+      if (await this.store.hasFailure(upload.job_id)) continue;
+      if (await this.queue.rerunIfFailed(upload.job_id)) rerun.push(upload.job_id);
+    }
+    return rerun;
   }
 
   /** Sweeps now and every interval; a sweep that fails (Redis away) is logged and tried again next time. */
@@ -68,6 +92,12 @@ export class UploadRecovery {
       this.running ??= this.sweep()
         .then((sweep) => {
           if (sweep.uploads + sweep.batch_jobs > 0) this.options.logger?.info({ sweep }, 'recovery offered unfinished jobs to the queue');
+          if (sweep.rerun_failed.length > 0) {
+            this.options.logger?.warn(
+              { job_ids: sweep.rerun_failed },
+              'recovery runs again jobs that failed without a stored failure (the store could not record it): they start with fresh attempts',
+            );
+          }
           if (sweep.unacknowledged.length > 0) {
             this.options.logger?.warn({ upload_ids: sweep.unacknowledged }, 'upload records without raw bytes (a crash came before the answer); not queued');
           }

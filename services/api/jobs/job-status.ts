@@ -7,8 +7,11 @@ const nullableString = Type.Union([Type.String(), Type.Null()]);
 
 /**
  * A job's state in our own words. `stored`: the upload is safe on disk but
- * not queued yet (Redis was away); recovery queues it. `cancelled`: a job of
- * a cancelled reprocessing batch that had not started.
+ * not queued yet (Redis was away); recovery queues it. `retrying`: an attempt
+ * failed and the job runs again, also when its last attempt failed but the
+ * store could not record the failure (recovery runs it again). `failed`: a
+ * final failure is stored. `cancelled`: a job of a cancelled reprocessing
+ * batch that had not started.
  */
 export const JobStateSchema = Type.Union([
   Type.Literal('stored'),
@@ -89,7 +92,9 @@ function queueState(queued: AnalysisJobState): JobState {
     case 'completed':
       return 'completed';
     case 'failed':
-      return 'failed';
+      // Only the store's failure record makes a failure final (readJobStatus reads it first): without one the
+      // failure could not be recorded, and recovery runs the job again, so the sample listing says pending too.
+      return 'retrying';
     case 'delayed':
       return queued.attempts_made > 0 ? 'retrying' : 'queued';
     default:
