@@ -1,5 +1,7 @@
 import { createServer, type IncomingMessage, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
+import { pino } from 'pino';
+import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import type { TransientStore } from '../services/store/transient-store.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
@@ -7,6 +9,7 @@ import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { WebhookDeliveryWorker } from '../workers/webhook-delivery.js';
 import { WebhookNotifier, type WebhookPayload } from '../workers/webhook-notifier.js';
 import { WebhookRegistry } from '../workers/webhook-registry.js';
+import { observeWebhookDeliveries } from '../workers/worker-metrics.js';
 import { verifyWebhookSignature, WEBHOOK_SIGNATURE_HEADER } from '../workers/webhook-signature.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
@@ -110,6 +113,57 @@ describe('webhooks (real Redis, local receiver)', () => {
     expect(completed).toMatchObject({ sample_id: 'S-TEST', error: null });
     expect(await store.hasResult(completed!.job_id)).toBe(true);
     expect(failed?.error?.code).toMatch(/^INPUT_/);
+  });
+
+  it('logs each failed attempt and the delivery given up, without body or signature, and counts outcomes', async () => {
+    const registry = new WebhookRegistry(store, [new URL(receiverUrl).origin]);
+    const webhook = await registry.register(receiverUrl, ['job.completed'], 'admin');
+    const lines: Record<string, unknown>[] = [];
+    const logger = pino({ level: 'info' }, { write: (line: string) => void lines.push(JSON.parse(line)) });
+    const metrics = new Registry();
+    const notifier = new WebhookNotifier(store, { redisUrl, prefix, attempts: 2, backoffDelayMs: 50 });
+    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix, logger });
+    observeWebhookDeliveries(delivery, metrics);
+    answers.push(503, 502);
+    try {
+      await notifier.notify(payload);
+      await eventually(() => lines.some((line) => line.level === 50), 20);
+    } finally {
+      await delivery.close();
+      await notifier.close();
+    }
+    const fields = { webhook_id: webhook.webhook_id, job_id: 'job-abc', event: 'job.completed', attempts: 2 };
+    expect(lines.filter((line) => line.level === 40)).toEqual([
+      expect.objectContaining({ ...fields, attempt: 1, status: 503, msg: 'webhook delivery attempt failed' }),
+      expect.objectContaining({ ...fields, attempt: 2, status: 502, msg: 'webhook delivery attempt failed' }),
+    ]);
+    expect(lines.filter((line) => line.level === 50)).toEqual([expect.objectContaining({ ...fields, attempt: 2, status: 502 })]);
+    const logged = JSON.stringify(lines);
+    expect(logged).not.toContain(webhook.secret);
+    expect(logged).not.toContain('v1=');
+    expect(logged).not.toContain('occurred_at');
+    const counted = await metrics.getSingleMetricAsString('heatpath_webhook_deliveries_total');
+    expect(counted).toContain('heatpath_webhook_deliveries_total{outcome="retried"} 1');
+    expect(counted).toContain('heatpath_webhook_deliveries_total{outcome="given_up"} 1');
+  });
+
+  it('logs the network error of a receiver that does not answer', async () => {
+    const registry = new WebhookRegistry(store, [new URL(receiverUrl).origin]);
+    await registry.register(receiverUrl, ['job.completed'], 'admin');
+    await new Promise<void>((resolve) => server.close(() => resolve()));
+    server.listen(0, '127.0.0.1'); // afterEach closes it again; the registered port stays closed
+    const lines: Record<string, unknown>[] = [];
+    const logger = pino({ level: 'info' }, { write: (line: string) => void lines.push(JSON.parse(line)) });
+    const notifier = new WebhookNotifier(store, { redisUrl, prefix, attempts: 1, backoffDelayMs: 50 });
+    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix, logger });
+    try {
+      await notifier.notify(payload);
+      await eventually(() => lines.some((line) => line.level === 50), 20);
+    } finally {
+      await delivery.close();
+      await notifier.close();
+    }
+    expect(lines.find((line) => line.level === 40)).toMatchObject({ attempt: 1, err: expect.stringContaining('ECONNREFUSED') });
   });
 
   it('does not notify webhooks of other events', async () => {

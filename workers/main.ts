@@ -12,7 +12,7 @@ import { UploadRecovery } from './recover-uploads.js';
 import { BatchReprocessor } from './reprocess-batch.js';
 import { WebhookDeliveryWorker } from './webhook-delivery.js';
 import { WebhookRegistry } from './webhook-registry.js';
-import { observeAnalysisWorker } from './worker-metrics.js';
+import { observeAnalysisWorker, observeWebhookDeliveries } from './worker-metrics.js';
 import { startWorkerMetricsServer, type WorkerMetricsServer } from './worker-metrics-server.js';
 
 export interface StartWorkersOptions {
@@ -62,7 +62,8 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
   analysis.worker.on('failed', (job, error) => logger.warn({ job_id: job?.id, attempts: job?.attemptsMade, err: error.message }, 'analysis attempt failed'));
   if (metricsRegistry) observeAnalysisWorker(analysis, metricsRegistry);
 
-  const webhooks = new WebhookDeliveryWorker(store, new WebhookRegistry(store, settings.webhookAllowlist), { redisUrl, prefix: settings.prefix });
+  const webhooks = new WebhookDeliveryWorker(store, new WebhookRegistry(store, settings.webhookAllowlist), { redisUrl, prefix: settings.prefix, logger });
+  if (metricsRegistry) observeWebhookDeliveries(webhooks, metricsRegistry);
   const queue = new AnalysisQueue({ redisUrl, prefix: settings.prefix });
   const recovery = new UploadRecovery(store, queue, new BatchReprocessor(store, queue), {
     intervalMs: settings.recoveryIntervalMs,

@@ -1,4 +1,5 @@
 import { UnrecoverableError, Worker, type Job } from 'bullmq';
+import type { Logger } from 'pino';
 import type { TransientStore } from '../services/store/transient-store.js';
 import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
 import { WEBHOOK_QUEUE_NAME, type WebhookDeliveryData } from './webhook-notifier.js';
@@ -14,16 +15,30 @@ export interface WebhookDeliveryOptions {
   timeoutMs?: number;
   /** Deliveries in flight per process (network-bound, so more than one). Default 4. */
   concurrency?: number;
+  /** Where failed attempts (warn) and given-up deliveries (error) are logged. */
+  logger?: Logger;
+}
+
+/** What a delivery job returns: the receiver's status, or why it was not sent. */
+export type WebhookDeliveryOutcome = { status: number } | { dropped: string };
+
+/** A receiver's answer other than 2xx, with its status kept for the log. */
+class WebhookAnswerError extends Error {
+  constructor(readonly status: number, url: string) {
+    super(`webhook ${url} answered HTTP ${status}`);
+  }
 }
 
 /**
  * POSTs queued webhook deliveries, signed with the registration's secret
  * (looked up at delivery, so Redis never holds secrets). A non-2xx answer or a
  * network error fails the attempt and BullMQ retries with backoff; a removed
- * or no longer allowed registration drops the delivery.
+ * or no longer allowed registration drops the delivery. Each failed attempt
+ * is logged as a warning and a delivery given up as an error, without the
+ * body or its signature.
  */
 export class WebhookDeliveryWorker {
-  private readonly worker: Worker<WebhookDeliveryData>;
+  readonly worker: Worker<WebhookDeliveryData, WebhookDeliveryOutcome>;
 
   constructor(
     private readonly store: TransientStore,
@@ -31,19 +46,21 @@ export class WebhookDeliveryWorker {
     options: WebhookDeliveryOptions = {},
   ) {
     const timeoutMs = options.timeoutMs ?? 10_000;
-    this.worker = new Worker<WebhookDeliveryData>(WEBHOOK_QUEUE_NAME, (job) => this.deliver(job, timeoutMs), {
+    this.worker = new Worker<WebhookDeliveryData, WebhookDeliveryOutcome>(WEBHOOK_QUEUE_NAME, (job) => this.deliver(job, timeoutMs), {
       connection: consumerConnection(options.redisUrl ?? DEFAULT_REDIS_URL),
       prefix: options.prefix ?? DEFAULT_QUEUE_PREFIX,
       concurrency: options.concurrency ?? 4,
     });
     this.worker.on('error', () => undefined);
+    const logger = options.logger;
+    if (logger) this.worker.on('failed', (job, error) => job && logFailedAttempt(logger, job, error));
   }
 
   async close(): Promise<void> {
     await this.worker.close();
   }
 
-  private async deliver(job: Job<WebhookDeliveryData>, timeoutMs: number): Promise<{ status: number } | { dropped: string }> {
+  private async deliver(job: Job<WebhookDeliveryData>, timeoutMs: number): Promise<WebhookDeliveryOutcome> {
     const webhook = await this.store.getWebhook(job.data.webhook_id);
     if (!webhook) return { dropped: 'webhook removed' };
     if (!this.registry.isAllowed(webhook.url)) throw new UnrecoverableError(`${webhook.url} is no longer on the webhook allowlist`);
@@ -60,7 +77,26 @@ export class WebhookDeliveryWorker {
       redirect: 'error',
     });
     await response.body?.cancel();
-    if (!response.ok) throw new Error(`webhook ${webhook.url} answered HTTP ${response.status}`);
+    if (!response.ok) throw new WebhookAnswerError(response.status, webhook.url);
     return { status: response.status };
   }
+}
+
+/** Whether this failure was the delivery's last: BullMQ does not run it again. */
+export function deliveryGivenUp(job: Job<WebhookDeliveryData>, error: Error): boolean {
+  return error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
+}
+
+function logFailedAttempt(logger: Logger, job: Job<WebhookDeliveryData>, error: Error): void {
+  const cause = (error.cause as NodeJS.ErrnoException | undefined)?.code;
+  const fields = {
+    webhook_id: job.data.webhook_id,
+    job_id: job.data.job_id,
+    event: job.data.event,
+    attempt: job.attemptsMade,
+    attempts: job.opts.attempts ?? 1,
+    ...(error instanceof WebhookAnswerError ? { status: error.status } : { err: cause ? `${error.message} (${cause})` : error.message }),
+  };
+  logger.warn(fields, 'webhook delivery attempt failed');
+  if (deliveryGivenUp(job, error)) logger.error(fields, 'webhook delivery given up: the receiver gets no more attempts for this event');
 }

@@ -23,6 +23,8 @@ export interface WebhookPayload {
 /** One delivery: the body is fixed when queued, so every retry sends the same bytes. */
 export interface WebhookDeliveryData {
   webhook_id: string;
+  /** The analysis job the event is about (for the log; the body says it too). */
+  job_id: string;
   event: WebhookEvent;
   body: string;
 }
@@ -32,7 +34,7 @@ export interface WebhookNotifierOptions {
   redisUrl?: string;
   /** Default `{heatpath}`. */
   prefix?: string;
-  /** Delivery attempts before giving up. Default 8 (about 20 minutes of retries). */
+  /** Delivery attempts before giving up. Default 8: with the default backoff, retries for 5 s x (2^7 - 1) = 635 s, about 10.6 minutes. */
   attempts?: number;
   /** First retry delay in ms, doubled each time. Default 5000. */
   backoffDelayMs?: number;
@@ -68,7 +70,7 @@ export class WebhookNotifier {
     await this.queue.addBulk(
       subscribed.map((webhook) => ({
         name: payload.event,
-        data: { webhook_id: webhook.webhook_id, event: payload.event, body },
+        data: { webhook_id: webhook.webhook_id, job_id: payload.job_id, event: payload.event, body },
         opts: {
           jobId: `${webhook.webhook_id}-${payload.job_id}-${payload.event}`,
           attempts: this.attempts,

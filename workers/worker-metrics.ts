@@ -1,5 +1,6 @@
 import { Counter, Histogram, type Registry } from 'prom-client';
 import type { AnalysisWorker } from './analysis-worker.js';
+import { deliveryGivenUp, type WebhookDeliveryWorker } from './webhook-delivery.js';
 
 /**
  * Prometheus metrics of the analysis jobs this process runs: duration of
@@ -28,4 +29,20 @@ export function observeAnalysisWorker(worker: AnalysisWorker, registry: Registry
     const final = !job || error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
     attempts.inc({ outcome: final ? 'failed' : 'retried' });
   });
+}
+
+/**
+ * Webhook deliveries this process finished, by outcome: delivered (2xx),
+ * dropped (the registration was removed), retried (an attempt failed, another
+ * follows) or given_up (the last attempt failed, or the URL left the allowlist).
+ */
+export function observeWebhookDeliveries(deliveries: WebhookDeliveryWorker, registry: Registry): void {
+  const outcomes = new Counter({
+    name: 'heatpath_webhook_deliveries_total',
+    help: 'Finished webhook delivery attempts by outcome: delivered, dropped (registration removed), retried or given_up.',
+    labelNames: ['outcome'] as const,
+    registers: [registry],
+  });
+  deliveries.worker.on('completed', (_job, outcome) => outcomes.inc({ outcome: 'dropped' in outcome ? 'dropped' : 'delivered' }));
+  deliveries.worker.on('failed', (job, error) => outcomes.inc({ outcome: !job || deliveryGivenUp(job, error) ? 'given_up' : 'retried' }));
 }
