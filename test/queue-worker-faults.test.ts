@@ -52,6 +52,34 @@ describe('worker faults (real Redis, worker processes)', () => {
     expect(await fixture.resultFiles()).toEqual([`${upload.job_id}.json`]);
   });
 
+  it('ends its analysis processes when the worker alone is SIGKILLed', async () => {
+    const { url } = await testRedis();
+    cleanups.push(() => deleteKeysWithPrefix(url, prefix));
+    const queue = analysisQueue(url);
+    // A job first, so that the worker has forked its analysis process.
+    const first = await fixture.storeUpload(51);
+    await queue.enqueue(first, { priority: JOB_PRIORITY.interactive });
+    const doomed = workerProcess(url);
+    await eventually(async () => (await queue.getJobState(first.job_id))?.state === 'completed');
+
+    const children = await WorkerProcess.childrenOf(doomed.child.pid!);
+    expect(children.length).toBeGreaterThan(0);
+    await doomed.killParentOnly();
+    // An orphan would live on under PID 1, holding 90-125 MB; a child that notices its parent is gone exits at once.
+    const deadline = Date.now() + 5_000;
+    let running = children;
+    while (running.length > 0 && Date.now() < deadline) {
+      await new Promise((resolve) => setTimeout(resolve, 100));
+      running = (await Promise.all(children.map(async (pid) => ((await WorkerProcess.isRunning(pid)) ? [pid] : [])))).flat();
+    }
+    expect(running, 'analysis processes still running 5 s after their worker was killed').toEqual([]);
+
+    const next = await fixture.storeUpload(52);
+    await queue.enqueue(next, { priority: JOB_PRIORITY.interactive });
+    workerProcess(url);
+    await eventually(async () => (await queue.getJobState(next.job_id))?.state === 'completed');
+  });
+
   it('loses no stored upload when Redis restarts empty: the running worker reconnects and recovery re-queues them', async () => {
     const redis = await RedisServerProcess.start();
     cleanups.push(() => redis.kill());

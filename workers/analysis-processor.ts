@@ -30,6 +30,15 @@ import { WebhookNotifier } from './webhook-notifier.js';
 const ANALYSIS_NICENESS = 19;
 setPriority(ANALYSIS_NICENESS);
 
+/**
+ * The worker that forked this process is gone (killed with SIGKILL, so it could
+ * not end its children): exit rather than live on under PID 1, holding its
+ * Redis connections and 90-125 MB. A child in the middle of an analysis exits
+ * when the analysis hands back the event loop; the job in flight is taken over
+ * by another worker's stalled-job check once its lock expires.
+ */
+process.once('disconnect', () => process.exit(1));
+
 const settings = readProcessorSettings();
 const store = new TransientStore(settings.dataDir);
 const notifier = new WebhookNotifier(store, {

@@ -1,4 +1,5 @@
 import { spawn, type ChildProcess } from 'node:child_process';
+import { readdir, readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -59,6 +60,38 @@ export class WorkerProcess {
   /** SIGKILL the whole process group: no shutdown code runs, locks are left to expire. */
   async kill(): Promise<void> {
     await this.signal('SIGKILL');
+    // Children left behind by killParentOnly are still in the group.
+    try {
+      process.kill(-this.child.pid!, 'SIGKILL');
+    } catch {
+      // the group is gone
+    }
+  }
+
+  /** SIGKILL the worker's own process only, as `kill -9 PID` does, leaving its analysis children to fend for themselves. */
+  async killParentOnly(): Promise<void> {
+    const exited = new Promise((resolve) => this.child.once('exit', resolve));
+    process.kill(this.child.pid!, 'SIGKILL');
+    await exited;
+  }
+
+  /** Ids of the running processes whose parent is `parentPid` (from /proc/PID/stat, Linux). */
+  static async childrenOf(parentPid: number): Promise<number[]> {
+    const children: number[] = [];
+    for (const name of await readdir('/proc')) {
+      if (!/^\d+$/.test(name)) continue;
+      const stat = await readFile(`/proc/${name}/stat`, 'utf8').catch(() => '');
+      // Fields after the command name, which is in parentheses and may hold spaces: state, ppid, ...
+      const [state, ppid] = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      if (Number(ppid) === parentPid && state !== 'Z') children.push(Number(name));
+    }
+    return children;
+  }
+
+  /** Whether process `pid` still runs (a zombie does not). */
+  static async isRunning(pid: number): Promise<boolean> {
+    const stat = await readFile(`/proc/${pid}/stat`, 'utf8').catch(() => null);
+    return stat !== null && stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3) !== 'Z';
   }
 
   /** SIGTERM: the graceful shutdown path. */
