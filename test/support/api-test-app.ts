@@ -1,7 +1,7 @@
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { pino } from 'pino';
+import { pino, type Logger } from 'pino';
 import { buildApp, type HeatpathApp } from '../../services/api/build-app.js';
 import { loadServiceConfig, type ServiceConfig } from '../../services/config/service-config.js';
 import { TransientStore } from '../../services/store/transient-store.js';
@@ -32,9 +32,10 @@ export interface ApiTestContext {
 
 /**
  * A real app over a real Redis (random BullMQ prefix) and a fresh temporary
- * data directory. `env` overrides service variables (e.g. a small upload limit).
+ * data directory. `env` overrides service variables (e.g. a small upload limit);
+ * `logger` receives the app's log (silent by default).
  */
-export async function startApiTestApp(env: NodeJS.ProcessEnv = {}): Promise<ApiTestContext> {
+export async function startApiTestApp(env: NodeJS.ProcessEnv = {}, logger: Logger = pino({ level: 'silent' })): Promise<ApiTestContext> {
   const redis = await testRedis();
   const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-api-'));
   const prefix = randomPrefix();
@@ -47,7 +48,7 @@ export async function startApiTestApp(env: NodeJS.ProcessEnv = {}): Promise<ApiT
   });
   const store = new TransientStore(config.dataDir);
   const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
-  const app = await buildApp({ config, logger: pino({ level: 'silent' }), store, queue });
+  const app = await buildApp({ config, logger, store, queue });
   await app.ready();
   return {
     app,

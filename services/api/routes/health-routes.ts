@@ -12,12 +12,16 @@ const ChecksSchema = Type.Object({ redis: CheckSchema, store: CheckSchema });
 /**
  * Probes for orchestrators and load balancers; public. Live: the process
  * answers. Ready: Redis and the data directory answer too, and the data
- * directory has room for one more largest upload.
+ * directory has room for one more largest upload. Probed every few seconds,
+ * so their requests are logged only at warn and above.
  */
 export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue; maxUploadBytes: number }> = async (
   app,
   { store, queue, maxUploadBytes },
 ) => {
+  app.addHook('onRoute', (route) => {
+    route.logLevel = 'warn';
+  });
   app.get(
     '/health/live',
     {

@@ -7,6 +7,8 @@ export const metricsRoutes: FastifyPluginAsyncTypebox = async (app) => {
     '/metrics',
     {
       config: { permission: 'read' },
+      // Scraped every few seconds: its requests are logged only when something is wrong.
+      logLevel: 'warn',
       schema: {
         tags: ['operations'],
         summary: 'Prometheus metrics',
