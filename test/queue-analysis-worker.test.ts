@@ -1,3 +1,4 @@
+import { pino } from 'pino';
 import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
@@ -31,8 +32,8 @@ afterEach(async () => {
   await fixture.remove();
 });
 
-function startWorker(): AnalysisWorker {
-  const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+function startWorker(logger?: pino.Logger): AnalysisWorker {
+  const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix, logger });
   workers.push(worker);
   return worker;
 }
@@ -49,6 +50,20 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     expect(failure).toMatchObject({ job_id: upload.job_id, upload_id: upload.upload_id, attempts: 1 });
     expect(failure?.code).toMatch(/^INPUT_/);
     expect(await fixture.store.hasResult(upload.job_id)).toBe(false);
+  });
+
+  it('logs one info line per completed job with its upload, sample, channels and duration', async () => {
+    const upload = await fixture.storeUpload(4);
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    const lines: Record<string, unknown>[] = [];
+    startWorker(pino({ level: 'info' }, { write: (line: string) => void lines.push(JSON.parse(line)) }));
+    await eventually(() => lines.length > 0);
+    expect(lines).toEqual([
+      expect.objectContaining({
+        level: 30, msg: 'analysis job completed', job_id: upload.job_id, upload_id: upload.upload_id, sample_id: 'S-TEST',
+        channels: 1, duration_ms: expect.any(Number),
+      }),
+    ]);
   });
 
   it('fails a job whose raw bytes are missing from the store once', async () => {

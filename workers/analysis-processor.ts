@@ -64,6 +64,8 @@ async function batchCancelled(batchId: string): Promise<boolean> {
 
 export interface AnalysisJobOutcome {
   job_id: string;
+  /** Null for a job of a cancelled batch, which ends without reading its upload. */
+  sample_id: string | null;
   channels: number;
   /** False when another attempt had already stored the result, or the job's batch was cancelled. */
   wrote_result: boolean;
@@ -74,11 +76,11 @@ export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobDa
   const existing = await store.getResult(jobId);
   if (existing) {
     await notifyCompleted(jobId, existing.upload_id, existing.sample_id, existing.batch_id);
-    return { job_id: jobId, channels: existing.results.length, wrote_result: false };
+    return { job_id: jobId, sample_id: existing.sample_id, channels: existing.results.length, wrote_result: false };
   }
   // A batch cancelled while Redis was away (or between queueing and now) keeps its jobs in the queue: they end here, unanalysed.
   if (job.data.batch_id !== null && (await batchCancelled(job.data.batch_id))) {
-    return { job_id: jobId, channels: 0, wrote_result: false };
+    return { job_id: jobId, sample_id: null, channels: 0, wrote_result: false };
   }
   const upload = await store.getUpload(job.data.upload_id);
   try {
@@ -135,7 +137,7 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
     results,
   });
   await notifyCompleted(jobId, upload.upload_id, upload.sample_id, data.batch_id);
-  return { job_id: jobId, channels: results.length, wrote_result: wrote };
+  return { job_id: jobId, sample_id: upload.sample_id, channels: results.length, wrote_result: wrote };
 }
 
 /** The upload's samples: as the API kept them, else parsed here and kept for the next analysis of the same bytes (an archive reprocess). */

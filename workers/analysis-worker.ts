@@ -2,6 +2,7 @@ import { existsSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker, type Job } from 'bullmq';
+import type { Logger } from 'pino';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { AnalysisJobOutcome } from './analysis-processor.js';
 import { DEFAULT_ANALYSIS_QUEUE_NAME, type AnalysisJobData } from './analysis-queue.js';
@@ -26,6 +27,8 @@ export interface AnalysisWorkerOptions {
   /** Webhook delivery attempts and first backoff (see WebhookNotifier). Defaults 8 and 5000 ms. */
   webhookAttempts?: number;
   webhookBackoffDelayMs?: number;
+  /** Where each completed job (info) and each failed attempt (warn) is logged. */
+  logger?: Logger;
 }
 
 /**
@@ -59,6 +62,19 @@ export class AnalysisWorker {
     this.worker.on('failed', (job, error) => void this.recordFinalFailure(store, job, error));
     // Redis outages are retried by ioredis; without a listener Node would treat the event as fatal.
     this.worker.on('error', () => undefined);
+    const logger = options.logger;
+    if (logger) {
+      this.worker.on('completed', (job, outcome) =>
+        logger.info(
+          {
+            job_id: job.id, upload_id: job.data.upload_id, sample_id: outcome.sample_id, channels: outcome.channels,
+            duration_ms: job.processedOn && job.finishedOn ? job.finishedOn - job.processedOn : null,
+          },
+          'analysis job completed',
+        ),
+      );
+      this.worker.on('failed', (job, error) => logger.warn({ job_id: job?.id, attempts: job?.attemptsMade, err: error.message }, 'analysis attempt failed'));
+    }
   }
 
   /**

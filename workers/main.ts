@@ -58,8 +58,8 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
     concurrency: processes,
     lockDurationMs: settings.lockDurationMs,
     stalledIntervalMs: settings.stalledIntervalMs,
+    logger,
   });
-  analysis.worker.on('failed', (job, error) => logger.warn({ job_id: job?.id, attempts: job?.attemptsMade, err: error.message }, 'analysis attempt failed'));
   if (metricsRegistry) observeAnalysisWorker(analysis, metricsRegistry);
 
   const webhooks = new WebhookDeliveryWorker(store, new WebhookRegistry(store, settings.webhookAllowlist), { redisUrl, prefix: settings.prefix, logger });
