@@ -84,6 +84,20 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     });
   });
 
+  it("passes on the reference's own analysis warnings: every comparison stands on it", async () => {
+    // The reference's header says 60 W while the upload gives 50 W: its analysis warns, the later one's does not.
+    const reference = Buffer.from(readFileSync(campaign[0], 'utf8').replace('# power_W: 50', '# power_W: 60'));
+    const ids: string[] = [];
+    for (const payload of [reference, readFileSync(campaign[3])]) {
+      const answer = await ctx.app.inject({ method: 'POST', url: '/v1/transients?sample_id=M31W&power_W=50', headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload });
+      expect(answer.statusCode).toBe(202);
+      ids.push(answer.json().upload_id);
+    }
+    await eventually(async () => (await Promise.all(ids.map(async (id) => ctx.store.hasResult((await ctx.store.getUpload(id))!.job_id)))).every(Boolean));
+    const report = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31W/degradation', headers: bearer('reader') })).json();
+    expect(report.warnings).toEqual(["the reference's analysis warns: a heating power of 50 W was given, and used, where the file's header lines say 60 W"]);
+  }, 60_000);
+
   it('takes another reference and limit, and refuses what it cannot answer', async () => {
     const reference = (await trend()).json().later[0].upload_id as string;
     const report = (await trend(`?reference_upload_id=${reference}&rth_rise_limit_percent=1`)).json();

@@ -117,6 +117,17 @@ describe('heatpath degradation', () => {
     expect(run.stdout).toContain('AQG 324 decide');
     expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
   });
+
+  it("shows the reference's own warnings, in text and JSON: every comparison stands on it", () => {
+    // The reference's header says 60 W while 50 W is given for all files: only the reference warns.
+    const reference = file('m31-reference.csv', readFileSync(campaign[0], 'utf8').replace('# power_W: 50', '# power_W: 60'));
+    const text = heatpath('degradation', reference, campaign[3], '--power-w', '50');
+    expect(text.code).toBe(0);
+    expect(text.stdout).toMatch(/m31-reference\.csv \(reference\): a heating power of 50 W was given, and used, where the file's header lines say 60 W/);
+    const json = JSON.parse(heatpath('degradation', reference, campaign[3], '--power-w', '50', '--format', 'json').stdout);
+    expect(json.reference.warnings).toEqual(["a heating power of 50 W was given, and used, where the file's header lines say 60 W"]);
+    expect(json.later[0].warnings.some((w: string) => w.includes('header lines say'))).toBe(false);
+  });
 });
 
 describe('heatpath degradation with a bad later file', () => {

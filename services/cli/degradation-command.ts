@@ -65,7 +65,7 @@ function degradationRow(reference: ComparedMeasurement, measurement: ComparedMea
 export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number) {
   return {
     heatpath_degradation: 1,
-    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W },
+    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: reference.result.quality.warnings },
     rth_rise_limit_percent: limitPercent,
     later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
     notes: DEGRADATION_NOTES,
@@ -89,7 +89,11 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
   ]);
   const widths = header.map((h, column) => Math.max(h.length, ...table.map((row) => row[column].length)));
   const line = (cells: string[]) => '  ' + cells.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('   ');
-  const warnings = rows.flatMap(({ measurement, comparison }) => comparison.warnings.map((w) => `  ${measurement.file}: ${w}`));
+  // The reference's own warnings first: every comparison stands on it.
+  const warnings = [
+    ...reference.result.quality.warnings.map((w) => `  ${reference.file} (reference): ${w}`),
+    ...rows.flatMap(({ measurement, comparison }) => comparison.warnings.map((w) => `  ${measurement.file}: ${w}`)),
+  ];
   return [
     `Package degradation against ${reference.file}` +
       `${referenceCycles === null ? '' : ` (${referenceCycles} cycles)`}: Rth total ${reference.result.rth_total_K_per_W.toPrecision(4)} K/W`,

@@ -78,7 +78,8 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
       notIncluded.push({ upload_id: measurement.upload.upload_id, job_id: measurement.job_id, reason: `not comparable with the reference: ${error.message}` });
     }
   }
-  const warnings: string[] = [];
+  // The reference's own analysis warnings: every comparison stands on it.
+  const warnings: string[] = reference.result.quality.warnings.map((w) => `the reference's analysis warns: ${w}`);
   const firstUpload = ordered[0];
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
