@@ -50,7 +50,7 @@ describe('heating power of a file of several channels', () => {
   });
 
   it('warns in every channel\'s result when one power serves all, naming the channels, the power and how to give each its own', () => {
-    for (const [lines, power, used_W] of [['# power_W: 48\n', undefined, 48], [demoPowerLines, { power_W: 51 }, 51]] as const) {
+    for (const [lines, power, used_W] of [['# power_W: 48\n', undefined, 48], ['# power_W: 48\n', { power_W: 51 }, 51]] as const) {
       const results = analyse(lines, power);
       for (const result of results) {
         expect(result.power_W).toBe(used_W);
@@ -59,10 +59,18 @@ describe('heating power of a file of several channels', () => {
         expect(warning).toContain('a "# power_W@M21: ..." line per channel');
       }
     }
-    // A power given against the channels' own lines is used, and the result says what it replaced.
-    expect(analyse(demoPowerLines, { power_W: 51 })[0].quality.warnings).toContain(
-      "a heating power of 51 W was given, and used for every channel, where the file's header lines give each channel its own (M21 48 W, M22 49.2 W)",
-    );
+    // A power given against the channels' own lines is used, and the result says what it replaced, once.
+    const overridden = analyse(demoPowerLines, { power_W: 51 })[0].quality.warnings;
+    expect(overridden).toContain("a heating power of 51 W was given, and used for every channel, where the file's header lines give each channel its own (M21 48 W, M22 49.2 W)");
+    expect(overridden.some((w) => sharedPower.test(w))).toBe(false);
+  });
+
+  it('pairs a channel\'s own voltage with the file\'s current (devices in series carry one current)', () => {
+    const results = analyse('# current_A: 20\n# voltage_V@M21: 2.4\n# voltage_V@M22: 2.46\n');
+    expect(results.map((r) => r.power_W)).toEqual([48, 49.2]);
+    const halfMissing = catchHeatpathError(() => analyse('# voltage_V@M21: 2.4\n# power_W@M22: 49.2\n'));
+    expect(halfMissing.code).toBe('POWER_REQUIRED');
+    expect(halfMissing.detail).toBe('the file gives no "# current_A@M21:" line and "# voltage_V@M21: 2.4": that is not a positive power_W, or current_A with voltage_V, in plain numbers');
   });
 
   it('refuses a channel line that names no channel, and a channel left without a power', () => {

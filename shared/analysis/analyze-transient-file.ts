@@ -19,7 +19,7 @@ import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { Calibration } from '../schemas/calibration.js';
 import { ALGORITHM_VERSION, HEATPATH_VERSION } from './algorithm-version.js';
 import { RESULT_CAUTION } from './result-caution.js';
-import { resolveAnalysisInputs } from './resolve-analysis-inputs.js';
+import { channelPowerLines, resolveAnalysisInputs } from './resolve-analysis-inputs.js';
 import { calibrationIdOf } from '../schemas/calibration-id.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
@@ -59,7 +59,8 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const inputWarnings = [
     ...headerWarnings,
     ...sharedCalibrationWarning(file),
-    ...(channelPowers ? [] : sharedPowerWarning(file, power_W)),
+    // A power given over the channels' own lines is already warned of, with those lines.
+    ...(channelPowers || channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
     ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];

@@ -34,19 +34,23 @@ export function resolveAnalysisInputs(
 /** Header keys of a heating power; a channel's own carry `@channel`. */
 const POWER_KEYS = ['power_W', 'current_A', 'voltage_V'] as const;
 
+/** The `# power_W@CHANNEL:` (or current_A@, voltage_V@) lines of a file. */
+export function channelPowerLines(file: TransientFile): string[] {
+  return Object.keys(file.meta).filter((key) => POWER_KEYS.some((base) => key.startsWith(`${base}@`)));
+}
+
 /** The channels' own powers from `# power_W@CHANNEL:` lines (or current and voltage), undefined when the file has none. */
 function channelPowersFromMeta(file: TransientFile, fileName: string): Map<string, Power> | undefined {
-  const named = Object.keys(file.meta).filter((key) => POWER_KEYS.some((base) => key.startsWith(`${base}@`)));
+  const named = channelPowerLines(file);
   if (named.length === 0) return undefined;
   const channels = file.channels.map((channel) => channel.name);
   const stray = named.find((key) => !channels.includes(key.slice(key.indexOf('@') + 1)));
   if (stray !== undefined) {
     throw new HeatpathError('POWER_REQUIRED', `the file's "# ${stray}:" line names no channel of the file (its channels: ${channels.join(', ')})`, { file: fileName });
   }
-  const fileWide = powerFromMeta(file, fileName, false);
   return new Map(
     channels.map((name) => {
-      const own = powerFromMeta(file, fileName, false, `@${name}`) ?? fileWide;
+      const own = powerFromMeta(file, fileName, false, `@${name}`, true) ?? powerFromMeta(file, fileName, false);
       if (own === undefined) {
         throw new HeatpathError('POWER_REQUIRED', `channel ${name} has no "# power_W@${name}:" line, and the file no "# power_W:" line for the channels without one of their own`, { file: fileName });
       }
@@ -120,9 +124,15 @@ function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFi
   return merged as AnalysisParameters;
 }
 
-/** Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata; `channel` ("@M21") reads a channel's own lines. */
-function powerFromMeta(file: TransientFile, fileName: string, required: boolean, channel = ''): Power | undefined {
-  const number = (key: string) => (file.meta[key + channel] !== undefined ? metadataNumber(file.meta[key + channel], key) : undefined);
+/**
+ * Power from the file's `power_W`, or `current_A` and `voltage_V`, metadata;
+ * `channel` ("@M21") reads a channel's own lines, and with `fileWideHalf` a
+ * channel's own voltage (or current) pairs with the file's current (or
+ * voltage): devices in series carry one current.
+ */
+function powerFromMeta(file: TransientFile, fileName: string, required: boolean, channel = '', fileWideHalf = false): Power | undefined {
+  const keyOf = (key: string) => (file.meta[key + channel] === undefined && fileWideHalf ? key : key + channel);
+  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataNumber(file.meta[keyOf(key)], key) : undefined);
   const candidate = file.meta[`power_W${channel}`] !== undefined
     ? { power_W: number('power_W') }
     : file.meta[`current_A${channel}`] !== undefined || file.meta[`voltage_V${channel}`] !== undefined
@@ -133,8 +143,8 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean,
     throw new HeatpathError('POWER_REQUIRED', `${file.quantity} input and no power given or found in the file's metadata`, { file: fileName });
   }
   if (!powerValidator.Check(candidate)) {
-    const lines = Object.keys(candidate).map((key) => `"# ${key}${channel}: ${file.meta[key + channel] ?? ''}"`).join(' and ');
-    throw new HeatpathError('POWER_REQUIRED', `the file's ${lines} is not a positive power_W, or current_A with voltage_V, in plain numbers`, { file: fileName });
+    const lines = Object.keys(candidate).map((key) => (file.meta[keyOf(key)] === undefined ? `no "# ${key + channel}:" line` : `"# ${keyOf(key)}: ${file.meta[keyOf(key)]}"`)).join(' and ');
+    throw new HeatpathError('POWER_REQUIRED', `the file gives ${lines}: that is not a positive power_W, or current_A with voltage_V, in plain numbers`, { file: fileName });
   }
   return candidate as Power;
 }
