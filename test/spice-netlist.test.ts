@@ -74,7 +74,7 @@ describe('SPICE netlists', () => {
     const netlist = fosterNetlist(foster, { name: 'module A/phase-1' });
     expect(netlist).toMatch(/^\.SUBCKT module_A_phase_1 junction reference$/m);
     expect(netlist).toMatch(/^\.ENDS module_A_phase_1$/m);
-    expect(netlist).toMatch(/^\* Stages: 5; Rth total = 1\.08000000000e\+0 K\/W$/m);
+    expect(netlist).toMatch(/^\* Stages: 5; their R add up to 1\.08000000000e\+0 K\/W \(the steady state of this model\)$/m);
     expect(netlist).toMatch(/K\/W/);
     expect(netlist).toMatch(/J\/K/);
     expect(netlist).toMatch(/^\* Caution: /m);

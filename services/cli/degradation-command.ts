@@ -1,3 +1,4 @@
+import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../shared/analysis/package-degradation.js';
 import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
@@ -65,7 +66,7 @@ function degradationRow(reference: ComparedMeasurement, measurement: ComparedMea
 export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number) {
   return {
     heatpath_degradation: 1,
-    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: reference.result.quality.warnings },
+    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: comparisonWarnings(reference.result) },
     rth_rise_limit_percent: limitPercent,
     later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
     notes: DEGRADATION_NOTES,
@@ -91,7 +92,7 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
   const line = (cells: string[]) => '  ' + cells.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('   ');
   // The reference's own warnings first: every comparison stands on it.
   const warnings = [
-    ...reference.result.quality.warnings.map((w) => `  ${reference.file} (reference): ${w}`),
+    ...comparisonWarnings(reference.result).map((w) => `  ${reference.file} (reference): ${w}`),
     ...rows.flatMap(({ measurement, comparison }) => comparison.warnings.map((w) => `  ${measurement.file}: ${w}`)),
   ];
   return [

@@ -1,3 +1,4 @@
+import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { DUAL_INTERFACE_DEFAULTS, dualInterfaceRthjc, type DualInterfaceRthjc } from '../../shared/numerics/dual-interface-rthjc.js';
@@ -120,7 +121,7 @@ function rthjcWarnings(a: ComparedMeasurement, b: ComparedMeasurement, compariso
   if (powerA !== null && powerB !== null && Math.abs(powerA / powerB - 1) > POWER_MISMATCH_FRACTION) {
     pair.push(`A was heated with ${powerA} W and B with ${powerB} W: the method compares two measurements of one device at one heating power; check the power of each`);
   }
-  return [...a.result.quality.warnings.map((w) => `A: ${w}`), ...b.result.quality.warnings.map((w) => `B: ${w}`), ...pair, ...comparison.warnings];
+  return [...comparisonWarnings(a.result).map((w) => `A: ${w}`), ...comparisonWarnings(b.result).map((w) => `B: ${w}`), ...pair, ...comparison.warnings];
 }
 
 /** Powers that differ by more than this are warned of: JESD51-14 compares two measurements of one device at one power. */

@@ -4,6 +4,9 @@ import { resampleOnLogTimeGrid } from '../numerics/log-time-grid.js';
 import type { FosterNetwork } from '../numerics/rc-network.js';
 import type { SteadyState } from '../numerics/steady-state.js';
 
+/** Every warning about the compact model starts so: commands that do not report the model (rthjc, degradation) leave them out. */
+export const COMPACT_MODEL_WARNING = 'compact model:';
+
 /**
  * The compact model is fitted on the Zth averaged onto this many points per
  * decade of log time: a handful of stages needs no more, the averaging lowers
@@ -35,11 +38,11 @@ export function fitCompactModel(
   const kept = foster.r_K_per_W.length;
   const left = stages - kept;
   const warnings = left > 0
-    ? [`compact model: ${kept} of the ${stages} stages asked for were kept; the fit keeps every resistance >= 0 and gave ${left} ${left === 1 ? 'stage' : 'stages'} none, which ${left === 1 ? 'was' : 'were'} left out`]
+    ? [`${COMPACT_MODEL_WARNING} ${kept} of the ${stages} stages asked for were kept; the fit keeps every resistance >= 0 and gave ${left} ${left === 1 ? 'stage' : 'stages'} none, which ${left === 1 ? 'was' : 'were'} left out`]
     : [];
   const fastest = foster.tau_s[0];
   if (fastest < time_s[0]) {
-    warnings.push(`compact model: its fastest stage (tau ${fastest.toPrecision(3)} s) is faster than the first sample at ${time_s[0].toPrecision(3)} s; it stands for the rise before the curve starts, not for a layer`);
+    warnings.push(`${COMPACT_MODEL_WARNING} its fastest stage (tau ${fastest.toPrecision(3)} s) is faster than the first sample at ${time_s[0].toPrecision(3)} s; it stands for the rise before the curve starts, not for a layer`);
   }
   const total_K_per_W = foster.r_K_per_W.reduce((sum, r) => sum + r, 0);
   const rth_K_per_W = steadyState.rth_K_per_W;
@@ -47,7 +50,7 @@ export function fitCompactModel(
   if (!steadyState.steady) {
     const slowest_s = foster.tau_s[kept - 1];
     warnings.push(
-      `compact model: the record ends before steady state, so its slowest stages are extrapolated: its stages add up to ${total_K_per_W.toPrecision(4)} K/W against Rth total ${rth_K_per_W.toPrecision(4)} K/W, ` +
+      `${COMPACT_MODEL_WARNING} the record ends before steady state, so its slowest stages are extrapolated: its stages add up to ${total_K_per_W.toPrecision(4)} K/W against Rth total ${rth_K_per_W.toPrecision(4)} K/W, ` +
         'a steady state for circuit simulation that the record does not show' +
         (slowest_s >= tau_bound_s * (1 - 1e-9)
           ? `; its slowest tau is held at ${tau_bound_s.toPrecision(3)} s, the record's length (a slower stage rises over the record almost in proportion to t, which fixes its R/tau but not its R)`
@@ -56,7 +59,7 @@ export function fitCompactModel(
     );
   } else if (Math.abs(deviation) > COMPACT_TOTAL_R_TOLERANCE) {
     warnings.push(
-      `compact model: its stages add up to ${total_K_per_W.toPrecision(4)} K/W, ${(100 * Math.abs(deviation)).toFixed(1)} % ${deviation < 0 ? 'below' : 'above'} Rth total (${rth_K_per_W.toPrecision(4)} K/W); ` +
+      `${COMPACT_MODEL_WARNING} its stages add up to ${total_K_per_W.toPrecision(4)} K/W, ${(100 * Math.abs(deviation)).toFixed(1)} % ${deviation < 0 ? 'below' : 'above'} Rth total (${rth_K_per_W.toPrecision(4)} K/W); ` +
         'a circuit simulation with it reaches a steady state off by as much: ask for more stages',
     );
   }

@@ -8,6 +8,7 @@ import { structureFunctionShift } from '../numerics/structure-function-shift.js'
 import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { DegradationComparison } from '../schemas/degradation-comparison.js';
 import { resultCumulativeStructure } from './result-structure-function.js';
+import { comparisonWarnings } from './comparison-warnings.js';
 
 /** An Rth rise of 20 % is a commonly used end-of-life criterion in power cycling (memory). */
 export const DEFAULT_RTH_RISE_LIMIT_PERCENT = 20;
@@ -32,6 +33,6 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
     shift_threshold_K_per_W: shift.threshold_K_per_W,
     shift_scatter_K_per_W: shift.scatter_K_per_W,
     curves: { c_J_per_K: Array.from(shift.c_J_per_K), reference_r_K_per_W: Array.from(shift.reference_r_K_per_W), shift_K_per_W: Array.from(shift.shift_K_per_W) },
-    warnings: [...later.quality.warnings, ...shift.warnings],
+    warnings: [...comparisonWarnings(later), ...shift.warnings],
   };
 }

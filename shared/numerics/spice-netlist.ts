@@ -63,7 +63,7 @@ function subcircuit(name: string, description: string, r: Float64Array, elements
     `* heatpath thermal model ${safeName}: ${description}`,
     '* Units: current = heat flow (W), voltage = temperature rise (K),',
     '*        resistance = thermal resistance (K/W), capacitance = heat capacity (J/K)',
-    `* Stages: ${r.length}; Rth total = ${formatValue(rth)} K/W`,
+    `* Stages: ${r.length}; their R add up to ${formatValue(rth)} K/W (the steady state of this model)`,
     CAUTION,
     `.SUBCKT ${safeName} junction reference`,
     ...elements,

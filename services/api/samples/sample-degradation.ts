@@ -1,3 +1,4 @@
+import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
 import { compareForDegradation, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
@@ -79,7 +80,7 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     }
   }
   // The reference's own analysis warnings: every comparison stands on it.
-  const warnings: string[] = reference.result.quality.warnings.map((w) => `the reference's analysis warns: ${w}`);
+  const warnings: string[] = comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`);
   const firstUpload = ordered[0];
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
