@@ -99,12 +99,21 @@ describe('steadyStateRth on sparse and on short records', () => {
     expect(result.warnings).toEqual([expect.stringMatching(/record ends before steady state: .* Rth total \(0\.764\d K\/W, where the curve ends\) is a lower bound/)]);
   });
 
-  it('does not call a record unsteady for a rise within its noise', () => {
+  it('does not call a record unsteady, or falling, for a slope within its noise', () => {
     // A flat end (the slab, settled) with seeded noise of 1 % of Rth: the slope of its window scatters by about the limit.
     const random = createRandom(9);
     for (let draw = 0; draw < 20; draw++) {
       const noisy = zth.map((z) => z + 0.01 * rth * gaussian(random));
-      expect(steadyStateRth(times, noisy, 0.01 * rth).steady).toBe(true);
+      const result = steadyStateRth(times, noisy, 0.01 * rth);
+      expect(result.steady).toBe(true);
+      expect(result.warnings).toEqual([]);
     }
+  });
+
+  it('warns of an end that falls, which a passive thermal path cannot do (every Foster term rises)', () => {
+    // The settled slab with a reference drifting over its last 0.3 decades: Zth falls by 3 % of Rth there.
+    const drifting = zth.map((z, i) => z - 0.03 * rth * Math.max(0, (Math.log10(times[i]) + 0.3) / 0.3));
+    const result = steadyStateRth(times, drifting, 0.001 * rth);
+    expect(result.warnings).toEqual([expect.stringMatching(/^Zth falls by \d\.\d % of Rth over the last 0\.30 decades of the record, which a passive thermal path cannot do: the reference temperature drifted/)]);
   });
 });

@@ -81,7 +81,15 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   // Each half's trimmed mean taken as about as precise as its plain mean, sigma / sqrt(half).
   const riseStandardError_K_per_W = (noise_K_per_W * nominalDecades * Math.sqrt(2 / slope.half)) / slope.run_decades;
   const steady = !(window_rise_K_per_W - 2 * riseStandardError_K_per_W > STEADY_STATE_RISE_LIMIT * rth_K_per_W);
-  const warnings = steady
+  // A passive thermal path settles monotonically (every Foster term rises): an end that falls is a drifting reference or an artefact.
+  const falls = window_rise_K_per_W + 2 * riseStandardError_K_per_W < -STEADY_STATE_RISE_LIMIT * rth_K_per_W;
+  const warnings = falls
+    ? [
+        `Zth falls by ${((-100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over the last ${nominalDecades.toFixed(2)} decades of the record, which a passive thermal path cannot do: ` +
+          `the reference temperature drifted (coolant or cold plate warming during a cooling record) or the end holds an artefact, and Rth total (${rth_K_per_W.toPrecision(4)} K/W, read where the curve ends) is off by as much; ` +
+          'check the reference temperature and the end of the record',
+      ]
+    : steady
     ? []
     : [
         `the record ends before steady state: Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over its last ${nominalDecades.toFixed(2)} decades, ` +
