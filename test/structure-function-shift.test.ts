@@ -131,12 +131,14 @@ describe('structure-function shift of a cracking die attach', () => {
     const [reference, later] = constructedPair(dR);
     const shift = structureFunctionShift(reference, later);
     expect(shift.start?.grid_index).toBe(73);
+    expect(shift.start?.well_placed).toBe(false);
     expect(shift.settled_shift_K_per_W).toBeCloseTo(0.03, 10);
     const warning = shift.warnings.find((w) => w.startsWith('where the shift starts is not well determined at this noise'));
     expect(warning).toContain(`fits best at C_sum ${shift.c_J_per_K[40].toPrecision(3)} J/K`);
     // The same step without the dips: both readings agree, no warning.
     const clean = structureFunctionShift(reference, constructedPair(Float64Array.from(dR, (_, k) => (k >= 40 ? 0.03 : 0)))[1]);
     expect(clean.start?.grid_index).toBe(40);
+    expect(clean.start?.well_placed).toBe(true);
     expect(clean.warnings).toEqual([]);
   });
 

@@ -74,6 +74,11 @@ export function degradationReport(reference: ComparedMeasurement, rows: Degradat
   };
 }
 
+/** A place the shift may not start at: marked in the table, explained in the warnings. */
+function uncertain(comparison: DegradationComparison): string {
+  return comparison.shift_start?.well_placed === false ? '? ' : '';
+}
+
 /** The readable table of `heatpath degradation`: one row per later file. */
 export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number): string {
   const referenceCycles = cycleCountFromMeta(reference.meta);
@@ -83,8 +88,8 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
     cycles === null ? '-' : String(cycles),
     `${comparison.rth_total_K_per_W.toPrecision(4)} K/W`,
     `${comparison.rth_change_percent >= 0 ? '+' : ''}${comparison.rth_change_percent.toFixed(1)} %`,
-    comparison.shift_start === null ? 'no shift' : `${comparison.shift_start.r_sum_K_per_W.toPrecision(3)} K/W`,
-    comparison.shift_start === null ? '-' : `${comparison.shift_start.c_sum_J_per_K.toPrecision(3)} J/K`,
+    comparison.shift_start === null ? 'no shift' : `${uncertain(comparison)}${comparison.shift_start.r_sum_K_per_W.toPrecision(3)} K/W`,
+    comparison.shift_start === null ? '-' : `${uncertain(comparison)}${comparison.shift_start.c_sum_J_per_K.toPrecision(3)} J/K`,
     comparison.added_r_K_per_W === null ? '-' : `${comparison.added_r_K_per_W.toPrecision(3)} K/W`,
     comparison.rth_rise_exceeds_limit ? 'END OF LIFE?' : 'no',
   ]);
@@ -100,6 +105,7 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
       `${referenceCycles === null ? '' : ` (${referenceCycles} cycles)`}: Rth total ${reference.result.rth_total_K_per_W.toPrecision(4)} K/W`,
     line(header),
     ...table.map(line),
+    ...(rows.some(({ comparison }) => uncertain(comparison)) ? ['  ? the degraded layer is not well placed at this noise: see the warnings for where a step fits best.'] : []),
     ...DEGRADATION_NOTES.map((note) => `  ${note}`),
     ...(warnings.length > 0 ? ['Warnings:', ...warnings] : []),
     `Caution: ${RESULT_CAUTION}`,

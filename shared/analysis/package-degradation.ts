@@ -27,7 +27,7 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
     rth_total_K_per_W: later.rth_total_K_per_W,
     rth_change_percent: rthChangePercent,
     rth_rise_exceeds_limit: rthChangePercent > rthRiseLimitPercent,
-    shift_start: shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K },
+    shift_start: shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K, well_placed: shift.start.well_placed },
     added_r_K_per_W: shift.settled_shift_K_per_W,
     structure_rth_change_K_per_W: shift.rth_change_K_per_W,
     shift_threshold_K_per_W: shift.threshold_K_per_W,

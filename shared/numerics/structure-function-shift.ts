@@ -96,8 +96,12 @@ export interface StructureFunctionShift {
   scatter_K_per_W: number;
   /** The threshold the shift had to exceed. */
   threshold_K_per_W: number;
-  /** Where the shift first exceeds the threshold for good; null when it never does. */
-  start: { c_J_per_K: number; reference_r_K_per_W: number; grid_index: number } | null;
+  /**
+   * Where the shift first exceeds the threshold for good; null when it never
+   * does. well_placed is false when the best-fitting step lies elsewhere (a
+   * warning names both places).
+   */
+  start: { c_J_per_K: number; reference_r_K_per_W: number; grid_index: number; well_placed: boolean } | null;
   /** The added resistance: the median of dR beyond the start; null without a start or a stretch to settle on. */
   settled_shift_K_per_W: number | null;
   /** R total of the later curve minus that of the reference (the ends of the structure functions). */
@@ -134,7 +138,7 @@ export function structureFunctionShift(
         `over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond: a layer that added less cannot be told from noise`,
     );
   } else {
-    start = { c_J_per_K: logInterpolate(c_J_per_K, found.position), reference_r_K_per_W: valueAtPosition(refR, found.position), grid_index: found.index };
+    start = { c_J_per_K: logInterpolate(c_J_per_K, found.position), reference_r_K_per_W: valueAtPosition(refR, found.position), grid_index: found.index, well_placed: true };
     if (found.index === 0) {
       warnings.push('the curves differ already at the smallest common C_sum (next to the junction): a different device, power, calibration or early-time correction rather than a degraded layer?');
     }
@@ -143,6 +147,7 @@ export function structureFunctionShift(
       settled_shift_K_per_W = median(shift_K_per_W.slice(settleFrom));
       const step = leastSquaresStepIndex(shift_K_per_W, settled_shift_K_per_W);
       if (Math.abs(step - found.index) > settings.locationDecades * settings.pointsPerDecade) {
+        start.well_placed = false;
         warnings.push(
           `where the shift starts is not well determined at this noise: it exceeds the threshold for good from C_sum ${start.c_J_per_K.toPrecision(3)} J/K (R_sum ${start.reference_r_K_per_W.toPrecision(3)} K/W), ` +
             `but a step to the settled ${settled_shift_K_per_W.toPrecision(2)} K/W fits best at C_sum ${c_J_per_K[step].toPrecision(3)} J/K (R_sum ${refR[step].toPrecision(3)} K/W); ` +

@@ -5,9 +5,17 @@ export const DegradationComparisonSchema = Type.Object({
   rth_total_K_per_W: Type.Number(),
   rth_change_percent: Type.Number({ description: 'Rth total against the reference, in per cent.' }),
   rth_rise_exceeds_limit: Type.Boolean({ description: 'Rth rose by more than the limit: a possible end of life, for the qualification plan to judge.' }),
-  shift_start: Type.Union([Type.Object({ r_sum_K_per_W: Type.Number(), c_sum_J_per_K: Type.Number() }), Type.Null()], {
-    description: 'Where the cumulative structure function starts to shift, counted from the junction: the position of the degraded layer; null when no shift persists.',
-  }),
+  shift_start: Type.Union(
+    [
+      Type.Object({
+        r_sum_K_per_W: Type.Number(),
+        c_sum_J_per_K: Type.Number(),
+        well_placed: Type.Boolean({ description: 'False when a step to the settled shift fits best elsewhere: which layer degraded is then uncertain (a warning names both places).' }),
+      }),
+      Type.Null(),
+    ],
+    { description: 'Where the cumulative structure function starts to shift, counted from the junction: the position of the degraded layer; null when no shift persists.' },
+  ),
   added_r_K_per_W: Type.Union([Type.Number(), Type.Null()], { description: 'The resistance the degraded layer added, where the shift settles.' }),
   structure_rth_change_K_per_W: Type.Number(),
   shift_threshold_K_per_W: Type.Number({ description: 'Shifts below this are taken as noise.' }),
