@@ -29,7 +29,7 @@
  *          median ratio reported (this machine's speed drifts by tens of per
  *          cent between runs a minute apart)
  *          --archive M (= uploads) --samples-per-decade S (620, about 100 kB)
- *          --warmup U (10 per analysis process)
+ *          --warmup U (40 per analysis process)
  *          --cpu-profile DIR (V8 CPU profiles of the service's processes, for
  *          chrome://inspect or any .cpuprofile viewer; profiling slows them).
  * Bounded: every wait has a deadline; everything is removed at the end.
@@ -67,8 +67,14 @@ const ARCHIVE = Math.min(option('archive', UPLOADS), UPLOADS * ROUNDS);
 const SAMPLES_PER_DECADE = option('samples-per-decade', 620);
 const DEADLINE_MS = 15 * 60_000;
 const ANALYSIS_PROCESSES = WORKERS > 0 ? WORKERS : defaultAnalysisProcesses();
-/** Warm-up uploads: about ten jobs per analysis process before timing, as the compute-bound threads run five first (each process compiles the analysis as it goes). */
-const WARMUP_UPLOADS = option('warmup', 10 * ANALYSIS_PROCESSES);
+/**
+ * Warm-up uploads: about forty jobs per analysis process before timing. Each
+ * process compiles the analysis as it goes: measured inside the processes,
+ * a job's CPU time was 38 ms averaged over a process's first 40 jobs and
+ * 19-20 ms for each of the next 80 (Node 20, AMD EPYC), so with fewer the
+ * figures measure compilation, which a service that runs for weeks is past.
+ */
+const WARMUP_UPLOADS = option('warmup', 40 * ANALYSIS_PROCESSES);
 const TOKEN = 'bench-token-0123456789abcdef';
 
 function percentile(values: number[], p: number): number {
