@@ -62,6 +62,16 @@ describe('heatpath submit (real API, real Redis)', () => {
     expect(await api.store.listUploads({ sample_id: 'S-61' })).toHaveLength(2);
   });
 
+  it('sends the spellings the command line accepts as the server reads them: a decimal comma, a choice in any case', async () => {
+    const file = await writeTransient('comma.csv', 64);
+    const options = ['--server', server, '--key', testTokens.bench, '--sample', 'S-64', '--power-w', '51,3', '--kind', 'Cooling', '--method', 'FOURIER'];
+    expect(await runSubmitCommand([file, ...options], print)).toBe(0);
+    const [stored] = await api.store.listUploads({ sample_id: 'S-64' });
+    expect(stored.power).toEqual({ power_W: 51.3 });
+    expect(stored.parameters.kind).toBe('cooling');
+    expect(stored.parameters.method).toBe('fourier');
+  });
+
   it('exits 2 with one line per refused file and still submits the others', async () => {
     const bad = await writeTransient('empty.csv', -1);
     const good = await writeTransient('good.csv', 63);

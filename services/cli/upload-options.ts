@@ -4,8 +4,9 @@ import type { UploadTarget } from './transient-upload-client.js';
 
 /**
  * Options of the commands that upload to a server, and the upload query
- * parameter each one becomes. Values go to the server as given: the service
- * validates them (one place for the rules) and answers a bad one with 400.
+ * parameter each one becomes. Values go to the server as given, but for the
+ * spellings the command line accepts beyond the server's (serverSpelling): the
+ * service validates them (one place for the rules) and answers a bad one with 400.
  */
 const METADATA_OPTIONS = {
   sample: 'sample_id',
@@ -59,12 +60,25 @@ export function uploadTargetFrom(values: Record<string, unknown>, command: strin
   return { server, key, attempts };
 }
 
+/** Parameters whose values are choices of lower-case words. */
+const CHOICE_PARAMETERS: ReadonlySet<string> = new Set(['kind', 'method']);
+
+/**
+ * A value as the server reads it, where the command line is more lenient (as
+ * `analyze` is): a decimal comma becomes a point (`51,3`), a choice lower case
+ * (`Cooling`). Anything else goes as given, for the server to judge.
+ */
+function serverSpelling(parameter: string, value: string): string {
+  if (CHOICE_PARAMETERS.has(parameter)) return value.trim().toLowerCase();
+  return /^\s*[+-]?\d+,\d+\s*$/.test(value) ? value.trim().replace(',', '.') : value;
+}
+
 /** The upload query parameters the options give. */
 export function uploadMetadataFrom(values: Record<string, unknown>): URLSearchParams {
   const query = new URLSearchParams();
   for (const [option, parameter] of Object.entries(METADATA_OPTIONS)) {
     const value = values[option];
-    if (typeof value === 'string') query.set(parameter, value);
+    if (typeof value === 'string') query.set(parameter, serverSpelling(parameter, value));
   }
   for (const tag of (values.tag as string[] | undefined) ?? []) query.append('tags', tag);
   return query;
