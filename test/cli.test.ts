@@ -259,6 +259,19 @@ describe('heatpath analyze options written as in the files\' header lines', () =
   });
 });
 
+describe('heatpath analyze text summary of the early time', () => {
+  it('shows the sqrt(t) fit and its value at t = 0 also when the window starts at the first sample (nothing before it replaced)', () => {
+    // The demo file of M07 as a bench that blanks the first 10 us records it.
+    const text = readFileSync(join(demo, 'fh-tt1_m07_cooling.csv'), 'utf8').split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) >= 1e-5).join('\n');
+    const path = file('from-10us.csv', text);
+    const result = JSON.parse(heatpath('analyze', path, '--format', 'json').stdout);
+    expect(result.early_time.applied).toBe(false);
+    const summary = heatpath('analyze', path).stdout;
+    expect(summary).toMatch(new RegExp(`early time {7}sqrt\\(t\\) fit .*value at t = 0 ${result.early_time.t0_value.toPrecision(6)} \\+- `));
+    expect(summary).not.toMatch(/not applied|replaced by the fit/);
+  });
+});
+
 describe('heatpath analyze on an archive with a bad file', () => {
   it('analyses the good files, reports the bad one on one line, and exits 2', () => {
     const bad = file('broken.csv', 'time_s,temperature_C\n1e-6,abc\n');

@@ -7,9 +7,9 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
   const lines = [
     `${file}  channel ${result.source.channel}  (${result.source.quantity}, ${result.source.points} samples)`,
     `  Rth total        ${fixed(result.rth_total_K_per_W)} K/W` + (result.power_W !== null ? `   at P = ${result.power_W.toPrecision(4)} W` : ''),
-    early.applied
-      ? `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}`
-      : '  early time       not applied',
+    // The fit's value at t = 0 is used either way; `applied` says whether samples before the window were replaced.
+    `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}, ` +
+      `value at t = 0 ${early.t0_value.toPrecision(6)} +- ${early.t0_standard_error.toPrecision(2)}${early.applied ? '; the samples before the window replaced by the fit' : ''}`,
     quality.noise_K !== null ? `  noise            ${quality.noise_K.toPrecision(2)} K RMS` : `  noise            ${quality.noise_K_per_W.toPrecision(2)} K/W RMS`,
     `  spectrum         ${result.provenance.method}, ${counted(quality.deconvolution_iterations, 'iteration')}, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
     `  Foster / Cauer   ${result.foster.length} / ${counted(result.cauer.length, 'stage')}`,

@@ -32,7 +32,7 @@ export const AnalysisResultSchema = Type.Object({
     spice: Type.Object({ foster: Type.String(), cauer: Type.String() }),
   }),
   early_time: Type.Object({
-    applied: Type.Boolean(),
+    applied: Type.Boolean({ description: 'True when samples before the window were replaced by the fitted law; the fit\'s value at t = 0 is used either way.' }),
     window_start_s: Type.Number(),
     window_end_s: Type.Number(),
     automatic: Type.Boolean(),
