@@ -8,6 +8,10 @@ import { jobIdFor } from '../services/jobs/job-id.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { UploadRecovery } from '../workers/recover-uploads.js';
+import { BatchReprocessor } from '../workers/reprocess-batch.js';
+import { rm, writeFile } from 'node:fs/promises';
+import { join } from 'node:path';
 import { observeAnalysisWorker } from '../workers/worker-metrics.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
@@ -51,6 +55,22 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     expect(failure?.code).toMatch(/^INPUT_/);
     expect(await fixture.store.hasResult(upload.job_id)).toBe(false);
   });
+
+  it('records no failure for a job that failed of the store itself, so recovery runs it again once the store works', async () => {
+    const upload = await fixture.storeUpload(5);
+    // The results folder is a file: every result write fails with ENOTDIR, as on a broken data directory.
+    await rm(join(fixture.dataDir, 'results'), { recursive: true, force: true });
+    await writeFile(join(fixture.dataDir, 'results'), 'not a folder');
+    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    startWorker();
+    await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'failed');
+    expect(await fixture.store.hasFailure(upload.job_id)).toBe(false);
+
+    await rm(join(fixture.dataDir, 'results'));
+    const sweep = await new UploadRecovery(fixture.store, queue, new BatchReprocessor(fixture.store, queue)).sweep();
+    expect(sweep.rerun_failed).toEqual([upload.job_id]);
+    await eventually(() => fixture.store.hasResult(upload.job_id));
+  }, 60_000);
 
   it('logs one info line per completed job with its upload, sample, channels and duration', async () => {
     const upload = await fixture.storeUpload(4);

@@ -5,6 +5,7 @@ import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.
 import { isHeatpathError } from '../shared/errors/heatpath-error.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import type { TransientFile } from '../shared/input/transient-file.js';
+import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import type { AnalysisJobData } from './analysis-queue.js';
@@ -88,7 +89,8 @@ export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobDa
   } catch (error) {
     const unrecoverable = isHeatpathError(error) || error instanceof UnrecoverableError;
     const lastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
-    if (unrecoverable || lastAttempt) await recordFailure(job, jobId, upload, error);
+    // A full or broken store is no fault of the job: unrecorded, the recovery sweep runs it again once the store has room.
+    if ((unrecoverable || lastAttempt) && !isStoreOutage(error)) await recordFailure(job, jobId, upload, error);
     if (isHeatpathError(error)) throw new UnrecoverableError(`${error.code}: ${error.message}`);
     throw error;
   }

@@ -4,6 +4,7 @@ import { errorCatalogue, type ErrorCode } from '../../../shared/errors/error-cat
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { problemMediaType, problemResponse, problemTypeUri, type Problem } from '../schemas/problem-schema.js';
 import { plainValidationIssues } from '../../../shared/schemas/plain-validation-issues.js';
+import { isStoreOutage } from '../../store/store-outage.js';
 
 /**
  * Every error leaves the service as RFC 9457 problem+json with a stable code
@@ -76,13 +77,11 @@ const statusCodes: Record<number, ErrorCode> = {
   503: 'SERVICE_UNAVAILABLE',
 };
 
-/** File-system failures of the store: the data directory is full, read-only or gone. */
-const storeFailures = new Set(['ENOSPC', 'EDQUOT', 'EROFS', 'EACCES', 'EPERM', 'ENOTDIR', 'ENOENT', 'EIO']);
 
 function toHeatpathError(error: FastifyError, maxUploadBytes: number): HeatpathError {
   if (isHeatpathError(error)) return error;
   if (error.validation) return new HeatpathError('REQUEST_INVALID', describeValidation(error));
-  if (error.code !== undefined && storeFailures.has(error.code) && 'syscall' in error) {
+  if (isStoreOutage(error)) {
     return new HeatpathError('SERVICE_UNAVAILABLE', `the data directory cannot be used (${error.code})`);
   }
   const status = error.statusCode ?? 500;
