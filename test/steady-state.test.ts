@@ -36,7 +36,7 @@ describe('steadyStateRth', () => {
     const result = steadyStateRth(short, short.map((t) => slabZth(SILICON_DIE_SLAB, t)), 0);
     expect(result.window_rise_K_per_W).toBeGreaterThan(STEADY_STATE_RISE_LIMIT * result.rth_K_per_W);
     expect(result.steady).toBe(false);
-    expect(result.warnings.join(' ')).toMatch(/record ends before steady state: Zth still rises .* is a lower bound .* record longer/);
+    expect(result.warnings.join(' ')).toMatch(/record ends before steady state: Zth still rises .* the true Rth total is at least the level .* record longer/);
     expect(result.rth_K_per_W).toBeLessThan(rth);
   });
 
@@ -85,7 +85,7 @@ describe('steadyStateRth on sparse and on short records', () => {
     }
   });
 
-  it('on a record that ends while Zth still rises, reads where the curve ends and calls it a lower bound', () => {
+  it('on a record that ends while Zth still rises, reads the trend at its end and gives the level reached as a lower bound', () => {
     // 17 equal Foster stages, one per half decade of tau from 1e-4 to 1e4 s (exact closed form): recorded to 100 s,
     // Zth still rises almost linearly in log t at the end, 0.7645 K/W against Rth = 1 K/W.
     const tau_s = Float64Array.from({ length: 17 }, (_, j) => 10 ** (-4 + j / 2));
@@ -96,7 +96,10 @@ describe('steadyStateRth on sparse and on short records', () => {
     // The mean of the window read 3.5 % below the end.
     expect(Math.abs(result.rth_K_per_W / z[z.length - 1] - 1)).toBeLessThan(0.001);
     expect(result.steady).toBe(false);
-    expect(result.warnings).toEqual([expect.stringMatching(/record ends before steady state: .* Rth total \(0\.764\d K\/W, where the curve ends\) is a lower bound/)]);
+    expect(result.warnings).toEqual([expect.stringMatching(/record ends before steady state: .* Rth total \(0\.764\d K\/W, the trend at the record's end\) is no steady state: the true Rth total is at least the level the last 6 samples reached, 0\.7\d+ K\/W/)]);
+    // That level is below the curve's end (a lower bound of Rth = 1 K/W, exact).
+    const level = Number(/reached, ([\d.]+) K\/W/.exec(result.warnings[0])![1]);
+    expect(level).toBeLessThanOrEqual(z[z.length - 1]);
   });
 
   it('does not call a record unsteady, or falling, for a slope within its noise', () => {

@@ -22,7 +22,9 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * estimate (Tukey & McLaughlin, Sankhya A 25, 1963): one spike moves neither.
  *
  * A curve still rising at its end has not reached steady state: Rth total is
- * then a lower bound and a warning says so. The rise is the line's slope times
+ * then the trend at the record's end (it can overshoot a curve that levels off
+ * within the window), and the warning gives the level the last samples
+ * reached, a lower bound of the true Rth total. The rise is the line's slope times
  * the nominal window (the last 5 % of the log-time span), not times the
  * window actually used, which sparse sampling widens; so, densely sampled, a
  * part whose slowest time constant is a tenth of the record length counts as
@@ -46,7 +48,7 @@ export const STEADY_STATE_TRIM_FRACTION = 0.2;
 export const STEADY_STATE_RISE_LIMIT = 0.01;
 
 export interface SteadyState {
-  /** The window's line at the last sample; a lower bound when `steady` is false. */
+  /** The window's line at the last sample; when `steady` is false, the trend at the record's end, and the warning gives the level reached, a lower bound. */
   rth_K_per_W: number;
   /** First time of the window read. */
   window_start_s: number;
@@ -93,7 +95,8 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
     ? []
     : [
         `the record ends before steady state: Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over its last ${nominalDecades.toFixed(2)} decades, ` +
-          `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, where the curve ends) is a lower bound and the slowest time constants are missing from the spectrum and the structure functions; ` +
+          `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, the trend at the record's end) is no steady state: the true Rth total is at least the level the last ${MIN_STEADY_STATE_SAMPLES} samples reached, ` +
+          `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are missing from the spectrum and the structure functions; ` +
           'record longer, until Zth levels off',
       ];
   return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, steady, warnings };
@@ -110,6 +113,16 @@ function twoGroupSlope(logTime: Float64Array, zth: Float64Array): { K_per_W_per_
   const meanOf = (values: Float64Array): number => values.reduce((sum, value) => sum + value, 0) / values.length;
   const run_decades = meanOf(logTime.subarray(later)) - meanOf(logTime.subarray(0, half));
   return { K_per_W_per_decade: (trimmedMean(zth.slice(later)) - trimmedMean(zth.slice(0, half))) / run_decades, half, run_decades };
+}
+
+/**
+ * The level the last MIN_STEADY_STATE_SAMPLES samples reached: their trimmed
+ * mean, which on a rising end lies at or below the end (a lower bound of Rth
+ * total up to the noise), where the line's end can overshoot a curve that is
+ * levelling off.
+ */
+function levelReached(zth_K_per_W: Float64Array): number {
+  return trimmedMean(zth_K_per_W.slice(zth_K_per_W.length - MIN_STEADY_STATE_SAMPLES));
 }
 
 /** Sorts `values` in place. */
