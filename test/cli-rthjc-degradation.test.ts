@@ -118,6 +118,17 @@ describe('heatpath degradation', () => {
     expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
   });
 
+  it('makes no end-of-life judgement between records that end at different times, and says why', () => {
+    // The campaign's reference cut at 0.5 s: its Rth total misses the slow part of Zth (a record of 100 s against 0.5 s).
+    const cut = readFileSync(campaign[0], 'utf8').split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= 0.5).join('\n');
+    const json = JSON.parse(heatpath('degradation', file('m31-short.csv', cut), campaign[1], '--format', 'json').stdout);
+    expect(json.later[0].rth_change_percent).toBeGreaterThan(20); // what the flag would have judged on
+    expect(json.later[0].rth_rise_exceeds_limit).toBeNull();
+    expect(json.later[0].warnings).toContainEqual(expect.stringMatching(/^the records end at different times \(reference 0\.490 s, this one 100 s\).*no end-of-life judgement is made/));
+    const text = heatpath('degradation', file('m31-short-text.csv', cut), campaign[1]).stdout;
+    expect(text.split('\n').find((line) => line.includes('cycle-020000'))).toMatch(/not judged$/);
+  });
+
   it("shows the reference's own warnings, in text and JSON: every comparison stands on it", () => {
     // The reference's header says 60 W while 50 W is given for all files: only the reference warns.
     const reference = file('m31-reference.csv', readFileSync(campaign[0], 'utf8').replace('# power_W: 50', '# power_W: 60'));

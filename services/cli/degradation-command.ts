@@ -91,7 +91,7 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
     comparison.shift_start === null ? 'no shift' : `${uncertain(comparison)}${comparison.shift_start.r_sum_K_per_W.toPrecision(3)} K/W`,
     comparison.shift_start === null ? '-' : `${uncertain(comparison)}${comparison.shift_start.c_sum_J_per_K.toPrecision(3)} J/K`,
     comparison.added_r_K_per_W === null ? '-' : `${comparison.added_r_K_per_W.toPrecision(3)} K/W`,
-    comparison.rth_rise_exceeds_limit ? 'END OF LIFE?' : 'no',
+    comparison.rth_rise_exceeds_limit === null ? 'not judged' : comparison.rth_rise_exceeds_limit ? 'END OF LIFE?' : 'no',
   ]);
   const widths = header.map((h, column) => Math.max(h.length, ...table.map((row) => row[column].length)));
   const line = (cells: string[]) => '  ' + cells.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('   ');

@@ -19,20 +19,31 @@ export const DEGRADATION_NOTES = [
   'The end-of-life flag marks an Rth rise above the limit; 20 % is recalled from memory as common in power-cycling practice: the qualification plan and AQG 324 decide.',
 ];
 
+/** Records whose last times differ by more than this factor were measured differently: their Rth totals are not compared. */
+export const RECORD_LENGTH_RATIO_LIMIT = 1.25;
+
 export function compareForDegradation(reference: AnalysisResult, later: AnalysisResult, rthRiseLimitPercent: number): DegradationComparison {
   const rthReference = reference.rth_total_K_per_W;
   const rthChangePercent = ((later.rth_total_K_per_W - rthReference) / rthReference) * 100;
   const shift = structureFunctionShift(resultCumulativeStructure(reference), resultCumulativeStructure(later));
+  const [referenceEnd_s, laterEnd_s] = [reference, later].map((result) => result.zth.time_s[result.zth.time_s.length - 1]);
+  const comparableLengths = Math.max(referenceEnd_s, laterEnd_s) / Math.min(referenceEnd_s, laterEnd_s) <= RECORD_LENGTH_RATIO_LIMIT;
+  const lengthWarnings = comparableLengths
+    ? []
+    : [
+        `the records end at different times (reference ${referenceEnd_s.toPrecision(3)} s, this one ${laterEnd_s.toPrecision(3)} s): a shorter record misses the slow part of Zth, ` +
+          'so the change of Rth total and a shift near the end of the shorter structure function say nothing about the package, and no end-of-life judgement is made; record both the same way',
+      ];
   return {
     rth_total_K_per_W: later.rth_total_K_per_W,
     rth_change_percent: rthChangePercent,
-    rth_rise_exceeds_limit: rthChangePercent > rthRiseLimitPercent,
+    rth_rise_exceeds_limit: comparableLengths ? rthChangePercent > rthRiseLimitPercent : null,
     shift_start: shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K, well_placed: shift.start.well_placed },
     added_r_K_per_W: shift.settled_shift_K_per_W,
     structure_rth_change_K_per_W: shift.rth_change_K_per_W,
     shift_threshold_K_per_W: shift.threshold_K_per_W,
     shift_scatter_K_per_W: shift.scatter_K_per_W,
     curves: { c_J_per_K: Array.from(shift.c_J_per_K), reference_r_K_per_W: Array.from(shift.reference_r_K_per_W), shift_K_per_W: Array.from(shift.shift_K_per_W) },
-    warnings: [...comparisonWarnings(later), ...shift.warnings],
+    warnings: [...comparisonWarnings(later), ...lengthWarnings, ...shift.warnings],
   };
 }

@@ -4,7 +4,9 @@ import { Type, type Static } from 'typebox';
 export const DegradationComparisonSchema = Type.Object({
   rth_total_K_per_W: Type.Number(),
   rth_change_percent: Type.Number({ description: 'Rth total against the reference, in per cent.' }),
-  rth_rise_exceeds_limit: Type.Boolean({ description: 'Rth rose by more than the limit: a possible end of life, for the qualification plan to judge.' }),
+  rth_rise_exceeds_limit: Type.Union([Type.Boolean(), Type.Null()], {
+    description: 'Rth rose by more than the limit: a possible end of life, for the qualification plan to judge; null when the two records end at different times and cannot be compared so (a warning says why).',
+  }),
   shift_start: Type.Union(
     [
       Type.Object({
