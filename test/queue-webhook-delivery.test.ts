@@ -58,6 +58,30 @@ const payload: Omit<WebhookPayload, 'links'> = {
 };
 
 
+/**
+ * Notifies `payload` once to a delivery worker that logs into the returned
+ * JSON lines, and waits for the delivery to be given up (its error line).
+ */
+async function logOfDeliveryGivenUp(
+  registry: WebhookRegistry,
+  attempts: number,
+  observe: (delivery: WebhookDeliveryWorker) => void = () => undefined,
+): Promise<Record<string, unknown>[]> {
+  const lines: Record<string, unknown>[] = [];
+  const logger = pino({ level: 'info' }, { write: (line: string) => void lines.push(JSON.parse(line)) });
+  const notifier = new WebhookNotifier(store, { redisUrl, prefix, attempts, backoffDelayMs: 50 });
+  const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix, logger });
+  observe(delivery);
+  try {
+    await notifier.notify(payload);
+    await eventually(() => lines.some((line) => line.level === 50), 20);
+  } finally {
+    await delivery.close();
+    await notifier.close();
+  }
+  return lines;
+}
+
 describe('webhooks (real Redis, local receiver)', () => {
   it('delivers a signed JSON POST and retries after a 500', async () => {
     const registry = new WebhookRegistry(store, [new URL(receiverUrl).origin]);
@@ -118,20 +142,9 @@ describe('webhooks (real Redis, local receiver)', () => {
   it('logs each failed attempt and the delivery given up, without body or signature, and counts outcomes', async () => {
     const registry = new WebhookRegistry(store, [new URL(receiverUrl).origin]);
     const webhook = await registry.register(receiverUrl, ['job.completed'], 'admin');
-    const lines: Record<string, unknown>[] = [];
-    const logger = pino({ level: 'info' }, { write: (line: string) => void lines.push(JSON.parse(line)) });
     const metrics = new Registry();
-    const notifier = new WebhookNotifier(store, { redisUrl, prefix, attempts: 2, backoffDelayMs: 50 });
-    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix, logger });
-    observeWebhookDeliveries(delivery, metrics);
     answers.push(503, 502);
-    try {
-      await notifier.notify(payload);
-      await eventually(() => lines.some((line) => line.level === 50), 20);
-    } finally {
-      await delivery.close();
-      await notifier.close();
-    }
+    const lines = await logOfDeliveryGivenUp(registry, 2, (delivery) => observeWebhookDeliveries(delivery, metrics));
     const fields = { webhook_id: webhook.webhook_id, job_id: 'job-abc', event: 'job.completed', attempts: 2 };
     expect(lines.filter((line) => line.level === 40)).toEqual([
       expect.objectContaining({ ...fields, attempt: 1, status: 503, msg: 'webhook delivery attempt failed' }),
@@ -152,17 +165,7 @@ describe('webhooks (real Redis, local receiver)', () => {
     await registry.register(receiverUrl, ['job.completed'], 'admin');
     await new Promise<void>((resolve) => server.close(() => resolve()));
     server.listen(0, '127.0.0.1'); // afterEach closes it again; the registered port stays closed
-    const lines: Record<string, unknown>[] = [];
-    const logger = pino({ level: 'info' }, { write: (line: string) => void lines.push(JSON.parse(line)) });
-    const notifier = new WebhookNotifier(store, { redisUrl, prefix, attempts: 1, backoffDelayMs: 50 });
-    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix, logger });
-    try {
-      await notifier.notify(payload);
-      await eventually(() => lines.some((line) => line.level === 50), 20);
-    } finally {
-      await delivery.close();
-      await notifier.close();
-    }
+    const lines = await logOfDeliveryGivenUp(registry, 1);
     expect(lines.find((line) => line.level === 40)).toMatchObject({ attempt: 1, err: expect.stringContaining('ECONNREFUSED') });
   });
 
