@@ -6,6 +6,7 @@ import type { Logger } from 'pino';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { AnalysisJobOutcome } from './analysis-processor.js';
+import { isFinalAttempt } from './final-attempt.js';
 import { DEFAULT_ANALYSIS_QUEUE_NAME, type AnalysisJobData } from './analysis-queue.js';
 import { processorEnvironment } from './processor-settings.js';
 import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
@@ -84,9 +85,8 @@ export class AnalysisWorker {
    */
   private async recordFinalFailure(store: TransientStore, job: Job<AnalysisJobData> | undefined, error: Error): Promise<void> {
     if (!job?.id) return;
-    const final = error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
     // A job that failed of a full or broken store stays unrecorded, so that recovery runs it again (analysis-processor.ts).
-    if (!final || isStoreOutage(error)) return;
+    if (!isFinalAttempt(job, error) || isStoreOutage(error)) return;
     await store
       .putFailure({
         job_id: job.id, upload_id: job.data.upload_id, batch_id: job.data.batch_id, failed_at: new Date().toISOString(),

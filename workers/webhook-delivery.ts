@@ -1,6 +1,7 @@
 import { UnrecoverableError, Worker, type Job } from 'bullmq';
 import type { Logger } from 'pino';
 import type { TransientStore } from '../services/store/transient-store.js';
+import { isFinalAttempt } from './final-attempt.js';
 import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
 import { WEBHOOK_QUEUE_NAME, type WebhookDeliveryData } from './webhook-notifier.js';
 import type { WebhookRegistry } from './webhook-registry.js';
@@ -82,11 +83,6 @@ export class WebhookDeliveryWorker {
   }
 }
 
-/** Whether this failure was the delivery's last: BullMQ does not run it again. */
-export function deliveryGivenUp(job: Job<WebhookDeliveryData>, error: Error): boolean {
-  return error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
-}
-
 function logFailedAttempt(logger: Logger, job: Job<WebhookDeliveryData>, error: Error): void {
   const cause = (error.cause as NodeJS.ErrnoException | undefined)?.code;
   const fields = {
@@ -98,5 +94,5 @@ function logFailedAttempt(logger: Logger, job: Job<WebhookDeliveryData>, error: 
     ...(error instanceof WebhookAnswerError ? { status: error.status } : { err: cause ? `${error.message} (${cause})` : error.message }),
   };
   logger.warn(fields, 'webhook delivery attempt failed');
-  if (deliveryGivenUp(job, error)) logger.error(fields, 'webhook delivery given up: the receiver gets no more attempts for this event');
+  if (isFinalAttempt(job, error)) logger.error(fields, 'webhook delivery given up: the receiver gets no more attempts for this event');
 }

@@ -1,6 +1,7 @@
 import { Counter, Histogram, type Registry } from 'prom-client';
 import type { AnalysisWorker } from './analysis-worker.js';
-import { deliveryGivenUp, type WebhookDeliveryWorker } from './webhook-delivery.js';
+import { isFinalAttempt } from './final-attempt.js';
+import type { WebhookDeliveryWorker } from './webhook-delivery.js';
 
 /**
  * Prometheus metrics of the analysis jobs this process runs: duration of
@@ -26,8 +27,7 @@ export function observeAnalysisWorker(worker: AnalysisWorker, registry: Registry
     if (job.processedOn && job.finishedOn) duration.observe((job.finishedOn - job.processedOn) / 1000);
   });
   worker.worker.on('failed', (job, error) => {
-    const final = !job || error.name === 'UnrecoverableError' || job.attemptsMade >= (job.opts.attempts ?? 1);
-    attempts.inc({ outcome: final ? 'failed' : 'retried' });
+    attempts.inc({ outcome: !job || isFinalAttempt(job, error) ? 'failed' : 'retried' });
   });
 }
 
@@ -44,5 +44,5 @@ export function observeWebhookDeliveries(deliveries: WebhookDeliveryWorker, regi
     registers: [registry],
   });
   deliveries.worker.on('completed', (_job, outcome) => outcomes.inc({ outcome: 'dropped' in outcome ? 'dropped' : 'delivered' }));
-  deliveries.worker.on('failed', (job, error) => outcomes.inc({ outcome: !job || deliveryGivenUp(job, error) ? 'given_up' : 'retried' }));
+  deliveries.worker.on('failed', (job, error) => outcomes.inc({ outcome: !job || isFinalAttempt(job, error) ? 'given_up' : 'retried' }));
 }
