@@ -58,13 +58,18 @@ function unknownOption(command: string, arg: string, options: Options): Heatpath
   );
 }
 
+/** A decimal comma between digits (`51,3`) as a point, as the files' header lines read it too; any other text as given. */
+export function withDecimalPoint(text: string): string {
+  return /^[+-]?\d+,\d+$/.test(text.trim()) ? text.trim().replace(',', '.') : text;
+}
+
 /**
  * A number option: absent -> undefined; present but not a finite number -> CLI_USAGE.
- * A decimal comma (`51,3`) is read as in the files' header lines.
+ * A decimal comma (`51,3`) is read (withDecimalPoint).
  */
 export function numberOption(name: string, text: string | undefined, { positive = false, integer = false } = {}): number | undefined {
   if (text === undefined) return undefined;
-  const value = Number(/^[+-]?\d+,\d+$/.test(text.trim()) ? text.trim().replace(',', '.') : text);
+  const value = Number(withDecimalPoint(text));
   const ok = text.trim() !== '' && Number.isFinite(value) && (!positive || value > 0) && (!integer || Number.isInteger(value));
   if (!ok) {
     const wanted = integer ? (positive ? 'a whole number above 0' : 'a whole number') : positive ? 'a positive number' : 'a number';

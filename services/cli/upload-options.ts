@@ -1,5 +1,5 @@
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
-import { numberOption } from './cli-arguments.js';
+import { numberOption, withDecimalPoint } from './cli-arguments.js';
 import type { UploadTarget } from './transient-upload-client.js';
 
 /**
@@ -70,7 +70,7 @@ const CHOICE_PARAMETERS: ReadonlySet<string> = new Set(['kind', 'method']);
  */
 function serverSpelling(parameter: string, value: string): string {
   if (CHOICE_PARAMETERS.has(parameter)) return value.trim().toLowerCase();
-  return /^\s*[+-]?\d+,\d+\s*$/.test(value) ? value.trim().replace(',', '.') : value;
+  return withDecimalPoint(value);
 }
 
 /** The upload query parameters the options give. */
