@@ -59,8 +59,8 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const inputWarnings = [
     ...headerWarnings,
     ...sharedCalibrationWarning(file),
-    // A power given over the channels' own lines is already warned of, with those lines.
-    ...(channelPowers || channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
+    // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
+    ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
     ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
