@@ -19,12 +19,10 @@ export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
   app,
   { store, queue, maxUploadBytes },
 ) => {
-  app.addHook('onRoute', (route) => {
-    route.logLevel = 'warn';
-  });
   app.get(
     '/health/live',
     {
+      logLevel: 'warn',
       schema: { tags: ['health'], summary: 'The process answers', response: { 200: Type.Object({ status: Type.Literal('ok') }) } },
     },
     async () => ({ status: 'ok' as const }),
@@ -33,6 +31,7 @@ export const healthRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
   app.get(
     '/health/ready',
     {
+      logLevel: 'warn',
       schema: {
         tags: ['health'],
         summary: 'Redis and the store answer',
