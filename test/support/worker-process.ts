@@ -80,18 +80,16 @@ export class WorkerProcess {
     const children: number[] = [];
     for (const name of await readdir('/proc')) {
       if (!/^\d+$/.test(name)) continue;
-      const stat = await readFile(`/proc/${name}/stat`, 'utf8').catch(() => '');
-      // Fields after the command name, which is in parentheses and may hold spaces: state, ppid, ...
-      const [state, ppid] = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-      if (Number(ppid) === parentPid && state !== 'Z') children.push(Number(name));
+      const stat = await processStat(Number(name));
+      if (stat && stat.ppid === parentPid && stat.state !== 'Z') children.push(Number(name));
     }
     return children;
   }
 
   /** Whether process `pid` still runs (a zombie does not). */
   static async isRunning(pid: number): Promise<boolean> {
-    const stat = await readFile(`/proc/${pid}/stat`, 'utf8').catch(() => null);
-    return stat !== null && stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3) !== 'Z';
+    const stat = await processStat(pid);
+    return stat !== null && stat.state !== 'Z';
   }
 
   /** SIGTERM: the graceful shutdown path. */
@@ -109,4 +107,13 @@ export class WorkerProcess {
     }
     return exited;
   }
+}
+
+/** State and parent of process `pid` from /proc/PID/stat (Linux); null when it is gone. */
+async function processStat(pid: number): Promise<{ state: string; ppid: number } | null> {
+  const stat = await readFile(`/proc/${pid}/stat`, 'utf8').catch(() => null);
+  if (stat === null) return null;
+  // Fields after the command name, which is in parentheses and may hold spaces: state, ppid, ...
+  const [state, ppid] = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+  return { state, ppid: Number(ppid) };
 }
