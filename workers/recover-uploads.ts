@@ -76,7 +76,9 @@ export class UploadRecovery {
 
   /** Runs again the pending uploads' jobs that Redis holds as failed; none while the store could not record their outcome either. */
   private async rerunUnrecordedFailures(pending: UploadRecord[]): Promise<string[]> {
-    if (pending.length === 0 || !(await this.store.readiness(this.options.minFreeBytes)).ready) return [];
+    // One read first: usually nothing failed, and then a large backlog costs no round trips per upload.
+    if (pending.length === 0 || (await this.queue.failedCount()) === 0) return [];
+    if (!(await this.store.readiness(this.options.minFreeBytes)).ready) return [];
     const rerun: string[] = [];
     for (const upload of pending) {
       // Read again: the processor stores a final failure just before Redis marks the job failed, maybe after this sweep began.
