@@ -256,6 +256,9 @@ describe('heatpath analyze options written as in the files\' header lines', () =
     const result = JSON.parse(written.stdout);
     expect(result.power_W).toBe(51.3);
     expect(result.provenance.parameters.kind).toBe('cooling');
+    // With an exponent, as a spreadsheet in such a locale writes small numbers.
+    const exponent = JSON.parse(heatpath('analyze', path, '--early-start-s', '1,2e-5', '--format', 'json').stdout);
+    expect(exponent.provenance.parameters.early_time_start_s).toBe(1.2e-5);
   });
 });
 

@@ -58,9 +58,9 @@ function unknownOption(command: string, arg: string, options: Options): Heatpath
   );
 }
 
-/** A decimal comma between digits (`51,3`) as a point, as the files' header lines read it too; any other text as given. */
+/** A decimal comma between digits (`51,3`, also `1,2e-5`) as a point; any other text as given. */
 export function withDecimalPoint(text: string): string {
-  return /^[+-]?\d+,\d+$/.test(text.trim()) ? text.trim().replace(',', '.') : text;
+  return /^[+-]?\d+,\d+(?:[eE][+-]?\d+)?$/.test(text.trim()) ? text.trim().replace(',', '.') : text;
 }
 
 /**
