@@ -129,6 +129,17 @@ describe('heatpath degradation', () => {
     expect(text.split('\n').find((line) => line.includes('cycle-020000'))).toMatch(/not judged$/);
   });
 
+  it('flags a shorter later record whose level reached already exceeds the limit: Zth only rises, so that level is a lower bound', () => {
+    // The 60 000-cycle file (Rth +7.9 %) cut at 20 s against the full 100 s reference.
+    const cut = readFileSync(campaign[3], 'utf8').split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= 20).join('\n');
+    const later = file('m31-60000-20s.csv', cut);
+    const over = JSON.parse(heatpath('degradation', campaign[0], later, '--rth-rise-limit-percent', '5', '--format', 'json').stdout).later[0];
+    expect(over.rth_rise_exceeds_limit).toBe(true);
+    expect(over.warnings).toContainEqual(expect.stringMatching(/the level this record's Zth reached, 1\.2\d+ K\/W, is already \d\.\d % above the reference's Rth total, so the rise exceeds the limit at least that much/));
+    // Under the default 20 % the same lower bound proves nothing: not judged.
+    expect(JSON.parse(heatpath('degradation', campaign[0], later, '--format', 'json').stdout).later[0].rth_rise_exceeds_limit).toBeNull();
+  });
+
   it("shows the reference's own warnings, in text and JSON: every comparison stands on it", () => {
     // The reference's header says 60 W while 50 W is given for all files: only the reference warns.
     const reference = file('m31-reference.csv', readFileSync(campaign[0], 'utf8').replace('# power_W: 50', '# power_W: 60'));
