@@ -97,6 +97,16 @@ describe('compact model warnings (fitCompactModel)', () => {
     ]);
   });
 
+  it('on a record whose end falls, says no stages follow it instead of asking for more', () => {
+    // The known network with its reference drifting over the last decade: Zth falls by 3 % of Rth there.
+    const falling = zthFromFoster(r_K_per_W, tau_s, time_s).map((z, i) => z - 0.03 * Math.max(0, Math.log10(time_s[i]) - 1));
+    const steady = steadyStateRth(time_s, falling, 0);
+    expect(steady.falls).toBe(true);
+    const { warnings } = fitCompactModel(time_s, falling, 1, steady);
+    expect(warnings).toEqual([expect.stringMatching(/read where Zth falls at the record's end: no sum of rising stages follows a falling curve, so more stages do not help/)]);
+    expect(warnings.join(' ')).not.toMatch(/ask for more stages/);
+  });
+
   it('warns of a stage faster than the first sample: it stands for the rise before the curve starts', () => {
     // A stage of 10 ns is fully risen at the first sample (1 us): the curve starts at 0.05 K/W, not at 0.
     const withFast = zthFromFoster(Float64Array.of(0.05, 0.45, 0.5), Float64Array.of(1e-8, 1e-2, 1), time_s);

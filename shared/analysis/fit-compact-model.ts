@@ -31,7 +31,7 @@ export function fitCompactModel(
   time_s: Float64Array,
   zth_K_per_W: Float64Array,
   stages: number,
-  steadyState: Pick<SteadyState, 'rth_K_per_W' | 'steady'>,
+  steadyState: Pick<SteadyState, 'rth_K_per_W' | 'steady' | 'falls'>,
 ): { foster: FosterNetwork; rms_K_per_W: number; max_abs_K_per_W: number; warnings: string[] } {
   const grid = resampleOnLogTimeGrid(time_s, zth_K_per_W, COMPACT_FIT_POINTS_PER_DECADE);
   const { foster, tau_bound_s } = fitCompactFoster(grid.z.map(Math.exp), grid.a, stages);
@@ -56,6 +56,11 @@ export function fitCompactModel(
           ? `; its slowest tau is held at ${tau_bound_s.toPrecision(3)} s, the record's length (a slower stage rises over the record almost in proportion to t, which fixes its R/tau but not its R)`
           : '') +
         '; more stages do not help: record longer, until Zth levels off',
+    );
+  } else if (steadyState.falls && Math.abs(deviation) > COMPACT_TOTAL_R_TOLERANCE) {
+    warnings.push(
+      `${COMPACT_MODEL_WARNING} its stages add up to ${total_K_per_W.toPrecision(4)} K/W against Rth total ${rth_K_per_W.toPrecision(4)} K/W, read where Zth falls at the record's end: ` +
+        'no sum of rising stages follows a falling curve, so more stages do not help; correct the reference temperature or cut the end',
     );
   } else if (Math.abs(deviation) > COMPACT_TOTAL_R_TOLERANCE) {
     warnings.push(

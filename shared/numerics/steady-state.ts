@@ -57,6 +57,8 @@ export interface SteadyState {
   window_rise_K_per_W: number;
   /** False when that rise exceeds STEADY_STATE_RISE_LIMIT of Rth total by twice its standard error: the record ends before steady state. */
   steady: boolean;
+  /** True when Zth falls over that window by more than STEADY_STATE_RISE_LIMIT of Rth total beyond twice its standard error: a drifting reference or an artefact. */
+  falls: boolean;
   warnings: string[];
 }
 
@@ -99,7 +101,7 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
           `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are missing from the spectrum and the structure functions; ` +
           'record longer, until Zth levels off',
       ];
-  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, steady, warnings };
+  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, steady, falls, warnings };
 }
 
 /**
