@@ -22,7 +22,8 @@ import { median } from './median.js';
  * by the truncated-normal second moment 1 - 2 c phi(c) / (2 Phi(c) - 1) so
  * that it stays unbiased for gaussian noise.
  */
-const MAD_TO_SIGMA_NORMAL = 1 / 0.6744897501960817;
+/** sigma of normal noise per median absolute deviation: 1 / 0.67449 = 1.4826 (the normal quantile at 3/4). */
+export const MAD_TO_SIGMA_NORMAL = 1 / 0.6744897501960817;
 const THIRD_DIFFERENCE_VARIANCE_GAIN = 20;
 const CLIP_SIGMAS = 3.5;
 /** 1 - 2 c phi(c) / (2 Phi(c) - 1) at c = 3.5, with phi(3.5) = 8.7268e-4 and 2 Phi(3.5) - 1 = 0.999535. */

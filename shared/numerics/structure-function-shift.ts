@@ -48,6 +48,7 @@
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { median } from './median.js';
+import { MAD_TO_SIGMA_NORMAL } from './noise-estimate.js';
 import { optionsWithDefaults } from './options-with-defaults.js';
 import { firstPersistentExceedance, valueAtPosition } from './persistent-exceedance.js';
 import type { CumulativeStructureFunction } from './structure-function.js';
@@ -176,7 +177,7 @@ export function structureFunctionShift(
 function negativeSideScale(values: Float64Array): number {
   const magnitudes: number[] = [];
   for (const value of values) if (value < 0) magnitudes.push(-value);
-  return magnitudes.length >= MIN_NEGATIVE_POINTS ? 1.4826 * median(Float64Array.from(magnitudes)) : 0;
+  return magnitudes.length >= MIN_NEGATIVE_POINTS ? MAD_TO_SIGMA_NORMAL * median(Float64Array.from(magnitudes)) : 0;
 }
 
 /**
