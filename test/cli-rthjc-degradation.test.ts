@@ -13,6 +13,7 @@ import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
 import { SIC_POWER_MODULE_STACK } from '../shared/models/example-stacks.js';
 import { layeredStackTruth } from '../shared/models/layered-stack.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
+import { csvTimeWindow } from './support/csv-time-window.js';
 import { rSumThroughLayer } from './support/stack-measurement.js';
 import { withLayerConductivity } from './support/stack-variants.js';
 
@@ -75,8 +76,7 @@ describe('heatpath rthjc', () => {
     expect(warnings).toContainEqual(expect.stringMatching(/Zth criterion: the curves part within a factor 10 of their earliest common time.*no Rth-JC/));
     expect(JSON.parse(mismatch.stdout).zth_criterion.rthjc_K_per_W).toBeNull();
     // A file cut at 50 ms carries its own warning (not settled): the text lists it as the JSON does.
-    const lines = readFileSync(dry, 'utf8').split('\n');
-    const short = file('dry-short.csv', lines.filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= 0.05).join('\n'));
+    const short = file('dry-short.csv', csvTimeWindow(dry, 0, 0.05));
     const text = heatpath('rthjc', short, greased);
     const json = JSON.parse(heatpath('rthjc', short, greased, '--format', 'json').stdout);
     const own = json.warnings.filter((w: string) => w.startsWith('A: '));
@@ -120,7 +120,7 @@ describe('heatpath degradation', () => {
 
   it('makes no end-of-life judgement between records that end at different times, and says why', () => {
     // The campaign's reference cut at 0.5 s: its Rth total misses the slow part of Zth (a record of 100 s against 0.5 s).
-    const cut = readFileSync(campaign[0], 'utf8').split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= 0.5).join('\n');
+    const cut = csvTimeWindow(campaign[0], 0, 0.5);
     const json = JSON.parse(heatpath('degradation', file('m31-short.csv', cut), campaign[1], '--format', 'json').stdout);
     expect(json.later[0].rth_change_percent).toBeGreaterThan(20); // what the flag would have judged on
     expect(json.later[0].rth_rise_exceeds_limit).toBeNull();
@@ -131,7 +131,7 @@ describe('heatpath degradation', () => {
 
   it('flags a shorter later record whose level reached already exceeds the limit: Zth only rises, so that level is a lower bound', () => {
     // The 60 000-cycle file (Rth +7.9 %) cut at 20 s against the full 100 s reference.
-    const cut = readFileSync(campaign[3], 'utf8').split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= 20).join('\n');
+    const cut = csvTimeWindow(campaign[3], 0, 20);
     const later = file('m31-60000-20s.csv', cut);
     const over = JSON.parse(heatpath('degradation', campaign[0], later, '--rth-rise-limit-percent', '5', '--format', 'json').stdout).later[0];
     expect(over.rth_rise_exceeds_limit).toBe(true);

@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { makeDirectory } from '../services/store/make-directory.js';
 import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
+import { csvTimeWindow } from './support/csv-time-window.js';
 import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
 
 const { heatpath, heatpathReading, heatpathPrintingTo, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
@@ -265,7 +266,7 @@ describe('heatpath analyze options written as in the files\' header lines', () =
 describe('heatpath analyze text summary of the early time', () => {
   it('shows the sqrt(t) fit and its value at t = 0 also when the window starts at the first sample (nothing before it replaced)', () => {
     // The demo file of M07 as a bench that blanks the first 10 us records it.
-    const text = readFileSync(join(demo, 'fh-tt1_m07_cooling.csv'), 'utf8').split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) >= 1e-5).join('\n');
+    const text = csvTimeWindow(join(demo, 'fh-tt1_m07_cooling.csv'), 1e-5, Number.POSITIVE_INFINITY);
     const path = file('from-10us.csv', text);
     const result = JSON.parse(heatpath('analyze', path, '--format', 'json').stdout);
     expect(result.early_time.applied).toBe(false);

@@ -139,12 +139,12 @@ export class AnalysisQueue {
     return true;
   }
 
-  /** Moves the job back to the queue with its attempts reset when Redis holds it as failed; true when it did. */
   /** How many jobs Redis holds as failed (one read). */
   async failedCount(): Promise<number> {
     return this.queue.getFailedCount();
   }
 
+  /** Moves the job back to the queue with its attempts reset when Redis holds it as failed; true when it did. */
   async rerunIfFailed(jobId: string): Promise<boolean> {
     const job = await this.queue.getJob(jobId);
     return job ? moveFailedBack(job) : false;

@@ -4,8 +4,7 @@
  * cumulative structure function (structure-function-shift.ts). The CLI's
  * `heatpath degradation` and the service's per-sample trend both build on it.
  */
-import { median } from '../numerics/median.js';
-import { MIN_STEADY_STATE_SAMPLES } from '../numerics/steady-state.js';
+import { levelReached } from '../numerics/steady-state.js';
 import { structureFunctionShift } from '../numerics/structure-function-shift.js';
 import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { DegradationComparison } from '../schemas/degradation-comparison.js';
@@ -23,8 +22,6 @@ export const DEGRADATION_NOTES = [
 
 /** Records whose last times differ by more than this factor were measured differently: their Rth totals are not compared. */
 export const RECORD_LENGTH_RATIO_LIMIT = 1.25;
-/** The level a record reached: the median of its last samples (as many as the steady-state window holds at least). */
-const LEVEL_REACHED_SAMPLES = MIN_STEADY_STATE_SAMPLES;
 
 export function compareForDegradation(reference: AnalysisResult, later: AnalysisResult, rthRiseLimitPercent: number): DegradationComparison {
   const rthReference = reference.rth_total_K_per_W;
@@ -33,7 +30,7 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
   const [referenceEnd_s, laterEnd_s] = [reference, later].map((result) => result.zth.time_s[result.zth.time_s.length - 1]);
   const comparableLengths = Math.max(referenceEnd_s, laterEnd_s) / Math.min(referenceEnd_s, laterEnd_s) <= RECORD_LENGTH_RATIO_LIMIT;
   // Zth only rises: the level a shorter later record reached is a lower bound of its Rth total, which can still prove a rise.
-  const laterLevelReached_K_per_W = median(Float64Array.from(later.zth.zth_K_per_W.slice(-LEVEL_REACHED_SAMPLES)));
+  const laterLevelReached_K_per_W = levelReached(later.zth.zth_K_per_W);
   const provenRisePercent = ((laterLevelReached_K_per_W - rthReference) / rthReference) * 100;
   const risePlainlyExceeds = !comparableLengths && laterEnd_s < referenceEnd_s && provenRisePercent > rthRiseLimitPercent;
   const lengthWarnings = comparableLengths

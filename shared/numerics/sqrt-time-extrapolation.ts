@@ -421,4 +421,3 @@ function fitLine(time_s: Float64Array, values: Float64Array, start: number, end:
     y0Leverage: Math.sqrt(1 / n + (meanX * meanX) / sxx),
   };
 }
-

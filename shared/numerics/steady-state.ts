@@ -87,20 +87,21 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   const steady = !(window_rise_K_per_W - 2 * riseStandardError_K_per_W > STEADY_STATE_RISE_LIMIT * rth_K_per_W);
   // A passive thermal path settles monotonically (every Foster term rises): an end that falls is a drifting reference or an artefact.
   const falls = window_rise_K_per_W + 2 * riseStandardError_K_per_W < -STEADY_STATE_RISE_LIMIT * rth_K_per_W;
-  const warnings = falls
-    ? [
-        `Zth falls by ${((-100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over the last ${nominalDecades.toFixed(2)} decades of the record, which a passive thermal path cannot do: ` +
-          `the reference temperature drifted (coolant or cold plate warming during a cooling record) or the end holds an artefact, and Rth total (${rth_K_per_W.toPrecision(4)} K/W, read where the curve ends) is off by as much; ` +
-          'check the reference temperature and the end of the record',
-      ]
-    : steady
-    ? []
-    : [
-        `the record ends before steady state: Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over its last ${nominalDecades.toFixed(2)} decades, ` +
-          `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, the trend at the record's end) is no steady state: the true Rth total is at least the level the last ${MIN_STEADY_STATE_SAMPLES} samples reached, ` +
-          `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are missing from the spectrum and the structure functions; ` +
-          'record longer, until Zth levels off',
-      ];
+  const warnings: string[] = [];
+  if (falls) {
+    warnings.push(
+      `Zth falls by ${((-100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over the last ${nominalDecades.toFixed(2)} decades of the record, which a passive thermal path cannot do: ` +
+        `the reference temperature drifted (coolant or cold plate warming during a cooling record) or the end holds an artefact, and Rth total (${rth_K_per_W.toPrecision(4)} K/W, read where the curve ends) is off by as much; ` +
+        'check the reference temperature and the end of the record',
+    );
+  } else if (!steady) {
+    warnings.push(
+      `the record ends before steady state: Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over its last ${nominalDecades.toFixed(2)} decades, ` +
+        `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, the trend at the record's end) is no steady state: the true Rth total is at least the level the last ${MIN_STEADY_STATE_SAMPLES} samples reached, ` +
+        `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are missing from the spectrum and the structure functions; ` +
+        'record longer, until Zth levels off',
+    );
+  }
   return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, steady, falls, warnings };
 }
 
@@ -123,8 +124,8 @@ function twoGroupSlope(logTime: Float64Array, zth: Float64Array): { K_per_W_per_
  * total up to the noise), where the line's end can overshoot a curve that is
  * levelling off.
  */
-function levelReached(zth_K_per_W: Float64Array): number {
-  return trimmedMean(zth_K_per_W.slice(zth_K_per_W.length - MIN_STEADY_STATE_SAMPLES));
+export function levelReached(zth_K_per_W: ArrayLike<number>): number {
+  return trimmedMean(Float64Array.from(zth_K_per_W).subarray(-MIN_STEADY_STATE_SAMPLES));
 }
 
 /** Sorts `values` in place. */
