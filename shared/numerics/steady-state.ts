@@ -98,7 +98,7 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
     warnings.push(
       `the record ends before steady state: Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over its last ${nominalDecades.toFixed(2)} decades, ` +
         `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, the trend at the record's end) is no steady state: the true Rth total is at least the level the last ${MIN_STEADY_STATE_SAMPLES} samples reached, ` +
-        `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are missing from the spectrum and the structure functions; ` +
+        `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are not measured: what the spectrum, the networks and the structure functions hold beyond the record's end is extrapolated, so their R need not add up to Rth total; ` +
         'record longer, until Zth levels off',
     );
   }
