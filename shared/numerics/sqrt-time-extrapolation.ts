@@ -14,8 +14,16 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * CHI_SQUARE_Z standard deviations of 1). For each candidate start in the
  * first START_SCAN_DECADES decades the window grows until the test fails
  * or it reaches LATEST_WINDOW_END_S, after which the law holds for no chip;
- * the longest window wins (the earliest start on a tie). As all end by the
- * same time, a later start wins only where earlier ones fail the test.
+ * the window spanning the most decades of time wins (the earliest start on
+ * a tie). As all end by the same time, a later start wins only where earlier
+ * ones fail the test. Span in time, not the count of samples: on a linearly
+ * sampled record a later window holds more samples in the same span, and a
+ * window of 1 to 2 ms outranked one of 20 us to 1 ms, so T(0) came from a
+ * window after heat had crossed the chip (Rth total 2 % low). A window that
+ * must end after LATEST_WINDOW_END_S to be long enough wins only where no
+ * window ends by then: one of 9.6 to 11.6 ms held more samples than the
+ * valid one of 0.1 to 2 ms on a record sampled at 10 kS/s, and put Rth total
+ * 5-8 % low.
  * Windows that start inside the artefact fail at once or stop at its end.
  * The noise test alone does not stop a window that runs past the die: where
  * heat spreads in the package the curve can follow a straight line in
@@ -97,6 +105,11 @@ export const LATEST_WINDOW_END_S = 2e-3;
  * nor on eight more layered stacks of an independent check.
  */
 export const AMBIGUOUS_T0_RELATIVE = 0.005;
+/**
+ * Windows whose spans in time differ by less than this many decades tie (the earlier start wins): less than
+ * a tenth of one step of 1000 samples per decade, and more than the rounding of times written to six digits.
+ */
+export const SPAN_TIE_DECADES = 1e-4;
 
 export interface SqrtTimeOptions {
   /** RMS noise of `values`, in their units (see noise-estimate.ts). */
@@ -270,7 +283,11 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
 
   // The last sample an automatic end may reach (a sample at 2 ms written as 0.00200000 still counts).
   const lastEndByLaw = firstIndexAtOrAfterTime(time_s, LATEST_WINDOW_END_S * (1 + 1e-12)) - 1;
+  // Span in decades of time; a start at t = 0 counts from the first positive time.
+  const spanStart_s = (start: number) => Math.max(time_s[start], time_s[firstPositive]);
+  const span = (start: number, end: number) => Math.log10(time_s[end] / spanStart_s(start));
   let best: [number, number] | undefined;
+  let bestSpan = 0;
   for (const start of starts) {
     let end: number;
     const shortestEnd = Math.max(start + minimumSamples - 1, firstIndexAtOrAfterTime(time_s, MIN_WINDOW_TIME_RATIO * time_s[start]));
@@ -280,12 +297,14 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
     } else {
       end = shortestEnd;
       if (end >= count) continue;
+      // Starts ascend, so once a start's shortest window ends after the law, every later one does too. Such a window
+      // wins only where no window ends by then, and the earliest of them wins: it lies closest to t = 0.
+      if (end > lastEndByLaw && best !== undefined) break;
       const lastEnd = Math.min(count - 1, Math.max(lastEndByLaw, shortestEnd));
       if (best !== undefined) {
-        // To win, this start's window must grow past the best length, so it must
-        // pass at that end and at every end before it: test the far end first,
-        // which rules most starts out in one step, and the rest only then.
-        const mustReach = start + (best[1] - best[0]) + 1;
+        // To win, this start's window must span more decades than the best, so it must pass at the first end that
+        // does and at every end before it: test that end first, which rules most starts out in one step.
+        const mustReach = firstIndexAtOrAfterTime(time_s, spanStart_s(start) * 10 ** (bestSpan + SPAN_TIE_DECADES));
         if (mustReach > lastEnd || !passes(start, mustReach)) continue;
         let reaches = true;
         for (let e = mustReach - 1; e >= end && reaches; e--) reaches = passes(start, e);
@@ -294,7 +313,10 @@ function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeO
       } else if (!passes(start, end)) continue;
       while (end < lastEnd && passes(start, end + 1)) end++;
     }
-    if (best === undefined || end - start > best[1] - best[0]) best = [start, end];
+    if (best === undefined || span(start, end) > bestSpan + SPAN_TIE_DECADES) {
+      best = [start, end];
+      bestSpan = span(start, end);
+    }
   }
   // Reported by the search without the sign, which runs when this one finds nothing.
   if (best === undefined && fixedStart !== undefined && options.end_s === undefined && slopeSign === undefined) {
