@@ -193,32 +193,53 @@ describe('voltageToTemperature', () => {
   const [low, high] = cal.voltage_range_V;
   const span = high - low;
 
+  const at = (...t_s: number[]) => Float64Array.from(t_s);
+
   it('converts along the diode line', () => {
-    const temps = voltageToTemperature(cal, Float64Array.from([0.65, 0.55]));
+    const temps = voltageToTemperature(cal, at(1e-3, 2e-3), Float64Array.from([0.65, 0.55]));
     expect(temps[0]).toBeCloseTo(25, 9);
     expect(temps[1]).toBeCloseTo(75, 9);
   });
 
-  it(`accepts ${100 * CALIBRATION_RANGE_MARGIN} % beyond the range and refuses more`, () => {
-    expect(() => voltageToTemperature(cal, Float64Array.from([low - 0.99 * CALIBRATION_RANGE_MARGIN * span]))).not.toThrow();
-    expect(catchHeatpathError(() => voltageToTemperature(cal, Float64Array.from([0.6, high + 1.01 * CALIBRATION_RANGE_MARGIN * span]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
-    expect(catchHeatpathError(() => voltageToTemperature(cal, Float64Array.from([Number.NaN]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
+  it(`accepts ${100 * CALIBRATION_RANGE_MARGIN} % beyond the range and refuses more, naming the first sample outside by its time`, () => {
+    expect(() => voltageToTemperature(cal, at(1), Float64Array.from([low - 0.99 * CALIBRATION_RANGE_MARGIN * span]))).not.toThrow();
+    const error = catchHeatpathError(() => voltageToTemperature(cal, at(1e-3, 2e-3), Float64Array.from([0.6, high + 1.01 * CALIBRATION_RANGE_MARGIN * span])));
+    expect(error.code).toBe('CALIBRATION_OUT_OF_RANGE');
+    expect(error.message).toContain('at t = 0.002 s (and 0 more of 2 samples)');
+    expect(catchHeatpathError(() => voltageToTemperature(cal, at(1), Float64Array.from([Number.NaN]))).code).toBe('CALIBRATION_OUT_OF_RANGE');
+  });
+
+  it('says when the transient or the calibration looks like millivolts (a factor 1000 off the range)', () => {
+    const inMillivolts = catchHeatpathError(() => voltageToTemperature(cal, at(1e-3, 2e-3), Float64Array.from([600, 590])));
+    expect(inMillivolts.message).toContain('at t = 0.001 s (and 1 more of 2 samples)');
+    expect(inMillivolts.message).toContain('is the transient in millivolts?');
+    const calibrationInMillivolts = { ...cal, voltage_range_V: [low * 1000, high * 1000] as [number, number] };
+    expect(catchHeatpathError(() => voltageToTemperature(calibrationInMillivolts, at(1), Float64Array.from([0.6]))).message).toContain('is the calibration in millivolts?');
+    expect(catchHeatpathError(() => voltageToTemperature(cal, at(1), Float64Array.from([12]))).message).not.toContain('millivolts');
   });
 
   it('warns of samples converted beyond the sweep, with their count and the farthest distance', () => {
     // Exact construction: two of four samples lie outside the calibrated voltages, the farther by 2 % of the span.
     const voltages = Float64Array.from([low + 0.5 * span, high, high + 0.01 * span, low - 0.02 * span]);
-    const [warning] = calibrationExtrapolationWarnings(cal, voltages);
+    const [warning] = calibrationExtrapolationWarnings(cal, voltages, 0);
     expect(warning).toContain('2 of 4 samples lie outside the calibrated');
     expect(warning).toContain(`by up to ${(0.02 * span * 1000).toPrecision(3)} mV (2.0 % of the span)`);
     expect(warning).toContain('extend the calibration sweep');
-    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low, high, 0.5 * (low + high)]))).toEqual([]);
+    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low, high, 0.5 * (low + high)]), 0)).toEqual([]);
+  });
+
+  it('does not warn of samples beyond the range by less than three times the noise (a cooling curve that ends at the sweep\'s first point)', () => {
+    const noise_V = 0.001 * span;
+    const atTheEnd = Float64Array.from([low + 0.5 * span, high + 2.9 * noise_V, high + 1.5 * noise_V]);
+    expect(calibrationExtrapolationWarnings(cal, atTheEnd, noise_V)).toEqual([]);
+    const [warning] = calibrationExtrapolationWarnings(cal, Float64Array.from([high + 3.1 * noise_V, high + noise_V]), noise_V);
+    expect(warning).toContain('1 of 2 samples lie outside');
   });
 
   it('refuses a calibration that turns within the measured voltages', () => {
     // T = 100 - 1000 (V - 0.5)^2 turns at 0.5 V, inside 0.4..0.6 V.
     const turning: Calibration = { ...cal, model: 'poly2', coefficients: [-150, 1000, -1000], voltage_range_V: [0.4, 0.6] };
-    expect(catchHeatpathError(() => voltageToTemperature(turning, Float64Array.from([0.45]))).code).toBe('CALIBRATION_NOT_MONOTONIC');
+    expect(catchHeatpathError(() => voltageToTemperature(turning, at(1), Float64Array.from([0.45]))).code).toBe('CALIBRATION_NOT_MONOTONIC');
   });
 });
 

@@ -60,7 +60,7 @@ describe('zthFromTemperature', () => {
     for (let seed = 5; seed <= 7; seed++) {
       const noise = noiseSeries(0.02, seed);
       const voltage_V = times.map((t, i) => toVoltage(ambient_C + power_W * (rth - truth[i]) + noise[i]) + 2e-3 * artefact(t));
-      const temperature_C = voltageToTemperature(calibration, voltage_V);
+      const temperature_C = voltageToTemperature(calibration, times, voltage_V);
       const curve = zthFromTemperature(times, temperature_C, { power_W }, { kind: 'cooling', noise_rms: estimateNoiseRms(temperature_C) });
       expect(Math.abs(steadyStateRth(times, curve.zth_K_per_W, estimateNoiseRms(curve.zth_K_per_W)).rth_K_per_W / rth - 1)).toBeLessThan(0.005);
     }

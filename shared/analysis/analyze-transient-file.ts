@@ -139,8 +139,8 @@ function analyzeChannel(
     noise_K = null;
     zth = zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window });
   } else {
-    const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, values) : values;
-    if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values));
+    const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, time_s, values) : values;
+    if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)));
     noise_K = estimateNoiseRms(temperature_C);
     noise_K_per_W = noise_K / power_W!;
     zth = zthFromTemperature(time_s, temperature_C, { power_W: power_W! }, { kind: parameters.kind, noise_rms: noise_K, ...window });

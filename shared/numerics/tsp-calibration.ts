@@ -75,40 +75,63 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
   return warnings.length > 0 ? { ...calibration, warnings } : calibration;
 }
 
-/** Junction temperature of each voltage; voltages beyond the calibrated range plus the margin are refused. */
-export function voltageToTemperature(calibration: Calibration, voltage_V: Float64Array): Float64Array {
+/**
+ * Junction temperature of each voltage; voltages beyond the calibrated range plus the margin are refused,
+ * naming the first by its time. A transient written in millivolts against a calibration in volts (or the
+ * reverse) lies a factor 1000 off the range: the error says so.
+ */
+export function voltageToTemperature(calibration: Calibration, time_s: Float64Array, voltage_V: Float64Array): Float64Array {
   const [low, high] = calibration.voltage_range_V;
   const margin = CALIBRATION_RANGE_MARGIN * (high - low);
+  const inRange = (v: number) => v >= low - margin && v <= high + margin;
   let measuredLow = low;
   let measuredHigh = high;
+  let firstOutside = -1;
+  let outside = 0;
   for (let i = 0; i < voltage_V.length; i++) {
     const v = voltage_V[i];
-    if (!(v >= low - margin && v <= high + margin)) {
-      throw new HeatpathError(
-        'CALIBRATION_OUT_OF_RANGE',
-        `sample ${i + 1}: ${v} V is outside the calibrated ${low}..${high} V (with a margin of ${100 * CALIBRATION_RANGE_MARGIN} % of the span)`,
-      );
+    if (!inRange(v)) {
+      if (firstOutside < 0) firstOutside = i;
+      outside++;
+      continue;
     }
     measuredLow = Math.min(measuredLow, v);
     measuredHigh = Math.max(measuredHigh, v);
+  }
+  if (firstOutside >= 0) {
+    const v = voltage_V[firstOutside];
+    const scaleHint = [1000, 0.001].find((factor) => inRange(v / factor));
+    throw new HeatpathError(
+      'CALIBRATION_OUT_OF_RANGE',
+      `${v} V at t = ${time_s[firstOutside]} s (and ${outside - 1} more of ${voltage_V.length} samples) lies outside the calibrated ${low}..${high} V ` +
+        `(with a margin of ${100 * CALIBRATION_RANGE_MARGIN} % of the span)` +
+        (scaleHint === 1000 ? '; divided by 1000 it would lie inside: is the transient in millivolts? voltage_V is in volts' : '') +
+        (scaleHint === 0.001 ? '; multiplied by 1000 it would lie inside: is the calibration in millivolts? voltage_V is in volts' : ''),
+    );
   }
   assertMonotonic(calibration, measuredLow, measuredHigh);
   return evaluate(calibration.model, calibration.coefficients, voltage_V);
 }
 
+/** Samples beyond the calibrated range by less than this many times the noise are at its end, within the noise: not warned of. */
+export const EXTRAPOLATION_NOISE_ALLOWANCE = 3;
+
 /**
  * What a conversion extrapolates: voltages outside the calibrated range but
  * within its margin are converted by the fit beyond the sweep, where nothing
  * checked it (a polynomial of high order or an exponential can bend away
- * there), so the result says how many samples and how far.
+ * there), so the result says how many samples and how far. A cooling curve
+ * ends at the cold plate, which is often the sweep's first point: there half
+ * the samples lie a little outside, by the noise, which the fit bridges.
  */
-export function calibrationExtrapolationWarnings(calibration: Calibration, voltage_V: Float64Array): string[] {
+export function calibrationExtrapolationWarnings(calibration: Calibration, voltage_V: Float64Array, noise_V: number): string[] {
   const [low, high] = calibration.voltage_range_V;
+  const allowance_V = EXTRAPOLATION_NOISE_ALLOWANCE * noise_V;
   let outside = 0;
   let farthest_V = 0;
   for (let i = 0; i < voltage_V.length; i++) {
     const beyond_V = Math.max(low - voltage_V[i], voltage_V[i] - high);
-    if (beyond_V > 0) {
+    if (beyond_V > allowance_V) {
       outside++;
       farthest_V = Math.max(farthest_V, beyond_V);
     }
@@ -116,7 +139,7 @@ export function calibrationExtrapolationWarnings(calibration: Calibration, volta
   if (outside === 0) return [];
   const [lowest_C, highest_C] = calibration.temperature_range_C;
   return [
-    `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
+    `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V by more than ${EXTRAPOLATION_NOISE_ALLOWANCE} times the noise, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
       `(${((100 * farthest_V) / (high - low)).toPrecision(2)} % of the span): their temperatures are extrapolated by the ${calibration.model} fit beyond the sweep's ` +
       `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient`,
   ];
