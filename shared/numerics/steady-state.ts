@@ -55,6 +55,12 @@ export interface SteadyState {
   samples: number;
   /** How much Zth still rises over the last STEADY_STATE_WINDOW_FRACTION of the log-time span (the line's slope times that width in decades). */
   window_rise_K_per_W: number;
+  /**
+   * Standard error of rth_K_per_W from the noise of the samples it was read
+   * from: the noise through the weights of the window's line at its end
+   * (see levelStandardError).
+   */
+  rth_standard_error_K_per_W: number;
   /** False when that rise exceeds STEADY_STATE_RISE_LIMIT of Rth total by twice its standard error: the record ends before steady state. */
   steady: boolean;
   /** True when Zth falls over that window by more than STEADY_STATE_RISE_LIMIT of Rth total beyond twice its standard error: a drifting reference or an artefact. */
@@ -102,7 +108,8 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
         'record longer, until Zth levels off',
     );
   }
-  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, steady, falls, warnings };
+  const rth_standard_error_K_per_W = noise_K_per_W * levelNoiseGain(logTime, slope, logLast);
+  return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, rth_standard_error_K_per_W, steady, falls, warnings };
 }
 
 /**
@@ -116,6 +123,30 @@ function twoGroupSlope(logTime: Float64Array, zth: Float64Array): { K_per_W_per_
   const meanOf = (values: Float64Array): number => values.reduce((sum, value) => sum + value, 0) / values.length;
   const run_decades = meanOf(logTime.subarray(later)) - meanOf(logTime.subarray(0, half));
   return { K_per_W_per_decade: (trimmedMean(zth.slice(later)) - trimmedMean(zth.slice(0, half))) / run_decades, half, run_decades };
+}
+
+/**
+ * Standard error of the line's end per unit noise of one sample. Taking the
+ * trimmed means as plain means, the end is sum_i w_i z_i with
+ * w_i = 1/n + (D / run) (+1/half for the later half, -1/half for the earlier,
+ * 0 for a middle sample), D the decades from the window's mean log time to
+ * its end, so its variance is sigma^2 sum w_i^2 (GUM, JCGM 100:2008, 5.1.2).
+ * On samples even in log t, D = run and the end is 1.5 x the later half's
+ * mean - 0.5 x the earlier's: sqrt(5 / n) sigma, not the sqrt(1 / n) sigma of
+ * a plain mean. Trimming widens it by a few per cent on normal noise.
+ */
+function levelNoiseGain(logTime: Float64Array, slope: { half: number; run_decades: number }, logLast: number): number {
+  const count = logTime.length;
+  const later = count - slope.half;
+  let meanLog = 0;
+  for (const value of logTime) meanLog += value / count;
+  const lever = (logLast - meanLog) / slope.run_decades / slope.half;
+  let sumSquares = 0;
+  for (let i = 0; i < count; i++) {
+    const weight = 1 / count + (i >= later ? lever : i < slope.half ? -lever : 0);
+    sumSquares += weight * weight;
+  }
+  return Math.sqrt(sumSquares);
 }
 
 /**
