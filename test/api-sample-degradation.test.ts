@@ -15,7 +15,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
 import { SIC_POWER_MODULE_STACK } from '../shared/models/example-stacks.js';
 import { layeredStackTruth } from '../shared/models/layered-stack.js';
+import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { reprocessedUpload } from '../workers/reprocess-batch.js';
+import type { BatchRecord } from '../services/store/store-records.js';
 import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
 import { cliWorkspace, DEMO_DIR } from './support/cli-process.js';
 import { eventually } from './support/queue-test-fixture.js';
@@ -68,6 +71,13 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(Math.abs(last.added_r_K_per_W / added - 1)).toBeLessThan(0.05);
     expect(report.not_included).toEqual([]);
     expect(report.warnings).toEqual([]);
+    // +7.9 % at 60 000 cycles: below the +20 % end-of-life rise (common practice), so no crossing; with a 3 % limit one.
+    expect(report.limit_crossing).toBeNull();
+    expect(last.rth_change_standard_uncertainty_percent).toBeGreaterThan(0);
+    const crossing = (await trend('?rth_rise_limit_percent=3&package_rth_K_per_W=0.01')).json();
+    expect(crossing.limit_crossing.first_cycle_count_above).toBeGreaterThan(0);
+    expect(crossing.later[2].shift_beyond_package).toBe(true);
+    expect(crossing.package_rth_K_per_W).toBe(0.01);
     expect(report.caution).toBe(RESULT_CAUTION);
   });
 
@@ -108,9 +118,34 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(report.warnings).toEqual([expect.stringMatching(/^the reference asked for, upload \S+ \(20000 cycles\), is not the sample's earliest measurement: 1 earlier one \(0 cycles\) is listed under later too/)]);
     expect((await trend()).json().warnings).toEqual([]);
 
-    expect((await trend('?channel=M99')).json().code).toBe('DEGRADATION_TOO_FEW_RESULTS');
+    const noChannel = await trend('?channel=M99');
+    expect(noChannel.statusCode).toBe(400);
+    expect(noChannel.json().code).toBe('DEGRADATION_CHANNEL_NOT_FOUND');
+    expect(noChannel.json().detail).toMatch(/no channel M99: its results have channel 1\b/);
     expect((await trend('?reference_upload_id=upl-nobody')).statusCode).toBe(404);
+    expect((await trend('?package_rth_K_per_W=0')).statusCode).toBe(400);
     expect((await trend('?rth_rise_limit_percent=0')).statusCode).toBe(400);
     expect((await ctx.app.inject({ method: 'GET', url: '/v1/samples/NOBODY/degradation', headers: bearer('reader') })).statusCode).toBe(404);
+  });
+
+  it('answers 409 for a cancelled batch that left uploads of the sample unanalysed, and the trend when it analysed them all', async () => {
+    const uploads = await Promise.all(uploadIds.map(async (id) => (await ctx.store.getUpload(id))!));
+    const batch = (batch_id: string, parameters: BatchRecord['parameters']): BatchRecord => {
+      const record: BatchRecord = {
+        batch_id, created_at: '2026-01-01T00:00:00.000Z', created_by: 'admin', selection: { sample_id: 'M31' }, parameters, calibration_id: null,
+        algorithm: ALGORITHM_VERSION, status: 'cancelled', cancelled_at: '2026-01-01T00:01:00.000Z', entries: [],
+      };
+      record.entries = uploads.map((upload) => ({ upload_id: upload.upload_id, job_id: reprocessedUpload(upload, record).job_id }));
+      return record;
+    };
+    // Other parameters: jobs that never ran, and never will.
+    await ctx.store.putBatch(batch('bat-cancelled-early', { points_per_decade: 13 }));
+    const cancelled = await trend('?batch_id=bat-cancelled-early');
+    expect(cancelled.statusCode).toBe(409);
+    expect(cancelled.json().code).toBe('DEGRADATION_BATCH_CANCELLED');
+    expect(cancelled.json().detail).toMatch(/cancelled before it analysed 4 of sample M31's uploads/);
+    // The uploads' own parameters and algorithm: every job has its result, so the cancel cost this sample nothing.
+    await ctx.store.putBatch(batch('bat-cancelled-late', null));
+    expect((await trend('?batch_id=bat-cancelled-late')).statusCode).toBe(200);
   });
 });

@@ -103,6 +103,15 @@ describe('heatpath degradation', () => {
     expect(Math.abs(last.added_r_K_per_W / addedAt60000 - 1)).toBeLessThan(0.05);
     expect(last.rth_rise_exceeds_limit).toBe(false);
     expect(report.rth_rise_limit_percent).toBe(20);
+    // +7.9 % at 60 000 cycles stays below the +20 % end-of-life rise (common practice, AQG 324 plans): no crossing.
+    expect(report.limit_crossing).toBeNull();
+    for (const row of report.later) {
+      expect(row.rth_change_standard_uncertainty_percent).toBeGreaterThan(0);
+      // Far below the change itself at 0.01 K of noise (GUM propagation, JCGM 100:2008): the trend is resolved.
+      expect(row.rth_change_standard_uncertainty_percent).toBeLessThan(row.rth_change_percent / 10);
+      expect(row.not_judged_reason).toBeNull();
+      expect(row.shift_beyond_package).toBeNull();
+    }
     expect(report.notes.join(' ')).toMatch(/on-state voltage/);
     expect(report.caution).toBe(RESULT_CAUTION);
   });
@@ -124,6 +133,7 @@ describe('heatpath degradation', () => {
     const json = JSON.parse(heatpath('degradation', file('m31-short.csv', cut), campaign[1], '--format', 'json').stdout);
     expect(json.later[0].rth_change_percent).toBeGreaterThan(20); // what the flag would have judged on
     expect(json.later[0].rth_rise_exceeds_limit).toBeNull();
+    expect(json.later[0].not_judged_reason).toBe('record_lengths_differ');
     expect(json.later[0].warnings).toContainEqual(expect.stringMatching(/^the records end at different times \(reference 0\.490 s, this one 100 s\).*no end-of-life judgement is made/));
     const text = heatpath('degradation', file('m31-short-text.csv', cut), campaign[1]).stdout;
     expect(text.split('\n').find((line) => line.includes('cycle-020000'))).toMatch(/not judged$/);
@@ -135,6 +145,7 @@ describe('heatpath degradation', () => {
     const later = file('m31-60000-20s.csv', cut);
     const over = JSON.parse(heatpath('degradation', campaign[0], later, '--rth-rise-limit-percent', '5', '--format', 'json').stdout).later[0];
     expect(over.rth_rise_exceeds_limit).toBe(true);
+    expect(over.not_judged_reason).toBeNull();
     expect(over.warnings).toContainEqual(expect.stringMatching(/the level this record's Zth reached, 1\.2\d+ K\/W, is already \d\.\d % above the reference's Rth total, so the rise exceeds the limit at least that much/));
     // Under the default 20 % the same lower bound proves nothing: not judged.
     expect(JSON.parse(heatpath('degradation', campaign[0], later, '--format', 'json').stdout).later[0].rth_rise_exceeds_limit).toBeNull();
@@ -149,6 +160,30 @@ describe('heatpath degradation', () => {
     const json = JSON.parse(heatpath('degradation', reference, campaign[3], '--power-w', '50', '--format', 'json').stdout);
     expect(json.reference.warnings).toEqual(["a heating power of 50 W was given, and used, where the file's header lines say 60 W"]);
     expect(json.later[0].warnings.some((w: string) => w.includes('header lines say'))).toBe(false);
+  });
+});
+
+describe('heatpath degradation: limit crossing and the package\'s own Rth', () => {
+  it('gives the first cycle count above the limit and where the line between the measurements crosses it', () => {
+    const report = JSON.parse(heatpath('degradation', ...campaign, '--rth-rise-limit-percent', '3', '--format', 'json').stdout);
+    const [at20000, at40000, at60000] = report.later.map((row: { rth_change_percent: number }) => row.rth_change_percent);
+    const firstAbove = [20000, 40000, 60000][[at20000, at40000, at60000].findIndex((change) => change > 3)];
+    expect(report.limit_crossing.first_cycle_count_above).toBe(firstAbove);
+    expect(report.limit_crossing.interpolated_cycle_count).toBeGreaterThan(firstAbove - 20000);
+    expect(report.limit_crossing.interpolated_cycle_count).toBeLessThan(firstAbove);
+    const text = heatpath('degradation', ...campaign, '--rth-rise-limit-percent', '3').stdout;
+    expect(text).toContain(`Rth rises above 3 % first at ${firstAbove} cycles; between the measurements, at about`);
+  });
+
+  it('flags a shift beyond the package\'s own Rth as lying in the interface or cooler, and not one inside it', () => {
+    // The crack sits in the die attach, whose far face is at attachEnd from the junction (the stack's exact ladder).
+    const beyond = JSON.parse(heatpath('degradation', campaign[0], campaign[3], '--package-rth-k-per-w', (attachStart / 2).toPrecision(3), '--format', 'json').stdout);
+    expect(beyond.later[0].shift_beyond_package).toBe(true);
+    expect(beyond.later[0].warnings).toContainEqual(expect.stringMatching(/beyond the package's own Rth of .* the change lies in the thermal interface or the cooler, not in the package/));
+    expect(beyond.notes.join(' ')).toMatch(/shift_beyond_package .* AQG 324/);
+    const inside = JSON.parse(heatpath('degradation', campaign[0], campaign[3], '--package-rth-k-per-w', String(rthjcTruth.toPrecision(3)), '--format', 'json').stdout);
+    expect(inside.later[0].shift_beyond_package).toBe(false);
+    expect(inside.package_rth_K_per_W).toBe(Number(rthjcTruth.toPrecision(3)));
   });
 });
 
@@ -181,6 +216,7 @@ describe('rthjc and degradation user errors: exit code 2 and one line', () => {
     ['rthjc on curves without a common time range', () => ['rthjc', file('early.csv', `time_s,zth_K_per_W\n${zthRows(1e-6)}\n`), file('late.csv', `time_s,zth_K_per_W\n${zthRows(1e2)}\n`)], /COMPARISON_NO_OVERLAP/],
     ['degradation without a later file', () => ['degradation', campaign[0]], /REFERENCE and at least one later FILE.*CLI_USAGE/],
     ['degradation with a bad rise limit', () => ['degradation', ...campaign.slice(0, 2), '--rth-rise-limit-percent', 'lots'], /--rth-rise-limit-percent must be a positive number/],
+    ['degradation with a bad package Rth', () => ['degradation', ...campaign.slice(0, 2), '--package-rth-k-per-w', '-1'], /--package-rth-k-per-w must be a positive number/],
     ['degradation with an unknown option', () => ['degradation', ...campaign.slice(0, 2), '--bogus'], /CLI_USAGE/],
   ];
   for (const [what, args, message] of cases) {

@@ -20,7 +20,7 @@ describe('comparisonWarnings', () => {
     // The one warning that is not the compact model's: 60 W given against the file's "# power_W: 51.3" line.
     const others = ["a heating power of 60 W was given, and used, where the file's header lines say 51.3 W"];
     expect(comparisonWarnings(result)).toEqual(others);
-    const comparison = compareForDegradation(result, result, 20);
+    const comparison = compareForDegradation(result, result, { rthRiseLimitPercent: 20 });
     expect(comparison.warnings.some((w) => w.startsWith(COMPACT_MODEL_WARNING))).toBe(false);
     expect(comparison.warnings).toEqual(expect.arrayContaining(others));
   });

@@ -1,6 +1,7 @@
 import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
-import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../shared/analysis/package-degradation.js';
+import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES, packageRthNote, type DegradationCriteria } from '../../shared/analysis/package-degradation.js';
+import { rthLimitCrossing } from '../../shared/analysis/rth-limit-crossing.js';
 import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../shared/input/cycle-count.js';
@@ -23,6 +24,9 @@ ${analysisParametersUsage}
   --rth-rise-limit-percent L
                           flag an Rth rise above L % (default ${DEFAULT_RTH_RISE_LIMIT_PERCENT}, a common
                           end-of-life criterion (memory); the qualification plan and AQG 324 decide)
+  --package-rth-k-per-w R the package's own Rth (junction to case), if known: a shift
+                          that starts beyond R is flagged as lying in the thermal
+                          interface or the cooler, not the package
   --format text|json      text table (default) or one JSON object with the shift curves`;
 
 /** `heatpath degradation`: returns the exit code; writes the report to `print`. */
@@ -30,6 +34,7 @@ export async function runDegradationCommand(argv: string[], print: (text: string
   const { values, positionals } = parseCommandLine('degradation', argv, {
     ...analysisOptions,
     'rth-rise-limit-percent': { type: 'string' },
+    'package-rth-k-per-w': { type: 'string' },
     format: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
@@ -40,14 +45,16 @@ export async function runDegradationCommand(argv: string[], print: (text: string
   if (positionals.length < 2) throw new HeatpathError('CLI_USAGE', 'heatpath degradation needs a REFERENCE and at least one later FILE');
   const format = choiceOption('format', values.format as string | undefined, ['text', 'json'] as const) ?? 'text';
   const limitPercent = numberOption('rth-rise-limit-percent', values['rth-rise-limit-percent'] as string | undefined, { positive: true }) ?? DEFAULT_RTH_RISE_LIMIT_PERCENT;
+  const packageRth_K_per_W = numberOption('package-rth-k-per-w', values['package-rth-k-per-w'] as string | undefined, { positive: true });
+  const criteria: DegradationCriteria = { rthRiseLimitPercent: limitPercent, ...(packageRth_K_per_W !== undefined && { packageRth_K_per_W }) };
   const inputs = await analysisInputsFromOptions(values);
 
   const { measurements, failures } = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
   // Without its reference nothing can be compared; a later file that fails is left out of the table and reported.
   if (measurements[0]?.file !== positionals[0]) throw failures[0];
   const [reference, ...later] = measurements;
-  const rows = later.map((measurement) => degradationRow(reference, measurement, limitPercent));
-  print(format === 'json' ? JSON.stringify(degradationReport(reference, rows, limitPercent)) : formatDegradation(reference, rows, limitPercent));
+  const rows = later.map((measurement) => degradationRow(reference, measurement, criteria));
+  print(format === 'json' ? JSON.stringify(degradationReport(reference, rows, criteria)) : formatDegradation(reference, rows, criteria));
   for (const failure of failures) process.stderr.write(userErrorLine('degradation', failure) + '\n');
   return failures.length > 0 ? 2 : 0;
 }
@@ -58,18 +65,24 @@ export interface DegradationRow {
   comparison: DegradationComparison;
 }
 
-function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, limitPercent: number): DegradationRow {
-  return { measurement, cycles: cycleCountFromMeta(measurement.meta), comparison: compareForDegradation(reference.result, measurement.result, limitPercent) };
+function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, criteria: DegradationCriteria): DegradationRow {
+  return { measurement, cycles: cycleCountFromMeta(measurement.meta), comparison: compareForDegradation(reference.result, measurement.result, criteria) };
+}
+
+function degradationNotes(criteria: DegradationCriteria): string[] {
+  return criteria.packageRth_K_per_W === undefined ? DEGRADATION_NOTES : [...DEGRADATION_NOTES, packageRthNote(criteria.packageRth_K_per_W)];
 }
 
 /** The JSON object of `heatpath degradation --format json`. */
-export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number) {
+export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], criteria: DegradationCriteria) {
   return {
     heatpath_degradation: 1,
     reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: comparisonWarnings(reference.result) },
-    rth_rise_limit_percent: limitPercent,
+    rth_rise_limit_percent: criteria.rthRiseLimitPercent,
+    package_rth_K_per_W: criteria.packageRth_K_per_W ?? null,
+    limit_crossing: rthLimitCrossing(cycleCountFromMeta(reference.meta), rows, criteria.rthRiseLimitPercent),
     later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
-    notes: DEGRADATION_NOTES,
+    notes: degradationNotes(criteria),
     caution: RESULT_CAUTION,
   };
 }
@@ -80,14 +93,17 @@ function uncertain(comparison: DegradationComparison): string {
 }
 
 /** The readable table of `heatpath degradation`: one row per later file. */
-export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], limitPercent: number): string {
+export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], criteria: DegradationCriteria): string {
+  const limitPercent = criteria.rthRiseLimitPercent;
   const referenceCycles = cycleCountFromMeta(reference.meta);
-  const header = ['file', 'cycles', 'Rth total', 'change', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
+  const crossing = rthLimitCrossing(referenceCycles, rows, limitPercent);
+  const header = ['file', 'cycles', 'Rth total', 'change', 'u(change)', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
   const table = rows.map(({ measurement, cycles, comparison }) => [
     measurement.file,
     cycles === null ? '-' : String(cycles),
     `${comparison.rth_total_K_per_W.toPrecision(4)} K/W`,
     `${comparison.rth_change_percent >= 0 ? '+' : ''}${comparison.rth_change_percent.toFixed(1)} %`,
+    `${comparison.rth_change_standard_uncertainty_percent.toPrecision(2)} %`,
     comparison.shift_start === null ? 'no shift' : `${uncertain(comparison)}${comparison.shift_start.r_sum_K_per_W.toPrecision(3)} K/W`,
     comparison.shift_start === null ? '-' : `${uncertain(comparison)}${comparison.shift_start.c_sum_J_per_K.toPrecision(3)} J/K`,
     comparison.added_r_K_per_W === null ? '-' : `${comparison.added_r_K_per_W.toPrecision(3)} K/W`,
@@ -106,7 +122,14 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
     line(header),
     ...table.map(line),
     ...(rows.some(({ comparison }) => uncertain(comparison)) ? ['  ? the degraded layer is not well placed at this noise: see the warnings for where a step fits best.'] : []),
-    ...DEGRADATION_NOTES.map((note) => `  ${note}`),
+    ...(crossing === null
+      ? []
+      : [
+          `  Rth rises above ${limitPercent} % first at ${crossing.first_cycle_count_above} cycles` +
+            (crossing.interpolated_cycle_count === null ? '.' : `; between the measurements, at about ${Math.round(crossing.interpolated_cycle_count)} cycles.`),
+        ]),
+    '  u(change): standard uncertainty of the change from the noise of both records.',
+    ...degradationNotes(criteria).map((note) => `  ${note}`),
     ...(warnings.length > 0 ? ['Warnings:', ...warnings] : []),
     `Caution: ${RESULT_CAUTION}`,
   ].join('\n') + '\n';

@@ -10,22 +10,50 @@ import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { DegradationComparison } from '../schemas/degradation-comparison.js';
 import { resultCumulativeStructure } from './result-structure-function.js';
 import { comparisonWarnings } from './comparison-warnings.js';
+import { rthTotalStandardUncertainty_K_per_W } from './rth-total-uncertainty.js';
 
 /** An Rth rise of 20 % is a commonly used end-of-life criterion in power cycling (memory). */
 export const DEFAULT_RTH_RISE_LIMIT_PERCENT = 20;
+
+/** A change within this many standard uncertainties of the limit is judged with a warning that the judgement is uncertain there. */
+export const NEAR_LIMIT_STANDARD_UNCERTAINTIES = 2;
+
+/** What a later measurement is judged against. */
+export interface DegradationCriteria {
+  /** Flag an Rth rise above this, in per cent of the reference's Rth total. */
+  rthRiseLimitPercent: number;
+  /** The package's own Rth (junction to case), when the user knows it: a shift that starts beyond it lies outside the package. */
+  packageRth_K_per_W?: number;
+}
+
+/** Why an Rth change was not judged against the limit; null when it was. */
+export type NotJudgedReason = 'record_lengths_differ';
 
 export const DEGRADATION_NOTES = [
   'The shift is R_sum(C) of a later measurement minus the reference\'s at equal C_sum: it starts where the degraded layer sits, counted from the junction, and settles at the resistance that layer added.',
   'Bond-wire damage shows in the on-state voltage, not in the structure function (common practice).',
   'The end-of-life flag marks an Rth rise above the limit; 20 % is recalled from memory as common in power-cycling practice: the qualification plan and AQG 324 decide.',
+  "The standard uncertainty of the Rth change counts the noise of both records (each Rth total's value at t = 0 and steady-state level; GUM, JCGM 100:2008), not the power, the calibration or how the device was mounted again; it informs the judgement, which stays the qualification plan's under AQG 324 or the applicable standard.",
 ];
+
+/** The note of a comparison made with the package's own Rth (shift_beyond_package). */
+export function packageRthNote(packageRth_K_per_W: number): string {
+  return (
+    `shift_beyond_package is true where the structure function starts to shift beyond the package's own Rth (junction to case) of ${packageRth_K_per_W} K/W given: ` +
+    'the change lies in the thermal interface or the cooler, not in the package; a judgement of the package informs but does not replace qualification under AQG 324 or the applicable standard'
+  );
+}
 
 /** Records whose last times differ by more than this factor were measured differently: their Rth totals are not compared. */
 export const RECORD_LENGTH_RATIO_LIMIT = 1.25;
 
-export function compareForDegradation(reference: AnalysisResult, later: AnalysisResult, rthRiseLimitPercent: number): DegradationComparison {
+export function compareForDegradation(reference: AnalysisResult, later: AnalysisResult, criteria: DegradationCriteria): DegradationComparison {
+  const { rthRiseLimitPercent, packageRth_K_per_W } = criteria;
   const rthReference = reference.rth_total_K_per_W;
   const rthChangePercent = ((later.rth_total_K_per_W - rthReference) / rthReference) * 100;
+  // GUM (JCGM 100:2008, 5.1.2) for the ratio of two independent measurements: relative uncertainties add in quadrature.
+  const changeUncertaintyPercent =
+    100 * (later.rth_total_K_per_W / rthReference) * Math.hypot(rthTotalStandardUncertainty_K_per_W(reference) / rthReference, rthTotalStandardUncertainty_K_per_W(later) / later.rth_total_K_per_W);
   const shift = structureFunctionShift(resultCumulativeStructure(reference), resultCumulativeStructure(later));
   const [referenceEnd_s, laterEnd_s] = [reference, later].map((result) => result.zth.time_s[result.zth.time_s.length - 1]);
   const comparableLengths = Math.max(referenceEnd_s, laterEnd_s) / Math.min(referenceEnd_s, laterEnd_s) <= RECORD_LENGTH_RATIO_LIMIT;
@@ -43,16 +71,34 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
             : ', and no end-of-life judgement is made') +
           '; record both the same way',
       ];
+  const nearLimit = comparableLengths && Math.abs(rthChangePercent - rthRiseLimitPercent) < NEAR_LIMIT_STANDARD_UNCERTAINTIES * changeUncertaintyPercent;
+  const nearLimitWarnings = nearLimit
+    ? [
+        `the Rth change, ${rthChangePercent.toFixed(2)} % with a standard uncertainty of ${changeUncertaintyPercent.toPrecision(2)} %, lies within ${NEAR_LIMIT_STANDARD_UNCERTAINTIES} standard uncertainties of the ${rthRiseLimitPercent} % limit: ` +
+          'the end-of-life judgement is uncertain near the limit; repeat both measurements, and let the qualification plan decide',
+      ]
+    : [];
+  const start = shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K, well_placed: shift.start.well_placed };
+  const shiftBeyondPackage = packageRth_K_per_W === undefined || start === null ? null : start.r_sum_K_per_W > packageRth_K_per_W;
+  const packageWarnings = shiftBeyondPackage
+    ? [
+        `the structure function starts to shift at R_sum ${start!.r_sum_K_per_W.toPrecision(3)} K/W, beyond the package's own Rth of ${packageRth_K_per_W} K/W: ` +
+          'the change lies in the thermal interface or the cooler, not in the package; check the mounting before reading it as package degradation',
+      ]
+    : [];
   return {
     rth_total_K_per_W: later.rth_total_K_per_W,
     rth_change_percent: rthChangePercent,
+    rth_change_standard_uncertainty_percent: changeUncertaintyPercent,
     rth_rise_exceeds_limit: comparableLengths ? rthChangePercent > rthRiseLimitPercent : risePlainlyExceeds ? true : null,
-    shift_start: shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K, well_placed: shift.start.well_placed },
+    not_judged_reason: comparableLengths || risePlainlyExceeds ? null : 'record_lengths_differ',
+    shift_start: start,
+    shift_beyond_package: shiftBeyondPackage,
     added_r_K_per_W: shift.settled_shift_K_per_W,
     structure_rth_change_K_per_W: shift.rth_change_K_per_W,
     shift_threshold_K_per_W: shift.threshold_K_per_W,
     shift_scatter_K_per_W: shift.scatter_K_per_W,
     curves: { c_J_per_K: Array.from(shift.c_J_per_K), reference_r_K_per_W: Array.from(shift.reference_r_K_per_W), shift_K_per_W: Array.from(shift.shift_K_per_W) },
-    warnings: [...comparisonWarnings(later), ...lengthWarnings, ...shift.warnings],
+    warnings: [...comparisonWarnings(later), ...lengthWarnings, ...nearLimitWarnings, ...packageWarnings, ...shift.warnings],
   };
 }

@@ -52,11 +52,35 @@ const SampleDegradationSchema = Type.Object({
   channel: Type.String(),
   batch_id: Type.Union([Type.String(), Type.Null()]),
   rth_rise_limit_percent: Type.Number(),
+  package_rth_K_per_W: Type.Union([Type.Number(), Type.Null()], { description: "The package's own Rth given with ?package_rth_K_per_W=, or null." }),
+  limit_crossing: Type.Union(
+    [
+      Type.Object({
+        first_cycle_count_above: Type.Integer({ description: 'The first cycle count at which the Rth change exceeds the limit.' }),
+        interpolated_cycle_count: Type.Union([Type.Number(), Type.Null()], {
+          description: "Where a straight line in cycles between the last measurement below the limit (or the reference at 0 %) and that one reaches it; null without one below, or when that one is flagged by its record's level reached (a shorter record).",
+        }),
+      }),
+      Type.Null(),
+    ],
+    { description: 'Where the trend first exceeds the limit; null when it does not. Measurements without a cycle count or not judged are passed over. An estimate for the qualification plan, which decides under AQG 324 or the applicable standard.' },
+  ),
   reference: MeasurementSchema,
   later: Type.Array(Type.Object({ ...MeasurementSchema.properties, ...DegradationComparisonSchema.properties }), { description: 'In cycle order.' }),
-  not_included: Type.Array(Type.Object({ upload_id: Type.String(), job_id: Type.Union([Type.String(), Type.Null()]), reason: Type.String() }), {
-    description: 'Uploads of the sample left out: analysis pending or failed, the channel missing, not in the batch, or not comparable with the reference.',
-  }),
+  not_included: Type.Array(
+    Type.Object({
+      upload_id: Type.String(),
+      job_id: Type.Union([Type.String(), Type.Null()]),
+      reason_code: Type.Union(
+        [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable')],
+        { description: 'Stable, to branch on; reason says more.' },
+      ),
+      reason: Type.String(),
+    }),
+    {
+      description: 'Uploads of the sample left out: analysis pending or failed, the channel missing, not in the batch, or not comparable with the reference.',
+    },
+  ),
   warnings: Type.Array(Type.String()),
   notes: Type.Array(Type.String()),
   caution: Type.String(),
@@ -145,7 +169,8 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         summary: 'Degradation of a device over power cycling',
         description:
           'Its completed analyses in cycle order (cycle_count, then arrival), each compared with the reference (the first, or ?reference_upload_id=) by Rth total ' +
-          'and by where and how much its cumulative structure function shifted, as `heatpath degradation` compares files. ' + DEGRADATION_NOTES.join(' '),
+          'and by where and how much its cumulative structure function shifted, as `heatpath degradation` compares files. ' + DEGRADATION_NOTES.join(' ') +
+          ' With ?batch_id= of a cancelled batch that did not analyse all of the sample\'s uploads: 409 DEGRADATION_BATCH_CANCELLED; a ?channel= the results do not have: 400 DEGRADATION_CHANNEL_NOT_FOUND, naming the channels they have.',
         params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
         querystring: Type.Object(
           {
@@ -153,6 +178,9 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
             reference_upload_id: Type.Optional(Type.String({ maxLength: 160, description: 'The reference measurement; default: the first in cycle order.' })),
             batch_id: Type.Optional(Type.String({ maxLength: 160, description: 'Read the jobs of this reprocessing batch instead of the uploads\' own jobs.' })),
             rth_rise_limit_percent: Type.Optional(Type.Number({ exclusiveMinimum: 0, default: DEFAULT_RTH_RISE_LIMIT_PERCENT, description: 'Flag an Rth rise above this (20 % is a common end-of-life criterion, recalled from memory; the qualification plan and AQG 324 decide).' })),
+            package_rth_K_per_W: Type.Optional(
+              Type.Number({ exclusiveMinimum: 0, description: "The package's own Rth (junction to case), if known: a shift that starts beyond it is flagged shift_beyond_package (it lies in the thermal interface or the cooler)." }),
+            ),
           },
           { additionalProperties: false },
         ),

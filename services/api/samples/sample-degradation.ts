@@ -1,6 +1,7 @@
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
-import { compareForDegradation, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
+import { compareForDegradation, DEGRADATION_NOTES, packageRthNote } from '../../../shared/analysis/package-degradation.js';
+import { rthLimitCrossing } from '../../../shared/analysis/rth-limit-crossing.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { reprocessedUpload } from '../../../workers/reprocess-batch.js';
@@ -17,6 +18,18 @@ export interface SampleDegradationOptions {
   /** Read each upload's job of this reprocessing batch instead of its own job. */
   batch_id?: string;
   rth_rise_limit_percent: number;
+  /** The package's own Rth (junction to case), when known: a shift that starts beyond it lies outside the package. */
+  package_rth_K_per_W?: number;
+}
+
+/** Why an upload is not in the trend: stable, for a LIMS to branch on; the text beside it says more. */
+export type NotIncludedReasonCode = 'not_in_batch' | 'analysis_failed' | 'analysis_pending' | 'channel_missing' | 'not_comparable';
+
+interface NotIncluded {
+  upload_id: string;
+  job_id: string | null;
+  reason_code: NotIncludedReasonCode;
+  reason: string;
 }
 
 interface Measurement {
@@ -39,26 +52,39 @@ const measurementOf = ({ upload, job_id, result }: Measurement) => ({
 export async function sampleDegradation(store: TransientStore, sampleId: string, options: SampleDegradationOptions) {
   const uploads = await store.listUploads({ sample_id: sampleId });
   if (uploads.length === 0) throw new HeatpathError('RESOURCE_NOT_FOUND', `sample ${sampleId} has no stored uploads`);
-  const jobOf = await jobChooser(store, options.batch_id);
-  const notIncluded: { upload_id: string; job_id: string | null; reason: string }[] = [];
+  const { jobOf, cancelled } = await jobChooser(store, options.batch_id);
+  const notIncluded: NotIncluded[] = [];
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
   const ordered = inCycleOrder(uploads);
   for (const upload of ordered) {
     const jobId = jobOf(upload);
     if (jobId === null) {
-      notIncluded.push({ upload_id: upload.upload_id, job_id: null, reason: `not part of batch ${options.batch_id}` });
+      notIncluded.push({ upload_id: upload.upload_id, job_id: null, reason_code: 'not_in_batch', reason: `not part of batch ${options.batch_id}` });
       continue;
     }
     const record = await store.getResult(jobId);
     if (record) found.push({ upload, job_id: jobId, results: record.results as AnalysisResult[] });
-    else notIncluded.push({ upload_id: upload.upload_id, job_id: jobId, reason: (await store.hasFailure(jobId)) ? 'the analysis failed' : 'the analysis is pending' });
+    else if (await store.hasFailure(jobId)) notIncluded.push({ upload_id: upload.upload_id, job_id: jobId, reason_code: 'analysis_failed', reason: 'the analysis failed' });
+    else notIncluded.push({ upload_id: upload.upload_id, job_id: jobId, reason_code: 'analysis_pending', reason: 'the analysis is pending' });
   }
-  const channel = options.channel ?? onlyChannel(found);
+  // A job of a cancelled batch that did not run never will: its trend would stay incomplete, not pending.
+  const neverRun = notIncluded.filter(({ reason_code }) => reason_code === 'analysis_pending');
+  if (cancelled && neverRun.length > 0) {
+    throw new HeatpathError(
+      'DEGRADATION_BATCH_CANCELLED',
+      `batch ${options.batch_id} was cancelled before it analysed ${neverRun.length} of sample ${sampleId}'s uploads (${neverRun.map(({ upload_id }) => upload_id).join(', ')})`,
+    );
+  }
+  const channels = channelsOf(found);
+  if (options.channel !== undefined && channels.length > 0 && !channels.includes(options.channel)) {
+    throw new HeatpathError('DEGRADATION_CHANNEL_NOT_FOUND', `sample ${sampleId} has no channel ${options.channel}: its results have channel${channels.length > 1 ? 's' : ''} ${channels.join(', ')}`);
+  }
+  const channel = options.channel ?? onlyChannel(channels);
   const measurements: Measurement[] = [];
   for (const { upload, job_id, results } of found) {
     const result = results.find((candidate) => candidate.source.channel === channel);
     if (result) measurements.push({ upload, job_id, result });
-    else notIncluded.push({ upload_id: upload.upload_id, job_id, reason: `no channel ${channel} (it has ${results.map((r) => r.source.channel).join(', ')})` });
+    else notIncluded.push({ upload_id: upload.upload_id, job_id, reason_code: 'channel_missing', reason: `no channel ${channel} (it has ${results.map((r) => r.source.channel).join(', ')})` });
   }
   const referenceIndex = options.reference_upload_id === undefined ? 0 : measurements.findIndex((m) => m.upload.upload_id === options.reference_upload_id);
   if (referenceIndex < 0) {
@@ -68,15 +94,16 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     throw new HeatpathError('DEGRADATION_TOO_FEW_RESULTS', `sample ${sampleId} has ${measurements.length} completed analysis(es) of channel ${channel}, ${notIncluded.length} upload(s) not included`);
   }
   const reference = measurements[referenceIndex];
+  const criteria = { rthRiseLimitPercent: options.rth_rise_limit_percent, ...(options.package_rth_K_per_W !== undefined && { packageRth_K_per_W: options.package_rth_K_per_W }) };
   const later = [];
   for (const measurement of measurements.filter((_, index) => index !== referenceIndex)) {
     try {
-      const comparison = compareForDegradation(reference.result, measurement.result, options.rth_rise_limit_percent);
+      const comparison = compareForDegradation(reference.result, measurement.result, criteria);
       later.push({ ...measurementOf(measurement), ...withComparabilityWarning(comparison, reference.result, measurement.result) });
     } catch (error) {
       // One measurement that cannot be compared (another device, no common C_sum range) leaves the others' trend standing.
       if (!isHeatpathError(error)) throw error;
-      notIncluded.push({ upload_id: measurement.upload.upload_id, job_id: measurement.job_id, reason: `not comparable with the reference: ${error.message}` });
+      notIncluded.push({ upload_id: measurement.upload.upload_id, job_id: measurement.job_id, reason_code: 'not_comparable', reason: `not comparable with the reference: ${error.message}` });
     }
   }
   // The reference's own analysis warnings: every comparison stands on it.
@@ -97,11 +124,13 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     channel,
     batch_id: options.batch_id ?? null,
     rth_rise_limit_percent: options.rth_rise_limit_percent,
+    package_rth_K_per_W: options.package_rth_K_per_W ?? null,
+    limit_crossing: rthLimitCrossing(reference.upload.cycle_count, later.map((entry) => ({ cycles: entry.cycle_count, comparison: entry })), options.rth_rise_limit_percent),
     reference: measurementOf(reference),
     later,
     not_included: notIncluded,
     warnings,
-    notes: DEGRADATION_NOTES,
+    notes: options.package_rth_K_per_W === undefined ? DEGRADATION_NOTES : [...DEGRADATION_NOTES, packageRthNote(options.package_rth_K_per_W)],
     caution: RESULT_CAUTION,
   };
 }
@@ -112,20 +141,24 @@ function inCycleOrder(uploads: UploadRecord[]): UploadRecord[] {
   return [...uploads].sort((a, b) => cycles(a) - cycles(b) || a.received_at.localeCompare(b.received_at) || a.upload_id.localeCompare(b.upload_id));
 }
 
-async function jobChooser(store: TransientStore, batchId: string | undefined): Promise<(upload: UploadRecord) => string | null> {
-  if (batchId === undefined) return (upload) => upload.job_id;
+async function jobChooser(store: TransientStore, batchId: string | undefined): Promise<{ jobOf: (upload: UploadRecord) => string | null; cancelled: boolean }> {
+  if (batchId === undefined) return { jobOf: (upload) => upload.job_id, cancelled: false };
   const batch = await store.getBatch(batchId);
   if (!batch) throw new HeatpathError('RESOURCE_NOT_FOUND', `batch ${batchId} is not stored`);
   // A batch lists one entry per job: uploads of identical content share it, so ask by job, not by upload.
   const jobs = new Set(batch.entries.map((entry) => entry.job_id));
-  return (upload) => {
+  const jobOf = (upload: UploadRecord) => {
     const jobId = reprocessedUpload(upload, batch).job_id;
     return jobs.has(jobId) ? jobId : null;
   };
+  return { jobOf, cancelled: batch.status === 'cancelled' };
 }
 
-function onlyChannel(found: { results: AnalysisResult[] }[]): string {
-  const channels = [...new Set(found.flatMap(({ results }) => results.map((result) => result.source.channel)))];
+function channelsOf(found: { results: AnalysisResult[] }[]): string[] {
+  return [...new Set(found.flatMap(({ results }) => results.map((result) => result.source.channel)))];
+}
+
+function onlyChannel(channels: string[]): string {
   if (channels.length > 1) throw new HeatpathError('REQUEST_INVALID', `the sample's results have channels ${channels.join(', ')}: choose one with ?channel=`);
   return channels[0] ?? '1';
 }
