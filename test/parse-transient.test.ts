@@ -1,4 +1,3 @@
-import { cycleCountFromMeta } from '../shared/input/cycle-count.js';
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { parseTransient } from '../shared/input/parse-transient.js';
@@ -280,16 +279,5 @@ describe('parseTransient on arbitrary input', () => {
     const token = fc.constantFrom('time_s', 'voltage_V', 'voltage_V@D1', 'temperature_C', '#', ',', ';', '\t', '\n', '\r\n', '1e-6', '-1', 'nan', '"', '{', '}', '[', ']', ':', '0.5', ' ');
     fc.assert(fc.property(fc.array(token, { maxLength: 200 }).map((parts) => parts.join('')), parsesOrExplains), { numRuns: 300 });
     fc.assert(fc.property(fc.json(), parsesOrExplains), { numRuns: 300 });
-  });
-});
-
-describe('cycle count from a file\'s "# cycle_count:" line', () => {
-  // The reading both `heatpath degradation` and the service's upload route use (shared/input/cycle-count.ts).
-  it('takes a whole number of cycles, plain or with an exponent, and nothing else', () => {
-    expect(cycleCountFromMeta({ cycle_count: '20000' })).toBe(20000);
-    expect(cycleCountFromMeta({ cycle_count: ' 2e4 ' })).toBe(20000);
-    expect(cycleCountFromMeta({ cycle_count: '0' })).toBe(0);
-    for (const text of ['', '-5', '1.5', 'twenty', 'NaN', '1e400']) expect(cycleCountFromMeta({ cycle_count: text })).toBeNull();
-    expect(cycleCountFromMeta({})).toBeNull();
   });
 });

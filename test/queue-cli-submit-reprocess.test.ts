@@ -72,6 +72,22 @@ describe('heatpath submit (real API, real Redis)', () => {
     expect(stored.parameters.method).toBe('fourier');
   });
 
+  it('reads --cycle-count as digits only before sending anything, and passes on the server\'s warning when the file says otherwise', async () => {
+    const path = join(workDir, 'counted.csv');
+    await writeFile(path, Buffer.concat([Buffer.from('# cycle_count: 40000\n'), syntheticTransientCsv(66)]));
+    // A grouping comma or point (SI Brochure 9th edition, section 5.4.4 (memory): no separator inside digit groups) is not read as thousands here.
+    for (const grouped of ['40,000', '40.000']) {
+      await expect(runSubmitCommand([path, ...serverOptions(), '--sample', 'S-66', '--cycle-count', grouped], print)).rejects.toMatchObject({
+        code: 'CYCLE_COUNT_INVALID',
+        detail: `--cycle-count is "${grouped}", not digits only`,
+      });
+    }
+    expect(await api.store.listUploads({ sample_id: 'S-66' })).toHaveLength(0);
+    expect(await runSubmitCommand([path, ...serverOptions(), '--sample', 'S-66', '--cycle-count', '42000'], print)).toBe(0);
+    expect(errors).toEqual([`heatpath submit: ${path}: warning: cycle_count 42000 of the request is recorded; the file's "# cycle_count:" line says 40000\n`]);
+    expect((await api.store.listUploads({ sample_id: 'S-66' })).map((upload) => upload.cycle_count)).toEqual([42000]);
+  });
+
   it('exits 2 with one line per refused file and still submits the others', async () => {
     const bad = await writeTransient('empty.csv', -1);
     const good = await writeTransient('good.csv', 63);

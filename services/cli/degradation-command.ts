@@ -66,7 +66,7 @@ export interface DegradationRow {
 }
 
 function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, criteria: DegradationCriteria): DegradationRow {
-  return { measurement, cycles: cycleCountFromMeta(measurement.meta), comparison: compareForDegradation(reference.result, measurement.result, criteria) };
+  return { measurement, cycles: cycleCountFromMeta(measurement.meta, measurement.file), comparison: compareForDegradation(reference.result, measurement.result, criteria) };
 }
 
 function degradationNotes(criteria: DegradationCriteria): string[] {
@@ -77,10 +77,10 @@ function degradationNotes(criteria: DegradationCriteria): string[] {
 export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], criteria: DegradationCriteria) {
   return {
     heatpath_degradation: 1,
-    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: comparisonWarnings(reference.result) },
+    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta, reference.file), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: comparisonWarnings(reference.result) },
     rth_rise_limit_percent: criteria.rthRiseLimitPercent,
     package_rth_K_per_W: criteria.packageRth_K_per_W ?? null,
-    limit_crossing: rthLimitCrossing(cycleCountFromMeta(reference.meta), rows, criteria.rthRiseLimitPercent),
+    limit_crossing: rthLimitCrossing(cycleCountFromMeta(reference.meta, reference.file), rows, criteria.rthRiseLimitPercent),
     later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
     notes: degradationNotes(criteria),
     caution: RESULT_CAUTION,
@@ -95,7 +95,7 @@ function uncertain(comparison: DegradationComparison): string {
 /** The readable table of `heatpath degradation`: one row per later file. */
 export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], criteria: DegradationCriteria): string {
   const limitPercent = criteria.rthRiseLimitPercent;
-  const referenceCycles = cycleCountFromMeta(reference.meta);
+  const referenceCycles = cycleCountFromMeta(reference.meta, reference.file);
   const crossing = rthLimitCrossing(referenceCycles, rows, limitPercent);
   const header = ['file', 'cycles', 'Rth total', 'change', 'u(change)', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
   const table = rows.map(({ measurement, cycles, comparison }) => [

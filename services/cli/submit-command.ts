@@ -39,6 +39,7 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
         throw isHeatpathError(error) ? new HeatpathError(error.code, error.detail, { ...error.location, file }) : error;
       });
       print(`${file}\t${uploaded.job_id}\t${uploaded.state}`);
+      for (const warning of uploaded.warnings) process.stderr.write(`heatpath submit: ${file}: warning: ${warning}\n`);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       process.stderr.write(userErrorLine('submit', error) + '\n');

@@ -15,6 +15,8 @@ export interface UploadedTransient {
   upload_id: string;
   job_id: string;
   state: string;
+  /** What the server accepted the file despite (a request's cycle count that differs from the file's). */
+  warnings: string[];
 }
 
 const RETRYABLE_STATUS = new Set([408, 429, 500, 502, 503, 504]);
@@ -45,7 +47,10 @@ export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, f
         signal: AbortSignal.timeout(60_000),
       });
       const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
-      if (response.ok) return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state) };
+      if (response.ok) {
+        const warnings = Array.isArray(answer.warnings) ? answer.warnings.map(String) : [];
+        return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state), warnings };
+      }
       lastProblem = describeProblem(response.status, answer);
       if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName, ...problemPlace(answer) });
       retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);

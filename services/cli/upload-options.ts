@@ -1,4 +1,5 @@
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { readCycleCount } from '../../shared/input/cycle-count.js';
 import { numberOption, withDecimalPoint } from './cli-arguments.js';
 import type { UploadTarget } from './transient-upload-client.js';
 
@@ -38,7 +39,8 @@ export function uploadOptionsUsage(sampleHelp = 'LIMS sample id'): string {
   return `  --server URL            the heatpath service, e.g. http://heatpath.lab:8080
   --key TOKEN             API key (role bench or admin)
   --sample ID             ${sampleHelp}
-  --bench B --channel C --cycle-count N --tag T (repeatable)
+  --bench B --channel C --tag T (repeatable)
+  --cycle-count N         power cycles the device had seen, digits only (40000)
   --power-w P | --current-a I --voltage-v V
   --calibration-id ID     a calibration stored on the server
   --kind, --method, --points-per-decade, --early-start-s, --early-end-s,
@@ -66,10 +68,13 @@ const CHOICE_PARAMETERS: ReadonlySet<string> = new Set(['kind', 'method']);
 /**
  * A value as the server reads it, where the command line is more lenient (as
  * `analyze` is): a decimal comma becomes a point (`51,3`), a choice lower case
- * (`Cooling`). Anything else goes as given, for the server to judge.
+ * (`Cooling`). Anything else goes as given, for the server to judge, but the
+ * cycle count: its comma or point separates thousands, so it is read here as
+ * digits only and refused before any file is sent, naming the option.
  */
 function serverSpelling(parameter: string, value: string): string {
   if (CHOICE_PARAMETERS.has(parameter)) return value.trim().toLowerCase();
+  if (parameter === 'cycle_count') return String(readCycleCount(value, '--cycle-count'));
   return withDecimalPoint(value);
 }
 

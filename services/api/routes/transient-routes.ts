@@ -2,7 +2,7 @@ import fastifyMultipart from '@fastify/multipart';
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type, type TObject } from 'typebox';
 import { Compile } from 'typebox/compile';
-import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { JobStateSchema, JobStatusSchema, readJobStatus, storedJobStatus } from '../jobs/job-status.js';
@@ -11,6 +11,7 @@ import { UploadMetadataSchema, UploadQuerySchema } from '../schemas/transient-me
 import { acceptTransientUpload, uploadCaution, uploadLinks } from '../uploads/accept-transient-upload.js';
 import { typedFieldsFromText } from '../../../shared/schemas/typed-fields-from-text.js';
 import { readMultipartUpload, readRawUpload } from '../uploads/read-upload-request.js';
+import { withRequestCycleCount } from '../uploads/request-cycle-count.js';
 
 const UploadAnswerSchema = Type.Object({
   upload_id: Type.String(),
@@ -21,6 +22,8 @@ const UploadAnswerSchema = Type.Object({
   channels: Type.Array(Type.String()),
   points: Type.Integer(),
   links: UploadLinksSchema,
+  cycle_count: Type.Union([Type.Integer(), Type.Null()], { description: "The cycle count recorded for the upload: the request's cycle_count, else the file's \"# cycle_count:\" line, else null." }),
+  warnings: Type.Array(Type.String(), { description: "What the upload was accepted despite, e.g. a request's cycle_count that differs from the file's." }),
   caution: Type.String({ default: uploadCaution }),
 });
 
@@ -35,11 +38,18 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
   { store, queue, maxUploadBytes },
 ) => {
   // Raw bodies are Buffers, which JSON-Schema validators cannot type; TypeBox checks the query and headers here,
-  // with numbers and lists read strictly from the query's text (typed-fields-from-text.ts).
+  // with numbers and lists read strictly from the query's text (typed-fields-from-text.ts) and the cycle count
+  // as digits only (request-cycle-count.ts), whose own error fastify passes on as it is.
   app.setValidatorCompiler(({ schema, httpPart }) => {
     const validator = Compile(schema as TObject);
     return (value) => {
-      const converted = httpPart === 'querystring' ? typedFieldsFromText(schema as TObject, value as Record<string, unknown>) : value;
+      let converted = value;
+      try {
+        if (httpPart === 'querystring') converted = typedFieldsFromText(schema as TObject, withRequestCycleCount(value as Record<string, unknown>, 'query parameter cycle_count'));
+      } catch (error) {
+        if (isHeatpathError(error)) return { error };
+        throw error;
+      }
       return validator.Check(converted) ? { value: converted } : { error: validator.Errors(converted) };
     };
   });

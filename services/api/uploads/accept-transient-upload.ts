@@ -24,6 +24,8 @@ export interface UploadAnswer {
   channels: string[];
   points: number;
   links: { self: string; job: string; result: string };
+  cycle_count: number | null;
+  warnings: string[];
   caution: string;
 }
 
@@ -45,6 +47,7 @@ export async function acceptTransientUpload(
   const { store, log } = deps;
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.fileName, upload.format);
+  const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient.meta, upload.fileName));
   const { parameters, power: resolvedPower } = resolveAnalysisInputs(
     transient,
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
@@ -66,6 +69,8 @@ export async function acceptTransientUpload(
     channels: transient.channels.map((channel) => channel.name),
     points: transient.time_s.length,
     links: uploadLinks(record),
+    cycle_count: record.cycle_count,
+    warnings,
     caution: uploadCaution,
   });
 
@@ -91,7 +96,7 @@ export async function acceptTransientUpload(
     sample_id: metadata.sample_id,
     bench: metadata.bench ?? null,
     channel: metadata.channel ?? null,
-    cycle_count: metadata.cycle_count ?? cycleCountFromMeta(transient.meta),
+    cycle_count: cycleCount,
     tags: metadata.tags ?? [],
     power,
     calibration_id: calibrationId,
@@ -154,6 +159,14 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
 /** As the parser decides when not told: JSON when the text starts with '{' (trim drops a byte-order mark too). */
 function formatOf(upload: UploadRequest): UploadRecord['format'] {
   return upload.format ?? (upload.bytes.toString('utf8').trimStart().startsWith('{') ? 'json' : 'csv');
+}
+
+/** The request's cycle count before the file's, as for power and parameters; a difference is worth a warning, not a refusal. */
+function cycleCountOf(metadata: UploadMetadata, fromFile: number | null): { cycleCount: number | null; warnings: string[] } {
+  const given = metadata.cycle_count;
+  if (given === undefined) return { cycleCount: fromFile, warnings: [] };
+  if (fromFile === null || fromFile === given) return { cycleCount: given, warnings: [] };
+  return { cycleCount: given, warnings: [`cycle_count ${given} of the request is recorded; the file's "# cycle_count:" line says ${fromFile}`] };
 }
 
 function powerOf(metadata: UploadMetadata): Power | null {

@@ -5,6 +5,7 @@ import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-
 import type { TransientFormat } from '../../../shared/input/parse-transient.js';
 import { UploadMetadataSchema, type UploadMetadata, type UploadQuery } from '../schemas/transient-metadata.js';
 import { typedFieldsFromText } from '../../../shared/schemas/typed-fields-from-text.js';
+import { withRequestCycleCount } from './request-cycle-count.js';
 
 /** An upload as received, before anything is checked but its metadata. */
 export interface UploadRequest {
@@ -56,7 +57,8 @@ export async function readMultipartUpload(request: FastifyRequest, query: Partia
 }
 
 function mergeFields(fields: Record<string, string | string[]>): Record<string, unknown> {
-  const { meta, ...named } = fields;
+  const { meta, ...fieldsByName } = fields;
+  const named = withRequestCycleCount(fieldsByName, 'multipart field cycle_count');
   if (meta === undefined) return named;
   if (Array.isArray(meta)) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" appears more than once');
   let parsed: unknown;
@@ -66,7 +68,7 @@ function mergeFields(fields: Record<string, string | string[]>): Record<string, 
     throw new HeatpathError('REQUEST_INVALID', `multipart field "meta" is not JSON: ${(error as Error).message}`);
   }
   if (parsed === null || typeof parsed !== 'object' || Array.isArray(parsed)) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" must be a JSON object');
-  return { ...parsed, ...named };
+  return { ...withRequestCycleCount(parsed as Record<string, unknown>, 'multipart field "meta", key cycle_count'), ...named };
 }
 
 /** Compiled once, as fastify compiles its route schemas: every upload is checked (27 us instead of 36 us measured). */
