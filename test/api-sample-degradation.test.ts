@@ -88,7 +88,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     const fromService = (await trend()).json();
     expect(fromService.reference.rth_total_K_per_W).toBe(fromCli.reference.rth_total_K_per_W);
     fromCli.later.forEach((row: Record<string, unknown>, index: number) => {
-      const { file: _file, cycles: _cycles, ...comparison } = row;
+      const { file: _file, cycle_count: _cycles, ...comparison } = row;
       const { upload_id: _u, received_at: _r, cycle_count: _c, job_id: _j, ...served } = fromService.later[index];
       expect(served).toEqual(comparison);
     });

@@ -91,8 +91,8 @@ describe('heatpath degradation', () => {
     expect(run.stderr).toBe('');
     expect(run.code).toBe(0);
     const report = JSON.parse(run.stdout);
-    expect(report.reference.cycles).toBe(0);
-    expect(report.later.map((row: { cycles: number }) => row.cycles)).toEqual([20000, 40000, 60000]);
+    expect(report.reference).toMatchObject({ file: campaign[0], cycle_count: 0, chosen_by: 'lowest_cycle_count' });
+    expect(report.later.map((row: { cycle_count: number }) => row.cycle_count)).toEqual([20000, 40000, 60000]);
     const changes = report.later.map((row: { rth_change_percent: number }) => row.rth_change_percent);
     expect(changes[0]).toBeLessThan(changes[1]);
     expect(changes[1]).toBeLessThan(changes[2]);
@@ -187,6 +187,44 @@ describe('heatpath degradation: limit crossing and the package\'s own Rth', () =
   });
 });
 
+describe('heatpath degradation: which file is the reference', () => {
+  // Without its "# cycle_count:" line a file says nothing of its place in the campaign.
+  const uncounted = (path: string, name: string) => file(name, readFileSync(path, 'utf8').replace(/^# cycle_count: .*\n/m, ''));
+
+  it('takes the files in cycle order, the lowest count as the reference, whatever order they are given in', () => {
+    const inOrder = JSON.parse(heatpath('degradation', ...campaign, '--format', 'json').stdout);
+    const run = heatpath('degradation', campaign[2], campaign[0], campaign[3], campaign[1], '--format', 'json');
+    expect(run.code).toBe(0);
+    const report = JSON.parse(run.stdout);
+    expect(report.reference).toMatchObject({ file: campaign[0], cycle_count: 0, chosen_by: 'lowest_cycle_count' });
+    expect(report.later.map((row: { file: string }) => row.file)).toEqual(campaign.slice(1));
+    expect(report.later).toEqual(inOrder.later);
+    const text = heatpath('degradation', campaign[3], campaign[0]).stdout;
+    expect(text).toMatch(/^Package degradation against \S+cycle-000000\.csv \(0 cycles\)/);
+    expect(text).toContain('reference: the lowest cycle count of the files analysed');
+  });
+
+  it('takes the first file given as the reference when not every file has a cycle count, and says so', () => {
+    const first = uncounted(campaign[0], 'm31-first-uncounted.csv');
+    const report = JSON.parse(heatpath('degradation', campaign[3], first, '--format', 'json').stdout);
+    expect(report.reference).toMatchObject({ file: campaign[3], cycle_count: 60000, chosen_by: 'first_argument' });
+    expect(report.later.map((row: { file: string; cycle_count: number | null }) => [row.file, row.cycle_count])).toEqual([[first, null]]);
+    // The 0-cycle file against the 60 000-cycle one: Rth falls, as it reads backwards in time.
+    expect(report.later[0].rth_change_percent).toBeLessThan(0);
+    expect(heatpath('degradation', campaign[3], first).stdout).toContain('reference: the first file given, as not every file has a "# cycle_count:" line');
+  });
+
+  it('refuses a "# cycle_count:" line not in digits as the file\'s error, compares the others and exits 2', () => {
+    const grouped = file('m31-grouped.csv', readFileSync(campaign[1], 'utf8').replace('# cycle_count: 20000', '# cycle_count: 20.000'));
+    const run = heatpath('degradation', campaign[3], grouped, campaign[0], '--format', 'json');
+    expect(run.code).toBe(2);
+    expect(run.stderr.trim().split('\n')).toEqual([expect.stringMatching(/m31-grouped\.csv: .*"# cycle_count:" line .* is "20\.000", not digits only\. Write the number of cycles as digits only, e\.g\. 40000.*\[CYCLE_COUNT_INVALID\]$/)]);
+    const report = JSON.parse(run.stdout);
+    expect(report.reference).toMatchObject({ file: campaign[0], chosen_by: 'lowest_cycle_count' });
+    expect(report.later.map((row: { file: string }) => row.file)).toEqual([campaign[3]]);
+  });
+});
+
 describe('heatpath degradation with a bad later file', () => {
   it('reports the good files, names the bad one on stderr and exits 2; a bad reference stops it', () => {
     const bad = file('cycle-030000-broken.csv', 'time_s,temperature_C\n1e-6,oops\n');
@@ -214,7 +252,7 @@ describe('rthjc and degradation user errors: exit code 2 and one line', () => {
     ['rthjc with a missing file', () => ['rthjc', dry, join(work, 'nope.csv')], /nope\.csv.*no such file.*FILE_NOT_READABLE/],
     ['rthjc with a bad epsilon slope', () => ['rthjc', dry, greased, '--epsilon-slope', 'steep'], /--epsilon-slope must be a positive number/],
     ['rthjc on curves without a common time range', () => ['rthjc', file('early.csv', `time_s,zth_K_per_W\n${zthRows(1e-6)}\n`), file('late.csv', `time_s,zth_K_per_W\n${zthRows(1e2)}\n`)], /COMPARISON_NO_OVERLAP/],
-    ['degradation without a later file', () => ['degradation', campaign[0]], /REFERENCE and at least one later FILE.*CLI_USAGE/],
+    ['degradation without a later file', () => ['degradation', campaign[0]], /at least two FILEs.*CLI_USAGE/],
     ['degradation with a bad rise limit', () => ['degradation', ...campaign.slice(0, 2), '--rth-rise-limit-percent', 'lots'], /--rth-rise-limit-percent must be a positive number/],
     ['degradation with a bad package Rth', () => ['degradation', ...campaign.slice(0, 2), '--package-rth-k-per-w', '-1'], /--package-rth-k-per-w must be a positive number/],
     ['degradation with an unknown option', () => ['degradation', ...campaign.slice(0, 2), '--bogus'], /CLI_USAGE/],

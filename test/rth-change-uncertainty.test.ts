@@ -115,7 +115,7 @@ describe('judging near the limit', () => {
 
 describe('rthLimitCrossing', () => {
   const point = (cycles: number | null, change: number, limit = 20, judged = true) => ({
-    cycles, comparison: { rth_change_percent: change, rth_rise_exceeds_limit: judged ? change > limit : null },
+    cycle_count: cycles, comparison: { rth_change_percent: change, rth_rise_exceeds_limit: judged ? change > limit : null },
   });
   it('gives the first cycle count above the limit and the linear crossing between it and the last below, in cycle order', () => {
     // 12 % at 40 000 and 28 % at 60 000 cycles: 20 % is reached half way, at 50 000.

@@ -3,21 +3,23 @@ import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES, packageRthNote, type DegradationCriteria } from '../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../shared/analysis/rth-limit-crossing.js';
 import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
-import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../shared/input/cycle-count.js';
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
 import { analyzeComparedFiles, type ComparedMeasurement } from './compared-measurements.js';
 import { userErrorLine } from './user-error-line.js';
 
-export const degradationUsage = `heatpath degradation REFERENCE FILE... [options]
+export const degradationUsage = `heatpath degradation FILE FILE... [options]
 
 Track package degradation over power cycling: each later transient of the
 same device is compared with the reference by its cumulative structure
 function. Reports Rth total and its change, where the structure function
 starts to shift (R_sum from the junction and C_sum: the position of the
-degraded layer) and the resistance that layer added. The files' "# cycle_count:"
-header is shown when present.
+degraded layer) and the resistance that layer added. When every file has a
+"# cycle_count:" line (digits only, e.g. 40000), the files are taken in cycle
+order and the lowest count is the reference; otherwise the first file is the
+reference and the others follow as given. The report says which it was.
 
 ${powerAndCalibrationUsage}
 ${analysisParametersUsage}
@@ -42,7 +44,7 @@ export async function runDegradationCommand(argv: string[], print: (text: string
     print(degradationUsage);
     return 0;
   }
-  if (positionals.length < 2) throw new HeatpathError('CLI_USAGE', 'heatpath degradation needs a REFERENCE and at least one later FILE');
+  if (positionals.length < 2) throw new HeatpathError('CLI_USAGE', 'heatpath degradation needs at least two FILEs, a reference and a later one');
   const format = choiceOption('format', values.format as string | undefined, ['text', 'json'] as const) ?? 'text';
   const limitPercent = numberOption('rth-rise-limit-percent', values['rth-rise-limit-percent'] as string | undefined, { positive: true }) ?? DEFAULT_RTH_RISE_LIMIT_PERCENT;
   const packageRth_K_per_W = numberOption('package-rth-k-per-w', values['package-rth-k-per-w'] as string | undefined, { positive: true });
@@ -50,38 +52,84 @@ export async function runDegradationCommand(argv: string[], print: (text: string
   const inputs = await analysisInputsFromOptions(values);
 
   const { measurements, failures } = await analyzeComparedFiles(positionals, inputs, new Date().toISOString());
-  // Without its reference nothing can be compared; a later file that fails is left out of the table and reported.
-  if (measurements[0]?.file !== positionals[0]) throw failures[0];
-  const [reference, ...later] = measurements;
+  const counted: CountedMeasurement[] = [];
+  for (const measurement of measurements) {
+    try {
+      counted.push({ measurement, cycleCount: cycleCountFromMeta(measurement.meta, measurement.file) });
+    } catch (error) {
+      if (!isHeatpathError(error)) throw error;
+      failures.push(error);
+    }
+  }
+  const { reference, later } = inCampaignOrder(counted, positionals[0], failures);
   const rows = later.map((measurement) => degradationRow(reference, measurement, criteria));
   print(format === 'json' ? JSON.stringify(degradationReport(reference, rows, criteria)) : formatDegradation(reference, rows, criteria));
   for (const failure of failures) process.stderr.write(userErrorLine('degradation', failure) + '\n');
   return failures.length > 0 ? 2 : 0;
 }
 
-export interface DegradationRow {
+/** A measurement with the cycle count of its `# cycle_count:` line. */
+interface CountedMeasurement {
   measurement: ComparedMeasurement;
-  cycles: number | null;
+  cycleCount: number | null;
+}
+
+/** How the reference was chosen: the campaign's own clock when every file tells it, else the user's order. */
+export type ReferenceChoice = 'lowest_cycle_count' | 'first_argument';
+
+export interface DegradationReference extends CountedMeasurement {
+  chosenBy: ReferenceChoice;
+}
+
+export interface DegradationRow extends CountedMeasurement {
   comparison: DegradationComparison;
 }
 
-function degradationRow(reference: ComparedMeasurement, measurement: ComparedMeasurement, criteria: DegradationCriteria): DegradationRow {
-  return { measurement, cycles: cycleCountFromMeta(measurement.meta, measurement.file), comparison: compareForDegradation(reference.result, measurement.result, criteria) };
+/**
+ * The reference and the later files: in cycle order (stable, so equal counts
+ * keep the order given) when every file analysed has a cycle count, as the
+ * service orders a sample's uploads; else as given, where nothing can be
+ * compared without the first file. A file that failed is left out and
+ * reported; with fewer than two left there is nothing to compare.
+ */
+function inCampaignOrder(counted: CountedMeasurement[], firstFile: string, failures: HeatpathError[]): { reference: DegradationReference; later: CountedMeasurement[] } {
+  if (counted.length < 2) throw failures.find((failure) => failure.location.file === firstFile) ?? failures[0];
+  if (counted.every(({ cycleCount }) => cycleCount !== null)) {
+    const [first, ...later] = [...counted].sort((a, b) => a.cycleCount! - b.cycleCount!);
+    return { reference: { ...first, chosenBy: 'lowest_cycle_count' }, later };
+  }
+  if (counted[0]?.measurement.file !== firstFile) throw failures.find((failure) => failure.location.file === firstFile) ?? failures[0];
+  const [first, ...later] = counted;
+  return { reference: { ...first, chosenBy: 'first_argument' }, later };
+}
+
+function degradationRow(reference: DegradationReference, { measurement, cycleCount }: CountedMeasurement, criteria: DegradationCriteria): DegradationRow {
+  return { measurement, cycleCount, comparison: compareForDegradation(reference.measurement.result, measurement.result, criteria) };
 }
 
 function degradationNotes(criteria: DegradationCriteria): string[] {
   return criteria.packageRth_K_per_W === undefined ? DEGRADATION_NOTES : [...DEGRADATION_NOTES, packageRthNote(criteria.packageRth_K_per_W)];
 }
 
+function limitCrossing(referenceCycles: number | null, rows: DegradationRow[], limitPercent: number) {
+  return rthLimitCrossing(referenceCycles, rows.map(({ cycleCount, comparison }) => ({ cycle_count: cycleCount, comparison })), limitPercent);
+}
+
 /** The JSON object of `heatpath degradation --format json`. */
-export function degradationReport(reference: ComparedMeasurement, rows: DegradationRow[], criteria: DegradationCriteria) {
+export function degradationReport({ measurement: reference, cycleCount, chosenBy }: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria) {
   return {
     heatpath_degradation: 1,
-    reference: { file: reference.file, cycles: cycleCountFromMeta(reference.meta, reference.file), rth_total_K_per_W: reference.result.rth_total_K_per_W, warnings: comparisonWarnings(reference.result) },
+    reference: {
+      file: reference.file,
+      cycle_count: cycleCount,
+      chosen_by: chosenBy,
+      rth_total_K_per_W: reference.result.rth_total_K_per_W,
+      warnings: comparisonWarnings(reference.result),
+    },
     rth_rise_limit_percent: criteria.rthRiseLimitPercent,
     package_rth_K_per_W: criteria.packageRth_K_per_W ?? null,
-    limit_crossing: rthLimitCrossing(cycleCountFromMeta(reference.meta, reference.file), rows, criteria.rthRiseLimitPercent),
-    later: rows.map(({ measurement, cycles, comparison }) => ({ file: measurement.file, cycles, ...comparison })),
+    limit_crossing: limitCrossing(cycleCount, rows, criteria.rthRiseLimitPercent),
+    later: rows.map(({ measurement, cycleCount, comparison }) => ({ file: measurement.file, cycle_count: cycleCount, ...comparison })),
     notes: degradationNotes(criteria),
     caution: RESULT_CAUTION,
   };
@@ -93,14 +141,13 @@ function uncertain(comparison: DegradationComparison): string {
 }
 
 /** The readable table of `heatpath degradation`: one row per later file. */
-export function formatDegradation(reference: ComparedMeasurement, rows: DegradationRow[], criteria: DegradationCriteria): string {
+export function formatDegradation({ measurement: reference, cycleCount: referenceCycles, chosenBy }: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria): string {
   const limitPercent = criteria.rthRiseLimitPercent;
-  const referenceCycles = cycleCountFromMeta(reference.meta, reference.file);
-  const crossing = rthLimitCrossing(referenceCycles, rows, limitPercent);
+  const crossing = limitCrossing(referenceCycles, rows, limitPercent);
   const header = ['file', 'cycles', 'Rth total', 'change', 'u(change)', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
-  const table = rows.map(({ measurement, cycles, comparison }) => [
+  const table = rows.map(({ measurement, cycleCount, comparison }) => [
     measurement.file,
-    cycles === null ? '-' : String(cycles),
+    cycleCount === null ? '-' : String(cycleCount),
     `${comparison.rth_total_K_per_W.toPrecision(4)} K/W`,
     `${comparison.rth_change_percent >= 0 ? '+' : ''}${comparison.rth_change_percent.toFixed(1)} %`,
     `${comparison.rth_change_standard_uncertainty_percent.toPrecision(2)} %`,
@@ -119,6 +166,9 @@ export function formatDegradation(reference: ComparedMeasurement, rows: Degradat
   return [
     `Package degradation against ${reference.file}` +
       `${referenceCycles === null ? '' : ` (${referenceCycles} cycles)`}: Rth total ${reference.result.rth_total_K_per_W.toPrecision(4)} K/W`,
+    chosenBy === 'lowest_cycle_count'
+      ? '  reference: the lowest cycle count of the files analysed; the others follow in cycle order'
+      : '  reference: the first file given, as not every file has a "# cycle_count:" line; the files follow in the order given',
     line(header),
     ...table.map(line),
     ...(rows.some(({ comparison }) => uncertain(comparison)) ? ['  ? the degraded layer is not well placed at this noise: see the warnings for where a step fits best.'] : []),

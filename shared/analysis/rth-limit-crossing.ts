@@ -9,7 +9,7 @@
 import type { DegradationComparison } from '../schemas/degradation-comparison.js';
 
 export interface TrendPoint {
-  cycles: number | null;
+  cycle_count: number | null;
   comparison: Pick<DegradationComparison, 'rth_change_percent' | 'rth_rise_exceeds_limit'>;
 }
 
@@ -22,16 +22,16 @@ export interface LimitCrossing {
 
 export function rthLimitCrossing(referenceCycles: number | null, points: TrendPoint[], limitPercent: number): LimitCrossing | null {
   const placed = points
-    .filter(({ cycles, comparison }) => cycles !== null && comparison.rth_rise_exceeds_limit !== null && (referenceCycles === null || cycles > referenceCycles))
-    .sort((a, b) => a.cycles! - b.cycles!);
+    .filter(({ cycle_count, comparison }) => cycle_count !== null && comparison.rth_rise_exceeds_limit !== null && (referenceCycles === null || cycle_count > referenceCycles))
+    .sort((a, b) => a.cycle_count! - b.cycle_count!);
   const firstAbove = placed.findIndex(({ comparison }) => comparison.rth_rise_exceeds_limit === true);
   if (firstAbove < 0) return null;
   const above = placed[firstAbove];
-  const below = firstAbove > 0 ? { cycles: placed[firstAbove - 1].cycles!, change: placed[firstAbove - 1].comparison.rth_change_percent } : referenceCycles === null ? null : { cycles: referenceCycles, change: 0 };
+  const below = firstAbove > 0 ? { cycles: placed[firstAbove - 1].cycle_count!, change: placed[firstAbove - 1].comparison.rth_change_percent } : referenceCycles === null ? null : { cycles: referenceCycles, change: 0 };
   // A shorter record flagged by the level it reached can show a change below the limit: no line through it then.
   const interpolated =
     below === null || !(above.comparison.rth_change_percent > limitPercent)
       ? null
-      : below.cycles + ((limitPercent - below.change) / (above.comparison.rth_change_percent - below.change)) * (above.cycles! - below.cycles);
-  return { first_cycle_count_above: above.cycles!, interpolated_cycle_count: interpolated };
+      : below.cycles + ((limitPercent - below.change) / (above.comparison.rth_change_percent - below.change)) * (above.cycle_count! - below.cycles);
+  return { first_cycle_count_above: above.cycle_count!, interpolated_cycle_count: interpolated };
 }
