@@ -78,7 +78,10 @@ describe('batches', () => {
       expect.objectContaining({ batch_id: batch.batch_id }),
     ]);
     const cancelled = await post(batch.links.cancel, {});
-    expect(cancelled.json()).toMatchObject({ batch_id: batch.batch_id, status: 'cancelled', pending: 0, cancelled: 1 });
+    expect(cancelled.json()).toMatchObject({
+      batch_id: batch.batch_id, status: 'cancelled', pending: 0, cancelled: 1, will_finish: 0, note: 'No job of the batch was running: 1 job without an outcome will not run.',
+    });
+    expect(batch).not.toHaveProperty('state');
     expect((await post('/v1/batches/batch-none/cancel', {})).json()).toMatchObject({ status: 404 });
 
     // Its job left the queue: it is reported cancelled, in the job route and the sample listing, and cannot be retried.

@@ -307,16 +307,18 @@ describe('with Redis down', () => {
     expect(shown.json().job.state).toBe('stored');
   });
 
-  it('stores a batch and answers 202 state "stored", so that an admin does not start it twice', async () => {
+  it('stores a batch and answers 202 status "stored", so that an admin does not start it twice', async () => {
     const response = await context.app.inject({ method: 'POST', url: '/v1/batches', headers: bearer('admin'), payload: { selection: { sample_id: 'S-down' } } });
     expect(response.statusCode, response.body).toBe(202);
     const answer = response.json();
-    expect(answer).toMatchObject({ state: 'stored', status: 'running', total: 1, pending: 1 });
+    expect(answer).toMatchObject({ status: 'stored', total: 1, pending: 1 });
+    expect(answer).not.toHaveProperty('state');
+    expect((await context.app.inject({ url: answer.links.self, headers: bearer('reader') })).json()).toMatchObject({ status: 'running', pending: 1 });
     expect(await context.store.getBatch(answer.batch_id)).toMatchObject({ batch_id: answer.batch_id, status: 'running' });
     // Cancelling it works too: the store says so at once, and a job Redis still holds ends unanalysed when it comes up.
     const cancelled = await context.app.inject({ method: 'POST', url: answer.links.cancel, headers: bearer('admin') });
     expect(cancelled.statusCode, cancelled.body).toBe(200);
-    expect(cancelled.json()).toMatchObject({ status: 'cancelled', cancelled: 1 });
+    expect(cancelled.json()).toMatchObject({ status: 'cancelled', cancelled: 1, will_finish: null, note: expect.stringMatching(/^Redis did not answer: the batch's 1 unfinished jobs end unanalysed/) });
   });
 
   it('503 where only Redis knows the answer, and /health/ready says which check failed', async () => {

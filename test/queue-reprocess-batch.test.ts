@@ -1,5 +1,7 @@
+import { Worker } from 'bullmq';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
+import { consumerConnection } from '../workers/redis-connections.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { BatchReprocessor } from '../workers/reprocess-batch.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
@@ -66,13 +68,36 @@ describe('BatchReprocessor (real Redis)', () => {
     await queue.enqueue(interactive, { priority: JOB_PRIORITY.interactive });
     const batch = await batches.create({ selection: { bench: 'bench-7' }, parameters: { points_per_decade: 30 }, created_by: 'admin' });
     const cancelled = await batches.cancel(batch.batch_id);
-    expect(cancelled).toMatchObject({ status: 'cancelled', total: uploads.length, pending: 0, cancelled: uploads.length });
+    expect(cancelled).toMatchObject({ status: 'cancelled', total: uploads.length, pending: 0, cancelled: uploads.length, will_finish: 0 });
     const record = (await fixture.store.getBatch(batch.batch_id))!;
     for (const entry of record.entries) expect(await queue.getJobState(entry.job_id)).toBeNull();
     expect((await queue.getJobState(interactive.job_id))?.state).toBe('prioritized');
     // A cancelled batch is not revived by recovery.
     expect(await batches.requeueRunning()).toBe(0);
     expect(await batches.progress('batch-unknown')).toBeNull();
+  });
+
+  it('cancels a batch with a job already running: counted in will_finish and said in the note; it stays with its worker', async () => {
+    await Promise.all([66, 67, 68].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-12' })));
+    const batch = await batches.create({ selection: { bench: 'bench-12' }, parameters: { points_per_decade: 35 }, created_by: 'admin' });
+    const record = (await fixture.store.getBatch(batch.batch_id))!;
+    // A consumer that takes one job and holds it, as a worker does while it analyses (BullMQ's manual fetching: a Worker without a processor).
+    const taker = new Worker('analysis', null, { connection: consumerConnection(redisUrl), prefix, autorun: false });
+    try {
+      const running = await taker.getNextJob('test-lock-token');
+      expect(running?.data.batch_id).toBe(batch.batch_id);
+      const cancelled = await batches.cancel(batch.batch_id);
+      expect(cancelled).toMatchObject({
+        status: 'cancelled', total: 3, pending: 0, cancelled: 3, will_finish: 1,
+        note: '1 job already running will still finish and count as done or failed; the other 2 jobs without an outcome will not run.',
+      });
+      expect((await queue.getJobState(running!.id!))?.state).toBe('active');
+      for (const entry of record.entries.filter((e) => e.job_id !== running!.id)) expect(await queue.getJobState(entry.job_id)).toBeNull();
+      // Cancelling again counts the same: the running job is still there, nothing else is.
+      expect(await batches.cancel(batch.batch_id)).toMatchObject({ cancelled: 3, will_finish: 1 });
+    } finally {
+      await taker.close();
+    }
   });
 
   it('ends the jobs of a batch cancelled in the store unanalysed, though Redis still held them (cancelled while Redis was away)', async () => {

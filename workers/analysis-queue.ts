@@ -150,14 +150,26 @@ export class AnalysisQueue {
     return job ? moveFailedBack(job) : false;
   }
 
-  /** Removes a job of this batch that has not started; returns whether it was removed. */
-  async removeWaitingBatchJob(jobId: string, batchId: string): Promise<boolean> {
+  /**
+   * Removes a job of this batch that has not started ('removed'). 'running':
+   * a worker has the job, whoever queued it (its outcome counts for the batch
+   * too), and it will finish; 'untouched': Redis does not hold it, it has
+   * ended, or it waits for another batch or upload.
+   */
+  async cancelBatchJob(jobId: string, batchId: string): Promise<'removed' | 'running' | 'untouched'> {
     const job = await this.queue.getJob(jobId);
-    if (!job || job.data.batch_id !== batchId) return false;
+    if (!job) return 'untouched';
     const state = await job.getState();
-    if (state !== 'waiting' && state !== 'prioritized' && state !== 'delayed') return false;
-    await job.remove();
-    return true;
+    if (state === 'active') return 'running';
+    if (job.data.batch_id !== batchId || (state !== 'waiting' && state !== 'prioritized' && state !== 'delayed')) return 'untouched';
+    try {
+      await job.remove();
+      return 'removed';
+    } catch (error) {
+      // A worker took it between the two reads: a locked job cannot be removed.
+      if ((await job.getState()) === 'active') return 'running';
+      throw error;
+    }
   }
 
   /** Readiness: Redis answers a one-key read of this queue. */

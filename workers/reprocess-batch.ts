@@ -27,8 +27,15 @@ export interface BatchProgress {
   failed: number;
   /** Unfinished jobs of a running batch. */
   pending: number;
-  /** Unfinished jobs of a cancelled batch: they will not run (one running when it was cancelled still finishes and counts as done or failed). */
+  /** Unfinished jobs of a cancelled batch: those not started will not run; one running when it was cancelled still finishes and counts as done or failed. */
   cancelled: number;
+}
+
+/** What a cancel answers: the progress, and how many of the cancelled jobs were running and still finish. */
+export interface BatchCancellation extends BatchProgress {
+  /** Null when Redis did not answer, so which jobs run is not known. */
+  will_finish: number | null;
+  note: string;
 }
 
 /** Jobs added to Redis per round trip. */
@@ -48,7 +55,7 @@ export class BatchReprocessor {
    * Stores the batch, then queues its jobs. `stored`: Redis did not answer, and
    * recovery queues the jobs once it does (as an upload answered `stored`).
    */
-  async create(request: BatchRequest): Promise<BatchProgress & { state: 'queued' | 'stored' }> {
+  async create(request: BatchRequest): Promise<Omit<BatchProgress, 'status'> & { status: BatchProgress['status'] | 'stored' }> {
     const uploads = await this.store.listUploads(request.selection);
     if (uploads.length === 0) throw new HeatpathError('BATCH_SELECTION_EMPTY', `no stored upload matches ${JSON.stringify(request.selection)}`);
     const batch: BatchRecord = {
@@ -67,14 +74,14 @@ export class BatchReprocessor {
     batch.entries = uniqueEntries(jobs);
     await this.store.putBatch(batch);
     const outcomes = await this.store.jobOutcomes();
-    let state: 'queued' | 'stored' = 'queued';
+    const progress = await this.countProgress(batch, outcomes);
     try {
       await this.enqueueMissing(batch, jobs, outcomes);
     } catch (error) {
       if (isHeatpathError(error)) throw error;
-      state = 'stored';
+      return { ...progress, status: 'stored' };
     }
-    return { ...(await this.countProgress(batch, outcomes)), state };
+    return progress;
   }
 
   async progress(batchId: string): Promise<BatchProgress | null> {
@@ -84,11 +91,11 @@ export class BatchReprocessor {
 
   /**
    * Stops a batch: its jobs that have not started are removed; running ones
-   * finish. The store says cancelled first, and the processor ends a job of a
-   * cancelled batch unanalysed, so a job Redis still holds (it did not answer
-   * here) does not run either.
+   * finish, and the answer counts them. The store says cancelled first, and
+   * the processor ends a job of a cancelled batch unanalysed, so a job Redis
+   * still holds (it did not answer here) does not run either.
    */
-  async cancel(batchId: string): Promise<BatchProgress | null> {
+  async cancel(batchId: string): Promise<BatchCancellation | null> {
     const batch = await this.store.getBatch(batchId);
     if (!batch) return null;
     if (batch.status !== 'cancelled') {
@@ -96,13 +103,29 @@ export class BatchReprocessor {
       batch.cancelled_at = new Date().toISOString();
       await this.store.putBatch(batch);
     }
+    const running = new Set<string>();
+    let redisAnswered = true;
     try {
-      for (const entry of batch.entries) await this.queue.removeWaitingBatchJob(entry.job_id, batch.batch_id);
+      for (const entry of batch.entries) {
+        if ((await this.queue.cancelBatchJob(entry.job_id, batch.batch_id)) === 'running') running.add(entry.job_id);
+      }
     } catch (error) {
       if (isHeatpathError(error)) throw error;
       // Redis away: its jobs stay queued and end unanalysed when they come up.
+      redisAnswered = false;
     }
-    return this.countProgress(batch);
+    // Read after the queue: a job that finished meanwhile counts as done or failed, not as running.
+    const outcomes = await this.store.jobOutcomes();
+    const progress = await this.countProgress(batch, outcomes);
+    if (!redisAnswered) {
+      return {
+        ...progress,
+        will_finish: null,
+        note: `Redis did not answer: the batch's ${progress.cancelled} unfinished jobs end unanalysed when they come up; any already running is not known here and still finishes, counted as done or failed.`,
+      };
+    }
+    const willFinish = [...running].filter((jobId) => !isJobFinished(outcomes, jobId)).length;
+    return { ...progress, will_finish: willFinish, note: cancellationNote(progress.cancelled, willFinish) };
   }
 
   /** Re-queues the unfinished jobs of every running batch (after a Redis loss); returns how many were offered. */
@@ -152,6 +175,14 @@ export class BatchReprocessor {
       total: batch.entries.length, done, failed, pending: cancelled ? 0 : unfinished, cancelled: cancelled ? unfinished : 0,
     };
   }
+}
+
+/** What a cancel did, in words: the count alone does not say that running jobs still finish. */
+function cancellationNote(unfinished: number, willFinish: number): string {
+  const notRun = unfinished - willFinish;
+  const jobs = (count: number) => `${count} job${count === 1 ? '' : 's'}`;
+  if (willFinish === 0) return `No job of the batch was running: ${jobs(notRun)} without an outcome will not run.`;
+  return `${jobs(willFinish)} already running will still finish and count as done or failed; the other ${jobs(notRun)} without an outcome will not run.`;
 }
 
 /** The job a batch makes of one upload: its parameters and calibration over the upload's, under the batch's algorithm version. */

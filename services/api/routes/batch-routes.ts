@@ -32,22 +32,43 @@ const BatchRequestSchema = Type.Object(
   { additionalProperties: false },
 );
 
-const BatchProgressSchema = Type.Object({
+const batchStatusText =
+  'Where the batch stands. running: its jobs are queued and some have no outcome yet; finished: every job has an outcome (done or failed); ' +
+  'cancelled: jobs not started were removed, running ones finish';
+
+const progressProperties = {
   batch_id: Type.String(),
-  status: Type.Union([Type.Literal('running'), Type.Literal('finished'), Type.Literal('cancelled')], {
-    description: 'finished: every job has an outcome (done or failed); cancelled: jobs not started were removed.',
-  }),
   created_at: Type.String(),
   algorithm: Type.String({ description: 'Algorithm version the batch analyses with.' }),
   total: Type.Integer(),
   done: Type.Integer(),
   failed: Type.Integer(),
   pending: Type.Integer({ description: 'Jobs of a running batch without an outcome yet.' }),
-  cancelled: Type.Integer({ description: 'Jobs of a cancelled batch that will not run.' }),
+  cancelled: Type.Integer({ description: 'Jobs of a cancelled batch without an outcome: those not started will not run; those already running still finish and then count as done or failed.' }),
   links: Type.Object({ self: Type.String(), cancel: Type.String() }),
+};
+
+const [running, finished, cancelled] = [Type.Literal('running'), Type.Literal('finished'), Type.Literal('cancelled')];
+
+const BatchProgressSchema = Type.Object({ ...progressProperties, status: Type.Union([running, finished, cancelled], { description: `${batchStatusText}.` }) });
+
+/** The answer to POST: as the progress, and `stored` while Redis has not taken the jobs. */
+const BatchCreatedSchema = Type.Object({
+  ...progressProperties,
+  status: Type.Union([running, finished, cancelled, Type.Literal('stored')], {
+    description: `${batchStatusText}; stored: the batch is kept but Redis did not answer, its jobs are queued when Redis is back (GET says running from then on).`,
+  }),
 });
 
-const withLinks = <T extends BatchProgress>(progress: T) => ({
+const BatchCancelledSchema = Type.Object({
+  ...BatchProgressSchema.properties,
+  will_finish: Type.Union([Type.Integer(), Type.Null()], {
+    description: 'Of the cancelled jobs, those already running: they still finish and count as done or failed. Null when Redis did not answer.',
+  }),
+  note: Type.String({ description: 'What the cancel did, in words.' }),
+});
+
+const withLinks = <T extends { batch_id: string }>(progress: T) => ({
   ...progress,
   links: { self: `/v1/batches/${progress.batch_id}`, cancel: `/v1/batches/${progress.batch_id}/cancel` },
 });
@@ -63,14 +84,7 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
         summary: 'Reprocess stored transients',
         description: 'Queues one job per selected upload, below the benches\' uploads in priority. Uploads whose job already has an outcome are counted, not redone.',
         body: BatchRequestSchema,
-        response: {
-          202: Type.Object({
-            ...BatchProgressSchema.properties,
-            state: Type.Union([Type.Literal('queued'), Type.Literal('stored')], {
-              description: 'stored: the batch is kept but Redis did not answer; its jobs are queued when Redis is back.',
-            }),
-          }),
-        },
+        response: { 202: BatchCreatedSchema },
       },
     },
     async (request, reply) => {
@@ -117,9 +131,9 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
       schema: {
         tags: ['batches'],
         summary: 'Cancel a batch',
-        description: 'Jobs not yet started are removed from the queue; running ones finish.',
+        description: 'Jobs not yet started are removed from the queue; running ones finish, counted in will_finish.',
         params: BatchParams,
-        response: { 200: BatchProgressSchema },
+        response: { 200: BatchCancelledSchema },
       },
     },
     async (request) => {
