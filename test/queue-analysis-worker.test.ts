@@ -10,7 +10,7 @@ import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { UploadRecovery } from '../workers/recover-uploads.js';
 import { BatchReprocessor } from '../workers/reprocess-batch.js';
-import { rm, writeFile } from 'node:fs/promises';
+import { rename, rm, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import { observeAnalysisWorker } from '../workers/worker-metrics.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
@@ -86,16 +86,40 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     ]);
   });
 
-  it('fails a job whose raw bytes are missing from the store once', async () => {
+  it('fails a job whose raw bytes alone are missing from the store once, as STORED_INPUT_MISSING, and keeps the upload record', async () => {
     const upload = await fixture.storeUpload(2);
     const orphan = { ...upload, upload_id: 'u-orphan', input_sha256: 'f'.repeat(64), job_id: 'job-orphan' };
     await fixture.store.putUpload(orphan);
     await queue.enqueue(orphan, { priority: JOB_PRIORITY.interactive });
     startWorker();
     await eventually(async () => (await queue.getJobState('job-orphan'))?.state === 'failed');
+    // Unrecoverable: one attempt of the three the queue allows here.
     expect((await queue.getJobState('job-orphan'))?.attempts_made).toBe(1);
-    expect((await fixture.store.getFailure('job-orphan'))?.message).toMatch(/not in the store/);
+    const failure = await fixture.store.getFailure('job-orphan');
+    expect(failure).toMatchObject({ code: 'STORED_INPUT_MISSING', upload_id: 'u-orphan', attempts: 1 });
+    expect(failure?.message).toMatch(/the raw transient of upload u-orphan \(SHA-256 f{64}\) is not in the store.*Upload the transient again/);
+    expect(await fixture.store.getUpload('u-orphan')).toEqual(orphan);
   });
+
+  it('records no failure when the data directory as a whole does not answer, and runs the job once it is back', async () => {
+    const upload = await fixture.storeUpload(3);
+    // The data directory gone (an unmounted volume, a removed folder): every file is missing at once, which is an outage, not a lost input.
+    const away = `${fixture.dataDir}-away`;
+    await rename(fixture.dataDir, away);
+    try {
+      await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+      startWorker();
+      await eventually(async () => (await queue.getJobState(upload.job_id))?.state === 'failed');
+      // Retried as an outage is (three attempts), not ended at the first as a lost file is.
+      expect((await queue.getJobState(upload.job_id))?.attempts_made).toBe(3);
+    } finally {
+      await rename(away, fixture.dataDir);
+    }
+    expect(await fixture.store.hasFailure(upload.job_id)).toBe(false);
+    const sweep = await new UploadRecovery(fixture.store, queue, new BatchReprocessor(fixture.store, queue)).sweep();
+    expect(sweep.rerun_failed).toEqual([upload.job_id]);
+    await eventually(() => fixture.store.hasResult(upload.job_id));
+  }, 60_000);
 
   it('stores one result with its provenance, counts it in the metrics, and does not repeat finished work', async () => {
     const upload = await fixture.storeUpload(3);

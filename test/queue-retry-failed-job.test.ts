@@ -79,6 +79,30 @@ describe('retrying failed jobs', () => {
     expect(again.json().code).toBe('JOB_NOT_RETRYABLE');
   });
 
+  it('fails a job whose raw transient is lost as STORED_INPUT_MISSING once, its result 410 Gone; an upload of the same file runs it again', async () => {
+    const { upload, bytes } = await uploadWithLostBytes(15);
+    await ctx.queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+    await failedFor(upload.job_id);
+    expect(await ctx.store.getFailure(upload.job_id)).toMatchObject({ code: 'STORED_INPUT_MISSING', attempts: 1 });
+    const result = await ctx.app.inject({ method: 'GET', url: `/v1/jobs/${upload.job_id}/result`, headers: bearer('reader') });
+    // RFC 9110 section 15.5.11: 410 Gone, the target is no longer available at the origin server.
+    expect(result.statusCode).toBe(410);
+    expect(result.json()).toMatchObject({ code: 'STORED_INPUT_MISSING', detail: `job ${upload.job_id} failed: its raw transient is not in the store`, hint: expect.stringMatching(/^Upload the transient again \(the record of the upload is kept/) });
+    expect((await ctx.app.inject({ url: `/v1/jobs/${upload.job_id}`, headers: bearer('reader') })).json()).toMatchObject({ state: 'failed', error: { code: 'STORED_INPUT_MISSING' } });
+
+    // The hint's way out: the bench uploads the file again; same bytes and parameters, same job, queued again.
+    const again = await ctx.app.inject({
+      method: 'POST', url: `/v1/transients?sample_id=S-RETRY&power_W=${SYNTHETIC_POWER_W}&file_name=lost-15.csv`,
+      headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: bytes,
+    });
+    expect(again.statusCode, again.body).toBe(202);
+    expect(again.json()).toMatchObject({ job_id: upload.job_id, state: 'queued' });
+    await eventually(() => ctx.store.hasResult(upload.job_id));
+    expect(await ctx.store.getFailure(upload.job_id)).toBeNull();
+    // The first upload's record was kept throughout.
+    expect(await ctx.store.getUpload(upload.upload_id)).toEqual(upload);
+  });
+
   it('retries a failed batch job at batch priority under its batch, and the batch counts it done', async () => {
     const { upload, bytes } = await uploadWithLostBytes(12);
     const batches = new BatchReprocessor(ctx.store, ctx.queue);

@@ -2,7 +2,7 @@ import { setPriority } from 'node:os';
 import { UnrecoverableError, type SandboxedJob } from 'bullmq';
 import { ALGORITHM_VERSION, HEATPATH_VERSION } from '../shared/analysis/algorithm-version.js';
 import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
-import { isHeatpathError } from '../shared/errors/heatpath-error.js';
+import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import type { TransientFile } from '../shared/input/transient-file.js';
 import { isStoreOutage } from '../services/store/store-outage.js';
@@ -98,9 +98,16 @@ export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobDa
 
 async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload: UploadRecord | null): Promise<AnalysisJobOutcome> {
   const data = job.data;
-  if (!upload) throw new UnrecoverableError(`upload ${data.upload_id} is not in the store`);
+  if (!upload) {
+    await store.checkAnswers();
+    throw new UnrecoverableError(`upload ${data.upload_id} is not in the store`);
+  }
   const bytes = await store.getBlob(data.input_sha256);
-  if (!bytes) throw new UnrecoverableError(`raw transient ${data.input_sha256} of upload ${data.upload_id} is not in the store`);
+  if (!bytes) {
+    // Lost for this one file only while the store answers; retries would not bring it back, an upload of the file or a restore does.
+    await store.checkAnswers();
+    throw new HeatpathError('STORED_INPUT_MISSING', `the raw transient of upload ${data.upload_id} (SHA-256 ${data.input_sha256}) is not in the store`, { file: upload.file_name });
+  }
   const calibration = data.calibration_id ? await store.getCalibration(data.calibration_id) : null;
   if (data.calibration_id && !calibration) throw new UnrecoverableError(`calibration ${data.calibration_id} is not in the store`);
 

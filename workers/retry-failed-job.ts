@@ -1,3 +1,4 @@
+import type { ErrorCode } from '../shared/errors/error-catalogue.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
@@ -9,13 +10,17 @@ import { reprocessedUpload } from './reprocess-batch.js';
  * is stored, and recovery and re-uploads leave a failed job alone, so without
  * this only new parameters (a batch) would redo it.
  *
- * A failure whose input or parameters were at fault (it has an error code)
- * is deterministic: the same job would fail the same way, so it is refused,
+ * A failure whose input or parameters were at fault (it has an error code
+ * other than STORED_INPUT_MISSING, which a restore mends) is deterministic:
+ * the same job would fail the same way, so it is refused,
  * and so is a job of a cancelled batch (start a new batch instead). The
  * stored failure is removed before the job is queued, so that a new failure
  * can be recorded; should queueing fail (Redis away), it is written back and
  * the admin retries once Redis answers.
  */
+/** Failures with a code that a restore mends, not a new input: the raw bytes the store lost. */
+export const MENDABLE_FAILURE_CODES: ReadonlySet<string> = new Set<ErrorCode>(['STORED_INPUT_MISSING']);
+
 export class FailedJobRetry {
   constructor(private readonly store: TransientStore, private readonly queue: AnalysisQueue) {}
 
@@ -23,7 +28,7 @@ export class FailedJobRetry {
   async retry(jobId: string): Promise<void> {
     if (await this.store.hasResult(jobId)) throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} completed: its result is stored`);
     const failure = await this.store.getFailure(jobId);
-    if (failure?.code) {
+    if (failure?.code && !MENDABLE_FAILURE_CODES.has(failure.code)) {
       throw new HeatpathError('JOB_NOT_RETRYABLE', `job ${jobId} failed with ${failure.code} (${failure.message}): its input or parameters are at fault`);
     }
     const held = await this.queue.getHeldJob(jobId);

@@ -54,7 +54,7 @@ export interface FailureRecord {
   upload_id: string;
   batch_id: string | null;
   failed_at: string;
-  /** HeatpathError code when the input was at fault, else null. */
+  /** HeatpathError code when the input or parameters were at fault, or STORED_INPUT_MISSING when the store lost the raw bytes; else null. */
   code: string | null;
   message: string;
   attempts: number;

@@ -95,6 +95,16 @@ export class TransientStore {
   }
 
   /**
+   * Throws the data directory's own error (ENOENT, EACCES, ...: a store
+   * outage, store-outage.ts) when it does not answer. A file found missing
+   * means it is lost only while the store as a whole answers; a data
+   * directory that is gone or unmounted misses every file at once.
+   */
+  async checkAnswers(): Promise<void> {
+    await stat(this.dataDir);
+  }
+
+  /**
    * Keeps the parse of a stored blob, read as `format`, for the analysis
    * processes. Named by the parser version too, since a new parser may read
    * the same bytes otherwise.

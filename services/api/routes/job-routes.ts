@@ -32,6 +32,10 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
     if (result) return result;
     const status = await readJobStatus(store, queue, jobId);
     if (status === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `job ${jobId} is not known`);
+    // Gone rather than failed: nothing was wrong with the input, and the same file uploaded again runs the job.
+    if (status.state === 'failed' && status.error?.code === 'STORED_INPUT_MISSING') {
+      throw new HeatpathError('STORED_INPUT_MISSING', `job ${jobId} failed: its raw transient is not in the store`);
+    }
     if (status.state === 'failed') {
       throw new HeatpathError('JOB_FAILED', `job ${jobId} failed${status.error?.code ? ` with ${status.error.code}` : ''}: ${status.error?.message ?? 'no reason recorded'}`);
     }
@@ -66,7 +70,7 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
         tags: ['jobs'],
         summary: 'Run a failed job again',
         description:
-          'For a job that failed for a reason outside its input (store or Redis outage, a crash), once that is mended: its stored failure is removed and it is queued ' +
+          'For a job that failed for a reason outside its input (store or Redis outage, a crash, its raw transient lost: STORED_INPUT_MISSING), once that is mended: its stored failure is removed and it is queued ' +
           'with fresh attempts, at its upload\'s or batch\'s priority. A job whose input or parameters were at fault, or that completed, is refused (409); a job still queued or running is left as it is.',
         params: JobParams,
         response: { 202: JobAnswerSchema },

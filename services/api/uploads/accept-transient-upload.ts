@@ -11,6 +11,7 @@ import { jobIdFor } from '../../jobs/job-id.js';
 import type { UploadRecord } from '../../store/store-records.js';
 import { sha256Hex, type TransientStore } from '../../store/transient-store.js';
 import { JOB_PRIORITY, type AnalysisQueue } from '../../../workers/analysis-queue.js';
+import { FailedJobRetry, MENDABLE_FAILURE_CODES } from '../../../workers/retry-failed-job.js';
 import type { JobState } from '../jobs/job-status.js';
 import type { UploadMetadata } from '../schemas/transient-metadata.js';
 import type { UploadRequest } from './read-upload-request.js';
@@ -129,10 +130,24 @@ export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
   return { self: `/v1/transients/${record.upload_id}`, job: `/v1/jobs/${record.job_id}`, result: `/v1/jobs/${record.job_id}/result` };
 }
 
-/** Queue the job unless its outcome is already stored (same content, same parameters: no work twice). */
+/**
+ * Queue the job unless its outcome is already stored (same content, same
+ * parameters: no work twice). A job that failed because the store had lost
+ * its raw bytes runs again: this upload has just stored them.
+ */
 async function submit(deps: { store: TransientStore; queue: AnalysisQueue }, record: UploadRecord): Promise<JobState> {
   if (await deps.store.hasResult(record.job_id)) return 'completed';
-  if (await deps.store.hasFailure(record.job_id)) return 'failed';
+  const failure = await deps.store.getFailure(record.job_id);
+  if (failure !== null && !MENDABLE_FAILURE_CODES.has(failure.code ?? '')) return 'failed';
+  if (failure !== null) {
+    try {
+      await new FailedJobRetry(deps.store, deps.queue).retry(record.job_id);
+      return 'queued';
+    } catch {
+      // Redis away, or the last attempt still ending: the failure stays, and the admin's retry (POST /v1/jobs/{job_id}/retry) runs it.
+      return 'failed';
+    }
+  }
   try {
     await deps.queue.enqueue(record, { priority: JOB_PRIORITY.interactive });
     return 'queued';
