@@ -11,6 +11,8 @@ import { MAX_DRAWN_POINTS } from '../shared/plots/svg-line-plot.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 import { csvTimeWindow } from './support/csv-time-window.js';
 import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
+import { uploadMetadataFrom } from '../services/cli/upload-options.js';
+import { catchHeatpathError } from './support/catch-heatpath-error.js';
 
 const { heatpath, heatpathReading, heatpathPrintingTo, heatpathReadingFirstChunk, file, work } = cliWorkspace('heatpath-cli-');
 
@@ -260,6 +262,22 @@ describe('heatpath analyze options written as in the files\' header lines', () =
     // With an exponent, as a spreadsheet in such a locale writes small numbers.
     const exponent = JSON.parse(heatpath('analyze', path, '--early-start-s', '1,2e-5', '--format', 'json').stdout);
     expect(exponent.provenance.parameters.early_time_start_s).toBe(1.2e-5);
+  });
+
+  it('refuses --power-w 1,250 (1250 with a thousands separator, 1.25 with a decimal comma) on one line, exit 2', () => {
+    // SI Brochure 9th ed., 5.4.4 (memory): digits are grouped by spaces, never commas, as a comma may be the decimal sign.
+    const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--power-w', '1,250');
+    expectUserError(run, /--power-w gives "1,250".*write 1250 or 1\.25.*\[INPUT_AMBIGUOUS_NUMBER\]/);
+    expectUserError(heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--current-a', '2,000', '--voltage-v', '2'), /--current-a gives "2,000".*write 2000 or 2/);
+  });
+
+  it('sends numbers to the server with a decimal point, refuses an ambiguous one, and sends ids exactly as given', () => {
+    // The service reads numbers with a decimal point only (typed-fields-from-text.ts); the CLI reads 51,3 as analyze does.
+    const query = uploadMetadataFrom({ 'power-w': '51,3', 'early-start-s': '1,2e-5', sample: '12,5', bench: 'B,1', kind: 'Heating' });
+    expect(Object.fromEntries(query)).toEqual({ power_W: '51.3', early_time_start_s: '1.2e-5', sample_id: '12,5', bench: 'B,1', kind: 'heating' });
+    const error = catchHeatpathError(() => uploadMetadataFrom({ 'voltage-v': '1,250' }));
+    expect(error.code).toBe('INPUT_AMBIGUOUS_NUMBER');
+    expect(error.detail).toContain('--voltage-v gives "1,250"');
   });
 });
 

@@ -49,8 +49,10 @@ describe('parseTransient CSV', () => {
   });
 
   it('reads a decimal comma in semicolon- and tab-separated files as the same number with a point, and refuses it between commas', () => {
-    // Reference: ECMAScript Number() of the spelling with a point (ECMA-262 StringToNumber).
-    const spellings = ['0,5', '-1,25e-3', ',75', '3,', '"2,5"', '12'];
+    // Reference: ECMAScript Number() of the spelling with a point (ECMA-262 StringToNumber). In a data field
+    // 1,250 is 1.25, three decimals as a TSP voltage in mV steps is written (common practice): the separator
+    // shows a decimal-comma locale, and only a single header or option value of that form is refused as ambiguous.
+    const spellings = ['0,5', '-1,25e-3', ',75', '3,', '"2,5"', '12', '1,250', '0,125'];
     const point = (v: string) => Number(v.replaceAll('"', '').replace(',', '.'));
     for (const separator of [';', '\t']) {
       const rows = [

@@ -36,6 +36,39 @@ describe('resolveAnalysisInputs from the file header', () => {
     expect(error.detail).toContain(`"${line}"`);
   });
 
+  // "1,250" is 1250 with an English thousands separator and 1.25 with a decimal comma; the SI Brochure (9th ed., 5.4.4,
+  // memory) groups digits by a space, never a comma, for this very reason. Header values are refused when so written.
+  it.each([
+    ['# power_W: 1,250', 'power_W', '1250', '1.25'],
+    ['# power_W: 12,500 W', 'power_W', '12500', '12.5'],
+    ['# current_A: 1,000', 'current_A', '1000', '1'],
+  ])('refuses %s as ambiguous, naming the key, the value and both readings', (line, key, thousands, decimal) => {
+    const error = catchHeatpathError(() => resolveAnalysisInputs(fileWith(line, '# voltage_V: 2'), {}, 'bench.csv'));
+    expect(error.code).toBe('INPUT_AMBIGUOUS_NUMBER');
+    expect(error.location).toEqual({ file: 'bench.csv' });
+    expect(error.detail).toContain(key);
+    expect(error.detail).toContain(`write ${thousands} or ${decimal}`);
+  });
+
+  it('reads decimal commas that are no thousands separator: 0,250, 1,25, 1250,5 and 1,250e0', () => {
+    // Reference: the same number written with a decimal point.
+    for (const [text, power_W] of [['0,250', 0.25], ['1,25', 1.25], ['1250,5', 1250.5], ['1,250e0', 1.25], ['1.250', 1.25]] as const) {
+      expect(resolveAnalysisInputs(fileWith(`# power_W: ${text}`), {}, 'bench.csv').power).toEqual({ power_W });
+    }
+  });
+
+  it("refuses an ambiguous channel's own power line and an ambiguous JSON meta string, and reads a JSON meta number", () => {
+    const twoChannels = parseTransient(['# power_W@A: 1,250', '# power_W@B: 2', 'time_s;temperature_C@A;temperature_C@B', ...rows.map((row) => `${row};${row.split(';')[1]}`)].join('\n'), 'pair.csv');
+    const channelError = catchHeatpathError(() => resolveAnalysisInputs(twoChannels, {}, 'pair.csv'));
+    expect(channelError.code).toBe('INPUT_AMBIGUOUS_NUMBER');
+    expect(channelError.detail).toContain('power_W@A');
+    const times = rows.map((row) => Number(row.split(';')[0]));
+    const json = (meta: object) => parseTransient(JSON.stringify({ time_s: times, temperature_C: times.map((_, i) => 80 - i), meta }), 'bench.json');
+    expect(catchHeatpathError(() => resolveAnalysisInputs(json({ power_W: '1,250' }), {}, 'bench.json')).code).toBe('INPUT_AMBIGUOUS_NUMBER');
+    expect(resolveAnalysisInputs(json({ power_W: '51,3' }), {}, 'bench.json').power).toEqual({ power_W: 51.3 });
+    expect(resolveAnalysisInputs(json({ power_W: 1250 }), {}, 'bench.json').power).toEqual({ power_W: 1250 });
+  });
+
   it('reads "# kind: Heating" as heating, and names the allowed kinds for a word it does not know', () => {
     expect(resolveAnalysisInputs(fileWith('# power_W: 50', '# kind:  Heating '), {}, 'bench.csv').parameters.kind).toBe('heating');
     const error = catchHeatpathError(() => resolveAnalysisInputs(fileWith('# power_W: 50', '# kind: warming'), {}, 'bench.csv'));

@@ -1,5 +1,6 @@
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { singleDecimalValue } from '../../shared/input/decimal-number-text.js';
 import { closestName } from './closest-name.js';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
@@ -58,19 +59,14 @@ function unknownOption(command: string, arg: string, options: Options): Heatpath
   );
 }
 
-/** A decimal comma between digits (`51,3`, also `1,2e-5`) as a point; any other text as given. */
-export function withDecimalPoint(text: string): string {
-  return /^[+-]?\d+,\d+(?:[eE][+-]?\d+)?$/.test(text.trim()) ? text.trim().replace(',', '.') : text;
-}
-
 /**
  * A number option: absent -> undefined; present but not a finite number -> CLI_USAGE.
- * A decimal comma (`51,3`) is read (withDecimalPoint).
+ * A decimal comma (`51,3`) is read, an ambiguous `1,250` refused (decimal-number-text.ts).
  */
 export function numberOption(name: string, text: string | undefined, { positive = false, integer = false } = {}): number | undefined {
   if (text === undefined) return undefined;
-  const value = Number(withDecimalPoint(text));
-  const ok = text.trim() !== '' && Number.isFinite(value) && (!positive || value > 0) && (!integer || Number.isInteger(value));
+  const value = singleDecimalValue(text, `--${name}`);
+  const ok = Number.isFinite(value) && (!positive || value > 0) && (!integer || Number.isInteger(value));
   if (!ok) {
     const wanted = integer ? (positive ? 'a whole number above 0' : 'a whole number') : positive ? 'a positive number' : 'a number';
     throw new HeatpathError('CLI_USAGE', `--${name} must be ${wanted}, got "${text.slice(0, 40)}"`);

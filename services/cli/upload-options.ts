@@ -1,6 +1,8 @@
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { readCycleCount } from '../../shared/input/cycle-count.js';
-import { numberOption, withDecimalPoint } from './cli-arguments.js';
+import { decimalPointSpelling } from '../../shared/input/decimal-number-text.js';
+import { UploadQuerySchema } from '../api/schemas/transient-metadata.js';
+import { numberOption } from './cli-arguments.js';
 import type { UploadTarget } from './transient-upload-client.js';
 
 /**
@@ -64,18 +66,26 @@ export function uploadTargetFrom(values: Record<string, unknown>, command: strin
 
 /** Parameters whose values are choices of lower-case words. */
 const CHOICE_PARAMETERS: ReadonlySet<string> = new Set(['kind', 'method']);
+/** Parameters the service reads as numbers; the others (ids, names) are text and go exactly as given. */
+const NUMBER_PARAMETERS: ReadonlySet<string> = new Set(
+  Object.entries(UploadQuerySchema.properties)
+    .filter(([, schema]) => ['number', 'integer'].includes((schema as { type?: string }).type ?? ''))
+    .map(([name]) => name),
+);
 
 /**
  * A value as the server reads it, where the command line is more lenient (as
- * `analyze` is): a decimal comma becomes a point (`51,3`), a choice lower case
- * (`Cooling`). Anything else goes as given, for the server to judge, but the
- * cycle count: its comma or point separates thousands, so it is read here as
- * digits only and refused before any file is sent, naming the option.
+ * `analyze` is): a decimal comma becomes a point (`51,3`; an ambiguous `1,250`
+ * is refused, decimal-number-text.ts), a choice lower case (`Cooling`).
+ * Anything else goes as given, for the server to judge, but the cycle count:
+ * its comma or point separates thousands, so it is read here as digits only
+ * and refused before any file is sent, naming the option.
  */
-function serverSpelling(parameter: string, value: string): string {
+function serverSpelling(option: string, parameter: string, value: string): string {
   if (CHOICE_PARAMETERS.has(parameter)) return value.trim().toLowerCase();
   if (parameter === 'cycle_count') return String(readCycleCount(value, '--cycle-count'));
-  return withDecimalPoint(value);
+  if (NUMBER_PARAMETERS.has(parameter)) return decimalPointSpelling(value, `--${option}`);
+  return value;
 }
 
 /** The upload query parameters the options give. */
@@ -83,7 +93,7 @@ export function uploadMetadataFrom(values: Record<string, unknown>): URLSearchPa
   const query = new URLSearchParams();
   for (const [option, parameter] of Object.entries(METADATA_OPTIONS)) {
     const value = values[option];
-    if (typeof value === 'string') query.set(parameter, serverSpelling(parameter, value));
+    if (typeof value === 'string') query.set(parameter, serverSpelling(option, parameter, value));
   }
   for (const tag of (values.tag as string[] | undefined) ?? []) query.append('tags', tag);
   return query;

@@ -1,5 +1,6 @@
 import { Compile } from 'typebox/compile';
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { singleDecimalValue } from '../input/decimal-number-text.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
@@ -132,7 +133,7 @@ function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFi
  */
 function powerFromMeta(file: TransientFile, fileName: string, required: boolean, channel = '', fileWideHalf = false): Power | undefined {
   const keyOf = (key: string) => (file.meta[key + channel] === undefined && fileWideHalf ? key : key + channel);
-  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataNumber(file.meta[keyOf(key)], key) : undefined);
+  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataNumber(file.meta[keyOf(key)], key, keyOf(key), fileName) : undefined);
   const candidate = file.meta[`power_W${channel}`] !== undefined
     ? { power_W: number('power_W') }
     : file.meta[`current_A${channel}`] !== undefined || file.meta[`voltage_V${channel}`] !== undefined
@@ -149,18 +150,18 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean,
   return candidate as Power;
 }
 
-const METADATA_NUMBER = /^[+-]?(?:\d+[.,]?\d*|[.,]\d+)(?:[eE][+-]?\d+)?$/;
-
 /**
- * A number on a "# key: value" line: a plain decimal, with a decimal point or
- * comma (the line holds one value, so a comma is not ambiguous there), and
- * optionally the key's own unit after it ("51.3 W" for power_W). Anything
- * else is NaN, which the power check refuses with the line's text.
+ * A number on a "# key: value" line (or a JSON meta value): a decimal by the
+ * rule of decimal-number-text.ts, with a point or comma (an ambiguous `1,250`
+ * is refused there), optionally followed by the key's own unit ("51.3 W" for
+ * power_W). Anything else is NaN, which the power check refuses with the
+ * line's text. `lineKey` is the key as the file writes it (`power_W@M21`).
  */
-function metadataNumber(text: string, key: string): number {
+function metadataNumber(text: string, key: string, lineKey: string, fileName: string): number {
   const unit = key.slice(key.lastIndexOf('_') + 1);
   const value = text.trim().replace(new RegExp(`\\s*${unit}$`), '');
-  return METADATA_NUMBER.test(value) ? Number(value.replace(',', '.')) : Number.NaN;
+  // Worded for both a CSV's `# key:` line and a JSON "meta" key.
+  return singleDecimalValue(value, `the file's ${lineKey} metadata`, { file: fileName });
 }
 
 function stripUndefined<T extends object>(value: T): Partial<T> {

@@ -1,4 +1,5 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { decimalTextValue } from './decimal-number-text.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
 
 /**
@@ -8,10 +9,10 @@ import { quoteInputText, shortenInputText } from './quote-input-text.js';
  * comment lines and blank lines (also rows of separators alone) anywhere,
  * `# key: value` comment lines before the header as metadata, a separator at
  * the end of every line when the header has one (spreadsheet exports), and
- * plain decimal numbers in every data field. In a
- * file separated by semicolons or tabs a decimal comma (0,5) is read as well,
- * as spreadsheets set to a European locale write it; with commas as
- * separators it would be ambiguous, so there only the point is.
+ * decimal numbers in every data field, read by the rule of
+ * decimal-number-text.ts: in a file separated by semicolons or tabs a decimal
+ * comma (0,5; also 1,250) is read as well, as spreadsheets set to a European
+ * locale write it; with commas as separators only the point is.
  */
 export interface NumericCsvTable {
   /** Header names, trimmed and unquoted. */
@@ -24,8 +25,6 @@ export interface NumericCsvTable {
 }
 
 const SEPARATORS = [',', ';', '\t'] as const;
-const DECIMAL_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
-const DECIMAL_COMMA_NUMBER = /^[+-]?(?:\d+,\d*|,\d+)(?:[eE][+-]?\d+)?$/;
 const NOT_FINITE_WORD = /^[+-]?(?:nan|inf|infinity)$/i;
 const META_LINE = /^#\s*([^:]+?)\s*:\s*(.*?)\s*$/;
 
@@ -146,7 +145,7 @@ const DIGIT_9 = 57;
 
 /**
  * Fill `row` from text[start, end) when the line is exactly as many plain
- * decimal numbers (DECIMAL_NUMBER) as `row` holds, joined by the separator,
+ * decimal numbers (DECIMAL_POINT_NUMBER of decimal-number-text.ts) as `row` holds, joined by the separator,
  * and each is finite; false otherwise, with nothing decided about the line.
  */
 function readPlainRow(text: string, start: number, end: number, separator: string, row: Float64Array): boolean {
@@ -172,7 +171,7 @@ const EXACT_POWERS_OF_TEN = Float64Array.from({ length: 23 }, (_, k) => Number(`
 const EXACT_SIGNIFICAND_DIGITS = 15;
 
 /**
- * The value of text[start, end) if it is a plain decimal (DECIMAL_NUMBER),
+ * The value of text[start, end) if it is a plain decimal (DECIMAL_POINT_NUMBER of decimal-number-text.ts),
  * else NaN. Most bench numbers take Clinger's fast path (W. D. Clinger, How
  * to read floating point numbers accurately, PLDI 1990): with at most 15
  * significant digits the significand is an exact double, and with a decimal
@@ -247,16 +246,14 @@ function cleanField(field: string): string {
 }
 
 function parseNumber(field: string, separator: string, fileName: string, line: number, name: string): number {
-  // Most fields are plain numbers: skip the trimming and unquoting for them.
-  const plain = DECIMAL_NUMBER.test(field);
-  let text = plain ? field : cleanField(field);
-  if (!plain && separator !== ',' && DECIMAL_COMMA_NUMBER.test(text)) text = text.replace(',', '.');
-  else if (!plain && !DECIMAL_NUMBER.test(text)) {
+  const text = cleanField(field);
+  // A decimal comma only where the comma is not the separator (decimal-number-text.ts).
+  const value = decimalTextValue(text, separator !== ',');
+  if (Number.isNaN(value)) {
     const at = { file: fileName, line, column: shortenInputText(name) };
     if (NOT_FINITE_WORD.test(text)) throw new HeatpathError('INPUT_NOT_FINITE', quoteInputText(text), at);
     throw new HeatpathError('INPUT_NOT_NUMERIC', text === '' ? 'the field is empty' : quoteInputText(text), at);
   }
-  const value = Number(text);
   if (!Number.isFinite(value)) {
     throw new HeatpathError('INPUT_NOT_FINITE', `${quoteInputText(text)} overflows a double`, { file: fileName, line, column: shortenInputText(name) });
   }

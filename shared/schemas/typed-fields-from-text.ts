@@ -1,7 +1,7 @@
 import type { TObject } from 'typebox';
+import { DECIMAL_POINT_NUMBER } from '../input/decimal-number-text.js';
 
 const INTEGER_TEXT = /^[+-]?\d+$/;
-const NUMBER_TEXT = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 
 /**
  * Query parameters and multipart fields arrive as text: a field the schema
@@ -16,7 +16,7 @@ export function typedFieldsFromText(schema: TObject, fields: Record<string, unkn
   for (const [name, value] of Object.entries(fields)) {
     if (typeof value !== 'string') continue;
     const type = (schema.properties[name] as { type?: unknown } | undefined)?.type;
-    if ((type === 'integer' && INTEGER_TEXT.test(value)) || (type === 'number' && NUMBER_TEXT.test(value))) typed[name] = Number(value);
+    if ((type === 'integer' && INTEGER_TEXT.test(value)) || (type === 'number' && DECIMAL_POINT_NUMBER.test(value))) typed[name] = Number(value);
     else if (type === 'array') typed[name] = [value];
   }
   return typed;
