@@ -162,6 +162,23 @@ describe('with a real Redis', () => {
     expectProblem(await upload(context, 'sample_id=S-meta', small), 422, 'POWER_REQUIRED');
   });
 
+  it('400 for the file mistakes the CLI reports too: an ambiguous header power, a header key given twice, a JSON array', async () => {
+    // 1,250 is 1250 or 1.25 (SI Brochure 9th ed., 5.4.4, memory: digits are grouped by spaces, as the comma may be the decimal sign).
+    const ambiguous = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');
+    expect(ambiguous.detail).toContain('write 1250 or 1.25');
+    const twice = expectProblem(await upload(context, 'sample_id=S-dup', Buffer.concat([Buffer.from('# power_W: 50\n# power_W: 55\n'), small])), 400, 'INPUT_DUPLICATE_METADATA');
+    expect(twice).toMatchObject({ line: 2, file: 'S-dup.csv' });
+    expect(twice.detail).toContain('line 1');
+    // Neither media type nor file name names the format: the leading [ does.
+    const form = multipart([
+      { name: 'sample_id', value: 'S-arr' },
+      { name: 'power_W', value: '50' },
+      { name: 'file', value: '[{"time_s": [1, 2]}]', filename: 'export', type: 'application/octet-stream' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(expectProblem(response, 400, 'INPUT_BAD_JSON').detail).toContain('the top level is an array');
+  });
+
   it('404 for unknown routes and unknown ids', async () => {
     expectProblem(await context.app.inject({ url: '/v2/transients', headers: bearer('reader') }), 404, 'ROUTE_NOT_FOUND');
     expectProblem(await context.app.inject({ url: '/v1/transients/upl-none', headers: bearer('reader') }), 404, 'RESOURCE_NOT_FOUND');

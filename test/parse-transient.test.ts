@@ -261,6 +261,56 @@ describe('parseTransient JSON', () => {
   it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, undefined, index === undefined ? column : `${column}[${index}]`));
 });
 
+describe('parseTransient on repeated metadata and keys', () => {
+  const rows = coolingRows(times);
+
+  it('refuses a "# key:" line given twice with two values, naming both lines, and takes the same value twice', () => {
+    const text = ['# power_W: 50', '# sample: M1', '# power_W: 55', 'time_s,temperature_C', ...rows].join('\n');
+    const error = catchHeatpathError(() => parseTransient(text, 'twice.csv'));
+    expect(error.code).toBe('INPUT_DUPLICATE_METADATA');
+    expect(error.status).toBe(400);
+    expect(error.location).toEqual({ file: 'twice.csv', line: 3 });
+    expect(error.detail).toBe('"# power_W:" is "50" on line 1 and "55" on line 3');
+    // The same value again (a spreadsheet's padding aside) is no contradiction.
+    const same = parseTransient(['# power_W: 50', '# power_W: 50;;', 'time_s;temperature_C', ...rows.map((row) => row.replace(',', ';'))].join('\n'), 'same.csv');
+    expect(same.meta).toEqual({ power_W: '50' });
+  });
+
+  // RFC 8259, 4: names within an object SHOULD be unique; JSON.parse keeps the last (ECMA-262), so the first would be lost.
+  it.each([
+    ['time_s', `{\n"time_s": ${JSON.stringify(times)},\n"temperature_C": ${JSON.stringify(times)},\n"time_s": ${JSON.stringify(times)}\n}`, 'INPUT_DUPLICATE_COLUMN', 4, 'time_s', '"time_s" is on line 2 and again on line 4'],
+    ['a channel', `{"time_s": ${JSON.stringify(times)},\n"voltage_V": {"D1": ${JSON.stringify(times)},\n"D1": ${JSON.stringify(times)}}}`, 'INPUT_DUPLICATE_COLUMN', 3, 'voltage_V@D1', '"D1" in "voltage_V" is on line 2 and again on line 3'],
+    ['a meta key', `{"time_s": ${JSON.stringify(times)}, "zth_K_per_W": ${JSON.stringify(times)},\n"meta": {"power_W": 50,\n "power_W": 55}}`, 'INPUT_DUPLICATE_METADATA', 3, 'meta@power_W', '"power_W" in "meta" is on line 2 and again on line 3'],
+  ])('refuses JSON that names %s twice, naming both lines', (_what, text, code, line, column, detail) => {
+    const error = catchHeatpathError(() => parseTransient(text, 'twice.json'));
+    expect(error.code).toBe(code);
+    expect(error.location).toEqual({ file: 'twice.json', line, column });
+    expect(error.detail).toContain(detail);
+  });
+});
+
+describe('parseTransient explains common layout mistakes', () => {
+  it('refuses JSON whose top level is an array as JSON, also when no format is named', () => {
+    for (const format of [undefined, 'json'] as const) {
+      const error = catchHeatpathError(() => parseTransient(`  [${JSON.stringify({ time_s: times })}]`, 'list.json', format));
+      expect(error.code).toBe('INPUT_BAD_JSON');
+      expect(error.detail).toBe('the top level is an array; it must be an object of named arrays, time_s and one value quantity');
+    }
+  });
+
+  it.each([
+    ['power_W', 51.3],
+    ['voltage_V', 2.1],
+    ['cycle_count', 20000],
+    ['sample_id', 'M07'],
+  ])('says a top-level %s belongs in "meta"', (key, value) => {
+    const error = catchHeatpathError(() => parseTransient(JSON.stringify({ time_s: times, temperature_C: times, [key]: value }), 'flat.json'));
+    expect(error.code).toBe('INPUT_BAD_JSON');
+    expect(error.location).toEqual({ file: 'flat.json', column: key });
+    expect(error.detail).toContain(`move it into "meta", as {"time_s": [...], "temperature_C": [...], "meta": {"${key}": ${JSON.stringify(value)}}}`);
+  });
+});
+
 describe('parseTransient on arbitrary input', () => {
   const parsesOrExplains = (input: Uint8Array | string) => {
     try {

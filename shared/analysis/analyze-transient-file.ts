@@ -30,7 +30,7 @@ export interface TransientFileInput {
   parsed?: TransientFile;
   /** Name used in error messages and in result.source.file. */
   fileName: string;
-  /** Omitted: detected from the content (JSON starts with '{'). */
+  /** Omitted: detected from the content (transientFormatOf in parse-transient.ts). */
   format?: 'csv' | 'json';
   /** Heating power; omitted: from the file's power_W or current_A and voltage_V metadata. Not used for zth_K_per_W input (a given or file one gets a warning, so that the CLI and the service, which resolves the file's power on upload, agree). */
   power?: Power;

@@ -1,5 +1,6 @@
 import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
 import { checkTransientTime } from './check-transient-time.js';
+import { firstDuplicateJsonKey } from './json-duplicate-key.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
 import { DEFAULT_CHANNEL_NAME, isTransientQuantity, type TransientChannel, type TransientFile, type TransientQuantity } from './transient-file.js';
 
@@ -17,14 +18,17 @@ const PARSER_MESSAGE_MAX_CHARS = 120;
 export function parseTransientJson(text: string, fileName: string): TransientFile {
   const root = parseJsonText(text, fileName);
   if (typeof root !== 'object' || root === null || Array.isArray(root)) {
-    throw new HeatpathError('INPUT_BAD_JSON', 'the top level is not an object', { file: fileName });
+    const found = Array.isArray(root) ? 'an array' : root === null ? 'null' : `a ${typeof root}`;
+    throw new HeatpathError('INPUT_BAD_JSON', `the top level is ${found}; it must be an object of named arrays, time_s and one value quantity`, { file: fileName });
   }
+  refuseDuplicateKeys(text, fileName);
   const entries = Object.entries(root as Record<string, unknown>);
   let timeValue: unknown;
   let metaValue: unknown;
   let quantity: TransientQuantity | undefined;
   let quantityValue: unknown;
   for (const [key, value] of entries) {
+    if (key !== META_KEY && (value === null || typeof value !== 'object')) throw topLevelScalarError(key, value, fileName);
     if (key === TIME_KEY) timeValue = value;
     else if (key === META_KEY) metaValue = value;
     else if (isTransientQuantity(key)) {
@@ -50,6 +54,39 @@ export function parseTransientJson(text: string, fileName: string): TransientFil
   }
   checkTransientTime(time_s, (i) => ({ file: fileName, column: `${TIME_KEY}[${i}]` }));
   return { quantity, time_s, channels, meta: readMeta(metaValue, fileName) };
+}
+
+/**
+ * A key named twice (JSON.parse keeps the last value without a word) as an
+ * error naming both lines: in "meta" or of "meta" itself a metadata key, else
+ * a column (time_s, a quantity, a channel of one).
+ */
+function refuseDuplicateKeys(text: string, fileName: string): void {
+  const duplicate = firstDuplicateJsonKey(text, 2);
+  if (duplicate === undefined) return;
+  const { path, firstLine, line } = duplicate;
+  const name = path.length > 1 ? `${quoteInputText(path[1])} in ${quoteInputText(path[0])}` : quoteInputText(path[0]);
+  const detail = `key ${name} is on line ${firstLine} and again on line ${line} (JSON keeps only the last)`;
+  const at = { file: fileName, line, column: shortenInputText(path.join('@')) };
+  throw new HeatpathError(path[0] === META_KEY ? 'INPUT_DUPLICATE_METADATA' : 'INPUT_DUPLICATE_COLUMN', detail, at);
+}
+
+/**
+ * A top-level key with a single value: the scalars of the layout (power_W,
+ * cycle_count, sample ids) belong in "meta", and a time_s or quantity key
+ * needs an array.
+ */
+function topLevelScalarError(key: string, value: unknown, fileName: string): HeatpathError {
+  const at = { file: fileName, column: shortenInputText(key) };
+  if (key === TIME_KEY || (isTransientQuantity(key) && key !== 'voltage_V')) {
+    return new HeatpathError('INPUT_BAD_JSON', `${quoteInputText(key)} holds a single value, not an array of numbers`, at);
+  }
+  const shown = JSON.stringify(value) ?? String(value);
+  return new HeatpathError(
+    'INPUT_BAD_JSON',
+    `${quoteInputText(key)}: ${shortenInputText(shown)} is a single value at the top level: move it into "meta", as {"time_s": [...], "temperature_C": [...], "meta": {${JSON.stringify(shortenInputText(key))}: ${shortenInputText(shown)}}}`,
+    at,
+  );
 }
 
 function parseJsonText(text: string, fileName: string): unknown {

@@ -34,14 +34,14 @@ const META_LINE = /^#\s*([^:]+?)\s*:\s*(.*?)\s*$/;
  */
 export function readNumericCsv(text: string, fileName: string, checkHeader: (names: string[], headerLine: number) => void): NumericCsvTable {
   const lines = new LineCursor(text);
-  const meta: [string, string][] = [];
+  const meta: MetaLine[] = [];
   let headerText: string | undefined;
   while (lines.next()) {
     const line = lines.text().trim();
     if (line === '') continue;
     if (line.startsWith('#')) {
       const match = META_LINE.exec(line);
-      if (match) meta.push([match[1], match[2]]);
+      if (match) meta.push({ key: match[1], value: match[2], line: lines.number });
       continue;
     }
     headerText = lines.text();
@@ -50,8 +50,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   if (headerText === undefined) throw new HeatpathError('INPUT_EMPTY', 'no header line and no data (only blank or comment lines)', { file: fileName });
 
   const separator = detectSeparator(headerText);
-  // A spreadsheet pads every line to its columns, "# kind: cooling;" among them: the padding is not part of the value.
-  const metaEntries = meta.map(([key, value]): [string, string] => [key, trimTrailing(value, separator)]);
+  const metaValues = metadataOf(meta, separator, fileName);
   const names = headerText.split(separator).map(cleanField);
   // Spreadsheets often end every line with a separator: an empty last header name is that, not a column.
   const trailingSeparator = names.length > 1 && names[names.length - 1] === '';
@@ -87,7 +86,37 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
     for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
     rowLines[rows++] = lines.number;
   }
-  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: Object.fromEntries(metaEntries) };
+  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: metaValues };
+}
+
+interface MetaLine {
+  key: string;
+  value: string;
+  line: number;
+}
+
+/**
+ * The `# key: value` lines as metadata. A key given twice with two values is
+ * refused, naming both lines: which one the bench meant cannot be told (a
+ * header pasted over another, a power edited in one place only), and taking
+ * either would analyse silently with a value the file also contradicts.
+ */
+function metadataOf(meta: MetaLine[], separator: string, fileName: string): Record<string, string> {
+  const first = new Map<string, { value: string; line: number }>();
+  for (const { key, value: written, line } of meta) {
+    // A spreadsheet pads every line to its columns, "# kind: cooling;" among them: the padding is not part of the value.
+    const value = trimTrailing(written, separator);
+    const earlier = first.get(key);
+    if (earlier === undefined) first.set(key, { value, line });
+    else if (earlier.value !== value) {
+      throw new HeatpathError(
+        'INPUT_DUPLICATE_METADATA',
+        `"# ${shortenInputText(key)}:" is ${quoteInputText(earlier.value)} on line ${earlier.line} and ${quoteInputText(value)} on line ${line}`,
+        { file: fileName, line },
+      );
+    }
+  }
+  return Object.fromEntries([...first].map(([key, { value }]) => [key, value]));
 }
 
 /** `value` without the separators and spaces at its end. */

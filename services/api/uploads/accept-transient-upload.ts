@@ -2,7 +2,8 @@ import { randomUUID } from 'node:crypto';
 import type { FastifyBaseLogger } from 'fastify';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../../shared/input/cycle-count.js';
-import { parseTransient } from '../../../shared/input/parse-transient.js';
+import { decodeInputText } from '../../../shared/input/decode-input-text.js';
+import { parseTransient, transientFormatOf } from '../../../shared/input/parse-transient.js';
 import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
@@ -171,9 +172,9 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
   return record;
 }
 
-/** As the parser decides when not told: JSON when the text starts with '{' (trim drops a byte-order mark too). */
+/** As the parser decides when not told. */
 function formatOf(upload: UploadRequest): UploadRecord['format'] {
-  return upload.format ?? (upload.bytes.toString('utf8').trimStart().startsWith('{') ? 'json' : 'csv');
+  return upload.format ?? transientFormatOf(decodeInputText(upload.bytes));
 }
 
 /** The request's cycle count before the file's, as for power and parameters; a difference is worth a warning, not a refusal. */
