@@ -27,6 +27,12 @@ describe('parseCalibrationPoints', () => {
     expect(error.location).toEqual({ file: 'cal.csv', line, column });
   });
 
+  it('says which column a bench spelling of temperature or voltage stands for, and offers time_s to no one', () => {
+    // The calibration layout's column names (README, Input files); Temp [°C] and Vf are common bench spellings (common practice).
+    expect(catchHeatpathError(() => parseCalibrationPoints('Temp [°C],Vf\n25,0.6', 'cal.csv')).detail).toBe('"Temp [°C]" is not temperature_C or voltage_V: rename it to temperature_C');
+    expect(catchHeatpathError(() => parseCalibrationPoints('time,voltage_V\n25,0.6', 'cal.csv')).detail).toBe('"time" is not temperature_C or voltage_V');
+  });
+
   it('returns points or throws a HeatpathError for arbitrary text', () => {
     const token = fc.constantFrom('temperature_C', 'voltage_V', ',', ';', '\t', '\n', '#', '"', '25', '-0.6', 'nan', '1e999', ' ');
     const text = fc.oneof(fc.string({ maxLength: 300 }), fc.array(token, { maxLength: 120 }).map((parts) => parts.join('')));

@@ -290,6 +290,71 @@ describe('parseTransient on repeated metadata and keys', () => {
 });
 
 describe('parseTransient explains common layout mistakes', () => {
+  const rows = coolingRows(times);
+
+  it.each([
+    ['Time [s],Temp', '"Time [s]": rename it to time_s; "Temp": rename it to temperature_C'],
+    ['time,temperature_C', '"time": rename it to time_s'],
+    ['t_s,T_C', '"t_s": rename it to time_s; "T_C": rename it to temperature_C'],
+    ['time_ms,temperature_C', '"time_ms": times must be in seconds: divide the milliseconds by 1000 and name the column time_s'],
+    ['Zeit [µs],U', '"Zeit [µs]": times must be in seconds: divide the microseconds by 1e6 and name the column time_s; "U": rename it to voltage_V'],
+  ])('quotes a header %s without time_s and says what each name most likely meant', (header, hint) => {
+    // The column names of heatpath's CSV layout (README, Input files); the spellings are those benches and spreadsheets write (common practice).
+    const error = catchHeatpathError(() => parseTransient([header, ...rows].join('\n'), 'named.csv'));
+    expect(error.code).toBe('INPUT_MISSING_COLUMN');
+    expect(error.location).toEqual({ file: 'named.csv', line: 1 });
+    const quoted = header.split(',').map((name) => JSON.stringify(name)).join(', ');
+    expect(error.detail).toBe(`no time_s column in the header, which names ${quoted}; ${hint}`);
+  });
+
+  it('says what an unknown value column most likely meant, keeping its channel, and guesses nothing for a name it does not know', () => {
+    expect(catchHeatpathError(() => parseTransient(['time_s,Temp [°C]@M21', ...rows].join('\n'), 'v.csv')).detail).toBe('"Temp [°C]@M21" is not time_s or a value column: rename it to temperature_C@M21');
+    expect(catchHeatpathError(() => parseTransient(['time_s,pressure', ...rows].join('\n'), 'v.csv')).detail).toBe('"pressure" is not time_s or a value column');
+  });
+
+  it('takes empty columns a spreadsheet adds at the end of every line, and names an unnamed column anywhere else', () => {
+    // Reference: the same table without the empty columns.
+    const plain = parseTransient(['time_s;temperature_C', ...rows.map((row) => row.replace(',', ';'))].join('\n'), 'plain.csv');
+    const padded = parseTransient(['time_s;temperature_C;;', ...rows.map((row, i) => `${row.replace(',', ';')}${';'.repeat(i % 3)}`)].join('\n'), 'padded.csv');
+    expect(padded.channels[0].values).toEqual(plain.channels[0].values);
+    const valueUnderNoName = catchHeatpathError(() => parseTransient(['time_s;temperature_C;', ...rows.map((row) => `${row.replace(',', ';')};7`)].join('\n'), 'x.csv'));
+    expect(valueUnderNoName.code).toBe('INPUT_ROW_LENGTH');
+    expect(valueUnderNoName.detail).toContain('column 3 has a value here but no name in the header (a separator at the end of the header line?)');
+    const between = catchHeatpathError(() => parseTransient(['time_s,,temperature_C', ...rows].join('\n'), 'x.csv'));
+    expect([between.code, between.detail, between.location.column]).toEqual(['INPUT_UNKNOWN_COLUMN', 'column 2 has no name (two separators in a row?)', 2]);
+    expect(catchHeatpathError(() => parseTransient([',time_s,temperature_C', ...rows.map((row, i) => `${i},${row}`)].join('\n'), 'x.csv')).detail).toMatch(/^column 1 has no name \(a row-number column/);
+  });
+
+  it('suggests ; or a tab when a comma-separated row has too many fields and no decimal point', () => {
+    const error = catchHeatpathError(() => parseTransient(['time_s,temperature_C', '1,5e-6,25,3', ...rows.slice(1)].join('\n'), 'comma.csv'));
+    expect(error.code).toBe('INPUT_ROW_LENGTH');
+    expect(error.location).toEqual({ file: 'comma.csv', line: 2 });
+    expect(error.detail).toBe('4 fields, the header has 2 (separator ","): the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator');
+    // With decimal points the extra field is something else, and no hint guesses at it.
+    expect(catchHeatpathError(() => parseTransient(['time_s,temperature_C', '1.5e-6,25.3,1', ...rows.slice(1)].join('\n'), 'comma.csv')).detail).toBe('3 fields, the header has 2 (separator ",")');
+  });
+
+  it('counts the samples before the trigger and says how to cut or shift them', () => {
+    const shifted = ['-3e-6,80', '-2e-6,80', '-1e-6,80', ...rows];
+    const error = catchHeatpathError(() => parseTransient(['# power step at t = 0', 'time_s,temperature_C', ...shifted].join('\n'), 'pre.csv'));
+    expect(error.code).toBe('INPUT_NEGATIVE_TIME');
+    expect(error.location).toEqual({ file: 'pre.csv', line: 3, column: 'time_s' });
+    expect(error.detail).toBe('the first 3 samples (through line 5) have negative times, -0.000003 s to -0.000001 s (samples before the trigger?): drop the samples before the power step, or shift the times so that the power step is at t = 0');
+  });
+
+  it('decodes UTF-16 without a byte-order mark, either byte order, and refuses other bytes with zeros as not text', () => {
+    // RFC 2781, 3.3: UTF-16 text without a BOM; its ASCII characters carry a zero high byte.
+    const text = ['time_s\ttemperature_C', ...rows.map((row) => row.replace(',', '\t'))].join('\r\n');
+    const plain = parseTransient(text, 'plain.txt');
+    const little = Buffer.from(text, 'utf16le');
+    const big = Buffer.from(little).swap16();
+    for (const bytes of [little, big]) expect(parseTransient(bytes, 'unicode.txt').channels[0].values).toEqual(plain.channels[0].values);
+    // The local file header of a ZIP container (an .xlsx workbook): "PK\x03\x04", then version and flags with zero bytes.
+    const workbook = Buffer.from([0x50, 0x4b, 0x03, 0x04, 0x14, 0x00, 0x06, 0x00, 0x08, 0x00, 0x00, 0x00, 0x21, 0x00]);
+    const error = catchHeatpathError(() => parseTransient(workbook, 'book.csv'));
+    expect([error.code, error.location]).toEqual(['INPUT_BAD_FORMAT', { file: 'book.csv' }]);
+  });
+
   it('refuses JSON whose top level is an array as JSON, also when no format is named', () => {
     for (const format of [undefined, 'json'] as const) {
       const error = catchHeatpathError(() => parseTransient(`  [${JSON.stringify({ time_s: times })}]`, 'list.json', format));

@@ -7,6 +7,7 @@ import { MIN_TRANSIENT_DECADES, MIN_TRANSIENT_SAMPLES } from './transient-file.j
  */
 export function checkTransientTime(time_s: Float64Array, locate: (index: number) => ErrorLocation): void {
   const fault = firstTimeFault(time_s);
+  if (fault === 0 && time_s[0] < 0) throw preTriggerError(time_s, locate);
   if (fault >= 0) throw timeFaultError(time_s, fault, locate(fault));
   const count = time_s.length;
   if (count < MIN_TRANSIENT_SAMPLES) {
@@ -35,6 +36,23 @@ function firstTimeFault(time_s: Float64Array): number {
     if (time_s[i] < 0 || time_s[i] <= time_s[i - 1]) return i;
   }
   return -1;
+}
+
+/**
+ * A record that starts at negative times: a bench that keeps the samples
+ * before its trigger (the power step) writes them so. Counted, so the
+ * error says how much to drop.
+ */
+function preTriggerError(time_s: Float64Array, locate: (index: number) => ErrorLocation): HeatpathError {
+  let count = 0;
+  while (count < time_s.length && time_s[count] < 0) count++;
+  const last = locate(count - 1);
+  const through = last.line !== undefined ? ` (through line ${last.line})` : last.column !== undefined ? ` (through ${last.column})` : '';
+  return new HeatpathError(
+    'INPUT_NEGATIVE_TIME',
+    `${count === 1 ? `the first sample has a negative time, ${time_s[0]} s` : `the first ${count} samples${through} have negative times, ${time_s[0]} s to ${time_s[count - 1]} s`} (samples before the trigger?): drop the samples before the power step, or shift the times so that the power step is at t = 0`,
+    locate(0),
+  );
 }
 
 function timeFaultError(time_s: Float64Array, i: number, location: ErrorLocation): HeatpathError {

@@ -1,4 +1,5 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { meantColumnName } from './column-name-hint.js';
 import { decodeInputText } from './decode-input-text.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
 import { readNumericCsv } from './read-numeric-csv.js';
@@ -16,13 +17,15 @@ const CALIBRATION_COLUMNS = ['temperature_C', 'voltage_V'] as const;
  * read-numeric-csv.ts. The fit checks whether there are enough points.
  */
 export function parseCalibrationPoints(input: Uint8Array | string, fileName: string): CalibrationPoints {
-  const text = decodeInputText(input);
+  const text = decodeInputText(input, fileName);
   const table = readNumericCsv(text, fileName, (names, headerLine) => {
     const seen = new Set<string>();
     for (const name of names) {
       const at = { file: fileName, line: headerLine, column: shortenInputText(name) };
       if (!(CALIBRATION_COLUMNS as readonly string[]).includes(name)) {
-        throw new HeatpathError('CALIBRATION_POINTS_COLUMNS', `${quoteInputText(name)} is not temperature_C or voltage_V`, at);
+        const meant = meantColumnName(name);
+        const hint = meant !== undefined && (CALIBRATION_COLUMNS as readonly string[]).includes(meant) ? `: rename it to ${meant}` : '';
+        throw new HeatpathError('CALIBRATION_POINTS_COLUMNS', `${quoteInputText(name)} is not temperature_C or voltage_V${hint}`, at);
       }
       if (seen.has(name)) throw new HeatpathError('INPUT_DUPLICATE_COLUMN', `${name} appears twice`, at);
       seen.add(name);

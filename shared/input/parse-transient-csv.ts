@@ -1,5 +1,6 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { checkTransientTime } from './check-transient-time.js';
+import { columnNameHint } from './column-name-hint.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
 import { readNumericCsv } from './read-numeric-csv.js';
 import { DEFAULT_CHANNEL_NAME, isTransientQuantity, type TransientFile, type TransientQuantity } from './transient-file.js';
@@ -27,7 +28,7 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
     if (!names.includes(TIME_COLUMN)) {
       // Checked first: a calibration sweep (temperature_C,voltage_V) handed to analyze is the common case.
       const sweep = names.includes('temperature_C') && names.includes('voltage_V') ? '; temperature_C with voltage_V looks like a calibration sweep: fit it with `heatpath calibrate`' : '';
-      throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header${sweep}`, { file: fileName, line: headerLine });
+      throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header, which names ${quotedNames(names)}${sweep || renameHints(names)}`, { file: fileName, line: headerLine });
     }
     names.forEach((name, index) => {
       if (name === TIME_COLUMN) {
@@ -37,7 +38,8 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
       }
       const [columnQuantity, channel] = splitValueColumnName(name);
       if (!isTransientQuantity(columnQuantity) || channel === '') {
-        throw new HeatpathError('INPUT_UNKNOWN_COLUMN', `${quoteInputText(name)} is not time_s or a value column`, at(name));
+        const hint = columnNameHint(name);
+        throw new HeatpathError('INPUT_UNKNOWN_COLUMN', `${quoteInputText(name)} is not time_s or a value column${hint ? `: ${hint}` : ''}`, at(name));
       }
       if (quantity !== undefined && columnQuantity !== quantity) {
         throw new HeatpathError('INPUT_MIXED_QUANTITIES', `${quoteInputText(name)} next to ${quantity} columns`, at(name));
@@ -61,6 +63,23 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
     channels: valueColumns.map(({ index, channel }) => ({ name: channel, values: table.columns[index] })),
     meta: table.meta,
   };
+}
+
+/** Most header names an error quotes; a wider header is cut with "…". */
+const QUOTED_NAMES_MAX = 6;
+
+function quotedNames(names: string[]): string {
+  const shown = names.slice(0, QUOTED_NAMES_MAX).map(quoteInputText).join(', ');
+  return names.length > QUOTED_NAMES_MAX ? `${shown}, …` : shown;
+}
+
+/** "; "Time [s]": rename it to time_s; "Temp": rename it to temperature_C" for the names that have a hint, else nothing. */
+function renameHints(names: string[]): string {
+  return names
+    .map((name) => [name, columnNameHint(name)])
+    .filter(([, hint]) => hint !== undefined)
+    .map(([name, hint]) => `; ${quoteInputText(name!)}: ${hint}`)
+    .join('');
 }
 
 /** `voltage_V@D1` -> ['voltage_V', 'D1']; a bare name is channel "1". */

@@ -12,7 +12,7 @@ export type TransientFormat = 'csv' | 'json';
  * (transientFormatOf). Throws HeatpathError and nothing else.
  */
 export function parseTransient(input: Uint8Array | string, fileName: string, format?: TransientFormat): TransientFile {
-  const text = decodeInputText(input);
+  const text = decodeInputText(input, fileName);
   if (text.trim() === '') throw new HeatpathError('INPUT_EMPTY', 'the file holds nothing but whitespace', { file: fileName });
   const chosen = format ?? transientFormatOf(text);
   if (chosen === 'json') return parseTransientJson(text, fileName);

@@ -1,4 +1,4 @@
-import { HeatpathError } from '../errors/heatpath-error.js';
+import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
 import { decimalTextValue } from './decimal-number-text.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
 
@@ -7,8 +7,10 @@ import { quoteInputText, shortenInputText } from './quote-input-text.js';
  * CRLF or CR line ends, one header line
  * whose separator (comma, semicolon or tab) is used for every row, `#`
  * comment lines and blank lines (also rows of separators alone) anywhere,
- * `# key: value` comment lines before the header as metadata, a separator at
- * the end of every line when the header has one (spreadsheet exports), and
+ * `# key: value` comment lines before the header as metadata (a key given
+ * twice only with one value), up to as many separators at the end of a line
+ * as the header ends with (spreadsheet exports; a header name left empty
+ * anywhere else is refused), and
  * decimal numbers in every data field, read by the rule of
  * decimal-number-text.ts: in a file separated by semicolons or tabs a decimal
  * comma (0,5; also 1,250) is read as well, as spreadsheets set to a European
@@ -52,9 +54,18 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   const separator = detectSeparator(headerText);
   const metaValues = metadataOf(meta, separator, fileName);
   const names = headerText.split(separator).map(cleanField);
-  // Spreadsheets often end every line with a separator: an empty last header name is that, not a column.
-  const trailingSeparator = names.length > 1 && names[names.length - 1] === '';
-  if (trailingSeparator) names.pop();
+  // Spreadsheets often end every line with a separator or a few (empty columns
+  // beside the table): empty last header names are that, not columns.
+  let unnamedAtEnd = 0;
+  while (names.length > 1 && names[names.length - 1] === '') {
+    names.pop();
+    unnamedAtEnd++;
+  }
+  const unnamed = names.indexOf('');
+  if (unnamed >= 0) {
+    const why = unnamed === 0 ? 'a row-number column written by a script? write the file without it' : 'two separators in a row?';
+    throw new HeatpathError('INPUT_UNKNOWN_COLUMN', `column ${unnamed + 1} has no name (${why})`, { file: fileName, line: lines.number, column: unnamed + 1 });
+  }
   checkHeader(names, lines.number);
 
   // No more data rows than lines left: fill typed arrays in place and trim them at the end.
@@ -66,7 +77,8 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   while (lines.next()) {
     // Most rows are plain numbers between separators: read them in place, and
     // take anything else (blanks, comments, quotes, spaces, mistakes) the careful way.
-    const end = trailingSeparator && text[lines.end - 1] === separator ? lines.end - 1 : lines.end;
+    let end = lines.end;
+    while (lines.end - end < unnamedAtEnd && text[end - 1] === separator) end--;
     if (!readPlainRow(text, lines.start, end, separator, row)) {
       const line = lines.text();
       const trimmed = line.trim();
@@ -74,19 +86,29 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
       const fields = line.split(separator);
       // A row of separators alone is a blank row of a spreadsheet export.
       if (fields.every((field) => field.trim() === '')) continue;
-      if (trailingSeparator && fields.length === names.length + 1 && fields[names.length].trim() === '') fields.pop();
-      if (fields.length !== names.length) {
-        throw new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${names.length} (separator ${JSON.stringify(separator)})`, {
-          file: fileName,
-          line: lines.number,
-        });
-      }
+      while (fields.length > names.length && fields.length - names.length <= unnamedAtEnd && fields[fields.length - 1].trim() === '') fields.pop();
+      if (fields.length !== names.length) throw rowLengthError(fields, line, names.length, unnamedAtEnd, separator, { file: fileName, line: lines.number });
       for (let c = 0; c < names.length; c++) row[c] = parseNumber(fields[c], separator, fileName, lines.number, names[c]);
     }
     for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
     rowLines[rows++] = lines.number;
   }
   return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: metaValues };
+}
+
+/**
+ * A row of another length than the header, with the likely cause where the
+ * row shows one: a value under a header field left empty, or decimal
+ * commas in a file separated by commas (`1,5e-6,25,3` for two columns).
+ */
+function rowLengthError(fields: string[], line: string, columns: number, unnamedAtEnd: number, separator: string, at: ErrorLocation): HeatpathError {
+  let why = '';
+  if (fields.length > columns && unnamedAtEnd > 0) {
+    why = `: column ${columns + 1} has a value here but no name in the header (a separator at the end of the header line?)`;
+  } else if (fields.length > columns && separator === ',' && !line.includes('.')) {
+    why = ': the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator';
+  }
+  return new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${columns} (separator ${JSON.stringify(separator)})${why}`, at);
 }
 
 interface MetaLine {

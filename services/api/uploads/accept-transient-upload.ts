@@ -174,7 +174,7 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
 
 /** As the parser decides when not told. */
 function formatOf(upload: UploadRequest): UploadRecord['format'] {
-  return upload.format ?? transientFormatOf(decodeInputText(upload.bytes));
+  return upload.format ?? transientFormatOf(decodeInputText(upload.bytes, upload.fileName));
 }
 
 /** The request's cycle count before the file's, as for power and parameters; a difference is worth a warning, not a refusal. */
