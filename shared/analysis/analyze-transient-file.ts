@@ -58,6 +58,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
     ...headerWarnings,
+    ...timeUnitWarning(file),
     ...sharedCalibrationWarning(file),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
@@ -99,6 +100,24 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
   return [
     `every channel of this file (${names}) was analysed with the same heating power of ${power_W} W: ` +
       `if the devices dissipated different powers (for example in series at the same current), their Zth is wrong; give each channel its power in the file (a "# power_W@${file.channels[0].name}: ..." line per channel), or split the file into one file per channel.`,
+  ];
+}
+
+/** Longest record taken as seconds without a word: about 2.8 hours. */
+const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
+
+/**
+ * A record longer than a cooling or heating curve of a power device and its
+ * cooling plausibly runs (minutes, an hour for a large heatsink) is more
+ * likely written in milliseconds under a time_s header; the analysis goes on
+ * in seconds, and the result says so.
+ */
+function timeUnitWarning(file: TransientFile): string[] {
+  const end_s = file.time_s[file.time_s.length - 1];
+  if (!(end_s > LONGEST_PLAUSIBLE_RECORD_S)) return [];
+  return [
+    `the record ends at time_s = ${end_s} s, ${(end_s / 3600).toFixed(1)} hours after the power step, longer than a single transient plausibly runs: ` +
+      'if the times are in milliseconds, divide them by 1000 (time_s is in seconds), or the time constants and the structure function are 1000 times too slow.',
   ];
 }
 
