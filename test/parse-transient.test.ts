@@ -276,6 +276,15 @@ describe('parseTransient on repeated metadata and keys', () => {
     expect(same.meta).toEqual({ power_W: '50' });
   });
 
+  it('keeps every line of a key heatpath does not read (a note over several lines), refusing only the keys it reads', () => {
+    const notes = parseTransient(['# note: fan at 3 m/s', '# note: mounted again after 20000 cycles', '# note: fan at 3 m/s', 'time_s,temperature_C', ...rows].join('\n'), 'notes.csv');
+    expect(notes.meta.note).toBe('fan at 3 m/s\nmounted again after 20000 cycles');
+    for (const key of ['kind', 'cycle_count', 'current_A', 'voltage_V@D1']) {
+      const twice = [`# ${key}: 1`, `# ${key}: 2`, 'time_s,temperature_C', ...rows].join('\n');
+      expect(catchHeatpathError(() => parseTransient(twice, 'twice.csv')).code).toBe('INPUT_DUPLICATE_METADATA');
+    }
+  });
+
   // RFC 8259, 4: names within an object SHOULD be unique; JSON.parse keeps the last (ECMA-262), so the first would be lost.
   it.each([
     ['time_s', `{\n"time_s": ${JSON.stringify(times)},\n"temperature_C": ${JSON.stringify(times)},\n"time_s": ${JSON.stringify(times)}\n}`, 'INPUT_DUPLICATE_COLUMN', 4, 'time_s', '"time_s" is on line 2 and again on line 4'],

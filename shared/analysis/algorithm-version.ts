@@ -11,4 +11,4 @@ export const ALGORITHM_VERSION = 'analysis-8';
  * read the same bytes differently (and then ALGORITHM_VERSION changes too);
  * a new analysis method alone leaves the kept parses of the archive valid.
  */
-export const PARSER_VERSION = 'parse-2';
+export const PARSER_VERSION = 'parse-3';

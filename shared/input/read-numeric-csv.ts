@@ -1,6 +1,7 @@
 import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
 import { decimalTextValue } from './decimal-number-text.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
+import { isMetadataKeyRead } from './transient-file.js';
 
 /**
  * The CSV dialect heatpath reads (transients and calibration points): LF,
@@ -118,10 +119,12 @@ interface MetaLine {
 }
 
 /**
- * The `# key: value` lines as metadata. A key given twice with two values is
- * refused, naming both lines: which one the bench meant cannot be told (a
- * header pasted over another, a power edited in one place only), and taking
- * either would analyse silently with a value the file also contradicts.
+ * The `# key: value` lines as metadata. A key that heatpath reads (a power,
+ * the kind, the cycle count) given twice with two values is refused, naming
+ * both lines: which one the bench meant cannot be told (a header pasted over
+ * another, a power edited in one place only), and taking either would analyse
+ * silently with a value the file also contradicts. Any other key is the
+ * bench's own (a note over several lines): its values are kept, one per line.
  */
 function metadataOf(meta: MetaLine[], separator: string, fileName: string): Record<string, string> {
   const first = new Map<string, { value: string; line: number }>();
@@ -130,7 +133,9 @@ function metadataOf(meta: MetaLine[], separator: string, fileName: string): Reco
     const value = trimTrailing(written, separator);
     const earlier = first.get(key);
     if (earlier === undefined) first.set(key, { value, line });
-    else if (earlier.value !== value) {
+    else if (!isMetadataKeyRead(key)) {
+      if (!earlier.value.split('\n').includes(value)) earlier.value += `\n${value}`;
+    } else if (earlier.value !== value) {
       throw new HeatpathError(
         'INPUT_DUPLICATE_METADATA',
         `"# ${shortenInputText(key)}:" is ${quoteInputText(earlier.value)} on line ${earlier.line} and ${quoteInputText(value)} on line ${line}`,

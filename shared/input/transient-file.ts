@@ -30,3 +30,10 @@ export const MIN_TRANSIENT_DECADES = 2;
 export function isTransientQuantity(name: string): name is TransientQuantity {
   return (TRANSIENT_QUANTITIES as readonly string[]).includes(name);
 }
+
+/** Header keys heatpath reads: the kind, the cycle count and the heating power, file-wide or per channel (`power_W@D1`). */
+const METADATA_KEYS_READ = /^(?:kind|cycle_count|(?:power_W|current_A|voltage_V)(?:@.+)?)$/;
+
+export function isMetadataKeyRead(key: string): boolean {
+  return METADATA_KEYS_READ.test(key);
+}
