@@ -4,13 +4,19 @@
  * and syscall (Node.js fs documentation); an error a sandboxed BullMQ
  * processor threw reaches its worker with its message only.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { open } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it } from 'vitest';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
+
+/** Folders a test made, removed after it. */
+const folders: string[] = [];
+afterEach(() => {
+  for (const folder of folders.splice(0)) rmSync(folder, { recursive: true, force: true });
+});
 
 describe('isStoreOutage', () => {
   it('takes a full disk as the store\'s failure: /dev/full answers writes with ENOSPC (Linux, full(4))', async () => {
@@ -24,7 +30,9 @@ describe('isStoreOutage', () => {
   });
 
   it('takes a folder below a file (ENOTDIR) as the store\'s, and the job\'s own failures as not', async () => {
-    const file = join(mkdtempSync(join(tmpdir(), 'heatpath-outage-')), 'a-file');
+    const folder = mkdtempSync(join(tmpdir(), 'heatpath-outage-'));
+    folders.push(folder);
+    const file = join(folder, 'a-file');
     writeFileSync(file, '');
     const error = await open(join(file, 'below'), 'w').catch((caught: unknown) => caught);
     expect(isStoreOutage(error)).toBe(true);
