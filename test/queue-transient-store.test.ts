@@ -5,13 +5,20 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';
 import { sha256Hex, TransientStore } from '../services/store/transient-store.js';
 import type { ResultRecord, UploadRecord } from '../services/store/store-records.js';
+import { asyncStoreIo, blockingStoreIo, type StoreIo } from '../services/store/store-io.js';
 
+/**
+ * The durable store, once with each kind of file calls (store-io.ts): the API
+ * stores with the non-blocking ones, the analysis processes with the blocking
+ * ones, and both must keep the same files. Atomicity rests on POSIX rename(2)
+ * replacing a name in one step and link(2) failing with EEXIST on an existing
+ * name (POSIX.1-2017, rename and link), *common practice* for crash-safe stores.
+ */
 let dataDir: string;
 let store: TransientStore;
 
 beforeEach(async () => {
   dataDir = await mkdtemp(join(tmpdir(), 'heatpath-store-'));
-  store = new TransientStore(dataDir);
 });
 afterEach(async () => {
   await rm(dataDir, { recursive: true, force: true });
@@ -34,9 +41,18 @@ function result(jobId: string, marker: string): ResultRecord {
   };
 }
 
-describe('TransientStore', () => {
+const storeIos: [string, StoreIo, StoreIo][] = [
+  ['non-blocking', asyncStoreIo, blockingStoreIo],
+  ['blocking', blockingStoreIo, asyncStoreIo],
+];
+
+describe.each(storeIos)('TransientStore with %s file calls', (_, io, otherIo) => {
+  beforeEach(() => {
+    store = new TransientStore(dataDir, io);
+  });
+
   it('creates the data directory of a new installation, and is ready only then', async () => {
-    const fresh = new TransientStore(join(dataDir, 'new', 'store'));
+    const fresh = new TransientStore(join(dataDir, 'new', 'store'), io);
     expect((await fresh.readiness()).ready).toBe(false);
     await fresh.ensureDataDir();
     expect((await fresh.readiness()).ready).toBe(true);
@@ -97,7 +113,8 @@ describe('TransientStore', () => {
   });
 
   it('lists uploads another process stored after this one first listed, and ones stored during a listing', async () => {
-    const otherProcess = new TransientStore(dataDir);
+    // The other process makes the other kind of file calls, as an analysis process beside the API does.
+    const otherProcess = new TransientStore(dataDir, otherIo);
     expect(await store.listUploads({ sample_id: 'S1' })).toEqual([]);
     await otherProcess.putUpload(upload('u1'));
     expect((await store.listUploads({ sample_id: 'S1' })).map((u) => u.upload_id)).toEqual(['u1']);
@@ -137,7 +154,7 @@ describe('TransientStore', () => {
 
   it('is ready on a writable directory and not on a missing one', async () => {
     expect(await store.readiness()).toEqual({ ready: true });
-    expect((await new TransientStore(join(dataDir, 'missing')).readiness()).ready).toBe(false);
+    expect((await new TransientStore(join(dataDir, 'missing'), io).readiness()).ready).toBe(false);
   });
 
   it('is not ready, and says full, when its file system has less free space than asked for', async () => {

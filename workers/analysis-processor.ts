@@ -5,6 +5,7 @@ import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.
 import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import type { TransientFile } from '../shared/input/transient-file.js';
+import { blockingStoreIo } from '../services/store/store-io.js';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
 import type { UploadRecord } from '../services/store/store-records.js';
@@ -41,7 +42,8 @@ setPriority(ANALYSIS_NICENESS);
 process.once('disconnect', () => process.exit(1));
 
 const settings = readProcessorSettings();
-const store = new TransientStore(settings.dataDir);
+// One job at a time and nothing else meanwhile: blocking file calls cost less CPU than the promise API (store-io.ts).
+const store = new TransientStore(settings.dataDir, blockingStoreIo);
 const notifier = new WebhookNotifier(store, {
   redisUrl: settings.redisUrl,
   prefix: settings.prefix,

@@ -1,88 +1,103 @@
 import { randomBytes } from 'node:crypto';
-import { link, open, rename, unlink } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
 import { makeDirectory } from './make-directory.js';
+import type { StoreIo } from './store-io.js';
 
 /**
  * Crash-safe file writes for a store shared by several processes: the bytes go
  * to a temporary file in the target's directory (same file system, so the final
  * step is atomic), are fsynced, then appear under their name in one step, and
- * the directory is fsynced so the name survives a power loss.
+ * the directory is fsynced so the name survives a power loss. Each takes the
+ * file calls to make them with (store-io.ts).
  */
 
 const createdDirectories = new Set<string>();
 
-async function ensureDirectory(directory: string): Promise<void> {
+async function ensureDirectory(io: StoreIo, directory: string): Promise<void> {
   if (createdDirectories.has(directory)) return;
-  await makeDirectory(directory);
+  await makeDirectory(directory, io);
   createdDirectories.add(directory);
 }
 
-async function fsyncPath(path: string, flags: 'r' | 'r+'): Promise<void> {
-  const handle = await open(path, flags);
+async function fsyncPath(io: StoreIo, path: string): Promise<void> {
+  const fd = await io.open(path, 'r');
   try {
-    await handle.sync();
+    await io.fsync(fd);
   } finally {
-    await handle.close();
+    await io.close(fd);
   }
 }
 
-async function writeTemporary(target: string, bytes: Uint8Array | string, durable: boolean): Promise<string> {
-  const directory = dirname(target);
-  await ensureDirectory(directory);
-  const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
-  const handle = await open(temporary, 'wx').catch(async (error: NodeJS.ErrnoException) => {
-    // The directory went away since this process made it (an admin cleared a derived folder): make it again.
-    if (error.code !== 'ENOENT') throw error;
-    createdDirectories.delete(directory);
-    await ensureDirectory(directory);
-    return open(temporary, 'wx');
-  });
+async function openTemporary(io: StoreIo, directory: string, temporary: string): Promise<number> {
   try {
-    await handle.writeFile(bytes);
-    if (durable) await handle.sync();
+    return await io.open(temporary, 'wx');
   } catch (error) {
-    await handle.close();
-    await unlink(temporary).catch(() => undefined);
+    // The directory went away since this process made it (an admin cleared a derived folder): make it again.
+    if ((error as NodeJS.ErrnoException).code !== 'ENOENT') throw error;
+    createdDirectories.delete(directory);
+    await ensureDirectory(io, directory);
+    return io.open(temporary, 'wx');
+  }
+}
+
+async function writeTemporary(io: StoreIo, target: string, bytes: Uint8Array | string, durable: boolean): Promise<string> {
+  const directory = dirname(target);
+  await ensureDirectory(io, directory);
+  const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
+  const fd = await openTemporary(io, directory, temporary);
+  try {
+    await io.writeAll(fd, bytes);
+    if (durable) await io.fsync(fd);
+  } catch (error) {
+    await io.close(fd);
+    await unlinkQuietly(io, temporary);
     throw error;
   }
-  await handle.close();
+  await io.close(fd);
   return temporary;
 }
 
-async function replaceFile(target: string, bytes: Uint8Array | string, durable: boolean): Promise<void> {
-  const temporary = await writeTemporary(target, bytes, durable);
+async function unlinkQuietly(io: StoreIo, path: string): Promise<void> {
   try {
-    await rename(temporary, target);
+    await io.unlink(path);
+  } catch {
+    // A temporary file left behind is harmless: its name starts with a dot, which no listing reads.
+  }
+}
+
+async function replaceFile(io: StoreIo, target: string, bytes: Uint8Array | string, durable: boolean): Promise<void> {
+  const temporary = await writeTemporary(io, target, bytes, durable);
+  try {
+    await io.rename(temporary, target);
   } catch (error) {
-    await unlink(temporary).catch(() => undefined);
+    await unlinkQuietly(io, temporary);
     throw error;
   }
-  if (durable) await fsyncPath(dirname(target), 'r');
+  if (durable) await fsyncPath(io, dirname(target));
 }
 
 /** Replace `target` atomically: readers see the old or the new content, never a part. */
-export async function writeFileAtomic(target: string, bytes: Uint8Array | string): Promise<void> {
-  await replaceFile(target, bytes, true);
+export async function writeFileAtomic(io: StoreIo, target: string, bytes: Uint8Array | string): Promise<void> {
+  await replaceFile(io, target, bytes, true);
 }
 
 /**
  * Replace `target` atomically but without waiting for the disk: for files
  * that can be derived again (a crash may lose them, never tear them).
  */
-export async function writeDerivedFile(target: string, bytes: Uint8Array | string): Promise<void> {
-  await replaceFile(target, bytes, false);
+export async function writeDerivedFile(io: StoreIo, target: string, bytes: Uint8Array | string): Promise<void> {
+  await replaceFile(io, target, bytes, false);
 }
 
 /** Removes `target` and fsyncs its directory, so the removal survives a power loss; false when there was no file. */
-export async function removeFileDurably(target: string): Promise<boolean> {
+export async function removeFileDurably(io: StoreIo, target: string): Promise<boolean> {
   try {
-    await unlink(target);
+    await io.unlink(target);
   } catch (error) {
     if ((error as NodeJS.ErrnoException).code === 'ENOENT') return false;
     throw error;
   }
-  await fsyncPath(dirname(target), 'r');
+  await fsyncPath(io, dirname(target));
   return true;
 }
 
@@ -91,16 +106,16 @@ export async function removeFileDurably(target: string): Promise<boolean> {
  * name, across processes). Returns false when another writer got there first;
  * the existing file is left untouched.
  */
-export async function createFileExclusive(target: string, bytes: Uint8Array | string): Promise<boolean> {
-  const temporary = await writeTemporary(target, bytes, true);
+export async function createFileExclusive(io: StoreIo, target: string, bytes: Uint8Array | string): Promise<boolean> {
+  const temporary = await writeTemporary(io, target, bytes, true);
   try {
-    await link(temporary, target);
+    await io.link(temporary, target);
   } catch (error) {
     if ((error as NodeJS.ErrnoException).code === 'EEXIST') return false;
     throw error;
   } finally {
-    await unlink(temporary).catch(() => undefined);
+    await unlinkQuietly(io, temporary);
   }
-  await fsyncPath(dirname(target), 'r');
+  await fsyncPath(io, dirname(target));
   return true;
 }

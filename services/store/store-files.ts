@@ -1,14 +1,14 @@
-import { access, readdir, readFile, unlink } from 'node:fs/promises';
+import type { StoreIo } from './store-io.js';
 
-/** Small file operations of the store that treat a missing file as an answer, not an error. */
+/** Small file operations of the store that treat a missing file as an answer, not an error; each takes the file calls to make them with (store-io.ts). */
 
 export function isMissing(error: unknown): boolean {
   return (error as NodeJS.ErrnoException).code === 'ENOENT';
 }
 
-export async function exists(path: string): Promise<boolean> {
+export async function exists(io: StoreIo, path: string): Promise<boolean> {
   try {
-    await access(path);
+    await io.access(path);
     return true;
   } catch {
     return false;
@@ -16,9 +16,9 @@ export async function exists(path: string): Promise<boolean> {
 }
 
 /** Removes a file; false when there was none. */
-export async function unlinkIfPresent(path: string): Promise<boolean> {
+export async function unlinkIfPresent(io: StoreIo, path: string): Promise<boolean> {
   try {
-    await unlink(path);
+    await io.unlink(path);
     return true;
   } catch (error) {
     if (isMissing(error)) return false;
@@ -26,23 +26,23 @@ export async function unlinkIfPresent(path: string): Promise<boolean> {
   }
 }
 
-export async function readOrNull(path: string): Promise<Uint8Array | null> {
+export async function readOrNull(io: StoreIo, path: string): Promise<Uint8Array | null> {
   try {
-    return await readFile(path);
+    return await io.readFile(path);
   } catch (error) {
     if (isMissing(error)) return null;
     throw error;
   }
 }
 
-export async function readJson<T>(path: string): Promise<T | null> {
-  const bytes = await readOrNull(path);
+export async function readJson<T>(io: StoreIo, path: string): Promise<T | null> {
+  const bytes = await readOrNull(io, path);
   return bytes === null ? null : (JSON.parse(Buffer.from(bytes).toString('utf8')) as T);
 }
 
-export async function listNames(directory: string): Promise<string[]> {
+export async function listNames(io: StoreIo, directory: string): Promise<string[]> {
   try {
-    return await readdir(directory);
+    return await io.readdir(directory);
   } catch (error) {
     if (isMissing(error)) return [];
     throw error;

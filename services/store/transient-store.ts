@@ -10,6 +10,7 @@ import { decodeParsedTransient, encodeParsedTransient } from './parsed-transient
 import { exists, listNames, readJson, readOrNull, unlinkIfPresent } from './store-files.js';
 import { fileErrorReason } from './file-error-reason.js';
 import { makeDirectory } from './make-directory.js';
+import { asyncStoreIo, type StoreIo } from './store-io.js';
 import { UploadSummaryIndex, type UploadSummary } from './upload-summary-index.js';
 import type {
   BatchRecord,
@@ -64,15 +65,21 @@ export interface StoredBlob {
  * Every write is atomic and durable (see atomic-file.ts), so several API and
  * worker processes may share the directory (a shared volume). Write-once
  * records use an exclusive create: the first writer wins, later ones are no-ops.
+ * `io` is how the files are read and written (store-io.ts): non-blocking by
+ * default; the analysis processes, which do nothing else meanwhile, block.
  */
 export class TransientStore {
   private readonly uploadSummaries: UploadSummaryIndex;
 
-  constructor(readonly dataDir: string) {
+  constructor(
+    readonly dataDir: string,
+    private readonly io: StoreIo = asyncStoreIo,
+  ) {
     this.uploadSummaries = new UploadSummaryIndex({
       root: join(dataDir, 'uploads'),
       snapshotPath: join(dataDir, 'derived', 'upload-summaries.json'),
       readConcurrency: LIST_READ_CONCURRENCY,
+      io,
     });
   }
 
@@ -81,17 +88,17 @@ export class TransientStore {
   async putBlob(bytes: Uint8Array): Promise<StoredBlob> {
     const sha256 = sha256Hex(bytes);
     const path = this.blobPath(sha256);
-    const existed = (await exists(path)) || !(await createFileExclusive(path, bytes));
+    const existed = (await exists(this.io, path)) || !(await createFileExclusive(this.io, path, bytes));
     return { sha256, byte_length: bytes.byteLength, existed };
   }
 
   async hasBlob(sha256: string): Promise<boolean> {
-    return SHA256_HEX.test(sha256) && exists(this.blobPath(sha256));
+    return SHA256_HEX.test(sha256) && exists(this.io, this.blobPath(sha256));
   }
 
   async getBlob(sha256: string): Promise<Uint8Array | null> {
     if (!SHA256_HEX.test(sha256)) return null;
-    return readOrNull(this.blobPath(sha256));
+    return readOrNull(this.io, this.blobPath(sha256));
   }
 
   /**
@@ -110,13 +117,13 @@ export class TransientStore {
    * the same bytes otherwise.
    */
   async putParsedTransient(sha256: string, format: UploadRecord['format'], file: TransientFile): Promise<void> {
-    await writeDerivedFile(this.parsedPath(requireSha256(sha256), format), encodeParsedTransient(file));
+    await writeDerivedFile(this.io, this.parsedPath(requireSha256(sha256), format), encodeParsedTransient(file));
   }
 
   /** The kept parse of a blob read as `format`, or null (none kept, another parser version's, damaged, or not readable at all): then parse the blob. */
   async getParsedTransient(sha256: string, format: UploadRecord['format']): Promise<TransientFile | null> {
     if (!SHA256_HEX.test(sha256)) return null;
-    const bytes = await readOrNull(this.parsedPath(sha256, format)).catch(() => null);
+    const bytes = await readOrNull(this.io, this.parsedPath(sha256, format)).catch(() => null);
     return bytes ? decodeParsedTransient(bytes) : null;
   }
 
@@ -129,9 +136,9 @@ export class TransientStore {
     const root = join(this.dataDir, 'parsed');
     const current = `.${PARSER_VERSION}.bin`;
     let removed = 0;
-    for (const shard of await listNames(root)) {
-      const stale = (await listNames(join(root, shard))).filter((name) => KEPT_PARSE_NAME.test(name) && !name.endsWith(current));
-      await Promise.all(stale.map((name) => unlinkIfPresent(join(root, shard, name))));
+    for (const shard of await listNames(this.io, root)) {
+      const stale = (await listNames(this.io, join(root, shard))).filter((name) => KEPT_PARSE_NAME.test(name) && !name.endsWith(current));
+      await Promise.all(stale.map((name) => unlinkIfPresent(this.io, join(root, shard, name))));
       removed += stale.length;
     }
     return removed;
@@ -141,12 +148,12 @@ export class TransientStore {
 
   async putUpload(record: UploadRecord): Promise<void> {
     const path = this.shardedPath('uploads', requireId(record.upload_id));
-    await writeFileAtomic(path, JSON.stringify(record));
+    await writeFileAtomic(this.io, path, JSON.stringify(record));
     this.uploadSummaries.note(path, record);
   }
 
   async getUpload(uploadId: string): Promise<UploadRecord | null> {
-    return isStoreId(uploadId) ? readJson<UploadRecord>(this.shardedPath('uploads', uploadId)) : null;
+    return isStoreId(uploadId) ? readJson<UploadRecord>(this.io, this.shardedPath('uploads', uploadId)) : null;
   }
 
   /** Summaries of the uploads matching every given field of the filter, oldest first. */
@@ -187,33 +194,33 @@ export class TransientStore {
 
   /** Writes the result unless one exists for this job; returns whether it wrote. */
   async putResult(record: ResultRecord): Promise<boolean> {
-    return createFileExclusive(this.shardedPath('results', requireId(record.job_id)), JSON.stringify(record));
+    return createFileExclusive(this.io, this.shardedPath('results', requireId(record.job_id)), JSON.stringify(record));
   }
 
   async getResult(jobId: string): Promise<ResultRecord | null> {
-    return isStoreId(jobId) ? readJson<ResultRecord>(this.shardedPath('results', jobId)) : null;
+    return isStoreId(jobId) ? readJson<ResultRecord>(this.io, this.shardedPath('results', jobId)) : null;
   }
 
   async hasResult(jobId: string): Promise<boolean> {
-    return isStoreId(jobId) && exists(this.shardedPath('results', jobId));
+    return isStoreId(jobId) && exists(this.io, this.shardedPath('results', jobId));
   }
 
   /** Records a final failure unless one exists; returns whether it wrote. */
   async putFailure(record: FailureRecord): Promise<boolean> {
-    return createFileExclusive(this.shardedPath('failures', requireId(record.job_id)), JSON.stringify(record));
+    return createFileExclusive(this.io, this.shardedPath('failures', requireId(record.job_id)), JSON.stringify(record));
   }
 
   /** Removes a job's final failure (before it is retried); returns whether there was one. */
   async deleteFailure(jobId: string): Promise<boolean> {
-    return isStoreId(jobId) && removeFileDurably(this.shardedPath('failures', jobId));
+    return isStoreId(jobId) && removeFileDurably(this.io, this.shardedPath('failures', jobId));
   }
 
   async getFailure(jobId: string): Promise<FailureRecord | null> {
-    return isStoreId(jobId) ? readJson<FailureRecord>(this.shardedPath('failures', jobId)) : null;
+    return isStoreId(jobId) ? readJson<FailureRecord>(this.io, this.shardedPath('failures', jobId)) : null;
   }
 
   async hasFailure(jobId: string): Promise<boolean> {
-    return isStoreId(jobId) && exists(this.shardedPath('failures', jobId));
+    return isStoreId(jobId) && exists(this.io, this.shardedPath('failures', jobId));
   }
 
   /**
@@ -234,12 +241,12 @@ export class TransientStore {
     const existing = await this.getCalibration(calibrationId);
     if (existing) return existing;
     const record: CalibrationRecord = { calibration_id: calibrationId, calibration, stored_at: new Date().toISOString(), stored_by: storedBy };
-    await createFileExclusive(join(this.dataDir, 'calibrations', `${calibrationId}.json`), JSON.stringify(record));
+    await createFileExclusive(this.io, join(this.dataDir, 'calibrations', `${calibrationId}.json`), JSON.stringify(record));
     return (await this.getCalibration(calibrationId)) ?? record;
   }
 
   async getCalibration(calibrationId: string): Promise<CalibrationRecord | null> {
-    return SHA256_HEX.test(calibrationId) ? readJson<CalibrationRecord>(join(this.dataDir, 'calibrations', `${calibrationId}.json`)) : null;
+    return SHA256_HEX.test(calibrationId) ? readJson<CalibrationRecord>(this.io, join(this.dataDir, 'calibrations', `${calibrationId}.json`)) : null;
   }
 
   /** Every stored calibration, oldest first. */
@@ -251,11 +258,11 @@ export class TransientStore {
   // ---- batches ----
 
   async putBatch(record: BatchRecord): Promise<void> {
-    await writeFileAtomic(this.flatPath('batches', requireId(record.batch_id)), JSON.stringify(record));
+    await writeFileAtomic(this.io, this.flatPath('batches', requireId(record.batch_id)), JSON.stringify(record));
   }
 
   async getBatch(batchId: string): Promise<BatchRecord | null> {
-    return isStoreId(batchId) ? readJson<BatchRecord>(this.flatPath('batches', batchId)) : null;
+    return isStoreId(batchId) ? readJson<BatchRecord>(this.io, this.flatPath('batches', batchId)) : null;
   }
 
   async listBatches(): Promise<BatchRecord[]> {
@@ -271,11 +278,11 @@ export class TransientStore {
   // ---- webhooks ----
 
   async putWebhook(record: WebhookRecord): Promise<void> {
-    await writeFileAtomic(this.flatPath('webhooks', requireId(record.webhook_id)), JSON.stringify(record));
+    await writeFileAtomic(this.io, this.flatPath('webhooks', requireId(record.webhook_id)), JSON.stringify(record));
   }
 
   async getWebhook(webhookId: string): Promise<WebhookRecord | null> {
-    return isStoreId(webhookId) ? readJson<WebhookRecord>(this.flatPath('webhooks', webhookId)) : null;
+    return isStoreId(webhookId) ? readJson<WebhookRecord>(this.io, this.flatPath('webhooks', webhookId)) : null;
   }
 
   async listWebhooks(): Promise<WebhookRecord[]> {
@@ -285,7 +292,7 @@ export class TransientStore {
 
   /** Returns whether a registration was removed. */
   async deleteWebhook(webhookId: string): Promise<boolean> {
-    return isStoreId(webhookId) && unlinkIfPresent(this.flatPath('webhooks', webhookId));
+    return isStoreId(webhookId) && unlinkIfPresent(this.io, this.flatPath('webhooks', webhookId));
   }
 
   // ---- idempotency keys ----
@@ -296,13 +303,13 @@ export class TransientStore {
    */
   async claimIdempotencyKey(record: IdempotencyRecord): Promise<{ claimed: boolean; record: IdempotencyRecord }> {
     const path = this.shardedPath('idempotency', sha256Hex(record.key));
-    if (await createFileExclusive(path, JSON.stringify(record))) return { claimed: true, record };
-    const existing = await readJson<IdempotencyRecord>(path);
+    if (await createFileExclusive(this.io, path, JSON.stringify(record))) return { claimed: true, record };
+    const existing = await readJson<IdempotencyRecord>(this.io, path);
     return { claimed: false, record: existing ?? record };
   }
 
   async getIdempotencyKey(key: string): Promise<IdempotencyRecord | null> {
-    return readJson<IdempotencyRecord>(this.shardedPath('idempotency', sha256Hex(key)));
+    return readJson<IdempotencyRecord>(this.io, this.shardedPath('idempotency', sha256Hex(key)));
   }
 
   // ---- health ----
@@ -310,7 +317,7 @@ export class TransientStore {
   /** Creates the data directory if it is not there yet: a new installation starts with an empty store. */
   async ensureDataDir(): Promise<void> {
     try {
-      await makeDirectory(this.dataDir);
+      await makeDirectory(this.dataDir, this.io);
     } catch (error) {
       throw new Error(`the data directory ${this.dataDir} cannot be created (${fileErrorReason(error)}): point HEATPATH_DATA_DIR at a folder this user may write to`);
     }
@@ -357,18 +364,18 @@ export class TransientStore {
 
   private async shardedIds(kind: string): Promise<Set<string>> {
     const root = join(this.dataDir, kind);
-    const perShard = await Promise.all((await listNames(root)).map((shard) => listNames(join(root, shard))));
+    const perShard = await Promise.all((await listNames(this.io, root)).map((shard) => listNames(this.io, join(root, shard))));
     const ids = new Set<string>();
     for (const names of perShard) for (const name of names) if (name.endsWith('.json') && !name.startsWith('.')) ids.add(name.slice(0, -'.json'.length));
     return ids;
   }
 
   private async readAllIn<T>(directory: string): Promise<T[]> {
-    const files = (await listNames(directory)).filter((name) => name.endsWith('.json') && !name.startsWith('.'));
+    const files = (await listNames(this.io, directory)).filter((name) => name.endsWith('.json') && !name.startsWith('.'));
     const records: T[] = [];
     for (let start = 0; start < files.length; start += LIST_READ_CONCURRENCY) {
       const chunk = files.slice(start, start + LIST_READ_CONCURRENCY);
-      const read = await Promise.all(chunk.map((name) => readJson<T>(join(directory, name))));
+      const read = await Promise.all(chunk.map((name) => readJson<T>(this.io, join(directory, name))));
       for (const record of read) if (record !== null) records.push(record);
     }
     return records;

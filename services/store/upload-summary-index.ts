@@ -2,6 +2,7 @@ import { basename, join, relative } from 'node:path';
 import { writeDerivedFile } from './atomic-file.js';
 import type { UploadFilter, UploadRecord } from './store-records.js';
 import { listNames, readJson } from './store-files.js';
+import { asyncStoreIo, type StoreIo } from './store-io.js';
 
 /**
  * What listing and recovery need of an upload record. Upload records are
@@ -35,6 +36,8 @@ export interface UploadSummaryIndexOptions {
    * uploads, measured) are written ever more rarely. Default 1000.
    */
   snapshotEvery?: number;
+  /** The file calls to make (store-io.ts). Default: the non-blocking ones. */
+  io?: StoreIo;
 }
 
 /**
@@ -61,12 +64,14 @@ export class UploadSummaryIndex {
   private readonly snapshotPath: string;
   private readonly readConcurrency: number;
   private readonly snapshotEvery: number;
+  private readonly io: StoreIo;
 
   constructor(options: UploadSummaryIndexOptions) {
     this.root = options.root;
     this.snapshotPath = options.snapshotPath;
     this.readConcurrency = options.readConcurrency;
     this.snapshotEvery = options.snapshotEvery ?? 1000;
+    this.io = options.io ?? asyncStoreIo;
   }
 
   /** A record this process has just written. */
@@ -105,7 +110,7 @@ export class UploadSummaryIndex {
   private async readUnseen(): Promise<void> {
     const snapshot = this.snapshotLoaded ? null : await this.readSnapshot();
     this.snapshotLoaded = true;
-    const perShard = await Promise.all((await listNames(this.root)).map(async (shard) => (await listNames(join(this.root, shard))).map((name) => join(this.root, shard, name))));
+    const perShard = await Promise.all((await listNames(this.io, this.root)).map(async (shard) => (await listNames(this.io, join(this.root, shard))).map((name) => join(this.root, shard, name))));
     let unseen = perShard.flat().filter((path) => path.endsWith('.json') && !basename(path).startsWith('.') && !this.summaries.has(path));
     if (snapshot) {
       unseen = unseen.filter((path) => {
@@ -116,7 +121,7 @@ export class UploadSummaryIndex {
     }
     for (let start = 0; start < unseen.length; start += this.readConcurrency) {
       const chunk = unseen.slice(start, start + this.readConcurrency);
-      const read = await Promise.all(chunk.map((path) => readJson<UploadRecord>(path)));
+      const read = await Promise.all(chunk.map((path) => readJson<UploadRecord>(this.io, path)));
       read.forEach((record, k) => {
         if (record !== null) this.summaries.set(chunk[k], summaryOf(record));
       });
@@ -126,7 +131,7 @@ export class UploadSummaryIndex {
 
   /** The snapshot's summaries by relative path; null when there is none or it is of another format (then every record is read). */
   private async readSnapshot(): Promise<Map<string, UploadSummary> | null> {
-    const snapshot = await readJson<UploadSummarySnapshot>(this.snapshotPath).catch(() => null);
+    const snapshot = await readJson<UploadSummarySnapshot>(this.io, this.snapshotPath).catch(() => null);
     if (snapshot?.format !== UPLOAD_SUMMARY_SNAPSHOT_FORMAT || !Array.isArray(snapshot.entries)) return null;
     this.snapshotSize = snapshot.entries.length;
     return new Map(snapshot.entries);
@@ -136,7 +141,7 @@ export class UploadSummaryIndex {
     const entries = [...this.summaries].map(([path, summary]): [string, UploadSummary] => [relative(this.root, path), summary]);
     const snapshot: UploadSummarySnapshot = { format: UPLOAD_SUMMARY_SNAPSHOT_FORMAT, entries };
     // A snapshot that cannot be written costs the next process's start reads, never a listing.
-    await writeDerivedFile(this.snapshotPath, JSON.stringify(snapshot)).then(
+    await writeDerivedFile(this.io, this.snapshotPath, JSON.stringify(snapshot)).then(
       () => (this.snapshotSize = entries.length),
       () => undefined,
     );
