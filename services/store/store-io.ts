@@ -29,10 +29,11 @@ import { promisify } from 'node:util';
  *   blocking write or fsync would stall all of them.
  * - `blockingStoreIo`: the analysis processes (workers/analysis-processor.ts)
  *   do one job at a time and nothing else meanwhile, so a blocking call costs
- *   them no waiting and less CPU: the store I/O of one job (reading its
- *   upload, raw bytes and kept parse, writing its 204 kB result durably)
- *   took 2.3-2.6 ms of CPU blocking against 4.0-4.3 ms with the promise API,
- *   measured in one process on 150 jobs (Node 20, ext4).
+ *   them no waiting and less CPU: measured inside them during
+ *   `bench:service --rate 0` (Node 20, ext4), a job's store I/O (its result,
+ *   upload, raw bytes and kept parse read, its 204 kB result written durably,
+ *   the webhook registrations listed) took 2.9 ms of CPU blocking against
+ *   4.6-4.7 ms with the promise API, of which 1.2 ms is JSON.stringify.
  */
 export interface StoreIo {
   /** Opens for reading ('r') or creates a new file, failing when it exists ('wx'); returns the descriptor. */
