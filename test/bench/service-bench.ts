@@ -262,6 +262,12 @@ try {
       `analysis processes ${sum('analysisCpuSeconds').toFixed(1)} s = ${((sum('analysisCpuSeconds') / coreSeconds) * 100).toFixed(0)} % ` +
       `(${((sum('analysisCpuSeconds') / (UPLOADS * ROUNDS)) * 1000).toFixed(1)} ms per job; the core alone takes ${(1000 / single).toFixed(1)} ms on one thread)`,
   );
+  // The figure to compare between runs: CPU time hardly depends on what else shares the cores, unlike jobs/s.
+  const serviceMsPerJob = ((sum('serviceCpuSeconds') + sum('analysisCpuSeconds')) / (UPLOADS * ROUNDS)) * 1000;
+  console.log(
+    `  service CPU per job in all (API and queue process plus analysis processes): ${serviceMsPerJob.toFixed(1)} ms, ` +
+      `${(serviceMsPerJob * single / 1000).toFixed(2)} x the analysis alone on one thread (Redis's own CPU not counted)`,
+  );
 
   // 3: archive reprocess with a changed parameter (new job ids), below any upload's priority.
   const store = new TransientStore(dataDir);
