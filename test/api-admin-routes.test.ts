@@ -104,6 +104,7 @@ describe('batches', () => {
     // Schema defaults filled into the batch's parameters would have made this a cooling, posterior-mean, 5-stage job.
     const expected = jobIdFor({
       input_sha256: upload.input_sha256,
+      sample_id: 'B-2',
       parameters: { ...upload.parameters, points_per_decade: 60 },
       power: upload.power,
       calibration_sha256: upload.calibration_id,

@@ -129,22 +129,24 @@ describe('upload to result over HTTP, Redis and a worker', () => {
     expect(listing.transients[0].job.result.results[0].rth_total_K_per_W).toBeGreaterThan(0);
   });
 
-  it('lists the same bytes sent again for another sample under that sample, without crediting the first one', async () => {
+  it('analyses the same bytes sent again for another sample as that sample, and warns that they were sent before', async () => {
     const response = await call(`/v1/transients?sample_id=LOT7-D3-RELABELLED&power_W=${SYNTHETIC_POWER_W}&file_name=${fileName}`, {
       method: 'POST',
       role: 'bench',
       headers: { 'content-type': 'text/csv' },
       body: csv,
     });
-    const relabelled = (await response.json()) as typeof upload;
-    expect(relabelled).toMatchObject({ job_id: upload.job_id, state: 'completed' });
+    const relabelled = (await response.json()) as typeof upload & { warnings: string[] };
+    // Its own job, so that its result, artifacts and webhook carry its own sample id, not LOT7-D3's.
+    expect(relabelled.job_id).not.toBe(upload.job_id);
+    expect(relabelled.warnings).toEqual([expect.stringMatching(new RegExp(`^the same bytes were uploaded for sample LOT7-D3 as upload ${upload.upload_id} .*a file sent under the wrong sample id\\?`))]);
+    await eventually(async () => (await getJson(relabelled.links.job)).state === 'completed', 200);
     const listing = await getJson('/v1/samples/LOT7-D3-RELABELLED/results?include_results=true');
     expect(listing.transients).toHaveLength(1);
     const [entry] = listing.transients;
-    expect(entry).toMatchObject({ upload_id: relabelled.upload_id, job: { job_id: upload.job_id, outcome: 'completed' } });
+    expect(entry).toMatchObject({ upload_id: relabelled.upload_id, job: { job_id: relabelled.job_id, outcome: 'completed' } });
     expect(entry.job.result.results[0].rth_total_K_per_W).toBeGreaterThan(0);
-    expect(entry.job.result).not.toHaveProperty('sample_id');
-    expect(entry.job.result).not.toHaveProperty('upload_id');
+    expect((await getJson(relabelled.links.result)).sample_id).toBe('LOT7-D3-RELABELLED');
   });
 
   it('reprocesses the sample in a batch with new parameters and counts its progress', async () => {

@@ -108,6 +108,30 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(report.warnings).toEqual(["the reference's analysis warns: a heating power of 50 W was given, and used, where the file's header lines say 60 W"]);
   }, 60_000);
 
+  it('warns at upload of bytes sent before, analyses them apart under another sample, and counts them once in a trend', async () => {
+    // Common practice: two measurements never give the same bytes (the noise alone differs), so a repeat is one file sent again.
+    const send = (sample: string, file: string, query = '') =>
+      ctx.app.inject({ method: 'POST', url: `/v1/transients?sample_id=${sample}${query}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: readFileSync(file) });
+    const first = await send('M31D', campaign[0]);
+    const second = await send('M31D', campaign[1]);
+    expect(second.json().warnings).toEqual([expect.stringMatching(/^the same bytes were uploaded for sample M31 as upload \S+ \(received .*\): a file sent under the wrong sample id\? This upload is analysed as sample M31D/)]);
+    const asM31 = (await ctx.store.listUploads({ sample_id: 'M31' })).find((upload) => upload.input_sha256 === second.json().input_sha256)!;
+    expect(second.json().job_id).not.toBe(asM31.job_id);
+    const repeat = await send('M31D', campaign[1], '&cycle_count=80000');
+    expect(repeat.json().warnings).toContainEqual(expect.stringMatching(/^the same bytes were uploaded for this sample before, as upload \S+ .*one measurement sent twice/));
+    expect(repeat.json().job_id).toBe(second.json().job_id);
+    const ids = [first, second].map((answer) => answer.json().job_id as string);
+    await eventually(async () => (await Promise.all(ids.map((id) => ctx.store.hasResult(id)))).every(Boolean));
+    expect((await ctx.store.getResult(second.json().job_id))!.sample_id).toBe('M31D');
+
+    const report = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31D/degradation', headers: bearer('reader') })).json();
+    expect(report.later.map((row: { upload_id: string }) => row.upload_id)).toEqual([second.json().upload_id]);
+    expect(report.not_included).toEqual([{
+      upload_id: repeat.json().upload_id, job_id: null, reason_code: 'same_bytes_as_earlier',
+      reason: `the same bytes as upload ${second.json().upload_id} (20000 cycles), counted there: one measurement sent twice, here as 80000 cycles`,
+    }]);
+  }, 60_000);
+
   it('takes another reference and limit, and refuses what it cannot answer', async () => {
     const reference = (await trend()).json().later[0].upload_id as string;
     const report = (await trend(`?reference_upload_id=${reference}&rth_rise_limit_percent=1`)).json();

@@ -28,12 +28,12 @@ function upload(id: string, inputSha: string): UploadRecord {
     upload_id: id, input_sha256: inputSha, format: 'csv', file_name: `${id}.csv`, byte_length: 1,
     received_at: new Date().toISOString(), sample_id: 'S', bench: null, channel: null, cycle_count: null, tags: [],
     power, calibration_id: null, parameters, uploaded_by: 'bench',
-    job_id: jobIdFor({ input_sha256: inputSha, parameters, power, calibration_sha256: null }),
+    job_id: jobIdFor({ input_sha256: inputSha, sample_id: 'S', parameters, power, calibration_sha256: null }),
   };
 }
 
 describe('jobIdFor', () => {
-  const base = { input_sha256: 'b'.repeat(64), parameters: {}, power: { power_W: 1 }, calibration_sha256: null };
+  const base = { input_sha256: 'b'.repeat(64), sample_id: 'S1', parameters: {}, power: { power_W: 1 }, calibration_sha256: null };
   it('is deterministic, completes defaults and changes with every determinant', () => {
     const id = jobIdFor(base);
     expect(id).toMatch(/^job-[0-9a-f]{40}$/);
@@ -43,6 +43,9 @@ describe('jobIdFor', () => {
     expect(jobIdFor({ ...base, calibration_sha256: 'c'.repeat(64) })).not.toBe(id);
     expect(jobIdFor({ ...base, input_sha256: 'd'.repeat(64) })).not.toBe(id);
     expect(jobIdFor({ ...base, algorithm: 'other-algorithm' })).not.toBe(id);
+    // The result is labelled with its sample: the same bytes under another sample id are another job.
+    expect(jobIdFor({ ...base, sample_id: 'S2' })).not.toBe(id);
+    expect(jobIdFor({ ...base, sample_id: null })).not.toBe(id);
   });
 });
 

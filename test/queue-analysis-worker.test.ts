@@ -152,7 +152,7 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
     const plain = await fixture.storeUpload(4);
     const upload = await fixture.storeUpload(4, undefined, {
       upload_id: 'u-with-calibration', calibration_id,
-      job_id: jobIdFor({ input_sha256: plain.input_sha256, parameters: plain.parameters, power: plain.power, calibration_sha256: calibration_id }),
+      job_id: jobIdFor({ input_sha256: plain.input_sha256, sample_id: plain.sample_id, parameters: plain.parameters, power: plain.power, calibration_sha256: calibration_id }),
     });
     await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
     startWorker();

@@ -38,7 +38,7 @@ async function storedUpload(seed: number, bytes: Buffer = syntheticTransientCsv(
     upload_id: `u-lost-${seed}`, input_sha256: blob.sha256, format: 'csv', file_name: `lost-${seed}.csv`, byte_length: bytes.length,
     received_at: new Date().toISOString(), sample_id: 'S-RETRY', bench: 'bench-1', channel: null, cycle_count: null, tags: [], power,
     calibration_id: null, parameters: defaultAnalysisParameters, uploaded_by: 'test',
-    job_id: jobIdFor({ input_sha256: blob.sha256, parameters: defaultAnalysisParameters, power, calibration_sha256: null }),
+    job_id: jobIdFor({ input_sha256: blob.sha256, sample_id: 'S-RETRY', parameters: defaultAnalysisParameters, power, calibration_sha256: null }),
   };
   await ctx.store.putUpload(upload);
   return upload;

@@ -189,7 +189,7 @@ function cancellationNote(unfinished: number, willFinish: number): string {
 export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
   const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
   const calibrationId = batch.calibration_id ?? upload.calibration_id;
-  const jobId = jobIdFor({ input_sha256: upload.input_sha256, parameters, power: upload.power, calibration_sha256: calibrationId, algorithm: batch.algorithm });
+  const jobId = jobIdFor({ input_sha256: upload.input_sha256, sample_id: upload.sample_id, parameters, power: upload.power, calibration_sha256: calibrationId, algorithm: batch.algorithm });
   return { ...upload, parameters, calibration_id: calibrationId, job_id: jobId };
 }
 

@@ -11,10 +11,12 @@ export interface ReprocessSettings {
   power?: Power;
   /** The calibration's id (services/jobs/calibration-id.ts), or null. */
   calibration_sha256: string | null;
+  /** The sample id a file is uploaded under (sent to a server), or null for a local run, which has no samples. */
+  sampleIdOf: (relativePath: string) => string | null;
 }
 
 /**
- * The job id of one archive file under a run's settings: jobIdFor its content,
+ * The job id of one archive file under a run's settings: jobIdFor its content, the sample it is uploaded under,
  * the parameters and power resolved against the file as the analysis resolves
  * them (its `# kind:` and power header lines), the calibration id and the
  * running ALGORITHM_VERSION, so it is the id the service gives the same
@@ -26,16 +28,18 @@ export interface ReprocessSettings {
 export function archiveFileJobId(
   bytes: Uint8Array,
   fileName: string,
+  relativePath: string,
   input_sha256: string,
   settings: ReprocessSettings,
 ): { jobId: string; parsed?: TransientFile } {
   const { calibration_sha256 } = settings;
+  const sample_id = settings.sampleIdOf(relativePath);
   try {
     const parsed = parseTransient(bytes, fileName);
     const { parameters, power } = resolveAnalysisInputs(parsed, settings, fileName);
-    return { jobId: jobIdFor({ input_sha256, parameters, power: power ?? null, calibration_sha256 }), parsed };
+    return { jobId: jobIdFor({ input_sha256, sample_id, parameters, power: power ?? null, calibration_sha256 }), parsed };
   } catch (error) {
     if (!isUserError(error)) throw error;
-    return { jobId: jobIdFor({ input_sha256, parameters: settings.parameters, power: settings.power ?? null, calibration_sha256 }) };
+    return { jobId: jobIdFor({ input_sha256, sample_id, parameters: settings.parameters, power: settings.power ?? null, calibration_sha256 }) };
   }
 }

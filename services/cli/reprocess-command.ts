@@ -85,6 +85,7 @@ export async function runReprocessCommand(
     parameters: inputs.parameters,
     power: inputs.power,
     calibration_sha256: inputs.calibration ? calibrationIdOf(inputs.calibration) : ((values['calibration-id'] as string | undefined) ?? null),
+    sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath)),
   };
   const uploadTarget = values.local ? undefined : uploadTargetFrom(values, 'reprocess');
   const target = uploadTarget ? new URL(uploadTarget.server).href : 'local';
@@ -105,7 +106,7 @@ export async function runReprocessCommand(
       const { path, relativePath } = files[next++];
       const bytes = await readInputFile(path);
       const sha256 = createHash('sha256').update(bytes).digest('hex');
-      const job = archiveFileJobId(bytes, path, sha256, settings);
+      const job = archiveFileJobId(bytes, path, relativePath, sha256, settings);
       const earlier = outcomes.get(relativePath);
       const reason = earlier ? whyAgain(earlier, { sha256, key: job.jobId, target }) : null;
       if (earlier && reason === null) {
@@ -166,7 +167,7 @@ function serverProcessor(target: UploadTarget, values: Record<string, unknown>):
   const metadata = uploadMetadataFrom(values);
   return async (_path, relativePath, bytes) => {
     const query = new URLSearchParams(metadata);
-    if (!query.has('sample_id')) query.set('sample_id', sampleIdFor(relativePath));
+    query.set('sample_id', uploadSampleId(values, relativePath));
     try {
       const uploaded = await uploadTransient(target, bytes, basename(relativePath), query);
       return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state };
@@ -218,6 +219,11 @@ function failureOf(error: unknown): Processed {
   }
   const message = (error as Error)?.message ?? String(error);
   return { status: 'failed', job_id: '', detail: message, problem: `heatpath reprocess: ${message}` };
+}
+
+/** The sample a file is uploaded under: --sample, else its folder. */
+function uploadSampleId(values: Record<string, unknown>, relativePath: string): string {
+  return (values.sample as string | undefined) ?? sampleIdFor(relativePath);
 }
 
 /** The archive's folder naming is the lab's sample naming: use the file's folder. */

@@ -6,6 +6,12 @@ import { canonicalJson } from '../../shared/schemas/canonical-json.js';
 /** Everything that determines an analysis result. */
 export interface JobIdentity {
   input_sha256: string;
+  /**
+   * The sample the result is labelled with (its file name, netlist names, webhook); null where there is none (the
+   * CLI's local archive runs). Two samples never share a job: the same bytes under another sample id, a file sent
+   * under the wrong one, got the first sample's labels and no webhook.
+   */
+  sample_id: string | null;
   parameters: Partial<AnalysisParameters>;
   power: Power | null;
   /** SHA-256 of the calibration's canonical JSON (its calibration id), or null. */
@@ -16,8 +22,9 @@ export interface JobIdentity {
 
 /**
  * The deterministic id of the job that analyses one input with one set of
- * parameters: the same content, parameters, power, calibration and algorithm
- * version always give the same id, so a repeated upload is the same job.
+ * parameters for one sample: the same content, sample, parameters, power,
+ * calibration and algorithm version always give the same id, so a repeated
+ * upload is the same job.
  * Parameters are completed with their defaults first, so an omitted default
  * and an explicit one agree. Hex only: BullMQ ids must not contain ':'.
  */
@@ -29,6 +36,7 @@ export function jobIdFor(identity: JobIdentity): string {
     input_sha256: identity.input_sha256,
     parameters: { ...defaultAnalysisParameters, ...identity.parameters },
     power: identity.power,
+    sample_id: identity.sample_id,
   });
   return 'job-' + createHash('sha256').update(determinants, 'utf8').digest('hex').slice(0, 40);
 }

@@ -71,6 +71,8 @@ export interface CalibrationRecord {
 /** Selects stored uploads; every given field must match. */
 export interface UploadFilter {
   sample_id?: string;
+  /** The raw bytes' SHA-256: the uploads of one file. */
+  input_sha256?: string;
   bench?: string;
   tag?: string;
   /** Inclusive lower bound on received_at (ISO 8601). */

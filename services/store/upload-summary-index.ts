@@ -156,6 +156,7 @@ function summaryOf(record: UploadRecord): UploadSummary {
 function uploadMatches(upload: UploadSummary, filter: UploadFilter): boolean {
   return (
     (filter.sample_id === undefined || upload.sample_id === filter.sample_id) &&
+    (filter.input_sha256 === undefined || upload.input_sha256 === filter.input_sha256) &&
     (filter.bench === undefined || upload.bench === filter.bench) &&
     (filter.tag === undefined || upload.tags.includes(filter.tag)) &&
     (filter.received_from === undefined || upload.received_at >= filter.received_from) &&

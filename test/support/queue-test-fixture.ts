@@ -24,7 +24,7 @@ export class QueueTestFixture {
       upload_id: `u-${seed}-${blob.sha256.slice(0, 8)}`, input_sha256: blob.sha256, format: 'csv', file_name: `transient-${seed}.csv`,
       byte_length: blob.byte_length, received_at: new Date().toISOString(), sample_id: 'S-TEST', bench: 'bench-1', channel: null,
       cycle_count: null, tags: [], power, calibration_id: null, parameters: defaultAnalysisParameters, uploaded_by: 'test',
-      job_id: jobIdFor({ input_sha256: blob.sha256, parameters: defaultAnalysisParameters, power, calibration_sha256: null }),
+      job_id: jobIdFor({ input_sha256: blob.sha256, sample_id: overrides.sample_id ?? 'S-TEST', parameters: defaultAnalysisParameters, power, calibration_sha256: null }),
       ...overrides,
     };
     await this.store.putUpload(record);

@@ -23,7 +23,7 @@ export interface SampleDegradationOptions {
 }
 
 /** Why an upload is not in the trend: stable, for a LIMS to branch on; the text beside it says more. */
-export type NotIncludedReasonCode = 'not_in_batch' | 'analysis_failed' | 'analysis_pending' | 'channel_missing' | 'not_comparable';
+export type NotIncludedReasonCode = 'not_in_batch' | 'analysis_failed' | 'analysis_pending' | 'channel_missing' | 'not_comparable' | 'same_bytes_as_earlier';
 
 interface NotIncluded {
   upload_id: string;
@@ -46,8 +46,8 @@ const measurementOf = ({ upload, job_id, result }: Measurement) => ({
  * The LIMS view of a power-cycling campaign for one device: its completed
  * analyses in cycle order (cycle_count, then arrival; uploads without a cycle
  * count last), each compared with the reference as `heatpath degradation`
- * compares files. Uploads still pending, failed, or without the channel are
- * listed apart with the reason.
+ * compares files. Uploads still pending, failed, without the channel, or of
+ * bytes already counted are listed apart with the reason.
  */
 export async function sampleDegradation(store: TransientStore, sampleId: string, options: SampleDegradationOptions) {
   const uploads = await store.listUploads({ sample_id: sampleId });
@@ -56,7 +56,19 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   const notIncluded: NotIncluded[] = [];
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
   const ordered = inCycleOrder(uploads);
+  // Two measurements never give the same bytes: a repeat is one measurement sent twice, counted at its first place.
+  const firstWithBytes = new Map<string, UploadRecord>();
   for (const upload of ordered) {
+    const first = firstWithBytes.get(upload.input_sha256);
+    if (first !== undefined) {
+      notIncluded.push({
+        upload_id: upload.upload_id, job_id: null, reason_code: 'same_bytes_as_earlier',
+        reason: `the same bytes as upload ${first.upload_id} (${first.cycle_count ?? 'unknown'} cycles), counted there: one measurement sent twice` +
+          (first.cycle_count !== upload.cycle_count ? `, here as ${upload.cycle_count ?? 'unknown'} cycles` : ''),
+      });
+      continue;
+    }
+    firstWithBytes.set(upload.input_sha256, upload);
     const jobId = jobOf(upload);
     if (jobId === null) {
       notIncluded.push({ upload_id: upload.upload_id, job_id: null, reason_code: 'not_in_batch', reason: `not part of batch ${options.batch_id}` });
@@ -77,7 +89,8 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   }
   const channels = channelsOf(found);
   if (options.channel !== undefined && channels.length > 0 && !channels.includes(options.channel)) {
-    throw new HeatpathError('DEGRADATION_CHANNEL_NOT_FOUND', `sample ${sampleId} has no channel ${options.channel}: its results have channel${channels.length > 1 ? 's' : ''} ${channels.join(', ')}`);
+    throw new HeatpathError('DEGRADATION_CHANNEL_NOT_FOUND', `sample ${sampleId} has no channel ${options.channel}: its results have channel${channels.length > 1 ? 's' : ''} ${channels.join(', ')} ` +
+        '(channels are those of the files\' value columns, temperature_C@A being channel A and a column without @ channel 1; the upload\'s channel field is a label)');
   }
   const channel = options.channel ?? onlyChannel(channels);
   const measurements: Measurement[] = [];

@@ -61,7 +61,7 @@ export async function acceptTransientUpload(
     throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.fileName });
   }
   const inputSha256 = sha256Hex(upload.bytes);
-  const jobId = jobIdFor({ input_sha256: inputSha256, parameters, power, calibration_sha256: calibrationId });
+  const jobId = jobIdFor({ input_sha256: inputSha256, sample_id: metadata.sample_id, parameters, power, calibration_sha256: calibrationId });
   const describe = (record: UploadRecord, state: JobState): UploadAnswer => ({
     upload_id: record.upload_id,
     job_id: record.job_id,
@@ -115,7 +115,8 @@ export async function acceptTransientUpload(
   const keepParse = store
     .putParsedTransient(inputSha256, record.format, transient)
     .catch((error: unknown) => log.warn({ err: error, upload_id: record.upload_id }, 'parse not kept; the analysis parses the raw bytes'));
-  await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), keepParse]);
+  const [blob] = await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), keepParse]);
+  if (blob.existed) warnings.push(...(await sameBytesWarnings(store, record)));
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
@@ -125,6 +126,31 @@ export async function acceptTransientUpload(
   const state = await submit(deps, record);
   if (state === 'stored') log.warn({ upload_id: record.upload_id, job_id: jobId }, 'upload stored but not queued: Redis does not answer; recovery will queue it');
   return { answer: describe(record, state), replayed: false };
+}
+
+/**
+ * Two measurements never give the same bytes (the noise alone differs), so bytes uploaded before are a file sent
+ * again: under another sample id most likely the wrong one, under the same sample a repeat that a trend must not
+ * count twice. Looked up only when the bytes were already stored.
+ */
+async function sameBytesWarnings(store: TransientStore, record: UploadRecord): Promise<string[]> {
+  const earlier = (await store.listUploadSummaries({ input_sha256: record.input_sha256 })).filter((upload) => upload.upload_id !== record.upload_id);
+  const other = earlier.find((upload) => upload.sample_id !== record.sample_id);
+  const same = earlier.find((upload) => upload.sample_id === record.sample_id);
+  const warnings: string[] = [];
+  if (other !== undefined) {
+    warnings.push(
+      `the same bytes were uploaded for sample ${other.sample_id} as upload ${other.upload_id} (received ${other.received_at}): ` +
+        `a file sent under the wrong sample id? This upload is analysed as sample ${record.sample_id}: check which sample the file belongs to`,
+    );
+  }
+  if (same !== undefined) {
+    warnings.push(
+      `the same bytes were uploaded for this sample before, as upload ${same.upload_id} (received ${same.received_at}): ` +
+        'one measurement sent twice, which the degradation trend counts once',
+    );
+  }
+  return warnings;
 }
 
 export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
