@@ -28,4 +28,10 @@ describe('calibrationIdOf', () => {
     expect(calibrationIdOf({ ...calibration, warnings: ['the linear fit leaves a residual RMS of 0.8 K'] })).toBe(calibrationIdOf(calibration));
     expect(calibrationIdOf({ ...calibration, residual_rms_K: 0.8 })).not.toBe(calibrationIdOf(calibration));
   });
+
+  it('leaves out when and from which file it was made: the same fit made by the CLI and by the service is one calibration', () => {
+    const fromCli = { ...calibration, created_at: '2026-12-03T07:00:00.000Z', source: 'sweep.csv sha256:' + 'a'.repeat(64) };
+    expect(calibrationIdOf(fromCli)).toBe(calibrationIdOf(calibration));
+    expect(calibrationIdOf({ ...fromCli, coefficients: [350, -501] })).not.toBe(calibrationIdOf(calibration));
+  });
 });
