@@ -1,11 +1,16 @@
+import { rm } from 'node:fs/promises';
 import { createServer, type IncomingMessage, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
+import { join } from 'node:path';
 import { pino } from 'pino';
 import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
+import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { FailedJobRetry } from '../workers/retry-failed-job.js';
 import { WebhookDeliveryWorker } from '../workers/webhook-delivery.js';
 import { WebhookNotifier, type WebhookPayload } from '../workers/webhook-notifier.js';
 import { WebhookRegistry } from '../workers/webhook-registry.js';
@@ -13,6 +18,7 @@ import { observeWebhookDeliveries } from '../workers/worker-metrics.js';
 import { verifyWebhookSignature, WEBHOOK_SIGNATURE_HEADER } from '../workers/webhook-signature.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';
 import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
+import { syntheticTransientCsv } from './support/synthetic-upload.js';
 
 interface Received {
   body: string;
@@ -53,8 +59,9 @@ afterEach(async () => {
   await fixture.remove();
 });
 
-const payload: Omit<WebhookPayload, 'links'> = {
-  event: 'job.completed', job_id: 'job-abc', upload_id: 'u1', sample_id: 'S1', batch_id: null, error: null, occurred_at: '2026-01-01T00:00:00.000Z',
+const payload: Omit<WebhookPayload, 'caution' | 'links'> = {
+  event: 'job.completed', job_id: 'job-abc', upload_id: 'u1', sample_id: 'S1', batch_id: null, cycle_count: 40000, bench: 'bench-3',
+  channels: [{ channel: 'ch1', rth_total_K_per_W: 0.42, warning_count: 0 }], error: null, occurred_at: '2026-01-01T00:00:00.000Z',
 };
 
 
@@ -101,7 +108,9 @@ describe('webhooks (real Redis, local receiver)', () => {
     expect(received).toHaveLength(2);
     const now = Math.floor(Date.now() / 1000);
     for (const { body, headers } of received) {
-      expect(JSON.parse(body)).toEqual({ ...payload, links: { self: '/v1/jobs/job-abc', result: '/v1/jobs/job-abc/result', artifacts: '/v1/jobs/job-abc/artifacts' } });
+      expect(JSON.parse(body)).toEqual({
+        ...payload, caution: RESULT_CAUTION, links: { self: '/v1/jobs/job-abc', result: '/v1/jobs/job-abc/result', artifacts: '/v1/jobs/job-abc/artifacts' },
+      });
       expect(headers['content-type']).toBe('application/json');
       expect(headers['heatpath-event']).toBe('job.completed');
       const signature = headers[WEBHOOK_SIGNATURE_HEADER.toLowerCase()] as string;
@@ -118,7 +127,7 @@ describe('webhooks (real Redis, local receiver)', () => {
     const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
     const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix });
     try {
-      const good = await fixture.storeUpload(91);
+      const good = await fixture.storeUpload(91, undefined, { cycle_count: 25000, bench: 'bench-4' });
       const bad = await fixture.storeUpload(92, Buffer.from('time_s,temperature_C\n'));
       await queue.enqueue(good, { priority: JOB_PRIORITY.interactive });
       await queue.enqueue(bad, { priority: JOB_PRIORITY.interactive });
@@ -134,9 +143,80 @@ describe('webhooks (real Redis, local receiver)', () => {
     });
     const completed = bodies.find((body) => body.event === 'job.completed');
     const failed = bodies.find((body) => body.event === 'job.failed');
-    expect(completed).toMatchObject({ sample_id: 'S-TEST', error: null });
-    expect(await store.hasResult(completed!.job_id)).toBe(true);
+    expect(completed).toMatchObject({ sample_id: 'S-TEST', cycle_count: 25000, bench: 'bench-4', error: null, caution: RESULT_CAUTION });
+    // *common practice*: a notification carries the numbers of the record it announces, so the receiver need not fetch it to act.
+    const result = (await store.getResult(completed!.job_id))!;
+    const channels = result.results as AnalysisResult[];
+    expect(channels.length).toBeGreaterThan(0);
+    expect(completed!.channels).toEqual(
+      channels.map((channel) => ({ channel: channel.source.channel, rth_total_K_per_W: channel.rth_total_K_per_W, warning_count: channel.quality.warnings.length })),
+    );
+    expect(completed!.occurred_at).toBe(result.finished_at);
+    expect(failed).toMatchObject({ cycle_count: null, bench: 'bench-1', channels: [], caution: RESULT_CAUTION });
     expect(failed?.error?.code).toMatch(/^INPUT_/);
+    expect(failed!.occurred_at).toBe((await store.getFailure(failed!.job_id))!.failed_at);
+  });
+
+  it('notifies every run of a job the admin retried: failed, retried, failed again, retried, completed', async () => {
+    const registry = new WebhookRegistry(store, [receiverUrl]);
+    await registry.register(receiverUrl, [], 'admin');
+    const queue = new AnalysisQueue({ redisUrl, prefix });
+    const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix });
+    const retry = new FailedJobRetry(store, queue);
+    const events = () => received.map(({ body }) => (JSON.parse(body) as WebhookPayload).event);
+    // Failed for good: the stored failure and the queue's state (the processor stores the first just before the queue records the second).
+    const failedFor = (jobId: string) => eventually(async () => (await store.getFailure(jobId)) !== null && (await queue.getJobState(jobId))?.state === 'failed');
+    try {
+      // A stored upload whose raw bytes the store then lost: STORED_INPUT_MISSING, which the admin may retry (restoring the bytes mends it).
+      const bytes = syntheticTransientCsv(93);
+      const upload = await fixture.storeUpload(93, bytes);
+      await rm(join(fixture.dataDir, 'blobs', upload.input_sha256.slice(0, 2), upload.input_sha256));
+      await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+      await failedFor(upload.job_id);
+      await eventually(() => received.length >= 1);
+
+      await retry.retry(upload.job_id); // not mended yet: it fails again
+      await failedFor(upload.job_id);
+      await eventually(() => received.length >= 2);
+
+      await store.putBlob(bytes);
+      await retry.retry(upload.job_id);
+      await eventually(() => received.length >= 3, 50);
+      await new Promise((resolve) => setTimeout(resolve, 300)); // room for a wrong extra delivery to show up
+    } finally {
+      await worker.close(5_000);
+      await delivery.close();
+      await queue.close();
+    }
+    expect(events()).toEqual(['job.failed', 'job.failed', 'job.completed']);
+    const deliveryIds = received.map(({ headers }) => headers['heatpath-delivery']);
+    expect(new Set(deliveryIds).size).toBe(3);
+    const [first, second] = received.map(({ body }) => JSON.parse(body) as WebhookPayload);
+    expect(first.error?.code).toBe('STORED_INPUT_MISSING');
+    expect(second.error?.code).toBe('STORED_INPUT_MISSING');
+    expect(Date.parse(second.occurred_at)).toBeGreaterThan(Date.parse(first.occurred_at));
+  });
+
+  it('delivers one run once, however often it is notified, and each run of the job once', async () => {
+    const registry = new WebhookRegistry(store, [receiverUrl]);
+    await registry.register(receiverUrl, ['job.failed'], 'admin');
+    const notifier = new WebhookNotifier(store, { redisUrl, prefix, backoffDelayMs: 50 });
+    const delivery = new WebhookDeliveryWorker(store, registry, { redisUrl, prefix });
+    const failedRun = (failed_at: string): Omit<WebhookPayload, 'caution' | 'links'> => ({
+      ...payload, event: 'job.failed', channels: [], error: { code: 'STORED_INPUT_MISSING', message: 'lost' }, occurred_at: failed_at,
+    });
+    try {
+      await notifier.notify(failedRun('2026-01-01T00:00:00.000Z'));
+      await notifier.notify(failedRun('2026-01-01T00:00:00.000Z')); // the same run executed again (at-least-once)
+      await notifier.notify(failedRun('2026-01-01T00:05:00.000Z')); // the run after an admin's retry
+      await eventually(() => received.length >= 2);
+      await new Promise((resolve) => setTimeout(resolve, 300)); // room for a wrong extra delivery to show up
+    } finally {
+      await delivery.close();
+      await notifier.close();
+    }
+    expect(received.map(({ body }) => (JSON.parse(body) as WebhookPayload).occurred_at).sort()).toEqual(['2026-01-01T00:00:00.000Z', '2026-01-01T00:05:00.000Z']);
   });
 
   it('logs each failed attempt and the delivery given up, without body or signature, and counts outcomes', async () => {

@@ -5,20 +5,22 @@ import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.
 import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import type { TransientFile } from '../shared/input/transient-file.js';
+import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { blockingStoreIo } from '../services/store/store-io.js';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
-import type { UploadRecord } from '../services/store/store-records.js';
+import type { FailureRecord, ResultRecord, UploadRecord } from '../services/store/store-records.js';
 import type { AnalysisJobData } from './analysis-queue.js';
 import { readProcessorSettings } from './processor-settings.js';
-import { WebhookNotifier } from './webhook-notifier.js';
+import { channelSummaries, WebhookNotifier } from './webhook-notifier.js';
 
 /**
  * The sandboxed processor (a child process per worker slot, loaded from the
  * compiled .js): CPU-bound analysis here cannot stall the parent's lock
  * renewal. At-least-once delivery means any step may run twice, so every
  * write is idempotent: the result is written once per job id, and a job whose
- * result exists only re-sends its notification (deduplicated by id).
+ * result exists only re-sends its notification (deduplicated by id: the stored
+ * outcome's time names the run, see WebhookNotifier).
  */
 
 /**
@@ -78,7 +80,7 @@ export default async function processAnalysisJob(job: SandboxedJob<AnalysisJobDa
   const jobId = job.id!;
   const existing = await store.getResult(jobId);
   if (existing) {
-    await notifyCompleted(jobId, existing.upload_id, existing.sample_id, existing.batch_id);
+    await notifyCompleted(existing, await store.getUpload(existing.upload_id));
     return { job_id: jobId, sample_id: existing.sample_id, channels: existing.results.length, wrote_result: false };
   }
   // A batch cancelled while Redis was away (or between queueing and now) keeps its jobs in the queue: they end here, unanalysed.
@@ -132,7 +134,7 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
   // typical job's time, and completion itself says 100.
   await job.updateProgress(90);
 
-  const wrote = await store.putResult({
+  const record: ResultRecord = {
     job_id: jobId,
     upload_id: upload.upload_id,
     input_sha256: data.input_sha256,
@@ -146,8 +148,10 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
     finished_at: new Date().toISOString(),
     duration_ms: Math.round(performance.now() - started),
     results,
-  });
-  await notifyCompleted(jobId, upload.upload_id, upload.sample_id, data.batch_id);
+  };
+  const wrote = await store.putResult(record);
+  // Another execution of this run stored the result first: notify with that one, whose finished_at names the same delivery.
+  await notifyCompleted(wrote ? record : ((await store.getResult(jobId)) ?? record), upload);
   return { job_id: jobId, sample_id: upload.sample_id, channels: results.length, wrote_result: wrote };
 }
 
@@ -161,22 +165,26 @@ async function parsedTransient(sha256: string, bytes: Uint8Array, upload: Upload
   return parsed;
 }
 
-async function notifyCompleted(jobId: string, uploadId: string, sampleId: string, batchId: string | null): Promise<void> {
+async function notifyCompleted(result: ResultRecord, upload: UploadRecord | null): Promise<void> {
   await notifier.notify({
-    event: 'job.completed', job_id: jobId, upload_id: uploadId, sample_id: sampleId, batch_id: batchId, error: null,
-    occurred_at: new Date().toISOString(),
+    event: 'job.completed', job_id: result.job_id, upload_id: result.upload_id, sample_id: result.sample_id, batch_id: result.batch_id,
+    cycle_count: upload?.cycle_count ?? null, bench: upload?.bench ?? null, channels: channelSummaries(result.results as AnalysisResult[]),
+    error: null, occurred_at: result.finished_at,
   });
 }
 
 async function recordFailure(job: SandboxedJob<AnalysisJobData>, jobId: string, upload: UploadRecord | null, error: unknown): Promise<void> {
   const code = isHeatpathError(error) ? error.code : null;
   const message = error instanceof Error ? error.message : String(error);
-  await store.putFailure({
+  const failure: FailureRecord = {
     job_id: jobId, upload_id: job.data.upload_id, batch_id: job.data.batch_id, failed_at: new Date().toISOString(),
     code, message, attempts: job.attemptsMade + 1,
-  });
+  };
+  // Written once per run: an execution that finds this run's failure stored notifies with that one, as the same delivery.
+  const stored = (await store.putFailure(failure)) ? failure : ((await store.getFailure(jobId)) ?? failure);
   await notifier.notify({
-    event: 'job.failed', job_id: jobId, upload_id: job.data.upload_id, sample_id: upload?.sample_id ?? '', batch_id: job.data.batch_id,
-    error: { code, message }, occurred_at: new Date().toISOString(),
+    event: 'job.failed', job_id: jobId, upload_id: stored.upload_id, sample_id: upload?.sample_id ?? '', batch_id: stored.batch_id,
+    cycle_count: upload?.cycle_count ?? null, bench: upload?.bench ?? null, channels: [],
+    error: { code: stored.code, message: stored.message }, occurred_at: stored.failed_at,
   });
 }

@@ -1,10 +1,19 @@
 import { Queue } from 'bullmq';
+import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
+import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { jobLinks } from '../services/jobs/job-links.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import type { WebhookEvent } from '../services/store/store-records.js';
 import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
 
 export const WEBHOOK_QUEUE_NAME = 'webhooks';
+
+/** One analysed channel's headline numbers: what a LIMS acts on without fetching the whole result (about 210 kB). */
+export interface WebhookChannelSummary {
+  channel: string;
+  rth_total_K_per_W: number;
+  warning_count: number;
+}
 
 /** The JSON body POSTed to a webhook. */
 export interface WebhookPayload {
@@ -13,11 +22,23 @@ export interface WebhookPayload {
   upload_id: string;
   sample_id: string;
   batch_id: string | null;
+  /** From the upload record; null when it has none (or the record cannot be read). */
+  cycle_count: number | null;
+  bench: string | null;
+  /** job.completed: one entry per analysed channel, in the result's order; job.failed: empty. */
+  channels: WebhookChannelSummary[];
   /** Present for job.failed. */
   error: { code: string | null; message: string } | null;
+  /** When the outcome was stored: the result's finished_at or the failure's failed_at. It names the run (see WebhookNotifier). */
   occurred_at: string;
+  /** RESULT_CAUTION: the numbers travel into other systems with it. */
+  caution: string;
   /** The job's state, result and artifacts, relative to the service's base URL. */
   links: { self: string; result: string; artifacts: string };
+}
+
+export function channelSummaries(results: readonly AnalysisResult[]): WebhookChannelSummary[] {
+  return results.map((result) => ({ channel: result.source.channel, rth_total_K_per_W: result.rth_total_K_per_W, warning_count: result.quality.warnings.length }));
 }
 
 /** One delivery: the body is fixed when queued, so every retry sends the same bytes. */
@@ -42,8 +63,13 @@ export interface WebhookNotifierOptions {
 
 /**
  * Queues one delivery per registered webhook that subscribed to the event.
- * The delivery job id combines webhook, job and event, so notifying twice (a
- * retried analysis job) delivers once.
+ * The delivery job id combines webhook, job, event and run, so notifying twice
+ * for one run (a BullMQ attempt executed again) delivers once, while a job the
+ * admin retried and that fails (or completes) again is a new run with its own
+ * delivery. The run is named by `occurred_at`, the time of the stored outcome:
+ * results and failures are written once per run (the first writer wins) and
+ * read back by the processor, so every execution of a run gives the same time,
+ * and a retry, which removes the failure first, stores a new one.
  */
 export class WebhookNotifier {
   private readonly queue: Queue<WebhookDeliveryData>;
@@ -62,8 +88,8 @@ export class WebhookNotifier {
   }
 
   /** Returns the number of deliveries queued (0 when nobody subscribed). */
-  async notify(event: Omit<WebhookPayload, 'links'>): Promise<number> {
-    const payload: WebhookPayload = { ...event, links: jobLinks(event.job_id) };
+  async notify(event: Omit<WebhookPayload, 'caution' | 'links'>): Promise<number> {
+    const payload: WebhookPayload = { ...event, caution: RESULT_CAUTION, links: jobLinks(event.job_id) };
     const subscribed = (await this.store.listWebhooks()).filter((webhook) => webhook.events.includes(payload.event));
     if (subscribed.length === 0) return 0;
     const body = JSON.stringify(payload);
@@ -72,7 +98,8 @@ export class WebhookNotifier {
         name: payload.event,
         data: { webhook_id: webhook.webhook_id, job_id: payload.job_id, event: payload.event, body },
         opts: {
-          jobId: `${webhook.webhook_id}-${payload.job_id}-${payload.event}`,
+          // Epoch milliseconds: BullMQ refuses ':' in a job id.
+          jobId: `${webhook.webhook_id}-${payload.job_id}-${payload.event}-${Date.parse(payload.occurred_at)}`,
           attempts: this.attempts,
           backoff: { type: 'exponential', delay: this.backoffDelayMs },
           removeOnComplete: { age: 24 * 3600 },

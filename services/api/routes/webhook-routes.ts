@@ -34,7 +34,7 @@ export const webhookRoutes: FastifyPluginAsyncTypebox<{ webhooks: WebhookRegistr
             url: Type.String({ minLength: 1, maxLength: 2000, description: 'http(s) URL on the allowlist.' }),
             events: Type.Optional(Type.Array(WebhookEventSchema, { minItems: 1, description: 'Default: both events.' })),
           },
-          { additionalProperties: false },
+          { additionalProperties: false, examples: [{ url: 'https://lims.lab.example/hooks/heatpath', events: ['job.completed', 'job.failed'] }] },
         ),
         response: { 201: Type.Object({ ...WebhookSchema.properties, secret: Type.String({ description: 'HMAC-SHA256 key of the signatures.' }) }) },
       },
