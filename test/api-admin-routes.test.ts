@@ -77,10 +77,17 @@ describe('batches', () => {
     expect((await context.app.inject({ url: '/v1/batches', headers: bearer('reader') })).json().batches).toEqual([
       expect.objectContaining({ batch_id: batch.batch_id }),
     ]);
+    const got = (await context.app.inject({ url: `/v1/batches/${batch.batch_id}`, headers: bearer('reader') })).json();
+    expect(got).toEqual({
+      batch_id: batch.batch_id, status: 'running', created_at: batch.created_at, created_by: 'admin-key', selection: { tag: 'lot9' }, parameters: { method: 'fourier' },
+      calibration_id: null, algorithm: ALGORITHM_VERSION, total: 1, done: 0, failed: 0, failed_job_ids: [], pending: 1, cancelled: 0, will_finish: 0,
+      links: { self: `/v1/batches/${batch.batch_id}`, cancel: `/v1/batches/${batch.batch_id}/cancel` },
+    });
     const cancelled = await post(batch.links.cancel, {});
     expect(cancelled.json()).toMatchObject({
       batch_id: batch.batch_id, status: 'cancelled', pending: 0, cancelled: 1, will_finish: 0, note: 'No job of the batch was running: 1 job without an outcome will not run.',
     });
+    expect((await context.app.inject({ url: `/v1/batches/${batch.batch_id}`, headers: bearer('reader') })).json()).toMatchObject({ status: 'cancelled', cancelled: 1, will_finish: 0 });
     expect(batch).not.toHaveProperty('state');
     expect((await post('/v1/batches/batch-none/cancel', {})).json()).toMatchObject({ status: 404 });
 

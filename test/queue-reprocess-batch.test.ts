@@ -34,7 +34,10 @@ describe('BatchReprocessor (real Redis)', () => {
     const nightly = await Promise.all([51, 52, 53].map((seed) => fixture.storeUpload(seed, undefined, { tags: ['night'] })));
     await fixture.storeUpload(54, undefined, { tags: ['day'] });
     const batch = await batches.create({ selection: { tag: 'night' }, parameters: { compact_stages: 4 }, created_by: 'admin' });
-    expect(batch).toMatchObject({ status: 'running', total: 3, done: 0, failed: 0, pending: 3 });
+    expect(batch).toMatchObject({
+      status: 'running', total: 3, done: 0, failed: 0, failed_job_ids: [], pending: 3, cancelled: 0, will_finish: 0,
+      selection: { tag: 'night' }, parameters: { compact_stages: 4 }, calibration_id: null, created_by: 'admin',
+    });
 
     const record = (await fixture.store.getBatch(batch.batch_id))!;
     expect(record.entries.map((entry) => entry.upload_id).sort()).toEqual(nightly.map((u) => u.upload_id).sort());
@@ -77,27 +80,51 @@ describe('BatchReprocessor (real Redis)', () => {
     expect(await batches.progress('batch-unknown')).toBeNull();
   });
 
-  it('cancels a batch with a job already running: counted in will_finish and said in the note; it stays with its worker', async () => {
+  it('cancels a batch with jobs already running: counted in will_finish, not in cancelled, by the cancel and by later reads, until they end', async () => {
     await Promise.all([66, 67, 68].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-12' })));
     const batch = await batches.create({ selection: { bench: 'bench-12' }, parameters: { points_per_decade: 35 }, created_by: 'admin' });
     const record = (await fixture.store.getBatch(batch.batch_id))!;
-    // A consumer that takes one job and holds it, as a worker does while it analyses (BullMQ's manual fetching: a Worker without a processor).
+    // A consumer that takes two jobs and holds them, as workers do while they analyse (BullMQ's manual fetching: a Worker without a processor).
     const taker = new Worker('analysis', null, { connection: consumerConnection(redisUrl), prefix, autorun: false });
     try {
-      const running = await taker.getNextJob('test-lock-token');
-      expect(running?.data.batch_id).toBe(batch.batch_id);
+      const failing = (await taker.getNextJob('test-lock-token'))!;
+      const unanalysed = (await taker.getNextJob('test-lock-token'))!;
+      expect([failing.data.batch_id, unanalysed.data.batch_id]).toEqual([batch.batch_id, batch.batch_id]);
       const cancelled = await batches.cancel(batch.batch_id);
+      // *common practice*: the parts of a count add up to the total (3 = done 0 + failed 0 + will_finish 2 + cancelled 1).
       expect(cancelled).toMatchObject({
-        status: 'cancelled', total: 3, pending: 0, cancelled: 3, will_finish: 1,
-        note: '1 job already running will still finish and count as done or failed; the other 2 jobs without an outcome will not run.',
+        status: 'cancelled', total: 3, done: 0, failed: 0, pending: 0, cancelled: 1, will_finish: 2,
+        note: '2 jobs already running will still finish and count as done or failed; the other 1 job without an outcome will not run.',
       });
-      expect((await queue.getJobState(running!.id!))?.state).toBe('active');
-      for (const entry of record.entries.filter((e) => e.job_id !== running!.id)) expect(await queue.getJobState(entry.job_id)).toBeNull();
-      // Cancelling again counts the same: the running job is still there, nothing else is.
-      expect(await batches.cancel(batch.batch_id)).toMatchObject({ cancelled: 3, will_finish: 1 });
+      expect(await batches.progress(batch.batch_id)).toMatchObject({ cancelled: 1, will_finish: 2 });
+      for (const job of [failing, unanalysed]) expect((await queue.getJobState(job.id!))?.state).toBe('active');
+      for (const entry of record.entries.filter((e) => e.job_id !== failing.id && e.job_id !== unanalysed.id)) expect(await queue.getJobState(entry.job_id)).toBeNull();
+      // Cancelling again counts the same: the running jobs are still there, nothing else is.
+      expect(await batches.cancel(batch.batch_id)).toMatchObject({ cancelled: 1, will_finish: 2 });
+
+      // One fails for good (its failure stored, as the processor does); the other saw the cancel and ended without an outcome.
+      await fixture.store.putFailure({
+        job_id: failing.id!, upload_id: failing.data.upload_id, batch_id: batch.batch_id, failed_at: new Date().toISOString(), code: null, message: 'worker lost', attempts: 5,
+      });
+      await unanalysed.moveToCompleted({ job_id: unanalysed.id, sample_id: null, channels: 0, wrote_result: false }, 'test-lock-token', false);
+      expect(await batches.progress(batch.batch_id)).toMatchObject({ total: 3, done: 0, failed: 1, failed_job_ids: [failing.id], will_finish: 0, cancelled: 2 });
     } finally {
       await taker.close();
     }
+  });
+
+  it('lists the first 100 failed job ids in the batch\'s order, and counts them all', async () => {
+    const entries = Array.from({ length: 102 }, (_, i) => ({ upload_id: `u-${i}`, job_id: `job-failed-${String(i).padStart(3, '0')}` }));
+    await fixture.store.putBatch({
+      batch_id: 'batch-many-failed', created_at: new Date().toISOString(), created_by: 'admin', selection: {}, parameters: null, calibration_id: null,
+      algorithm: 'a', status: 'running', cancelled_at: null, entries,
+    });
+    for (const entry of entries.slice(1)) {
+      await fixture.store.putFailure({ job_id: entry.job_id, upload_id: entry.upload_id, batch_id: 'batch-many-failed', failed_at: new Date().toISOString(), code: null, message: 'x', attempts: 5 });
+    }
+    const progress = (await batches.progress('batch-many-failed'))!;
+    expect(progress).toMatchObject({ status: 'running', total: 102, failed: 101, pending: 1 });
+    expect(progress.failed_job_ids).toEqual(entries.slice(1, 101).map((entry) => entry.job_id));
   });
 
   it('ends the jobs of a batch cancelled in the store unanalysed, though Redis still held them (cancelled while Redis was away)', async () => {
@@ -112,7 +139,8 @@ describe('BatchReprocessor (real Redis)', () => {
       return states.every((state) => state === null || state.state === 'completed');
     }, 100);
     for (const entry of record.entries) expect(await fixture.store.hasResult(entry.job_id)).toBe(false);
-    expect(await batches.progress(batch.batch_id)).toMatchObject({ status: 'cancelled', done: 0, cancelled: 2 });
+    // Redis did not answer the cancel: which jobs ran is not known, and every job without an outcome counts as cancelled.
+    expect(await batches.progress(batch.batch_id)).toMatchObject({ status: 'cancelled', done: 0, cancelled: 2, will_finish: null });
   });
 
   it('offers a running batch again only when Redis lost its jobs', async () => {

@@ -21,25 +21,33 @@ export interface BatchProgress {
   /** finished: running and every job has an outcome. */
   status: 'running' | 'finished' | 'cancelled';
   created_at: string;
+  created_by: string;
+  selection: UploadFilter;
+  parameters: Partial<AnalysisParameters> | null;
+  calibration_id: string | null;
   algorithm: string;
   total: number;
   done: number;
   failed: number;
+  /** The first FAILED_JOB_IDS_SHOWN failed jobs, in the batch's order: those an admin looks at or retries. */
+  failed_job_ids: string[];
   /** Unfinished jobs of a running batch. */
   pending: number;
-  /** Unfinished jobs of a cancelled batch: those not started will not run; one running when it was cancelled still finishes and counts as done or failed. */
+  /** Unfinished jobs of a cancelled batch that will not run: not started when it was cancelled, or ended unanalysed since. */
   cancelled: number;
+  /** Unfinished jobs of a cancelled batch that a worker was running at the cancel and still has: they count as done or failed once they end. Null when Redis did not answer the cancel; 0 for a batch not cancelled. */
+  will_finish: number | null;
 }
 
-/** What a cancel answers: the progress, and how many of the cancelled jobs were running and still finish. */
+/** What a cancel answers: the progress, and what the cancel did in words. */
 export interface BatchCancellation extends BatchProgress {
-  /** Null when Redis did not answer, so which jobs run is not known. */
-  will_finish: number | null;
   note: string;
 }
 
 /** Jobs added to Redis per round trip. */
 const ENQUEUE_CHUNK = 500;
+/** Failed job ids a batch's progress lists; `failed` counts them all. */
+export const FAILED_JOB_IDS_SHOWN = 100;
 
 /**
  * Reprocessing batches: a selection of stored uploads analysed again with new
@@ -114,18 +122,20 @@ export class BatchReprocessor {
       // Redis away: its jobs stay queued and end unanalysed when they come up.
       redisAnswered = false;
     }
+    if (redisAnswered) {
+      // Kept, so that later reads count the same jobs as finishing; an earlier cancel's are kept too (they may run still).
+      batch.running_at_cancel = [...new Set([...(batch.running_at_cancel ?? []), ...running])];
+      await this.store.putBatch(batch);
+    }
     // Read after the queue: a job that finished meanwhile counts as done or failed, not as running.
-    const outcomes = await this.store.jobOutcomes();
-    const progress = await this.countProgress(batch, outcomes);
-    if (!redisAnswered) {
+    const progress = await this.countProgress(batch);
+    if (!redisAnswered || progress.will_finish === null) {
       return {
         ...progress,
-        will_finish: null,
         note: `Redis did not answer: the batch's ${progress.cancelled} unfinished jobs end unanalysed when they come up; any already running is not known here and still finishes, counted as done or failed.`,
       };
     }
-    const willFinish = [...running].filter((jobId) => !isJobFinished(outcomes, jobId)).length;
-    return { ...progress, will_finish: willFinish, note: cancellationNote(progress.cancelled, willFinish) };
+    return { ...progress, note: cancellationNote(progress.cancelled, progress.will_finish) };
   }
 
   /** Re-queues the unfinished jobs of every running batch (after a Redis loss); returns how many were offered. */
@@ -164,22 +174,48 @@ export class BatchReprocessor {
     const outcomes = known ?? (await this.store.jobOutcomes());
     let done = 0;
     let failed = 0;
+    const failedJobIds: string[] = [];
     for (const entry of batch.entries) {
       if (outcomes.done.has(entry.job_id)) done++;
-      else if (outcomes.failed.has(entry.job_id)) failed++;
+      else if (outcomes.failed.has(entry.job_id)) {
+        failed++;
+        if (failedJobIds.length < FAILED_JOB_IDS_SHOWN) failedJobIds.push(entry.job_id);
+      }
     }
     const unfinished = batch.entries.length - done - failed;
     const cancelled = batch.status === 'cancelled';
+    const willFinish = cancelled ? await this.stillFinishing(batch, outcomes) : 0;
     return {
-      batch_id: batch.batch_id, status: cancelled ? 'cancelled' : unfinished === 0 ? 'finished' : 'running', created_at: batch.created_at, algorithm: batch.algorithm,
-      total: batch.entries.length, done, failed, pending: cancelled ? 0 : unfinished, cancelled: cancelled ? unfinished : 0,
+      batch_id: batch.batch_id, status: cancelled ? 'cancelled' : unfinished === 0 ? 'finished' : 'running', created_at: batch.created_at,
+      created_by: batch.created_by, selection: batch.selection, parameters: batch.parameters, calibration_id: batch.calibration_id, algorithm: batch.algorithm,
+      total: batch.entries.length, done, failed, failed_job_ids: failedJobIds, pending: cancelled ? 0 : unfinished,
+      cancelled: cancelled ? unfinished - (willFinish ?? 0) : 0, will_finish: willFinish,
     };
+  }
+
+  /**
+   * Of the jobs running when the batch was cancelled, those without an outcome
+   * that a worker still has. One that left the worker without an outcome ended
+   * unanalysed (it saw the cancel) or failed an attempt, whose retry ends
+   * unanalysed: it will not finish. Null when the cancel did not learn which
+   * ran; while Redis does not answer, every such job without an outcome counts,
+   * as the cancel found them.
+   */
+  private async stillFinishing(batch: BatchRecord, outcomes: JobOutcomes): Promise<number | null> {
+    if (batch.running_at_cancel === undefined || batch.running_at_cancel === null) return null;
+    const unfinished = batch.running_at_cancel.filter((jobId) => !isJobFinished(outcomes, jobId));
+    let active = 0;
+    try {
+      for (const jobId of unfinished) if ((await this.queue.getJobState(jobId))?.state === 'active') active++;
+    } catch {
+      return unfinished.length;
+    }
+    return active;
   }
 }
 
-/** What a cancel did, in words: the count alone does not say that running jobs still finish. */
-function cancellationNote(unfinished: number, willFinish: number): string {
-  const notRun = unfinished - willFinish;
+/** What a cancel did, in words: the counts alone do not say that running jobs still finish. */
+function cancellationNote(notRun: number, willFinish: number): string {
   const jobs = (count: number) => `${count} job${count === 1 ? '' : 's'}`;
   if (willFinish === 0) return `No job of the batch was running: ${jobs(notRun)} without an outcome will not run.`;
   return `${jobs(willFinish)} already running will still finish and count as done or failed; the other ${jobs(notRun)} without an outcome will not run.`;

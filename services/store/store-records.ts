@@ -100,6 +100,13 @@ export interface BatchRecord {
   algorithm: string;
   status: 'running' | 'cancelled';
   cancelled_at: string | null;
+  /**
+   * Set by a cancel: the jobs a worker was running then, which finish (and
+   * count as done or failed) while the others will not run; null when Redis
+   * did not answer, so they are not known. Absent before a cancel, and in
+   * batches cancelled before it was recorded.
+   */
+  running_at_cancel?: string[] | null;
   entries: BatchEntry[];
 }
 

@@ -2,32 +2,36 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../../store/transient-store.js';
-import type { BatchProgress, BatchReprocessor } from '../../../workers/reprocess-batch.js';
+import { FAILED_JOB_IDS_SHOWN, type BatchProgress, type BatchReprocessor } from '../../../workers/reprocess-batch.js';
 import { analysisParameterOverrides } from '../schemas/analysis-parameter-overrides.js';
 
 const BatchParams = Type.Object({ batch_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
 
 const isoTime = (description: string) => Type.String({ format: 'date-time', description });
 
+const SelectionSchema = Type.Object(
+  {
+    sample_id: Type.Optional(Type.String({ minLength: 1 })),
+    bench: Type.Optional(Type.String({ minLength: 1 })),
+    tag: Type.Optional(Type.String({ minLength: 1 })),
+    received_from: Type.Optional(isoTime('Uploads received at or after this time.')),
+    received_to: Type.Optional(isoTime('Uploads received before this time.')),
+  },
+  { additionalProperties: false, description: 'Every given field must match; {} selects the whole archive.' },
+);
+
+const ParameterOverridesSchema = Type.Object(analysisParameterOverrides(() => "Omitted: the upload's own."), {
+  additionalProperties: false,
+  description: 'Replace these parameters of each upload and keep its others; omitted: reprocess with the current algorithm version.',
+});
+
+const calibrationIdText = "Replace each upload's calibration by this stored one.";
+
 const BatchRequestSchema = Type.Object(
   {
-    selection: Type.Object(
-      {
-        sample_id: Type.Optional(Type.String({ minLength: 1 })),
-        bench: Type.Optional(Type.String({ minLength: 1 })),
-        tag: Type.Optional(Type.String({ minLength: 1 })),
-        received_from: Type.Optional(isoTime('Uploads received at or after this time.')),
-        received_to: Type.Optional(isoTime('Uploads received before this time.')),
-      },
-      { additionalProperties: false, description: 'Every given field must match; {} selects the whole archive.' },
-    ),
-    parameters: Type.Optional(
-      Type.Object(analysisParameterOverrides(() => "Omitted: the upload's own."), {
-        additionalProperties: false,
-        description: 'Replace these parameters of each upload and keep its others; omitted: reprocess with the current algorithm version.',
-      }),
-    ),
-    calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'Replace each upload\'s calibration by this stored one.' })),
+    selection: SelectionSchema,
+    parameters: Type.Optional(ParameterOverridesSchema),
+    calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: calibrationIdText })),
   },
   { additionalProperties: false },
 );
@@ -39,12 +43,22 @@ const batchStatusText =
 const progressProperties = {
   batch_id: Type.String(),
   created_at: Type.String(),
+  created_by: Type.String({ description: 'Name of the API key that started the batch.' }),
+  selection: SelectionSchema,
+  parameters: Type.Union([ParameterOverridesSchema, Type.Null()], { description: 'The parameters replaced in each upload; null: none (the current algorithm version only).' }),
+  calibration_id: Type.Union([Type.String(), Type.Null()], { description: `${calibrationIdText} Null: each upload keeps its own.` }),
   algorithm: Type.String({ description: 'Algorithm version the batch analyses with.' }),
   total: Type.Integer(),
   done: Type.Integer(),
   failed: Type.Integer(),
+  failed_job_ids: Type.Array(Type.String(), {
+    description: `The first ${FAILED_JOB_IDS_SHOWN} failed jobs, in the batch's order (failed counts them all): what POST /v1/jobs/{job_id}/retry takes once the cause is mended.`,
+  }),
   pending: Type.Integer({ description: 'Jobs of a running batch without an outcome yet.' }),
-  cancelled: Type.Integer({ description: 'Jobs of a cancelled batch without an outcome: those not started will not run; those already running still finish and then count as done or failed.' }),
+  cancelled: Type.Integer({ description: 'Jobs of a cancelled batch without an outcome that will not run: not started at the cancel, or ended unanalysed since. Jobs running at the cancel are in will_finish instead.' }),
+  will_finish: Type.Union([Type.Integer(), Type.Null()], {
+    description: 'Jobs of a cancelled batch that were running at the cancel and have no outcome yet: they finish and then count as done or failed. 0 for a batch not cancelled; null when Redis did not answer the cancel, so which jobs run is not known (they are counted in cancelled).',
+  }),
   links: Type.Object({ self: Type.String(), cancel: Type.String() }),
 };
 
@@ -60,13 +74,7 @@ const BatchCreatedSchema = Type.Object({
   }),
 });
 
-const BatchCancelledSchema = Type.Object({
-  ...BatchProgressSchema.properties,
-  will_finish: Type.Union([Type.Integer(), Type.Null()], {
-    description: 'Of the cancelled jobs, those already running: they still finish and count as done or failed. Null when Redis did not answer.',
-  }),
-  note: Type.String({ description: 'What the cancel did, in words.' }),
-});
+const BatchCancelledSchema = Type.Object({ ...BatchProgressSchema.properties, note: Type.String({ description: 'What the cancel did, in words.' }) });
 
 const withLinks = <T extends { batch_id: string }>(progress: T) => ({
   ...progress,
@@ -115,7 +123,7 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
     '/v1/batches/:batch_id',
     {
       config: { permission: 'read' },
-      schema: { tags: ['batches'], summary: 'Progress of a batch: done, failed, pending', params: BatchParams, response: { 200: BatchProgressSchema } },
+      schema: { tags: ['batches'], summary: 'A batch: what it reprocesses, who started it, its progress and failed jobs', params: BatchParams, response: { 200: BatchProgressSchema } },
     },
     async (request) => {
       const progress = await batches.progress(request.params.batch_id);
