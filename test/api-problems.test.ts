@@ -336,6 +336,7 @@ describe('with Redis down', () => {
     const cancelled = await context.app.inject({ method: 'POST', url: answer.links.cancel, headers: bearer('admin') });
     expect(cancelled.statusCode, cancelled.body).toBe(200);
     expect(cancelled.json()).toMatchObject({ status: 'cancelled', cancelled: 1, will_finish: null, note: expect.stringMatching(/^Redis did not answer: the batch's 1 unfinished jobs end unanalysed/) });
+    expect((await context.app.inject({ url: answer.links.self, headers: bearer('reader') })).json()).toMatchObject({ status: 'cancelled', cancelled: 1, will_finish: null });
   });
 
   it('503 where only Redis knows the answer, and /health/ready says which check failed', async () => {
