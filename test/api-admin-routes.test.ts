@@ -100,6 +100,19 @@ describe('batches', () => {
     expect(listing.transients[0].reprocessed).toEqual([expect.objectContaining({ batch_id: batch.batch_id, job_id: entry.job_id, outcome: 'cancelled' })]);
   });
 
+  it('lists a job that was running when its batch was cancelled as pending, since it still finishes (the batch\'s will_finish)', async () => {
+    const upload = (await context.store.listUploads({ sample_id: 'B-1' }))[0];
+    const [running, notStarted] = ['job-' + 'a'.repeat(40), 'job-' + 'b'.repeat(40)];
+    await context.store.putBatch({
+      batch_id: 'batch-running-at-cancel', created_at: new Date().toISOString(), created_by: 'admin', selection: { sample_id: 'B-1' }, parameters: null,
+      calibration_id: null, algorithm: 'analysis-test', status: 'cancelled', cancelled_at: new Date().toISOString(), running_at_cancel: [running],
+      entries: [{ upload_id: upload.upload_id, job_id: running }, { upload_id: upload.upload_id, job_id: notStarted }],
+    });
+    const listing = (await context.app.inject({ url: '/v1/samples/B-1/results', headers: bearer('reader') })).json();
+    const outcomes = Object.fromEntries(listing.transients[0].reprocessed.filter((entry: { batch_id: string }) => entry.batch_id === 'batch-running-at-cancel').map((entry: { job_id: string; outcome: string }) => [entry.job_id, entry.outcome]));
+    expect(outcomes).toEqual({ [running]: 'pending', [notStarted]: 'cancelled' });
+  });
+
   it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {
     const uploaded = await uploadCsv('sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8', 42);
     expect(uploaded.statusCode, uploaded.body).toBe(202);

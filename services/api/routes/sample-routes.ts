@@ -11,7 +11,7 @@ import { DegradationComparisonSchema } from '../../../shared/schemas/degradation
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 
 const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed'), Type.Literal('cancelled')], {
-  description: 'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that did not run.',
+  description: 'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that had not started when it was cancelled.',
 });
 
 const JobOutcomeSchema = Type.Object({
@@ -148,7 +148,11 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
             batches.flatMap((batch) =>
               batch.entries
                 .filter((entry) => entry.upload_id === upload.upload_id && entry.job_id !== upload.job_id)
-                .map(async (entry) => ({ batch_id: batch.batch_id, ...(await outcomeOf(entry.job_id, include_results, batch.status === 'cancelled')) })),
+                // A job that was running when its batch was cancelled still finishes (the batch's will_finish): pending until then.
+                .map(async (entry) => ({
+                  batch_id: batch.batch_id,
+                  ...(await outcomeOf(entry.job_id, include_results, batch.status === 'cancelled' && !(batch.running_at_cancel ?? []).includes(entry.job_id))),
+                })),
             ),
           ),
           links: uploadLinks(upload),
