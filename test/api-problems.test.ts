@@ -140,17 +140,19 @@ describe('with a real Redis', () => {
   });
 
   it("echoes the cycle count used: the request's before the file's, with a warning when they differ", async () => {
-    const withLine = Buffer.concat([Buffer.from('# cycle_count: 40000\n'), small]);
-    const fromFile = await upload(context, 'sample_id=S-cc&power_W=50', withLine);
+    // Each upload its own bytes (a note line): the same bytes again would add the warning about a file sent twice.
+    const withLine = (note: string) => Buffer.concat([Buffer.from(`# cycle_count: 40000\n# note: ${note}\n`), small]);
+    const fromFile = await upload(context, 'sample_id=S-cc&power_W=50', withLine('from the file'));
     expect(fromFile.statusCode, fromFile.body).toBe(202);
     expect(fromFile.json()).toMatchObject({ cycle_count: 40000, warnings: [] });
-    const same = await upload(context, 'sample_id=S-cc&power_W=50&cycle_count=%2040000%20', withLine);
+    const same = await upload(context, 'sample_id=S-cc&power_W=50&cycle_count=%2040000%20', withLine('the same in the request'));
     expect(same.json()).toMatchObject({ cycle_count: 40000, warnings: [] });
-    const differs = await upload(context, 'sample_id=S-cc&power_W=50&cycle_count=42000', withLine);
+    const differs = await upload(context, 'sample_id=S-cc&power_W=50&cycle_count=42000', withLine('another in the request'));
     expect(differs.statusCode, differs.body).toBe(202);
     expect(differs.json()).toMatchObject({ cycle_count: 42000, warnings: [`cycle_count 42000 of the request is recorded; the file's "# cycle_count:" line says 40000`] });
     expect((await context.store.getUpload(differs.json().upload_id))!.cycle_count).toBe(42000);
-    expect((await upload(context, 'sample_id=S-cc&power_W=50', small)).json()).toMatchObject({ cycle_count: null, warnings: [] });
+    const none = Buffer.concat([Buffer.from('# note: no cycle count\n'), small]);
+    expect((await upload(context, 'sample_id=S-cc&power_W=50', none)).json()).toMatchObject({ cycle_count: null, warnings: [] });
   });
 
   it('reads power and kind from the file\'s "# key: value" lines, as the CLI does, and records them', async () => {
