@@ -85,6 +85,25 @@ describe('steadyStateRth on sparse and on short records', () => {
     }
   });
 
+  it.each([3, 4, 5, 8])('reads a settled part sampled at only %i points per decade, whose window the minimum of samples widens to decades, and does not warn', (perDecade) => {
+    // The line through 6 samples spanning 0.6-1.7 decades ran on with the settling curve's early slope: +0.6 to +10.6 %
+    // of Rth, with a warning that the record ends before steady state, though Zth at 100 s is within 2e-5 of Rth.
+    const t = logSpacedTimes(1e-6, 100, perDecade);
+    const result = steadyStateRth(t, zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, t), 0);
+    expect(Math.abs(result.rth_K_per_W / stackRth - 1)).toBeLessThan(0.005);
+    expect(result.steady).toBe(true);
+    expect(result.warnings).toEqual([]);
+  });
+
+  it('still warns of a sparse record that ends while Zth rises steadily', () => {
+    // The 17 equal stages of the next test, sampled at 3 points per decade to 100 s: no bend over at the end.
+    const tau_s = Float64Array.from({ length: 17 }, (_, j) => 10 ** (-4 + j / 2));
+    const t = logSpacedTimes(1e-5, 100, 3);
+    const result = steadyStateRth(t, zthFromFoster(new Float64Array(17).fill(1 / 17), tau_s, t), 0);
+    expect(result.steady).toBe(false);
+    expect(result.warnings).toEqual([expect.stringMatching(/^the record ends before steady state/)]);
+  });
+
   it('on a record that ends while Zth still rises, reads the trend at its end and gives the level reached as a lower bound', () => {
     // 17 equal Foster stages, one per half decade of tau from 1e-4 to 1e4 s (exact closed form): recorded to 100 s,
     // Zth still rises almost linearly in log t at the end, 0.7645 K/W against Rth = 1 K/W.

@@ -35,7 +35,9 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * early, where it is steeper: a single stage with tau a tenth of the record,
  * sampled at 10 points per decade, shows 1.5-2.1 % instead of 0.4-1.1 % and
  * is called unsteady; a part's slowest stage is rarely all of its Rth (the
- * TO-247 part shows 0.9 %).
+ * TO-247 part shows 0.9 %). A window widened beyond WIDENED_WINDOW_FACTOR times
+ * the nominal one is first read from its settled end, where it has one
+ * (settledLaterHalf, bendingOver).
  */
 
 /** Fraction of the log-time span, at its end, over which Rth total is read and the rise is judged. */
@@ -46,6 +48,13 @@ export const MIN_STEADY_STATE_SAMPLES = 6;
 export const STEADY_STATE_TRIM_FRACTION = 0.2;
 /** A rise over the nominal window above this fraction of Rth total means the record ends before steady state. */
 export const STEADY_STATE_RISE_LIMIT = 0.01;
+/**
+ * A window that the minimum of samples widens to more than this many times the nominal window is read from its
+ * later half alone where that half has levelled off (see settledLaterHalf).
+ */
+export const WIDENED_WINDOW_FACTOR = 1.5;
+/** On such an end, rises of the last three samples that shrink below this ratio show a curve bending over to its steady state (see bendingOver). */
+export const SETTLING_RISE_RATIO = 0.5;
 
 export interface SteadyState {
   /** The window's line at the last sample; when `steady` is false, the trend at the record's end, and the warning gives the level reached, a lower bound. */
@@ -83,6 +92,14 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   );
   const logTime = Float64Array.from(time_s.subarray(windowStart), Math.log10);
   const zth = zth_K_per_W.subarray(windowStart);
+  const widened = logLast - logTime[0] > WIDENED_WINDOW_FACTOR * nominalDecades;
+  const settled = widened ? settledLaterHalf(logTime, zth, logLast, nominalDecades, noise_K_per_W) : undefined;
+  if (settled !== undefined) {
+    return {
+      rth_K_per_W: settled.level_K_per_W, window_start_s: time_s[count - settled.samples], samples: settled.samples,
+      window_rise_K_per_W: settled.rise_K_per_W, rth_standard_error_K_per_W: settled.standardError_K_per_W, steady: true, falls: false, warnings: [],
+    };
+  }
   const slope = twoGroupSlope(logTime, zth);
   const rth_K_per_W = trimmedMean(zth.map((z, i) => z + slope.K_per_W_per_decade * (logLast - logTime[i])));
   if (!(rth_K_per_W > 0)) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${rth_K_per_W.toPrecision(3)} K/W; it must rise from 0 to a positive Rth`);
@@ -110,6 +127,60 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   }
   const rth_standard_error_K_per_W = noise_K_per_W * levelNoiseGain(logTime, slope, logLast);
   return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, rth_standard_error_K_per_W, steady, falls, warnings };
+}
+
+/**
+ * A sparse end, whose window the minimum of samples widened to several times the nominal one, spans decades in
+ * which a settling curve bends over: the line through it ran on with the early, steep part's slope and read a
+ * TO-247 part sampled at 3 to 5 points per decade 3 to 12 % high, calling it unsteady though it had settled. Its
+ * later half alone decides: where its own slope (end to end) rises by no more than the limit over the nominal window,
+ * beyond twice its standard error, the curve has levelled off, and Rth total is the trimmed mean of that half's samples
+ * moved along that slope to the end; otherwise undefined, and the whole window's line reads the trend as usual.
+ */
+function settledLaterHalf(
+  logTime: Float64Array,
+  zth: ArrayLike<number>,
+  logLast: number,
+  nominalDecades: number,
+  noise_K_per_W: number,
+): { level_K_per_W: number; rise_K_per_W: number; standardError_K_per_W: number; samples: number } | undefined {
+  const samples = Math.ceil(logTime.length / 2);
+  const first = logTime.length - samples;
+  const span_decades = logLast - logTime[first];
+  if (!(span_decades > 0)) return undefined;
+  const slope_K_per_W_per_decade = (zth[logTime.length - 1] - zth[first]) / span_decades;
+  const level_K_per_W = trimmedMean(Float64Array.from({ length: samples }, (_, k) => zth[first + k] + slope_K_per_W_per_decade * (logLast - logTime[first + k])));
+  const rise_K_per_W = slope_K_per_W_per_decade * nominalDecades;
+  const riseStandardError_K_per_W = (noise_K_per_W * Math.SQRT2 * nominalDecades) / span_decades;
+  const levelled = Math.abs(rise_K_per_W) - 2 * riseStandardError_K_per_W <= STEADY_STATE_RISE_LIMIT * level_K_per_W;
+  // The end value of a line through samples even in log t: sqrt(5 / n) times the noise (see levelNoiseGain).
+  if (levelled && level_K_per_W > 0) return { level_K_per_W, rise_K_per_W, standardError_K_per_W: noise_K_per_W * Math.sqrt(5 / samples), samples };
+  return bendingOver(logTime, zth, nominalDecades, noise_K_per_W);
+}
+
+/**
+ * The last three samples of a sparse end whose rises shrink, the later beyond the noise to less than
+ * SETTLING_RISE_RATIO of the earlier, as a settling curve's do (each Foster term approaches its R exponentially):
+ * Rth total is the last sample plus what the rises still add if they keep shrinking by that ratio, d2^2 / (d1 - d2)
+ * (Aitken's delta-squared extrapolation of a sequence converging geometrically; Aitken, Proc. R. Soc. Edinb. 46,
+ * 1926), which an exponential approach, shrinking faster, does not reach: an upper bound of the remaining rise.
+ */
+function bendingOver(
+  logTime: Float64Array,
+  zth: ArrayLike<number>,
+  nominalDecades: number,
+  noise_K_per_W: number,
+): { level_K_per_W: number; rise_K_per_W: number; standardError_K_per_W: number; samples: number } | undefined {
+  const n = logTime.length;
+  const [z0, z1, z2] = [zth[n - 3], zth[n - 2], zth[n - 1]];
+  const earlierRise = z1 - z0;
+  const laterRise = z2 - z1;
+  const noiseOfRise = Math.SQRT2 * noise_K_per_W;
+  if (!(earlierRise > 2 * noiseOfRise && laterRise < SETTLING_RISE_RATIO * earlierRise)) return undefined;
+  const remaining = laterRise > 0 ? (laterRise * laterRise) / (earlierRise - laterRise) : 0;
+  const level_K_per_W = z2 + remaining;
+  const rise_K_per_W = (Math.max(laterRise, 0) * nominalDecades) / (logTime[n - 1] - logTime[n - 2]);
+  return level_K_per_W > 0 ? { level_K_per_W, rise_K_per_W, standardError_K_per_W: Math.hypot(noise_K_per_W, remaining), samples: 3 } : undefined;
 }
 
 /**
