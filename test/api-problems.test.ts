@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { LightMyRequestResponse } from 'fastify';
 import { errorCatalogue } from '../shared/errors/error-catalogue.js';
+import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
 import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
 import { syntheticTransientCsv } from './support/synthetic-upload.js';
 
@@ -66,8 +67,10 @@ describe('with a real Redis', () => {
     const lines = small.toString('utf8').split('\n');
     lines[5] = lines[5].replace(/,.*/, ',twelve');
     const problem = expectProblem(await upload(context, 'sample_id=S1&power_W=50', lines.join('\n')), 400, 'INPUT_NOT_NUMERIC');
-    // A raw body is named after its sample (<sample_id>.csv).
-    expect(problem).toMatchObject({ line: 6, column: 'temperature_C', file: 'S1.csv' });
+    // A raw body is named after its sample (<sample_id>.csv) for its netlists; errors say it is the body, so nobody looks for such a file.
+    expect(problem).toMatchObject({ line: 6, column: 'temperature_C', file: 'upload body (named S1.csv)' });
+    const named = expectProblem(await upload(context, 'sample_id=S1&power_W=50&file_name=bench-7.csv', lines.join('\n')), 400, 'INPUT_NOT_NUMERIC');
+    expect(named.file).toBe('bench-7.csv');
   });
 
   it("keeps a caller's X-Request-Id and echoes it; makes one up for a missing or odd one", async () => {
@@ -133,7 +136,7 @@ describe('with a real Redis', () => {
     for (const text of badCycleCounts) {
       const uploadsBefore = (await context.store.listUploads()).length;
       const problem = expectProblem(await upload(context, 'sample_id=S-cc&power_W=50', Buffer.concat([Buffer.from(`# cycle_count: ${text}\n`), small])), 400, 'CYCLE_COUNT_INVALID');
-      expect(problem.file).toBe('S-cc.csv');
+      expect(problem.file).toBe('upload body (named S-cc.csv)');
       expect(problem.detail).toBe(`the file's "# cycle_count:" line (in JSON, "meta": {"cycle_count"}) is ${JSON.stringify(text)}, not digits only`);
       expect((await context.store.listUploads()).length).toBe(uploadsBefore);
     }
@@ -169,7 +172,7 @@ describe('with a real Redis', () => {
     const ambiguous = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');
     expect(ambiguous.detail).toContain('write 1250 or 1.25');
     const twice = expectProblem(await upload(context, 'sample_id=S-dup', Buffer.concat([Buffer.from('# power_W: 50\n# power_W: 55\n'), small])), 400, 'INPUT_DUPLICATE_METADATA');
-    expect(twice).toMatchObject({ line: 2, file: 'S-dup.csv' });
+    expect(twice).toMatchObject({ line: 2, file: 'upload body (named S-dup.csv)' });
     expect(twice.detail).toContain('line 1');
     // Neither media type nor file name names the format: the leading [ does.
     const form = multipart([
@@ -289,6 +292,50 @@ describe('with a real Redis', () => {
     const accepted = await upload(context, `sample_id=S-v&power_W=50&calibration_id=${calibration_id}`, voltage);
     expect(accepted.statusCode, accepted.body).toBe(202);
     expect((await context.store.getUpload(accepted.json().upload_id))?.calibration_id).toBe(calibration_id);
+  });
+
+  it('422 at upload, storing nothing, for voltages the calibration does not cover, stored or inline, as the analysis would fail later', async () => {
+    // A sweep of 25..35 degC (0.70..0.68 V) against a transient that starts far hotter: beyond the range and its margin.
+    const temperature_C = [25, 27, 29, 31, 33, 35];
+    const voltageAt = (t: number) => 0.7 - 0.002 * (t - 25);
+    const fitted = await context.app.inject({
+      method: 'POST',
+      url: '/v1/calibrations',
+      headers: bearer('bench'),
+      payload: { model: 'linear', points: { temperature_C, voltage_V: temperature_C.map(voltageAt) } },
+    });
+    expect(fitted.statusCode, fitted.body).toBe(201);
+    const lines = small.toString('utf8').trim().split('\n');
+    const voltage = ['time_s,voltage_V', ...lines.slice(1).map((line) => `${line.split(',')[0]},${voltageAt(Number(line.split(',')[1])).toFixed(7)}`)].join('\n');
+    const uploadsBefore = (await context.store.listUploads()).length;
+    const byId = expectProblem(await upload(context, `sample_id=S-vr&power_W=50&calibration_id=${fitted.json().calibration_id}`, voltage), 422, 'CALIBRATION_OUT_OF_RANGE');
+    // The wording of the analysis's own conversion (shared/numerics/tsp-calibration.ts voltageToTemperature).
+    expect(byId.detail).toMatch(/ V at t = .* lies outside the calibrated [\d.]+\.\.0\.7 V/);
+    expect(byId).toMatchObject({ file: 'upload body (named S-vr.csv)', column: 'voltage_V' });
+
+    const inline = fitCalibration(Float64Array.from([25, 28, 31, 34]), Float64Array.from([25, 28, 31, 34].map(voltageAt)), 'linear');
+    const calibrationsBefore = (await context.store.listCalibrations()).length;
+    const form = multipart([
+      { name: 'meta', value: JSON.stringify({ sample_id: 'S-vr', power_W: 50, calibration: inline }) },
+      { name: 'file', value: voltage, filename: 'vr.csv', type: 'text/csv' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(expectProblem(response, 422, 'CALIBRATION_OUT_OF_RANGE').file).toBe('vr.csv');
+    expect((await context.store.listCalibrations()).length).toBe(calibrationsBefore);
+    expect((await context.store.listUploads()).length).toBe(uploadsBefore);
+  });
+
+  it('400 PARAM_INVALID at upload, storing nothing, for an early-time window outside the record, as the analysis would fail later', async () => {
+    const last_s = Number(small.toString('utf8').trim().split('\n').at(-1)!.split(',')[0]);
+    const uploadsBefore = (await context.store.listUploads()).length;
+    const late = expectProblem(await upload(context, `sample_id=S-win&power_W=50&early_time_start_s=${last_s + 500}`, small), 400, 'PARAM_INVALID');
+    expect(late.detail).toContain(`early_time_start_s = ${last_s + 500} s is after the last sample`);
+    expect(late).toMatchObject({ file: 'upload body (named S-win.csv)', column: 'early_time_start_s' });
+    const early = expectProblem(await upload(context, 'sample_id=S-win&power_W=50&early_time_end_s=1e-9', small), 400, 'PARAM_INVALID');
+    expect(early.detail).toContain('is before the first sample');
+    expectProblem(await upload(context, `sample_id=S-win&power_W=50&early_time_start_s=${last_s}`, small), 400, 'PARAM_INVALID');
+    expect((await context.store.listUploads()).length).toBe(uploadsBefore);
+    expect((await upload(context, 'sample_id=S-win&power_W=50&early_time_start_s=2e-5&early_time_end_s=2e-4', small)).statusCode).toBe(202);
   });
 });
 

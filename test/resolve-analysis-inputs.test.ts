@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { resolveAnalysisInputs } from '../shared/analysis/resolve-analysis-inputs.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
+import { extrapolateSqrtTime } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 
 const rows = Array.from({ length: 31 }, (_, i) => `${1e-6 * 10 ** (i / 10)};${(80 - i).toFixed(1).replace('.', ',')}`);
@@ -74,6 +75,19 @@ describe('resolveAnalysisInputs from the file header', () => {
     const error = catchHeatpathError(() => resolveAnalysisInputs(fileWith('# power_W: 50', '# kind: warming'), {}, 'bench.csv'));
     expect(error.code).toBe('PARAM_INVALID');
     expect(error.detail).toBe('kind (from the file\'s "# kind: warming" line): must be one of "cooling", "heating"');
+  });
+
+  it('refuses an early-time window outside the record before any analysis, in the words of the sqrt(t) fit itself', () => {
+    // *common practice*: a fit window must hold samples of the record it fits (the record here runs from 1 us to 1 ms).
+    const file = fileWith('# power_W: 50');
+    const late = catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_start_s: 500 } }, 'bench.csv'));
+    expect(late).toMatchObject({ code: 'PARAM_INVALID', location: { file: 'bench.csv', column: 'early_time_start_s' } });
+    expect(late.detail).toBe('early_time_start_s = 500 s is after the last sample (the record runs from 0.000001 s to 0.001 s): give a start within the record, in seconds');
+    const fit = catchHeatpathError(() => extrapolateSqrtTime(file.time_s, file.channels[0].values, { noise_rms: 0.01, start_s: 500 }));
+    expect(fit.detail).toBe(late.detail);
+    expect(catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_end_s: 1e-7 } }, 'bench.csv')).detail).toMatch(/^early_time_end_s = 1e-7 s is before the first sample/);
+    expect(catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_start_s: 2e-4, early_time_end_s: 1e-4 } }, 'bench.csv')).detail).toMatch(/must be before early_time_end_s/);
+    expect(resolveAnalysisInputs(file, { parameters: { early_time_start_s: 2e-6, early_time_end_s: 1e-4 } }, 'bench.csv').parameters).toMatchObject({ early_time_start_s: 2e-6 });
   });
 
   it('says when a given power or kind contradicts the header line, and uses the given one', () => {

@@ -75,7 +75,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     created_at: createdAt,
   };
   return file.channels.map((channel) => {
-    const context = { file: input.fileName, column: file.channels.length > 1 ? `${file.quantity}@${channel.name}` : file.quantity };
+    const context = channelLocation(file, channel.name, input.fileName);
     try {
       const channelPower = channelPowers?.get(channel.name);
       const channelPower_W = channelPower ? heatingPower_W(channelPower) : power_W;
@@ -87,6 +87,11 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
       throw error;
     }
   });
+}
+
+/** Where a channel's own error lies: its column (`voltage_V@M21`, or the quantity for a file of one channel). */
+export function channelLocation(file: TransientFile, channelName: string, fileName: string): { file: string; column: string } {
+  return { file: fileName, column: file.channels.length > 1 ? `${file.quantity}@${channelName}` : file.quantity };
 }
 
 /**

@@ -5,6 +5,7 @@ import type { TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
 import { heatingPower_W } from '../numerics/zth-from-temperature.js';
+import { givenEarlyTimeWindow } from '../numerics/early-time-window.js';
 
 /**
  * The parameters and power an analysis of `file` really uses: what the caller
@@ -26,6 +27,7 @@ export function resolveAnalysisInputs(
   fileName: string,
 ): { parameters: AnalysisParameters; power: Power | undefined; channelPowers: Map<string, Power> | undefined; warnings: string[] } {
   const parameters = resolveParameters(given.parameters ?? {}, file, fileName);
+  checkEarlyTimeWindow(file, parameters, fileName);
   const usesPower = file.quantity !== 'zth_K_per_W';
   const channelPowers = given.power === undefined && usesPower ? channelPowersFromMeta(file, fileName) : undefined;
   const power = given.power ?? (channelPowers ? undefined : powerFromMeta(file, fileName, usesPower));
@@ -119,10 +121,20 @@ function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFi
     const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind: ${file.meta.kind}" line)` : '';
     throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, { file: fileName });
   }
-  if (merged.early_time_start_s !== undefined && merged.early_time_end_s !== undefined && merged.early_time_end_s <= merged.early_time_start_s) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_end_s (${merged.early_time_end_s}) must be later than early_time_start_s (${merged.early_time_start_s})`, { file: fileName });
-  }
   return merged as AnalysisParameters;
+}
+
+/**
+ * A window given outside the record (or around too few samples) fails the analysis; the record's times alone
+ * show it, so it is refused here, where the service also checks an upload before accepting it.
+ */
+function checkEarlyTimeWindow(file: TransientFile, parameters: AnalysisParameters, fileName: string): void {
+  try {
+    givenEarlyTimeWindow(file.time_s, parameters.early_time_start_s, parameters.early_time_end_s);
+  } catch (error) {
+    if (error instanceof HeatpathError) throw new HeatpathError(error.code, error.detail, { ...error.location, file: fileName });
+    throw error;
+  }
 }
 
 /**

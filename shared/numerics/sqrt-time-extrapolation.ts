@@ -1,4 +1,5 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { givenEarlyTimeWindow, MIN_OVERRIDE_WINDOW_SAMPLES } from './early-time-window.js';
 
 /**
  * Early-time correction by the square-root-of-time law (JESD51-14).
@@ -59,8 +60,6 @@ export const MIN_WINDOW_SAMPLES = 8;
  * put the value at t = 0 a tenth of Rth away.
  */
 export const MIN_WINDOW_TIME_RATIO = 1.2;
-/** Fewest samples in a window given by the caller (two parameters and a residual). */
-export const MIN_OVERRIDE_WINDOW_SAMPLES = 3;
 /** A window passes when its reduced chi-square is below 1 + CHI_SQUARE_Z * sqrt(2 / dof). */
 export const CHI_SQUARE_Z = 3;
 /** The noise allowance never drops below this fraction of the curve's value range (rounding of noiseless data). */
@@ -149,13 +148,14 @@ export interface SqrtTimeExtrapolation {
 
 export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, options: SqrtTimeOptions): SqrtTimeExtrapolation {
   checkArguments(time_s, values, options);
+  const given = givenEarlyTimeWindow(time_s, options.start_s, options.end_s);
   const sums = new WindowSums(time_s, values);
   const noiseFloor = NOISE_FLOOR_RELATIVE * valueRange(values);
   const warnings: string[] = [];
   const search = (slopeSign: 1 | -1 | undefined) => {
     let noiseAllowance = Math.max(options.noise_rms, noiseFloor);
     for (let doubling = 0; doubling <= MAX_NOISE_DOUBLINGS; doubling++, noiseAllowance *= 2) {
-      const found = chooseWindow(time_s, sums, options, noiseAllowance, slopeSign);
+      const found = chooseWindow(time_s, sums, options, given, noiseAllowance, slopeSign);
       if (found !== undefined) return { found, doubling, noiseAllowance, slopeSign };
     }
     return undefined;
@@ -251,27 +251,23 @@ function checkArguments(time_s: Float64Array, values: Float64Array, options: Sqr
   if (!(options.noise_rms >= 0) || !Number.isFinite(options.noise_rms)) {
     throw new HeatpathError('PARAM_INVALID', `noise_rms = ${options.noise_rms} must be a finite number >= 0`);
   }
-  for (const [name, bound] of [['early_time_start_s', options.start_s], ['early_time_end_s', options.end_s]] as const) {
-    if (bound !== undefined && !(bound > 0 && Number.isFinite(bound))) {
-      throw new HeatpathError('PARAM_INVALID', `${name} = ${bound} must be a positive number of seconds`, { column: name });
-    }
-  }
-  if (options.start_s !== undefined && options.end_s !== undefined && !(options.start_s < options.end_s)) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${options.start_s} s must be before early_time_end_s = ${options.end_s} s`);
-  }
 }
 
-/** [start, end] sample indices of the window, or undefined when none passes at this noise (and, automatic, has the slope sign). */
-function chooseWindow(time_s: Float64Array, sums: WindowSums, options: SqrtTimeOptions, noise: number, slopeSign: 1 | -1 | undefined): [number, number] | undefined {
+/**
+ * [start, end] sample indices of the window, or undefined when none passes at this noise (and, automatic, has the slope sign).
+ * `given`: the indices of the bounds the caller gave (givenEarlyTimeWindow).
+ */
+function chooseWindow(
+  time_s: Float64Array,
+  sums: WindowSums,
+  options: SqrtTimeOptions,
+  given: { start?: number; end?: number },
+  noise: number,
+  slopeSign: 1 | -1 | undefined,
+): [number, number] | undefined {
   const count = time_s.length;
-  const fixedStart = options.start_s === undefined ? undefined : firstIndexAtOrAfter(time_s, options.start_s);
-  const fixedEnd = options.end_s === undefined ? undefined : lastIndexAtOrBefore(time_s, options.end_s);
-  if (fixedStart !== undefined && fixedEnd !== undefined) {
-    if (fixedEnd - fixedStart + 1 < MIN_OVERRIDE_WINDOW_SAMPLES) {
-      throw new HeatpathError('PARAM_INVALID', `the early-time window ${options.start_s} s to ${options.end_s} s holds fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples`);
-    }
-    return [fixedStart, fixedEnd];
-  }
+  const { start: fixedStart, end: fixedEnd } = given;
+  if (fixedStart !== undefined && fixedEnd !== undefined) return [fixedStart, fixedEnd];
 
   const passes = (start: number, end: number) => sums.passes(start, end, noise) && (slopeSign === undefined || sums.slopeSign(start, end) === slopeSign);
   const firstPositive = time_s.findIndex((t) => t > 0);
@@ -372,18 +368,6 @@ function firstIndexAtOrAfterTime(time_s: Float64Array, t_s: number): number {
     else high = middle;
   }
   return low;
-}
-
-function firstIndexAtOrAfter(time_s: Float64Array, bound_s: number): number {
-  const index = time_s.findIndex((t) => t >= bound_s);
-  if (index < 0) throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${bound_s} s is after the last sample`, { column: 'early_time_start_s' });
-  return index;
-}
-
-function lastIndexAtOrBefore(time_s: Float64Array, bound_s: number): number {
-  const index = time_s.findLastIndex((t) => t <= bound_s);
-  if (index < 0) throw new HeatpathError('PARAM_INVALID', `early_time_end_s = ${bound_s} s is before the first sample`, { column: 'early_time_end_s' });
-  return index;
 }
 
 function valueRange(values: Float64Array): number {

@@ -4,7 +4,11 @@ import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../../shared/input/cycle-count.js';
 import { decodeInputText } from '../../../shared/input/decode-input-text.js';
 import { parseTransient, transientFormatOf } from '../../../shared/input/parse-transient.js';
-import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
+import { validateCalibration, voltageToTemperature } from '../../../shared/numerics/tsp-calibration.js';
+import type { TransientFile } from '../../../shared/input/transient-file.js';
+import type { Calibration } from '../../../shared/schemas/calibration.js';
+import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
+import { channelLocation } from '../../../shared/analysis/analyze-transient-file.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
 import type { ApiKey } from '../../config/api-key-list.js';
@@ -48,18 +52,18 @@ export async function acceptTransientUpload(
 ): Promise<{ answer: UploadAnswer; replayed: boolean }> {
   const { store, log } = deps;
   const { metadata } = upload;
-  const transient = parseTransient(upload.bytes, upload.fileName, upload.format);
-  const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient.meta, upload.fileName));
+  const transient = parseTransient(upload.bytes, upload.sourceName, upload.format);
+  const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient.meta, upload.sourceName));
   const { parameters, power: resolvedPower } = resolveAnalysisInputs(
     transient,
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
-    upload.fileName,
+    upload.sourceName,
   );
   const power = resolvedPower ?? null;
-  const calibrationId = await calibrationIdOf(store, metadata, apiKey);
-  if (transient.quantity === 'voltage_V' && calibrationId === null) {
-    throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.fileName });
-  }
+  const calibration = await calibrationOf(store, metadata);
+  if (transient.quantity === 'voltage_V') checkVoltagesCalibrated(transient, calibration, upload.sourceName);
+  // Stored only once the upload is known good: a refused upload leaves nothing behind.
+  const calibrationId = calibration === null ? null : calibration.stored ? calibration.id : (await store.putCalibration(calibration.calibration, apiKey.name)).calibration_id;
   const inputSha256 = sha256Hex(upload.bytes);
   const jobId = jobIdFor({ input_sha256: inputSha256, sample_id: metadata.sample_id, parameters, power, calibration_sha256: calibrationId });
   const describe = (record: UploadRecord, state: JobState): UploadAnswer => ({
@@ -200,7 +204,7 @@ async function requireUpload(store: TransientStore, uploadId: string): Promise<U
 
 /** As the parser decides when not told. */
 function formatOf(upload: UploadRequest): UploadRecord['format'] {
-  return upload.format ?? transientFormatOf(decodeInputText(upload.bytes, upload.fileName));
+  return upload.format ?? transientFormatOf(decodeInputText(upload.bytes, upload.sourceName));
 }
 
 /** The request's cycle count before the file's, as for power and parameters; a difference is worth a warning, not a refusal. */
@@ -222,16 +226,37 @@ function powerOf(metadata: UploadMetadata): Power | null {
   return null;
 }
 
-async function calibrationIdOf(store: TransientStore, metadata: UploadMetadata, apiKey: ApiKey): Promise<string | null> {
+/** The calibration the request names (stored) or carries (inline, not stored yet); null when it gives none. */
+async function calibrationOf(store: TransientStore, metadata: UploadMetadata): Promise<{ calibration: Calibration; stored: boolean; id: string } | null> {
   if (metadata.calibration !== undefined && metadata.calibration_id !== undefined) {
     throw new HeatpathError('REQUEST_INVALID', 'give either calibration_id or an inline calibration, not both');
   }
-  if (metadata.calibration !== undefined) return (await store.putCalibration(validateCalibration(metadata.calibration, 'calibration'), apiKey.name)).calibration_id;
-  if (metadata.calibration_id === undefined) return null;
-  if (!(await store.getCalibration(metadata.calibration_id))) {
-    throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${metadata.calibration_id} is not stored`);
+  if (metadata.calibration !== undefined) {
+    const calibration = validateCalibration(metadata.calibration, 'calibration');
+    return { calibration, stored: false, id: calibrationIdOf(calibration) };
   }
-  return metadata.calibration_id;
+  if (metadata.calibration_id === undefined) return null;
+  const record = await store.getCalibration(metadata.calibration_id);
+  if (!record) throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${metadata.calibration_id} is not stored`);
+  return { calibration: record.calibration, stored: true, id: record.calibration_id };
+}
+
+/**
+ * Voltages the calibration does not cover fail the analysis (CALIBRATION_OUT_OF_RANGE): refused now, with the
+ * conversion the analysis makes, so that the bench hears of it instead of a job failing later.
+ */
+function checkVoltagesCalibrated(transient: TransientFile, calibration: { calibration: Calibration } | null, fileName: string): void {
+  if (calibration === null) {
+    throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: fileName });
+  }
+  for (const channel of transient.channels) {
+    try {
+      voltageToTemperature(calibration.calibration, transient.time_s, channel.values);
+    } catch (error) {
+      if (error instanceof HeatpathError && error.location.file === undefined) throw new HeatpathError(error.code, error.detail, channelLocation(transient, channel.name, fileName));
+      throw error;
+    }
+  }
 }
 
 /** The analysis parameters named in the request; the rest come from the file's metadata or the defaults (resolveAnalysisInputs). */

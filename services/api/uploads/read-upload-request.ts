@@ -10,7 +10,10 @@ import { withRequestCycleCount } from './request-cycle-count.js';
 /** An upload as received, before anything is checked but its metadata. */
 export interface UploadRequest {
   bytes: Buffer;
+  /** The name results and netlists carry (stored as the upload's file_name). */
   fileName: string;
+  /** The name errors give the upload: fileName, unless that was made up for a raw body, which is then called what it is. */
+  sourceName: string;
   /** From the media type or file name; undefined lets the parser decide. */
   format: TransientFormat | undefined;
   metadata: UploadMetadata;
@@ -23,8 +26,11 @@ export function readRawUpload(request: FastifyRequest, query: Partial<UploadQuer
   const format = rawFormats[request.mediaType ?? ''];
   const bytes = Buffer.isBuffer(request.body) ? request.body : Buffer.alloc(0);
   const metadata = validateMetadata({ ...query }, 'querystring');
+  if (metadata.file_name !== undefined) return { bytes, format, fileName: metadata.file_name, sourceName: metadata.file_name, metadata };
   // Named after the sample: the result's netlists name their subcircuits after the file, and a SPICE deck that includes several devices needs them apart.
-  return { bytes, format, fileName: metadata.file_name ?? `${metadata.sample_id}.${format}`, metadata };
+  // Errors say it is the body, not a file of that name the bench would look for.
+  const fileName = `${metadata.sample_id}.${format}`;
+  return { bytes, format, fileName, sourceName: `upload body (named ${fileName})`, metadata };
 }
 
 /**
@@ -53,7 +59,8 @@ export async function readMultipartUpload(request: FastifyRequest, query: Partia
   if (file === undefined) throw new HeatpathError('REQUEST_INVALID', 'multipart body has no part named "file"');
   const format = rawFormats[file.mimeType] ?? formatFromName(file.fileName);
   const metadata = validateMetadata({ ...query, ...mergeFields(fields) }, 'multipart');
-  return { bytes: file.bytes, fileName: metadata.file_name ?? file.fileName, format, metadata };
+  const fileName = metadata.file_name ?? file.fileName;
+  return { bytes: file.bytes, fileName, sourceName: fileName, format, metadata };
 }
 
 function mergeFields(fields: Record<string, string | string[]>): Record<string, unknown> {
