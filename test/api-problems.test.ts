@@ -136,7 +136,7 @@ describe('with a real Redis', () => {
     for (const text of badCycleCounts) {
       const uploadsBefore = (await context.store.listUploads()).length;
       const problem = expectProblem(await upload(context, 'sample_id=S-cc&power_W=50', Buffer.concat([Buffer.from(`# cycle_count: ${text}\n`), small])), 400, 'CYCLE_COUNT_INVALID');
-      expect(problem.file).toBe('upload body (named S-cc.csv)');
+      expect(problem).toMatchObject({ file: 'upload body (named S-cc.csv)', line: 1 });
       expect(problem.detail).toBe(`the file's "# cycle_count:" line (in JSON, "meta": {"cycle_count"}) is ${JSON.stringify(text)}, not digits only`);
       expect((await context.store.listUploads()).length).toBe(uploadsBefore);
     }
@@ -171,6 +171,10 @@ describe('with a real Redis', () => {
     // 1,250 is 1250 or 1.25 (SI Brochure 9th ed., 5.4.4, memory: digits are grouped by spaces, as the comma may be the decimal sign).
     const ambiguous = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');
     expect(ambiguous.detail).toContain('write 1250 or 1.25');
+    // The README promises file, line and column: the header line's own number.
+    expect(ambiguous).toMatchObject({ file: 'upload body (named S-amb.csv)', line: 1 });
+    const second = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# kind: cooling\n# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');
+    expect(second.line).toBe(2);
     const twice = expectProblem(await upload(context, 'sample_id=S-dup', Buffer.concat([Buffer.from('# power_W: 50\n# power_W: 55\n'), small])), 400, 'INPUT_DUPLICATE_METADATA');
     expect(twice).toMatchObject({ line: 2, file: 'upload body (named S-dup.csv)' });
     expect(twice.detail).toContain('line 1');

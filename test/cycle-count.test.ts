@@ -10,6 +10,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { cycleCountFromMeta, readCycleCount } from '../shared/input/cycle-count.js';
+import { parseTransient } from '../shared/input/parse-transient.js';
+import type { TransientMetadata } from '../shared/input/transient-file.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 
 describe('readCycleCount', () => {
@@ -36,14 +38,18 @@ describe('readCycleCount', () => {
 
 describe('cycleCountFromMeta', () => {
   it('reads the line, is null without one or with an empty one, and names the file and its "# cycle_count:" line when bad', () => {
-    expect(cycleCountFromMeta({ cycle_count: '60000' }, 'm31.csv')).toBe(60000);
-    expect(cycleCountFromMeta({}, 'm31.csv')).toBeNull();
-    expect(cycleCountFromMeta({ cycle_count: '' }, 'm31.csv')).toBeNull();
+    const meta = (cycle_count?: string): TransientMetadata => (cycle_count === undefined ? { meta: {}, meta_lines: {} } : { meta: { cycle_count }, meta_lines: { cycle_count: 3 } });
+    expect(cycleCountFromMeta(meta('60000'), 'm31.csv')).toBe(60000);
+    expect(cycleCountFromMeta(meta(), 'm31.csv')).toBeNull();
+    expect(cycleCountFromMeta(meta(''), 'm31.csv')).toBeNull();
     for (const text of ['20.000', '40,000', '2e4']) {
-      const error = catchHeatpathError(() => cycleCountFromMeta({ cycle_count: text }, 'm31.csv'));
+      const error = catchHeatpathError(() => cycleCountFromMeta(meta(text), 'm31.csv'));
       expect(error.code).toBe('CYCLE_COUNT_INVALID');
-      expect(error.location).toEqual({ file: 'm31.csv' });
-      expect(error.message).toMatch(/^m31\.csv: .*"# cycle_count:" line .* is "/);
+      expect(error.location).toEqual({ file: 'm31.csv', line: 3 });
+      expect(error.message).toMatch(/^m31\.csv, line 3: .*"# cycle_count:" line .* is "/);
     }
+    // A parsed file gives the line it read the key from (here the second of the header).
+    const parsed = parseTransient(['# sample: M31', '# cycle_count: 40,000', 'time_s,temperature_C', ...Array.from({ length: 30 }, (_, i) => `${1e-5 * 10 ** (i / 10)},${80 - i}`)].join('\n'), 'm31.csv');
+    expect(catchHeatpathError(() => cycleCountFromMeta(parsed, 'm31.csv')).location).toEqual({ file: 'm31.csv', line: 2 });
   });
 });

@@ -114,6 +114,7 @@ describe('parseTransient CSV', () => {
     expect(parsed.channels[0].name).toBe('1');
     expect(parsed.channels[0].values[0]).toBeCloseTo(0.7, 6);
     expect(parsed.meta).toEqual({ sample: 'IGBT module 7', bench: 'B2' });
+    expect(parsed.meta_lines).toEqual({ sample: 1, bench: 2 });
   });
 
   it.each([
@@ -202,6 +203,8 @@ describe('parseTransient JSON', () => {
     expect(parsed.channels[0]).toMatchObject({ name: '1' });
     expect(parsed.channels[0].values[0]).toBe(80 - 1e-6);
     expect(parsed.meta).toEqual({ sample: 'D7', run: '3' });
+    // The object starts on line 2, after the blank first line.
+    expect(parsed.meta_lines).toEqual({ sample: 2, run: 2 });
   });
 
   it('reads a channel map', () => {
@@ -290,6 +293,12 @@ describe('parseTransient on repeated metadata and keys', () => {
     ['time_s', `{\n"time_s": ${JSON.stringify(times)},\n"temperature_C": ${JSON.stringify(times)},\n"time_s": ${JSON.stringify(times)}\n}`, 'INPUT_DUPLICATE_COLUMN', 4, 'time_s', '"time_s" is on line 2 and again on line 4'],
     ['a channel', `{"time_s": ${JSON.stringify(times)},\n"voltage_V": {"D1": ${JSON.stringify(times)},\n"D1": ${JSON.stringify(times)}}}`, 'INPUT_DUPLICATE_COLUMN', 3, 'voltage_V@D1', '"D1" in "voltage_V" is on line 2 and again on line 3'],
     ['a meta key', `{"time_s": ${JSON.stringify(times)}, "zth_K_per_W": ${JSON.stringify(times)},\n"meta": {"power_W": 50,\n "power_W": 55}}`, 'INPUT_DUPLICATE_METADATA', 3, 'meta@power_W', '"power_W" in "meta" is on line 2 and again on line 3'],
+    // One line, as JSON.stringify writes it: the columns tell the two apart (the second "time_s" follows the first key, its array and the second key).
+    [
+      'time_s on one line',
+      `{"time_s": [1,2], "temperature_C": [3,4], "time_s": [5,6]}`,
+      'INPUT_DUPLICATE_COLUMN', 1, 'time_s', '"time_s" is on line 1 at column 2 and again at column 43',
+    ],
   ])('refuses JSON that names %s twice, naming both lines', (_what, text, code, line, column, detail) => {
     const error = catchHeatpathError(() => parseTransient(text, 'twice.json'));
     expect(error.code).toBe(code);

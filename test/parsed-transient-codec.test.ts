@@ -17,6 +17,19 @@ import { sha256Hex, TransientStore } from '../services/store/transient-store.js'
 
 const fixture = (name: string) => readFileSync(new URL(`./fixtures/demo-lab/${name}`, import.meta.url));
 
+/** The encoded parse with its JSON header changed by `change`, the doubles moved to the new aligned start. */
+function withHeader(encoded: Uint8Array, change: (header: Record<string, unknown>) => Record<string, unknown>): Uint8Array {
+  const aligned = (length: number) => Math.ceil(length / 8) * 8;
+  const headerLength = new DataView(encoded.buffer, encoded.byteOffset).getUint32(0, true);
+  const header = Buffer.from(JSON.stringify(change(JSON.parse(Buffer.from(encoded.subarray(4, 4 + headerLength)).toString('utf8')))));
+  const data = encoded.subarray(aligned(4 + headerLength));
+  const out = new Uint8Array(aligned(4 + header.length) + data.length);
+  new DataView(out.buffer).setUint32(0, header.length, true);
+  out.set(header, 4);
+  out.set(data, aligned(4 + header.length));
+  return out;
+}
+
 describe('parsed transient codec', () => {
   it('round-trips every double, channel, quantity and metadata line of the demo files (CSV with two channels, JSON)', () => {
     for (const name of ['fh-tt1_m21-m22_cooling.csv', 'fh-tt2_q15_heating.json', 'fh-tt1_m07_cooling.csv']) {
@@ -28,7 +41,7 @@ describe('parsed transient codec', () => {
 
   it('keeps values that decimal text would round: -0, subnormals and 17-digit doubles', () => {
     const time_s = Float64Array.from([5e-324, 1e-6, 0.1 + 0.2]);
-    const file = { quantity: 'zth_K_per_W' as const, time_s, channels: [{ name: '1', values: Float64Array.from([-0, Number.MIN_VALUE, 1 / 3]) }], meta: { kind: 'cooling' } };
+    const file = { quantity: 'zth_K_per_W' as const, time_s, channels: [{ name: '1', values: Float64Array.from([-0, Number.MIN_VALUE, 1 / 3]) }], meta: { kind: 'cooling' }, meta_lines: { kind: 1 } };
     const decoded = decodeParsedTransient(encodeParsedTransient(file))!;
     expect(Object.is(decoded.channels[0].values[0], -0)).toBe(true);
     expect(Array.from(decoded.time_s)).toEqual(Array.from(time_s));
@@ -56,6 +69,9 @@ describe('parsed transient codec', () => {
     const header = otherByteOrder.indexOf('"LE"') >= 0 ? otherByteOrder.indexOf('"LE"') : otherByteOrder.indexOf('"BE"');
     otherByteOrder.write(otherByteOrder.toString('utf8', header, header + 4) === '"LE"' ? '"BE"' : '"LE"', header);
     expect(decodeParsedTransient(otherByteOrder)).toBeNull();
+    // A header without the metadata's lines (as the layout before them wrote it) is not vouched for either; rewritten unchanged, it is.
+    expect(decodeParsedTransient(withHeader(encoded, (header) => header))).toEqual(decodeParsedTransient(encoded));
+    expect(decodeParsedTransient(withHeader(encoded, ({ meta_lines: _lines, ...older }) => older))).toBeNull();
   });
 });
 

@@ -46,7 +46,8 @@ describe('resolveAnalysisInputs from the file header', () => {
   ])('refuses %s as ambiguous, naming the key, the value and both readings', (line, key, thousands, decimal) => {
     const error = catchHeatpathError(() => resolveAnalysisInputs(fileWith(line, '# voltage_V: 2'), {}, 'bench.csv'));
     expect(error.code).toBe('INPUT_AMBIGUOUS_NUMBER');
-    expect(error.location).toEqual({ file: 'bench.csv' });
+    // The key's own line: the first of the file here.
+    expect(error.location).toEqual({ file: 'bench.csv', line: 1 });
     expect(error.detail).toContain(key);
     expect(error.detail).toContain(`write ${thousands} or ${decimal}`);
   });
@@ -65,7 +66,13 @@ describe('resolveAnalysisInputs from the file header', () => {
     expect(channelError.detail).toContain('power_W@A');
     const times = rows.map((row) => Number(row.split(';')[0]));
     const json = (meta: object) => parseTransient(JSON.stringify({ time_s: times, temperature_C: times.map((_, i) => 80 - i), meta }), 'bench.json');
+    expect(channelError.location).toEqual({ file: 'pair.csv', line: 1 });
     expect(catchHeatpathError(() => resolveAnalysisInputs(json({ power_W: '1,250' }), {}, 'bench.json')).code).toBe('INPUT_AMBIGUOUS_NUMBER');
+    // JSON.stringify writes one line: the key's line is 1; in a file written over lines, the line of the "meta" key's own line.
+    expect(catchHeatpathError(() => resolveAnalysisInputs(json({ power_W: '1,250' }), {}, 'bench.json')).location).toEqual({ file: 'bench.json', line: 1 });
+    const spread = parseTransient(JSON.stringify({ time_s: times, temperature_C: times.map((_, i) => 80 - i), meta: { kind: 'cooling', power_W: '1,250' } }, null, 1), 'bench.json');
+    const spreadLine = JSON.stringify({ time_s: times, temperature_C: times.map((_, i) => 80 - i), meta: { kind: 'cooling', power_W: '1,250' } }, null, 1).split('\n').findIndex((line) => line.includes('"power_W"')) + 1;
+    expect(catchHeatpathError(() => resolveAnalysisInputs(spread, {}, 'bench.json')).location).toEqual({ file: 'bench.json', line: spreadLine });
     expect(resolveAnalysisInputs(json({ power_W: '51,3' }), {}, 'bench.json').power).toEqual({ power_W: 51.3 });
     expect(resolveAnalysisInputs(json({ power_W: 1250 }), {}, 'bench.json').power).toEqual({ power_W: 1250 });
   });

@@ -4,7 +4,7 @@ import { resultArtifacts } from '../../shared/analysis/result-artifacts.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseTransient } from '../../shared/input/parse-transient.js';
-import type { TransientFile } from '../../shared/input/transient-file.js';
+import type { TransientFile, TransientMetadata } from '../../shared/input/transient-file.js';
 import { isUserError, userErrorLine } from './user-error-line.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
@@ -33,7 +33,7 @@ ${analysisParametersUsage}
 
 export interface AnalyzeRun {
   /** meta: the file's `# key: value` lines, which results do not carry. */
-  results: { file: string; result: AnalysisResult; meta: Record<string, string>; outDir?: string }[];
+  results: { file: string; result: AnalysisResult; meta: TransientMetadata; outDir?: string }[];
   /** Files the user must fix: the others are analysed all the same. */
   failures: HeatpathError[];
 }
@@ -104,11 +104,11 @@ export async function analyzeFiles(files: (string | ReadTransientFile)[], option
   for (const [index, entry] of files.entries()) {
     const file = names[index];
     let channelResults: AnalysisResult[];
-    let meta: Record<string, string>;
+    let meta: TransientMetadata;
     try {
       const bytes = typeof entry !== 'string' ? entry.bytes : entry === STANDARD_INPUT_ARGUMENT ? await readStandardInput() : await readInputFile(file);
       const parsed = typeof entry === 'string' ? parseTransient(bytes, file) : entry.parsed;
-      meta = parsed.meta;
+      meta = { meta: parsed.meta, meta_lines: parsed.meta_lines };
       channelResults = analyzeTransientFile(
         { bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },
         options.createdAt,

@@ -8,13 +8,14 @@ import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';
 import { resultCumulativeStructure } from '../../shared/analysis/result-structure-function.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
+import type { TransientMetadata } from '../../shared/input/transient-file.js';
 import type { AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
 
 export interface ComparedMeasurement {
   file: string;
   result: AnalysisResult;
-  meta: Record<string, string>;
+  meta: TransientMetadata;
 }
 
 /**

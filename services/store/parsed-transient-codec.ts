@@ -9,7 +9,7 @@ import { isTransientQuantity, type TransientFile } from '../../shared/input/tran
  * 100 kB CSV is about a tenth of an analysis.
  *
  * Layout: a 4-byte little-endian length L, L bytes of JSON header
- * ({ kept_parse: 1, quantity, meta, channel_names, samples, byte_order,
+ * ({ kept_parse: 2, quantity, meta, meta_lines, channel_names, samples, byte_order,
  * data_sha256 }; kept_parse is this layout's version), zero
  * padding to a multiple of 8, then the time axis and each channel as raw
  * doubles in the writer's byte order. The file is not fsynced (it can be
@@ -18,12 +18,13 @@ import { isTransientQuantity, type TransientFile } from '../../shared/input/tran
  * the other byte order, or anything else that does not decode, give null, and
  * the caller parses the raw bytes again rather than analyse wrong samples.
  */
-const LAYOUT_VERSION = 1;
+const LAYOUT_VERSION = 2;
 
 interface ParsedTransientHeader {
   kept_parse: number;
   quantity: string;
   meta: Record<string, string>;
+  meta_lines: Record<string, number>;
   channel_names: string[];
   samples: number;
   byte_order: 'LE' | 'BE';
@@ -39,6 +40,7 @@ export function encodeParsedTransient(file: TransientFile): Uint8Array {
     kept_parse: LAYOUT_VERSION,
     quantity: file.quantity,
     meta: file.meta,
+    meta_lines: file.meta_lines,
     channel_names: file.channels.map((channel) => channel.name),
     samples,
     byte_order: endianness(),
@@ -63,7 +65,7 @@ export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
     const dataStart = alignTo8(4 + headerLength);
     if (
       header.kept_parse !== LAYOUT_VERSION || header.byte_order !== endianness() || !isTransientQuantity(header.quantity) || !Number.isInteger(samples) || samples < 0 ||
-      !Array.isArray(names) || !names.every((name) => typeof name === 'string') || !isStringRecord(header.meta) ||
+      !Array.isArray(names) || !names.every((name) => typeof name === 'string') || !isRecordOf(header.meta, 'string') || !isRecordOf(header.meta_lines, 'number') ||
       bytes.length !== dataStart + (names.length + 1) * samples * 8 ||
       createHash('sha256').update(bytes.subarray(dataStart)).digest('hex') !== header.data_sha256
     ) {
@@ -71,14 +73,14 @@ export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
     }
     // Copy into fresh, aligned arrays: the read buffer's offset need not be a multiple of 8.
     const array = (k: number) => new Float64Array(bytes.buffer.slice(bytes.byteOffset + dataStart + k * samples * 8, bytes.byteOffset + dataStart + (k + 1) * samples * 8));
-    return { quantity: header.quantity, meta: header.meta, time_s: array(0), channels: names.map((name, k) => ({ name, values: array(k + 1) })) };
+    return { quantity: header.quantity, meta: header.meta, meta_lines: header.meta_lines, time_s: array(0), channels: names.map((name, k) => ({ name, values: array(k + 1) })) };
   } catch {
     return null;
   }
 }
 
-function isStringRecord(value: unknown): value is Record<string, string> {
-  return typeof value === 'object' && value !== null && !Array.isArray(value) && Object.values(value).every((entry) => typeof entry === 'string');
+function isRecordOf<T extends 'string' | 'number'>(value: unknown, type: T): value is Record<string, T extends 'string' ? string : number> {
+  return typeof value === 'object' && value !== null && !Array.isArray(value) && Object.values(value).every((entry) => typeof entry === type);
 }
 
 function alignTo8(length: number): number {

@@ -1,7 +1,7 @@
 import { Compile } from 'typebox/compile';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { singleDecimalValue } from '../input/decimal-number-text.js';
-import type { TransientFile } from '../input/transient-file.js';
+import { metadataLocation, type TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
 import { heatingPower_W } from '../numerics/zth-from-temperature.js';
@@ -49,7 +49,7 @@ function channelPowersFromMeta(file: TransientFile, fileName: string): Map<strin
   const channels = file.channels.map((channel) => channel.name);
   const stray = named.find((key) => !channels.includes(key.slice(key.indexOf('@') + 1)));
   if (stray !== undefined) {
-    throw new HeatpathError('POWER_REQUIRED', `the file's "# ${stray}:" line names no channel of the file (its channels: ${channels.join(', ')})`, { file: fileName });
+    throw new HeatpathError('POWER_REQUIRED', `the file's "# ${stray}:" line names no channel of the file (its channels: ${channels.join(', ')})`, metadataLocation(file, stray, fileName));
   }
   return new Map(
     channels.map((name) => {
@@ -119,7 +119,7 @@ function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFi
     const [first] = plainValidationIssues(parametersValidator.Errors(merged), '');
     const where = first?.field.replace(/^\//, '') || 'parameters';
     const source = given.kind === undefined && where === 'kind' ? ` (from the file's "# kind: ${file.meta.kind}" line)` : '';
-    throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, { file: fileName });
+    throw new HeatpathError('PARAM_INVALID', `${where}${source}: ${first?.message ?? 'invalid'}`, source === '' ? { file: fileName } : metadataLocation(file, 'kind', fileName));
   }
   return merged as AnalysisParameters;
 }
@@ -145,7 +145,7 @@ function checkEarlyTimeWindow(file: TransientFile, parameters: AnalysisParameter
  */
 function powerFromMeta(file: TransientFile, fileName: string, required: boolean, channel = '', fileWideHalf = false): Power | undefined {
   const keyOf = (key: string) => (file.meta[key + channel] === undefined && fileWideHalf ? key : key + channel);
-  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataNumber(file.meta[keyOf(key)], key, keyOf(key), fileName) : undefined);
+  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataNumber(file, key, keyOf(key), fileName) : undefined);
   const candidate = file.meta[`power_W${channel}`] !== undefined
     ? { power_W: number('power_W') }
     : file.meta[`current_A${channel}`] !== undefined || file.meta[`voltage_V${channel}`] !== undefined
@@ -157,7 +157,8 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean,
   }
   if (!powerValidator.Check(candidate)) {
     const lines = Object.keys(candidate).map((key) => (file.meta[keyOf(key)] === undefined ? `no "# ${key + channel}:" line` : `"# ${keyOf(key)}: ${file.meta[keyOf(key)]}"`)).join(' and ');
-    throw new HeatpathError('POWER_REQUIRED', `the file gives ${lines}: that is not a positive power_W, or current_A with voltage_V, in plain numbers`, { file: fileName });
+    const firstKey = Object.keys(candidate).map(keyOf).find((key) => file.meta[key] !== undefined)!;
+    throw new HeatpathError('POWER_REQUIRED', `the file gives ${lines}: that is not a positive power_W, or current_A with voltage_V, in plain numbers`, metadataLocation(file, firstKey, fileName));
   }
   return candidate as Power;
 }
@@ -169,11 +170,11 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean,
  * power_W). Anything else is NaN, which the power check refuses with the
  * line's text. `lineKey` is the key as the file writes it (`power_W@M21`).
  */
-function metadataNumber(text: string, key: string, lineKey: string, fileName: string): number {
+function metadataNumber(file: TransientFile, key: string, lineKey: string, fileName: string): number {
   const unit = key.slice(key.lastIndexOf('_') + 1);
-  const value = text.trim().replace(new RegExp(`\\s*${unit}$`), '');
+  const value = file.meta[lineKey].trim().replace(new RegExp(`\\s*${unit}$`), '');
   // Worded for both a CSV's `# key:` line and a JSON "meta" key.
-  return singleDecimalValue(value, `the file's ${lineKey} metadata`, { file: fileName });
+  return singleDecimalValue(value, `the file's ${lineKey} metadata`, metadataLocation(file, lineKey, fileName));
 }
 
 function stripUndefined<T extends object>(value: T): Partial<T> {

@@ -1,5 +1,6 @@
 import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
 import { quoteInputText } from './quote-input-text.js';
+import { metadataLocation, type TransientMetadata } from './transient-file.js';
 
 /** Digits only, with spaces around them: no sign, point, comma, exponent or word. */
 const CYCLE_COUNT_TEXT = /^\s*(\d+)\s*$/;
@@ -27,8 +28,8 @@ export function readCycleCount(text: string, where: string, location: ErrorLocat
  * meta.cycle_count), or null when it has none; a line left empty, as in a
  * bench's template, says nothing either.
  */
-export function cycleCountFromMeta(meta: Record<string, string>, fileName: string): number | null {
-  const text = meta.cycle_count;
+export function cycleCountFromMeta(file: TransientMetadata, fileName: string): number | null {
+  const text = file.meta.cycle_count;
   if (text === undefined || text.trim() === '') return null;
-  return readCycleCount(text, 'the file\'s "# cycle_count:" line (in JSON, "meta": {"cycle_count"})', { file: fileName });
+  return readCycleCount(text, 'the file\'s "# cycle_count:" line (in JSON, "meta": {"cycle_count"})', metadataLocation(file, 'cycle_count', fileName));
 }

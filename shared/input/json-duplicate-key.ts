@@ -5,6 +5,9 @@ export interface JsonDuplicateKey {
   /** Lines (from 1) of the first and the second occurrence. */
   firstLine: number;
   line: number;
+  /** Columns (characters from 1, at the opening quote) of the first and the second occurrence: a one-line JSON has both on line 1. */
+  firstColumn: number;
+  column: number;
 }
 
 const QUOTE = 34;
@@ -19,8 +22,8 @@ const CLOSE_ARRAY = 93;
 
 interface Frame {
   isObject: boolean;
-  /** Keys seen with their lines; null for an array, or an object too deep to look at. */
-  keys: Map<string, number> | null;
+  /** Keys seen with their lines and columns; null for an array, or an object too deep to look at. */
+  keys: Map<string, { line: number; column: number }> | null;
   path: string[];
   /** The last key read in this object: the name of a value that opens a frame. */
   lastKey: string;
@@ -32,16 +35,21 @@ interface Frame {
  * keeps the last value of a repeated key without a word (RFC 8259, 4: names
  * "SHOULD be unique", and parsers differ in which one they keep). One pass
  * over the characters, no values built: arrays of numbers are stepped over
- * as they are read.
+ * as they are read. `onKey` hears of every key of the objects looked at, with
+ * its path and line, up to the first repeated one (the lines of a "meta"
+ * object's keys, for errors about their values).
  */
-export function firstDuplicateJsonKey(text: string, depth: number): JsonDuplicateKey | undefined {
+export function firstDuplicateJsonKey(text: string, depth: number, onKey?: (path: readonly string[], line: number) => void): JsonDuplicateKey | undefined {
   const stack: Frame[] = [];
   let line = 1;
+  let lineStart = 0;
   let expectingKey = false;
   for (let i = 0; i < text.length; i++) {
     const code = text.charCodeAt(i);
-    if (code === NEWLINE) line++;
-    else if (code === QUOTE) {
+    if (code === NEWLINE) {
+      line++;
+      lineStart = i + 1;
+    } else if (code === QUOTE) {
       const start = i;
       for (i++; text.charCodeAt(i) !== QUOTE; i++) if (text.charCodeAt(i) === BACKSLASH) i++;
       if (!expectingKey) continue;
@@ -51,9 +59,11 @@ export function firstDuplicateJsonKey(text: string, depth: number): JsonDuplicat
       const key = raw.includes('\\') ? (JSON.parse(raw) as string) : raw.slice(1, -1);
       frame.lastKey = key;
       if (frame.keys === null) continue;
-      const firstLine = frame.keys.get(key);
-      if (firstLine !== undefined) return { path: [...frame.path, key], firstLine, line };
-      frame.keys.set(key, line);
+      const column = start - lineStart + 1;
+      const first = frame.keys.get(key);
+      if (first !== undefined) return { path: [...frame.path, key], firstLine: first.line, line, firstColumn: first.column, column };
+      frame.keys.set(key, { line, column });
+      onKey?.([...frame.path, key], line);
     } else if (code === OPEN_OBJECT || code === OPEN_ARRAY) {
       const parent = stack[stack.length - 1];
       const path = parent === undefined ? [] : parent.isObject ? [...parent.path, parent.lastKey] : parent.path;

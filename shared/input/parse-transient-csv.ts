@@ -62,6 +62,7 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
     time_s,
     channels: valueColumns.map(({ index, channel }) => ({ name: channel, values: table.columns[index] })),
     meta: table.meta,
+    meta_lines: table.meta_lines,
   };
 }
 

@@ -21,7 +21,7 @@ export function parseTransientJson(text: string, fileName: string): TransientFil
     const found = Array.isArray(root) ? 'an array' : root === null ? 'null' : `a ${typeof root}`;
     throw new HeatpathError('INPUT_BAD_JSON', `the top level is ${found}; it must be an object of named arrays, time_s and one value quantity`, { file: fileName });
   }
-  refuseDuplicateKeys(text, fileName);
+  const metaLines = refuseDuplicateKeys(text, fileName);
   const entries = Object.entries(root as Record<string, unknown>);
   let timeValue: unknown;
   let metaValue: unknown;
@@ -53,20 +53,26 @@ export function parseTransientJson(text: string, fileName: string): TransientFil
     }
   }
   checkTransientTime(time_s, (i) => ({ file: fileName, column: `${TIME_KEY}[${i}]` }));
-  return { quantity, time_s, channels, meta: readMeta(metaValue, fileName) };
+  return { quantity, time_s, channels, meta: readMeta(metaValue, fileName), meta_lines: metaLines };
 }
 
 /**
  * A key named twice (JSON.parse keeps the last value without a word) as an
- * error naming both lines: in "meta" or of "meta" itself a metadata key, else
- * a column (time_s, a quantity, a channel of one).
+ * error naming both places (lines, and columns when both are on one line):
+ * in "meta" or of "meta" itself a metadata key, else a column (time_s, a
+ * quantity, a channel of one). Otherwise the line of each "meta" key, read
+ * in the same pass.
  */
-function refuseDuplicateKeys(text: string, fileName: string): void {
-  const duplicate = firstDuplicateJsonKey(text, 2);
-  if (duplicate === undefined) return;
-  const { path, firstLine, line } = duplicate;
+function refuseDuplicateKeys(text: string, fileName: string): Record<string, number> {
+  const metaLines: Record<string, number> = {};
+  const duplicate = firstDuplicateJsonKey(text, 2, (path, line) => {
+    if (path.length === 2 && path[0] === META_KEY) metaLines[path[1]] = line;
+  });
+  if (duplicate === undefined) return metaLines;
+  const { path, firstLine, line, firstColumn, column } = duplicate;
   const name = path.length > 1 ? `${quoteInputText(path[1])} in ${quoteInputText(path[0])}` : quoteInputText(path[0]);
-  const detail = `key ${name} is on line ${firstLine} and again on line ${line} (JSON keeps only the last)`;
+  const places = firstLine === line ? `on line ${line} at column ${firstColumn} and again at column ${column}` : `on line ${firstLine} and again on line ${line}`;
+  const detail = `key ${name} is ${places} (JSON keeps only the last)`;
   const at = { file: fileName, line, column: shortenInputText(path.join('@')) };
   throw new HeatpathError(path[0] === META_KEY ? 'INPUT_DUPLICATE_METADATA' : 'INPUT_DUPLICATE_COLUMN', detail, at);
 }

@@ -25,6 +25,8 @@ export interface NumericCsvTable {
   /** Physical line number (from 1) of each data row. */
   rowLines: Int32Array;
   meta: Record<string, string>;
+  /** The line of each key's first `# key:` line. */
+  meta_lines: Record<string, number>;
 }
 
 const SEPARATORS = [',', ';', '\t'] as const;
@@ -53,7 +55,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
   if (headerText === undefined) throw new HeatpathError('INPUT_EMPTY', 'no header line and no data (only blank or comment lines)', { file: fileName });
 
   const separator = detectSeparator(headerText);
-  const metaValues = metadataOf(meta, separator, fileName);
+  const metadata = metadataOf(meta, separator, fileName);
   const names = headerText.split(separator).map(cleanField);
   // Spreadsheets often end every line with a separator or a few (empty columns
   // beside the table): empty last header names are that, not columns.
@@ -94,7 +96,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
     for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
     rowLines[rows++] = lines.number;
   }
-  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), meta: metaValues };
+  return { names, columns: columns.map((column) => column.slice(0, rows)), rowLines: rowLines.slice(0, rows), ...metadata };
 }
 
 /**
@@ -126,7 +128,7 @@ interface MetaLine {
  * silently with a value the file also contradicts. Any other key is the
  * bench's own (a note over several lines): its values are kept, one per line.
  */
-function metadataOf(meta: MetaLine[], separator: string, fileName: string): Record<string, string> {
+function metadataOf(meta: MetaLine[], separator: string, fileName: string): Pick<NumericCsvTable, 'meta' | 'meta_lines'> {
   const first = new Map<string, { value: string; line: number }>();
   for (const { key, value: written, line } of meta) {
     // A spreadsheet pads every line to its columns, "# kind: cooling;" among them: the padding is not part of the value.
@@ -143,7 +145,10 @@ function metadataOf(meta: MetaLine[], separator: string, fileName: string): Reco
       );
     }
   }
-  return Object.fromEntries([...first].map(([key, { value }]) => [key, value]));
+  return {
+    meta: Object.fromEntries([...first].map(([key, { value }]) => [key, value])),
+    meta_lines: Object.fromEntries([...first].map(([key, { line }]) => [key, line])),
+  };
 }
 
 /** `value` without the separators and spaces at its end. */

@@ -1,3 +1,5 @@
+import type { ErrorLocation } from '../errors/heatpath-error.js';
+
 /**
  * A measured transient as the parsers hand it to the analysis: one time axis
  * and one or more channels of a single quantity (several devices measured
@@ -16,6 +18,17 @@ export interface TransientFile {
   time_s: Float64Array;
   channels: TransientChannel[];
   meta: Record<string, string>;
+  /** The line (from 1) on which each key of `meta` is written, for errors about its value; a key written on no line of its own has none. */
+  meta_lines: Record<string, number>;
+}
+
+/** What a file says about itself: its metadata and where each key is written. */
+export type TransientMetadata = Pick<TransientFile, 'meta' | 'meta_lines'>;
+
+/** Where a metadata key is written, for an error about its value: the file, and the key's line when it has one. */
+export function metadataLocation(file: TransientMetadata, key: string, fileName: string): ErrorLocation {
+  const line = file.meta_lines[key];
+  return line === undefined ? { file: fileName } : { file: fileName, line };
 }
 
 /** Channel name of a value column given without `@channel`. */

@@ -53,7 +53,7 @@ export async function acceptTransientUpload(
   const { store, log } = deps;
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.sourceName, upload.format);
-  const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient.meta, upload.sourceName));
+  const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient, upload.sourceName));
   const { parameters, power: resolvedPower } = resolveAnalysisInputs(
     transient,
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
