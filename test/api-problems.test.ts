@@ -90,6 +90,36 @@ describe('with a real Redis', () => {
     expectProblem(await upload(context, 'sample_id=S1&power_W=5&current_A=1&voltage_V=5', small), 400, 'REQUEST_INVALID');
   });
 
+  it('reads query and multipart numbers by the one rule of the CLI and the files: 51,3 is 51.3, 1,250 is ambiguous, naming the field', async () => {
+    // decimal-number-text.ts; 1,250 is 1250 or 1.25 (SI Brochure 9th ed., 5.4.4, memory: the comma may be the decimal sign).
+    const comma = await upload(context, 'sample_id=S-dec&power_W=51,3', small);
+    expect(comma.statusCode, comma.body).toBe(202);
+    expect((await context.store.getUpload(comma.json().upload_id))!.power).toEqual({ power_W: 51.3 });
+    const ambiguous = expectProblem(await upload(context, 'sample_id=S-dec&power_W=1,250', small), 400, 'INPUT_AMBIGUOUS_NUMBER');
+    expect(ambiguous.detail).toBe('query parameter power_W gives "1,250", which is 1250 with a thousands separator and 1.25 with a decimal comma: write 1250 or 1.25');
+    const form = multipart([
+      { name: 'sample_id', value: 'S-dec' },
+      { name: 'power_W', value: '1,250' },
+      { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
+    ]);
+    const field = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(expectProblem(field, 400, 'INPUT_AMBIGUOUS_NUMBER').detail).toMatch(/^multipart field power_W gives "1,250"/);
+  });
+
+  it('400 for an unknown query or multipart field names the known one meant, as the CLI does for options', async () => {
+    const problem = expectProblem(await upload(context, 'sample_id=S1&power_w=50', small), 400, 'REQUEST_INVALID');
+    expect(problem.errors).toEqual([{ field: 'querystring/power_w', message: 'is not a known field: did you mean power_W?' }]);
+    expect(problem.detail).toBe('querystring/power_w is not a known field: did you mean power_W?');
+    const form = multipart([
+      { name: 'sample_id', value: 'S1' },
+      { name: 'power_W', value: '50' },
+      { name: 'early_start_s', value: '1e-5' },
+      { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
+    ]);
+    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    expect(expectProblem(response, 400, 'REQUEST_INVALID').errors).toEqual([{ field: 'multipart/early_start_s', message: 'is not a known field' }]);
+  });
+
   it('400 for query and multipart numbers that are not written as such, instead of rounding or reading them another way', async () => {
     for (const query of ['points_per_decade=40.9', 'compact_stages=5.5', 'power_W=', 'power_W=50W']) {
       const fields = query.startsWith('power_W') ? `sample_id=S1&${query}` : `sample_id=S1&power_W=50&${query}`;
@@ -210,7 +240,10 @@ describe('with a real Redis', () => {
   it('413 above HEATPATH_MAX_UPLOAD_BYTES, for raw and multipart bodies', async () => {
     const large = syntheticTransientCsv(13, 40);
     expect(large.byteLength).toBeGreaterThan(4096);
-    expect(expectProblem(await upload(context, 'sample_id=S1&power_W=50', large), 413, 'UPLOAD_TOO_LARGE').detail).toMatch(/the limit is 4096 bytes \(HEATPATH_MAX_UPLOAD_BYTES\)/);
+    // The size sent (Content-Length, which inject sets from the payload) and the limit.
+    expect(expectProblem(await upload(context, 'sample_id=S1&power_W=50', large), 413, 'UPLOAD_TOO_LARGE').detail).toBe(
+      `the body of ${large.byteLength} bytes is larger than the limit of 4096 bytes (HEATPATH_MAX_UPLOAD_BYTES)`,
+    );
     const form = multipart([
       { name: 'sample_id', value: 'S1' },
       { name: 'power_W', value: '50' },
@@ -218,7 +251,9 @@ describe('with a real Redis', () => {
     ]);
     // multipart's own limit; the whole body is not bounded by bodyLimit.
     const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
-    expectProblem(response, 413, 'UPLOAD_TOO_LARGE');
+    expect(expectProblem(response, 413, 'UPLOAD_TOO_LARGE').detail).toBe(
+      `the file part is larger than the limit of 4096 bytes (HEATPATH_MAX_UPLOAD_BYTES); the request was ${form.payload.byteLength} bytes in all`,
+    );
   });
 
   it('400, not 413, for a multipart body with two file parts', async () => {

@@ -28,4 +28,17 @@ describe('plainValidationIssues', () => {
     expect(issues.filter((issue) => issue.field === 'querystring/operator')).toHaveLength(1);
     expect(issues.filter((issue) => issue.field === 'querystring/method')).toHaveLength(1);
   });
+
+  it('names the known field an unknown one most likely meant, as the command line does for options (closest-name.ts)', () => {
+    const known = Object.keys(Schema.properties);
+    const issues = plainValidationIssues(Compile(Schema).Errors({ Stages: 4, methd: 'bayes', operator: 'bob' }), 'querystring', known);
+    // Case alone, one letter left out: the known name; nothing near: no guess.
+    expect(issues).toEqual(
+      expect.arrayContaining([
+        { field: 'querystring/Stages', message: 'is not a known field: did you mean stages?' },
+        { field: 'querystring/methd', message: 'is not a known field: did you mean method?' },
+        { field: 'querystring/operator', message: 'is not a known field' },
+      ]),
+    );
+  });
 });

@@ -1,7 +1,7 @@
 import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { singleDecimalValue } from '../../shared/input/decimal-number-text.js';
-import { closestName } from './closest-name.js';
+import { closestName } from '../../shared/input/closest-name.js';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
 

@@ -9,7 +9,7 @@ import { runDegradationCommand } from './degradation-command.js';
 import { runReprocessCommand } from './reprocess-command.js';
 import { runRthjcCommand } from './rthjc-command.js';
 import { runSubmitCommand } from './submit-command.js';
-import { closestName } from './closest-name.js';
+import { closestName } from '../../shared/input/closest-name.js';
 
 const overview = `heatpath ${HEATPATH_VERSION}: thermal transient analysis
 

@@ -1,3 +1,5 @@
+import { closestName } from '../input/closest-name.js';
+
 /** One schema violation as fastify's validators (ajv, TypeBox) report it. */
 export interface ValidationIssue {
   keyword?: string;
@@ -17,9 +19,11 @@ export interface PlainIssue {
  * outside a list is "must be one of a, b, c" (the validators report one
  * "must be equal to constant" per allowed value, then "must match a schema
  * in anyOf"), and an unknown field is named ("must NOT have additional
- * properties" does not say which; TypeBox adds "schema is false").
+ * properties" does not say which; TypeBox adds "schema is false"), with the
+ * known field it most likely meant (`power_w`: did you mean power_W?) when
+ * `knownFields` lists them, as the command line does for options.
  */
-export function plainValidationIssues(issues: readonly ValidationIssue[], context: string): PlainIssue[] {
+export function plainValidationIssues(issues: readonly ValidationIssue[], context: string, knownFields: readonly string[] = []): PlainIssue[] {
   const allowed = new Map<string, unknown[]>();
   for (const issue of issues) {
     if (issue.keyword === 'const' && issue.params && 'allowedValue' in issue.params) {
@@ -34,6 +38,10 @@ export function plainValidationIssues(issues: readonly ValidationIssue[], contex
     seen.add(`${field} ${message}`);
     plain.push({ field, message });
   };
+  const unknown = (name: string) => {
+    const meant = closestName(name, knownFields);
+    return `is not a known field${meant === undefined ? '' : `: did you mean ${meant}?`}`;
+  };
   for (const issue of issues) {
     const path = issue.instancePath ?? '';
     const field = `${context}${path}`;
@@ -42,9 +50,9 @@ export function plainValidationIssues(issues: readonly ValidationIssue[], contex
       add(field, `must be one of ${values.map((value) => JSON.stringify(value)).join(', ')}`);
     } else if (issue.keyword === 'additionalProperties') {
       const named = issue.params?.additionalProperty ?? issue.params?.additionalProperties;
-      for (const name of [named].flat()) if (typeof name === 'string') add(`${field}/${name}`, 'is not a known field');
+      for (const name of [named].flat()) if (typeof name === 'string') add(`${field}/${name}`, unknown(name));
     } else if (issue.keyword === 'boolean' && issue.message === 'schema is false') {
-      add(field, 'is not a known field');
+      add(field, unknown(path.slice(path.lastIndexOf('/') + 1)));
     } else {
       add(field, issue.message ?? 'is invalid');
     }

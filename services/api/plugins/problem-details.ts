@@ -23,12 +23,15 @@ export const problemDetailsPlugin = fastifyPlugin(async function problemDetails(
   });
 
   app.setErrorHandler((error: FastifyError, request, reply) => {
+    const issues = validationIssues(error, request);
     const heatpathError = error.code === 'FST_ERR_CTP_INVALID_MEDIA_TYPE'
       ? new HeatpathError('MEDIA_TYPE_UNSUPPORTED', `Content-Type ${request.headers['content-type'] ?? '(none)'} is not accepted by ${request.method} ${request.routeOptions.url}`)
-      : toHeatpathError(error, options.maxUploadBytes);
+      : issues !== undefined
+        ? new HeatpathError('REQUEST_INVALID', issues.map((issue) => `${issue.field} ${issue.message}`).join('; '))
+        : toHeatpathError(error, request, options.maxUploadBytes);
     if (heatpathError.status >= 500) request.log.error({ err: error }, 'request failed');
     else request.log.info({ code: heatpathError.code, detail: heatpathError.detail }, 'request refused');
-    return sendProblem(request, reply, heatpathError, validationErrors(error));
+    return sendProblem(request, reply, heatpathError, issues);
   });
 
   app.setNotFoundHandler((request, reply) =>
@@ -78,26 +81,41 @@ const statusCodes: Record<number, ErrorCode> = {
 };
 
 
-function toHeatpathError(error: FastifyError, maxUploadBytes: number): HeatpathError {
+function toHeatpathError(error: FastifyError, request: FastifyRequest, maxUploadBytes: number): HeatpathError {
   if (isHeatpathError(error)) return error;
-  if (error.validation) return new HeatpathError('REQUEST_INVALID', describeValidation(error));
   if (isStoreOutage(error)) {
     return new HeatpathError('SERVICE_UNAVAILABLE', `the data directory cannot be used (${error.code})`);
   }
   const status = error.statusCode ?? 500;
-  if (status === 413) return new HeatpathError('UPLOAD_TOO_LARGE', `${error.message}: the limit is ${maxUploadBytes} bytes (HEATPATH_MAX_UPLOAD_BYTES)`);
+  if (status === 413) return new HeatpathError('UPLOAD_TOO_LARGE', tooLargeDetail(request, maxUploadBytes));
   const code = statusCodes[status] ?? (status >= 400 && status < 500 ? 'REQUEST_INVALID' : 'INTERNAL_ERROR');
   // Internal messages may leak paths or stack details: only 4xx texts are meant for clients.
   return new HeatpathError(code, status < 500 ? error.message : 'the service failed to handle this request');
 }
 
-function describeValidation(error: FastifyError): string {
-  return plainValidationIssues(error.validation ?? [], error.validationContext ?? 'request')
-    .map((issue) => `${issue.field} ${issue.message}`)
-    .join('; ');
+/**
+ * What was sent against the limit: the size from Content-Length where the client gave one (a chunked body has
+ * none, and is refused as soon as it passes the limit). A multipart body's limit is on its file part, which
+ * the whole request's length bounds from above.
+ */
+function tooLargeDetail(request: FastifyRequest, maxUploadBytes: number): string {
+  const length = request.headers['content-length'];
+  const sent = length !== undefined && /^\d+$/.test(length) ? Number(length) : undefined;
+  const limit = `the limit of ${maxUploadBytes} bytes (HEATPATH_MAX_UPLOAD_BYTES)`;
+  if (/^multipart\//i.test(request.headers['content-type'] ?? '')) {
+    return `the file part is larger than ${limit}${sent === undefined ? '' : `; the request was ${sent} bytes in all`}`;
+  }
+  return sent === undefined ? `the body is larger than ${limit} (sent without Content-Length)` : `the body of ${sent} bytes is larger than ${limit}`;
 }
 
-function validationErrors(error: FastifyError): Problem['errors'] {
-  if (!error.validation) return undefined;
-  return plainValidationIssues(error.validation, error.validationContext ?? 'request');
+/**
+ * A schema violation in plain words, an unknown field with the known one it most likely meant: the fields are
+ * the error's own `knownFields` (the upload's metadata, checked outside fastify), else the route schema's part
+ * that was checked.
+ */
+function validationIssues(error: FastifyError & { knownFields?: readonly string[] }, request: FastifyRequest): Problem['errors'] {
+  if (!error.validation || isHeatpathError(error)) return undefined;
+  const context = error.validationContext ?? 'request';
+  const part = (request.routeOptions.schema as Record<string, { properties?: Record<string, unknown> } | undefined> | undefined)?.[context];
+  return plainValidationIssues(error.validation, context, error.knownFields ?? Object.keys(part?.properties ?? {}));
 }

@@ -45,7 +45,7 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
     return (value) => {
       let converted = value;
       try {
-        if (httpPart === 'querystring') converted = typedFieldsFromText(schema as TObject, withRequestCycleCount(value as Record<string, unknown>, 'query parameter cycle_count'));
+        if (httpPart === 'querystring') converted = typedFieldsFromText(schema as TObject, withRequestCycleCount(value as Record<string, unknown>, 'query parameter cycle_count'), 'query parameter');
       } catch (error) {
         if (isHeatpathError(error)) return { error };
         throw error;
