@@ -197,6 +197,16 @@ describe('with a real Redis', () => {
     expectProblem(await upload(context, 'sample_id=S-meta', small), 422, 'POWER_REQUIRED');
   });
 
+  it("warns in the 202 of a power that contradicts the file's header line, in the words the result uses (resolveAnalysisInputs)", async () => {
+    const withHeader = Buffer.concat([Buffer.from('# power_W: 51.3\n'), syntheticTransientCsv(14, 10)]);
+    const overridden = await upload(context, 'sample_id=S-pw&power_W=60', withHeader);
+    expect(overridden.statusCode, overridden.body).toBe(202);
+    expect(overridden.json().warnings).toEqual(["a heating power of 60 W was given, and used, where the file's header lines say 51.3 W"]);
+    expect((await context.store.getUpload(overridden.json().upload_id))!.power).toEqual({ power_W: 60 });
+    const agrees = await upload(context, 'sample_id=S-pw2&power_W=51,3', withHeader);
+    expect(agrees.json().warnings.filter((warning: string) => warning.includes('heating power'))).toEqual([]);
+  });
+
   it('400 for the file mistakes the CLI reports too: an ambiguous header power, a header key given twice, a JSON array', async () => {
     // 1,250 is 1250 or 1.25 (SI Brochure 9th ed., 5.4.4, memory: digits are grouped by spaces, as the comma may be the decimal sign).
     const ambiguous = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');

@@ -23,7 +23,7 @@ const UploadAnswerSchema = Type.Object({
   points: Type.Integer(),
   links: UploadLinksSchema,
   cycle_count: Type.Union([Type.Integer(), Type.Null()], { description: "The cycle count recorded for the upload: the request's cycle_count, else the file's \"# cycle_count:\" line, else null." }),
-  warnings: Type.Array(Type.String(), { description: "What the upload was accepted despite, e.g. a request's cycle_count that differs from the file's." }),
+  warnings: Type.Array(Type.String(), { description: "What the upload was accepted despite, e.g. a request's cycle_count, power or kind that differs from the file's header lines." }),
   caution: Type.String({ default: uploadCaution }),
 });
 

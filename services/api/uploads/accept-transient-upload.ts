@@ -54,11 +54,13 @@ export async function acceptTransientUpload(
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.sourceName, upload.format);
   const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient, upload.sourceName));
-  const { parameters, power: resolvedPower } = resolveAnalysisInputs(
+  const { parameters, power: resolvedPower, warnings: headerWarnings } = resolveAnalysisInputs(
     transient,
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
     upload.sourceName,
   );
+  // A power or kind that contradicts the file's header is used, and said so here as in the result: the bench hears of it now.
+  warnings.push(...headerWarnings);
   const power = resolvedPower ?? null;
   const calibration = await calibrationOf(store, metadata);
   if (transient.quantity === 'voltage_V') checkVoltagesCalibrated(transient, calibration, upload.sourceName);
