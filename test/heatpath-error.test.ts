@@ -19,4 +19,11 @@ describe('HeatpathError message', () => {
     const { title, hint } = errorCatalogue.ANALYSIS_NOT_ANALYSABLE;
     expect(error.message).toBe(`${title}: Zth ends at -1.17 K/W; is the transient really heating? ${hint}`);
   });
+
+  it('puts every hint after the detail, so no hint points ahead to text that came before it', () => {
+    // The message's own order (title, detail, hint), as the first test pins it down.
+    for (const [code, { hint }] of Object.entries(errorCatalogue)) expect(hint, code).not.toMatch(/\b(follows?|below)\b/);
+    const rejected = new HeatpathError('SUBMIT_REJECTED', 'INPUT_NOT_NUMERIC: "x"', { file: 't.csv', line: 3 });
+    expect(rejected.message).toMatch(/^t\.csv, line 3: The server refused the transient: INPUT_NOT_NUMERIC: "x"\. Fix what the server reported/);
+  });
 });
