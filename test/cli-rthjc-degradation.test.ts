@@ -218,7 +218,11 @@ describe('heatpath degradation: which file is the reference', () => {
     const grouped = file('m31-grouped.csv', readFileSync(campaign[1], 'utf8').replace('# cycle_count: 20000', '# cycle_count: 20.000'));
     const run = heatpath('degradation', campaign[3], grouped, campaign[0], '--format', 'json');
     expect(run.code).toBe(2);
-    expect(run.stderr.trim().split('\n')).toEqual([expect.stringMatching(/m31-grouped\.csv: .*"# cycle_count:" line .* is "20\.000", not digits only\. Write the number of cycles as digits only, e\.g\. 40000.*\[CYCLE_COUNT_INVALID\]$/)]);
+    // The error names the line the count is written on.
+    const line = readFileSync(grouped, 'utf8').split('\n').findIndex((text) => text.startsWith('# cycle_count:')) + 1;
+    expect(run.stderr.trim().split('\n')).toEqual([
+      expect.stringMatching(new RegExp(`m31-grouped\\.csv, line ${line}: .*"# cycle_count:" line .* is "20\\.000", not digits only\\. Write the number of cycles as digits only, e\\.g\\. 40000.*\\[CYCLE_COUNT_INVALID\\]$`)),
+    ]);
     const report = JSON.parse(run.stdout);
     expect(report.reference).toMatchObject({ file: campaign[0], chosen_by: 'lowest_cycle_count' });
     expect(report.later.map((row: { file: string }) => row.file)).toEqual([campaign[3]]);

@@ -228,7 +228,7 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     ['a non-numeric field', () => ['analyze', file('bad.csv', `time_s,zth_K_per_W\n${goodRows.slice(0, 3).join('\n')}\n1e-1,abc\n`)], /bad\.csv, line 5.*not a number/i],
     ['time not increasing', () => ['analyze', file('order.csv', `time_s,zth_K_per_W\n${[...goodRows.slice(0, 30), goodRows[10], ...goodRows.slice(30)].join('\n')}\n`)], /order\.csv, line 32/],
     ['no power for temperature input', () => ['analyze', file('nopower.csv', `time_s,temperature_C\n${goodRows.join('\n')}\n`)], /POWER_REQUIRED/],
-    ['a header power written like 1,250', () => ['analyze', file('thousands.csv', `# power_W: 1,250\ntime_s,temperature_C\n${goodRows.join('\n')}\n`)], /thousands\.csv: .*power_W metadata gives "1,250".*write 1250 or 1\.25.*\[INPUT_AMBIGUOUS_NUMBER\]/],
+    ['a header power written like 1,250', () => ['analyze', file('thousands.csv', `# power_W: 1,250\ntime_s,temperature_C\n${goodRows.join('\n')}\n`)], /thousands\.csv, line 1: .*power_W metadata gives "1,250".*write 1250 or 1\.25.*\[INPUT_AMBIGUOUS_NUMBER\]/],
     ['a header key given twice', () => ['analyze', file('twice.csv', `# power_W: 50\n# power_W: 55\ntime_s,zth_K_per_W\n${goodRows.join('\n')}\n`)], /twice\.csv, line 2: .*"50" on line 1 and "55" on line 2.*\[INPUT_DUPLICATE_METADATA\]/],
     ['a header in other words', () => ['analyze', file('words.csv', `Time [s],Zth [K/W]\n${goodRows.join('\n')}\n`)], /words\.csv, line 1: .*"Time \[s\]": rename it to time_s; "Zth \[K\/W\]": rename it to zth_K_per_W.*\[INPUT_MISSING_COLUMN\]/],
     ['a JSON array', () => ['analyze', file('list.json', `[${JSON.stringify({ time_s: [1, 2] })}]`)], /list\.json: .*the top level is an array.*\[INPUT_BAD_JSON\]/],
