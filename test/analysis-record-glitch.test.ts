@@ -1,0 +1,44 @@
+/**
+ * A glitch in a record: one sample far off the curve (a missed trigger, a bit error in the bench's ADC). No sum of
+ * rising exponentials follows it, so the time-constant spectrum, the networks and the structure functions carry it
+ * while Rth total, read at the end, does not show it. Truth: the exact Foster form of the TO-247 example stack (fine
+ * 1-D ladder, tridiagonal eigendecomposition, method-notes section 7); cooling by 60 K, 0.02 K RMS noise, 1 us to
+ * 100 s at 100 samples per decade. *Common practice*: a fit whose residual is several times the noise does not
+ * describe the data.
+ */
+import { describe, expect, it } from 'vitest';
+import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
+import { layeredStackTruth } from '../shared/models/layered-stack.js';
+import { TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
+import { syntheticTransient } from '../shared/models/synthetic-transient.js';
+import { createRandom, gaussian } from './support/seeded-random.js';
+
+const truth = layeredStackTruth(TO247_ON_HEATSINK_STACK);
+const rth = truth.structure.r_K_per_W[truth.structure.r_K_per_W.length - 1];
+const power_W = 60 / rth;
+
+function analysed(glitch_K: number, method: 'posterior-mean' | 'bayes' | 'fourier' = 'posterior-mean') {
+  const random = createRandom(17);
+  const curve = syntheticTransient(truth.foster, {
+    kind: 'cooling', power_W, reference_temperature_C: 30, first_s: 1e-6, last_s: 100, samples_per_decade: 100,
+    noise_K: 0.02, artefact_s: 0, artefact_K: 0, gaussian: () => gaussian(random),
+  });
+  const lines = ['time_s,temperature_C'];
+  for (let i = 0; i < curve.time_s.length; i++) lines.push(`${curve.time_s[i]},${curve.values[i] + (curve.time_s[i] === 1 ? glitch_K : 0)}`);
+  const [result] = analyzeTransientFile({ bytes: Buffer.from(lines.join('\n')), fileName: 'glitch.csv', power: { power_W }, parameters: { method } }, '2026-01-01T00:00:00.000Z');
+  return result;
+}
+const misfitWarnings = (warnings: string[]) => warnings.filter((warning) => warning.includes('fits Zth only'));
+
+describe('a record with one sample far off the curve', () => {
+  it.each(['posterior-mean', 'bayes'] as const)('%s: warns that the spectrum does not fit, and where; the clean record gets no such warning', (method) => {
+    expect(misfitWarnings(analysed(0, method).quality.warnings)).toEqual([]);
+    const glitched = analysed(15, method);
+    expect(Math.abs(glitched.rth_total_K_per_W / rth - 1)).toBeLessThan(0.005);
+    expect(misfitWarnings(glitched.quality.warnings)).toEqual([expect.stringMatching(/^the time-constant spectrum fits Zth only to \d+ times its noise, worst near t = (0\.9\d|1\.\d) s: a glitch/)]);
+  });
+
+  it('fourier: a filtered estimate, not fitted to the noise, gets no such warning', () => {
+    expect(misfitWarnings(analysed(15, 'fourier').quality.warnings)).toEqual([]);
+  });
+});
