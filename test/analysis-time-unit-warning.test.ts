@@ -27,3 +27,25 @@ describe('a record too long to be in seconds', () => {
     expect(asSeconds.quality.warnings.some((w) => inMilliseconds.test(w))).toBe(false);
   });
 });
+
+describe('a temperature_C column that holds kelvin', () => {
+  // The demo record cools from about 88 to 25 degC; the same samples plus 273.15 run from 298 to 361, a cold end
+  // hotter than any cold plate (power devices are rated for junctions of 150 to 200 degC, memory).
+  const inKelvin = Buffer.from(demo.replace(/^([^#\n,]+),([^,\n]+)$/gm, (line, time, value) => (Number.isNaN(Number(value)) ? line : `${time},${Number(value) + 273.15}`)));
+  const asKelvin = /if the column is in kelvin, subtract 273\.15/;
+
+  it('warns that the column may be in kelvin, with Zth and Rth as in degC, and not for the record in degC', () => {
+    const [kelvin] = analyzeTransientFile({ bytes: inKelvin, fileName: 'k.csv' }, CREATED_AT);
+    const [celsius] = analyzeTransientFile({ bytes: Buffer.from(demo), fileName: 'c.csv' }, CREATED_AT);
+    expect(kelvin.quality.warnings.find((w) => asKelvin.test(w))).toMatch(/^the temperatures run from 29\d\.\d to 3\d\d\.\d degC/);
+    expect(celsius.quality.warnings.some((w) => asKelvin.test(w))).toBe(false);
+    expect(kelvin.rth_total_K_per_W).toBeCloseTo(celsius.rth_total_K_per_W, 6);
+  });
+});
+
+describe('the header metadata in the result', () => {
+  it("carries the file's header lines for traceability (sample, bench, notes)", () => {
+    const [result] = analyzeTransientFile({ bytes: Buffer.from(`# bench: FH-TT1\n# note: first\n# note: second\n${demo}`), fileName: 'm.csv' }, CREATED_AT);
+    expect(result.source.meta).toMatchObject({ bench: 'FH-TT1', note: 'first\nsecond' });
+  });
+});

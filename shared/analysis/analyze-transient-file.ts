@@ -1,3 +1,4 @@
+import { valueRange } from '../numerics/value-range.js';
 import { createHash } from 'node:crypto';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { parseTransient } from '../input/parse-transient.js';
@@ -127,6 +128,27 @@ function timeUnitWarning(file: TransientFile): string[] {
 }
 
 /**
+ * A record whose coldest sample is hotter than this lies above any cold plate or heatsink a power device is tested
+ * on: power devices are rated for junctions of 150 to 200 degC, SiC up to about 200 (memory), and the reference
+ * is colder still.
+ */
+const HOTTEST_PLAUSIBLE_COLD_END_C = 200;
+
+/**
+ * A temperature_C column whose whole record lies above that is more likely written in kelvin (a cooling curve from
+ * 363 to 336 read as degC). Zth and Rth depend only on differences and stay right; Tj(0) and the temperatures
+ * reported do not, and the result says so.
+ */
+function temperatureUnitWarning(temperature_C: Float64Array): string[] {
+  const [coldest_C, hottest_C] = valueRange(temperature_C);
+  if (!(coldest_C > HOTTEST_PLAUSIBLE_COLD_END_C)) return [];
+  return [
+    `the temperatures run from ${coldest_C.toPrecision(4)} to ${hottest_C.toPrecision(4)} degC, hotter than a power device's cold plate or heatsink plausibly is even at its coldest: ` +
+      'if the column is in kelvin, subtract 273.15 (temperature_C is in degrees Celsius); Zth and Rth depend only on differences and are unaffected, Tj(0) is not.',
+  ];
+}
+
+/**
  * A file of several voltage channels is usually several devices measured
  * together, each with its own TSP; the one calibration given converts them
  * all, which the results say.
@@ -165,6 +187,7 @@ function analyzeChannel(
   } else {
     const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, time_s, values) : values;
     if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)));
+    if (file.quantity === 'temperature_C') warnings.push(...temperatureUnitWarning(temperature_C));
     noise_K = estimateNoiseRms(temperature_C);
     noise_K_per_W = noise_K / power_W!;
     zth = zthFromTemperature(time_s, temperature_C, { power_W: power_W! }, { kind: parameters.kind, noise_rms: noise_K, ...window });
@@ -194,7 +217,7 @@ function analyzeChannel(
 
   return {
     heatpath_result: 1,
-    source: { file: fileName, channel: channelName, quantity: file.quantity, points: time_s.length },
+    source: { file: fileName, channel: channelName, quantity: file.quantity, points: time_s.length, meta: file.meta },
     rth_total_K_per_W: rth,
     power_W,
     zth: { time_s: Array.from(time_s), zth_K_per_W: Array.from(zth.zth_K_per_W) },

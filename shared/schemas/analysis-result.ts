@@ -12,7 +12,15 @@ export const CauerStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_
  */
 export const AnalysisResultSchema = Type.Object({
   heatpath_result: Type.Literal(1, { description: 'Layout version of this object.' }),
-  source: Type.Object({ file: Type.String(), channel: Type.String(), quantity: Type.String(), points: Type.Integer() }),
+  source: Type.Object({
+    file: Type.String(),
+    channel: Type.String(),
+    quantity: Type.String(),
+    points: Type.Integer(),
+    meta: Type.Record(Type.String(), Type.String(), {
+      description: "The file's header metadata as read (`# key: value` lines, or JSON \"meta\"): sample, bench, notes, for traceability; a key given on several lines holds its values one per line.",
+    }),
+  }),
   rth_total_K_per_W: Type.Number(),
   power_W: Type.Union([Type.Number(), Type.Null()], { description: 'Heating power the Zth was computed with; null for zth_K_per_W input, which needs none.' }),
   zth: Type.Object({ time_s: Numbers, zth_K_per_W: Numbers }),
