@@ -343,6 +343,17 @@ describe('with a real Redis', () => {
     expect((await context.store.getUpload(accepted.json().upload_id))?.calibration_id).toBe(calibration_id);
   });
 
+  it('says a calibration given with temperature input is not used, and leaves it out of the job', async () => {
+    const fitted = await context.store.putCalibration(fitCalibration(Float64Array.from([25, 50, 75, 100]), Float64Array.from([0.7, 0.65, 0.6, 0.55]), 'linear'), 'test');
+    const bytes = Buffer.concat([Buffer.from('# note: with a calibration it does not need\n'), small]);
+    const withCalibration = await upload(context, `sample_id=S-tc&power_W=50&calibration_id=${fitted.calibration_id}`, bytes);
+    expect(withCalibration.statusCode, withCalibration.body).toBe(202);
+    expect(withCalibration.json().warnings).toContain('calibration not used: the input is temperature_C, which needs none');
+    expect((await context.store.getUpload(withCalibration.json().upload_id))?.calibration_id).toBeNull();
+    const without = await upload(context, 'sample_id=S-tc&power_W=50', bytes);
+    expect(without.json().job_id).toBe(withCalibration.json().job_id);
+  });
+
   it('422 at upload, storing nothing, for voltages the calibration does not cover, stored or inline, as the analysis would fail later', async () => {
     // A sweep of 25..35 degC (0.70..0.68 V) against a transient that starts far hotter: beyond the range and its margin.
     const temperature_C = [25, 27, 29, 31, 33, 35];

@@ -108,28 +108,35 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(report.warnings).toEqual(["the reference's analysis warns: a heating power of 50 W was given, and used, where the file's header lines say 60 W"]);
   }, 60_000);
 
-  it('warns at upload of bytes sent before, analyses them apart under another sample, and counts them once in a trend', async () => {
+  it('warns at upload of bytes sent before, analyses them apart under another sample, and counts them once in a trend, as their latest upload', async () => {
     // Common practice: two measurements never give the same bytes (the noise alone differs), so a repeat is one file sent again.
     const send = (sample: string, file: string, query = '') =>
       ctx.app.inject({ method: 'POST', url: `/v1/transients?sample_id=${sample}${query}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: readFileSync(file) });
     const first = await send('M31D', campaign[0]);
-    const second = await send('M31D', campaign[1]);
-    expect(second.json().warnings).toEqual([expect.stringMatching(/^the same bytes were uploaded for sample M31 as upload \S+ \(received .*\): a file sent under the wrong sample id\? This upload is analysed as sample M31D/)]);
-    const asM31 = (await ctx.store.listUploads({ sample_id: 'M31' })).find((upload) => upload.input_sha256 === second.json().input_sha256)!;
-    expect(second.json().job_id).not.toBe(asM31.job_id);
-    const repeat = await send('M31D', campaign[1], '&cycle_count=80000');
-    expect(repeat.json().warnings).toContainEqual(expect.stringMatching(/^the same bytes were uploaded for this sample before, as upload \S+ .*one measurement sent twice/));
-    expect(repeat.json().job_id).toBe(second.json().job_id);
-    const ids = [first, second].map((answer) => answer.json().job_id as string);
+    // The bench's header names M31 and FH-TT1: the request's sample is recorded, the file's bench taken as none is given.
+    expect(first.json().warnings).toContainEqual(`the file's "# sample:" line says M31; the upload is recorded as sample M31D, as the request says: a file sent under the wrong sample id?`);
+    expect((await ctx.store.getUpload(first.json().upload_id))!.bench).toBe('FH-TT1');
+    const mistyped = await send('M31D', campaign[1], '&cycle_count=4000');
+    expect(mistyped.json().warnings).toContainEqual(expect.stringMatching(/^the same bytes were uploaded for sample M31 as upload \S+ \(received .*\): a file sent under the wrong sample id\? This upload is analysed as sample M31D/));
+    const asM31 = (await ctx.store.listUploads({ sample_id: 'M31' })).find((upload) => upload.input_sha256 === mistyped.json().input_sha256)!;
+    expect(mistyped.json().job_id).not.toBe(asM31.job_id);
+    // Sent again with the count corrected: the latest upload counts.
+    const corrected = await send('M31D', campaign[1], '&cycle_count=20000');
+    expect(corrected.json().warnings).toContainEqual(expect.stringMatching(/^the same bytes were uploaded for this sample before, as upload \S+ .*: this upload, at 20000 cycles, replaces it \(4000 cycles\) in the degradation trend$/));
+    expect(corrected.json().job_id).toBe(mistyped.json().job_id);
+    const ids = [first, mistyped].map((answer) => answer.json().job_id as string);
     await eventually(async () => (await Promise.all(ids.map((id) => ctx.store.hasResult(id)))).every(Boolean));
-    expect((await ctx.store.getResult(second.json().job_id))!.sample_id).toBe('M31D');
+    expect((await ctx.store.getResult(mistyped.json().job_id))!.sample_id).toBe('M31D');
 
     const report = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31D/degradation', headers: bearer('reader') })).json();
-    expect(report.later.map((row: { upload_id: string }) => row.upload_id)).toEqual([second.json().upload_id]);
+    expect(report.later.map((row: { upload_id: string; cycle_count: number }) => [row.upload_id, row.cycle_count])).toEqual([[corrected.json().upload_id, 20000]]);
     expect(report.not_included).toEqual([{
-      upload_id: repeat.json().upload_id, job_id: null, reason_code: 'same_bytes_as_earlier',
-      reason: `the same bytes as upload ${second.json().upload_id} (20000 cycles), counted there: one measurement sent twice, here as 80000 cycles`,
+      upload_id: mistyped.json().upload_id, job_id: mistyped.json().job_id, reason_code: 'sent_again',
+      reason: expect.stringMatching(new RegExp(`^the same bytes were sent again as upload ${corrected.json().upload_id} \\(received .*\\), which counts instead, at 20000 cycles instead of 4000$`)),
     }]);
+    const asReference = await ctx.app.inject({ method: 'GET', url: `/v1/samples/M31D/degradation?reference_upload_id=${mistyped.json().upload_id}`, headers: bearer('reader') });
+    expect(asReference.statusCode).toBe(404);
+    expect(asReference.json().detail).toMatch(/: the same bytes were sent again as upload \S+ .*which counts instead/);
   }, 60_000);
 
   it('takes another reference and limit, and refuses what it cannot answer', async () => {

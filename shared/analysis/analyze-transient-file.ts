@@ -63,7 +63,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     ...sharedCalibrationWarning(file),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
-    ...(input.calibration && !calibration ? [`calibration not used: the input is ${file.quantity}, which needs none`] : []),
+    ...(input.calibration && !calibration ? [unusedCalibrationWarning(file.quantity)] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
   const provenance = {
@@ -107,6 +107,11 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
     `every channel of this file (${names}) was analysed with the same heating power of ${power_W} W: ` +
       `if the devices dissipated different powers (for example in series at the same current), their Zth is wrong; give each channel its power in the file (a "# power_W@${file.channels[0].name}: ..." line per channel), or split the file into one file per channel.`,
   ];
+}
+
+/** A calibration given with input that is not voltage_V converts nothing: said, not silently dropped. */
+export function unusedCalibrationWarning(quantity: TransientFile['quantity']): string {
+  return `calibration not used: the input is ${quantity}, which needs none`;
 }
 
 /** Longest record taken as seconds without a word: about 2.8 hours. */

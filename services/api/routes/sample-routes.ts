@@ -72,7 +72,7 @@ const SampleDegradationSchema = Type.Object({
       upload_id: Type.String(),
       job_id: Type.Union([Type.String(), Type.Null()]),
       reason_code: Type.Union(
-        [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable'), Type.Literal('same_bytes_as_earlier')],
+        [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable'), Type.Literal('sent_again')],
         { description: 'Stable, to branch on; reason says more.' },
       ),
       reason: Type.String(),

@@ -23,7 +23,7 @@ export interface SampleDegradationOptions {
 }
 
 /** Why an upload is not in the trend: stable, for a LIMS to branch on; the text beside it says more. */
-export type NotIncludedReasonCode = 'not_in_batch' | 'analysis_failed' | 'analysis_pending' | 'channel_missing' | 'not_comparable' | 'same_bytes_as_earlier';
+export type NotIncludedReasonCode = 'not_in_batch' | 'analysis_failed' | 'analysis_pending' | 'channel_missing' | 'not_comparable' | 'sent_again';
 
 interface NotIncluded {
   upload_id: string;
@@ -56,19 +56,23 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   const notIncluded: NotIncluded[] = [];
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
   const ordered = inCycleOrder(uploads);
-  // Two measurements never give the same bytes: a repeat is one measurement sent twice, counted at its first place.
-  const firstWithBytes = new Map<string, UploadRecord>();
+  // Two measurements never give the same bytes: a repeat is one measurement sent again, which counts once, with the
+  // labels of its latest upload, so that sending a file again corrects a mistyped cycle count.
+  const latestWithBytes = new Map<string, UploadRecord>();
+  for (const upload of uploads) {
+    const latest = latestWithBytes.get(upload.input_sha256);
+    if (latest === undefined || upload.received_at >= latest.received_at) latestWithBytes.set(upload.input_sha256, upload);
+  }
   for (const upload of ordered) {
-    const first = firstWithBytes.get(upload.input_sha256);
-    if (first !== undefined) {
+    const latest = latestWithBytes.get(upload.input_sha256)!;
+    if (latest !== upload) {
       notIncluded.push({
-        upload_id: upload.upload_id, job_id: null, reason_code: 'same_bytes_as_earlier',
-        reason: `the same bytes as upload ${first.upload_id} (${first.cycle_count ?? 'unknown'} cycles), counted there: one measurement sent twice` +
-          (first.cycle_count !== upload.cycle_count ? `, here as ${upload.cycle_count ?? 'unknown'} cycles` : ''),
+        upload_id: upload.upload_id, job_id: upload.job_id, reason_code: 'sent_again',
+        reason: `the same bytes were sent again as upload ${latest.upload_id} (received ${latest.received_at}), which counts instead` +
+          (latest.cycle_count !== upload.cycle_count ? `, at ${latest.cycle_count ?? 'unknown'} cycles instead of ${upload.cycle_count ?? 'unknown'}` : ''),
       });
       continue;
     }
-    firstWithBytes.set(upload.input_sha256, upload);
     const jobId = jobOf(upload);
     if (jobId === null) {
       notIncluded.push({ upload_id: upload.upload_id, job_id: null, reason_code: 'not_in_batch', reason: `not part of batch ${options.batch_id}` });
@@ -101,7 +105,11 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   }
   const referenceIndex = options.reference_upload_id === undefined ? 0 : measurements.findIndex((m) => m.upload.upload_id === options.reference_upload_id);
   if (referenceIndex < 0) {
-    throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${options.reference_upload_id} is not a completed analysis of channel ${channel} of sample ${sampleId}`);
+    const left = notIncluded.find(({ upload_id }) => upload_id === options.reference_upload_id);
+    throw new HeatpathError(
+      'RESOURCE_NOT_FOUND',
+      `upload ${options.reference_upload_id} is not a completed analysis of channel ${channel} of sample ${sampleId}` + (left === undefined ? '' : `: ${left.reason}`),
+    );
   }
   if (measurements.length < 2) {
     throw new HeatpathError('DEGRADATION_TOO_FEW_RESULTS', `sample ${sampleId} has ${measurements.length} completed analysis(es) of channel ${channel}, ${notIncluded.length} upload(s) not included`);

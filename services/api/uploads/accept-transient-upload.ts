@@ -8,7 +8,7 @@ import { validateCalibration, voltageToTemperature } from '../../../shared/numer
 import type { TransientFile } from '../../../shared/input/transient-file.js';
 import type { Calibration } from '../../../shared/schemas/calibration.js';
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
-import { channelLocation } from '../../../shared/analysis/analyze-transient-file.js';
+import { channelLocation, unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
 import type { ApiKey } from '../../config/api-key-list.js';
@@ -62,8 +62,12 @@ export async function acceptTransientUpload(
   // A power or kind that contradicts the file's header is used, and said so here as in the result: the bench hears of it now.
   warnings.push(...headerWarnings);
   const power = resolvedPower ?? null;
-  const calibration = await calibrationOf(store, metadata);
+  const given = await calibrationOf(store, metadata);
+  // Only voltage needs one; another would split the job (its id names the calibration) for a result that does not use it.
+  const calibration = transient.quantity === 'voltage_V' ? given : null;
+  if (given !== null && calibration === null) warnings.push(unusedCalibrationWarning(transient.quantity));
   if (transient.quantity === 'voltage_V') checkVoltagesCalibrated(transient, calibration, upload.sourceName);
+  warnings.push(...headerLabelWarnings(transient.meta, metadata));
   // Stored only once the upload is known good: a refused upload leaves nothing behind.
   const calibrationId = calibration === null ? null : calibration.stored ? calibration.id : (await store.putCalibration(calibration.calibration, apiKey.name)).calibration_id;
   const inputSha256 = sha256Hex(upload.bytes);
@@ -102,7 +106,7 @@ export async function acceptTransientUpload(
     byte_length: upload.bytes.byteLength,
     received_at: new Date().toISOString(),
     sample_id: metadata.sample_id,
-    bench: metadata.bench ?? null,
+    bench: metadata.bench ?? transient.meta.bench?.trim() ?? null,
     channel: metadata.channel ?? null,
     cycle_count: cycleCount,
     tags: metadata.tags ?? [],
@@ -136,13 +140,13 @@ export async function acceptTransientUpload(
 
 /**
  * Two measurements never give the same bytes (the noise alone differs), so bytes uploaded before are a file sent
- * again: under another sample id most likely the wrong one, under the same sample a repeat that a trend must not
- * count twice. Looked up only when the bytes were already stored.
+ * again: under another sample id most likely the wrong one, under the same sample a repeat that a trend counts once,
+ * as its latest upload (which corrects a mistyped cycle count). Looked up only when the bytes were already stored.
  */
 async function sameBytesWarnings(store: TransientStore, record: UploadRecord): Promise<string[]> {
   const earlier = (await store.listUploadSummaries({ input_sha256: record.input_sha256 })).filter((upload) => upload.upload_id !== record.upload_id);
   const other = earlier.find((upload) => upload.sample_id !== record.sample_id);
-  const same = earlier.find((upload) => upload.sample_id === record.sample_id);
+  const same = earlier.filter((upload) => upload.sample_id === record.sample_id).at(-1);
   const warnings: string[] = [];
   if (other !== undefined) {
     warnings.push(
@@ -151,10 +155,31 @@ async function sameBytesWarnings(store: TransientStore, record: UploadRecord): P
     );
   }
   if (same !== undefined) {
+    const before = (await store.getUpload(same.upload_id))?.cycle_count ?? null;
     warnings.push(
       `the same bytes were uploaded for this sample before, as upload ${same.upload_id} (received ${same.received_at}): ` +
-        'one measurement sent twice, which the degradation trend counts once',
+        (before === record.cycle_count
+          ? 'one measurement sent twice, which the degradation trend counts once, as this upload'
+          : `this upload, at ${record.cycle_count ?? 'no'} cycles, replaces it (${before ?? 'no'} cycles) in the degradation trend`),
     );
+  }
+  return warnings;
+}
+
+/**
+ * The file's own `# sample:` (or `# sample_id:`) and `# bench:` lines against the request's: a file sent under the
+ * wrong sample id most often says so itself. The request's values are recorded; the file's bench is used when the
+ * request names none.
+ */
+function headerLabelWarnings(meta: Record<string, string>, metadata: UploadMetadata): string[] {
+  const warnings: string[] = [];
+  const fileSample = (meta.sample_id ?? meta.sample)?.trim();
+  if (fileSample !== undefined && fileSample !== '' && fileSample !== metadata.sample_id) {
+    warnings.push(`the file's "# sample:" line says ${fileSample}; the upload is recorded as sample ${metadata.sample_id}, as the request says: a file sent under the wrong sample id?`);
+  }
+  const fileBench = meta.bench?.trim();
+  if (fileBench !== undefined && fileBench !== '' && metadata.bench !== undefined && fileBench !== metadata.bench) {
+    warnings.push(`the file's "# bench:" line says ${fileBench}; the upload is recorded as bench ${metadata.bench}, as the request says`);
   }
   return warnings;
 }
