@@ -113,6 +113,15 @@ describe('batches', () => {
     expect(outcomes).toEqual({ [running]: 'pending', [notStarted]: 'cancelled' });
   });
 
+  it('refuses a batch whose early-time window lies outside the first selected upload, as an upload would be, storing nothing', async () => {
+    await uploadCsv('sample_id=B-W&power_W=50', 44);
+    const before = (await context.store.listBatches()).length;
+    const refused = await post('/v1/batches', { selection: { sample_id: 'B-W' }, parameters: { early_time_start_s: 500 } });
+    expect(refused.statusCode, refused.body).toBe(400);
+    expect(refused.json()).toMatchObject({ code: 'PARAM_INVALID', detail: expect.stringMatching(/^on the selection's first upload, upl-\S+ \(sample B-W, .*\): early_time_start_s = 500 s is after the last sample/) });
+    expect((await context.store.listBatches()).length).toBe(before);
+  });
+
   it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {
     const uploaded = await uploadCsv('sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8', 42);
     expect(uploaded.statusCode, uploaded.body).toBe(202);

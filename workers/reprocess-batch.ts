@@ -2,6 +2,9 @@ import { randomBytes } from 'node:crypto';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.js';
 import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
+import { parseTransient } from '../shared/input/parse-transient.js';
+import { givenEarlyTimeWindow } from '../shared/numerics/early-time-window.js';
+import { voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
 import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
@@ -79,6 +82,7 @@ export class BatchReprocessor {
       entries: [],
     };
     const jobs = uploads.map((upload) => reprocessedUpload(upload, batch));
+    await this.checkOnFirstUpload(jobs[0], batch);
     batch.entries = uniqueEntries(jobs);
     await this.store.putBatch(batch);
     const outcomes = await this.store.jobOutcomes();
@@ -90,6 +94,29 @@ export class BatchReprocessor {
       return { ...progress, status: 'stored' };
     }
     return progress;
+  }
+
+  /**
+   * The checks an upload gets (early-time window inside the record, voltages the calibration covers), run with the
+   * batch's parameters and calibration on the selection's first upload before anything is stored or queued: a window
+   * or calibration that fits none of the archive is refused at once, not found out by thousands of failed jobs.
+   * Only the first is read (an archive may hold tens of thousands); the others are judged by their own jobs.
+   */
+  private async checkOnFirstUpload(job: UploadRecord, batch: BatchRecord): Promise<void> {
+    const bytes = await this.store.getBlob(job.input_sha256);
+    if (bytes === null) return;
+    const onFirst = (error: unknown): never => {
+      if (!isHeatpathError(error)) throw error;
+      throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`);
+    };
+    try {
+      const file = (await this.store.getParsedTransient(job.input_sha256, job.format)) ?? parseTransient(bytes, job.file_name, job.format);
+      givenEarlyTimeWindow(file.time_s, job.parameters.early_time_start_s, job.parameters.early_time_end_s);
+      const calibration = batch.calibration_id === null || file.quantity !== 'voltage_V' ? null : await this.store.getCalibration(batch.calibration_id);
+      for (const channel of calibration === null ? [] : file.channels) voltageToTemperature(calibration!.calibration, file.time_s, channel.values);
+    } catch (error) {
+      onFirst(error);
+    }
   }
 
   async progress(batchId: string): Promise<BatchProgress | null> {
