@@ -69,6 +69,23 @@ describe('parseTransient CSV', () => {
     expect(catchHeatpathError(() => parseTransient(csv('time_s;zth_K_per_W', ['1e-7;1,2,3', ...logTimes(3, 10).slice(1).map((t) => `${t};1`)]), 'x.csv')).code).toBe('INPUT_NOT_NUMERIC');
   });
 
+  it('reads a quoted field holding the separator as one field, with a decimal comma also in a comma-separated file', () => {
+    // RFC 4180, 2 (6, 7): a field in double quotes may hold the separator, and a quote in it is written twice; the
+    // value is then that of the spelling with a point (ECMA-262 StringToNumber), as a comma inside quotes separates nothing.
+    const rows = [...coolingRows(times)];
+    const quoted = rows.map((row) => row.split(',').map((field) => `"${field.replace('.', ',')}"`).join(','));
+    const plain = parseTransient(csv('time_s,temperature_C', rows), 'plain.csv');
+    const fromQuotes = parseTransient(['"time_s","temperature_C"', ...quoted].join('\n'), 'quoted.csv');
+    expect(fromQuotes.time_s).toEqual(plain.time_s);
+    expect(fromQuotes.channels[0].values).toEqual(plain.channels[0].values);
+    expect(Array.from(parseTransient(['time_s,temperature_C', '"0,000001","89,9615"', ...rows.slice(1)].join('\n'), 'q.csv').channels[0].values.slice(0, 1))).toEqual([89.9615]);
+    // Quotes that hold the separator in a semicolon file, and a header name with a doubled quote.
+    const header = catchHeatpathError(() => parseTransient(['time_s;"Temp ""T1"";C"', ...rows.map((row) => row.replace(',', ';'))].join('\n'), 'q.csv'));
+    expect(header.detail).toBe('"Temp \\"T1\\";C" is not time_s or a value column');
+    // An unquoted decimal comma between commas is still two fields.
+    expect(catchHeatpathError(() => parseTransient(['time_s,temperature_C', '"0,000001",89,9615', ...rows.slice(1)].join('\n'), 'q.csv')).code).toBe('INPUT_ROW_LENGTH');
+  });
+
   it('reads spreadsheet exports: a separator ending every line, rows of separators alone, UTF-16 "Unicode text" with its byte-order mark', () => {
     // Reference: the same table written plainly (comma-separated UTF-8), parsed by the same parser.
     const plain = parseTransient(csv('time_s,temperature_C', coolingRows(times)), 'plain.csv');
@@ -347,7 +364,7 @@ describe('parseTransient explains common layout mistakes', () => {
     const error = catchHeatpathError(() => parseTransient(['time_s,temperature_C', '1,5e-6,25,3', ...rows.slice(1)].join('\n'), 'comma.csv'));
     expect(error.code).toBe('INPUT_ROW_LENGTH');
     expect(error.location).toEqual({ file: 'comma.csv', line: 2 });
-    expect(error.detail).toBe('4 fields, the header has 2 (separator ","): the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator');
+    expect(error.detail).toBe('4 fields, the header has 2 (separator ","): the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator, or double quotes ("1,5")');
     // With decimal points the extra field is something else, and no hint guesses at it.
     expect(catchHeatpathError(() => parseTransient(['time_s,temperature_C', '1.5e-6,25.3,1', ...rows.slice(1)].join('\n'), 'comma.csv')).detail).toBe('3 fields, the header has 2 (separator ",")');
   });

@@ -12,8 +12,8 @@ import { quoteInputText } from './quote-input-text.js';
  * - A comma is read as a decimal point where it cannot be a field separator:
  *   `51,3`, `1,2e-5`, `,5`, `3,`. That is in a data field of a CSV separated
  *   by semicolons or tabs (in a comma-separated one the comma is the
- *   separator), and in a single value (a `# key:` line, a JSON meta string,
- *   an option).
+ *   separator, except in a field in double quotes: `"0,5"`, RFC 4180), and in
+ *   a single value (a `# key:` line, a JSON meta string, an option).
  * - A single value of the form `1,250` (an integer part of one to three
  *   digits that is not zero, a comma, exactly three digits, nothing else) is
  *   refused as ambiguous: it is 1250 with an English thousands separator and
@@ -25,7 +25,11 @@ import { quoteInputText } from './quote-input-text.js';
  *   locale: one that separates fields with semicolons writes decimal commas
  *   and groups thousands with a point or a space, never a comma; and three
  *   decimals (a TSP voltage in mV steps, 1,250 V) are the most common way to
- *   write bench data, so refusing them would refuse good files.
+ *   write bench data, so refusing them would refuse good files. So is a
+ *   quoted `"1,250"` of a comma-separated file: a data column (seconds,
+ *   degrees Celsius, volts, K/W) is hardly ever grouped in thousands, and a
+ *   time that is (`"1,000"` s) then fails as not increasing rather than
+ *   passing.
  */
 export const DECIMAL_POINT_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 const DECIMAL_COMMA_NUMBER = /^[+-]?(?:\d+,\d*|,\d+)(?:[eE][+-]?\d+)?$/;

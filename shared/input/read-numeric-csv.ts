@@ -15,7 +15,9 @@ import { isMetadataKeyRead } from './transient-file.js';
  * decimal numbers in every data field, read by the rule of
  * decimal-number-text.ts: in a file separated by semicolons or tabs a decimal
  * comma (0,5; also 1,250) is read as well, as spreadsheets set to a European
- * locale write it; with commas as separators only the point is.
+ * locale write it; with commas as separators only the point is, except in a
+ * field in double quotes (`"0,5"`). A field in double quotes may hold the
+ * separator and a doubled quote (RFC 4180, 2).
  */
 export interface NumericCsvTable {
   /** Header names, trimmed and unquoted. */
@@ -56,7 +58,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
 
   const separator = detectSeparator(headerText);
   const metadata = metadataOf(meta, separator, fileName);
-  const names = headerText.split(separator).map(cleanField);
+  const names = splitFields(headerText, separator).map(cleanField);
   // Spreadsheets often end every line with a separator or a few (empty columns
   // beside the table): empty last header names are that, not columns.
   let unnamedAtEnd = 0;
@@ -86,7 +88,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
       const line = lines.text();
       const trimmed = line.trim();
       if (trimmed === '' || trimmed.startsWith('#')) continue;
-      const fields = line.split(separator);
+      const fields = splitFields(line, separator);
       // A row of separators alone is a blank row of a spreadsheet export.
       if (fields.every((field) => field.trim() === '')) continue;
       while (fields.length > names.length && fields.length - names.length <= unnamedAtEnd && fields[fields.length - 1].trim() === '') fields.pop();
@@ -109,7 +111,7 @@ function rowLengthError(fields: string[], line: string, columns: number, unnamed
   if (fields.length > columns && unnamedAtEnd > 0) {
     why = `: column ${columns + 1} has a value here but no name in the header (a separator at the end of the header line?)`;
   } else if (fields.length > columns && separator === ',' && !line.includes('.')) {
-    why = ': the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator';
+    why = ': the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator, or double quotes ("1,5")';
   }
   return new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${columns} (separator ${JSON.stringify(separator)})${why}`, at);
 }
@@ -300,16 +302,42 @@ function detectSeparator(headerText: string): string {
   return best;
 }
 
+/**
+ * The fields of a line as written (quotes kept, for cleanField), split at
+ * the separator outside quotes: RFC 4180, 2: a field in double quotes may
+ * hold the separator, and a quote inside one is written twice. A line
+ * without quotes is split plainly.
+ */
+function splitFields(line: string, separator: string): string[] {
+  if (!line.includes('"')) return line.split(separator);
+  const fields: string[] = [];
+  let fieldStart = 0;
+  let quoted = false;
+  for (let i = 0; i < line.length; i++) {
+    const char = line[i];
+    if (char === '"') quoted = !quoted; // "" inside quotes toggles twice: still inside
+    else if (char === separator && !quoted) {
+      fields.push(line.slice(fieldStart, i));
+      fieldStart = i + 1;
+    }
+  }
+  fields.push(line.slice(fieldStart));
+  return fields;
+}
+
+function isQuoted(trimmed: string): boolean {
+  return trimmed.length >= 2 && trimmed.startsWith('"') && trimmed.endsWith('"');
+}
+
 function cleanField(field: string): string {
   const trimmed = field.trim();
-  const unquoted = trimmed.length >= 2 && trimmed.startsWith('"') && trimmed.endsWith('"') ? trimmed.slice(1, -1) : trimmed;
-  return unquoted.trim();
+  return isQuoted(trimmed) ? trimmed.slice(1, -1).replaceAll('""', '"').trim() : trimmed;
 }
 
 function parseNumber(field: string, separator: string, fileName: string, line: number, name: string): number {
   const text = cleanField(field);
-  // A decimal comma only where the comma is not the separator (decimal-number-text.ts).
-  const value = decimalTextValue(text, separator !== ',');
+  // A decimal comma only where the comma is not the separator: in a comma-separated file, inside quotes (decimal-number-text.ts).
+  const value = decimalTextValue(text, separator !== ',' || isQuoted(field.trim()));
   if (Number.isNaN(value)) {
     const at = { file: fileName, line, column: shortenInputText(name) };
     if (NOT_FINITE_WORD.test(text)) throw new HeatpathError('INPUT_NOT_FINITE', quoteInputText(text), at);
