@@ -390,6 +390,19 @@ describe('parseTransient explains common layout mistakes', () => {
     expect([error.code, error.location]).toEqual(['INPUT_BAD_FORMAT', { file: 'book.csv' }]);
   });
 
+  it('ignores Ctrl-Z (0x1A) after the last line, the DOS end-of-file mark, in CSV and JSON', () => {
+    // *common practice*: DOS-era bench programs end a text file with Ctrl-Z (0x1A, SUB), CP/M padded its last record with them.
+    const text = ['time_s,temperature_C', ...rows].join('\r\n');
+    const plain = parseTransient(text, 'plain.csv');
+    for (const end of ['\r\n\x1a', '\x1a', '\r\n\x1a\x1a\x1a']) {
+      expect(parseTransient(Buffer.from(text + end, 'latin1'), 'dos.csv').channels[0].values).toEqual(plain.channels[0].values);
+    }
+    const json = JSON.stringify({ time_s: times, temperature_C: times });
+    expect(parseTransient(Buffer.from(`${json}\r\n\x1a`), 'dos.json').time_s).toEqual(Float64Array.from(times));
+    // Anywhere else it is no end mark but a stray character, and refused as one.
+    expect(catchHeatpathError(() => parseTransient(`${text}\r\n\x1a\r\n1,2`, 'dos.csv')).code).toBe('INPUT_ROW_LENGTH');
+  });
+
   it('refuses JSON whose top level is an array as JSON, also when no format is named', () => {
     for (const format of [undefined, 'json'] as const) {
       const error = catchHeatpathError(() => parseTransient(`  [${JSON.stringify({ time_s: times })}]`, 'list.json', format));

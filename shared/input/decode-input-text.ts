@@ -17,11 +17,21 @@ const SNIFFED_BYTES = 512;
  * header and numbers, which are ASCII: then it is decoded as such. Any other
  * file with zero bytes is not text (a workbook, an image) and is refused,
  * rather than failing later as a puzzling column name. `fileName` places
- * that error.
+ * that error. Ctrl-Z marks at the end (a DOS end of file) are dropped.
  */
 export function decodeInputText(input: Uint8Array | string, fileName: string): string {
   const text = typeof input === 'string' ? input : decoderFor(input, fileName).decode(input);
-  return text.startsWith(BYTE_ORDER_MARK) ? text.slice(1) : text;
+  return withoutEndOfFileMarks(text.startsWith(BYTE_ORDER_MARK) ? text.slice(1) : text);
+}
+
+/** Ctrl-Z, the end-of-file mark that DOS-era programs (and CP/M, padding a last record) write after the text. */
+const END_OF_FILE_MARK = 0x1a;
+
+/** `text` without the Ctrl-Z marks at its end: they end the text, they are not part of it. */
+function withoutEndOfFileMarks(text: string): string {
+  let end = text.length;
+  while (end > 0 && text.charCodeAt(end - 1) === END_OF_FILE_MARK) end--;
+  return end === text.length ? text : text.slice(0, end);
 }
 
 function decoderFor(bytes: Uint8Array, fileName: string): typeof utf8 {
