@@ -305,6 +305,28 @@ describe('parseTransient on repeated metadata and keys', () => {
     }
   });
 
+  it('reads the metadata keys it reads in any case, under their own spelling, and compares two values of a power as numbers', () => {
+    // *common practice*: benches and people write `# Power_W:` or `# KIND:` and mean the same key; the values are
+    // compared by decimal-number-text.ts's rule (a decimal comma in a single value, the key's unit allowed).
+    const cased = parseTransient(['# Power_W: 51.3', '# KIND: heating', '# Cycle_Count: 20000', '# POWER_W@M21: 48', 'time_s,temperature_C@M21', ...rows].join('\n'), 'cased.csv');
+    expect(cased.meta).toEqual({ power_W: '51.3', kind: 'heating', cycle_count: '20000', 'power_W@M21': '48' });
+    expect(cased.meta_lines).toEqual({ power_W: 1, kind: 2, cycle_count: 3, 'power_W@M21': 4 });
+    const sameNumber = parseTransient(['# power_W: 56.4866', '# Power_W: 56,4866 W', '# kind: Cooling', '# Kind: cooling', 'time_s,temperature_C', ...rows].join('\n'), 'same.csv');
+    expect(sameNumber.meta).toEqual({ power_W: '56.4866', kind: 'Cooling' });
+    const error = catchHeatpathError(() => parseTransient(['# power_W: 50', '# Power_W: 55', 'time_s,temperature_C', ...rows].join('\n'), 'two.csv'));
+    expect([error.code, error.location]).toEqual(['INPUT_DUPLICATE_METADATA', { file: 'two.csv', line: 2 }]);
+    expect(error.detail).toBe('"# power_W:" is "50" on line 1 and "# Power_W:" is "55" on line 2 (keys are read in any case)');
+    // An ambiguous value is the same only as its own text.
+    expect(catchHeatpathError(() => parseTransient(['# power_W: 1,250', '# power_W: 1250', 'time_s,temperature_C', ...rows].join('\n'), 'x.csv')).code).toBe('INPUT_DUPLICATE_METADATA');
+    // A key heatpath does not read keeps its spelling, and its lines.
+    expect(parseTransient(['# Note: a', '# note: b', 'time_s,temperature_C', ...rows].join('\n'), 'n.csv').meta).toEqual({ Note: 'a', note: 'b' });
+    // JSON "meta" alike.
+    const json = parseTransient(`{"time_s": ${JSON.stringify(times)}, "temperature_C": ${JSON.stringify(times)},\n"meta": {"Power_W": "51,3 W",\n"KIND": "heating"}}`, 'cased.json');
+    expect([json.meta, json.meta_lines]).toEqual([{ power_W: '51,3 W', kind: 'heating' }, { power_W: 2, kind: 3 }]);
+    const jsonTwo = catchHeatpathError(() => parseTransient(`{"time_s": ${JSON.stringify(times)}, "temperature_C": ${JSON.stringify(times)},\n"meta": {"power_W": 50,\n"POWER_W": 55}}`, 'two.json'));
+    expect([jsonTwo.code, jsonTwo.location.line, jsonTwo.detail]).toEqual(['INPUT_DUPLICATE_METADATA', 3, '"power_W" in "meta" is "50" on line 2 and "POWER_W" is "55" on line 3 (keys are read in any case)']);
+  });
+
   // RFC 8259, 4: names within an object SHOULD be unique; JSON.parse keeps the last (ECMA-262), so the first would be lost.
   it.each([
     ['time_s', `{\n"time_s": ${JSON.stringify(times)},\n"temperature_C": ${JSON.stringify(times)},\n"time_s": ${JSON.stringify(times)}\n}`, 'INPUT_DUPLICATE_COLUMN', 4, 'time_s', '"time_s" is on line 2 and again on line 4'],

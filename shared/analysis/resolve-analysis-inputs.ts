@@ -1,6 +1,6 @@
 import { Compile } from 'typebox/compile';
 import { HeatpathError } from '../errors/heatpath-error.js';
-import { singleDecimalValue } from '../input/decimal-number-text.js';
+import { metadataNumber } from '../input/metadata-number.js';
 import { metadataLocation, type TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
@@ -145,7 +145,7 @@ function checkEarlyTimeWindow(file: TransientFile, parameters: AnalysisParameter
  */
 function powerFromMeta(file: TransientFile, fileName: string, required: boolean, channel = '', fileWideHalf = false): Power | undefined {
   const keyOf = (key: string) => (file.meta[key + channel] === undefined && fileWideHalf ? key : key + channel);
-  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataNumber(file, key, keyOf(key), fileName) : undefined);
+  const number = (key: string) => (file.meta[keyOf(key)] !== undefined ? metadataLineNumber(file, keyOf(key), fileName) : undefined);
   const candidate = file.meta[`power_W${channel}`] !== undefined
     ? { power_W: number('power_W') }
     : file.meta[`current_A${channel}`] !== undefined || file.meta[`voltage_V${channel}`] !== undefined
@@ -164,17 +164,12 @@ function powerFromMeta(file: TransientFile, fileName: string, required: boolean,
 }
 
 /**
- * A number on a "# key: value" line (or a JSON meta value): a decimal by the
- * rule of decimal-number-text.ts, with a point or comma (an ambiguous `1,250`
- * is refused there), optionally followed by the key's own unit ("51.3 W" for
- * power_W). Anything else is NaN, which the power check refuses with the
- * line's text. `lineKey` is the key as the file writes it (`power_W@M21`).
+ * The number of a "# key: value" line (or a JSON meta value), by metadata-number.ts; anything else is NaN, which the
+ * power check refuses with the line's text. `lineKey` is the key as the file holds it (`power_W@M21`).
  */
-function metadataNumber(file: TransientFile, key: string, lineKey: string, fileName: string): number {
-  const unit = key.slice(key.lastIndexOf('_') + 1);
-  const value = file.meta[lineKey].trim().replace(new RegExp(`\\s*${unit}$`), '');
+function metadataLineNumber(file: TransientFile, lineKey: string, fileName: string): number {
   // Worded for both a CSV's `# key:` line and a JSON "meta" key.
-  return singleDecimalValue(value, `the file's ${lineKey} metadata`, metadataLocation(file, lineKey, fileName));
+  return metadataNumber(lineKey, file.meta[lineKey], `the file's ${lineKey} metadata`, metadataLocation(file, lineKey, fileName));
 }
 
 function stripUndefined<T extends object>(value: T): Partial<T> {

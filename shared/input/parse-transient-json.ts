@@ -2,7 +2,8 @@ import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
 import { checkTransientTime } from './check-transient-time.js';
 import { firstDuplicateJsonKey } from './json-duplicate-key.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
-import { DEFAULT_CHANNEL_NAME, isTransientQuantity, type TransientChannel, type TransientFile, type TransientQuantity } from './transient-file.js';
+import { sameMetadataValue } from './metadata-number.js';
+import { DEFAULT_CHANNEL_NAME, isTransientQuantity, metadataKeyRead, type TransientChannel, type TransientFile, type TransientMetadata, type TransientQuantity } from './transient-file.js';
 
 const TIME_KEY = 'time_s';
 const META_KEY = 'meta';
@@ -53,7 +54,33 @@ export function parseTransientJson(text: string, fileName: string): TransientFil
     }
   }
   checkTransientTime(time_s, (i) => ({ file: fileName, column: `${TIME_KEY}[${i}]` }));
-  return { quantity, time_s, channels, meta: readMeta(metaValue, fileName), meta_lines: metaLines };
+  return { quantity, time_s, channels, ...metadataKeysRead(readMeta(metaValue, fileName), metaLines, fileName) };
+}
+
+/**
+ * The "meta" object with the keys heatpath reads under its own spelling (metadataKeyRead: "Power_W" is power_W), as
+ * `# key:` lines are read; two spellings of one key with two values are refused, naming both lines.
+ */
+function metadataKeysRead(meta: Record<string, string>, lines: Record<string, number>, fileName: string): TransientMetadata {
+  const result: TransientMetadata = { meta: {}, meta_lines: {} };
+  const written: Record<string, string> = {};
+  for (const [key, value] of Object.entries(meta)) {
+    const readKey = metadataKeyRead(key) ?? key;
+    const earlier = written[readKey];
+    if (earlier !== undefined && !sameMetadataValue(readKey, result.meta[readKey], value)) {
+      const place = (name: string) => (lines[name] === undefined ? '' : ` on line ${lines[name]}`);
+      throw new HeatpathError(
+        'INPUT_DUPLICATE_METADATA',
+        `${quoteInputText(earlier)} in "meta" is ${quoteInputText(result.meta[readKey])}${place(earlier)} and ${quoteInputText(key)} is ${quoteInputText(value)}${place(key)} (keys are read in any case)`,
+        { file: fileName, line: lines[key], column: shortenInputText(`${META_KEY}@${key}`) },
+      );
+    }
+    if (earlier !== undefined) continue;
+    written[readKey] = key;
+    result.meta[readKey] = value;
+    if (lines[key] !== undefined) result.meta_lines[readKey] = lines[key];
+  }
+  return result;
 }
 
 /**

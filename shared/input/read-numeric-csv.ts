@@ -1,7 +1,8 @@
 import { HeatpathError, type ErrorLocation } from '../errors/heatpath-error.js';
 import { decimalTextValue } from './decimal-number-text.js';
 import { quoteInputText, shortenInputText } from './quote-input-text.js';
-import { isMetadataKeyRead } from './transient-file.js';
+import { sameMetadataValue } from './metadata-number.js';
+import { metadataKeyRead } from './transient-file.js';
 
 /**
  * The CSV dialect heatpath reads (transients and calibration points): LF,
@@ -123,26 +124,31 @@ interface MetaLine {
 }
 
 /**
- * The `# key: value` lines as metadata. A key that heatpath reads (a power,
- * the kind, the cycle count) given twice with two values is refused, naming
+ * The `# key: value` lines as metadata, a key that heatpath reads (a power,
+ * the kind, the cycle count) in any case and under its own spelling
+ * (metadataKeyRead). Such a key given twice with two values (two numbers,
+ * for a power) is refused, naming
  * both lines: which one the bench meant cannot be told (a header pasted over
  * another, a power edited in one place only), and taking either would analyse
  * silently with a value the file also contradicts. Any other key is the
  * bench's own (a note over several lines): its values are kept, one per line.
  */
 function metadataOf(meta: MetaLine[], separator: string, fileName: string): Pick<NumericCsvTable, 'meta' | 'meta_lines'> {
-  const first = new Map<string, { value: string; line: number }>();
-  for (const { key, value: written, line } of meta) {
+  const first = new Map<string, { value: string; line: number; written: string }>();
+  for (const { key: writtenKey, value: writtenValue, line } of meta) {
     // A spreadsheet pads every line to its columns, "# kind: cooling;" among them: the padding is not part of the value.
-    const value = trimTrailing(written, separator);
+    const value = trimTrailing(writtenValue, separator);
+    const readKey = metadataKeyRead(writtenKey);
+    const key = readKey ?? writtenKey;
     const earlier = first.get(key);
-    if (earlier === undefined) first.set(key, { value, line });
-    else if (!isMetadataKeyRead(key)) {
+    if (earlier === undefined) first.set(key, { value, line, written: writtenKey });
+    else if (readKey === undefined) {
       if (!earlier.value.split('\n').includes(value)) earlier.value += `\n${value}`;
-    } else if (earlier.value !== value) {
+    } else if (!sameMetadataValue(key, earlier.value, value)) {
+      const second = writtenKey === earlier.written ? '' : `"# ${shortenInputText(writtenKey)}:" is `;
       throw new HeatpathError(
         'INPUT_DUPLICATE_METADATA',
-        `"# ${shortenInputText(key)}:" is ${quoteInputText(earlier.value)} on line ${earlier.line} and ${quoteInputText(value)} on line ${line}`,
+        `"# ${shortenInputText(earlier.written)}:" is ${quoteInputText(earlier.value)} on line ${earlier.line} and ${second}${quoteInputText(value)} on line ${line}${second && ' (keys are read in any case)'}`,
         { file: fileName, line },
       );
     }

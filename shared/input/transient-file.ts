@@ -45,8 +45,21 @@ export function isTransientQuantity(name: string): name is TransientQuantity {
 }
 
 /** Header keys heatpath reads: the kind, the cycle count and the heating power, file-wide or per channel (`power_W@D1`). */
-const METADATA_KEYS_READ = /^(?:kind|cycle_count|(?:power_W|current_A|voltage_V)(?:@.+)?)$/;
+const METADATA_KEYS_READ = ['kind', 'cycle_count', 'power_W', 'current_A', 'voltage_V'] as const;
+const CHANNEL_KEYS_READ = new Set(['power_W', 'current_A', 'voltage_V']);
 
-export function isMetadataKeyRead(key: string): boolean {
-  return METADATA_KEYS_READ.test(key);
+/**
+ * The spelling heatpath reads a metadata key under (`power_W@M21` for
+ * `Power_W@M21`), undefined for a key it does not read. The key is matched in
+ * any case, as benches and people write `# Power_W:` or `# KIND:` and mean
+ * nothing else by it; a channel after `@` is kept as written, as column
+ * names are read exactly.
+ */
+export function metadataKeyRead(key: string): string | undefined {
+  const at = key.indexOf('@');
+  const base = (at < 0 ? key : key.slice(0, at)).toLowerCase();
+  const canonical = METADATA_KEYS_READ.find((name) => name.toLowerCase() === base);
+  if (canonical === undefined) return undefined;
+  if (at < 0) return canonical;
+  return CHANNEL_KEYS_READ.has(canonical) && at < key.length - 1 ? canonical + key.slice(at) : undefined;
 }
