@@ -277,6 +277,15 @@ describe('parseTransient JSON', () => {
     // A text that stops early: JSON.parse names no position, so the place is the end of the text.
     expectErrorAt('{\n  "time_s": ', 'bad.json', 'INPUT_BAD_JSON', 2, 13);
   });
+  it('names the line and column of a NaN or Infinity, which JSON has no number for, and says to remove the sample', () => {
+    // RFC 8259, 6: "Numeric values that cannot be represented ... (such as Infinity and NaN) are not permitted";
+    // serialisers write them for a missing sample (*common practice*). The place is the N of NaN: line 3, column 14.
+    expectErrorAt('{\n  "time_s": [1, 2],\n  "zth": [1, NaN]\n}', 'nan.json', 'INPUT_BAD_JSON', 3, 14);
+    expectErrorAt('{"time_s": [1, -Infinity]}', 'nan.json', 'INPUT_BAD_JSON', 1, 17);
+    expect(catchHeatpathError(() => parseTransient('{"time_s": [1, NaN]}', 'nan.json')).detail).toMatch(/: NaN is not a JSON number \(a serialiser writes it for a missing or failed sample\): remove the sample$/);
+    // A trailing comma, another token JSON.parse names no position for: the ] after it.
+    expectErrorAt('{"time_s": [1, 2,]}', 'comma.json', 'INPUT_BAD_JSON', 1, 18);
+  });
   // JSON places are named as column[index] (from 0), without a line.
   it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, undefined, index === undefined ? column : `${column}[${index}]`));
 });

@@ -127,16 +127,22 @@ function parseJsonText(text: string, fileName: string): unknown {
     return JSON.parse(text);
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
-    throw new HeatpathError('INPUT_BAD_JSON', message.slice(0, PARSER_MESSAGE_MAX_CHARS), { file: fileName, ...syntaxErrorPlace(text, message) });
+    const position = syntaxErrorPosition(text, message);
+    const notNumber = /^(?:NaN|Infinity)/.exec(text.slice(position, position + 8))?.[0];
+    const why = notNumber === undefined ? '' : `: ${notNumber} is not a JSON number (a serialiser writes it for a missing or failed sample): remove the sample`;
+    throw new HeatpathError('INPUT_BAD_JSON', message.slice(0, PARSER_MESSAGE_MAX_CHARS) + why, { file: fileName, ...textPlace(text, position) });
   }
 }
 
-/** Line and column (from 1) of a JSON.parse error whose message names the character position; nothing when it does not. */
-function syntaxErrorPlace(text: string, message: string): { line?: number; column?: number } {
+/** The character position of a JSON.parse error: the one its message names, else found. */
+function syntaxErrorPosition(text: string, message: string): number {
   const match = /at position (\d+)/.exec(message);
   // "Unexpected end of JSON input" names no position: the text stops early, so the place is its end.
-  if (!match && !/end of JSON input/.test(message)) return {};
-  const position = match ? Math.min(Number(match[1]), text.length) : text.length;
+  return match ? Math.min(Number(match[1]), text.length) : /end of JSON input/.test(message) ? text.length : unexpectedTokenPosition(text);
+}
+
+/** Line and column (from 1) of a character position. */
+function textPlace(text: string, position: number): { line: number; column: number } {
   let line = 1;
   let lineStart = 0;
   for (let i = 0; i < position; i++) {
@@ -146,6 +152,36 @@ function syntaxErrorPlace(text: string, message: string): { line?: number; colum
     }
   }
   return { line, column: position - lineStart + 1 };
+}
+
+/**
+ * The position of the character JSON.parse stopped at where its message
+ * names none (Node 20: "Unexpected token 'N', ..." for a NaN a serialiser
+ * wrote): the shortest start of the text that fails other than by ending
+ * early ends just after it. A start fails so exactly when the whole text
+ * fails there, as JSON is read from left to right; found by bisection, on
+ * the error path only.
+ */
+function unexpectedTokenPosition(text: string): number {
+  let clean = 0;
+  let failing = text.length;
+  while (failing - clean > 1) {
+    const middle = (clean + failing) >>> 1;
+    if (failsBeforeEnd(text.slice(0, middle))) failing = middle;
+    else clean = middle;
+  }
+  return failing - 1;
+}
+
+function failsBeforeEnd(start: string): boolean {
+  try {
+    JSON.parse(start);
+    return false;
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    const position = /at position (\d+)/.exec(message);
+    return !/end of JSON input/.test(message) && (position === null || Number(position[1]) < start.length);
+  }
 }
 
 function readChannels(value: unknown, quantity: TransientQuantity, fileName: string): TransientChannel[] {
