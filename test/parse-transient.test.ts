@@ -391,6 +391,24 @@ describe('parseTransient explains common layout mistakes', () => {
     expect(catchHeatpathError(() => parseTransient([',time_s,temperature_C', ...rows.map((row, i) => `${i},${row}`)].join('\n'), 'x.csv')).detail).toMatch(/^column 1 has no name \(a row-number column/);
   });
 
+  it.each([
+    ['time_s   temperature_C', 'no time_s column in the header, which names "time_s   temperature_C"; "time_s   temperature_C": spaces do not separate columns: separate them with a comma, semicolon or tab'],
+    ['t,T', 'no time_s column in the header, which names "t", "T"; "t": rename it to time_s; "T": rename it to temperature_C'],
+  ])('explains a header %s that names no time_s column', (header, detail) => {
+    // RFC 4180, 2: fields are separated by the separator, never by spaces; t for time and T for temperature is physics' usage (*common practice*).
+    expect(catchHeatpathError(() => parseTransient([header, ...rows].join('\n'), 'h.csv')).detail).toBe(detail);
+  });
+
+  it.each([
+    ['temperature_K', 'temperatures must be in degrees Celsius: subtract 273.15 from the kelvins and name the column temperature_C'],
+    ['Tj [K]@M21', 'temperatures must be in degrees Celsius: subtract 273.15 from the kelvins and name the column temperature_C@M21'],
+    ['voltage_mV', 'voltages must be in volts: divide the millivolts by 1000 and name the column voltage_V'],
+    ['Vf [mV]', 'voltages must be in volts: divide the millivolts by 1000 and name the column voltage_V'],
+  ])('says to convert a value column %s to the unit heatpath reads', (name, hint) => {
+    // 0 °C = 273.15 K and 1 V = 1000 mV (SI Brochure, 9th edition, 2.3.1 and 3).
+    expect(catchHeatpathError(() => parseTransient([`time_s,${name}`, ...rows].join('\n'), 'u.csv')).detail).toBe(`${JSON.stringify(name)} is not time_s or a value column: ${hint}`);
+  });
+
   it('suggests ; or a tab when a comma-separated row has too many fields and no decimal point', () => {
     const error = catchHeatpathError(() => parseTransient(['time_s,temperature_C', '1,5e-6,25,3', ...rows.slice(1)].join('\n'), 'comma.csv'));
     expect(error.code).toBe('INPUT_ROW_LENGTH');
