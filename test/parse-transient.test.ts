@@ -391,6 +391,40 @@ describe('parseTransient explains common layout mistakes', () => {
     expect(catchHeatpathError(() => parseTransient([',time_s,temperature_C', ...rows.map((row, i) => `${i},${row}`)].join('\n'), 'x.csv')).detail).toMatch(/^column 1 has no name \(a row-number column/);
   });
 
+  it('says a comment line looks like the header when the header is commented out', () => {
+    // *common practice*: scripts write `# time_s,...` so that other tools skip the header; heatpath then finds a data row where the header belongs.
+    const error = catchHeatpathError(() => parseTransient(['# power_W: 50', '# time_s,temperature_C', ...rows].join('\n'), 'hash.csv'));
+    expect([error.code, error.location]).toEqual(['INPUT_MISSING_COLUMN', { file: 'hash.csv', line: 2 }]);
+    expect(error.detail).toBe(`no time_s column in the header (line 3), which names ${rows[0].split(',').map((v) => JSON.stringify(v)).join(', ')}; line 2, "# time_s,temperature_C", looks like the header but is a comment: remove its "#"`);
+  });
+
+  it('says the header repeats on its line when two records are joined into one file', () => {
+    // *common practice*: two exports appended to one file repeat the header between the records.
+    const joined = ['# power_W: 50', 'time_s,temperature_C', ...rows, '# power_W: 50', 'time_s,temperature_C', ...rows].join('\n');
+    const error = catchHeatpathError(() => parseTransient(joined, 'joined.csv'));
+    expect([error.code, error.location, error.detail]).toEqual(['INPUT_HEADER_REPEATED', { file: 'joined.csv', line: rows.length + 4 }, `the header of line 2 repeats on line ${rows.length + 4} (two records joined into one file?)`]);
+    expect(error.message).toContain('Keep one record per file');
+    // Quoted like the header it repeats, it is the same header.
+    expect(catchHeatpathError(() => parseTransient(['time_s,temperature_C', ...rows.slice(0, 3), '"time_s", "temperature_C"', ...rows].join('\n'), 'joined.csv')).code).toBe('INPUT_HEADER_REPEATED');
+  });
+
+  it('says repeated times look rounded to N decimals when a fixed-point export collapsed close samples, and not when a sample is written twice in full', () => {
+    // printf's %.6f (ISO C 7.21.6.1) writes six decimals: log-spaced times 1e-6 s apart at 1.0e-6 .. 1.1e-6 s all print as 0.000001.
+    const fixed = times.map((t, i) => `${t.toFixed(6)},${(80 - i * 0.01).toFixed(4)}`);
+    const error = catchHeatpathError(() => parseTransient(['time_s,temperature_C', ...fixed].join('\n'), 'fixed.csv'));
+    expect([error.code, error.location]).toEqual(['INPUT_DUPLICATE_TIME', { file: 'fixed.csv', line: 3, column: 'time_s' }]);
+    expect(error.detail).toBe('time_s = 0.000001 s also on the previous sample: the times look rounded to 6 decimals (a fixed-point export such as %.6f?), which makes close samples equal; export them with more significant digits (%.6e or %.9g)');
+    // A sample written twice in full (all its digits) is a repeat, not rounding.
+    expect(catchHeatpathError(() => parseTransient(['time_s,temperature_C', ...rows.slice(0, 3), rows[2], ...rows.slice(3)].join('\n'), 'twice.csv')).detail).toBe(`time_s = ${times[2]} s also on the previous sample`);
+  });
+
+  it('says an empty extra field is a separator at the end of the data lines that the header lacks', () => {
+    // *common practice*: scripts that print "value," per column end every data line with the separator.
+    const error = catchHeatpathError(() => parseTransient(['time_s,temperature_C', ...rows.map((row) => `${row},`)].join('\n'), 'trail.csv'));
+    expect([error.code, error.location]).toEqual(['INPUT_ROW_LENGTH', { file: 'trail.csv', line: 2 }]);
+    expect(error.detail).toBe('3 fields, the header has 2 (separator ","): the extra field is empty (a separator at the end of the data lines): remove it, or end the header line with "," too');
+  });
+
   it.each([
     ['time_s   temperature_C', 'no time_s column in the header, which names "time_s   temperature_C"; "time_s   temperature_C": spaces do not separate columns: separate them with a comma, semicolon or tab'],
     ['t,T', 'no time_s column in the header, which names "t", "T"; "t": rename it to time_s; "T": rename it to temperature_C'],

@@ -27,6 +27,7 @@ export const errorCatalogue = {
   CYCLE_COUNT_INVALID: { status: 400, title: 'A cycle count is not a whole number of cycles written in digits', hint: 'Write the number of cycles as digits only, e.g. 40000: no thousands separator (40,000 or 40.000), decimal point, exponent (4e4), sign or words.' },
   INPUT_AMBIGUOUS_NUMBER: { status: 400, title: 'A number could be read two ways', hint: 'Write single values (header lines, meta values, options) without thousands separators, 1250 or 1.25 rather than 1,250; a decimal point is never ambiguous.' },
   INPUT_DUPLICATE_METADATA: { status: 400, title: 'A metadata key is given twice with different values', hint: 'Keep one `# key: value` line (or one "meta" key in JSON) per key, with the value that is meant.' },
+  INPUT_HEADER_REPEATED: { status: 400, title: 'The header line repeats among the data rows', hint: 'Keep one record per file: split the file where the header repeats, and send each record on its own.' },
 
   // ---- calibration ----
   CALIBRATION_TOO_FEW_POINTS: { status: 422, title: 'Too few calibration points for the model', hint: 'A polynomial of order n needs at least n + 2 points; add points or choose a lower order.' },

@@ -59,6 +59,37 @@ function timeFaultError(time_s: Float64Array, i: number, location: ErrorLocation
   const t = time_s[i];
   if (t < 0) return new HeatpathError('INPUT_NEGATIVE_TIME', `time_s = ${t} s`, location);
   const previous = time_s[i - 1];
-  if (t === previous) return new HeatpathError('INPUT_DUPLICATE_TIME', `time_s = ${t} s also on the previous sample`, location);
+  if (t === previous) {
+    const decimals = roundedDecimals(time_s, i);
+    const rounded = decimals === undefined ? '' : `: the times look rounded to ${decimals} decimals (a fixed-point export such as %.${decimals}f?), which makes close samples equal; export them with more significant digits (%.6e or %.9g)`;
+    return new HeatpathError('INPUT_DUPLICATE_TIME', `time_s = ${t} s also on the previous sample${rounded}`, location);
+  }
   return new HeatpathError('INPUT_TIME_NOT_INCREASING', `time_s = ${t} s follows ${previous} s`, location);
+}
+
+/** Most decimals looked for: a fixed-point export of seconds writes 3 to 9 (ms to ns). */
+const MAX_FIXED_DECIMALS = 9;
+/** A repeated time with fewer significant digits than this lost its resolution to the rounding. */
+const FEW_SIGNIFICANT_DIGITS = 10 ** 3;
+
+/**
+ * The decimals N to which the times up to sample `i` look rounded, when they
+ * explain the repeat at `i`: every one of them a whole multiple of 10^-N
+ * (none needing more decimals), and the repeated time written with fewer than
+ * 4 significant digits (`%.6f` turns 1.02e-6 s into 0.000001), so that
+ * samples closer than 10^-N fell onto one value. Undefined otherwise: a
+ * sample written twice in full is a repeated sample, not rounding.
+ */
+function roundedDecimals(time_s: Float64Array, i: number): number | undefined {
+  for (let decimals = 0; decimals <= MAX_FIXED_DECIMALS; decimals++) {
+    const scale = 10 ** decimals;
+    if (!(time_s[i] * scale < FEW_SIGNIFICANT_DIGITS)) return undefined;
+    let whole = true;
+    for (let k = 0; k <= i && whole; k++) {
+      const scaled = time_s[k] * scale;
+      whole = Math.abs(scaled - Math.round(scaled)) <= 1e-9 * Math.max(1, scaled);
+    }
+    if (whole) return decimals;
+  }
+  return undefined;
 }

@@ -22,10 +22,18 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
   let quantity: TransientQuantity | undefined;
   const valueColumns: ValueColumn[] = [];
 
-  const table = readNumericCsv(text, fileName, (names, headerLine) => {
+  const table = readNumericCsv(text, fileName, (names, headerLine, comments) => {
     const at = (name: string) => ({ file: fileName, line: headerLine, column: shortenInputText(name) });
     const seenChannels = new Map<string, string>();
     if (!names.includes(TIME_COLUMN)) {
+      const commented = comments.find((comment) => comment.text.slice(1).split(/[,;\t]/).some((name) => name.trim() === TIME_COLUMN));
+      if (commented !== undefined) {
+        throw new HeatpathError(
+          'INPUT_MISSING_COLUMN',
+          `no ${TIME_COLUMN} column in the header (line ${headerLine}), which names ${quotedNames(names)}; line ${commented.line}, ${quoteInputText(commented.text)}, looks like the header but is a comment: remove its "#"`,
+          { file: fileName, line: commented.line },
+        );
+      }
       // Checked first: a calibration sweep (temperature_C,voltage_V) handed to analyze is the common case.
       const sweep = names.includes('temperature_C') && names.includes('voltage_V') ? '; temperature_C with voltage_V looks like a calibration sweep: fit it with `heatpath calibrate`' : '';
       throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header, which names ${quotedNames(names)}${sweep || renameHints(names)}`, { file: fileName, line: headerLine });

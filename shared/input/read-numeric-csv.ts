@@ -40,9 +40,10 @@ const META_LINE = /^#\s*([^:]+?)\s*:\s*(.*?)\s*$/;
  * Read a numeric CSV table from decoded text (see decode-input-text.ts). `checkHeader` sees the names before any data row
  * is read, so that header mistakes are reported first.
  */
-export function readNumericCsv(text: string, fileName: string, checkHeader: (names: string[], headerLine: number) => void): NumericCsvTable {
+export function readNumericCsv(text: string, fileName: string, checkHeader: (names: string[], headerLine: number, comments: CommentLine[]) => void): NumericCsvTable {
   const lines = new LineCursor(text);
   const meta: MetaLine[] = [];
+  const comments: CommentLine[] = [];
   let headerText: string | undefined;
   while (lines.next()) {
     const line = lines.text().trim();
@@ -50,6 +51,7 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
     if (line.startsWith('#')) {
       const match = META_LINE.exec(line);
       if (match) meta.push({ key: match[1], value: match[2], line: lines.number });
+      else comments.push({ text: line, line: lines.number });
       continue;
     }
     headerText = lines.text();
@@ -72,7 +74,8 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
     const why = unnamed === 0 ? 'a row-number column written by a script? write the file without it' : 'two separators in a row?';
     throw new HeatpathError('INPUT_UNKNOWN_COLUMN', `column ${unnamed + 1} has no name (${why})`, { file: fileName, line: lines.number, column: unnamed + 1 });
   }
-  checkHeader(names, lines.number);
+  const headerLine = lines.number;
+  checkHeader(names, headerLine, comments);
 
   // No more data rows than lines left: fill typed arrays in place and trim them at the end.
   const capacity = lines.remaining();
@@ -94,6 +97,9 @@ export function readNumericCsv(text: string, fileName: string, checkHeader: (nam
       if (fields.every((field) => field.trim() === '')) continue;
       while (fields.length > names.length && fields.length - names.length <= unnamedAtEnd && fields[fields.length - 1].trim() === '') fields.pop();
       if (fields.length !== names.length) throw rowLengthError(fields, line, names.length, unnamedAtEnd, separator, { file: fileName, line: lines.number });
+      if (fields.every((field, c) => cleanField(field) === names[c])) {
+        throw new HeatpathError('INPUT_HEADER_REPEATED', `the header of line ${headerLine} repeats on line ${lines.number} (two records joined into one file?)`, { file: fileName, line: lines.number });
+      }
       for (let c = 0; c < names.length; c++) row[c] = parseNumber(fields[c], separator, fileName, lines.number, names[c]);
     }
     for (let c = 0; c < names.length; c++) columns[c][rows] = row[c];
@@ -111,10 +117,19 @@ function rowLengthError(fields: string[], line: string, columns: number, unnamed
   let why = '';
   if (fields.length > columns && unnamedAtEnd > 0) {
     why = `: column ${columns + 1} has a value here but no name in the header (a separator at the end of the header line?)`;
+  } else if (fields.length === columns + 1 && fields[columns].trim() === '') {
+    why = `: the extra field is empty (a separator at the end of the data lines): remove it, or end the header line with ${JSON.stringify(separator)} too`;
   } else if (fields.length > columns && separator === ',' && !line.includes('.')) {
     why = ': the row has no decimal point; if its numbers have decimal commas (1,5), those need ; or a tab as the separator, or double quotes ("1,5")';
   }
   return new HeatpathError('INPUT_ROW_LENGTH', `${fields.length} fields, the header has ${columns} (separator ${JSON.stringify(separator)})${why}`, at);
+}
+
+/** A `#` line before the header that is no `# key: value` line. */
+export interface CommentLine {
+  /** The line, trimmed, with its `#`. */
+  text: string;
+  line: number;
 }
 
 interface MetaLine {
