@@ -178,7 +178,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
         querystring: Type.Object(
           {
-            channel: Type.Optional(Type.String({ maxLength: 64, description: 'The result channel to follow; needed when the results have several.' })),
+            channel: Type.Optional(Type.String({ maxLength: 64, description: "The channel of the files' value columns to follow (temperature_C@A is channel A; a column without @ is channel 1), not the upload's channel label; needed when the results have several." })),
             reference_upload_id: Type.Optional(Type.String({ maxLength: 160, description: 'The reference measurement; default: the first in cycle order.' })),
             batch_id: Type.Optional(Type.String({ maxLength: 160, description: 'Read the jobs of this reprocessing batch instead of the uploads\' own jobs.' })),
             rth_rise_limit_percent: Type.Optional(Type.Number({ exclusiveMinimum: 0, default: DEFAULT_RTH_RISE_LIMIT_PERCENT, description: 'Flag an Rth rise above this (20 % is a common end-of-life criterion, recalled from memory; the qualification plan and AQG 324 decide).' })),

@@ -8,7 +8,8 @@ import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { JobStateSchema, JobStatusSchema, readJobStatus, storedJobStatus } from '../jobs/job-status.js';
 import { UploadLinksSchema, UploadRecordSchema } from '../schemas/upload-record-schema.js';
 import { UploadMetadataSchema, UploadQuerySchema } from '../schemas/transient-metadata.js';
-import { acceptTransientUpload, uploadCaution, uploadLinks } from '../uploads/accept-transient-upload.js';
+import { acceptTransientUpload, uploadLinks } from '../uploads/accept-transient-upload.js';
+import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import { typedFieldsFromText } from '../../../shared/schemas/typed-fields-from-text.js';
 import { readMultipartUpload, readRawUpload } from '../uploads/read-upload-request.js';
 import { withRequestCycleCount } from '../uploads/request-cycle-count.js';
@@ -24,7 +25,7 @@ const UploadAnswerSchema = Type.Object({
   links: UploadLinksSchema,
   cycle_count: Type.Union([Type.Integer(), Type.Null()], { description: "The cycle count recorded for the upload: the request's cycle_count, else the file's \"# cycle_count:\" line, else null." }),
   warnings: Type.Array(Type.String(), { description: "What the upload was accepted despite, e.g. a request's cycle_count, power or kind that differs from the file's header lines." }),
-  caution: Type.String({ default: uploadCaution }),
+  caution: Type.String({ default: RESULT_CAUTION }),
 });
 
 const binary = (description: string) => Type.Unsafe<unknown>({ format: 'binary', description });

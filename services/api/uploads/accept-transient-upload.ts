@@ -1,4 +1,5 @@
 import { randomUUID } from 'node:crypto';
+import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import type { FastifyBaseLogger } from 'fastify';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../../shared/input/cycle-count.js';
@@ -35,8 +36,6 @@ export interface UploadAnswer {
   caution: string;
 }
 
-export const uploadCaution =
-  'Results inform qualification and design; they do not replace the applicable standards and qualified lab practice.';
 
 /**
  * Accept one transient: check it completely (metadata, parse, calibration,
@@ -83,7 +82,7 @@ export async function acceptTransientUpload(
     links: uploadLinks(record),
     cycle_count: record.cycle_count,
     warnings,
-    caution: uploadCaution,
+    caution: RESULT_CAUTION,
   });
 
   const replay = async (uploadId: string) => {
