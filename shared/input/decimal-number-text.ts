@@ -64,9 +64,9 @@ export function singleDecimalValue(text: string, source: string, location: Error
  * singleDecimalValue, and any other text is kept as given for the
  * service to judge.
  */
-export function decimalPointSpelling(text: string, source: string, location: ErrorLocation = {}): string {
+export function decimalPointSpelling(text: string, source: string): string {
   const trimmed = text.trim();
-  if (THOUSANDS_OR_DECIMAL_COMMA.test(trimmed)) throw ambiguousNumberError(trimmed, source, location);
+  if (THOUSANDS_OR_DECIMAL_COMMA.test(trimmed)) throw ambiguousNumberError(trimmed, source, {});
   return DECIMAL_COMMA_NUMBER.test(trimmed) ? trimmed.replace(',', '.') : text;
 }
 
