@@ -1,6 +1,6 @@
 import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
-import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES, packageRthNote, type DegradationCriteria } from '../../shared/analysis/package-degradation.js';
+import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, degradationNotes, type DegradationCriteria } from '../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../shared/analysis/rth-limit-crossing.js';
 import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
@@ -107,10 +107,6 @@ function degradationRow(reference: DegradationReference, { measurement, cycleCou
   return { measurement, cycleCount, comparison: compareForDegradation(reference.measurement.result, measurement.result, criteria) };
 }
 
-function degradationNotes(criteria: DegradationCriteria): string[] {
-  return criteria.packageRth_K_per_W === undefined ? DEGRADATION_NOTES : [...DEGRADATION_NOTES, packageRthNote(criteria.packageRth_K_per_W)];
-}
-
 function limitCrossing(referenceCycles: number | null, rows: DegradationRow[], limitPercent: number) {
   return rthLimitCrossing(referenceCycles, rows.map(({ cycleCount, comparison }) => ({ cycle_count: cycleCount, comparison })), limitPercent);
 }
@@ -130,7 +126,7 @@ export function degradationReport({ measurement: reference, cycleCount, chosenBy
     package_rth_K_per_W: criteria.packageRth_K_per_W ?? null,
     limit_crossing: limitCrossing(cycleCount, rows, criteria.rthRiseLimitPercent),
     later: rows.map(({ measurement, cycleCount, comparison }) => ({ file: measurement.file, cycle_count: cycleCount, ...comparison })),
-    notes: degradationNotes(criteria),
+    notes: degradationNotes(criteria.packageRth_K_per_W),
     caution: RESULT_CAUTION,
   };
 }
@@ -179,7 +175,7 @@ export function formatDegradation({ measurement: reference, cycleCount: referenc
             (crossing.interpolated_cycle_count === null ? '.' : `; between the measurements, at about ${Math.round(crossing.interpolated_cycle_count)} cycles.`),
         ]),
     '  u(change): standard uncertainty of the change from the noise of both records.',
-    ...degradationNotes(criteria).map((note) => `  ${note}`),
+    ...degradationNotes(criteria.packageRth_K_per_W).map((note) => `  ${note}`),
     ...(warnings.length > 0 ? ['Warnings:', ...warnings] : []),
     `Caution: ${RESULT_CAUTION}`,
   ].join('\n') + '\n';

@@ -26,9 +26,6 @@ export interface DegradationCriteria {
   packageRth_K_per_W?: number;
 }
 
-/** Why an Rth change was not judged against the limit; null when it was. */
-export type NotJudgedReason = 'record_lengths_differ';
-
 export const DEGRADATION_NOTES = [
   'The shift is R_sum(C) of a later measurement minus the reference\'s at equal C_sum: it starts where the degraded layer sits, counted from the junction, and settles at the resistance that layer added.',
   'Bond-wire damage shows in the on-state voltage, not in the structure function (common practice).',
@@ -36,8 +33,13 @@ export const DEGRADATION_NOTES = [
   "The standard uncertainty of the Rth change counts the noise of both records (each Rth total's value at t = 0 and steady-state level; GUM, JCGM 100:2008), not the power, the calibration or how the device was mounted again; it informs the judgement, which stays the qualification plan's under AQG 324 or the applicable standard.",
 ];
 
+/** The notes of a comparison: DEGRADATION_NOTES, and with the package's own Rth given, what shift_beyond_package says. */
+export function degradationNotes(packageRth_K_per_W: number | undefined): string[] {
+  return packageRth_K_per_W === undefined ? DEGRADATION_NOTES : [...DEGRADATION_NOTES, packageRthNote(packageRth_K_per_W)];
+}
+
 /** The note of a comparison made with the package's own Rth (shift_beyond_package). */
-export function packageRthNote(packageRth_K_per_W: number): string {
+function packageRthNote(packageRth_K_per_W: number): string {
   return (
     `shift_beyond_package is true where the structure function starts to shift beyond the package's own Rth (junction to case) of ${packageRth_K_per_W} K/W given: ` +
     'the change lies in the thermal interface or the cooler, not in the package; a judgement of the package informs but does not replace qualification under AQG 324 or the applicable standard'

@@ -1,6 +1,6 @@
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
-import { compareForDegradation, DEGRADATION_NOTES, packageRthNote } from '../../../shared/analysis/package-degradation.js';
+import { compareForDegradation, degradationNotes } from '../../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../../shared/analysis/rth-limit-crossing.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
@@ -151,7 +151,7 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     later,
     not_included: notIncluded,
     warnings,
-    notes: options.package_rth_K_per_W === undefined ? DEGRADATION_NOTES : [...DEGRADATION_NOTES, packageRthNote(options.package_rth_K_per_W)],
+    notes: degradationNotes(options.package_rth_K_per_W),
     caution: RESULT_CAUTION,
   };
 }
