@@ -5,7 +5,7 @@ import type { TransientStore } from '../../store/transient-store.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 import { UploadLinksSchema } from '../schemas/upload-record-schema.js';
 import { uploadLinks } from '../uploads/accept-transient-upload.js';
-import { sampleDegradation } from '../samples/sample-degradation.js';
+import { NotIncludedReasonCodeSchema, sampleDegradation } from '../samples/sample-degradation.js';
 import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
@@ -71,10 +71,7 @@ const SampleDegradationSchema = Type.Object({
     Type.Object({
       upload_id: Type.String(),
       job_id: Type.Union([Type.String(), Type.Null()]),
-      reason_code: Type.Union(
-        [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable'), Type.Literal('sent_again')],
-        { description: 'Stable, to branch on; reason says more.' },
-      ),
+      reason_code: NotIncludedReasonCodeSchema,
       reason: Type.String(),
     }),
     {

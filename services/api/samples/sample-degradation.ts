@@ -1,3 +1,4 @@
+import { Type, type Static } from 'typebox';
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
 import { compareForDegradation, degradationNotes } from '../../../shared/analysis/package-degradation.js';
@@ -23,7 +24,12 @@ export interface SampleDegradationOptions {
 }
 
 /** Why an upload is not in the trend: stable, for a LIMS to branch on; the text beside it says more. */
-export type NotIncludedReasonCode = 'not_in_batch' | 'analysis_failed' | 'analysis_pending' | 'channel_missing' | 'not_comparable' | 'sent_again';
+export const NotIncludedReasonCodeSchema = Type.Union(
+  [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable'), Type.Literal('sent_again')],
+  { description: 'Stable, to branch on; reason says more.' },
+);
+
+type NotIncludedReasonCode = Static<typeof NotIncludedReasonCodeSchema>;
 
 interface NotIncluded {
   upload_id: string;
