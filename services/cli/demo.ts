@@ -10,6 +10,7 @@ import { readdir } from 'node:fs/promises';
 import { join, relative } from 'node:path';
 import { isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
+import { cycleCountFromMeta } from '../../shared/input/cycle-count.js';
 import { analyzeFiles } from './analyze-command.js';
 import { runCalibrateCommand } from './calibrate-command.js';
 import { runDegradationCommand } from './degradation-command.js';
@@ -54,7 +55,7 @@ async function runDemo(): Promise<void> {
     const first = campaign[0].result.rth_total_K_per_W;
     print('Power-cycling campaign of M31 (synthetic: die attach cracking), Rth total against cycles:');
     for (const run of campaign) {
-      const cycles = Number(/cycle-(\d+)/.exec(run.file)?.[1]);
+      const cycles = cycleCountFromMeta(run.meta, run.file);
       const rth = run.result.rth_total_K_per_W;
       print(`  ${String(cycles).padStart(6)} cycles   ${rth.toFixed(4)} K/W   ${(((rth - first) / first) * 100).toFixed(1).padStart(5)} %`);
     }
