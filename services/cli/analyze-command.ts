@@ -32,7 +32,7 @@ ${analysisParametersUsage}
                           per line`;
 
 export interface AnalyzeRun {
-  /** meta: the file's `# key: value` lines, which results do not carry. */
+  /** meta: the file's `# key: value` lines with the line each is on, for errors about their values (result.source.meta has the values only). */
   results: { file: string; result: AnalysisResult; meta: TransientMetadata; outDir?: string }[];
   /** Files the user must fix: the others are analysed all the same. */
   failures: HeatpathError[];

@@ -9,7 +9,7 @@ import { isUserError } from './user-error-line.js';
 export interface ReprocessSettings {
   parameters: Partial<AnalysisParameters>;
   power?: Power;
-  /** The calibration's id (services/jobs/calibration-id.ts), or null. */
+  /** The calibration's id (calibrationIdOf, shared/schemas/calibration-id.ts), or null. */
   calibration_sha256: string | null;
   /** The sample id a file is uploaded under (sent to a server), or null for a local run, which has no samples. */
   sampleIdOf: (relativePath: string) => string | null;

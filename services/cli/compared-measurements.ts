@@ -1,8 +1,8 @@
 /**
  * The measurements a comparing command (rthjc, degradation) works on: each
  * file analysed like `heatpath analyze` does, one channel per file, with the
- * file's metadata (cycle_count) kept beside the result, which does not carry
- * it.
+ * file's metadata (cycle_count) and the lines it is on kept beside the result,
+ * so that an unreadable cycle count names its line.
  */
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';

@@ -9,9 +9,10 @@ export const MIN_OVERRIDE_WINDOW_SAMPLES = 3;
  * bounds the record's time axis alone shows to be wrong: not positive, in
  * the wrong order, outside the record, or around fewer than
  * MIN_OVERRIDE_WINDOW_SAMPLES samples. It needs only the times, so the
- * service checks an upload with it before accepting it, and the sqrt(t)
- * extrapolation with it before fitting: a window outside the record is one
- * mistake, refused in one wording wherever it is found.
+ * service checks an upload with it before accepting it (and a batch its
+ * selection's first upload), and the sqrt(t) extrapolation with it before
+ * fitting: a window outside the record is one mistake, refused in one
+ * wording wherever it is found.
  */
 export function givenEarlyTimeWindow(time_s: Float64Array, start_s: number | undefined, end_s: number | undefined): { start?: number; end?: number } {
   for (const [name, bound] of [['early_time_start_s', start_s], ['early_time_end_s', end_s]] as const) {
