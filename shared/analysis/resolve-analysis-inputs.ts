@@ -1,7 +1,7 @@
 import { Compile } from 'typebox/compile';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { metadataNumber } from '../input/metadata-number.js';
-import { metadataLocation, type TransientFile } from '../input/transient-file.js';
+import { metadataLocation, POWER_KEYS, type TransientFile } from '../input/transient-file.js';
 import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type AnalysisParameters, type Power } from '../schemas/analysis-parameters.js';
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
 import { heatingPower_W } from '../numerics/zth-from-temperature.js';
@@ -34,12 +34,9 @@ export function resolveAnalysisInputs(
   return { parameters, power, channelPowers, warnings: overriddenHeaderLines(file, given, fileName) };
 }
 
-/** Header keys of a heating power; a channel's own carry `@channel`. */
-const POWER_KEYS = ['power_W', 'current_A', 'voltage_V'] as const;
-
 /** The `# power_W@CHANNEL:` (or current_A@, voltage_V@) lines of a file. */
 export function channelPowerLines(file: TransientFile): string[] {
-  return Object.keys(file.meta).filter((key) => POWER_KEYS.some((base) => key.startsWith(`${base}@`)));
+  return Object.keys(file.meta).filter((key) => [...POWER_KEYS].some((base) => key.startsWith(`${base}@`)));
 }
 
 /** The channels' own powers from `# power_W@CHANNEL:` lines (or current and voltage), undefined when the file has none. */

@@ -1,8 +1,6 @@
 import type { ErrorLocation } from '../errors/heatpath-error.js';
 import { singleDecimalValue } from './decimal-number-text.js';
-
-/** Keys whose value is a number by the rule of decimal-number-text.ts, with or without their unit. */
-const NUMBER_KEYS = new Set(['power_W', 'current_A', 'voltage_V']);
+import { POWER_KEYS } from './transient-file.js';
 
 /**
  * The number a `# key: value` line (or a JSON meta value) of a heating power
@@ -14,7 +12,7 @@ const NUMBER_KEYS = new Set(['power_W', 'current_A', 'voltage_V']);
  */
 export function metadataNumber(key: string, text: string, source: string, location: ErrorLocation = {}): number {
   const base = key.split('@')[0];
-  if (!NUMBER_KEYS.has(base)) return Number.NaN;
+  if (!POWER_KEYS.has(base)) return Number.NaN;
   const unit = base.slice(base.lastIndexOf('_') + 1);
   return singleDecimalValue(text.trim().replace(new RegExp(`\\s*${unit}$`), ''), source, location);
 }

@@ -44,9 +44,11 @@ export function isTransientQuantity(name: string): name is TransientQuantity {
   return (TRANSIENT_QUANTITIES as readonly string[]).includes(name);
 }
 
-/** Header keys heatpath reads: the kind, the cycle count and the heating power, file-wide or per channel (`power_W@D1`). */
-const METADATA_KEYS_READ = ['kind', 'cycle_count', 'power_W', 'current_A', 'voltage_V'] as const;
-const CHANNEL_KEYS_READ = new Set(['power_W', 'current_A', 'voltage_V']);
+/** Header keys that give the heating power, file-wide or per channel (`power_W@D1`); their values are numbers (metadata-number.ts). */
+export const POWER_KEYS: ReadonlySet<string> = new Set(['power_W', 'current_A', 'voltage_V']);
+
+/** Header keys heatpath reads: the kind, the cycle count and the heating power. */
+const METADATA_KEYS_READ = ['kind', 'cycle_count', ...POWER_KEYS];
 
 /**
  * The spelling heatpath reads a metadata key under (`power_W@M21` for
@@ -61,5 +63,5 @@ export function metadataKeyRead(key: string): string | undefined {
   const canonical = METADATA_KEYS_READ.find((name) => name.toLowerCase() === base);
   if (canonical === undefined) return undefined;
   if (at < 0) return canonical;
-  return CHANNEL_KEYS_READ.has(canonical) && at < key.length - 1 ? canonical + key.slice(at) : undefined;
+  return POWER_KEYS.has(canonical) && at < key.length - 1 ? canonical + key.slice(at) : undefined;
 }
