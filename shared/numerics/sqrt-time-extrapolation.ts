@@ -1,5 +1,6 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { givenEarlyTimeWindow, MIN_OVERRIDE_WINDOW_SAMPLES } from './early-time-window.js';
+import { valueRange } from './value-range.js';
 
 /**
  * Early-time correction by the square-root-of-time law (JESD51-14).
@@ -150,7 +151,7 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   checkArguments(time_s, values, options);
   const given = givenEarlyTimeWindow(time_s, options.start_s, options.end_s);
   const sums = new WindowSums(time_s, values);
-  const noiseFloor = NOISE_FLOOR_RELATIVE * valueRange(values);
+  const noiseFloor = NOISE_FLOOR_RELATIVE * valueSpan(values);
   const warnings: string[] = [];
   const search = (slopeSign: 1 | -1 | undefined) => {
     let noiseAllowance = Math.max(options.noise_rms, noiseFloor);
@@ -201,7 +202,7 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   // the curve (too few early samples, a record that starts too late): then t = 0 is taken at that first sample.
   const y0NoiseError = noise * line.y0Leverage;
   const automatic = options.start_s === undefined && options.end_s === undefined;
-  const later = automatic && searched !== undefined ? laterWindowDisagreement(time_s, sums, line, y0NoiseError, end, searched, valueRange(values)) : undefined;
+  const later = automatic && searched !== undefined ? laterWindowDisagreement(time_s, sums, line, y0NoiseError, end, searched, valueSpan(values)) : undefined;
   if (later !== undefined) {
     warnings.push(
       `another window, ${time_s[later.start]} s to ${time_s[later.end]} s, also follows the sqrt(t) law but puts the value at t = 0 ` +
@@ -370,13 +371,9 @@ function firstIndexAtOrAfterTime(time_s: Float64Array, t_s: number): number {
   return low;
 }
 
-function valueRange(values: Float64Array): number {
-  let low = Infinity;
-  let high = -Infinity;
-  for (const value of values) {
-    low = Math.min(low, value);
-    high = Math.max(high, value);
-  }
+/** Largest minus smallest value. */
+function valueSpan(values: Float64Array): number {
+  const [low, high] = valueRange(values);
   return high - low;
 }
 
