@@ -4,7 +4,7 @@ import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.
 import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import { givenEarlyTimeWindow } from '../shared/numerics/early-time-window.js';
-import { voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
+import { checkVoltagesCalibrated } from '../shared/analysis/check-voltages-calibrated.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
 import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
@@ -113,7 +113,7 @@ export class BatchReprocessor {
       const file = (await this.store.getParsedTransient(job.input_sha256, job.format)) ?? parseTransient(bytes, job.file_name, job.format);
       givenEarlyTimeWindow(file.time_s, job.parameters.early_time_start_s, job.parameters.early_time_end_s);
       const calibration = batch.calibration_id === null || file.quantity !== 'voltage_V' ? null : await this.store.getCalibration(batch.calibration_id);
-      for (const channel of calibration === null ? [] : file.channels) voltageToTemperature(calibration!.calibration, file.time_s, channel.values);
+      if (calibration !== null) checkVoltagesCalibrated(file, calibration.calibration, job.file_name);
     } catch (error) {
       onFirst(error);
     }

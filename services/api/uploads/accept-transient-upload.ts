@@ -5,11 +5,11 @@ import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../../shared/input/cycle-count.js';
 import { decodeInputText } from '../../../shared/input/decode-input-text.js';
 import { parseTransient, transientFormatOf } from '../../../shared/input/parse-transient.js';
-import { validateCalibration, voltageToTemperature } from '../../../shared/numerics/tsp-calibration.js';
-import type { TransientFile } from '../../../shared/input/transient-file.js';
+import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
 import type { Calibration } from '../../../shared/schemas/calibration.js';
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
-import { channelLocation, unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
+import { unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
+import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
 import type { ApiKey } from '../../config/api-key-list.js';
@@ -65,7 +65,10 @@ export async function acceptTransientUpload(
   // Only voltage needs one; another would split the job (its id names the calibration) for a result that does not use it.
   const calibration = transient.quantity === 'voltage_V' ? given : null;
   if (given !== null && calibration === null) warnings.push(unusedCalibrationWarning(transient.quantity));
-  if (transient.quantity === 'voltage_V') checkVoltagesCalibrated(transient, calibration, upload.sourceName);
+  if (transient.quantity === 'voltage_V') {
+    if (calibration === null) throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.sourceName });
+    checkVoltagesCalibrated(transient, calibration.calibration, upload.sourceName);
+  }
   warnings.push(...headerLabelWarnings(transient.meta, metadata));
   // Stored only once the upload is known good: a refused upload leaves nothing behind.
   const calibrationId = calibration === null ? null : calibration.stored ? calibration.id : (await store.putCalibration(calibration.calibration, apiKey.name)).calibration_id;
@@ -265,24 +268,6 @@ async function calibrationOf(store: TransientStore, metadata: UploadMetadata): P
   const record = await store.getCalibration(metadata.calibration_id);
   if (!record) throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${metadata.calibration_id} is not stored`);
   return { calibration: record.calibration, stored: true, id: record.calibration_id };
-}
-
-/**
- * Voltages the calibration does not cover fail the analysis (CALIBRATION_OUT_OF_RANGE): refused now, with the
- * conversion the analysis makes, so that the bench hears of it instead of a job failing later.
- */
-function checkVoltagesCalibrated(transient: TransientFile, calibration: { calibration: Calibration } | null, fileName: string): void {
-  if (calibration === null) {
-    throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: fileName });
-  }
-  for (const channel of transient.channels) {
-    try {
-      voltageToTemperature(calibration.calibration, transient.time_s, channel.values);
-    } catch (error) {
-      if (error instanceof HeatpathError && error.location.file === undefined) throw new HeatpathError(error.code, error.detail, channelLocation(transient, channel.name, fileName));
-      throw error;
-    }
-  }
 }
 
 /** The analysis parameters named in the request; the rest come from the file's metadata or the defaults (resolveAnalysisInputs). */

@@ -1,0 +1,21 @@
+import { HeatpathError } from '../errors/heatpath-error.js';
+import type { TransientFile } from '../input/transient-file.js';
+import { voltageToTemperature } from '../numerics/tsp-calibration.js';
+import type { Calibration } from '../schemas/calibration.js';
+import { channelLocation } from './analyze-transient-file.js';
+
+/**
+ * Voltages a calibration does not cover fail the analysis (CALIBRATION_OUT_OF_RANGE). Checked with the conversion
+ * the analysis makes before work is accepted (an upload, a batch on its first upload), so that the bench hears of it
+ * instead of a job failing later; the error names the channel's column.
+ */
+export function checkVoltagesCalibrated(file: TransientFile, calibration: Calibration, fileName: string): void {
+  for (const channel of file.channels) {
+    try {
+      voltageToTemperature(calibration, file.time_s, channel.values);
+    } catch (error) {
+      if (error instanceof HeatpathError && error.location.file === undefined) throw new HeatpathError(error.code, error.detail, channelLocation(file, channel.name, fileName));
+      throw error;
+    }
+  }
+}
