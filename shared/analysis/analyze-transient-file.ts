@@ -1,9 +1,9 @@
-import { valueRange } from '../numerics/value-range.js';
 import { createHash } from 'node:crypto';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { estimateNoiseRms } from '../numerics/noise-estimate.js';
+import { valueRange } from '../numerics/value-range.js';
 import { calibrationExtrapolationWarnings, voltageToTemperature } from '../numerics/tsp-calibration.js';
 import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
 import { steadyStateRth } from '../numerics/steady-state.js';
