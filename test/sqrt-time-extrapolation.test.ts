@@ -175,3 +175,20 @@ describe('extrapolateSqrtTime on the semi-infinite law (Carslaw & Jaeger 1959)',
     }
   });
 });
+
+describe('extrapolateSqrtTime with a given start and no window after it', () => {
+  it('says that no window from the start follows the law, naming the parameter, not that too few samples follow', () => {
+    // A settled exponential 1 - exp(-t / 10 ms) (no sqrt(t) law at all) from 1 us to 0.1 s at 40 samples per decade,
+    // with a start at 0.08 s that 9 samples follow.
+    const t = logSpacedTimes(1e-6, 0.1, 40);
+    try {
+      extrapolateSqrtTime(t, t.map((x) => 1 - Math.exp(-x / 0.01)), { noise_rms: 1e-9, start_s: 0.08 });
+      expect.unreachable();
+    } catch (error) {
+      expect(error).toBeInstanceOf(HeatpathError);
+      expect((error as HeatpathError).code).toBe('PARAM_INVALID');
+      expect((error as HeatpathError).location).toEqual({ column: 'early_time_start_s' });
+      expect((error as HeatpathError).detail).toMatch(/^no window from early_time_start_s = 0\.08 s follows the sqrt\(t\) law .*: give an earlier start, or early_time_end_s too$/);
+    }
+  });
+});

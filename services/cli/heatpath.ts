@@ -1,4 +1,5 @@
 #!/usr/bin/env node
+import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { isUserError, userErrorLine } from './user-error-line.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { fileErrorReason } from '../store/file-error-reason.js';
@@ -17,14 +18,13 @@ Commands:
   heatpath analyze FILE...        Zth, spectrum, Foster/Cauer, structure functions, compact model
   heatpath calibrate POINTS.csv   fit a TSP calibration (temperature vs voltage)
   heatpath rthjc FILE_A FILE_B    Rth-JC by two interfaces (transient dual interface, JESD51-14)
-  heatpath degradation REF ...    structure-function shift and Rth rise over power cycling
+  heatpath degradation FILE...    structure-function shift and Rth rise over power cycling
   heatpath submit FILE...         upload transients to a heatpath service (bench scripts)
   heatpath reprocess DIR          analyse an archive folder, on a service or --local
 
 Run \`heatpath COMMAND --help\` for the options of a command.
 
-Results inform qualification and design decisions: check them against the
-applicable standards (JESD51-1, JESD51-14, AQG 324) and qualified lab practice.`;
+Caution: ${RESULT_CAUTION}`;
 
 type Command = (argv: string[], print: (text: string) => void) => Promise<number>;
 

@@ -26,7 +26,7 @@ export const errorCatalogue = {
   INPUT_BAD_FORMAT: { status: 415, title: 'The input format is not supported', hint: 'Send CSV (comma, semicolon or tab separated) or JSON.' },
   CYCLE_COUNT_INVALID: { status: 400, title: 'A cycle count is not a whole number of cycles written in digits', hint: 'Write the number of cycles as digits only, e.g. 40000: no thousands separator (40,000 or 40.000), decimal point, exponent (4e4), sign or words.' },
   INPUT_AMBIGUOUS_NUMBER: { status: 400, title: 'A number could be read two ways', hint: 'Write single values (header lines, meta values, options) without thousands separators, 1250 or 1.25 rather than 1,250; a decimal point is never ambiguous.' },
-  INPUT_DUPLICATE_METADATA: { status: 400, title: 'A metadata key is given twice with different values', hint: 'Keep one `# key: value` line (or one "meta" key in JSON) per key, with the value that is meant.' },
+  INPUT_DUPLICATE_METADATA: { status: 400, title: 'A metadata key is given twice', hint: 'Keep one `# key: value` line per key that heatpath reads (power, kind, cycle count), with the value that is meant, and one key of each name in a JSON "meta" object.' },
   INPUT_HEADER_REPEATED: { status: 400, title: 'The header line repeats among the data rows', hint: 'Keep one record per file: split the file where the header repeats, and send each record on its own.' },
 
   // ---- calibration ----

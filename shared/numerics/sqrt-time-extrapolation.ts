@@ -167,6 +167,14 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
     warnings.push(`the sqrt(t) law holds only to ${2 ** searched.doubling} times the noise; the early-time correction is uncertain`);
   }
   const window = searched?.found;
+  if (window === undefined && options.start_s !== undefined && options.end_s === undefined) {
+    throw new HeatpathError(
+      'PARAM_INVALID',
+      `no window from early_time_start_s = ${options.start_s} s follows the sqrt(t) law of a heated die surface, even at ${2 ** MAX_NOISE_DOUBLINGS} times the noise, ` +
+        `over at least ${MIN_OVERRIDE_WINDOW_SAMPLES} samples and a factor ${MIN_WINDOW_TIME_RATIO} in time: give an earlier start, or early_time_end_s too`,
+      { column: 'early_time_start_s' },
+    );
+  }
   if (window === undefined) {
     throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', 'no time window follows the sqrt(t) law of a heated die surface; give early_time_start_s and early_time_end_s');
   }
@@ -314,10 +322,6 @@ function chooseWindow(
       best = [start, end];
       bestSpan = span(start, end);
     }
-  }
-  // Reported by the search without the sign, which runs when this one finds nothing.
-  if (best === undefined && fixedStart !== undefined && options.end_s === undefined && slopeSign === undefined) {
-    throw new HeatpathError('PARAM_INVALID', `fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples follow early_time_start_s = ${options.start_s} s`);
   }
   return best;
 }

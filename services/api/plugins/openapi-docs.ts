@@ -1,4 +1,5 @@
 import fastifySwagger from '@fastify/swagger';
+import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import fastifySwaggerUi from '@fastify/swagger-ui';
 import type { FastifyInstance, FastifySchema } from 'fastify';
 import fastifyPlugin from 'fastify-plugin';
@@ -18,8 +19,7 @@ export const openApiDocsPlugin = fastifyPlugin(async function openApiDocs(app: F
         title: 'heatpath service',
         version: HEATPATH_VERSION,
         description:
-          'Upload thermal transients from the benches, follow their analysis jobs and fetch results for the LIMS. ' +
-          'Results inform qualification and design; they defer to the applicable standards and qualified lab practice.',
+          `Upload thermal transients from the benches, follow their analysis jobs and fetch results for the LIMS. ${RESULT_CAUTION}`,
       },
       components: {
         securitySchemes: { [bearerSecurityScheme]: { type: 'http', scheme: 'bearer', description: 'An API key issued by the lab admin (HEATPATH_API_KEYS).' } },

@@ -108,7 +108,7 @@ export async function acceptTransientUpload(
     byte_length: upload.bytes.byteLength,
     received_at: new Date().toISOString(),
     sample_id: metadata.sample_id,
-    bench: metadata.bench ?? transient.meta.bench?.trim() ?? null,
+    bench: metadata.bench ?? headerLabel(transient.meta, 'bench'),
     channel: metadata.channel ?? null,
     cycle_count: cycleCount,
     tags: metadata.tags ?? [],
@@ -175,15 +175,21 @@ async function sameBytesWarnings(store: TransientStore, record: UploadRecord): P
  */
 function headerLabelWarnings(meta: Record<string, string>, metadata: UploadMetadata): string[] {
   const warnings: string[] = [];
-  const fileSample = (meta.sample_id ?? meta.sample)?.trim();
-  if (fileSample !== undefined && fileSample !== '' && fileSample !== metadata.sample_id) {
+  const fileSample = headerLabel(meta, 'sample_id') ?? headerLabel(meta, 'sample');
+  if (fileSample !== null && fileSample !== metadata.sample_id) {
     warnings.push(`the file's "# sample:" line says ${fileSample}; the upload is recorded as sample ${metadata.sample_id}, as the request says: a file sent under the wrong sample id?`);
   }
-  const fileBench = meta.bench?.trim();
-  if (fileBench !== undefined && fileBench !== '' && metadata.bench !== undefined && fileBench !== metadata.bench) {
+  const fileBench = headerLabel(meta, 'bench');
+  if (fileBench !== null && metadata.bench !== undefined && fileBench !== metadata.bench) {
     warnings.push(`the file's "# bench:" line says ${fileBench}; the upload is recorded as bench ${metadata.bench}, as the request says`);
   }
   return warnings;
+}
+
+/** A label line of the file's header (`# Bench: FH-TT1` in any case), trimmed; null when absent or empty. */
+function headerLabel(meta: Record<string, string>, key: string): string | null {
+  const entry = Object.entries(meta).find(([name]) => name.toLowerCase() === key);
+  return entry?.[1].trim() || null;
 }
 
 export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
