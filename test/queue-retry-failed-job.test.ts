@@ -97,6 +97,8 @@ describe('retrying failed jobs', () => {
     });
     expect(again.statusCode, again.body).toBe(202);
     expect(again.json()).toMatchObject({ job_id: upload.job_id, state: 'queued' });
+    // Though the store had lost them, these bytes were sent before: said, as for any file sent again.
+    expect(again.json().warnings).toContainEqual(expect.stringMatching(new RegExp(`^the same bytes were uploaded for this sample before, as upload ${upload.upload_id} `)));
     await eventually(() => ctx.store.hasResult(upload.job_id));
     expect(await ctx.store.getFailure(upload.job_id)).toBeNull();
     // The first upload's record was kept throughout.

@@ -128,7 +128,8 @@ export async function acceptTransientUpload(
     .putParsedTransient(inputSha256, record.format, transient)
     .catch((error: unknown) => log.warn({ err: error, upload_id: record.upload_id }, 'parse not kept; the analysis parses the raw bytes'));
   const [blob] = await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), keepParse]);
-  if (blob.existed) warnings.push(...(await sameBytesWarnings(store, record)));
+  // New bytes may still have been sent before: a raw file the store lost leaves its job's failure behind.
+  if (blob.existed || (await store.hasFailure(jobId))) warnings.push(...(await sameBytesWarnings(store, record)));
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
