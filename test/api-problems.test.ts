@@ -390,7 +390,7 @@ describe('with a real Redis', () => {
     const uploadsBefore = (await context.store.listUploads()).length;
     const late = expectProblem(await upload(context, `sample_id=S-win&power_W=50&early_time_start_s=${last_s + 500}`, small), 400, 'PARAM_INVALID');
     expect(late.detail).toContain(`early_time_start_s = ${last_s + 500} s is after the last sample`);
-    expect(late).toMatchObject({ file: 'upload body (named S-win.csv)', column: 'early_time_start_s' });
+    expect(late).toMatchObject({ file: 'upload body (named S-win.csv)', parameter: 'early_time_start_s' });
     const early = expectProblem(await upload(context, 'sample_id=S-win&power_W=50&early_time_end_s=1e-9', small), 400, 'PARAM_INVALID');
     expect(early.detail).toContain('is before the first sample');
     expectProblem(await upload(context, `sample_id=S-win&power_W=50&early_time_start_s=${last_s}`, small), 400, 'PARAM_INVALID');

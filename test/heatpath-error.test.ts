@@ -14,6 +14,11 @@ describe('HeatpathError message', () => {
     expect(error).toMatchObject({ code: 'INPUT_NOT_NUMERIC', status: 400 });
   });
 
+  it('names an analysis parameter as a parameter, not as a column of the file', () => {
+    const error = new HeatpathError('PARAM_INVALID', 'early_time_start_s = 500 s is after the last sample', { file: 'm07.csv', parameter: 'early_time_start_s' });
+    expect(error.message).toMatch(/^m07\.csv, parameter early_time_start_s: An analysis parameter is invalid: /);
+  });
+
   it('adds no second full stop after a detail that ends its own sentence', () => {
     const error = new HeatpathError('ANALYSIS_NOT_ANALYSABLE', 'Zth ends at -1.17 K/W; is the transient really heating?');
     const { title, hint } = errorCatalogue.ANALYSIS_NOT_ANALYSABLE;

@@ -88,7 +88,7 @@ describe('resolveAnalysisInputs from the file header', () => {
     // *common practice*: a fit window must hold samples of the record it fits (the record here runs from 1 us to 1 ms).
     const file = fileWith('# power_W: 50');
     const late = catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_start_s: 500 } }, 'bench.csv'));
-    expect(late).toMatchObject({ code: 'PARAM_INVALID', location: { file: 'bench.csv', column: 'early_time_start_s' } });
+    expect(late).toMatchObject({ code: 'PARAM_INVALID', location: { file: 'bench.csv', parameter: 'early_time_start_s' } });
     expect(late.detail).toBe('early_time_start_s = 500 s is after the last sample (the record runs from 0.000001 s to 0.001 s): give a start within the record, in seconds');
     const fit = catchHeatpathError(() => extrapolateSqrtTime(file.time_s, file.channels[0].values, { noise_rms: 0.01, start_s: 500 }));
     expect(fit.detail).toBe(late.detail);

@@ -187,7 +187,7 @@ describe('extrapolateSqrtTime with a given start and no window after it', () => 
     } catch (error) {
       expect(error).toBeInstanceOf(HeatpathError);
       expect((error as HeatpathError).code).toBe('PARAM_INVALID');
-      expect((error as HeatpathError).location).toEqual({ column: 'early_time_start_s' });
+      expect((error as HeatpathError).location).toEqual({ parameter: 'early_time_start_s' });
       expect((error as HeatpathError).detail).toMatch(/^no window from early_time_start_s = 0\.08 s follows the sqrt\(t\) law .*: give an earlier start, or early_time_end_s too$/);
     }
   });

@@ -83,7 +83,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
       return analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, provenance, input.fileName, inputWarnings);
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) {
-        throw new HeatpathError(error.code, error.detail, context);
+        throw new HeatpathError(error.code, error.detail, { ...context, ...error.location });
       }
       throw error;
     }

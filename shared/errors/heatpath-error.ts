@@ -5,6 +5,8 @@ export interface ErrorLocation {
   file?: string;
   line?: number;
   column?: number | string;
+  /** The analysis parameter or option the error is about (early_time_start_s), which is no column of the file. */
+  parameter?: string;
 }
 
 /**
@@ -39,6 +41,7 @@ function formatMessage(title: string, detail: string, hint: string, at: ErrorLoc
     at.file,
     at.line !== undefined ? `line ${at.line}` : undefined,
     at.column !== undefined ? `column ${at.column}` : undefined,
+    at.parameter !== undefined ? `parameter ${at.parameter}` : undefined,
   ].filter(Boolean).join(', ');
   // A detail that ends its own sentence (a question, a quoted path ending in a period) gets no second stop;
   // one that ends a list of lines puts the hint on a line of its own.

@@ -17,27 +17,27 @@ export const MIN_OVERRIDE_WINDOW_SAMPLES = 3;
 export function givenEarlyTimeWindow(time_s: Float64Array, start_s: number | undefined, end_s: number | undefined): { start?: number; end?: number } {
   for (const [name, bound] of [['early_time_start_s', start_s], ['early_time_end_s', end_s]] as const) {
     if (bound !== undefined && !(bound > 0 && Number.isFinite(bound))) {
-      throw new HeatpathError('PARAM_INVALID', `${name} = ${bound} must be a positive number of seconds`, { column: name });
+      throw new HeatpathError('PARAM_INVALID', `${name} = ${bound} must be a positive number of seconds`, { parameter: name });
     }
   }
   if (start_s !== undefined && end_s !== undefined && !(start_s < end_s)) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${start_s} s must be before early_time_end_s = ${end_s} s`, { column: 'early_time_start_s' });
+    throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${start_s} s must be before early_time_end_s = ${end_s} s`, { parameter: 'early_time_start_s' });
   }
   const count = time_s.length;
   const record = `the record runs from ${time_s[0]} s to ${time_s[count - 1]} s`;
   const start = start_s === undefined ? undefined : time_s.findIndex((t) => t >= start_s);
   if (start !== undefined && start < 0) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${start_s} s is after the last sample (${record}): give a start within the record, in seconds`, { column: 'early_time_start_s' });
+    throw new HeatpathError('PARAM_INVALID', `early_time_start_s = ${start_s} s is after the last sample (${record}): give a start within the record, in seconds`, { parameter: 'early_time_start_s' });
   }
   const end = end_s === undefined ? undefined : time_s.findLastIndex((t) => t <= end_s);
   if (end !== undefined && end < 0) {
-    throw new HeatpathError('PARAM_INVALID', `early_time_end_s = ${end_s} s is before the first sample (${record}): give an end within the record, in seconds`, { column: 'early_time_end_s' });
+    throw new HeatpathError('PARAM_INVALID', `early_time_end_s = ${end_s} s is before the first sample (${record}): give an end within the record, in seconds`, { parameter: 'early_time_end_s' });
   }
   if (start !== undefined && end !== undefined && end - start + 1 < MIN_OVERRIDE_WINDOW_SAMPLES) {
-    throw new HeatpathError('PARAM_INVALID', `the early-time window ${start_s} s to ${end_s} s holds fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples (${record}): widen it`, { column: 'early_time_start_s' });
+    throw new HeatpathError('PARAM_INVALID', `the early-time window ${start_s} s to ${end_s} s holds fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples (${record}): widen it`, { parameter: 'early_time_start_s' });
   }
   if (start !== undefined && end === undefined && count - start < MIN_OVERRIDE_WINDOW_SAMPLES) {
-    throw new HeatpathError('PARAM_INVALID', `fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples follow early_time_start_s = ${start_s} s (${record}): give an earlier start`, { column: 'early_time_start_s' });
+    throw new HeatpathError('PARAM_INVALID', `fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples follow early_time_start_s = ${start_s} s (${record}): give an earlier start`, { parameter: 'early_time_start_s' });
   }
   return { start, end };
 }

@@ -179,7 +179,7 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
       'PARAM_INVALID',
       `no window from early_time_start_s = ${options.start_s} s follows the sqrt(t) law of a heated die surface, even at ${2 ** MAX_NOISE_DOUBLINGS} times the noise, ` +
         `over at least ${MIN_OVERRIDE_WINDOW_SAMPLES} samples and a factor ${MIN_WINDOW_TIME_RATIO} in time: give an earlier start, or early_time_end_s too`,
-      { column: 'early_time_start_s' },
+      { parameter: 'early_time_start_s' },
     );
   }
   if (window === undefined) {

@@ -56,7 +56,7 @@ export function heatingPower_W(power: Power | undefined): number {
   if (power === undefined) throw new HeatpathError('POWER_REQUIRED', 'a temperature or voltage transient needs the heating power to give Zth');
   const value = 'power_W' in power ? power.power_W : power.current_A * power.voltage_V;
   const given = 'power_W' in power ? `power_W = ${power.power_W}` : `current_A = ${power.current_A}, voltage_V = ${power.voltage_V}`;
-  if (!(value > 0 && Number.isFinite(value))) throw new HeatpathError('PARAM_INVALID', `${given} does not give a positive finite power`, { column: 'power' });
+  if (!(value > 0 && Number.isFinite(value))) throw new HeatpathError('PARAM_INVALID', `${given} does not give a positive finite power`, { parameter: 'power' });
   return value;
 }
 

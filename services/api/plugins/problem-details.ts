@@ -58,6 +58,7 @@ export function sendProblem(
     ...(error.location.file !== undefined && { file: error.location.file }),
     ...(error.location.line !== undefined && { line: error.location.line }),
     ...(error.location.column !== undefined && { column: error.location.column }),
+    ...(error.location.parameter !== undefined && { parameter: error.location.parameter }),
     ...(errors && { errors }),
     ...extensions,
   };

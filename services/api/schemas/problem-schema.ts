@@ -20,6 +20,7 @@ export const ProblemSchema = Type.Object(
     file: Type.Optional(Type.String()),
     line: Type.Optional(Type.Integer({ description: 'Line in the uploaded file, from 1.' })),
     column: Type.Optional(Type.Union([Type.Integer(), Type.String()], { description: 'Column number (from 1) or name.' })),
+    parameter: Type.Optional(Type.String({ description: 'The analysis parameter or request field the problem is about (early_time_start_s).' })),
     errors: Type.Optional(
       Type.Array(Type.Object({ field: Type.String(), message: Type.String() }), { description: 'Each field that failed validation.' }),
     ),
