@@ -55,6 +55,11 @@ function multipart(parts: { name: string; value: string | Buffer; filename?: str
   return { payload, headers: { 'content-type': `multipart/form-data; boundary=${boundary}` } };
 }
 
+/** POST /v1/transients with a multipart body built by `multipart`. */
+function uploadForm(context: ApiTestContext, form: ReturnType<typeof multipart>) {
+  return context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+}
+
 describe('with a real Redis', () => {
   let context: ApiTestContext;
   beforeAll(async () => {
@@ -102,7 +107,7 @@ describe('with a real Redis', () => {
       { name: 'power_W', value: '1,250' },
       { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
     ]);
-    const field = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const field = await uploadForm(context, form);
     expect(expectProblem(field, 400, 'INPUT_AMBIGUOUS_NUMBER').detail).toMatch(/^multipart field power_W gives "1,250"/);
   });
 
@@ -116,7 +121,7 @@ describe('with a real Redis', () => {
       { name: 'early_start_s', value: '1e-5' },
       { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(expectProblem(response, 400, 'REQUEST_INVALID').errors).toEqual([{ field: 'multipart/early_start_s', message: 'is not a known field' }]);
   });
 
@@ -132,7 +137,7 @@ describe('with a real Redis', () => {
       { name: 'points_per_decade', value: '40.9' },
       { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expectProblem(response, 400, 'REQUEST_INVALID');
     // Plain decimal and exponent forms are numbers (JSON's number grammar, RFC 8259 section 6, with a leading + allowed).
     const accepted = await upload(context, 'sample_id=S1&power_W=5e1&points_per_decade=%2B40&cycle_count=20000&tags=pc', small);
@@ -151,7 +156,7 @@ describe('with a real Redis', () => {
     }
     const send = async (parts: Parameters<typeof multipart>[0]) => {
       const form = multipart([...parts, { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' }]);
-      return context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+      return uploadForm(context, form);
     };
     const field = expectProblem(await send([{ name: 'sample_id', value: 'S1' }, { name: 'power_W', value: '50' }, { name: 'cycle_count', value: '40,000' }]), 400, 'CYCLE_COUNT_INVALID');
     expect(field.detail).toMatch(/^multipart field cycle_count is "40,000"/);
@@ -224,7 +229,7 @@ describe('with a real Redis', () => {
       { name: 'power_W', value: '50' },
       { name: 'file', value: '[{"time_s": [1, 2]}]', filename: 'export', type: 'application/octet-stream' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(expectProblem(response, 400, 'INPUT_BAD_JSON').detail).toContain('the top level is an array');
   });
 
@@ -260,7 +265,7 @@ describe('with a real Redis', () => {
       { name: 'file', value: large, filename: 'big.csv', type: 'text/csv' },
     ]);
     // multipart's own limit; the whole body is not bounded by bodyLimit.
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(expectProblem(response, 413, 'UPLOAD_TOO_LARGE').detail).toBe(
       `the file part is larger than the limit of 4096 bytes (HEATPATH_MAX_UPLOAD_BYTES); the request was ${form.payload.byteLength} bytes in all`,
     );
@@ -273,7 +278,7 @@ describe('with a real Redis', () => {
       { name: 'file', value: small, filename: 'a.csv', type: 'text/csv' },
       { name: 'file', value: small, filename: 'b.csv', type: 'text/csv' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(expectProblem(response, 400, 'REQUEST_INVALID').detail).toMatch(/more than one file part; send exactly one, named "file"/);
   });
 
@@ -292,7 +297,7 @@ describe('with a real Redis', () => {
       { name: 'meta', value: JSON.stringify({ sample_id: 'S-mp', bench: 'B2', cycle_count: 5000, tags: ['pc', 'lot7'], power_W: 50 }) },
       { name: 'file', value: small, filename: 'm.csv', type: 'text/csv' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(response.statusCode, response.body).toBe(202);
     const answer = response.json();
     expect(answer).toMatchObject({ state: 'queued', quantity: 'temperature_C', channels: ['1'] });
@@ -315,7 +320,7 @@ describe('with a real Redis', () => {
       { name: 'power_W', value: '50' },
       { name: 'file', value: json, filename: 'export', type: 'application/octet-stream' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(response.statusCode, response.body).toBe(202);
     expect(await context.store.getUpload(response.json().upload_id)).toMatchObject({ format: 'json', file_name: 'export' });
   });
@@ -379,7 +384,7 @@ describe('with a real Redis', () => {
       { name: 'meta', value: JSON.stringify({ sample_id: 'S-vr', power_W: 50, calibration: inline }) },
       { name: 'file', value: voltage, filename: 'vr.csv', type: 'text/csv' },
     ]);
-    const response = await context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+    const response = await uploadForm(context, form);
     expect(expectProblem(response, 422, 'CALIBRATION_OUT_OF_RANGE').file).toBe('vr.csv');
     expect((await context.store.listCalibrations()).length).toBe(calibrationsBefore);
     expect((await context.store.listUploads()).length).toBe(uploadsBefore);

@@ -103,19 +103,18 @@ export class BatchReprocessor {
    * Only the first is read (an archive may hold tens of thousands); the others are judged by their own jobs.
    */
   private async checkOnFirstUpload(job: UploadRecord, batch: BatchRecord): Promise<void> {
-    const bytes = await this.store.getBlob(job.input_sha256);
-    if (bytes === null) return;
-    const onFirst = (error: unknown): never => {
-      if (!isHeatpathError(error)) throw error;
-      throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`);
-    };
     try {
-      const file = (await this.store.getParsedTransient(job.input_sha256, job.format)) ?? parseTransient(bytes, job.file_name, job.format);
+      // The kept parse where there is one; the raw bytes only where not (a lost one is the job's own failure later).
+      const kept = await this.store.getParsedTransient(job.input_sha256, job.format);
+      const bytes = kept === null ? await this.store.getBlob(job.input_sha256) : null;
+      const file = kept ?? (bytes === null ? null : parseTransient(bytes, job.file_name, job.format));
+      if (file === null) return;
       givenEarlyTimeWindow(file.time_s, job.parameters.early_time_start_s, job.parameters.early_time_end_s);
       const calibration = batch.calibration_id === null || file.quantity !== 'voltage_V' ? null : await this.store.getCalibration(batch.calibration_id);
       if (calibration !== null) checkVoltagesCalibrated(file, calibration.calibration, job.file_name);
     } catch (error) {
-      onFirst(error);
+      if (!isHeatpathError(error)) throw error;
+      throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`);
     }
   }
 

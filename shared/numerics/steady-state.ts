@@ -50,7 +50,7 @@ export const STEADY_STATE_TRIM_FRACTION = 0.2;
 export const STEADY_STATE_RISE_LIMIT = 0.01;
 /**
  * A window that the minimum of samples widens to more than this many times the nominal window is read from its
- * later half alone where that half has levelled off (see settledLaterHalf).
+ * settled end where it has one (settledLaterHalf, bendingOver).
  */
 export const WIDENED_WINDOW_FACTOR = 1.5;
 /** On such an end, rises of the last three samples that shrink below this ratio show a curve bending over to its steady state (see bendingOver). */
@@ -67,7 +67,7 @@ export interface SteadyState {
   /**
    * Standard error of rth_K_per_W from the noise of the samples it was read
    * from: the noise through the weights of the window's line at its end
-   * (see levelStandardError).
+   * (see levelNoiseGain).
    */
   rth_standard_error_K_per_W: number;
   /** False when that rise exceeds STEADY_STATE_RISE_LIMIT of Rth total by twice its standard error: the record ends before steady state. */
@@ -93,7 +93,7 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   const logTime = Float64Array.from(time_s.subarray(windowStart), Math.log10);
   const zth = zth_K_per_W.subarray(windowStart);
   const widened = logLast - logTime[0] > WIDENED_WINDOW_FACTOR * nominalDecades;
-  const settled = widened ? settledLaterHalf(logTime, zth, logLast, nominalDecades, noise_K_per_W) : undefined;
+  const settled = widened ? (settledLaterHalf(logTime, zth, logLast, nominalDecades, noise_K_per_W) ?? bendingOver(logTime, zth, nominalDecades, noise_K_per_W)) : undefined;
   if (settled !== undefined) {
     return {
       rth_K_per_W: settled.level_K_per_W, window_start_s: time_s[count - settled.samples], samples: settled.samples,
@@ -129,13 +129,22 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, rth_standard_error_K_per_W, steady, falls, warnings };
 }
 
+/** Rth total read from the settled end of a sparse window, the rise over the nominal window, and the level's standard error. */
+interface SettledEnd {
+  level_K_per_W: number;
+  rise_K_per_W: number;
+  standardError_K_per_W: number;
+  /** The samples it was read from, the record's last. */
+  samples: number;
+}
+
 /**
  * A sparse end, whose window the minimum of samples widened to several times the nominal one, spans decades in
  * which a settling curve bends over: the line through it ran on with the early, steep part's slope and read a
  * TO-247 part sampled at 3 to 5 points per decade 3 to 12 % high, calling it unsteady though it had settled. Its
  * later half alone decides: where its own slope (end to end) rises by no more than the limit over the nominal window,
  * beyond twice its standard error, the curve has levelled off, and Rth total is the trimmed mean of that half's samples
- * moved along that slope to the end; otherwise undefined, and the whole window's line reads the trend as usual.
+ * moved along that slope to the end; otherwise undefined.
  */
 function settledLaterHalf(
   logTime: Float64Array,
@@ -143,7 +152,7 @@ function settledLaterHalf(
   logLast: number,
   nominalDecades: number,
   noise_K_per_W: number,
-): { level_K_per_W: number; rise_K_per_W: number; standardError_K_per_W: number; samples: number } | undefined {
+): SettledEnd | undefined {
   const samples = Math.ceil(logTime.length / 2);
   const first = logTime.length - samples;
   const span_decades = logLast - logTime[first];
@@ -154,8 +163,7 @@ function settledLaterHalf(
   const riseStandardError_K_per_W = (noise_K_per_W * Math.SQRT2 * nominalDecades) / span_decades;
   const levelled = Math.abs(rise_K_per_W) - 2 * riseStandardError_K_per_W <= STEADY_STATE_RISE_LIMIT * level_K_per_W;
   // The end value of a line through samples even in log t: sqrt(5 / n) times the noise (see levelNoiseGain).
-  if (levelled && level_K_per_W > 0) return { level_K_per_W, rise_K_per_W, standardError_K_per_W: noise_K_per_W * Math.sqrt(5 / samples), samples };
-  return bendingOver(logTime, zth, nominalDecades, noise_K_per_W);
+  return levelled && level_K_per_W > 0 ? { level_K_per_W, rise_K_per_W, standardError_K_per_W: noise_K_per_W * Math.sqrt(5 / samples), samples } : undefined;
 }
 
 /**
@@ -170,7 +178,7 @@ function bendingOver(
   zth: ArrayLike<number>,
   nominalDecades: number,
   noise_K_per_W: number,
-): { level_K_per_W: number; rise_K_per_W: number; standardError_K_per_W: number; samples: number } | undefined {
+): SettledEnd | undefined {
   const n = logTime.length;
   const [z0, z1, z2] = [zth[n - 3], zth[n - 2], zth[n - 1]];
   const earlierRise = z1 - z0;

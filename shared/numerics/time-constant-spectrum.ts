@@ -176,7 +176,7 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
   const ringing = fourier.clippedFraction > RINGING_WARNING_FRACTION ? `negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins` : null;
   if (options.method === 'fourier') {
     if (ringing) warnings.push(`Fourier estimate: ${ringing}`);
-    return withMisfit(grid, low, Number.POSITIVE_INFINITY, { tau_s, r_K_per_W: fourier.r, iterations: 0, warnings });
+    return withMisfit(grid, low, null, { tau_s, r_K_per_W: fourier.r, iterations: 0, warnings });
   }
   // zeta_j = z_0 + (j - low) dz; increment row i (cell z_i..z_{i+1}) minus column j has lag p - (nx - 1) = i - j.
   const incrementKernel = new Float64Array(nx + ny - 2);
@@ -241,10 +241,10 @@ function fourierSpectrum(grid: LogTimeGrid, low: number, nx: number, noise_K_per
  * warning where that misfit exceeds MISFIT_WARNING_RATIO times the noise (never taken below the posterior's floor):
  * no sum of rising exponentials follows a glitch, a step or an artefact, so the spectrum, the networks and the
  * structure functions carry it silently (one sample 15 K high at 1 s moved the cumulative structure function by
- * 0.27 decades, with Rth total unchanged). The worst node says where to look. The Fourier estimate is filtered, not
- * fitted to the noise (2 to 9 times the noise on clean curves): it is passed an infinite noise, and never warned of.
+ * 0.27 decades, with Rth total unchanged). The worst node says where to look. `noise_K_per_W` null: an estimate
+ * not fitted to the noise, which is never warned of; the Fourier one is filtered (2 to 9 times the noise on clean curves).
  */
-function withMisfit(grid: LogTimeGrid, low: number, noise_K_per_W: number, spectrum: Omit<TimeConstantSpectrum, 'residual_rms_K_per_W'>): TimeConstantSpectrum {
+function withMisfit(grid: LogTimeGrid, low: number, noise_K_per_W: number | null, spectrum: Omit<TimeConstantSpectrum, 'residual_rms_K_per_W'>): TimeConstantSpectrum {
   const ny = grid.a.length;
   const nx = spectrum.r_K_per_W.length;
   const model = new Float64Array(ny);
@@ -258,8 +258,7 @@ function withMisfit(grid: LogTimeGrid, low: number, noise_K_per_W: number, spect
     if (square > worstSquare) [worst, worstSquare] = [i, square];
   }
   const residual_rms_K_per_W = Math.sqrt(chi2 / ny);
-  const yardstick_K_per_W = Math.max(noise_K_per_W, POSTERIOR_NOISE_FLOOR_FRACTION * Math.abs(grid.a[ny - 1]));
-  const ratio = residual_rms_K_per_W / yardstick_K_per_W;
+  const ratio = noise_K_per_W === null ? 0 : residual_rms_K_per_W / Math.max(noise_K_per_W, POSTERIOR_NOISE_FLOOR_FRACTION * Math.abs(grid.a[ny - 1]));
   const warnings = ratio > MISFIT_WARNING_RATIO
     ? [
         ...spectrum.warnings,

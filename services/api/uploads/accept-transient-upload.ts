@@ -90,7 +90,7 @@ export async function acceptTransientUpload(
 
   const replay = async (uploadId: string) => {
     const first = await replayable(store, uploadId, jobId, metadata);
-    return { answer: describe(first, await submit(deps, first)), replayed: true };
+    return { answer: describe(first, (await submit(deps, first)).state), replayed: true };
   };
 
   // Keys are per API key: two benches may pick the same key without colliding.
@@ -128,15 +128,15 @@ export async function acceptTransientUpload(
     .putParsedTransient(inputSha256, record.format, transient)
     .catch((error: unknown) => log.warn({ err: error, upload_id: record.upload_id }, 'parse not kept; the analysis parses the raw bytes'));
   const [blob] = await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), keepParse]);
-  // New bytes may still have been sent before: a raw file the store lost leaves its job's failure behind.
-  if (blob.existed || (await store.hasFailure(jobId))) warnings.push(...(await sameBytesWarnings(store, record)));
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
     // A concurrent retry with the same key won the claim: answer as it did.
     if (!claim.claimed) return replay(claim.record.upload_id);
   }
-  const state = await submit(deps, record);
+  const { state, restoresLostBytes } = await submit(deps, record);
+  // New bytes may still have been sent before: the store had lost them, and their job's failure says so.
+  if (blob.existed || restoresLostBytes) warnings.push(...(await sameBytesWarnings(store, record)));
   if (state === 'stored') log.warn({ upload_id: record.upload_id, job_id: jobId }, 'upload stored but not queued: Redis does not answer; recovery will queue it');
   return { answer: describe(record, state), replayed: false };
 }
@@ -200,26 +200,27 @@ export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
 /**
  * Queue the job unless its outcome is already stored (same content, same
  * parameters: no work twice). A job that failed because the store had lost
- * its raw bytes runs again: this upload has just stored them.
+ * its raw bytes runs again: this upload has just stored them
+ * (`restoresLostBytes`).
  */
-async function submit(deps: { store: TransientStore; queue: AnalysisQueue }, record: UploadRecord): Promise<JobState> {
-  if (await deps.store.hasResult(record.job_id)) return 'completed';
+async function submit(deps: { store: TransientStore; queue: AnalysisQueue }, record: UploadRecord): Promise<{ state: JobState; restoresLostBytes: boolean }> {
+  if (await deps.store.hasResult(record.job_id)) return { state: 'completed', restoresLostBytes: false };
   const failure = await deps.store.getFailure(record.job_id);
-  if (failure !== null && !MENDABLE_FAILURE_CODES.has(failure.code ?? '')) return 'failed';
+  if (failure !== null && !MENDABLE_FAILURE_CODES.has(failure.code ?? '')) return { state: 'failed', restoresLostBytes: false };
   if (failure !== null) {
     try {
       await new FailedJobRetry(deps.store, deps.queue).retry(record.job_id);
-      return 'queued';
+      return { state: 'queued', restoresLostBytes: true };
     } catch {
       // Redis away, or the last attempt still ending: the failure stays, and the admin's retry (POST /v1/jobs/{job_id}/retry) runs it.
-      return 'failed';
+      return { state: 'failed', restoresLostBytes: true };
     }
   }
   try {
     await deps.queue.enqueue(record, { priority: JOB_PRIORITY.interactive });
-    return 'queued';
+    return { state: 'queued', restoresLostBytes: false };
   } catch {
-    return 'stored';
+    return { state: 'stored', restoresLostBytes: false };
   }
 }
 
