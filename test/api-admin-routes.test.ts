@@ -54,7 +54,7 @@ describe('webhooks', () => {
 describe('batches', () => {
   it('names the allowed values and the unknown field of a bad request body (ajv issues in plain words)', async () => {
     const unknown = (await post('/v1/batches', { selection: { tags: 'pc' } })).json();
-    expect(unknown).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: 'body/selection/tags is not a known field' });
+    expect(unknown).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: 'body/selection/tags is not a known field: did you mean tag?' });
     const notAllowed = (await post('/v1/batches', { selection: {}, parameters: { method: 'magic' } })).json();
     expect(notAllowed).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: 'body/parameters/method must be one of "posterior-mean", "bayes", "fourier"' });
   });

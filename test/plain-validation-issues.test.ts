@@ -30,8 +30,7 @@ describe('plainValidationIssues', () => {
   });
 
   it('names the known field an unknown one most likely meant, as the command line does for options (closest-name.ts)', () => {
-    const known = Object.keys(Schema.properties);
-    const issues = plainValidationIssues(Compile(Schema).Errors({ Stages: 4, methd: 'bayes', operator: 'bob' }), 'querystring', known);
+    const issues = plainValidationIssues(Compile(Schema).Errors({ Stages: 4, methd: 'bayes', operator: 'bob' }), 'querystring', Schema);
     // Case alone, one letter left out: the known name; nothing near: no guess.
     expect(issues).toEqual(
       expect.arrayContaining([
@@ -40,5 +39,11 @@ describe('plainValidationIssues', () => {
         { field: 'querystring/operator', message: 'is not a known field' },
       ]),
     );
+  });
+
+  it('finds the known fields of a nested object, where the unknown one is (a batch body\'s selection)', () => {
+    const Nested = Type.Object({ selection: Type.Object({ sample_id: Type.Optional(Type.String()) }, { additionalProperties: false }) }, { additionalProperties: false });
+    const issues = plainValidationIssues(Compile(Nested).Errors({ selection: { sampel_id: 'S-1' } }), 'body', Nested);
+    expect(issues).toEqual([{ field: 'body/selection/sampel_id', message: 'is not a known field: did you mean sample_id?' }]);
   });
 });

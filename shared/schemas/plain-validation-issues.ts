@@ -8,6 +8,18 @@ export interface ValidationIssue {
   message?: string;
 }
 
+/** The part of a JSON schema that says which fields an object has. */
+export interface SchemaNode {
+  properties?: Record<string, unknown>;
+}
+
+/** The schema of the object at a JSON pointer (`/selection`), through nested objects' properties. */
+function schemaAt(schema: SchemaNode | undefined, objectPath: string): SchemaNode | undefined {
+  let node = schema;
+  for (const segment of objectPath.split('/').slice(1)) node = node?.properties?.[segment.replaceAll('~1', '/').replaceAll('~0', '~')] as SchemaNode | undefined;
+  return node;
+}
+
 /** A violation in plain words: the field as `context/path` and what is wrong with it. */
 export interface PlainIssue {
   field: string;
@@ -20,10 +32,11 @@ export interface PlainIssue {
  * "must be equal to constant" per allowed value, then "must match a schema
  * in anyOf"), and an unknown field is named ("must NOT have additional
  * properties" does not say which; TypeBox adds "schema is false"), with the
- * known field it most likely meant (`power_w`: did you mean power_W?) when
- * `knownFields` lists them, as the command line does for options.
+ * known field it most likely meant (`power_w`: did you mean power_W?), at
+ * any depth of `schema` (`selection/sampel_id`: did you mean sample_id?), as
+ * the command line does for options.
  */
-export function plainValidationIssues(issues: readonly ValidationIssue[], context: string, knownFields: readonly string[] = []): PlainIssue[] {
+export function plainValidationIssues(issues: readonly ValidationIssue[], context: string, schema?: SchemaNode): PlainIssue[] {
   const allowed = new Map<string, unknown[]>();
   for (const issue of issues) {
     if (issue.keyword === 'const' && issue.params && 'allowedValue' in issue.params) {
@@ -38,8 +51,8 @@ export function plainValidationIssues(issues: readonly ValidationIssue[], contex
     seen.add(`${field} ${message}`);
     plain.push({ field, message });
   };
-  const unknown = (name: string) => {
-    const meant = closestName(name, knownFields);
+  const unknown = (objectPath: string, name: string) => {
+    const meant = closestName(name, Object.keys(schemaAt(schema, objectPath)?.properties ?? {}));
     return `is not a known field${meant === undefined ? '' : `: did you mean ${meant}?`}`;
   };
   for (const issue of issues) {
@@ -50,9 +63,9 @@ export function plainValidationIssues(issues: readonly ValidationIssue[], contex
       add(field, `must be one of ${values.map((value) => JSON.stringify(value)).join(', ')}`);
     } else if (issue.keyword === 'additionalProperties') {
       const named = issue.params?.additionalProperty ?? issue.params?.additionalProperties;
-      for (const name of [named].flat()) if (typeof name === 'string') add(`${field}/${name}`, unknown(name));
+      for (const name of [named].flat()) if (typeof name === 'string') add(`${field}/${name}`, unknown(path, name));
     } else if (issue.keyword === 'boolean' && issue.message === 'schema is false') {
-      add(field, unknown(path.slice(path.lastIndexOf('/') + 1)));
+      add(field, unknown(path.slice(0, path.lastIndexOf('/')), path.slice(path.lastIndexOf('/') + 1)));
     } else {
       add(field, issue.message ?? 'is invalid');
     }

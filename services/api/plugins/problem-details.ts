@@ -3,7 +3,7 @@ import fastifyPlugin from 'fastify-plugin';
 import { errorCatalogue, type ErrorCode } from '../../../shared/errors/error-catalogue.js';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
 import { problemMediaType, problemResponse, problemTypeUri, type Problem } from '../schemas/problem-schema.js';
-import { plainValidationIssues } from '../../../shared/schemas/plain-validation-issues.js';
+import { plainValidationIssues, type SchemaNode } from '../../../shared/schemas/plain-validation-issues.js';
 import { isStoreOutage } from '../../store/store-outage.js';
 
 /**
@@ -111,12 +111,12 @@ function tooLargeDetail(request: FastifyRequest, maxUploadBytes: number): string
 
 /**
  * A schema violation in plain words, an unknown field with the known one it most likely meant: the fields are
- * the error's own `knownFields` (the upload's metadata, checked outside fastify), else the route schema's part
+ * those of the error's own `checkedSchema` (the upload's metadata, checked outside fastify), else of the route schema's part
  * that was checked.
  */
-function validationIssues(error: FastifyError & { knownFields?: readonly string[] }, request: FastifyRequest): Problem['errors'] {
+function validationIssues(error: FastifyError & { checkedSchema?: SchemaNode }, request: FastifyRequest): Problem['errors'] {
   if (!error.validation || isHeatpathError(error)) return undefined;
   const context = error.validationContext ?? 'request';
-  const part = (request.routeOptions.schema as Record<string, { properties?: Record<string, unknown> } | undefined> | undefined)?.[context];
-  return plainValidationIssues(error.validation, context, error.knownFields ?? Object.keys(part?.properties ?? {}));
+  const part = (request.routeOptions.schema as Record<string, SchemaNode | undefined> | undefined)?.[context];
+  return plainValidationIssues(error.validation, context, error.checkedSchema ?? part);
 }

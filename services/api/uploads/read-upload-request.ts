@@ -82,10 +82,8 @@ function mergeFields(fields: Record<string, string | string[]>): Record<string, 
 const metadataValidator = Compile(UploadMetadataSchema);
 
 /** The fields each form takes: an inline calibration only in multipart. */
-const metadataFieldNames = {
-  querystring: Object.keys(UploadQuerySchema.properties),
-  multipart: Object.keys(UploadMetadataSchema.properties),
-};
+/** The fields each form may send, for a did-you-mean on an unknown one (a calibration can only come in a multipart field). */
+const metadataFormSchema = { querystring: UploadQuerySchema, multipart: UploadMetadataSchema };
 
 /** Both forms end here: one TypeBox schema decides what metadata is valid. */
 function validateMetadata(fields: Record<string, unknown>, source: 'querystring' | 'multipart'): UploadMetadata {
@@ -93,8 +91,8 @@ function validateMetadata(fields: Record<string, unknown>, source: 'querystring'
   if (metadataValidator.Check(value)) return value;
   const validation = metadataValidator.Errors(value);
   // Shaped like fastify's own validation errors, so the problem handler lists the fields the same way; with the
-  // fields there are, for a did-you-mean on an unknown one.
-  throw Object.assign(new Error(`${source} metadata is invalid`), { statusCode: 400, validation, validationContext: source, knownFields: metadataFieldNames[source] });
+  // form's schema, for a did-you-mean on an unknown field.
+  throw Object.assign(new Error(`${source} metadata is invalid`), { statusCode: 400, validation, validationContext: source, checkedSchema: metadataFormSchema[source] });
 }
 
 function formatFromName(fileName: string): TransientFormat | undefined {
