@@ -12,7 +12,7 @@
  * (BIT 15, 1975). Eliminating the R's removes the narrow valleys that make
  * a joint fit of R and tau crawl.
  * Start: taus spread log-uniformly over the times in which the curve rises
- * from 2 % to 98 % of its last value. The taus range from three decades below
+ * from 2 % to 98 % of its last value. The taus range from one decade below
  * the first time up to the last time (MAX_TAU_PER_LAST_TIME).
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
@@ -47,8 +47,12 @@ const RELATIVE_IMPROVEMENT_STOP = 1e-10;
 /** The starting taus cover the times in which Zth rises between these fractions of its last value. */
 const RISE_START_FRACTION = 0.02;
 const RISE_END_FRACTION = 0.98;
-/** ln tau may range three decades below the first time: so fast a stage stands for the rise before the curve starts. */
-const LOG_TAU_MARGIN_BELOW = Math.log(1e3);
+/**
+ * ln tau may range one decade below the first time: so fast a stage stands for the rise before the curve starts.
+ * From the first time on, one at a tenth of it has made all but exp(-10) = 5e-5 of its rise, so a faster bound
+ * fits no better; a lower bound was where the fit parked a stage (a local minimum: the stage wasted, the fit worse) and made the netlists stiff.
+ */
+const LOG_TAU_MARGIN_BELOW = Math.log(10);
 
 export function fitCompactFoster(time_s: Float64Array, zth_K_per_W: Float64Array, stages: number): CompactFosterFit {
   assertFitInput(time_s, zth_K_per_W, stages);
