@@ -220,20 +220,17 @@ describe('discrepancy stopping (Morozov 1966)', () => {
     expect(iterations[0]).toBeLessThan(iterations[1]);
   });
 
-  // The Fourier estimate is bayes's start (the module's own design); its cancelled ringing is
-  // about the spectrum a user gets only when the refinement left that start as it was.
-  it('reports the Fourier start\'s ringing for bayes only when no iteration refined it', () => {
-    const refined = 1e-4;
-    const zth = fosterZth(r, tau, time_s, refined, 9);
-    const fourier = timeConstantSpectrum(time_s, zth, { method: 'fourier', pointsPerDecade: 40, noise_K_per_W: refined });
-    expect(fourier.warnings.join(' ')).toMatch(/^Fourier estimate: negative ringing/);
-    const bayes = timeConstantSpectrum(time_s, zth, { method: 'bayes', pointsPerDecade: 40, noise_K_per_W: refined });
-    expect(bayes.iterations).toBeGreaterThan(0);
-    expect(bayes.warnings.join(' ')).not.toMatch(/Fourier|ringing/);
-    const unrefined = 3e-2;
-    const start = timeConstantSpectrum(time_s, fosterZth(r, tau, time_s, unrefined, 9), { method: 'bayes', pointsPerDecade: 40, noise_K_per_W: unrefined });
-    expect(start.iterations).toBe(0);
-    expect(start.warnings.join(' ')).toMatch(/the Fourier estimate the Bayesian refinement starts from already fitted to the noise level, so the spectrum is that estimate, whose negative ringing/);
+  // Clean curves ring by 17-27 % in the Fourier estimate whatever their noise (measured on random stacks, see
+  // RINGING_WARNING_FRACTION), so only more than that is warned of: here one sample at 1 ms off by 0.02 K/W,
+  // which no sum of rising exponentials follows (rings by 36 %, measured).
+  it('warns of the Fourier estimate\'s ringing only beyond what clean curves show', () => {
+    const noise = 1e-4;
+    const clean = fosterZth(r, tau, time_s, noise, 9);
+    expect(timeConstantSpectrum(time_s, clean, { method: 'fourier', pointsPerDecade: 40, noise_K_per_W: noise }).warnings).toEqual([]);
+    const glitched = clean.slice();
+    glitched[time_s.findIndex((t) => t >= 1e-3)] += 0.02;
+    const fourier = timeConstantSpectrum(time_s, glitched, { method: 'fourier', pointsPerDecade: 40, noise_K_per_W: noise });
+    expect(fourier.warnings).toEqual([expect.stringMatching(/^Fourier estimate: negative ringing of 3\d\.\d % .* more than clean curves show \(17-27 %\)/)]);
   });
 
   it('rejects a grid density outside 10-200 points per decade', () => {

@@ -145,8 +145,13 @@ const MISFIT_WARNING_RATIO = 4;
 const POSTERIOR_SEED = 20140101;
 /** Free-set solves per sample: a fit visits each of its few tens of lines a few times. */
 const MAX_SOLVES_PER_SAMPLE = 2000;
-/** The Fourier estimate's cancelled negative ringing gets a warning above this fraction of the spectrum's mass. */
-const RINGING_WARNING_FRACTION = 0.01;
+/**
+ * The Fourier estimate's cancelled negative ringing gets a warning above this fraction of the spectrum's mass.
+ * Clean curves ring by 17-27 % whatever their noise (24 seeded random stacks each at 0.002, 0.02 and 0.1 K, the
+ * demo records: measured), so a warning at 1 % came with every record and taught users to ignore it; one sample
+ * off by 5 K or 15 K at 1 s on the TO-247 example gave 37 % and 45 %.
+ */
+const RINGING_WARNING_FRACTION = 0.33;
 /** Floor added to the Fourier start, as a fraction of Rth spread over all columns: a multiplicative update cannot revive an exact zero. */
 const START_FLOOR_FRACTION = 1e-3;
 
@@ -174,9 +179,13 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
     return withMisfit(grid, low, noise_K_per_W, { tau_s, r_K_per_W: gaussianSmoothing(result.mean, POSTERIOR_SMOOTHING_STEPS), iterations: result.solves, warnings });
   }
   const fourier = fourierSpectrum(grid, low, nx, noise_K_per_W);
-  const ringing = fourier.clippedFraction > RINGING_WARNING_FRACTION ? `negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins` : null;
   if (options.method === 'fourier') {
-    if (ringing) warnings.push(`Fourier estimate: ${ringing}`);
+    if (fourier.clippedFraction > RINGING_WARNING_FRACTION) {
+      warnings.push(
+        `Fourier estimate: negative ringing of ${(100 * fourier.clippedFraction).toFixed(1)} % of the spectrum's mass was cancelled against neighbouring bins, ` +
+          'more than clean curves show (17-27 %): look for a glitch, a step or an artefact in the record, or noise beyond its estimate',
+      );
+    }
     return withMisfit(grid, low, null, { tau_s, r_K_per_W: fourier.r, iterations: 0, warnings });
   }
   // zeta_j = z_0 + (j - low) dz; increment row i (cell z_i..z_{i+1}) minus column j has lag p - (nx - 1) = i - j.
@@ -192,8 +201,6 @@ export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64A
     targetRms: DISCREPANCY_FACTOR * noise_K_per_W,
     maxIterations: MAX_BAYES_ITERATIONS, integralWeight: INTEGRAL_MISFIT_WEIGHT,
   });
-  // The Fourier estimate is only where the refinement starts; its ringing describes the result only when no iteration changed it.
-  if (ringing && result.iterations === 0) warnings.push(`the Fourier estimate the Bayesian refinement starts from already fitted to the noise level, so the spectrum is that estimate, whose ${ringing}`);
   if (!result.reachedTarget) warnings.push(`deconvolution stopped after ${result.iterations} iterations with residual ${result.residualRms.toPrecision(3)} K/W above the noise level ${noise_K_per_W.toPrecision(3)} K/W`);
   return withMisfit(grid, low, noise_K_per_W, { tau_s, r_K_per_W: result.solution, iterations: result.iterations, warnings });
 }
