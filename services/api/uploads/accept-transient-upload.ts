@@ -127,7 +127,7 @@ export async function acceptTransientUpload(
   const keepParse = store
     .putParsedTransient(inputSha256, record.format, transient)
     .catch((error: unknown) => log.warn({ err: error, upload_id: record.upload_id }, 'parse not kept; the analysis parses the raw bytes'));
-  const [blob] = await Promise.all([store.putBlob(upload.bytes), store.putUpload(record), keepParse]);
+  const [blob] = await Promise.all([store.putBlob(upload.bytes, inputSha256), store.putUpload(record), keepParse]);
 
   if (scopedKey !== undefined) {
     const claim = await store.claimIdempotencyKey({ key: scopedKey, created_at: record.received_at, upload_id: record.upload_id, job_id: jobId });
