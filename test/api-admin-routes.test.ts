@@ -195,6 +195,20 @@ describe('calibrations', () => {
     expect(storedAsIs.json().calibration_id).toBe(calibration_id);
   });
 
+  it('fits and stores a two-point linear calibration (the JESD51-1 K-factor) with a null residual', async () => {
+    const fitted = await post('/v1/calibrations', { model: 'linear', points_csv: 'temperature_C,voltage_V\n25,0.600\n125,0.400\n' }, 'bench');
+    expect(fitted.statusCode, fitted.body).toBe(201);
+    const { calibration, calibration_id } = fitted.json();
+    // JESD51-1: K = (125 - 25) K / (0.400 - 0.600) V = -0.5 K/mV.
+    expect(calibration).toMatchObject({ points: 2, residual_rms_K: null });
+    expect(calibration.k_factor_K_per_mV).toBeCloseTo(-0.5, 12);
+    expect(calibration.warnings).toEqual([expect.stringMatching(/not estimable/)]);
+    const storedAsIs = await post('/v1/calibrations', { calibration }, 'bench');
+    expect(storedAsIs.json().calibration_id).toBe(calibration_id);
+    const got = await context.app.inject({ url: `/v1/calibrations/${calibration_id}`, headers: bearer('reader') });
+    expect(got.json().calibration.residual_rms_K).toBeNull();
+  });
+
   it('refuses ambiguous requests (400), too few points (422) and unknown ids (404)', async () => {
     expect((await post('/v1/calibrations', { model: 'linear' }, 'bench')).json()).toMatchObject({ status: 400, code: 'REQUEST_INVALID' });
     expect((await post('/v1/calibrations', { points: { temperature_C, voltage_V } }, 'bench')).json()).toMatchObject({ status: 400 });

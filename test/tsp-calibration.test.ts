@@ -104,7 +104,7 @@ describe('fitCalibration', () => {
       expect(exp.residual_rms_K).toBeLessThanOrEqual(reference.rms_K + 1e-9);
       expect(exp.residual_rms_K).toBeGreaterThan(reference.rms_K - 1e-6);
       expect(exp.coefficients[2] / reference.c2_per_V).toBeCloseTo(1, 2);
-      expect(exp.residual_rms_K).toBeLessThan(linear.residual_rms_K);
+      expect(exp.residual_rms_K).toBeLessThan(linear.residual_rms_K!);
     });
 
     it('on straight and nearly straight noisy sweeps is as good as the linear fit', () => {
@@ -113,7 +113,7 @@ describe('fitCalibration', () => {
         const voltages = temperatures_C.map((t) => 0.65 - 2e-3 * (t - 25) + curvature_V_per_K2 * (t - 25) ** 2 + 2e-5 * gaussian(random));
         const exp = fitCalibration(temperatures_C, voltages, 'exp');
         const linear = fitCalibration(temperatures_C, voltages, 'linear');
-        expect(exp.residual_rms_K).toBeLessThanOrEqual(linear.residual_rms_K * (1 + 1e-9));
+        expect(exp.residual_rms_K).toBeLessThanOrEqual(linear.residual_rms_K! * (1 + 1e-9));
         expect(exp.residual_rms_K).toBeLessThanOrEqual(referenceExpRms(temperatures_C, voltages).rms_K + 1e-9);
       }
     });
@@ -129,6 +129,38 @@ describe('fitCalibration', () => {
     ['non-monotonic fit', () => fitCalibration(Float64Array.from([20, 60, 100, 140, 60]), Float64Array.from([0.6, 0.52, 0.44, 0.36, 0.36]), 'poly2'), 'CALIBRATION_NOT_MONOTONIC'],
   ])('%s -> %s', (_label, run, code) => {
     expect(catchHeatpathError(run).code).toBe(code);
+  });
+});
+
+describe('two-point calibration (the K-factor of JESD51-1)', () => {
+  // JESD51-1: K = (T2 - T1) / (V2 - V1), here (125 - 25) degC / (0.400 - 0.600) V = -0.5 K/mV; T = 25 + (0.600 - V) * 500 = 325 - 500 V.
+  const twoPoints = () => fitCalibration(Float64Array.of(25, 125), Float64Array.of(0.6, 0.4), 'linear');
+
+  it('fits the line through the two points, with a residual that is not estimable (null, not 0) and a warning', () => {
+    const cal = twoPoints();
+    expect(cal.coefficients[0]).toBeCloseTo(325, 9);
+    expect(cal.coefficients[1]).toBeCloseTo(-500, 9);
+    expect(cal.k_factor_K_per_mV).toBeCloseTo(-0.5, 12);
+    expect(cal.points).toBe(2);
+    expect(cal.residual_rms_K).toBeNull();
+    expect(cal.warnings).toEqual([expect.stringMatching(/exactly 2 points.*not estimable \(null\).*cannot show a non-linear TSP or a bad point/)]);
+    expect(Value.Check(CalibrationSchema, cal)).toBe(true);
+    expect(validateCalibration(JSON.parse(JSON.stringify(cal)), 'cal.json').residual_rms_K).toBeNull();
+  });
+
+  it('converts along that line', () => {
+    expect(voltageToTemperature(twoPoints(), Float64Array.of(1), Float64Array.of(0.5))[0]).toBeCloseTo(75, 9);
+  });
+
+  it.each([
+    ['linear from one point', 'linear', [25], [0.6]],
+    ['linear from two points at one voltage', 'linear', [25, 125], [0.5, 0.5]],
+    ['poly2 from three points (its minimum stays four)', 'poly2', [25, 75, 125], [0.6, 0.5, 0.4]],
+    ['exp from three points (its minimum stays four)', 'exp', [25, 75, 125], [0.6, 0.5, 0.4]],
+  ] as const)('refuses %s', (_label, model, temps, volts) => {
+    const error = catchHeatpathError(() => fitCalibration(Float64Array.from(temps), Float64Array.from(volts), model));
+    expect(error.code).toBe('CALIBRATION_TOO_FEW_POINTS');
+    expect(error.detail).toMatch(/needs at least \d points/);
   });
 });
 

@@ -44,7 +44,7 @@ export async function runCalibrateCommand(argv: string[], print: (text: string) 
       `  temperature range   ${calibration.temperature_range_C[0]} .. ${calibration.temperature_range_C[1]} C`,
       `  voltage range       ${calibration.voltage_range_V[0]} .. ${calibration.voltage_range_V[1]} V`,
       `  coefficients        ${calibration.coefficients.map((c) => c.toPrecision(8)).join(', ')}`,
-      `  residual RMS        ${calibration.residual_rms_K.toPrecision(3)} K`,
+      `  residual RMS        ${calibration.residual_rms_K === null ? 'not estimable' : `${calibration.residual_rms_K.toPrecision(3)} K`}`,
       `  sensitivity         ${calibration.sensitivity_mV_per_K.toPrecision(4)} mV/K (K-factor ${calibration.k_factor_K_per_mV.toPrecision(4)} K/mV)`,
       ...(calibration.warnings ?? []).map((warning) => `  warning             ${warning}`),
     ].join('\n') + '\n',

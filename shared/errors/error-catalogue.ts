@@ -30,7 +30,7 @@ export const errorCatalogue = {
   INPUT_HEADER_REPEATED: { status: 400, title: 'The header line repeats among the data rows', hint: 'Keep one record per file: split the file where the header repeats, and send each record on its own.' },
 
   // ---- calibration ----
-  CALIBRATION_TOO_FEW_POINTS: { status: 422, title: 'Too few calibration points for the model', hint: 'A polynomial of order n needs at least n + 2 points; add points or choose a lower order.' },
+  CALIBRATION_TOO_FEW_POINTS: { status: 422, title: 'Too few calibration points for the model', hint: 'linear needs at least 2 points (the two-point K-factor), poly2, poly3 and poly4 at least 4, 5 and 6, exp at least 4, at as many distinct voltages as the model has coefficients; add points or choose a lower order.' },
   CALIBRATION_BAD_MODEL: { status: 400, title: 'Unknown calibration model', hint: 'Choose one of linear, poly2, poly3, poly4, exp.' },
   CALIBRATION_NOT_MONOTONIC: { status: 422, title: 'The calibration curve is not monotonic over its range', hint: "A TSP's voltage must fall (or rise) steadily with temperature: check the points (a swapped row, a step taken before the device settled?) or choose a lower-order model." },
   CALIBRATION_OUT_OF_RANGE: { status: 422, title: 'A measured voltage lies outside the calibrated range', hint: 'Extend the calibration sweep to cover the measured temperatures.' },

@@ -38,7 +38,12 @@ export const PLAUSIBLE_VOLTAGE_LIMIT_V = 50;
 
 export function calibrationWarnings(calibration: Calibration, temperature_C: Float64Array, voltage_V: Float64Array): string[] {
   const warnings: string[] = [];
-  if (calibration.residual_rms_K > CALIBRATION_RESIDUAL_WARNING_K) {
+  if (calibration.residual_rms_K === null) {
+    warnings.push(
+      `a ${calibration.model} calibration through exactly ${calibration.points} points (the two-point K-factor, common practice): it fits any ${calibration.points} points exactly, ` +
+        'so its residual is not estimable (null) and it cannot show a non-linear TSP or a bad point; a sweep of five or more temperatures across the range measured shows both.',
+    );
+  } else if (calibration.residual_rms_K > CALIBRATION_RESIDUAL_WARNING_K) {
     warnings.push(
       `the ${calibration.model} fit leaves a residual RMS of ${calibration.residual_rms_K.toPrecision(3)} K (above ${CALIBRATION_RESIDUAL_WARNING_K} K): ` +
         `junction temperatures from this calibration carry errors of that size. ${againstTrend(temperature_C, voltage_V)}` +

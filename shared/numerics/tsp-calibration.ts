@@ -22,6 +22,17 @@ const MIN_FITTED_SPAN_FRACTION = 0.5;
 export const MONOTONIC_CHECK_POINTS = 257;
 
 const PARAMETER_COUNT: Record<CalibrationModel, number> = { linear: 2, poly2: 3, poly3: 4, poly4: 5, exp: 3 };
+/**
+ * Points a fit needs beyond its coefficients. One, so that the residual says something about the fit, but for
+ * the line: the two-point K-factor of JESD51-1 (two temperatures, one line through them) is common practice, and
+ * is accepted with a residual that is not estimable and a warning.
+ */
+const SPARE_POINTS: Record<CalibrationModel, number> = { linear: 0, poly2: 1, poly3: 1, poly4: 1, exp: 1 };
+
+/** Fewest points the model is fitted from. */
+export function minimumCalibrationPoints(model: CalibrationModel): number {
+  return PARAMETER_COUNT[model] + SPARE_POINTS[model];
+}
 const POLYNOMIAL_DEGREE: Partial<Record<CalibrationModel, number>> = { linear: 1, poly2: 2, poly3: 3, poly4: 4 };
 
 export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Array, model: CalibrationModel): Calibration {
@@ -35,8 +46,11 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
     }
   }
   const distinctVoltages = new Set(voltage_V).size;
-  if (count < parameters + 1 || distinctVoltages < parameters) {
-    throw new HeatpathError('CALIBRATION_TOO_FEW_POINTS', `${model} has ${parameters} coefficients; ${count} points at ${distinctVoltages} distinct voltages`);
+  if (count < minimumCalibrationPoints(model) || distinctVoltages < parameters) {
+    throw new HeatpathError(
+      'CALIBRATION_TOO_FEW_POINTS',
+      `${model} has ${parameters} coefficients and needs at least ${minimumCalibrationPoints(model)} points at ${parameters} or more distinct voltages; the sweep has ${count} points at ${distinctVoltages} distinct voltages`,
+    );
   }
   const degree = POLYNOMIAL_DEGREE[model];
   const coefficients = degree === undefined ? fitOffsetExponential(voltage_V, temperature_C) : fitPolynomial(voltage_V, temperature_C, degree);
@@ -55,7 +69,8 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
     coefficients: Array.from(coefficients),
     voltage_range_V,
     temperature_range_C,
-    residual_rms_K: Math.sqrt(squares / count),
+    // A model through exactly as many points as it has coefficients fits any points, bad ones too: no residual to tell.
+    residual_rms_K: count > parameters ? Math.sqrt(squares / count) : null,
     sensitivity_mV_per_K,
     k_factor_K_per_mV: 1 / sensitivity_mV_per_K,
     points: count,

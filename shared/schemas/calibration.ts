@@ -24,7 +24,12 @@ export const CalibrationSchema = Type.Object(
     }),
     voltage_range_V: Type.Tuple([Type.Number(), Type.Number()]),
     temperature_range_C: Type.Tuple([Type.Number(), Type.Number()]),
-    residual_rms_K: Type.Number({ minimum: 0 }),
+    // One type list, not a union: the service's request validation coerces types, and in a union's first branch null would become 0.
+    residual_rms_K: Type.Unsafe<number | null>({
+      type: ['number', 'null'],
+      minimum: 0,
+      description: "RMS of the fit's residuals at the sweep's points; null when not estimable (a line through two points, the two-point K-factor).",
+    }),
     sensitivity_mV_per_K: Type.Number({ description: 'dV/dT at the middle of the range (negative for a diode).' }),
     k_factor_K_per_mV: Type.Number({ description: 'Inverse sensitivity, as JESD51-1 defines the K-factor.' }),
     points: Type.Integer({ minimum: 2 }),
