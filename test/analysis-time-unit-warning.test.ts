@@ -8,6 +8,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
+import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
+import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
 
 const CREATED_AT = '2026-01-01T00:00:00.000Z';
 const demo = readFileSync(new URL('./fixtures/demo-lab/fh-tt1_m07_cooling.csv', import.meta.url), 'utf8');
@@ -40,6 +42,30 @@ describe('a temperature_C column that holds kelvin', () => {
     expect(kelvin.quality.warnings.find((w) => asKelvin.test(w))).toMatch(/^the temperatures run from 29\d\.\d to 3\d\d\.\d degC/);
     expect(celsius.quality.warnings.some((w) => asKelvin.test(w))).toBe(false);
     expect(kelvin.rth_total_K_per_W).toBeCloseTo(celsius.rth_total_K_per_W, 6);
+  });
+});
+
+describe('a calibration sweep written in kelvin', () => {
+  // The synthetic demo sweep of Q12 runs from 25 to 150 degC; the same points plus 273.15 run from 298 to 423 "degC",
+  // a cold end hotter than any cold plate (the rule above), so the sweep and every temperature it gives are warned of.
+  const points = parseCalibrationPoints(readFileSync(new URL('./fixtures/demo-lab/fh-tt2_q12_calibration-points.csv', import.meta.url)), 'q12.csv');
+  const celsius = fitCalibration(points.temperature_C, points.voltage_V, 'linear');
+  const kelvin = fitCalibration(points.temperature_C.map((t) => t + 273.15), points.voltage_V, 'linear');
+  const cooling = { bytes: readFileSync(new URL('./fixtures/demo-lab/fh-tt2_q12_cooling.csv', import.meta.url)), fileName: 'q12.csv' };
+  const sweepInKelvin = /^the sweep's temperatures run from 298\.1 to 423\.1 degC.*if temperature_C is in kelvin, subtract 273\.15 and fit again/;
+  const calibratedInKelvin = /^the junction temperatures the calibration gives run from 29\d\.\d to 3\d\d\.\d degC.*sweep's temperature_C was in kelvin, subtract 273\.15/;
+
+  it('is warned of when fitted, and a sweep in degC is not', () => {
+    expect(kelvin.warnings).toEqual([expect.stringMatching(sweepInKelvin)]);
+    expect(celsius).not.toHaveProperty('warnings');
+  });
+
+  it('makes the analysis warn of the junction temperatures it gives, with Zth and Rth as from the sweep in degC', () => {
+    const [fromKelvin] = analyzeTransientFile({ ...cooling, calibration: kelvin }, CREATED_AT);
+    const [fromCelsius] = analyzeTransientFile({ ...cooling, calibration: celsius }, CREATED_AT);
+    expect(fromKelvin.quality.warnings.filter((w) => calibratedInKelvin.test(w))).toHaveLength(1);
+    expect(fromCelsius.quality.warnings.some((w) => /kelvin/.test(w))).toBe(false);
+    expect(fromKelvin.rth_total_K_per_W).toBeCloseTo(fromCelsius.rth_total_K_per_W, 6);
   });
 });
 

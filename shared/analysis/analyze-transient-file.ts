@@ -3,7 +3,7 @@ import { HeatpathError } from '../errors/heatpath-error.js';
 import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { estimateNoiseRms } from '../numerics/noise-estimate.js';
-import { valueRange } from '../numerics/value-range.js';
+import { kelvinTemperatureWarning } from '../numerics/kelvin-temperature-warning.js';
 import { calibrationExtrapolationWarnings, voltageToTemperature } from '../numerics/tsp-calibration.js';
 import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
 import { steadyStateRth } from '../numerics/steady-state.js';
@@ -132,25 +132,21 @@ function timeUnitWarning(file: TransientFile): string[] {
   ];
 }
 
-/**
- * A record whose coldest sample is hotter than this lies above any cold plate or heatsink a power device is tested
- * on: power devices are rated for junctions of 150 to 200 degC, SiC up to about 200 (memory), and the reference
- * is colder still.
- */
-const HOTTEST_PLAUSIBLE_COLD_END_C = 200;
+/** Zth and Rth stay right when temperatures are in kelvin; what does not, the kelvin warnings say. */
+const KELVIN_SPARES_ZTH = 'Zth and Rth depend only on differences and are unaffected, Tj(0) is not.';
 
-/**
- * A temperature_C column whose whole record lies above that is more likely written in kelvin (a cooling curve from
- * 363 to 336 read as degC). Zth and Rth depend only on differences and stay right; Tj(0) and the temperatures
- * reported do not, and the result says so.
- */
+/** A temperature_C column more likely written in kelvin (kelvin-temperature-warning.ts). */
 function temperatureUnitWarning(temperature_C: Float64Array): string[] {
-  const [coldest_C, hottest_C] = valueRange(temperature_C);
-  if (!(coldest_C > HOTTEST_PLAUSIBLE_COLD_END_C)) return [];
-  return [
-    `the temperatures run from ${coldest_C.toPrecision(4)} to ${hottest_C.toPrecision(4)} degC, hotter than a power device's cold plate or heatsink plausibly is even at its coldest: ` +
-      'if the column is in kelvin, subtract 273.15 (temperature_C is in degrees Celsius); Zth and Rth depend only on differences and are unaffected, Tj(0) is not.',
-  ];
+  return kelvinTemperatureWarning(temperature_C, 'the temperatures', `if the column is in kelvin, subtract 273.15 (temperature_C is in degrees Celsius); ${KELVIN_SPARES_ZTH}`);
+}
+
+/** Junction temperatures that a calibration whose sweep was written in kelvin gives (kelvin-temperature-warning.ts). */
+function calibratedTemperatureUnitWarning(temperature_C: Float64Array): string[] {
+  return kelvinTemperatureWarning(
+    temperature_C,
+    'the junction temperatures the calibration gives',
+    `if the calibration sweep's temperature_C was in kelvin, subtract 273.15 from it and fit the calibration again (temperature_C is in degrees Celsius); ${KELVIN_SPARES_ZTH}`,
+  );
 }
 
 /**
@@ -191,7 +187,7 @@ function analyzeChannel(
     zth = zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window });
   } else {
     const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, time_s, values) : values;
-    if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)));
+    if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)), ...calibratedTemperatureUnitWarning(temperature_C));
     if (file.quantity === 'temperature_C') warnings.push(...temperatureUnitWarning(temperature_C));
     noise_K = estimateNoiseRms(temperature_C);
     noise_K_per_W = noise_K / power_W!;

@@ -1,9 +1,10 @@
 import type { Calibration } from '../schemas/calibration.js';
+import { kelvinTemperatureWarning } from './kelvin-temperature-warning.js';
 
 /**
  * What a fitted TSP calibration may be wrong about although it is a function
  * (the fit refuses a model that is not monotonic over its range): a poor fit,
- * and values no semiconductor TSP read in volts gives. Warnings, not
+ * values no semiconductor TSP read in volts gives, and a sweep in kelvin. Warnings, not
  * refusals: the numbers can be legitimate, and the user decides.
  */
 
@@ -60,6 +61,13 @@ export function calibrationWarnings(calibration: Calibration, temperature_C: Flo
         'if the sweep was written in millivolts, divide voltage_V by 1000 (and read the transients in volts too); a series string of junctions can be legitimate.',
     );
   }
+  warnings.push(
+    ...kelvinTemperatureWarning(
+      temperature_C,
+      "the sweep's temperatures",
+      'if temperature_C is in kelvin, subtract 273.15 and fit again (temperature_C is in degrees Celsius): junction temperatures from this calibration would be 273.15 K too hot, though Zth and Rth (differences) would not change.',
+    ),
+  );
   return warnings;
 }
 
