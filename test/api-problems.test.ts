@@ -348,6 +348,29 @@ describe('with a real Redis', () => {
     expect((await context.store.getUpload(accepted.json().upload_id))?.calibration_id).toBe(calibration_id);
   });
 
+  it("keeps the sweep's sample and warns at upload when the transient is of another sample", async () => {
+    const temperature_C = [25, 50, 75, 100, 125, 150];
+    const points_csv = ['# sample: Q4', '# bench: OVEN-2', 'temperature_C,voltage_V', ...temperature_C.map((t) => `${t},${0.7 - 0.002 * (t - 25)}`)].join('\n');
+    const fitted = await context.app.inject({ method: 'POST', url: '/v1/calibrations', headers: bearer('bench'), payload: { model: 'linear', points_csv } });
+    expect(fitted.statusCode, fitted.body).toBe(201);
+    expect(fitted.json().calibration).toMatchObject({ sample: 'Q4', bench: 'OVEN-2' });
+    const fromArrays = await context.app.inject({
+      method: 'POST',
+      url: '/v1/calibrations',
+      headers: bearer('bench'),
+      payload: { model: 'linear', points: { temperature_C, voltage_V: temperature_C.map((t) => 0.7 - 0.002 * (t - 25)), sample: 'Q4' } },
+    });
+    expect(fromArrays.json().calibration_id).toBe(fitted.json().calibration_id);
+
+    const lines = small.toString('utf8').trim().split('\n');
+    const voltage = ['time_s,voltage_V', ...lines.slice(1).map((line) => `${line.split(',')[0]},${(0.7 - 0.002 * (Number(line.split(',')[1]) - 25)).toFixed(7)}`)].join('\n');
+    const otherSample = await upload(context, `sample_id=Q3&power_W=50&calibration_id=${fitted.json().calibration_id}`, voltage);
+    expect(otherSample.statusCode, otherSample.body).toBe(202);
+    expect(otherSample.json().warnings).toEqual([expect.stringMatching(/^the calibration was swept on sample Q4, the transient is of sample Q3/)]);
+    const sameSample = await upload(context, `sample_id=Q4&power_W=50&calibration_id=${fitted.json().calibration_id}`, voltage);
+    expect(sameSample.json().warnings.filter((w: string) => /swept on sample/.test(w))).toEqual([]);
+  });
+
   it('says a calibration given with temperature input is not used, and leaves it out of the job', async () => {
     const fitted = await context.store.putCalibration(fitCalibration(Float64Array.from([25, 50, 75, 100]), Float64Array.from([0.7, 0.65, 0.6, 0.55]), 'linear'), 'test');
     const bytes = Buffer.concat([Buffer.from('# note: with a calibration it does not need\n'), small]);

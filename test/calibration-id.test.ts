@@ -34,4 +34,14 @@ describe('calibrationIdOf', () => {
     expect(calibrationIdOf(fromCli)).toBe(calibrationIdOf(calibration));
     expect(calibrationIdOf({ ...fromCli, coefficients: [350, -501] })).not.toBe(calibrationIdOf(calibration));
   });
+
+  it('names the device swept (an analysis of another device warns, so results depend on it) but not the bench', () => {
+    expect(calibrationIdOf({ ...calibration, bench: 'FH-TT2' })).toBe(calibrationIdOf(calibration));
+    expect(calibrationIdOf({ ...calibration, sample: 'Q4' })).not.toBe(calibrationIdOf({ ...calibration, sample: 'Q3' }));
+    // Canonical JSON written out by hand, SHA-256 by node:crypto (FIPS 180-4); without a sample the id is the one above.
+    const canonical =
+      '{"coefficients":[350,-500],"heatpath_calibration":1,"k_factor_K_per_mV":-0.5,"model":"linear","points":11,' +
+      '"residual_rms_K":0,"sample":"Q4","sensitivity_mV_per_K":-2,"temperature_range_C":[20,170],"voltage_range_V":[0.36,0.65]}';
+    expect(calibrationIdOf({ ...calibration, sample: 'Q4', bench: 'FH-TT2' })).toBe(createHash('sha256').update(canonical).digest('hex'));
+  });
 });

@@ -13,6 +13,15 @@ describe('parseCalibrationPoints', () => {
     expect(Array.from(points.voltage_V)).toEqual([0.65, 0.55]);
   });
 
+  it("keeps the sweep's sample and bench from its header lines (in any case of the key), and none when it names none", () => {
+    const points = parseCalibrationPoints('# Sample: Q4 \n# bench: OVEN-2\n# note: 10 mA\ntemperature_C,voltage_V\n25,0.6\n75,0.5\n', 'cal.csv');
+    expect(points).toMatchObject({ sample: 'Q4', bench: 'OVEN-2' });
+    expect(parseCalibrationPoints('# sample_id: LIMS-7\ntemperature_C,voltage_V\n25,0.6\n75,0.5\n', 'cal.csv').sample).toBe('LIMS-7');
+    const unnamed = parseCalibrationPoints('# oven: O3\ntemperature_C,voltage_V\n25,0.6\n75,0.5\n', 'cal.csv');
+    expect(unnamed).not.toHaveProperty('sample');
+    expect(unnamed).not.toHaveProperty('bench');
+  });
+
   it.each([
     ['', 'INPUT_EMPTY', undefined, undefined],
     ['temperature_C\n25', 'CALIBRATION_POINTS_COLUMNS', 1, undefined],

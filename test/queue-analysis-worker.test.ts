@@ -6,6 +6,7 @@ import { parseTransient } from '../shared/input/parse-transient.js';
 import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
+import type { Calibration } from '../shared/schemas/calibration.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { AnalysisWorker } from '../workers/analysis-worker.js';
 import { UploadRecovery } from '../workers/recover-uploads.js';
@@ -35,6 +36,20 @@ afterEach(async () => {
   await deleteKeysWithPrefix(redisUrl, prefix);
   await fixture.remove();
 });
+
+/** The result of the upload of `bytes` (sample S-TEST) with `calibration` stored and named, as a worker analyses it. */
+async function analysedWithCalibration(seed: number, bytes: Buffer, calibration: Calibration): Promise<AnalysisResult> {
+  const { calibration_id } = await fixture.store.putCalibration(calibration, 'test');
+  const plain = await fixture.storeUpload(seed, bytes);
+  const upload = await fixture.storeUpload(seed, bytes, {
+    upload_id: `u-${seed}-with-calibration`, calibration_id,
+    job_id: jobIdFor({ input_sha256: plain.input_sha256, sample_id: plain.sample_id, parameters: plain.parameters, power: plain.power, calibration_sha256: calibration_id }),
+  });
+  await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
+  startWorker();
+  await eventually(() => fixture.store.hasResult(upload.job_id));
+  return ((await fixture.store.getResult(upload.job_id))!.results as AnalysisResult[])[0];
+}
 
 function startWorker(logger?: pino.Logger): AnalysisWorker {
   const worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix, logger });
@@ -148,18 +163,20 @@ describe('AnalysisWorker (real Redis, sandboxed processor)', () => {
   it('records a calibration given for a temperature_C upload as not used, as the CLI does', async () => {
     // A TSP calibration converts voltage_V only (JESD51-1); the synthetic upload is temperature_C.
     const calibration = fitCalibration(Float64Array.from([25, 50, 75, 100, 125]), Float64Array.from([0.65, 0.6, 0.55, 0.5, 0.45]), 'linear');
-    const { calibration_id } = await fixture.store.putCalibration(calibration, 'test');
-    const plain = await fixture.storeUpload(4);
-    const upload = await fixture.storeUpload(4, undefined, {
-      upload_id: 'u-with-calibration', calibration_id,
-      job_id: jobIdFor({ input_sha256: plain.input_sha256, sample_id: plain.sample_id, parameters: plain.parameters, power: plain.power, calibration_sha256: calibration_id }),
-    });
-    await queue.enqueue(upload, { priority: JOB_PRIORITY.interactive });
-    startWorker();
-    await eventually(() => fixture.store.hasResult(upload.job_id));
-    const [result] = (await fixture.store.getResult(upload.job_id))!.results as AnalysisResult[];
+    const result = await analysedWithCalibration(4, syntheticTransientCsv(4), calibration);
     expect(result.quality.warnings).toContain('calibration not used: the input is temperature_C, which needs none');
     expect(result.provenance.calibration_sha256).toBeNull();
+  });
+
+  it("warns in the result when the calibration was swept on another sample than the upload's sample id", async () => {
+    // The synthetic upload as the voltage of a -2 mV/K diode (common practice), and a sweep of that diode named Q4.
+    const voltageAt = (t: number) => 0.7 - 0.002 * (t - 25);
+    const temperatures = syntheticTransientCsv(5).toString('utf8').trim().split('\n').slice(1);
+    const volts = Buffer.from(['time_s,voltage_V', ...temperatures.map((line) => `${line.split(',')[0]},${voltageAt(Number(line.split(',')[1])).toFixed(7)}`)].join('\n') + '\n');
+    const sweep_C = [0, 50, 100, 150, 200];
+    const calibration = { ...fitCalibration(Float64Array.from(sweep_C), Float64Array.from(sweep_C.map(voltageAt)), 'linear'), sample: 'Q4' };
+    const result = await analysedWithCalibration(5, volts, calibration);
+    expect(result.quality.warnings).toContainEqual(expect.stringMatching(/^the calibration was swept on sample Q4, the transient is of sample S-TEST/));
   });
 
   it('finishes every job exactly once across a worker restart with jobs in flight', async () => {

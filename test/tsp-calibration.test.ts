@@ -260,6 +260,17 @@ describe('voltageToTemperature', () => {
     expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low, high, 0.5 * (low + high)]), 0)).toEqual([]);
   });
 
+  it("asks whether the calibration is the device's when the curve's cold end converts to more than 5 K below the sweep", () => {
+    // The diode line runs -2 mV/K: 12 mV above the sweep's coldest voltage is 6 K below its 20 degC, 8 mV is 4 K.
+    const sixBelow = calibrationExtrapolationWarnings(cal, Float64Array.from([low + 0.5 * span, high + 0.012]), 0);
+    expect(sixBelow).toEqual([expect.stringMatching(/the curve's cold end converts to 14\.00 degC, 6\.0 K below the sweep's coldest point.*is this the device's calibration\?$/)]);
+    const fourBelow = calibrationExtrapolationWarnings(cal, Float64Array.from([low + 0.5 * span, high + 0.008]), 0);
+    expect(fourBelow[0]).toContain('extend the calibration sweep');
+    expect(fourBelow[0]).not.toContain("device's calibration");
+    // Beyond the hot end (low voltages) the cold end lies inside the sweep: no question.
+    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low - 0.02, high]), 0)[0]).not.toContain("device's calibration");
+  });
+
   it('does not warn of samples beyond the range by less than three times the noise (a cooling curve that ends at the sweep\'s first point)', () => {
     const noise_V = 0.001 * span;
     const atTheEnd = Float64Array.from([low + 0.5 * span, high + 2.9 * noise_V, high + 1.5 * noise_V]);

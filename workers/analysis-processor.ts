@@ -125,6 +125,7 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
       format: upload.format,
       power: data.power ?? undefined,
       calibration: calibration?.calibration,
+      sample: upload.sample_id,
       parameters: data.parameters,
     },
     new Date().toISOString(),

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCalibrationPoints } from '../../shared/input/parse-calibration-points.js';
-import { fitCalibration } from '../../shared/numerics/tsp-calibration.js';
+import { calibrationFromSweep } from '../../shared/analysis/calibration-from-sweep.js';
 import { CalibrationModelSchema, type CalibrationModel } from '../../shared/schemas/calibration.js';
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
@@ -34,13 +34,13 @@ export async function runCalibrateCommand(argv: string[], print: (text: string) 
   const bytes = await readInputFile(file);
   const points = parseCalibrationPoints(bytes, file);
   const calibration = {
-    ...fitCalibration(points.temperature_C, points.voltage_V, model),
+    ...calibrationFromSweep(points, model),
     created_at: new Date().toISOString(),
     source: `${file} sha256:${createHash('sha256').update(bytes).digest('hex')}`,
   };
   print(
     [
-      `${file}: ${model} fit over ${calibration.points} points`,
+      `${file}: ${model} fit over ${calibration.points} points${calibration.sample === undefined ? '' : ` of sample ${calibration.sample}`}${calibration.bench === undefined ? '' : ` on bench ${calibration.bench}`}`,
       `  temperature range   ${calibration.temperature_range_C[0]} .. ${calibration.temperature_range_C[1]} C`,
       `  voltage range       ${calibration.voltage_range_V[0]} .. ${calibration.voltage_range_V[1]} V`,
       `  coefficients        ${calibration.coefficients.map((c) => c.toPrecision(8)).join(', ')}`,

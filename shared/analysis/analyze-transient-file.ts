@@ -22,6 +22,8 @@ import { ALGORITHM_VERSION, HEATPATH_VERSION } from './algorithm-version.js';
 import { RESULT_CAUTION } from './result-caution.js';
 import { channelPowerLines, resolveAnalysisInputs } from './resolve-analysis-inputs.js';
 import { calibrationIdOf } from '../schemas/calibration-id.js';
+import { headerSample } from '../input/header-label.js';
+import { calibrationSampleWarning } from './calibration-sample-warning.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -37,6 +39,8 @@ export interface TransientFileInput {
   power?: Power;
   /** Needed for voltage_V input; not used for any other (a given one gets a warning). */
   calibration?: Calibration;
+  /** The device measured, checked against the calibration's: the service's sample id; omitted: the file's `# sample:` line. */
+  sample?: string;
   /** Omitted fields: the file's `kind` metadata, then the schema defaults. */
   parameters?: Partial<AnalysisParameters>;
 }
@@ -64,6 +68,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
     ...(input.calibration && !calibration ? [unusedCalibrationWarning(file.quantity)] : []),
+    ...(calibration ? calibrationSampleWarning(calibration, input.sample ?? headerSample(file.meta)) : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
   const provenance = {

@@ -132,6 +132,13 @@ export function voltageToTemperature(calibration: Calibration, time_s: Float64Ar
 export const EXTRAPOLATION_NOISE_ALLOWANCE = 3;
 
 /**
+ * A transient whose cold end the calibration extrapolates to more than this below the sweep's coldest point gets
+ * the question whether the calibration is the device's. Our choice: a sweep usually starts at or below the cold
+ * plate the transient cools to, and another device of the type reads some mV apart at one temperature, a few K.
+ */
+export const COLD_END_BELOW_SWEEP_HINT_K = 5;
+
+/**
  * What a conversion extrapolates: voltages outside the calibrated range but
  * within its margin are converted by the fit beyond the sweep, where nothing
  * checked it (a polynomial of high order or an exponential can bend away
@@ -153,10 +160,16 @@ export function calibrationExtrapolationWarnings(calibration: Calibration, volta
   }
   if (outside === 0) return [];
   const [lowest_C, highest_C] = calibration.temperature_range_C;
+  // The fit is monotonic over the voltages converted, so the coldest temperature is that of the lowest or the highest voltage.
+  const coldest_C = Math.min(...evaluate(calibration.model, calibration.coefficients, Float64Array.from(valueRange(voltage_V))));
+  const coldEndHint =
+    coldest_C < lowest_C - COLD_END_BELOW_SWEEP_HINT_K
+      ? `; the curve's cold end converts to ${coldest_C.toPrecision(4)} degC, ${(lowest_C - coldest_C).toPrecision(2)} K below the sweep's coldest point, where a sweep usually begins at or below the cold plate: is this the device's calibration?`
+      : '';
   return [
     `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V by more than ${EXTRAPOLATION_NOISE_ALLOWANCE} times the noise, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
       `(${((100 * farthest_V) / (high - low)).toPrecision(2)} % of the span): their temperatures are extrapolated by the ${calibration.model} fit beyond the sweep's ` +
-      `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient`,
+      `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient${coldEndHint}`,
   ];
 }
 

@@ -38,6 +38,14 @@ export const CalibrationSchema = Type.Object(
         description: 'What the fit found doubtful (a large residual, implausible volts); absent when nothing. Not part of the calibration id.',
       }),
     ),
+    sample: Type.Optional(
+      Type.String({
+        minLength: 1,
+        maxLength: 128,
+        description: "The device swept (the sweep's `# sample:` line): an analysis of a transient of another sample warns. Part of the calibration id, since results depend on it.",
+      }),
+    ),
+    bench: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: "Where the device was swept (the sweep's `# bench:` line). Not part of the calibration id." })),
     created_at: Type.Optional(Type.String()),
     source: Type.Optional(Type.String()),
   },

@@ -1,8 +1,9 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { calibrationFromSweep } from '../../../shared/analysis/calibration-from-sweep.js';
 import { parseCalibrationPoints, type CalibrationPoints } from '../../../shared/input/parse-calibration-points.js';
-import { fitCalibration, validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
+import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
 import { CalibrationModelSchema, CalibrationSchema, type Calibration } from '../../../shared/schemas/calibration.js';
 import type { CalibrationRecord } from '../../store/store-records.js';
 import type { TransientStore } from '../../store/transient-store.js';
@@ -20,11 +21,16 @@ const CalibrationRequestSchema = Type.Object(
     calibration: Type.Optional(CalibrationSchema),
     points: Type.Optional(
       Type.Object(
-        { temperature_C: Type.Array(Type.Number()), voltage_V: Type.Array(Type.Number()) },
-        { additionalProperties: false, description: 'The calibration sweep as two arrays of equal length.' },
+        {
+          temperature_C: Type.Array(Type.Number()),
+          voltage_V: Type.Array(Type.Number()),
+          sample: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: 'The device swept; an analysis of a transient of another sample warns.' })),
+          bench: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: 'Where it was swept.' })),
+        },
+        { additionalProperties: false, description: 'The calibration sweep as two arrays of equal length, and the device and bench swept.' },
       ),
     ),
-    points_csv: Type.Optional(Type.String({ minLength: 1, description: 'The calibration sweep as CSV with columns temperature_C and voltage_V.' })),
+    points_csv: Type.Optional(Type.String({ minLength: 1, description: 'The calibration sweep as CSV with columns temperature_C and voltage_V, after `# sample:` and `# bench:` lines if any.' })),
     model: Type.Optional(CalibrationModelSchema),
   },
   { additionalProperties: false, description: 'Exactly one of: calibration (store as is), points or points_csv with a model (fit, then store).' },
@@ -83,7 +89,12 @@ export const calibrationRoutes: FastifyPluginAsyncTypebox<{ store: TransientStor
   );
 };
 
-function calibrationFrom(body: { calibration?: Calibration; points?: { temperature_C: number[]; voltage_V: number[] }; points_csv?: string; model?: Calibration['model'] }): Calibration {
+function calibrationFrom(body: {
+  calibration?: Calibration;
+  points?: { temperature_C: number[]; voltage_V: number[]; sample?: string; bench?: string };
+  points_csv?: string;
+  model?: Calibration['model'];
+}): Calibration {
   const given = [body.calibration, body.points, body.points_csv].filter((part) => part !== undefined).length;
   if (given !== 1) throw new HeatpathError('REQUEST_INVALID', 'give exactly one of calibration, points or points_csv');
   if (body.calibration !== undefined) return validateCalibration(body.calibration, 'calibration');
@@ -91,9 +102,9 @@ function calibrationFrom(body: { calibration?: Calibration; points?: { temperatu
   const points: CalibrationPoints =
     body.points_csv !== undefined
       ? parseCalibrationPoints(body.points_csv, 'points_csv')
-      : { temperature_C: Float64Array.from(body.points!.temperature_C), voltage_V: Float64Array.from(body.points!.voltage_V) };
+      : { ...body.points!, temperature_C: Float64Array.from(body.points!.temperature_C), voltage_V: Float64Array.from(body.points!.voltage_V) };
   if (points.temperature_C.length !== points.voltage_V.length) {
     throw new HeatpathError('REQUEST_INVALID', `points has ${points.temperature_C.length} temperatures but ${points.voltage_V.length} voltages`);
   }
-  return fitCalibration(points.temperature_C, points.voltage_V, body.model);
+  return calibrationFromSweep(points, body.model);
 }

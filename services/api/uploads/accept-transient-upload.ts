@@ -7,6 +7,8 @@ import { decodeInputText } from '../../../shared/input/decode-input-text.js';
 import { parseTransient, transientFormatOf } from '../../../shared/input/parse-transient.js';
 import { validateCalibration } from '../../../shared/numerics/tsp-calibration.js';
 import type { Calibration } from '../../../shared/schemas/calibration.js';
+import { calibrationSampleWarning } from '../../../shared/analysis/calibration-sample-warning.js';
+import { headerLabel, headerSample } from '../../../shared/input/header-label.js';
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
 import { unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
 import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
@@ -68,6 +70,7 @@ export async function acceptTransientUpload(
   if (transient.quantity === 'voltage_V') {
     if (calibration === null) throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.sourceName });
     checkVoltagesCalibrated(transient, calibration.calibration, upload.sourceName);
+    warnings.push(...calibrationSampleWarning(calibration.calibration, metadata.sample_id));
   }
   warnings.push(...headerLabelWarnings(transient.meta, metadata));
   // Stored only once the upload is known good: a refused upload leaves nothing behind.
@@ -176,7 +179,7 @@ async function sameBytesWarnings(store: TransientStore, record: UploadRecord): P
  */
 function headerLabelWarnings(meta: Record<string, string>, metadata: UploadMetadata): string[] {
   const warnings: string[] = [];
-  const fileSample = headerLabel(meta, 'sample_id') ?? headerLabel(meta, 'sample');
+  const fileSample = headerSample(meta);
   if (fileSample !== null && fileSample !== metadata.sample_id) {
     warnings.push(`the file's "# sample:" line says ${fileSample}; the upload is recorded as sample ${metadata.sample_id}, as the request says: a file sent under the wrong sample id?`);
   }
@@ -185,12 +188,6 @@ function headerLabelWarnings(meta: Record<string, string>, metadata: UploadMetad
     warnings.push(`the file's "# bench:" line says ${fileBench}; the upload is recorded as bench ${metadata.bench}, as the request says`);
   }
   return warnings;
-}
-
-/** A label line of the file's header (`# Bench: FH-TT1` in any case), trimmed; null when absent or empty. */
-function headerLabel(meta: Record<string, string>, key: string): string | null {
-  const entry = Object.entries(meta).find(([name]) => name.toLowerCase() === key);
-  return entry?.[1].trim() || null;
 }
 
 export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
