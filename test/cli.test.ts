@@ -75,6 +75,34 @@ describe('heatpath analyze', () => {
     expect(result.provenance.calibration_sha256).toBe(calibrationIdOf(calibration));
   });
 
+  it("prints the calibration id the service gives, keeps the sweep's sample and bench, and analyze warns of a transient of another sample", () => {
+    const sweep = readFileSync(join(demo, 'fh-tt2_q12_calibration-points.csv'), 'utf8');
+    const points = file('q4-sweep.csv', `# sample: Q4\n# bench: OVEN-2\n${sweep}`);
+    const cal = join(work, 'q4.json');
+    const calibrate = heatpath('calibrate', points, '--model', 'linear', '--out', cal);
+    expect(calibrate.code).toBe(0);
+    const calibration = JSON.parse(readFileSync(cal, 'utf8'));
+    expect(calibration).toMatchObject({ sample: 'Q4', bench: 'OVEN-2' });
+    expect(calibrate.stdout).toContain('linear fit over 11 points of sample Q4 on bench OVEN-2');
+    // The id POST /v1/calibrations gives the same calibration: SHA-256 (FIPS 180-4, node:crypto) of its canonical JSON.
+    expect(calibrate.stdout).toMatch(new RegExp(`calibration id +${calibrationIdOf(calibration)} `));
+    // The demo transient's header says "# sample: Q12".
+    const run = heatpath('analyze', join(demo, 'fh-tt2_q12_cooling.csv'), '--calibration', cal, '--format', 'json');
+    expect(run.code).toBe(0);
+    expect(JSON.parse(run.stdout).quality.warnings).toContainEqual(expect.stringMatching(/^the calibration was swept on sample Q4, the transient is of sample Q12/));
+  });
+
+  it('fits the two-point K-factor of JESD51-1 and says its residual is not estimable', () => {
+    // K = (125 - 25) K / (0.400 - 0.600) V = -0.5 K/mV (JESD51-1's two-point definition).
+    const cal = join(work, 'two-point.json');
+    const calibrate = heatpath('calibrate', file('two-point.csv', 'temperature_C,voltage_V\n25,0.600\n125,0.400\n'), '--model', 'linear', '--out', cal);
+    expect(calibrate.code).toBe(0);
+    expect(calibrate.stdout).toMatch(/residual RMS +not estimable/);
+    expect(calibrate.stdout).toMatch(/K-factor -0\.5000 K\/mV/);
+    expect(calibrate.stdout).toMatch(/warning +a linear calibration through exactly 2 points/);
+    expect(JSON.parse(readFileSync(cal, 'utf8')).residual_rms_K).toBeNull();
+  });
+
   it('warns of a calibration sweep in millivolts in its output and in the calibration file, which analyze still reads', () => {
     const rows = readFileSync(join(demo, 'fh-tt2_q12_calibration-points.csv'), 'utf8')
       .split('\n')

@@ -5,6 +5,8 @@ import { join } from 'node:path';
 import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
 import { runReprocessCommand } from '../services/cli/reprocess-command.js';
 import { runSubmitCommand } from '../services/cli/submit-command.js';
+import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
+import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
 import { startApiTestApp, testTokens, type ApiTestContext } from './support/api-test-app.js';
 import { freePort } from './support/free-port.js';
 import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-upload.js';
@@ -106,6 +108,31 @@ describe('heatpath submit (real API, real Redis)', () => {
     expect(await runSubmitCommand([path, ...serverOptions(), '--sample', 'S-65'], print)).toBe(2);
     expect(errors).toHaveLength(1);
     expect(errors[0]).toMatch(new RegExp(`^heatpath submit: ${path.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}, line 3, column temperature_C: The server refused the transient: INPUT_NOT_NUMERIC: .*\\[SUBMIT_REJECTED\\]\n$`));
+  });
+
+  it('stores a calibration file on the server with --calibration and names it in the uploads by the id calibrate printed', async () => {
+    // The synthetic transient as the voltage of a -2 mV/K diode (common practice), and that diode's sweep, as `heatpath calibrate --out` writes it.
+    const voltageAt = (t: number) => 0.7 - 0.002 * (t - 25);
+    const rows = syntheticTransientCsv(67).toString('utf8').trim().split('\n').slice(1);
+    const volts = join(workDir, 'volts.csv');
+    await writeFile(volts, ['time_s,voltage_V', ...rows.map((row) => `${row.split(',')[0]},${voltageAt(Number(row.split(',')[1])).toFixed(7)}`)].join('\n') + '\n');
+    const sweep_C = [0, 50, 100, 150, 200];
+    const calibration = { ...fitCalibration(Float64Array.from(sweep_C), Float64Array.from(sweep_C.map(voltageAt)), 'linear'), created_at: '2026-12-03T08:00:00.000Z', source: 'sweep.csv' };
+    const calibrationFile = join(workDir, 'cal.json');
+    await writeFile(calibrationFile, JSON.stringify(calibration, null, 2));
+
+    expect(await runSubmitCommand([volts, ...serverOptions(), '--sample', 'S-67', '--calibration', calibrationFile], print)).toBe(0);
+    const [stored] = await api.store.listUploads({ sample_id: 'S-67' });
+    expect(stored.calibration_id).toBe(calibrationIdOf(calibration));
+    expect(await api.store.getCalibration(calibrationIdOf(calibration))).not.toBeNull();
+
+    await expect(runSubmitCommand([volts, ...serverOptions(), '--sample', 'S-67', '--calibration', calibrationFile, '--calibration-id', 'a'.repeat(64)], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
+    const nowhere = `http://127.0.0.1:${await freePort()}`;
+    expect(await runSubmitCommand([volts, '--server', nowhere, '--key', testTokens.bench, '--sample', 'S-68', '--retries', '1', '--calibration', calibrationFile], print)).toBe(1);
+    expect(errors.join('')).toMatch(/cal\.json.*SERVER_UNREACHABLE/);
+    await writeFile(calibrationFile, '{"model":"linear"}');
+    await expect(runSubmitCommand([volts, ...serverOptions(), '--sample', 'S-68', '--calibration', calibrationFile], print)).rejects.toMatchObject({ code: 'CALIBRATION_BAD_FILE' });
+    expect(await api.store.listUploads({ sample_id: 'S-68' })).toHaveLength(0);
   });
 
   it('exits 1 when the server cannot be reached, and 2 for a wrong key', async () => {

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCalibrationPoints } from '../../shared/input/parse-calibration-points.js';
 import { calibrationFromSweep } from '../../shared/analysis/calibration-from-sweep.js';
+import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
 import { CalibrationModelSchema, type CalibrationModel } from '../../shared/schemas/calibration.js';
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
@@ -11,10 +12,13 @@ export const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly
 
 Fit the temperature-sensitive parameter: temperature_C as a function of
 voltage_V from a calibration sweep (CSV with columns temperature_C and
-voltage_V). Prints the fit; --out writes the calibration file that
-\`heatpath analyze --calibration\` reads. A model that is not monotonic over
-the calibrated voltages is refused; a residual RMS above 0.5 K and volts
-that look like millivolts are warned of, in the output and in the file.`;
+voltage_V; \`# sample:\` and \`# bench:\` lines name the device and bench).
+Prints the fit and its calibration id (the id the service gives it); --out
+writes the calibration file that \`heatpath analyze --calibration\` and
+\`heatpath submit --calibration\` read. A model that is not monotonic over
+the calibrated voltages is refused; a residual RMS above 0.5 K, volts
+that look like millivolts, a sweep that looks like kelvin and a line through
+two points only are warned of, in the output and in the file.`;
 
 const models = CalibrationModelSchema.anyOf.map((literal) => literal.const) as CalibrationModel[];
 
@@ -46,6 +50,7 @@ export async function runCalibrateCommand(argv: string[], print: (text: string) 
       `  coefficients        ${calibration.coefficients.map((c) => c.toPrecision(8)).join(', ')}`,
       `  residual RMS        ${calibration.residual_rms_K === null ? 'not estimable' : `${calibration.residual_rms_K.toPrecision(3)} K`}`,
       `  sensitivity         ${calibration.sensitivity_mV_per_K.toPrecision(4)} mV/K (K-factor ${calibration.k_factor_K_per_mV.toPrecision(4)} K/mV)`,
+      `  calibration id      ${calibrationIdOf(calibration)} (the service's id of it; heatpath submit --calibration stores it there)`,
       ...(calibration.warnings ?? []).map((warning) => `  warning             ${warning}`),
     ].join('\n') + '\n',
   );

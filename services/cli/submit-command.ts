@@ -1,7 +1,9 @@
 import { basename } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCommandLine } from './cli-arguments.js';
+import { readCalibrationFile } from './read-calibration-file.js';
 import { readInputFile } from './read-input-file.js';
+import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { uploadTransient } from './transient-upload-client.js';
 import { userErrorLine } from './user-error-line.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
@@ -13,13 +15,16 @@ retrying while the server is busy or away. Prints one line per file:
 FILE<TAB>JOB_ID<TAB>STATE. Submitting a file twice is safe (same job).
 
 ${uploadOptionsUsage()}
+  --calibration CAL.json  a calibration file of heatpath calibrate: stored on
+                          the server first (once; its calibration_id is the
+                          one calibrate printed), then named by the uploads
 
 Exit codes: 0 all accepted, 2 a file or option must be fixed (takes
 precedence), 1 the server could not be reached.`;
 
 /** `heatpath submit`: for bench scripts. Errors are one line per file on stderr. */
 export async function runSubmitCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
-  const { values, positionals } = parseCommandLine('submit', argv, { ...uploadOptionSpecs, help: { type: 'boolean', short: 'h' } });
+  const { values, positionals } = parseCommandLine('submit', argv, { ...uploadOptionSpecs, calibration: { type: 'string' }, help: { type: 'boolean', short: 'h' } });
   if (values.help) {
     print(submitUsage);
     return 0;
@@ -28,6 +33,20 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
   const target = uploadTargetFrom(values, 'submit');
   const metadata = uploadMetadataFrom(values);
   if (!metadata.has('sample_id')) throw new HeatpathError('CLI_USAGE', 'heatpath submit needs --sample ID');
+  const calibrationFile = values.calibration as string | undefined;
+  if (calibrationFile !== undefined) {
+    if (metadata.has('calibration_id')) throw new HeatpathError('CLI_USAGE', 'give either --calibration CAL.json or --calibration-id ID, not both');
+    // Checked here first, so that a broken file is named as the user wrote it before anything is sent.
+    const calibration = await readCalibrationFile(calibrationFile);
+    try {
+      metadata.set('calibration_id', await storeCalibrationOnServer(target, calibration, calibrationFile));
+    } catch (error) {
+      if (!isHeatpathError(error)) throw error;
+      // No file can be analysed without it: the exit codes of a file's failure, for all of them.
+      process.stderr.write(userErrorLine('submit', error) + '\n');
+      return error.status < 500 ? 2 : 1;
+    }
+  }
 
   let mustFix = false;
   let unreachable = false;

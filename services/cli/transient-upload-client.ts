@@ -1,15 +1,7 @@
 import { createHash } from 'node:crypto';
-import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+import { postToServer, type UploadTarget } from './post-to-server.js';
 
-/** Where and as whom to upload. */
-export interface UploadTarget {
-  /** Base URL of the service, e.g. http://heatpath.lab:8080 */
-  server: string;
-  /** API key token (role bench or admin). */
-  key: string;
-  /** Attempts for answers worth retrying (network errors, 429, 5xx). */
-  attempts: number;
-}
+export type { UploadTarget } from './post-to-server.js';
 
 export interface UploadedTransient {
   upload_id: string;
@@ -19,52 +11,20 @@ export interface UploadedTransient {
   warnings: string[];
 }
 
-const RETRYABLE_STATUS = new Set([408, 429, 500, 502, 503, 504]);
-const MAX_BACKOFF_MS = 10_000;
-
 /**
  * POSTs one transient to /v1/transients with its metadata as query
  * parameters. The Idempotency-Key is a hash of bytes and metadata, so a retry
  * (or a second run of a bench script) is answered with the first upload.
- * Throws SUBMIT_REJECTED when the server refuses the file (the user must fix
- * it; at the line and column the server names) and SERVER_UNREACHABLE when
- * every attempt failed. Errors name the file `fileName`.
+ * Throws as postToServer does; errors name the file `fileName`.
  */
 export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, fileName: string, metadata: URLSearchParams): Promise<UploadedTransient> {
   const query = new URLSearchParams(metadata);
   query.set('file_name', fileName);
-  const url = new URL(`/v1/transients?${query}`, target.server);
   const idempotencyKey = createHash('sha256').update(bytes).update('\n').update(query.toString()).digest('hex');
   const contentType = looksLikeJson(bytes) ? 'application/json' : 'text/csv';
-  let lastProblem = '';
-  for (let attempt = 1; attempt <= target.attempts; attempt++) {
-    let retryAfterMs = backoffMs(attempt);
-    try {
-      const response = await fetch(url, {
-        method: 'POST',
-        headers: { authorization: `Bearer ${target.key}`, 'content-type': contentType, 'idempotency-key': idempotencyKey },
-        body: bytes,
-        signal: AbortSignal.timeout(60_000),
-      });
-      const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
-      if (response.ok) {
-        const warnings = Array.isArray(answer.warnings) ? answer.warnings.map(String) : [];
-        return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state), warnings };
-      }
-      lastProblem = describeProblem(response.status, answer);
-      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName, ...problemPlace(answer) });
-      retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
-    } catch (error) {
-      if (error instanceof HeatpathError) throw error;
-      lastProblem = (error as Error).cause ? String(((error as Error).cause as Error).message ?? (error as Error).cause) : (error as Error).message;
-    }
-    if (attempt < target.attempts) await new Promise((resolve) => setTimeout(resolve, Math.min(retryAfterMs, MAX_BACKOFF_MS)));
-  }
-  throw new HeatpathError('SERVER_UNREACHABLE', `${target.attempts} attempts, last: ${lastProblem}`, { file: fileName });
-}
-
-function backoffMs(attempt: number): number {
-  return Math.min(500 * 2 ** (attempt - 1), MAX_BACKOFF_MS);
+  const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, fileName);
+  const warnings = Array.isArray(answer.warnings) ? answer.warnings.map(String) : [];
+  return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state), warnings };
 }
 
 function looksLikeJson(bytes: Uint8Array): boolean {
@@ -73,18 +33,4 @@ function looksLikeJson(bytes: Uint8Array): boolean {
     return byte === 0x7b; // '{'
   }
   return false;
-}
-
-/** The line and column in the file that a problem+json answer names (services/api/schemas/problem-schema.ts), if any. */
-function problemPlace(answer: Record<string, unknown>): { line?: number; column?: number | string } {
-  return {
-    ...(Number.isInteger(answer.line) && { line: answer.line as number }),
-    ...((typeof answer.column === 'string' || Number.isInteger(answer.column)) && { column: answer.column as number | string }),
-  };
-}
-
-function describeProblem(status: number, answer: Record<string, unknown>): string {
-  const code = typeof answer.code === 'string' ? answer.code : `HTTP ${status}`;
-  const detail = typeof answer.detail === 'string' ? answer.detail : typeof answer.title === 'string' ? answer.title : '';
-  return detail ? `${code}: ${detail}` : code;
 }

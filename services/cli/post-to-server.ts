@@ -1,0 +1,70 @@
+import { HeatpathError } from '../../shared/errors/heatpath-error.js';
+
+/** Where and as whom to upload. */
+export interface UploadTarget {
+  /** Base URL of the service, e.g. http://heatpath.lab:8080 */
+  server: string;
+  /** API key token (role bench or admin). */
+  key: string;
+  /** Attempts for answers worth retrying (network errors, 429, 5xx). */
+  attempts: number;
+}
+
+const RETRYABLE_STATUS = new Set([408, 429, 500, 502, 503, 504]);
+const MAX_BACKOFF_MS = 10_000;
+
+/**
+ * POSTs `body` to `path` on the service, retrying while it is busy or away,
+ * and returns the JSON of its successful answer. Throws SUBMIT_REJECTED when
+ * the server refuses the request (the user must fix it; at the line and
+ * column the server names) and SERVER_UNREACHABLE when every attempt failed.
+ * Errors name the file `fileName`.
+ */
+export async function postToServer(
+  target: UploadTarget,
+  path: string,
+  request: { body: Uint8Array | string; headers: Record<string, string> },
+  fileName: string,
+): Promise<Record<string, unknown>> {
+  const url = new URL(path, target.server);
+  let lastProblem = '';
+  for (let attempt = 1; attempt <= target.attempts; attempt++) {
+    let retryAfterMs = backoffMs(attempt);
+    try {
+      const response = await fetch(url, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${target.key}`, ...request.headers },
+        body: request.body,
+        signal: AbortSignal.timeout(60_000),
+      });
+      const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
+      if (response.ok) return answer;
+      lastProblem = describeProblem(response.status, answer);
+      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName, ...problemPlace(answer) });
+      retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
+    } catch (error) {
+      if (error instanceof HeatpathError) throw error;
+      lastProblem = (error as Error).cause ? String(((error as Error).cause as Error).message ?? (error as Error).cause) : (error as Error).message;
+    }
+    if (attempt < target.attempts) await new Promise((resolve) => setTimeout(resolve, Math.min(retryAfterMs, MAX_BACKOFF_MS)));
+  }
+  throw new HeatpathError('SERVER_UNREACHABLE', `${target.attempts} attempts, last: ${lastProblem}`, { file: fileName });
+}
+
+function backoffMs(attempt: number): number {
+  return Math.min(500 * 2 ** (attempt - 1), MAX_BACKOFF_MS);
+}
+
+/** The line and column in the file that a problem+json answer names (services/api/schemas/problem-schema.ts), if any. */
+function problemPlace(answer: Record<string, unknown>): { line?: number; column?: number | string } {
+  return {
+    ...(Number.isInteger(answer.line) && { line: answer.line as number }),
+    ...((typeof answer.column === 'string' || Number.isInteger(answer.column)) && { column: answer.column as number | string }),
+  };
+}
+
+function describeProblem(status: number, answer: Record<string, unknown>): string {
+  const code = typeof answer.code === 'string' ? answer.code : `HTTP ${status}`;
+  const detail = typeof answer.detail === 'string' ? answer.detail : typeof answer.title === 'string' ? answer.title : '';
+  return detail ? `${code}: ${detail}` : code;
+}
