@@ -25,8 +25,17 @@ describe('a record too long to be in seconds', () => {
     const [asMilliseconds] = analyzeTransientFile({ bytes: scaledTimes(1000), fileName: 'ms.csv' }, CREATED_AT);
     const warning = asMilliseconds.quality.warnings.find((w) => inMilliseconds.test(w));
     expect(warning).toMatch(/^the record ends at time_s = 100000 s, 27\.8 hours after the power step/);
+    // Not only the times: the automatic sqrt(t) window ends by 2 ms of time_s (sqrt-time-extrapolation.ts), 2 us of the real
+    // record, inside the electrical artefact (some microseconds to tens of them: common practice), so Tj(0) and Rth are off too.
+    expect(warning).toMatch(/Rth total and Tj\(0\) are unreliable too: the sqrt\(t\) window, which ends by time_s = 0\.002 s, then lies within the first 2 us of the real record, inside the electrical artefact/);
     const [asSeconds] = analyzeTransientFile({ bytes: Buffer.from(demo), fileName: 's.csv' }, CREATED_AT);
     expect(asSeconds.quality.warnings.some((w) => inMilliseconds.test(w))).toBe(false);
+  });
+
+  it('names the window end given, and says it once per result', () => {
+    const [result] = analyzeTransientFile({ bytes: scaledTimes(1000), fileName: 'ms.csv', parameters: { early_time_end_s: 0.005 } }, CREATED_AT);
+    const warnings = result.quality.warnings.filter((w) => inMilliseconds.test(w));
+    expect(warnings).toEqual([expect.stringMatching(/which ends by time_s = 0\.005 s, then lies within the first 5 us of the real record/)]);
   });
 });
 

@@ -212,6 +212,15 @@ describe('with a real Redis', () => {
     expect(agrees.json().warnings.filter((warning: string) => warning.includes('heating power'))).toEqual([]);
   });
 
+  it('warns in the 202 of times that look like milliseconds under time_s, in the words the result uses (resolveAnalysisInputs)', async () => {
+    // The synthetic record runs from 1 us to 10 s; its times times 1e4 end at 1e5 s, past the 1e4 s the analysis takes as seconds.
+    const inMilliseconds = Buffer.from(small.toString('utf8').replace(/^(\d[^,\n]*),/gm, (_, time: string) => `${Number(time) * 1000 * 10},`));
+    const accepted = await upload(context, 'sample_id=S-ms&power_W=50', inMilliseconds);
+    expect(accepted.statusCode, accepted.body).toBe(202);
+    expect(accepted.json().warnings).toEqual([expect.stringMatching(/^the record ends at time_s = 100000 s, .*if the times are in milliseconds, divide them by 1000.*Rth total and Tj\(0\) are unreliable too/)]);
+    expect((await upload(context, 'sample_id=S-s&power_W=50', small)).json().warnings).toEqual([]);
+  });
+
   it('400 for the file mistakes the CLI reports too: an ambiguous header power, a header key given twice, a JSON array', async () => {
     // 1,250 is 1250 or 1.25 (SI Brochure 9th ed., 5.4.4, memory: digits are grouped by spaces, as the comma may be the decimal sign).
     const ambiguous = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');

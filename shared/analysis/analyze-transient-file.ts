@@ -63,7 +63,6 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
     ...headerWarnings,
-    ...timeUnitWarning(file),
     ...sharedCalibrationWarning(file),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
@@ -117,24 +116,6 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
 /** A calibration given with input that is not voltage_V converts nothing: said, not silently dropped. */
 export function unusedCalibrationWarning(quantity: TransientFile['quantity']): string {
   return `calibration not used: the input is ${quantity}, which needs none`;
-}
-
-/** Longest record taken as seconds without a word: about 2.8 hours. */
-const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
-
-/**
- * A record longer than a cooling or heating curve of a power device and its
- * cooling plausibly runs (minutes, an hour for a large heatsink) is more
- * likely written in milliseconds under a time_s header; the analysis goes on
- * in seconds, and the result says so.
- */
-function timeUnitWarning(file: TransientFile): string[] {
-  const end_s = file.time_s[file.time_s.length - 1];
-  if (!(end_s > LONGEST_PLAUSIBLE_RECORD_S)) return [];
-  return [
-    `the record ends at time_s = ${end_s} s, ${(end_s / 3600).toFixed(1)} hours after the power step, longer than a single transient plausibly runs: ` +
-      'if the times are in milliseconds, divide them by 1000 (time_s is in seconds), or the time constants and the structure function are 1000 times too slow.',
-  ];
 }
 
 /** Zth and Rth stay right when temperatures are in kelvin; what does not, the kelvin warnings say. */

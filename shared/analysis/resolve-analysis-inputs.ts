@@ -6,6 +6,7 @@ import { AnalysisParametersSchema, PowerSchema, defaultAnalysisParameters, type 
 import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
 import { heatingPower_W } from '../numerics/zth-from-temperature.js';
 import { givenEarlyTimeWindow } from '../numerics/early-time-window.js';
+import { timeUnitWarning } from './time-unit-warning.js';
 
 /**
  * The parameters and power an analysis of `file` really uses: what the caller
@@ -20,6 +21,10 @@ import { givenEarlyTimeWindow } from '../numerics/early-time-window.js';
  * channel (a channel without a line of its own takes the file's `# power_W:`)
  * and `power` is undefined, unless the caller gave one, which is used for
  * every channel.
+ *
+ * `warnings` are what the file and request alone show to be doubtful (a power
+ * or kind given against the file's header, times that look like milliseconds):
+ * the service's upload answer carries them, as the result does.
  */
 export function resolveAnalysisInputs(
   file: TransientFile,
@@ -31,7 +36,7 @@ export function resolveAnalysisInputs(
   const usesPower = file.quantity !== 'zth_K_per_W';
   const channelPowers = given.power === undefined && usesPower ? channelPowersFromMeta(file, fileName) : undefined;
   const power = given.power ?? (channelPowers ? undefined : powerFromMeta(file, fileName, usesPower));
-  return { parameters, power, channelPowers, warnings: overriddenHeaderLines(file, given, fileName) };
+  return { parameters, power, channelPowers, warnings: [...overriddenHeaderLines(file, given, fileName), ...timeUnitWarning(file, parameters)] };
 }
 
 /** The `# power_W@CHANNEL:` (or current_A@, voltage_V@) lines of a file. */

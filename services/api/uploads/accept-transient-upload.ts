@@ -60,7 +60,7 @@ export async function acceptTransientUpload(
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
     upload.sourceName,
   );
-  // A power or kind that contradicts the file's header is used, and said so here as in the result: the bench hears of it now.
+  // A power or kind that contradicts the file's header is used, and times that look like milliseconds are read as seconds: said here as in the result, so the bench hears of it now.
   warnings.push(...headerWarnings);
   const power = resolvedPower ?? null;
   const given = await calibrationOf(store, metadata);
