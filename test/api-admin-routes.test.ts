@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
-import { syntheticTransientCsv } from './support/synthetic-upload.js';
+import { heatingCurveCsv, syntheticTransientCsv } from './support/synthetic-upload.js';
 
 let context: ApiTestContext;
 beforeAll(async () => {
@@ -12,8 +12,8 @@ afterAll(async () => context.close());
 
 const post = (url: string, payload: object, role: 'admin' | 'bench' = 'admin') => context.app.inject({ method: 'POST', url, headers: bearer(role), payload });
 /** A bench upload of a small synthetic CSV transient (test/support/synthetic-upload.ts) with the given query. */
-const uploadCsv = (query: string, seed: number) =>
-  context.app.inject({ method: 'POST', url: `/v1/transients?${query}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: syntheticTransientCsv(seed, 10) });
+const uploadCsv = (query: string, seed: number, shape: (csv: Buffer) => Buffer = (csv) => csv) =>
+  context.app.inject({ method: 'POST', url: `/v1/transients?${query}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: shape(syntheticTransientCsv(seed, 10)) });
 
 describe('webhooks', () => {
   it('registers an allowed URL once with its secret, lists it without, removes it', async () => {
@@ -123,7 +123,7 @@ describe('batches', () => {
   });
 
   it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {
-    const uploaded = await uploadCsv('sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8', 42);
+    const uploaded = await uploadCsv('sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8', 42, heatingCurveCsv);
     expect(uploaded.statusCode, uploaded.body).toBe(202);
     const upload = (await context.store.getUpload(uploaded.json().upload_id))!;
     expect(upload.parameters).toMatchObject({ kind: 'heating', method: 'bayes', compact_stages: 8, points_per_decade: 40 });

@@ -4,10 +4,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { LightMyRequestResponse } from 'fastify';
+import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
 import { errorCatalogue } from '../shared/errors/error-catalogue.js';
+import type { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
 import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
-import { syntheticTransientCsv } from './support/synthetic-upload.js';
+import { heatingCurveCsv, syntheticTransientCsv } from './support/synthetic-upload.js';
 
 const csv = syntheticTransientCsv(11, 40);
 
@@ -194,12 +196,12 @@ describe('with a real Redis', () => {
   });
 
   it('reads power and kind from the file\'s "# key: value" lines, as the CLI does, and records them', async () => {
-    const withHeader = Buffer.concat([Buffer.from('# kind: heating\n# power_W: 42.5\n'), small]);
+    const withHeader = Buffer.concat([Buffer.from('# kind: heating\n# power_W: 42.5\n'), heatingCurveCsv(small)]);
     const accepted = await upload(context, 'sample_id=S-meta', withHeader);
     expect(accepted.statusCode, accepted.body).toBe(202);
     const record = await context.app.inject({ url: accepted.json().links.self, headers: bearer('reader') });
     expect(record.json().upload).toMatchObject({ power: { power_W: 42.5 }, parameters: { kind: 'heating' } });
-    expectProblem(await upload(context, 'sample_id=S-meta', small), 422, 'POWER_REQUIRED');
+    expectProblem(await upload(context, 'sample_id=S-meta', heatingCurveCsv(small)), 422, 'POWER_REQUIRED');
   });
 
   it("warns in the 202 of a power that contradicts the file's header line, in the words the result uses (resolveAnalysisInputs)", async () => {
@@ -218,7 +220,7 @@ describe('with a real Redis', () => {
     const accepted = await upload(context, 'sample_id=S-ms&power_W=50', inMilliseconds);
     expect(accepted.statusCode, accepted.body).toBe(202);
     expect(accepted.json().warnings).toEqual([expect.stringMatching(/^the record ends at time_s = 100000 s, .*if the times are in milliseconds, divide them by 1000.*Rth total and Tj\(0\) are unreliable too/)]);
-    expect((await upload(context, 'sample_id=S-s&power_W=50', small)).json().warnings).toEqual([]);
+    expect((await upload(context, 'sample_id=S-s&power_W=50', syntheticTransientCsv(15, 10))).json().warnings).toEqual([]);
   });
 
   it('400 for the file mistakes the CLI reports too: an ambiguous header power, a header key given twice, a JSON array', async () => {
@@ -422,6 +424,25 @@ describe('with a real Redis', () => {
     expect(expectProblem(response, 422, 'CALIBRATION_OUT_OF_RANGE').file).toBe('vr.csv');
     expect((await context.store.listCalibrations()).length).toBe(calibrationsBefore);
     expect((await context.store.listUploads()).length).toBe(uploadsBefore);
+  });
+
+  it('422 ANALYSIS_NOT_ANALYSABLE at upload, storing nothing, for a heating curve sent without kind, in the words of the job failure', async () => {
+    const heating = heatingCurveCsv(small).toString('utf8');
+    const uploadsBefore = (await context.store.listUploads()).length;
+    const refused = expectProblem(await upload(context, 'sample_id=S-kind&power_W=50', heating), 422, 'ANALYSIS_NOT_ANALYSABLE');
+    // What the job would have failed with: the analysis itself on the same bytes and inputs.
+    let jobError: HeatpathError | undefined;
+    try {
+      analyzeTransientFile({ bytes: Buffer.from(heating), fileName: 'upload body (named S-kind.csv)', power: { power_W: 50 } }, '2026-01-01T00:00:00.000Z');
+    } catch (error) {
+      jobError = error as HeatpathError;
+    }
+    expect(jobError?.code).toBe('ANALYSIS_NOT_ANALYSABLE');
+    expect(refused.detail).toBe(jobError!.detail);
+    expect(refused.detail).toMatch(/is the transient really cooling\? If it is a heating transient, say so: .*kind=heating for an upload/);
+    expect(refused).toMatchObject({ file: 'upload body (named S-kind.csv)', column: 'temperature_C' });
+    expect((await context.store.listUploads()).length).toBe(uploadsBefore);
+    expect((await upload(context, 'sample_id=S-kind&power_W=50&kind=heating', heating)).statusCode).toBe(202);
   });
 
   it('400 PARAM_INVALID at upload, storing nothing, for an early-time window outside the record, as the analysis would fail later', async () => {

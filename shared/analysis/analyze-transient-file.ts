@@ -79,19 +79,57 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     calibration_sha256: calibration ? calibrationIdOf(calibration) : null,
     created_at: createdAt,
   };
+  return eachChannel(file, { power_W, channelPowers }, input.fileName, (channel, channelPower_W) =>
+    analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, provenance, input.fileName, inputWarnings),
+  );
+}
+
+/**
+ * `work` on each channel with its heating power (its own `# power_W@CHANNEL:` line's, else the file's; null for
+ * Zth input), an error it throws located at the channel's column. The analysis and the upload's check
+ * (check-zth-rises.ts) go through it alike, so that both use one power and name one place.
+ */
+export function eachChannel<T>(
+  file: TransientFile,
+  powers: { power_W: number | null; channelPowers: Map<string, Power> | undefined },
+  fileName: string,
+  work: (channel: TransientFile['channels'][number], power_W: number | null) => T,
+): T[] {
   return file.channels.map((channel) => {
-    const context = channelLocation(file, channel.name, input.fileName);
     try {
-      const channelPower = channelPowers?.get(channel.name);
-      const channelPower_W = channelPower ? heatingPower_W(channelPower) : power_W;
-      return analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, provenance, input.fileName, inputWarnings);
+      const channelPower = powers.channelPowers?.get(channel.name);
+      return work(channel, channelPower ? heatingPower_W(channelPower) : powers.power_W);
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) {
-        throw new HeatpathError(error.code, error.detail, { ...context, ...error.location });
+        throw new HeatpathError(error.code, error.detail, { ...channelLocation(file, channel.name, fileName), ...error.location });
       }
       throw error;
     }
   });
+}
+
+/**
+ * A channel's Zth as the analysis constructs it: its values converted to temperature (voltage input, by the
+ * calibration), their noise, and the sqrt(t)-corrected Zth, which throws ANALYSIS_NOT_ANALYSABLE for a curve of
+ * the other kind than stated. The upload checks a curve with it before accepting it (check-zth-rises.ts).
+ */
+export function channelZth(
+  file: TransientFile,
+  values: Float64Array,
+  parameters: AnalysisParameters,
+  power_W: number | null,
+  calibration: Calibration | undefined,
+): { zth: ZthCurve; temperature_C: Float64Array | null; noise_K: number | null; noise_K_per_W: number } {
+  const time_s = file.time_s;
+  const window = { early_time_start_s: parameters.early_time_start_s, early_time_end_s: parameters.early_time_end_s };
+  if (file.quantity === 'zth_K_per_W') {
+    const noise_K_per_W = estimateNoiseRms(values);
+    return { zth: zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window }), temperature_C: null, noise_K: null, noise_K_per_W };
+  }
+  const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, time_s, values) : values;
+  const noise_K = estimateNoiseRms(temperature_C);
+  const zth = zthFromTemperature(time_s, temperature_C, { power_W: power_W! }, { kind: parameters.kind, noise_rms: noise_K, ...window });
+  return { zth, temperature_C, noise_K, noise_K_per_W: noise_K / power_W! };
 }
 
 /** Where a channel's own error lies: its column (`voltage_V@M21`, or the quantity for a file of one channel). */
@@ -162,23 +200,9 @@ function analyzeChannel(
 ): AnalysisResult {
   const time_s = file.time_s;
   const warnings: string[] = [...inputWarnings];
-  const window = { early_time_start_s: parameters.early_time_start_s, early_time_end_s: parameters.early_time_end_s };
-
-  let zth: ZthCurve;
-  let noise_K: number | null;
-  let noise_K_per_W: number;
-  if (file.quantity === 'zth_K_per_W') {
-    noise_K_per_W = estimateNoiseRms(values);
-    noise_K = null;
-    zth = zthFromZthInput(time_s, values, { noise_rms: noise_K_per_W, ...window });
-  } else {
-    const temperature_C = file.quantity === 'voltage_V' ? voltageToTemperature(calibration!, time_s, values) : values;
-    if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)), ...calibratedTemperatureUnitWarning(temperature_C));
-    if (file.quantity === 'temperature_C') warnings.push(...temperatureUnitWarning(temperature_C));
-    noise_K = estimateNoiseRms(temperature_C);
-    noise_K_per_W = noise_K / power_W!;
-    zth = zthFromTemperature(time_s, temperature_C, { power_W: power_W! }, { kind: parameters.kind, noise_rms: noise_K, ...window });
-  }
+  const { zth, temperature_C, noise_K, noise_K_per_W } = channelZth(file, values, parameters, power_W, calibration);
+  if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)), ...calibratedTemperatureUnitWarning(temperature_C!));
+  if (file.quantity === 'temperature_C') warnings.push(...temperatureUnitWarning(temperature_C!));
   warnings.push(...zth.early_time.warnings);
 
   const steady = steadyStateRth(time_s, zth.zth_K_per_W, noise_K_per_W);

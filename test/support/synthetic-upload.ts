@@ -22,6 +22,11 @@ export function syntheticTransientCsv(seed: number, samplesPerDecade = 100): Buf
   return Buffer.from(lines.join('\n') + '\n');
 }
 
+/** A heating curve: a synthetic cooling CSV mirrored (150 - T), which rises from about 75 to 125 degC. */
+export function heatingCurveCsv(cooling: Buffer): Buffer {
+  return Buffer.from(cooling.toString('utf8').replace(/^([^,\n]+),([^,\n]+)$/gm, (line, time: string, value: string) => (Number.isNaN(Number(value)) ? line : `${time},${(150 - Number(value)).toFixed(6)}`)));
+}
+
 const NOISE_K = 0.02;
 /** The noiseless curve per sampling density: evaluating the fine ladder's Foster form is most of a file's cost (archive benchmarks make thousands). */
 const cleanCurves = new Map<number, ReturnType<typeof syntheticTransient>>();

@@ -12,6 +12,7 @@ import { headerLabel, headerSample } from '../../../shared/input/header-label.js
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
 import { unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
 import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
+import { checkZthRises } from '../../../shared/analysis/check-zth-rises.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
 import type { ApiKey } from '../../config/api-key-list.js';
@@ -55,7 +56,7 @@ export async function acceptTransientUpload(
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.sourceName, upload.format);
   const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient, upload.sourceName));
-  const { parameters, power: resolvedPower, warnings: headerWarnings } = resolveAnalysisInputs(
+  const { parameters, power: resolvedPower, channelPowers, warnings: headerWarnings } = resolveAnalysisInputs(
     transient,
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
     upload.sourceName,
@@ -72,6 +73,8 @@ export async function acceptTransientUpload(
     checkVoltagesCalibrated(transient, calibration.calibration, upload.sourceName);
     warnings.push(...calibrationSampleWarning(calibration.calibration, metadata.sample_id));
   }
+  // A curve of the other kind than stated (a heating curve sent without kind) would fail its job: refused now, in the job's words.
+  checkZthRises(transient, { parameters, power: resolvedPower, channelPowers }, calibration?.calibration, upload.sourceName);
   warnings.push(...headerLabelWarnings(transient.meta, metadata));
   // Stored only once the upload is known good: a refused upload leaves nothing behind.
   const calibrationId = calibration === null ? null : calibration.stored ? calibration.id : (await store.putCalibration(calibration.calibration, apiKey.name)).calibration_id;
