@@ -14,6 +14,14 @@ describe('HeatpathError message', () => {
     expect(error).toMatchObject({ code: 'INPUT_NOT_NUMERIC', status: 400 });
   });
 
+  it('takes a hint of its own where the catalogue\'s fix is the wrong one, and keeps it when located elsewhere', () => {
+    const error = new HeatpathError('CALIBRATION_OUT_OF_RANGE', '513 V lies outside 0.3..0.6 V', {}, 'Convert the transient to volts.');
+    expect(error.message).toBe(`${errorCatalogue.CALIBRATION_OUT_OF_RANGE.title}: 513 V lies outside 0.3..0.6 V. Convert the transient to volts.`);
+    const located = error.at({ file: 'q3.csv', column: 'voltage_V' });
+    expect(located).toMatchObject({ code: 'CALIBRATION_OUT_OF_RANGE', status: 422, hint: 'Convert the transient to volts.', detail: error.detail });
+    expect(located.message).toMatch(/^q3\.csv, column voltage_V: .*Convert the transient to volts\.$/);
+  });
+
   it('names an analysis parameter as a parameter, not as a column of the file', () => {
     const error = new HeatpathError('PARAM_INVALID', 'early_time_start_s = 500 s is after the last sample', { file: 'm07.csv', parameter: 'early_time_start_s' });
     expect(error.message).toMatch(/^m07\.csv, parameter early_time_start_s: An analysis parameter is invalid: /);

@@ -3,6 +3,8 @@ import { lusolve, multiply, transpose } from 'mathjs';
 import { CALIBRATION_RANGE_MARGIN, calibrationExtrapolationWarnings, fitCalibration, validateCalibration, voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
 import { fitPolynomial, solveLeastSquares } from '../shared/numerics/least-squares.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
+import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
+import { errorCatalogue } from '../shared/errors/error-catalogue.js';
 import { CalibrationSchema, type Calibration } from '../shared/schemas/calibration.js';
 import { Value } from 'typebox/value';
 import { createRandom, gaussian } from './support/seeded-random.js';
@@ -248,6 +250,22 @@ describe('voltageToTemperature', () => {
     const calibrationInMillivolts = { ...cal, voltage_range_V: [low * 1000, high * 1000] as [number, number] };
     expect(catchHeatpathError(() => voltageToTemperature(calibrationInMillivolts, at(1), Float64Array.from([0.6]))).message).toContain('is the calibration in millivolts?');
     expect(catchHeatpathError(() => voltageToTemperature(cal, at(1), Float64Array.from([12]))).message).not.toContain('millivolts');
+  });
+
+  it('advises converting units, not a wider sweep, when a factor 1000 would bring the voltages inside', () => {
+    const sweepHint = errorCatalogue.CALIBRATION_OUT_OF_RANGE.hint;
+    const inMillivolts = catchHeatpathError(() => voltageToTemperature(cal, at(1e-3, 2e-3), Float64Array.from([600, 590])));
+    expect(inMillivolts.hint).toMatch(/^Convert the transient to volts \(divide the voltage_V column by 1000\)/);
+    expect(inMillivolts.message).toMatch(/voltage_V is in volts\. Convert the transient to volts/);
+    expect(inMillivolts.message).not.toContain(sweepHint);
+    const calibrationInMillivolts = { ...cal, voltage_range_V: [low * 1000, high * 1000] as [number, number] };
+    expect(catchHeatpathError(() => voltageToTemperature(calibrationInMillivolts, at(1), Float64Array.from([0.6]))).hint).toMatch(/^Fit the calibration again from points in volts/);
+    // Beyond the sweep by no factor of 1000: the catalogue's advice stands.
+    expect(catchHeatpathError(() => voltageToTemperature(cal, at(1), Float64Array.from([12]))).hint).toBe(sweepHint);
+    // The analysis locates the error at the file's column and keeps the advice (HeatpathError.at).
+    const file = Buffer.from('time_s,voltage_V\n' + Array.from({ length: 30 }, (_, i) => `${1e-6 * 10 ** (i / 5)},${600 - i}`).join('\n'));
+    const located = catchHeatpathError(() => analyzeTransientFile({ bytes: file, fileName: 'mv.csv', calibration: cal, power: { power_W: 10 } }, '2026-01-01T00:00:00.000Z'));
+    expect(located).toMatchObject({ code: 'CALIBRATION_OUT_OF_RANGE', location: { file: 'mv.csv', column: 'voltage_V' }, hint: inMillivolts.hint });
   });
 
   it('warns of samples converted beyond the sweep, with their count and the farthest distance', () => {

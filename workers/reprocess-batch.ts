@@ -114,7 +114,7 @@ export class BatchReprocessor {
       if (calibration !== null) checkVoltagesCalibrated(file, calibration.calibration, job.file_name);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
-      throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`);
+      throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`, {}, error.hint);
     }
   }
 

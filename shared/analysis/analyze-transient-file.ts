@@ -101,7 +101,7 @@ export function eachChannel<T>(
       return work(channel, channelPower ? heatingPower_W(channelPower) : powers.power_W);
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) {
-        throw new HeatpathError(error.code, error.detail, { ...channelLocation(file, channel.name, fileName), ...error.location });
+        throw error.at({ ...channelLocation(file, channel.name, fileName), ...error.location });
       }
       throw error;
     }

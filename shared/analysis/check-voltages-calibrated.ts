@@ -14,7 +14,7 @@ export function checkVoltagesCalibrated(file: TransientFile, calibration: Calibr
     try {
       voltageToTemperature(calibration, file.time_s, channel.values);
     } catch (error) {
-      if (error instanceof HeatpathError && error.location.file === undefined) throw new HeatpathError(error.code, error.detail, channelLocation(file, channel.name, fileName));
+      if (error instanceof HeatpathError && error.location.file === undefined) throw error.at(channelLocation(file, channel.name, fileName));
       throw error;
     }
   }

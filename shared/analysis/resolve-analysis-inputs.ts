@@ -134,7 +134,7 @@ function checkEarlyTimeWindow(file: TransientFile, parameters: AnalysisParameter
   try {
     givenEarlyTimeWindow(file.time_s, parameters.early_time_start_s, parameters.early_time_end_s);
   } catch (error) {
-    if (error instanceof HeatpathError) throw new HeatpathError(error.code, error.detail, { ...error.location, file: fileName });
+    if (error instanceof HeatpathError) throw error.at({ ...error.location, file: fileName });
     throw error;
   }
 }

@@ -20,15 +20,24 @@ export class HeatpathError extends Error {
   readonly location: ErrorLocation;
   readonly detail: string;
 
-  constructor(code: ErrorCode, detail: string, location: ErrorLocation = {}) {
+  /**
+   * `hint` replaces the catalogue's where the detail shows that its usual fix is the wrong one (a transient in
+   * millivolts needs converting to volts, not a wider calibration sweep); title, code and status stay the code's.
+   */
+  constructor(code: ErrorCode, detail: string, location: ErrorLocation = {}, hint: string = errorCatalogue[code].hint) {
     const entry = errorCatalogue[code];
-    super(formatMessage(entry.title, detail, entry.hint, location));
+    super(formatMessage(entry.title, detail, hint, location));
     this.name = 'HeatpathError';
     this.code = code;
     this.status = entry.status;
-    this.hint = entry.hint;
+    this.hint = hint;
     this.location = location;
     this.detail = detail;
+  }
+
+  /** The same error found at `location` (a caller that knows the file or column), keeping its detail and hint. */
+  at(location: ErrorLocation): HeatpathError {
+    return new HeatpathError(this.code, this.detail, location, this.hint);
   }
 }
 

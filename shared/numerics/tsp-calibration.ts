@@ -90,6 +90,11 @@ export function fitCalibration(temperature_C: Float64Array, voltage_V: Float64Ar
   return warnings.length > 0 ? { ...calibration, warnings } : calibration;
 }
 
+/** What to do about a transient written in millivolts under voltage_V, instead of the catalogue's wider sweep. */
+const MILLIVOLT_TRANSIENT_HINT = 'Convert the transient to volts (divide the voltage_V column by 1000) and analyse it again with the same calibration.';
+/** What to do about a calibration fitted from points in millivolts. */
+const MILLIVOLT_CALIBRATION_HINT = 'Fit the calibration again from points in volts (divide their voltage_V by 1000) and analyse the transient with it.';
+
 /**
  * Junction temperature of each voltage; voltages beyond the calibrated range plus the margin are refused,
  * naming the first by its time. A transient written in millivolts against a calibration in volts (or the
@@ -122,6 +127,9 @@ export function voltageToTemperature(calibration: Calibration, time_s: Float64Ar
         `(with a margin of ${100 * CALIBRATION_RANGE_MARGIN} % of the span)` +
         (scaleHint === 1000 ? '; divided by 1000 it would lie inside: is the transient in millivolts? voltage_V is in volts' : '') +
         (scaleHint === 0.001 ? '; multiplied by 1000 it would lie inside: is the calibration in millivolts? voltage_V is in volts' : ''),
+      {},
+      // A factor of 1000 is a unit, and a wider sweep would not mend it.
+      scaleHint === 1000 ? MILLIVOLT_TRANSIENT_HINT : scaleHint === 0.001 ? MILLIVOLT_CALIBRATION_HINT : undefined,
     );
   }
   assertMonotonic(calibration, measuredLow, measuredHigh);
