@@ -297,6 +297,14 @@ describe('heatpath analyze options written as in the files\' header lines', () =
     expect(exponent.provenance.parameters.early_time_start_s).toBe(1.2e-5);
   });
 
+  it('reads --power-w 60W, --current-a 2 A and --voltage-v 25,5V with their unit, as a `# power_W: 51,3 W` line is read, and refuses another unit', () => {
+    const path = join(demo, 'fh-tt1_m07_cooling.csv');
+    expect(JSON.parse(heatpath('analyze', path, '--power-w', '60W', '--format', 'json').stdout).power_W).toBe(60);
+    expect(JSON.parse(heatpath('analyze', path, '--current-a', '2 A', '--voltage-v', '25,5V', '--format', 'json').stdout).power_W).toBe(51);
+    expectUserError(heatpath('analyze', path, '--power-w', '60mW'), /--power-w must be a positive number, got "60mW" \(in W, which may follow it: 60 or 60W\).*\[CLI_USAGE\]/);
+    expect(Object.fromEntries(uploadMetadataFrom({ 'power-w': '60W', sample: 'Q3' }))).toEqual({ power_W: '60', sample_id: 'Q3' });
+  });
+
   it('refuses --power-w 1,250 (1250 with a thousands separator, 1.25 with a decimal comma) on one line, exit 2', () => {
     // SI Brochure 9th ed., 5.4.4 (memory): digits are grouped by spaces, never commas, as a comma may be the decimal sign.
     const run = heatpath('analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--power-w', '1,250');

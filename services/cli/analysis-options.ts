@@ -51,9 +51,10 @@ export async function analysisInputsFromOptions(values: Record<string, unknown>)
 }
 
 function powerFromOptions(values: Record<string, unknown>): Power | undefined {
-  const power_W = numberOption('power-w', values['power-w'] as string | undefined, { positive: true });
-  const current_A = numberOption('current-a', values['current-a'] as string | undefined, { positive: true });
-  const voltage_V = numberOption('voltage-v', values['voltage-v'] as string | undefined, { positive: true });
+  // Read as the file's `# power_W:` lines are: `60W` and `51,3 W` alike.
+  const power_W = numberOption('power-w', values['power-w'] as string | undefined, { positive: true, metadataKey: 'power_W' });
+  const current_A = numberOption('current-a', values['current-a'] as string | undefined, { positive: true, metadataKey: 'current_A' });
+  const voltage_V = numberOption('voltage-v', values['voltage-v'] as string | undefined, { positive: true, metadataKey: 'voltage_V' });
   if (power_W !== undefined && (current_A !== undefined || voltage_V !== undefined)) {
     throw new HeatpathError('CLI_USAGE', 'give either --power-w or --current-a with --voltage-v, not both');
   }

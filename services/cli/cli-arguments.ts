@@ -2,6 +2,7 @@ import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { singleDecimalValue } from '../../shared/input/decimal-number-text.js';
 import { closestName } from '../../shared/input/closest-name.js';
+import { metadataNumber } from '../../shared/input/metadata-number.js';
 
 type Options = NonNullable<ParseArgsConfig['options']>;
 
@@ -62,14 +63,17 @@ function unknownOption(command: string, arg: string, options: Options): Heatpath
 /**
  * A number option: absent -> undefined; present but not a finite number -> CLI_USAGE.
  * A decimal comma (`51,3`) is read, an ambiguous `1,250` refused (decimal-number-text.ts).
+ * `metadataKey` (power_W, current_A, voltage_V) reads it as that key's `# key:` header line is read
+ * (metadata-number.ts): with the key's unit after it, `--power-w 60W` as `# power_W: 60 W`.
  */
-export function numberOption(name: string, text: string | undefined, { positive = false, integer = false } = {}): number | undefined {
+export function numberOption(name: string, text: string | undefined, { positive = false, integer = false, metadataKey = undefined as string | undefined } = {}): number | undefined {
   if (text === undefined) return undefined;
-  const value = singleDecimalValue(text, `--${name}`);
+  const value = metadataKey === undefined ? singleDecimalValue(text, `--${name}`) : metadataNumber(metadataKey, text, `--${name}`);
   const ok = Number.isFinite(value) && (!positive || value > 0) && (!integer || Number.isInteger(value));
   if (!ok) {
     const wanted = integer ? (positive ? 'a whole number above 0' : 'a whole number') : positive ? 'a positive number' : 'a number';
-    throw new HeatpathError('CLI_USAGE', `--${name} must be ${wanted}, got "${text.slice(0, 40)}"`);
+    const unit = metadataKey === undefined ? '' : metadataKey.slice(metadataKey.lastIndexOf('_') + 1);
+    throw new HeatpathError('CLI_USAGE', `--${name} must be ${wanted}, got "${text.slice(0, 40)}"${unit ? ` (in ${unit}, which may follow it: 60 or 60${unit})` : ''}`);
   }
   return value;
 }

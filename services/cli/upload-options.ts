@@ -1,6 +1,8 @@
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { readCycleCount } from '../../shared/input/cycle-count.js';
 import { decimalPointSpelling } from '../../shared/input/decimal-number-text.js';
+import { metadataNumber } from '../../shared/input/metadata-number.js';
+import { POWER_KEYS } from '../../shared/input/transient-file.js';
 import { UploadQuerySchema } from '../api/schemas/transient-metadata.js';
 import { numberOption } from './cli-arguments.js';
 import type { UploadTarget } from './transient-upload-client.js';
@@ -76,7 +78,8 @@ const NUMBER_PARAMETERS: ReadonlySet<string> = new Set(
 /**
  * A value as the server reads it, where the command line is more lenient (as
  * `analyze` is): a decimal comma becomes a point (`51,3`; an ambiguous `1,250`
- * is refused, decimal-number-text.ts), a choice lower case (`Cooling`).
+ * is refused, decimal-number-text.ts), a choice lower case (`Cooling`), a power
+ * loses the unit after it (`60W`, as a `# power_W:` line is read).
  * Anything else goes as given, for the server to judge, but the cycle count:
  * its comma or point separates thousands, so it is read here as digits only
  * and refused before any file is sent, naming the option.
@@ -84,6 +87,11 @@ const NUMBER_PARAMETERS: ReadonlySet<string> = new Set(
 function serverSpelling(option: string, parameter: string, value: string): string {
   if (CHOICE_PARAMETERS.has(parameter)) return value.trim().toLowerCase();
   if (parameter === 'cycle_count') return String(readCycleCount(value, '--cycle-count'));
+  if (POWER_KEYS.has(parameter)) {
+    // As analyze reads it, and the file's header line: `60W` is 60.
+    const power = metadataNumber(parameter, value, `--${option}`);
+    if (Number.isFinite(power)) return String(power);
+  }
   if (NUMBER_PARAMETERS.has(parameter)) return decimalPointSpelling(value, `--${option}`);
   return value;
 }
