@@ -80,6 +80,13 @@ describe('with a real Redis', () => {
     expect(named.file).toBe('bench-7.csv');
   });
 
+  it('400 INPUT_BAD_JSON for a CSV body sent as application/json says it is CSV and to send it as text/csv', async () => {
+    const withHeader = Buffer.concat([Buffer.from('# sample: S-ct\n# power_W: 50\n'), small]);
+    const problem = expectProblem(await upload(context, 'sample_id=S-ct', withHeader, { 'content-type': 'application/json' }), 400, 'INPUT_BAD_JSON');
+    expect(problem.detail).toMatch(/the text is CSV, not JSON \(its first line is "# sample: S-ct"\): send it as CSV, with Content-Type text\/csv/);
+    expect(problem).toMatchObject({ line: 1, column: 1 });
+  });
+
   it("keeps a caller's X-Request-Id and echoes it; makes one up for a missing or odd one", async () => {
     const traced = await upload(context, 'sample_id=S1', small, { 'x-request-id': 'lims-4711.a' });
     expect(traced.headers['x-request-id']).toBe('lims-4711.a');

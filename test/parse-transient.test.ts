@@ -286,6 +286,16 @@ describe('parseTransient JSON', () => {
     // A trailing comma, another token JSON.parse names no position for: the ] after it.
     expectErrorAt('{"time_s": [1, 2,]}', 'comma.json', 'INPUT_BAD_JSON', 1, 18);
   });
+  it('says a CSV text read as JSON is CSV, and how to send it, when it starts as a transient CSV does', () => {
+    // A bench script that sends every body as application/json: the JSON parser stops at the first character.
+    const commented = catchHeatpathError(() => parseTransient('# sample: Q3\n# power_W: 60\ntime_s,temperature_C\n1e-6,25.1\n', 'body', 'json'));
+    expect(commented.code).toBe('INPUT_BAD_JSON');
+    expect(commented.detail).toMatch(/: the text is CSV, not JSON \(its first line is "# sample: Q3"\): send it as CSV, with Content-Type text\/csv/);
+    expect(catchHeatpathError(() => parseTransient('time_s;temperature_C\n1e-6;25,1\n', 'body', 'json')).detail).toContain('the text is CSV, not JSON');
+    // Broken JSON that names time_s, and text that is neither, get no such word.
+    expect(catchHeatpathError(() => parseTransient('{"time_s": [1, 2', 'bad.json', 'json')).detail).not.toContain('CSV');
+    expect(catchHeatpathError(() => parseTransient('hello', 'bad.json', 'json')).detail).not.toContain('CSV');
+  });
   // JSON places are named as column[index] (from 0), without a line.
   it.each(jsonCases)('%s -> %s', (_label, text, code, index, column) => expectErrorAt(text, 'bad.json', code, undefined, index === undefined ? column : `${column}[${index}]`));
 });

@@ -129,9 +129,22 @@ function parseJsonText(text: string, fileName: string): unknown {
     const message = error instanceof Error ? error.message : String(error);
     const position = syntaxErrorPosition(text, message);
     const notNumber = /^(?:NaN|Infinity)/.exec(text.slice(position, position + 8))?.[0];
-    const why = notNumber === undefined ? '' : `: ${notNumber} is not a JSON number (a serialiser writes it for a missing or failed sample): remove the sample`;
+    const why = notNumber === undefined ? csvInsteadOfJson(text) : `: ${notNumber} is not a JSON number (a serialiser writes it for a missing or failed sample): remove the sample`;
     throw new HeatpathError('INPUT_BAD_JSON', message.slice(0, PARSER_MESSAGE_MAX_CHARS) + why, { file: fileName, ...textPlace(text, position) });
   }
+}
+
+/**
+ * A CSV file sent as JSON (a bench script that always says application/json) fails at its first character, which
+ * names nothing the sender would recognise: when the text starts as a transient CSV does, with a `#` header line or
+ * a header naming time_s, the error says so and how to send it.
+ */
+function csvInsteadOfJson(text: string): string {
+  const firstLine = text.trimStart().split(/\r?\n/, 1)[0];
+  // Broken JSON may name time_s in its first line too.
+  const csv = firstLine.startsWith('#') || (!/^[[{]/.test(firstLine) && /\btime_s\b/.test(firstLine));
+  if (!csv) return '';
+  return `: the text is CSV, not JSON (its first line is ${quoteInputText(firstLine)}): send it as CSV, with Content-Type text/csv (or a multipart file part of that type or named .csv)`;
 }
 
 /** The character position of a JSON.parse error: the one its message names, else found. */
