@@ -292,6 +292,16 @@ describe('heatpath reprocess to a server (real API, real Redis)', () => {
     expect(await api.store.listUploads({ sample_id: 'SAMPLE-10' })).toHaveLength(4);
   });
 
+  it("names a refused file by its path in the archive, as the summary does, not by its base name, which repeats across folders", async () => {
+    await writeTransient('lab/SAMPLE-12/broken.csv', -1);
+    await writeTransient('lab/SAMPLE-13/broken.csv', 86);
+    const out = join(workDir, 'out');
+    expect(await runReprocessCommand([join(workDir, 'lab'), ...serverOptions(), '--out', out], print)).toBe(2);
+    expect(errors.join('')).toMatch(/heatpath reprocess: SAMPLE-12\/broken\.csv, line 3, column temperature_C: The server refused the transient: INPUT_NOT_NUMERIC/);
+    const summary = await readFile(join(out, 'reprocess-summary.csv'), 'utf8');
+    expect(summary).toMatch(/^SAMPLE-12\/broken\.csv,[0-9a-f]{64},rejected,,"?SUBMIT_REJECTED: SAMPLE-12\/broken\.csv, line 3/m);
+  });
+
   it('does not count files analysed locally as submitted to the server', async () => {
     await writeTransient('lab/SAMPLE-11/t1.csv', 85);
     const out = join(workDir, 'out');

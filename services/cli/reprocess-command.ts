@@ -169,7 +169,8 @@ function serverProcessor(target: UploadTarget, values: Record<string, unknown>):
     const query = new URLSearchParams(metadata);
     query.set('sample_id', uploadSampleId(values, relativePath));
     try {
-      const uploaded = await uploadTransient(target, bytes, basename(relativePath), query);
+      // Its rejection names the file by its path in the archive (M6/empty.csv): base names repeat across sample folders.
+      const uploaded = await uploadTransient(target, bytes, basename(relativePath), query, relativePath);
       return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state };
     } catch (error) {
       return failureOf(error);

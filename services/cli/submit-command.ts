@@ -54,9 +54,7 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
     try {
       const bytes = await readInputFile(file);
       // The server knows the file by its base name; the user's error line names it as they did, like local errors.
-      const uploaded = await uploadTransient(target, bytes, basename(file), metadata).catch((error: unknown) => {
-        throw isHeatpathError(error) ? error.at({ ...error.location, file }) : error;
-      });
+      const uploaded = await uploadTransient(target, bytes, basename(file), metadata, file);
       print(`${file}\t${uploaded.job_id}\t${uploaded.state}`);
       for (const warning of uploaded.warnings) process.stderr.write(`heatpath submit: ${file}: warning: ${warning}\n`);
     } catch (error) {

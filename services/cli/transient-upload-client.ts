@@ -15,14 +15,16 @@ export interface UploadedTransient {
  * POSTs one transient to /v1/transients with its metadata as query
  * parameters. The Idempotency-Key is a hash of bytes and metadata, so a retry
  * (or a second run of a bench script) is answered with the first upload.
- * Throws as postToServer does; errors name the file `fileName`.
+ * Throws as postToServer does. The server knows the file by `fileName` (its
+ * base name); errors name it `shownAs`, as the user gave it (a path, or a
+ * path within the archive), so that it can be found.
  */
-export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, fileName: string, metadata: URLSearchParams): Promise<UploadedTransient> {
+export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, fileName: string, metadata: URLSearchParams, shownAs = fileName): Promise<UploadedTransient> {
   const query = new URLSearchParams(metadata);
   query.set('file_name', fileName);
   const idempotencyKey = createHash('sha256').update(bytes).update('\n').update(query.toString()).digest('hex');
   const contentType = looksLikeJson(bytes) ? 'application/json' : 'text/csv';
-  const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, fileName);
+  const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, shownAs);
   const warnings = Array.isArray(answer.warnings) ? answer.warnings.map(String) : [];
   return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state), warnings };
 }
