@@ -161,6 +161,18 @@ describe('sample listing in pages', () => {
     expect((await get('/v1/samples/PAGED-1/results')).transients).toHaveLength(3);
     expect(await get('/v1/samples/PAGED-1/results?after=upl-none')).toMatchObject({ status: 404, code: 'RESOURCE_NOT_FOUND' });
   });
+
+  it('404 for a sample id no upload was stored under, naming the id most likely meant, rather than an empty list', async () => {
+    await uploadCsv('sample_id=LOT-Q3&power_W=50', 64);
+    const typo = await context.app.inject({ url: '/v1/samples/LOT-Q3H/results', headers: bearer('reader') });
+    expect(typo.statusCode, typo.body).toBe(404);
+    expect(typo.headers['content-type']).toMatch(/^application\/problem\+json/);
+    expect(typo.json()).toMatchObject({ code: 'RESOURCE_NOT_FOUND', detail: expect.stringMatching(/^sample LOT-Q3H has no stored uploads: did you mean LOT-Q3\? Sample ids are matched exactly/) });
+    // The degradation view of the same sample says the same.
+    const degradation = await context.app.inject({ url: '/v1/samples/LOT-Q3H/degradation', headers: bearer('reader') });
+    expect(degradation.json()).toMatchObject({ status: 404, detail: typo.json().detail });
+    expect((await context.app.inject({ url: '/v1/samples/LOT-Q3/results', headers: bearer('reader') })).json().transients).toHaveLength(1);
+  });
 });
 
 describe('calibrations', () => {

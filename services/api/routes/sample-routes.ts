@@ -1,3 +1,4 @@
+import { unknownSampleError } from '../samples/unknown-sample-error.js';
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
@@ -106,6 +107,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
       schema: {
         tags: ['samples'],
         summary: 'Every transient of a sample with its job outcomes',
+        description: 'A sample id no upload was stored under is 404 RESOURCE_NOT_FOUND, naming the stored sample id it most likely meant, rather than an empty list: a LIMS with a typo in the id hears of it.',
         params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
         querystring: Type.Object(
           {
@@ -131,6 +133,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
       const [page, batches] = await Promise.all([store.listUploadPage({ sample_id }, after, limit), store.listBatches()]);
       if (page === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${after} is not one of sample ${sample_id}'s: pass the \`next\` of the page before as ?after=`);
       const { uploads, next } = page;
+      if (uploads.length === 0 && after === undefined) throw await unknownSampleError(store, sample_id);
       const transients = await Promise.all(
         uploads.map(async (upload) => ({
           upload_id: upload.upload_id,

@@ -1,3 +1,4 @@
+import { unknownSampleError } from './unknown-sample-error.js';
 import { Type, type Static } from 'typebox';
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
@@ -57,7 +58,7 @@ const measurementOf = ({ upload, job_id, result }: Measurement) => ({
  */
 export async function sampleDegradation(store: TransientStore, sampleId: string, options: SampleDegradationOptions) {
   const uploads = await store.listUploads({ sample_id: sampleId });
-  if (uploads.length === 0) throw new HeatpathError('RESOURCE_NOT_FOUND', `sample ${sampleId} has no stored uploads`);
+  if (uploads.length === 0) throw await unknownSampleError(store, sampleId);
   const { jobOf, cancelled } = await jobChooser(store, options.batch_id);
   const notIncluded: NotIncluded[] = [];
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
