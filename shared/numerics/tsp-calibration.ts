@@ -136,8 +136,15 @@ export function voltageToTemperature(calibration: Calibration, time_s: Float64Ar
   return evaluate(calibration.model, calibration.coefficients, voltage_V);
 }
 
-/** Samples beyond the calibrated range by less than this many times the noise are at its end, within the noise: not warned of. */
-export const EXTRAPOLATION_NOISE_ALLOWANCE = 3;
+/**
+ * How many times the noise a sample may lie beyond the calibrated range and still be taken as at its end, within
+ * the noise: at least 3, and one more than sqrt(2 ln n), about the largest of n gaussian draws (extreme-value
+ * statistics, memory). A fixed 3 warned of a clean 801-sample curve ending at the sweep's first point about every
+ * second time (half its samples there, each beyond 3 sigma with probability 0.00135); 801 samples now allow 4.7.
+ */
+export function extrapolationNoiseAllowance(sampleCount: number): number {
+  return Math.max(3, Math.sqrt(2 * Math.log(Math.max(sampleCount, 1))) + 1);
+}
 
 /**
  * A transient whose cold end the calibration extrapolates to more than this below the sweep's coldest point gets
@@ -156,7 +163,8 @@ export const COLD_END_BELOW_SWEEP_HINT_K = 5;
  */
 export function calibrationExtrapolationWarnings(calibration: Calibration, voltage_V: Float64Array, noise_V: number): string[] {
   const [low, high] = calibration.voltage_range_V;
-  const allowance_V = EXTRAPOLATION_NOISE_ALLOWANCE * noise_V;
+  const allowance = extrapolationNoiseAllowance(voltage_V.length);
+  const allowance_V = allowance * noise_V;
   let outside = 0;
   let farthest_V = 0;
   for (let i = 0; i < voltage_V.length; i++) {
@@ -175,7 +183,7 @@ export function calibrationExtrapolationWarnings(calibration: Calibration, volta
       ? `; the curve's cold end converts to ${coldest_C.toPrecision(4)} degC, ${(lowest_C - coldest_C).toPrecision(2)} K below the sweep's coldest point, where a sweep usually begins at or below the cold plate: is this the device's calibration?`
       : '';
   return [
-    `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V by more than ${EXTRAPOLATION_NOISE_ALLOWANCE} times the noise, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
+    `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V by more than ${allowance.toFixed(1)} times the noise, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
       `(${((100 * farthest_V) / (high - low)).toPrecision(2)} % of the span): their temperatures are extrapolated by the ${calibration.model} fit beyond the sweep's ` +
       `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient${coldEndHint}`,
   ];
