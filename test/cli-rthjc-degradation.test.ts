@@ -12,6 +12,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
 import { SIC_POWER_MODULE_STACK } from '../shared/models/example-stacks.js';
 import { layeredStackTruth } from '../shared/models/layered-stack.js';
+import { DUAL_INTERFACE_MEASURED_ERROR } from '../shared/numerics/dual-interface-rthjc.js';
 import { cliWorkspace, DEMO_DIR as demo, expectUserError } from './support/cli-process.js';
 import { csvTimeWindow } from './support/csv-time-window.js';
 import { rSumThroughLayer } from './support/stack-measurement.js';
@@ -52,6 +53,10 @@ describe('heatpath rthjc', () => {
     expect(report.zth_criterion.curves.delta_K_per_W.length).toBe(report.zth_criterion.curves.time_s.length);
     expect(report.structure_criterion.curves.higher_r_K_per_W.length).toBe(report.structure_criterion.curves.c_J_per_K.length);
     expect(report.caution).toBe(RESULT_CAUTION);
+    // The measured error of each criterion against exact ladder truth (test/dual-interface-rthjc.test.ts) goes with the result.
+    expect(report.structure_criterion.measured_error).toEqual(DUAL_INTERFACE_MEASURED_ERROR.structure);
+    expect(report.zth_criterion.measured_error).toEqual(DUAL_INTERFACE_MEASURED_ERROR.zth);
+    expect(report.accuracy_note).toContain(`${DUAL_INTERFACE_MEASURED_ERROR.pairs} synthetic 1-D layered stacks`);
   });
 
   it('text: the two estimates, the epsilon used, the memory note and the caution line; --epsilon-slope is applied', () => {
@@ -62,6 +67,7 @@ describe('heatpath rthjc', () => {
     expect(run.stdout).toContain('epsilon = 0.01 x Rth-JC + 0.003 K/W');
     expect(run.stdout).toContain('recalled from JESD51-14 (2010) from memory');
     expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
+    expect(run.stdout).toMatch(/accuracy\s+against the exact Rth-JC of \d+ synthetic/);
   });
 
   it("says what the pair gives away: the same measurement twice, different powers, curves that part at their start; and the files' own warnings in text too", () => {
@@ -71,10 +77,18 @@ describe('heatpath rthjc', () => {
     // so the curves part at once.
     const halfPower = file('grease-25W.csv', readFileSync(greased, 'utf8').replace('# power_W: 50', '# power_W: 25'));
     const mismatch = heatpath('rthjc', dry, halfPower, '--format', 'json');
-    const warnings: string[] = JSON.parse(mismatch.stdout).warnings;
-    expect(warnings).toContainEqual(expect.stringMatching(/A was heated with 50 W and B with 25 W/));
-    expect(warnings).toContainEqual(expect.stringMatching(/Zth criterion: the curves part within a factor 10 of their earliest common time.*no Rth-JC/));
-    expect(JSON.parse(mismatch.stdout).zth_criterion.rthjc_K_per_W).toBeNull();
+    const report = JSON.parse(mismatch.stdout);
+    expect(report.warnings).toContainEqual(expect.stringMatching(/A was heated with 50 W and B with 25 W/));
+    // Not one device under two interfaces (JESD51-14's premise): no Rth-JC by either criterion, the report kept,
+    // and a user error that says why and what to check.
+    expect(report.not_one_device).toMatch(/part within a factor 10 of their earliest common time/);
+    expect(report.zth_criterion.rthjc_K_per_W).toBeNull();
+    expect(report.structure_criterion.rthjc_K_per_W).toBeNull();
+    expect(mismatch.code).toBe(2);
+    expect(mismatch.stderr).toMatch(/not one device under two interfaces.*same device, at one heating power.*\[RTHJC_NOT_ONE_DEVICE\]/);
+    const mismatchText = heatpath('rthjc', dry, halfPower);
+    expect(mismatchText.stdout).toMatch(/structure functions\s+Rth-JC withheld/);
+    expect(mismatchText.stdout).not.toMatch(/Rth-JC 0\.\d+ K\/W/);
     // A file cut at 50 ms carries its own warning (not settled): the text lists it as the JSON does.
     const short = file('dry-short.csv', csvTimeWindow(dry, 0, 0.05));
     const text = heatpath('rthjc', short, greased);

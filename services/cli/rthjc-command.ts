@@ -1,7 +1,7 @@
 import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
-import { DUAL_INTERFACE_DEFAULTS, dualInterfaceRthjc, type DualInterfaceRthjc } from '../../shared/numerics/dual-interface-rthjc.js';
+import { DUAL_INTERFACE_DEFAULTS, DUAL_INTERFACE_MEASURED_ERROR, dualInterfaceRthjc, type DualInterfaceRthjc } from '../../shared/numerics/dual-interface-rthjc.js';
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
 import { analyzeComparedFiles, interfaceMeasurement, type ComparedMeasurement } from './compared-measurements.js';
@@ -11,6 +11,15 @@ import { formatTime } from './format-time.js';
 export const EPSILON_DEFAULTS_NOTE =
   `the epsilon defaults (slope ${DUAL_INTERFACE_DEFAULTS.epsilonSlope}, offset ${DUAL_INTERFACE_DEFAULTS.epsilonOffset_K_per_W} K/W) ` +
   'are recalled from JESD51-14 (2010) from memory: check them against the standard and set them with --epsilon-slope and --epsilon-offset-k-per-w';
+
+const percent = (fraction: number) => `${fraction >= 0 ? '+' : ''}${Math.round(100 * fraction)} %`;
+const errorRange = ({ low, median, high }: { low: number; median: number; high: number }) => `${percent(low)} .. ${percent(high)} (median ${percent(median)})`;
+
+/** Said beside every Rth-JC: how far each criterion landed from the exact value on synthetic stacks (measured in test/dual-interface-rthjc.test.ts). */
+export const RTHJC_ACCURACY_NOTE =
+  `against the exact Rth-JC of ${DUAL_INTERFACE_MEASURED_ERROR.pairs} synthetic 1-D layered stacks, the structure functions read ${errorRange(DUAL_INTERFACE_MEASURED_ERROR.structure)} ` +
+  `(the deconvolution's resolution rounds the knee at the case surface; high more often than low) and the Zth difference ${errorRange(DUAL_INTERFACE_MEASURED_ERROR.zth)} ` +
+  '(heat has crossed the changed interface by the time the curves part by epsilon): take either as an estimate within that range, not a measured value to a per cent';
 
 export const rthjcUsage = `heatpath rthjc FILE_A FILE_B [options]
 
@@ -52,6 +61,8 @@ export async function runRthjcCommand(argv: string[], print: (text: string) => v
   const [a, b] = measurements;
   const comparison = dualInterfaceRthjc(interfaceMeasurement(a.result), interfaceMeasurement(b.result), { epsilonSlope, epsilonOffset_K_per_W });
   print(format === 'json' ? JSON.stringify(rthjcReport(a, b, comparison)) : formatRthjc(a, b, comparison));
+  // The report is printed first, so that the curves that gave the pair away are kept; the error line then says why there is no Rth-JC.
+  if (comparison.not_one_device !== null) throw new HeatpathError('RTHJC_NOT_ONE_DEVICE', `A ${a.file} and B ${b.file}: ${comparison.not_one_device}`);
   return 0;
 }
 
@@ -63,6 +74,7 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
     files: { a: a.file, b: b.file },
     rth_total_K_per_W: { a: a.result.rth_total_K_per_W, b: b.result.rth_total_K_per_W },
     lower: comparison.lower === 'first' ? 'a' : 'b',
+    not_one_device: comparison.not_one_device,
     zth_criterion: {
       rthjc_K_per_W: zth.rthjc_K_per_W,
       separation_time_s: zth.separation_time_s,
@@ -70,6 +82,7 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
       epsilon_slope: zth.epsilon_slope,
       epsilon_offset_K_per_W: zth.epsilon_offset_K_per_W,
       epsilon_note: EPSILON_DEFAULTS_NOTE,
+      measured_error: DUAL_INTERFACE_MEASURED_ERROR.zth,
       delta_noise_K_per_W: zth.delta_noise_K_per_W,
       curves: { time_s: Array.from(zth.time_s), delta_K_per_W: Array.from(zth.delta_K_per_W), lower_zth_K_per_W: Array.from(zth.lower_zth_K_per_W) },
     },
@@ -78,8 +91,10 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
       separation_c_J_per_K: structure.separation_c_J_per_K,
       threshold_K_per_W: structure.threshold_K_per_W,
       scatter_K_per_W: structure.scatter_K_per_W,
+      measured_error: DUAL_INTERFACE_MEASURED_ERROR.structure,
       curves: { c_J_per_K: Array.from(structure.c_J_per_K), lower_r_K_per_W: Array.from(structure.lower_r_K_per_W), higher_r_K_per_W: Array.from(structure.higher_r_K_per_W) },
     },
+    accuracy_note: RTHJC_ACCURACY_NOTE,
     warnings: rthjcWarnings(a, b, comparison),
     caution: RESULT_CAUTION,
   };
@@ -89,7 +104,7 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
 export function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comparison: DualInterfaceRthjc): string {
   const { zth_criterion: zth, structure_criterion: structure } = comparison;
   const lowerMark = (which: 'first' | 'second') => (comparison.lower === which ? '   (lower curve: the better interface)' : '');
-  const rthjc = (value: number | null) => (value === null ? 'not found' : `${value.toPrecision(4)} K/W`);
+  const rthjc = (value: number | null) => (comparison.not_one_device !== null ? 'withheld (not one device, see below)' : value === null ? 'not found' : `${value.toPrecision(4)} K/W`);
   const warnings = rthjcWarnings(a, b, comparison);
   const lines = [
     'Junction-to-case resistance by two interfaces (transient dual interface method, JESD51-14)',
@@ -101,6 +116,8 @@ export function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comp
     `  structure functions   Rth-JC ${rthjc(structure.rthjc_K_per_W)}` +
       (structure.separation_c_J_per_K !== null ? `   separation at C_sum ${structure.separation_c_J_per_K.toPrecision(3)} J/K` : '') +
       `, threshold ${structure.threshold_K_per_W.toPrecision(2)} K/W`,
+    ...(comparison.not_one_device !== null ? [`  not one device        ${comparison.not_one_device}: no Rth-JC`] : []),
+    `  accuracy              ${RTHJC_ACCURACY_NOTE}`,
     `  note                  ${EPSILON_DEFAULTS_NOTE}`,
     `  warnings              ${warnings.length === 0 ? 'none' : warnings.join('\n                        ')}`,
     `Caution: ${RESULT_CAUTION}`,

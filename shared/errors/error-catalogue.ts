@@ -45,6 +45,7 @@ export const errorCatalogue = {
 
   // ---- comparing two measurements (dual-interface Rth-JC, degradation) ----
   COMPARISON_NO_OVERLAP: { status: 422, title: 'The two measurements share no common range to compare', hint: 'Measure both curves the same way (same time window and sampling) on the same device, so that their Zth times and C_sum ranges overlap.' },
+  RTHJC_NOT_ONE_DEVICE: { status: 422, title: 'The two measurements are not one device under two interfaces, so no Rth-JC is given', hint: 'The transient dual interface method (JESD51-14) needs two cooling transients of the same device, at one heating power, with one calibration and early-time correction, that differ only in the interface between case and cold plate: check the power and calibration of each file, and that both files are of the same device.' },
   COMPARISON_SEVERAL_CHANNELS: { status: 422, title: 'A file to compare holds more than one channel', hint: 'Give one single-channel file per measurement: split the channels into files of their own.' },
   DEGRADATION_BATCH_CANCELLED: { status: 409, title: "The batch was cancelled before it analysed all of the sample's uploads", hint: 'Its trend would stay incomplete: start a new batch for the sample (POST /v1/batches with its sample_id) and ask with its batch_id, or ask without ?batch_id= for the uploads\' own jobs.' },
   DEGRADATION_CHANNEL_NOT_FOUND: { status: 400, title: "The sample's results have no such channel", hint: 'Choose one of the channels the detail lists with ?channel=, or leave it out when the results have one channel.' },

@@ -17,11 +17,21 @@ export const BENCH_POWER_W = 50;
 
 /** Exact R_sum from the junction to the far face of `layerName` (through the layer). */
 export function rSumThroughLayer(stack: LayeredStack, truth: StackTruth, layerName: string): number {
+  return sumThroughLayer(stack, truth, layerName, truth.ladder.r_K_per_W);
+}
+
+/** Exact C_sum from the junction to the far face of `layerName`: where the exact structure function reaches that boundary. */
+export function cSumThroughLayer(stack: LayeredStack, truth: StackTruth, layerName: string): number {
+  return sumThroughLayer(stack, truth, layerName, truth.ladder.c_J_per_K);
+}
+
+/** The ladder's per-stage values summed over the stages that lie in the layers up to `layerName`. */
+function sumThroughLayer(stack: LayeredStack, truth: StackTruth, layerName: string, perStage: Float64Array): number {
   const last = stack.layers.findIndex((layer) => layer.name === layerName);
   if (last < 0) throw new Error(`${stack.name} has no layer "${layerName}"`);
   let sum = 0;
-  truth.ladder.r_K_per_W.forEach((r, stage) => {
-    if (truth.ladder.layer_of_stage[stage] <= last) sum += r;
+  perStage.forEach((value, stage) => {
+    if (truth.ladder.layer_of_stage[stage] <= last) sum += value;
   });
   return sum;
 }
