@@ -7,6 +7,7 @@ import { runReprocessCommand } from '../services/cli/reprocess-command.js';
 import { runSubmitCommand } from '../services/cli/submit-command.js';
 import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
 import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
+import type { Calibration } from '../shared/schemas/calibration.js';
 import { startApiTestApp, testTokens, type ApiTestContext } from './support/api-test-app.js';
 import { freePort } from './support/free-port.js';
 import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-upload.js';
@@ -43,6 +44,28 @@ async function writeTransient(name: string, seed: number): Promise<string> {
   // seed < 0: a file with a cell that is not a number, on line 3.
   await writeFile(path, seed < 0 ? 'time_s,temperature_C\n1e-6,88.1\n2e-6,88.1x\n' : syntheticTransientCsv(seed));
   return path;
+}
+
+/** The TSP of a -2 mV/K diode (common practice), 0.7 V at 25 degC; `offset_V` shifts it, as another device's would be. */
+const diodeVoltageAt = (t_C: number, offset_V = 0) => 0.7 + offset_V - 0.002 * (t_C - 25);
+
+/** A synthetic transient as that diode's voltage, in volts or (`scale` 1000) written in millivolts under voltage_V. */
+async function writeVoltageTransient(name: string, seed: number, scale = 1): Promise<string> {
+  const path = join(workDir, name);
+  await mkdir(join(path, '..'), { recursive: true });
+  const rows = syntheticTransientCsv(seed).toString('utf8').trim().split('\n').slice(1);
+  await writeFile(path, ['time_s,voltage_V', ...rows.map((row) => `${row.split(',')[0]},${(scale * diodeVoltageAt(Number(row.split(',')[1]))).toFixed(7)}`)].join('\n') + '\n');
+  return path;
+}
+
+/** That diode's sweep from 0 to 200 degC, fitted as `heatpath calibrate --out` writes it. */
+async function writeCalibration(name: string, offset_V = 0): Promise<{ path: string; calibration: Calibration }> {
+  const sweep_C = [0, 50, 100, 150, 200];
+  const fitted = fitCalibration(Float64Array.from(sweep_C), Float64Array.from(sweep_C.map((t) => diodeVoltageAt(t, offset_V))), 'linear');
+  const calibration = { ...fitted, created_at: '2026-12-03T08:00:00.000Z', source: 'sweep.csv' };
+  const path = join(workDir, name);
+  await writeFile(path, JSON.stringify(calibration, null, 2));
+  return { path, calibration };
 }
 
 const serverOptions = () => ['--server', server, '--key', testTokens.bench, '--power-w', String(SYNTHETIC_POWER_W)];
@@ -111,15 +134,8 @@ describe('heatpath submit (real API, real Redis)', () => {
   });
 
   it('stores a calibration file on the server with --calibration and names it in the uploads by the id calibrate printed', async () => {
-    // The synthetic transient as the voltage of a -2 mV/K diode (common practice), and that diode's sweep, as `heatpath calibrate --out` writes it.
-    const voltageAt = (t: number) => 0.7 - 0.002 * (t - 25);
-    const rows = syntheticTransientCsv(67).toString('utf8').trim().split('\n').slice(1);
-    const volts = join(workDir, 'volts.csv');
-    await writeFile(volts, ['time_s,voltage_V', ...rows.map((row) => `${row.split(',')[0]},${voltageAt(Number(row.split(',')[1])).toFixed(7)}`)].join('\n') + '\n');
-    const sweep_C = [0, 50, 100, 150, 200];
-    const calibration = { ...fitCalibration(Float64Array.from(sweep_C), Float64Array.from(sweep_C.map(voltageAt)), 'linear'), created_at: '2026-12-03T08:00:00.000Z', source: 'sweep.csv' };
-    const calibrationFile = join(workDir, 'cal.json');
-    await writeFile(calibrationFile, JSON.stringify(calibration, null, 2));
+    const volts = await writeVoltageTransient('volts.csv', 67);
+    const { path: calibrationFile, calibration } = await writeCalibration('cal.json');
 
     expect(await runSubmitCommand([volts, ...serverOptions(), '--sample', 'S-67', '--calibration', calibrationFile], print)).toBe(0);
     const [stored] = await api.store.listUploads({ sample_id: 'S-67' });
@@ -133,6 +149,25 @@ describe('heatpath submit (real API, real Redis)', () => {
     await writeFile(calibrationFile, '{"model":"linear"}');
     await expect(runSubmitCommand([volts, ...serverOptions(), '--sample', 'S-68', '--calibration', calibrationFile], print)).rejects.toMatchObject({ code: 'CALIBRATION_BAD_FILE' });
     expect(await api.store.listUploads({ sample_id: 'S-68' })).toHaveLength(0);
+  });
+
+  it('says that the server refused the calibration, not a transient, when it does', async () => {
+    const volts = await writeVoltageTransient('volts.csv', 69);
+    const { path: calibrationFile } = await writeCalibration('cal.json');
+    expect(await runSubmitCommand([volts, '--server', server, '--key', 'not-a-known-key-000', '--sample', 'S-69', '--calibration', calibrationFile], print)).toBe(2);
+    expect(errors).toHaveLength(1);
+    expect(errors[0]).toMatch(/^heatpath submit: .*cal\.json: The server refused the calibration: AUTH_KEY_INVALID: .*\[CALIBRATION_REJECTED\]\n$/);
+    expect(errors[0]).not.toMatch(/transient/);
+  });
+
+  it("gives the server's hint in the one error line, where it knows the fix: a transient in millivolts is converted to volts", async () => {
+    // The diode's transient written in millivolts under voltage_V against its calibration in volts: a thousand times outside the sweep.
+    const millivolts = await writeVoltageTransient('millivolts.csv', 70, 1000);
+    const { path: calibrationFile } = await writeCalibration('cal.json');
+    expect(await runSubmitCommand([millivolts, ...serverOptions(), '--sample', 'S-70', '--calibration', calibrationFile], print)).toBe(2);
+    expect(errors).toHaveLength(1);
+    expect(errors[0].split('\n')).toEqual([expect.stringMatching(/^heatpath submit: .*millivolts\.csv.*: The server refused the transient: CALIBRATION_OUT_OF_RANGE: .*millivolts.*\. Convert the transient to volts \(divide the voltage_V column by 1000\).*\[SUBMIT_REJECTED\]$/), '']);
+    expect(errors[0]).not.toContain('Fix what the server reported');
   });
 
   it('exits 1 when the server cannot be reached, and 2 for a wrong key', async () => {
@@ -311,9 +346,25 @@ describe('heatpath reprocess to a server (real API, real Redis)', () => {
     expect(await api.store.listUploads({ sample_id: 'SAMPLE-11' })).toHaveLength(1);
   });
 
-  it('takes a calibration file only with --local, and a stored calibration only on a server', async () => {
-    const archive = join(workDir, 'lab');
-    await expect(runReprocessCommand([archive, ...serverOptions(), '--calibration', 'cal.json'], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
-    await expect(runReprocessCommand([archive, '--local', '--calibration-id', 'a'.repeat(64)], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
+  it('stores a calibration file on the server, as submit does, and counts the calibration among the settings a file was done with', async () => {
+    await writeVoltageTransient('lab/SAMPLE-14/v1.csv', 87);
+    const { path: calibrationFile, calibration } = await writeCalibration('cal.json');
+    const { path: otherFile, calibration: other } = await writeCalibration('other-cal.json', 0.005);
+    const out = join(workDir, 'out');
+    const args = [join(workDir, 'lab'), ...serverOptions(), '--out', out];
+
+    expect(await runReprocessCommand([...args, '--calibration', calibrationFile], print)).toBe(0);
+    expect(await api.store.getCalibration(calibrationIdOf(calibration))).not.toBeNull();
+    expect((await api.store.listUploads({ sample_id: 'SAMPLE-14' })).map((upload) => upload.calibration_id)).toEqual([calibrationIdOf(calibration)]);
+    // The same calibration named by its id (as calibrate printed it) is the same setting; another one is not.
+    expect(await runReprocessCommand([...args, '--calibration-id', calibrationIdOf(calibration)], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(1 done before\)/);
+    expect(await runReprocessCommand([...args, '--calibration', otherFile], print)).toBe(0);
+    expect(printed.at(-1)).toMatch(/\(0 done before, 1 redone\)/);
+    expect((await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).split('\n')[1]).toContain('redone: settings changed;');
+    expect((await api.store.listUploads({ sample_id: 'SAMPLE-14' })).map((upload) => upload.calibration_id).sort()).toEqual([calibrationIdOf(calibration), calibrationIdOf(other)].sort());
+
+    await expect(runReprocessCommand([...args, '--calibration', calibrationFile, '--calibration-id', calibrationIdOf(calibration)], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
+    await expect(runReprocessCommand([join(workDir, 'lab'), '--local', '--calibration-id', 'a'.repeat(64)], print)).rejects.toMatchObject({ code: 'CLI_USAGE' });
   });
 });

@@ -1,3 +1,4 @@
+import { errorCatalogue } from '../../shared/errors/error-catalogue.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 
 /** Where and as whom to upload. */
@@ -13,18 +14,22 @@ export interface UploadTarget {
 const RETRYABLE_STATUS = new Set([408, 429, 500, 502, 503, 504]);
 const MAX_BACKOFF_MS = 10_000;
 
+/** The code of the server's refusal: it names what was refused, a transient or a calibration. */
+export type Refusal = 'SUBMIT_REJECTED' | 'CALIBRATION_REJECTED';
+
 /**
  * POSTs `body` to `path` on the service, retrying while it is busy or away,
- * and returns the JSON of its successful answer. Throws SUBMIT_REJECTED when
- * the server refuses the request (the user must fix it; at the line and
- * column the server names) and SERVER_UNREACHABLE when every attempt failed.
- * Errors name the file `fileName`.
+ * and returns the JSON of its successful answer. Throws `refusal` when the
+ * server refuses the request (the user must fix it; at the line and column
+ * the server names, with the server's hint where it gives one) and
+ * SERVER_UNREACHABLE when every attempt failed. Errors name the file `fileName`.
  */
 export async function postToServer(
   target: UploadTarget,
   path: string,
   request: { body: Uint8Array | string; headers: Record<string, string> },
   fileName: string,
+  refusal: Refusal,
 ): Promise<Record<string, unknown>> {
   const url = new URL(path, target.server);
   let lastProblem = '';
@@ -40,7 +45,7 @@ export async function postToServer(
       const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
       if (response.ok) return answer;
       lastProblem = describeProblem(response.status, answer);
-      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError('SUBMIT_REJECTED', lastProblem, { file: fileName, ...problemPlace(answer) });
+      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError(refusal, lastProblem, { file: fileName, ...problemPlace(answer) }, problemHint(answer) ?? errorCatalogue[refusal].hint);
       retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
     } catch (error) {
       if (error instanceof HeatpathError) throw error;
@@ -66,5 +71,18 @@ function problemPlace(answer: Record<string, unknown>): { line?: number; column?
 function describeProblem(status: number, answer: Record<string, unknown>): string {
   const code = typeof answer.code === 'string' ? answer.code : `HTTP ${status}`;
   const detail = typeof answer.detail === 'string' ? answer.detail : typeof answer.title === 'string' ? answer.title : '';
-  return detail ? `${code}: ${detail}` : code;
+  return detail ? `${code}: ${oneLine(detail)}` : code;
+}
+
+/**
+ * What the server says to do (the problem's `hint`): it knows the fix where the usual one is wrong (a transient in
+ * millivolts is converted to volts, not given a wider calibration sweep), so it replaces the refusal's own.
+ */
+function problemHint(answer: Record<string, unknown>): string | undefined {
+  return typeof answer.hint === 'string' && answer.hint.trim() !== '' ? oneLine(answer.hint) : undefined;
+}
+
+/** The CLI's error is one line on stderr, for bench scripts and logs: a detail listing lines is joined. */
+function oneLine(text: string): string {
+  return text.trim().replace(/\s*\n\s*/g, '; ');
 }

@@ -9,6 +9,7 @@ import { analyzeFiles } from './analyze-command.js';
 import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
+import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { userErrorLine } from './user-error-line.js';
 import { readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
 import { uploadTransient, type UploadTarget } from './transient-upload-client.js';
@@ -31,7 +32,9 @@ the files in progress finish; press it again to stop at once).
   --local                 analyse on this machine (results in OUT/results/)
   --out DIR               state, summary and local results (default ./heatpath-reprocess)
   --concurrency N         uploads in flight (server mode, default 4)
-  --calibration CAL.json  TSP calibration file (local mode; on a server: --calibration-id)
+  --calibration CAL.json  TSP calibration file of heatpath calibrate; on a server
+                          it is stored there first, as submit does, and named by
+                          its id (or name a stored one with --calibration-id)
 ${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}
 
 Exit codes: 0 all done, 2 a file or option must be fixed (takes precedence),
@@ -74,23 +77,26 @@ export async function runReprocessCommand(
   if (values.local && values['calibration-id'] !== undefined) {
     throw new HeatpathError('CLI_USAGE', '--calibration-id names a calibration stored on a server; with --local give the calibration file, --calibration CAL.json');
   }
-  if (!values.local && values.calibration !== undefined) {
-    throw new HeatpathError('CLI_USAGE', '--calibration CAL.json is for --local; on a server name a stored calibration with --calibration-id ID');
-  }
   const archive = resolve(positionals[0]);
   const outDir = resolve((values.out as string | undefined) ?? 'heatpath-reprocess');
   const concurrency = values.local ? 1 : numberOption('concurrency', values.concurrency as string | undefined, { positive: true, integer: true }) ?? 4;
-  const inputs = await analysisInputsFromOptions(values);
+  // On a server the calibration file is stored there (storeCalibrationOnServer), once the other options are known good.
+  const inputs = await analysisInputsFromOptions(values.local ? values : { ...values, calibration: undefined });
+  const upload = values.local ? undefined : { target: uploadTargetFrom(values, 'reprocess'), metadata: uploadMetadataFrom(values) };
+  if (upload && values.calibration !== undefined) {
+    const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, values.calibration as string);
+    if (exitCode !== null) return exitCode;
+  }
   const settings: ReprocessSettings = {
     parameters: inputs.parameters,
     power: inputs.power,
-    calibration_sha256: inputs.calibration ? calibrationIdOf(inputs.calibration) : ((values['calibration-id'] as string | undefined) ?? null),
+    // The id the uploads name (a file's given by the server, as calibrate prints it): one calibration is one setting however it is given.
+    calibration_sha256: upload ? upload.metadata.get('calibration_id') : inputs.calibration ? calibrationIdOf(inputs.calibration) : null,
     sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath)),
   };
-  const uploadTarget = values.local ? undefined : uploadTargetFrom(values, 'reprocess');
-  const target = uploadTarget ? new URL(uploadTarget.server).href : 'local';
+  const target = upload ? new URL(upload.target.server).href : 'local';
   const files = (await listTransientFiles(archive, outDir)).map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
-  const processFile = uploadTarget ? serverProcessor(uploadTarget, values) : localProcessor(inputs, outDir, resultFolderOf(files.map((f) => f.relativePath)));
+  const processFile = upload ? serverProcessor(upload.target, upload.metadata, values) : localProcessor(inputs, outDir, resultFolderOf(files.map((f) => f.relativePath)));
   await makeOutputDirectory(outDir);
   const outcomes = await readReprocessState(join(outDir, STATE_FILE));
   const thisRun = new Map<string, FileOutcome>();
@@ -163,8 +169,7 @@ function stopOnCtrlC(): { signal: AbortSignal; release: () => void } {
   return { signal: controller.signal, release: () => process.removeListener('SIGINT', onSigint) };
 }
 
-function serverProcessor(target: UploadTarget, values: Record<string, unknown>): Processor {
-  const metadata = uploadMetadataFrom(values);
+function serverProcessor(target: UploadTarget, metadata: URLSearchParams, values: Record<string, unknown>): Processor {
   return async (_path, relativePath, bytes) => {
     const query = new URLSearchParams(metadata);
     query.set('sample_id', uploadSampleId(values, relativePath));

@@ -1,7 +1,6 @@
 import { basename } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCommandLine } from './cli-arguments.js';
-import { readCalibrationFile } from './read-calibration-file.js';
 import { readInputFile } from './read-input-file.js';
 import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { uploadTransient } from './transient-upload-client.js';
@@ -35,17 +34,8 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
   if (!metadata.has('sample_id')) throw new HeatpathError('CLI_USAGE', 'heatpath submit needs --sample ID');
   const calibrationFile = values.calibration as string | undefined;
   if (calibrationFile !== undefined) {
-    if (metadata.has('calibration_id')) throw new HeatpathError('CLI_USAGE', 'give either --calibration CAL.json or --calibration-id ID, not both');
-    // Checked here first, so that a broken file is named as the user wrote it before anything is sent.
-    const calibration = await readCalibrationFile(calibrationFile);
-    try {
-      metadata.set('calibration_id', await storeCalibrationOnServer(target, calibration, calibrationFile));
-    } catch (error) {
-      if (!isHeatpathError(error)) throw error;
-      // No file can be analysed without it: the exit codes of a file's failure, for all of them.
-      process.stderr.write(userErrorLine('submit', error) + '\n');
-      return error.status < 500 ? 2 : 1;
-    }
+    const exitCode = await storeCalibrationOnServer('submit', target, metadata, calibrationFile);
+    if (exitCode !== null) return exitCode;
   }
 
   let mustFix = false;

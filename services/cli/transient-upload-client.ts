@@ -24,7 +24,7 @@ export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, f
   query.set('file_name', fileName);
   const idempotencyKey = createHash('sha256').update(bytes).update('\n').update(query.toString()).digest('hex');
   const contentType = looksLikeJson(bytes) ? 'application/json' : 'text/csv';
-  const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, shownAs);
+  const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, shownAs, 'SUBMIT_REJECTED');
   const warnings = Array.isArray(answer.warnings) ? answer.warnings.map(String) : [];
   return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state), warnings };
 }

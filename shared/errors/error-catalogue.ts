@@ -88,7 +88,8 @@ export const errorCatalogue = {
   BATCH_SELECTION_EMPTY: { status: 422, title: 'The batch selects no stored transients', hint: 'Widen the selection (sample, bench, tag, time range) or leave it empty to select all.' },
   DEGRADATION_TOO_FEW_RESULTS: { status: 422, title: 'Too few completed analyses to show a trend', hint: 'A degradation trend needs a reference and at least one later completed analysis of the same channel: wait for pending jobs (GET /v1/samples/{sample_id}/results), or choose another ?channel= or ?batch_id=.' },
   SUBMIT_REJECTED: { status: 400, title: 'The server refused the transient', hint: 'Fix what the server reported, as its code and detail say, and submit the file again.' },
-  SERVER_UNREACHABLE: { status: 503, title: 'The heatpath server did not accept the transient', hint: 'Check --server and the network, then run the same command again: repeated submissions are safe.' },
+  CALIBRATION_REJECTED: { status: 400, title: 'The server refused the calibration', hint: 'Fix what the server reported, as its code and detail say (or fit the calibration again with heatpath calibrate), and run the command again.' },
+  SERVER_UNREACHABLE: { status: 503, title: 'The heatpath server did not accept the upload', hint: 'Check --server and the network, then run the same command again: repeated submissions are safe.' },
   STORED_INPUT_MISSING: { status: 410, title: 'The stored raw transient of the job is gone from the store', hint: 'Upload the transient again (the record of the upload is kept, and the same file runs the same job again), or restore it from a backup and retry the job (POST /v1/jobs/{job_id}/retry).' },
 } as const satisfies Record<string, { status: number; title: string; hint: string }>;
 
