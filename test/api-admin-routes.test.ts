@@ -122,6 +122,24 @@ describe('batches', () => {
     expect((await context.store.listBatches()).length).toBe(before);
   });
 
+  it('refuses a batch that makes the first selected upload a curve of the other kind, as an upload of it would be, storing nothing', async () => {
+    // A heating curve (rising temperature) stored as heating: read as cooling, its Zth ends below zero and the job could only fail.
+    const uploaded = await uploadCsv('sample_id=B-K&power_W=50&kind=heating', 45, heatingCurveCsv);
+    expect(uploaded.statusCode, uploaded.body).toBe(202);
+    const before = (await context.store.listBatches()).length;
+    const refused = await post('/v1/batches', { selection: { sample_id: 'B-K' }, parameters: { kind: 'cooling' } });
+    expect(refused.statusCode, refused.body).toBe(422);
+    expect(refused.json()).toMatchObject({ code: 'ANALYSIS_NOT_ANALYSABLE', detail: expect.stringMatching(/^on the selection's first upload, upl-\S+ \(sample B-K, .*\): /) });
+    // The same curve sent as cooling is refused at upload in the same code: the batch says what the upload would.
+    const asUpload = await uploadCsv('sample_id=B-K2&power_W=50&kind=cooling', 45, heatingCurveCsv);
+    expect(asUpload.json()).toMatchObject({ status: 422, code: 'ANALYSIS_NOT_ANALYSABLE' });
+    expect((await context.store.listBatches()).length).toBe(before);
+    // Its own kind is no reason to refuse.
+    const kept = await post('/v1/batches', { selection: { sample_id: 'B-K' }, parameters: { points_per_decade: 60 } });
+    expect(kept.statusCode, kept.body).toBe(202);
+    await post(kept.json().links.cancel, {});
+  });
+
   it("replaces only the parameters a batch names and keeps the upload's others (kind, method, stages)", async () => {
     const uploaded = await uploadCsv('sample_id=B-2&power_W=50&kind=heating&method=bayes&compact_stages=8', 42, heatingCurveCsv);
     expect(uploaded.statusCode, uploaded.body).toBe(202);

@@ -3,8 +3,9 @@ import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
 import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.js';
 import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.js';
 import { parseTransient } from '../shared/input/parse-transient.js';
-import { givenEarlyTimeWindow } from '../shared/numerics/early-time-window.js';
 import { checkVoltagesCalibrated } from '../shared/analysis/check-voltages-calibrated.js';
+import { checkZthRises } from '../shared/analysis/check-zth-rises.js';
+import { resolveAnalysisInputs } from '../shared/analysis/resolve-analysis-inputs.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
 import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
@@ -97,10 +98,11 @@ export class BatchReprocessor {
   }
 
   /**
-   * The checks an upload gets (early-time window inside the record, voltages the calibration covers), run with the
-   * batch's parameters and calibration on the selection's first upload before anything is stored or queued: a window
-   * or calibration that fits none of the archive is refused at once, not found out by thousands of failed jobs.
-   * Only the first is read (an archive may hold tens of thousands); the others are judged by their own jobs.
+   * The checks an upload gets (early-time window inside the record, voltages the calibration covers, a Zth that rises
+   * for the kind stated), run with the batch's parameters and calibration on the selection's first upload before
+   * anything is stored or queued: a window, calibration or kind that fits none of the archive is refused at once, not
+   * found out by thousands of failed jobs. Only the first is read (an archive may hold tens of thousands); the others
+   * are judged by their own jobs.
    */
   private async checkOnFirstUpload(job: UploadRecord, batch: BatchRecord): Promise<void> {
     try {
@@ -109,9 +111,13 @@ export class BatchReprocessor {
       const bytes = kept === null ? await this.store.getBlob(job.input_sha256) : null;
       const file = kept ?? (bytes === null ? null : parseTransient(bytes, job.file_name, job.format));
       if (file === null) return;
-      givenEarlyTimeWindow(file.time_s, job.parameters.early_time_start_s, job.parameters.early_time_end_s);
-      const calibration = batch.calibration_id === null || file.quantity !== 'voltage_V' ? null : await this.store.getCalibration(batch.calibration_id);
-      if (calibration !== null) checkVoltagesCalibrated(file, calibration.calibration, job.file_name);
+      // As the job's analysis resolves them (its early-time window checked with them), and as the upload checks them.
+      const { parameters, power, channelPowers } = resolveAnalysisInputs(file, { parameters: job.parameters, power: job.power ?? undefined }, job.file_name);
+      const calibration = job.calibration_id === null || file.quantity !== 'voltage_V' ? null : await this.store.getCalibration(job.calibration_id);
+      // The upload's own calibration was checked against its voltages when it was uploaded.
+      if (calibration !== null && batch.calibration_id !== null) checkVoltagesCalibrated(file, calibration.calibration, job.file_name);
+      // Voltages without a stored calibration are the job's own failure (it names the missing calibration).
+      if (file.quantity !== 'voltage_V' || calibration !== null) checkZthRises(file, { parameters, power, channelPowers }, calibration?.calibration, job.file_name);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`, {}, error.hint);
