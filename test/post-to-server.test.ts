@@ -1,0 +1,32 @@
+import { createServer, type Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { afterEach, describe, expect, it } from 'vitest';
+import { postToServer } from '../services/cli/post-to-server.js';
+import { userErrorLine } from '../services/cli/user-error-line.js';
+
+let server: Server | undefined;
+afterEach(() => new Promise<void>((resolve) => (server ? server.close(() => resolve()) : resolve())));
+
+/** A server that answers every request with this RFC 9457 problem. */
+async function answering(status: number, problem: Record<string, unknown>): Promise<string> {
+  server = createServer((_request, response) => response.writeHead(status, { 'content-type': 'application/problem+json' }).end(JSON.stringify(problem)));
+  await new Promise<void>((resolve) => server!.listen(0, '127.0.0.1', resolve));
+  return `http://127.0.0.1:${(server!.address() as AddressInfo).port}`;
+}
+
+describe('postToServer refusals', () => {
+  it("keep the one error line of the CLI when the server's detail and hint run over several lines", async () => {
+    const url = await answering(422, { code: 'ANALYSIS_NOT_ANALYSABLE', detail: 'channel A: Zth ends below zero\nchannel B: Zth ends below zero\n', hint: 'Give kind=heating\nfor a heating curve.' });
+    const refusal = await postToServer({ server: url, key: 'k', attempts: 1 }, '/v1/transients', { body: 'x', headers: {} }, 'run.csv', 'SUBMIT_REJECTED').catch((error) => error);
+    expect(refusal).toMatchObject({ code: 'SUBMIT_REJECTED', hint: 'Give kind=heating; for a heating curve.' });
+    expect(userErrorLine('submit', refusal)).toBe(
+      'heatpath submit: run.csv: The server refused the transient: ANALYSIS_NOT_ANALYSABLE: channel A: Zth ends below zero; channel B: Zth ends below zero. Give kind=heating; for a heating curve. [SUBMIT_REJECTED]',
+    );
+  });
+
+  it("keep the refusal's own hint when the server gives none", async () => {
+    const url = await answering(400, { code: 'CALIBRATION_BAD_FILE', detail: 'model cubic' });
+    const refusal = await postToServer({ server: url, key: 'k', attempts: 1 }, '/v1/calibrations', { body: '{}', headers: {} }, 'cal.json', 'CALIBRATION_REJECTED').catch((error) => error);
+    expect(refusal.message).toMatch(/^cal\.json: The server refused the calibration: CALIBRATION_BAD_FILE: model cubic\. Fix what the server reported/);
+  });
+});
