@@ -32,6 +32,18 @@ describe('a record too long to be in seconds', () => {
     expect(asSeconds.quality.warnings.some((w) => inMilliseconds.test(w))).toBe(false);
   });
 
+  // A record of 1 us to 9 s written in milliseconds runs from 0.001 to 9000: under the 1e4 s rule, and Rth came out
+  // 6.5 % high without a word on the unit. A bench's first sample lies at microseconds to tens of them after switching
+  // (common practice), not at a millisecond.
+  it('also warns when the record starts at 1 ms or later and ends after 1e3 s, as 1 us to seconds in milliseconds does; not for 1 ms to 100 s in seconds', () => {
+    const shortDemo = (factor: number, last_s: number) =>
+      Buffer.from(demo.split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= last_s).join('\n').replace(/^(\d[^,\n]*),/gm, (_, time) => `${Number(time) * factor},`));
+    const [nineSecondsInMs] = analyzeTransientFile({ bytes: shortDemo(1000, 9), fileName: 'ms.csv' }, CREATED_AT);
+    expect(nineSecondsInMs.quality.warnings.find((w) => inMilliseconds.test(w))).toMatch(/^the record runs from time_s = 0\.001 s to 8\d{3}(\.\d+)? s, 2\.\d hours, as a record of 1 us to seconds does when written in milliseconds/);
+    const [fromOneMs] = analyzeTransientFile({ bytes: Buffer.from(demo.split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) >= 1e-3).join('\n')), fileName: 's.csv' }, CREATED_AT);
+    expect(fromOneMs.quality.warnings.some((w) => inMilliseconds.test(w))).toBe(false);
+  });
+
   it('names the window end given, and says it once per result', () => {
     const [result] = analyzeTransientFile({ bytes: scaledTimes(1000), fileName: 'ms.csv', parameters: { early_time_end_s: 0.005 } }, CREATED_AT);
     const warnings = result.quality.warnings.filter((w) => inMilliseconds.test(w));

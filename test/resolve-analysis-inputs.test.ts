@@ -93,6 +93,8 @@ describe('resolveAnalysisInputs from the file header', () => {
     const fit = catchHeatpathError(() => extrapolateSqrtTime(file.time_s, file.channels[0].values, { noise_rms: 0.01, start_s: 500 }));
     expect(fit.detail).toBe(late.detail);
     expect(catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_end_s: 1e-7 } }, 'bench.csv')).detail).toMatch(/^early_time_end_s = 1e-7 s is before the first sample/);
+    // An end past the last sample was clipped to it, fitting sqrt(t) over the whole record.
+    expect(catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_end_s: 0.5 } }, 'bench.csv')).detail).toMatch(/^early_time_end_s = 0\.5 s is after the last sample \(the record runs from 0\.000001 s to 0\.001 s\)/);
     expect(catchHeatpathError(() => resolveAnalysisInputs(file, { parameters: { early_time_start_s: 2e-4, early_time_end_s: 1e-4 } }, 'bench.csv')).detail).toMatch(/must be before early_time_end_s/);
     expect(resolveAnalysisInputs(file, { parameters: { early_time_start_s: 2e-6, early_time_end_s: 1e-4 } }, 'bench.csv').parameters).toMatchObject({ early_time_start_s: 2e-6 });
   });

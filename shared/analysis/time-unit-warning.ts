@@ -6,6 +6,14 @@ import type { AnalysisParameters } from '../schemas/analysis-parameters.js';
 export const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
 
 /**
+ * A record that starts this late and ends after LONG_RECORD_S is also taken as likely in milliseconds: a bench's
+ * first sample after switching lies at microseconds to tens of them (its electrical artefact: common practice), so
+ * 1 us written in ms reads 0.001 s, and a 9 s record 9000 s, which the 2.8-hour rule alone let pass.
+ */
+export const LATE_FIRST_SAMPLE_S = 1e-3;
+export const LONG_RECORD_S = 1e3;
+
+/**
  * A record longer than a cooling or heating curve of a power device and its
  * cooling plausibly runs (minutes, an hour for a large heatsink) is more
  * likely written in milliseconds under a time_s header; the analysis goes on
@@ -19,11 +27,16 @@ export const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
  * analysis uses (resolve-analysis-inputs.ts).
  */
 export function timeUnitWarning(file: TransientFile, parameters: Pick<AnalysisParameters, 'early_time_end_s'>): string[] {
+  const first_s = file.time_s[0];
   const end_s = file.time_s[file.time_s.length - 1];
-  if (!(end_s > LONGEST_PLAUSIBLE_RECORD_S)) return [];
+  const tooLong = end_s > LONGEST_PLAUSIBLE_RECORD_S;
+  if (!tooLong && !(end_s > LONG_RECORD_S && first_s >= LATE_FIRST_SAMPLE_S)) return [];
   const windowEnd_s = parameters.early_time_end_s ?? LATEST_WINDOW_END_S;
+  const seen = tooLong
+    ? `the record ends at time_s = ${end_s} s, ${(end_s / 3600).toFixed(1)} hours after the power step, longer than a single transient plausibly runs`
+    : `the record runs from time_s = ${first_s} s to ${end_s} s, ${(end_s / 3600).toFixed(1)} hours, as a record of 1 us to seconds does when written in milliseconds`;
   return [
-    `the record ends at time_s = ${end_s} s, ${(end_s / 3600).toFixed(1)} hours after the power step, longer than a single transient plausibly runs: ` +
+    `${seen}: ` +
       'if the times are in milliseconds, divide them by 1000 (time_s is in seconds) and analyse again. As read, the time constants and the structure function are 1000 times too slow, ' +
       `and Rth total and Tj(0) are unreliable too: the sqrt(t) window, which ends by time_s = ${windowEnd_s} s, then lies within the first ${formatMicroseconds(windowEnd_s / 1000)} of the real record, ` +
       'inside the electrical artefact after switching, so the value at t = 0 is extrapolated from the wrong samples.',

@@ -33,6 +33,11 @@ export function givenEarlyTimeWindow(time_s: Float64Array, start_s: number | und
   if (end !== undefined && end < 0) {
     throw new HeatpathError('PARAM_INVALID', `early_time_end_s = ${end_s} s is before the first sample (${record}): give an end within the record, in seconds`, { parameter: 'early_time_end_s' });
   }
+  // An end past the last sample was clipped to it: a sqrt(t) window over the whole record, whose T(0) moved Rth
+  // total by 5 % without a word; ends in milliseconds are the likely mistake.
+  if (end_s !== undefined && end_s > time_s[count - 1]) {
+    throw new HeatpathError('PARAM_INVALID', `early_time_end_s = ${end_s} s is after the last sample (${record}): give an end within the record, in seconds (the sqrt(t) law holds only while heat is in the chip, some microseconds to milliseconds)`, { parameter: 'early_time_end_s' });
+  }
   if (start !== undefined && end !== undefined && end - start + 1 < MIN_OVERRIDE_WINDOW_SAMPLES) {
     throw new HeatpathError('PARAM_INVALID', `the early-time window ${start_s} s to ${end_s} s holds fewer than ${MIN_OVERRIDE_WINDOW_SAMPLES} samples (${record}): widen it`, { parameter: 'early_time_start_s' });
   }
