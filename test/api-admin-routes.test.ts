@@ -217,6 +217,8 @@ describe('calibrations', () => {
     expect(fitted.statusCode, fitted.body).toBe(201);
     const { calibration, calibration_id } = fitted.json();
     expect(calibration.warnings).toEqual([expect.stringMatching(/millivolts/)]);
+    // Also at the top level, where an upload's answer has its warnings and a bench script looks for them.
+    expect(fitted.json().warnings).toEqual(calibration.warnings);
     const got = await context.app.inject({ url: `/v1/calibrations/${calibration_id}`, headers: bearer('reader') });
     expect(got.json().calibration.warnings).toEqual(calibration.warnings);
     const { warnings: _warnings, ...withoutWarnings } = calibration;

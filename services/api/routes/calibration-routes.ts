@@ -48,12 +48,17 @@ export const calibrationRoutes: FastifyPluginAsyncTypebox<{ store: TransientStor
         tags: ['calibrations'],
         summary: 'Fit or store a TSP calibration',
         body: CalibrationRequestSchema,
-        response: { 201: CalibrationRecordSchema },
+        response: {
+          201: Type.Object({
+            ...CalibrationRecordSchema.properties,
+            warnings: Type.Array(Type.String(), { description: "The calibration's warnings (a sweep in kelvin, a two-point fit, ...), as calibration.warnings: at the top level like an upload's answer, for scripts that read it there." }),
+          }),
+        },
       },
     },
     async (request, reply) => {
       const record = await store.putCalibration(calibrationFrom(request.body), request.apiKey!.name);
-      return reply.status(201).header('location', `/v1/calibrations/${record.calibration_id}`).send(withLinks(record));
+      return reply.status(201).header('location', `/v1/calibrations/${record.calibration_id}`).send({ ...withLinks(record), warnings: record.calibration.warnings ?? [] });
     },
   );
 
