@@ -41,7 +41,7 @@ describe('one calibration for several voltage channels', () => {
     for (const result of results) {
       const warning = result.quality.warnings.find((w) => sharedWarning.test(w));
       expect(warning).toMatch(/all 2 voltage channels of this file \(voltage_V@D1, voltage_V@D2\)/);
-      expect(warning).toMatch(/split the file into one file per channel \(or upload each channel on its own\)/);
+      expect(warning).toMatch(/give each channel its own, with --calibration D2=CAL\.json on the command line .* or calibration_id@D2=<id>/);
     }
   });
 

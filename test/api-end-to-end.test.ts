@@ -1,17 +1,10 @@
-import { mkdtemp, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
-import { pino } from 'pino';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.js';
 import { resultArtifacts } from '../shared/analysis/result-artifacts.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
-import { startApi, type RunningApi } from '../services/api/start-api.js';
-import { loadServiceConfig } from '../services/config/service-config.js';
-import { startWorkers, type RunningWorkers } from '../workers/main.js';
 import { bearer, testTokens } from './support/api-test-app.js';
+import { startRunningService } from './support/running-service.js';
 import { eventually } from './support/queue-test-fixture.js';
-import { deleteKeysWithPrefix, randomPrefix, testRedis } from './support/redis-connection.js';
 import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-upload.js';
 
 /**
@@ -23,36 +16,13 @@ import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-up
 const csv = syntheticTransientCsv(31, 100);
 const fileName = 'bench-7-d3.csv';
 
-let api: RunningApi;
-let workers: RunningWorkers;
 let baseUrl: string;
 let cleanup: () => Promise<void>;
 
 beforeAll(async () => {
-  const redis = await testRedis();
-  const dataDir = await mkdtemp(join(tmpdir(), 'heatpath-e2e-'));
-  const prefix = randomPrefix();
-  const config = loadServiceConfig({
-    PORT: '0',
-    HOST: '127.0.0.1',
-    REDIS_URL: redis.url,
-    HEATPATH_DATA_DIR: dataDir,
-    HEATPATH_QUEUE_PREFIX: prefix,
-    HEATPATH_WORKER_PROCESSES: '1',
-    HEATPATH_API_KEYS: Object.entries(testTokens).map(([role, token]) => `${role}-key:${role}:${token}`).join(','),
-  });
-  const logger = pino({ level: 'silent' });
-  api = await startApi(config, logger);
-  workers = await startWorkers({ config, logger, metricsRegistry: api.app.metricsRegistry });
-  const address = api.app.server.address();
-  if (address === null || typeof address === 'string') throw new Error('the API does not listen on a TCP port');
-  baseUrl = `http://127.0.0.1:${address.port}`;
-  cleanup = async () => {
-    await api.close();
-    await workers.close();
-    await deleteKeysWithPrefix(redis.url, prefix);
-    await rm(dataDir, { recursive: true, force: true });
-  };
+  const service = await startRunningService('heatpath-e2e-');
+  baseUrl = service.baseUrl;
+  cleanup = () => service.close();
 });
 afterAll(async () => cleanup?.());
 

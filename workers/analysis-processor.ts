@@ -6,6 +6,7 @@ import { HeatpathError, isHeatpathError } from '../shared/errors/heatpath-error.
 import { parseTransient } from '../shared/input/parse-transient.js';
 import type { TransientFile } from '../shared/input/transient-file.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
+import type { Calibration } from '../shared/schemas/calibration.js';
 import { blockingStoreIo } from '../services/store/store-io.js';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
@@ -112,8 +113,9 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
     await store.checkAnswers();
     throw new HeatpathError('STORED_INPUT_MISSING', `the raw transient of upload ${data.upload_id} (SHA-256 ${data.input_sha256}) is not in the store`, { file: upload.file_name });
   }
-  const calibration = data.calibration_id ? await store.getCalibration(data.calibration_id) : null;
-  if (data.calibration_id && !calibration) throw new UnrecoverableError(`calibration ${data.calibration_id} is not in the store`);
+  const calibration = data.calibration_id ? await storedCalibration(data.calibration_id) : undefined;
+  const channelCalibrations = new Map<string, Calibration>();
+  for (const [channel, id] of Object.entries(data.channel_calibration_ids ?? {})) channelCalibrations.set(channel, await storedCalibration(id));
 
   const started = performance.now();
   const parsed = await parsedTransient(data.input_sha256, bytes, upload);
@@ -124,7 +126,8 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
       fileName: upload.file_name,
       format: upload.format,
       power: data.power ?? undefined,
-      calibration: calibration?.calibration,
+      calibration,
+      channelCalibrations,
       sample: upload.sample_id,
       parameters: data.parameters,
     },
@@ -145,6 +148,7 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
     parameters: data.parameters,
     power: data.power,
     calibration_id: data.calibration_id,
+    ...(data.channel_calibration_ids !== undefined ? { channel_calibration_ids: data.channel_calibration_ids } : {}),
     batch_id: data.batch_id,
     finished_at: new Date().toISOString(),
     duration_ms: Math.round(performance.now() - started),
@@ -154,6 +158,12 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
   // Another execution of this run stored the result first: notify with that one, whose finished_at names the same delivery.
   await notifyCompleted(wrote ? record : ((await store.getResult(jobId)) ?? record), upload);
   return { job_id: jobId, sample_id: upload.sample_id, channels: results.length, wrote_result: wrote };
+}
+
+async function storedCalibration(id: string): Promise<Calibration> {
+  const record = await store.getCalibration(id);
+  if (!record) throw new UnrecoverableError(`calibration ${id} is not in the store`);
+  return record.calibration;
 }
 
 /** The upload's samples: as the API kept them, else parsed here and kept for the next analysis of the same bytes (an archive reprocess). */

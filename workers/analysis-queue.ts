@@ -20,6 +20,8 @@ export interface AnalysisJobData {
   parameters: AnalysisParameters;
   power: Power | null;
   calibration_id: string | null;
+  /** Channels' own calibration ids (UploadRecord.channel_calibration_ids). */
+  channel_calibration_ids?: Record<string, string>;
   batch_id: string | null;
 }
 
@@ -210,6 +212,7 @@ function jobDataFor(upload: UploadRecord, batchId: string | null): AnalysisJobDa
     parameters: upload.parameters,
     power: upload.power,
     calibration_id: upload.calibration_id,
+    channel_calibration_ids: upload.channel_calibration_ids,
     batch_id: batchId,
   };
 }

@@ -6,6 +6,8 @@ import { parseTransient } from '../shared/input/parse-transient.js';
 import { checkVoltagesCalibrated } from '../shared/analysis/check-voltages-calibrated.js';
 import { checkZthRises } from '../shared/analysis/check-zth-rises.js';
 import { resolveAnalysisInputs } from '../shared/analysis/resolve-analysis-inputs.js';
+import { channelCalibrations } from '../shared/analysis/channel-calibrations.js';
+import type { Calibration } from '../shared/schemas/calibration.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
 import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
@@ -113,11 +115,22 @@ export class BatchReprocessor {
       if (file === null) return;
       // As the job's analysis resolves them (its early-time window checked with them), and as the upload checks them.
       const { parameters, power, channelPowers } = resolveAnalysisInputs(file, { parameters: job.parameters, power: job.power ?? undefined }, job.file_name);
-      const calibration = job.calibration_id === null || file.quantity !== 'voltage_V' ? null : await this.store.getCalibration(job.calibration_id);
-      // The upload's own calibration was checked against its voltages when it was uploaded.
-      if (calibration !== null && batch.calibration_id !== null) checkVoltagesCalibrated(file, calibration.calibration, job.file_name);
+      const voltages = file.quantity === 'voltage_V';
+      const all = job.calibration_id === null || !voltages ? null : await this.store.getCalibration(job.calibration_id);
+      let missing = all === null && voltages && job.calibration_id !== null;
+      const own = new Map<string, Calibration>();
+      for (const [channel, id] of Object.entries(voltages ? (job.channel_calibration_ids ?? {}) : {})) {
+        const stored = await this.store.getCalibration(id);
+        if (stored === null) missing = true;
+        else own.set(channel, stored.calibration);
+      }
       // Voltages without a stored calibration are the job's own failure (it names the missing calibration).
-      if (file.quantity !== 'voltage_V' || calibration !== null) checkZthRises(file, { parameters, power, channelPowers }, calibration?.calibration, job.file_name);
+      if (!missing) {
+        const calibrations = channelCalibrations(file, { calibration: all?.calibration, channelCalibrations: own }, job.file_name);
+        // The upload's own calibrations were checked against its voltages when it was uploaded.
+        if (calibrations !== undefined && batch.calibration_id !== null) checkVoltagesCalibrated(file, calibrations, job.file_name);
+        checkZthRises(file, { parameters, power, channelPowers }, calibrations, job.file_name);
+      }
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`, {}, error.hint);
@@ -253,12 +266,20 @@ function cancellationNote(notRun: number, willFinish: number): string {
   return `${jobs(willFinish)} already running will still finish and count as done or failed; the other ${jobs(notRun)} without an outcome will not run.`;
 }
 
-/** The job a batch makes of one upload: its parameters and calibration over the upload's, under the batch's algorithm version. */
+/**
+ * The job a batch makes of one upload: its parameters and calibration over the upload's, under the batch's algorithm
+ * version. A batch's calibration replaces the upload's for every channel, channels' own included.
+ */
 export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
   const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
   const calibrationId = batch.calibration_id ?? upload.calibration_id;
-  const jobId = jobIdFor({ input_sha256: upload.input_sha256, sample_id: upload.sample_id, parameters, power: upload.power, calibration_sha256: calibrationId, algorithm: batch.algorithm });
-  return { ...upload, parameters, calibration_id: calibrationId, job_id: jobId };
+  const channelCalibrationIds = batch.calibration_id === null ? upload.channel_calibration_ids : undefined;
+  const jobId = jobIdFor({
+    input_sha256: upload.input_sha256, sample_id: upload.sample_id, parameters, power: upload.power,
+    calibration_sha256: calibrationId, channel_calibration_sha256: channelCalibrationIds, algorithm: batch.algorithm,
+  });
+  const { channel_calibration_ids: _replaced, ...rest } = upload;
+  return { ...rest, parameters, calibration_id: calibrationId, ...(channelCalibrationIds !== undefined ? { channel_calibration_ids: channelCalibrationIds } : {}), job_id: jobId };
 }
 
 function uniqueByJobId(jobs: UploadRecord[]): UploadRecord[] {

@@ -14,7 +14,7 @@ export const analysisOptions = {
   'power-w': { type: 'string' },
   'current-a': { type: 'string' },
   'voltage-v': { type: 'string' },
-  calibration: { type: 'string' },
+  calibration: { type: 'string', multiple: true },
   kind: { type: 'string' },
   method: { type: 'string' },
   'points-per-decade': { type: 'string' },
@@ -27,7 +27,10 @@ export const powerAndCalibrationUsage = `  --power-w P             heating power
                           heating power as current x voltage
                           (default: power_W or current_A and voltage_V from the
                           file's "# key: value" header; zth_K_per_W input needs none)
-  --calibration CAL.json  TSP calibration for voltage_V input (heatpath calibrate)`;
+  --calibration CAL.json  TSP calibration for voltage_V input (heatpath calibrate);
+                          CH=CAL.json gives channel CH (the file's voltage_V@CH
+                          column) its own, repeated per channel; the others
+                          take the one without CH=`;
 
 export const analysisParametersUsage = `  --kind cooling|heating  default: the file's "# kind:" header, else cooling
   --method M              time-constant spectrum deconvolution: posterior-mean
@@ -38,16 +41,43 @@ export const analysisParametersUsage = `  --kind cooling|heating  default: the f
 
 export interface AnalysisInputs {
   power?: Power;
+  /** For every channel without one of its own. */
   calibration?: Calibration;
+  /** Channels' own, by channel name (`--calibration T2=CAL.json`). */
+  channelCalibrations: Map<string, Calibration>;
   parameters: Partial<AnalysisParameters>;
 }
 
-/** Power, calibration (read from its file) and parameters from parsed options. */
+/** Power, calibrations (read from their files) and parameters from parsed options. */
 export async function analysisInputsFromOptions(values: Record<string, unknown>): Promise<AnalysisInputs> {
   const power = powerFromOptions(values);
   const parameters = parametersFromOptions(values);
-  const calibration = values.calibration ? await readCalibrationFile(values.calibration as string) : undefined;
-  return { power, calibration, parameters };
+  const { all, own } = calibrationOptions(values.calibration as string | string[] | undefined);
+  const calibration = all !== undefined ? await readCalibrationFile(all) : undefined;
+  const channelCalibrations = new Map<string, Calibration>();
+  for (const [channel, path] of own) channelCalibrations.set(channel, await readCalibrationFile(path));
+  return { power, calibration, channelCalibrations, parameters };
+}
+
+/**
+ * `--calibration CAL.json` (all channels, once) and `--calibration CH=CAL.json` (channel CH's own, once per channel).
+ * A path whose part before an `=` holds no directory separator reads as a channel: write `./a=b.json` for such a file.
+ */
+export function calibrationOptions(given: string | string[] | undefined): { all: string | undefined; own: Map<string, string> } {
+  let all: string | undefined;
+  const own = new Map<string, string>();
+  for (const value of [given ?? []].flat()) {
+    const channel = /^([^=/\\]+)=(.+)$/.exec(value);
+    if (channel === null) {
+      if (all !== undefined) throw new HeatpathError('CLI_USAGE', `--calibration for all channels is given twice (${all}, ${value}); give a channel its own as --calibration CH=CAL.json`);
+      all = value;
+    } else {
+      const [, name, path] = channel;
+      if (own.has(name)) throw new HeatpathError('CLI_USAGE', `--calibration ${name}=... is given twice (${own.get(name)}, ${path}); give each channel one calibration`);
+      own.set(name, path);
+    }
+  }
+  return { all, own };
 }
 
 function powerFromOptions(values: Record<string, unknown>): Power | undefined {

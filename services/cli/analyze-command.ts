@@ -57,11 +57,11 @@ export async function runAnalyzeCommand(argv: string[], print: (text: string) =>
   }
 
   const format = choiceOption('format', values.format as string | undefined, ['text', 'json'] as const) ?? 'text';
-  const { power, calibration, parameters } = await analysisInputsFromOptions(values);
+  const { power, calibration, channelCalibrations, parameters } = await analysisInputsFromOptions(values);
   const outRoot = values.out as string | undefined;
   const createdAt = new Date().toISOString();
 
-  const run = await analyzeFiles(positionals, { power, calibration, parameters, outRoot, createdAt });
+  const run = await analyzeFiles(positionals, { power, calibration, channelCalibrations, parameters, outRoot, createdAt });
   for (const { file, result, outDir } of run.results) {
     print(format === 'json' ? JSON.stringify(result) : formatResultSummary(file, result, outDir));
   }
@@ -73,6 +73,7 @@ export async function runAnalyzeCommand(argv: string[], print: (text: string) =>
 interface AnalyzeFilesOptions {
   power?: Power;
   calibration?: Calibration;
+  channelCalibrations?: ReadonlyMap<string, Calibration>;
   parameters: Partial<AnalysisParameters>;
   outRoot?: string;
   createdAt: string;
@@ -110,7 +111,7 @@ export async function analyzeFiles(files: (string | ReadTransientFile)[], option
       const parsed = typeof entry === 'string' ? parseTransient(bytes, file) : entry.parsed;
       meta = { meta: parsed.meta, meta_lines: parsed.meta_lines };
       channelResults = analyzeTransientFile(
-        { bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, parameters: options.parameters },
+        { bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, channelCalibrations: options.channelCalibrations, parameters: options.parameters },
         options.createdAt,
       );
     } catch (error) {

@@ -11,6 +11,8 @@ export interface ReprocessSettings {
   power?: Power;
   /** The calibration's id (calibrationIdOf, shared/schemas/calibration-id.ts), or null. */
   calibration_sha256: string | null;
+  /** Channels' own calibration ids by channel name (`--calibration T2=CAL.json`). */
+  channel_calibration_sha256?: Record<string, string>;
   /** The sample id a file is uploaded under (sent to a server), or null for a local run, which has no samples. */
   sampleIdOf: (relativePath: string) => string | null;
 }
@@ -32,14 +34,14 @@ export function archiveFileJobId(
   input_sha256: string,
   settings: ReprocessSettings,
 ): { jobId: string; parsed?: TransientFile } {
-  const { calibration_sha256 } = settings;
+  const { calibration_sha256, channel_calibration_sha256 } = settings;
   const sample_id = settings.sampleIdOf(relativePath);
   try {
     const parsed = parseTransient(bytes, fileName);
     const { parameters, power } = resolveAnalysisInputs(parsed, settings, fileName);
-    return { jobId: jobIdFor({ input_sha256, sample_id, parameters, power: power ?? null, calibration_sha256 }), parsed };
+    return { jobId: jobIdFor({ input_sha256, sample_id, parameters, power: power ?? null, calibration_sha256, channel_calibration_sha256 }), parsed };
   } catch (error) {
     if (!isUserError(error)) throw error;
-    return { jobId: jobIdFor({ input_sha256, sample_id, parameters: settings.parameters, power: settings.power ?? null, calibration_sha256 }) };
+    return { jobId: jobIdFor({ input_sha256, sample_id, parameters: settings.parameters, power: settings.power ?? null, calibration_sha256, channel_calibration_sha256 }) };
   }
 }

@@ -4,7 +4,7 @@ import { basename, dirname, extname, join, relative, resolve, sep } from 'node:p
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
-import { analysisInputsFromOptions, type AnalysisInputs } from './analysis-options.js';
+import { analysisInputsFromOptions, calibrationOptions, type AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
 import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
@@ -34,7 +34,8 @@ the files in progress finish; press it again to stop at once).
   --concurrency N         uploads in flight (server mode, default 4)
   --calibration CAL.json  TSP calibration file of heatpath calibrate; on a server
                           it is stored there first, as submit does, and named by
-                          its id (or name a stored one with --calibration-id)
+                          its id (or name a stored one with --calibration-id);
+                          CH=CAL.json gives channel CH its own (with --local)
 ${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}
 
 Exit codes: 0 all done, 2 a file or option must be fixed (takes precedence),
@@ -65,7 +66,7 @@ export async function runReprocessCommand(
     local: { type: 'boolean' },
     out: { type: 'string' },
     concurrency: { type: 'string' },
-    calibration: { type: 'string' },
+    calibration: { type: 'string', multiple: true },
     help: { type: 'boolean', short: 'h' },
   });
   if (values.help) {
@@ -84,7 +85,11 @@ export async function runReprocessCommand(
   const inputs = await analysisInputsFromOptions(values.local ? values : { ...values, calibration: undefined });
   const upload = values.local ? undefined : { target: uploadTargetFrom(values, 'reprocess'), metadata: uploadMetadataFrom(values) };
   if (upload && values.calibration !== undefined) {
-    const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, values.calibration as string);
+    const { all, own } = calibrationOptions(values.calibration as string[]);
+    if (own.size > 0 || all === undefined) {
+      throw new HeatpathError('CLI_USAGE', "a channel's own calibration (--calibration CH=CAL.json) is read with --local; on a server give one --calibration CAL.json for all channels, or upload with calibration_id@CH fields");
+    }
+    const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, all);
     if (exitCode !== null) return exitCode;
   }
   const settings: ReprocessSettings = {
@@ -92,6 +97,7 @@ export async function runReprocessCommand(
     power: inputs.power,
     // The id the uploads name (a file's given by the server, as calibrate prints it): one calibration is one setting however it is given.
     calibration_sha256: upload ? upload.metadata.get('calibration_id') : inputs.calibration ? calibrationIdOf(inputs.calibration) : null,
+    channel_calibration_sha256: Object.fromEntries([...inputs.channelCalibrations].map(([channel, calibration]) => [channel, calibrationIdOf(calibration)])),
     sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath)),
   };
   const target = upload ? new URL(upload.target.server).href : 'local';

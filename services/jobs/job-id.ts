@@ -16,6 +16,8 @@ export interface JobIdentity {
   power: Power | null;
   /** SHA-256 of the calibration's canonical JSON (its calibration id), or null. */
   calibration_sha256: string | null;
+  /** Channels' own calibration ids by channel name; omitted or empty: none (and the id is what it was before channels had their own). */
+  channel_calibration_sha256?: Readonly<Record<string, string>>;
   /** Defaults to the running ALGORITHM_VERSION. */
   algorithm?: string;
 }
@@ -33,6 +35,7 @@ export function jobIdFor(identity: JobIdentity): string {
   const determinants = canonicalJson({
     algorithm,
     calibration_sha256: identity.calibration_sha256,
+    channel_calibration_sha256: Object.keys(identity.channel_calibration_sha256 ?? {}).length > 0 ? identity.channel_calibration_sha256 : undefined,
     input_sha256: identity.input_sha256,
     parameters: { ...defaultAnalysisParameters, ...identity.parameters },
     power: identity.power,

@@ -21,7 +21,10 @@ export interface UploadRecord {
   cycle_count: number | null;
   tags: string[];
   power: Power | null;
+  /** The calibration of every channel without one of its own. */
   calibration_id: string | null;
+  /** Channels' own calibrations (a module's dies each have their own TSP) by channel name; absent in uploads without. */
+  channel_calibration_ids?: Record<string, string>;
   parameters: AnalysisParameters;
   /** The job that analyses this upload with these parameters. */
   job_id: string;
@@ -41,6 +44,8 @@ export interface ResultRecord {
   parameters: AnalysisParameters;
   power: Power | null;
   calibration_id: string | null;
+  /** As the upload's; each channel's result names its calibration in its provenance. */
+  channel_calibration_ids?: Record<string, string>;
   /** The reprocessing batch that asked for this job, if any. */
   batch_id: string | null;
   finished_at: string;

@@ -24,6 +24,7 @@ import { channelPowerLines, resolveAnalysisInputs } from './resolve-analysis-inp
 import { calibrationIdOf } from '../schemas/calibration-id.js';
 import { headerSample } from '../input/header-label.js';
 import { calibrationSampleWarning } from './calibration-sample-warning.js';
+import { anyCalibrationGiven, channelCalibrations } from './channel-calibrations.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -37,8 +38,10 @@ export interface TransientFileInput {
   format?: 'csv' | 'json';
   /** Heating power; omitted: from the file's power_W or current_A and voltage_V metadata. Not used for zth_K_per_W input (a given or file one gets a warning, so that the CLI and the service, which resolves the file's power on upload, agree). */
   power?: Power;
-  /** Needed for voltage_V input; not used for any other (a given one gets a warning). */
+  /** Needed for voltage_V input, for every channel without its own in `channelCalibrations`; not used for any other input (a given one gets a warning). */
   calibration?: Calibration;
+  /** Channels' own calibrations by channel name (a module's dies each have their own TSP); a name the file does not have is an error. */
+  channelCalibrations?: ReadonlyMap<string, Calibration>;
   /** The device measured, checked against the calibration's: the service's sample id; omitted: the file's `# sample:` line. */
   sample?: string;
   /** Omitted fields: the file's `kind` metadata, then the schema defaults. */
@@ -53,21 +56,17 @@ export interface TransientFileInput {
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
   const file = input.parsed ?? parseTransient(input.bytes, input.fileName, input.format);
   const { parameters, power, channelPowers, warnings: headerWarnings } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
-  if (file.quantity === 'voltage_V' && !input.calibration) {
-    throw new HeatpathError('CALIBRATION_REQUIRED', `${file.channels.length} voltage_V channel(s) and no calibration`, { file: input.fileName });
-  }
   // Zth input needs neither power nor calibration, temperature input no calibration: what is given and
   // not used is neither recorded as used nor silently dropped.
-  const calibration = file.quantity === 'voltage_V' ? input.calibration : undefined;
+  const calibrations = channelCalibrations(file, input, input.fileName);
   const resolvedPower_W = power ? heatingPower_W(power) : null;
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
     ...headerWarnings,
-    ...sharedCalibrationWarning(file),
+    ...sharedCalibrationWarning(file, input.channelCalibrations),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
-    ...(input.calibration && !calibration ? [unusedCalibrationWarning(file.quantity)] : []),
-    ...(calibration ? calibrationSampleWarning(calibration, input.sample ?? headerSample(file.meta)) : []),
+    ...(anyCalibrationGiven(input) && !calibrations ? [unusedCalibrationWarning(file.quantity)] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
   const provenance = {
@@ -76,12 +75,17 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     method: parameters.method,
     parameters,
     input_sha256: sha256(input.bytes),
-    calibration_sha256: calibration ? calibrationIdOf(calibration) : null,
+    calibration_sha256: null,
     created_at: createdAt,
   };
-  return eachChannel(file, { power_W, channelPowers }, input.fileName, (channel, channelPower_W) =>
-    analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, provenance, input.fileName, inputWarnings),
-  );
+  const sample = input.sample ?? headerSample(file.meta);
+  return eachChannel(file, { power_W, channelPowers }, input.fileName, (channel, channelPower_W) => {
+    // Each channel's result names the calibration that converted it.
+    const calibration = calibrations?.get(channel.name);
+    const channelProvenance = { ...provenance, calibration_sha256: calibration ? calibrationIdOf(calibration) : null };
+    const warnings = [...inputWarnings, ...(calibration ? calibrationSampleWarning(calibration, sample) : [])];
+    return analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, channelProvenance, input.fileName, warnings);
+  });
 }
 
 /**
@@ -175,15 +179,19 @@ function calibratedTemperatureUnitWarning(temperature_C: Float64Array): string[]
 
 /**
  * A file of several voltage channels is usually several devices measured
- * together, each with its own TSP; the one calibration given converts them
- * all, which the results say.
+ * together, each with its own TSP; where the one calibration given converts
+ * two or more of them, the results say so and how to give each its own.
  */
-function sharedCalibrationWarning(file: TransientFile): string[] {
-  if (file.quantity !== 'voltage_V' || file.channels.length < 2) return [];
-  const names = file.channels.map((channel) => `voltage_V@${channel.name}`).join(', ');
+function sharedCalibrationWarning(file: TransientFile, own: ReadonlyMap<string, Calibration> | undefined): string[] {
+  if (file.quantity !== 'voltage_V') return [];
+  const shared = file.channels.filter((channel) => !own?.has(channel.name));
+  if (shared.length < 2) return [];
+  const names = shared.map((channel) => `voltage_V@${channel.name}`).join(', ');
+  const example = shared[1].name;
   return [
-    `one calibration converted all ${file.channels.length} voltage channels of this file (${names}) to temperature: ` +
-      'devices with calibrations of their own must be analysed with them, so split the file into one file per channel (or upload each channel on its own) and give each its calibration.',
+    `one calibration converted ${shared.length === file.channels.length ? 'all ' : ''}${shared.length} voltage channels of this file (${names}) to temperature: ` +
+      `devices with calibrations of their own must be analysed with them: give each channel its own, with --calibration ${example}=CAL.json on the command line (repeat it per channel), ` +
+      `or calibration_id@${example}=<id> (an inline calibration@${example} in the multipart meta) for an upload.`,
   ];
 }
 

@@ -7,12 +7,12 @@ import { channelLocation } from './analyze-transient-file.js';
 /**
  * Voltages a calibration does not cover fail the analysis (CALIBRATION_OUT_OF_RANGE). Checked with the conversion
  * the analysis makes before work is accepted (an upload, a batch on its first upload), so that the bench hears of it
- * instead of a job failing later; the error names the channel's column.
+ * instead of a job failing later; the error names the channel's column. `calibrations` as channelCalibrations gives them.
  */
-export function checkVoltagesCalibrated(file: TransientFile, calibration: Calibration, fileName: string): void {
+export function checkVoltagesCalibrated(file: TransientFile, calibrations: ReadonlyMap<string, Calibration>, fileName: string): void {
   for (const channel of file.channels) {
     try {
-      voltageToTemperature(calibration, file.time_s, channel.values);
+      voltageToTemperature(calibrations.get(channel.name)!, file.time_s, channel.values);
     } catch (error) {
       if (error instanceof HeatpathError && error.location.file === undefined) throw error.at(channelLocation(file, channel.name, fileName));
       throw error;

@@ -10,18 +10,19 @@ import { channelZth, eachChannel } from './analyze-transient-file.js';
  * A curve of the other kind than stated (a heating curve uploaded without `kind`, read as cooling) gives a Zth that
  * ends at or below zero, which fails the analysis (ANALYSIS_NOT_ANALYSABLE). Checked with the analysis's own Zth of
  * each channel before work is accepted, so that the bench hears of it at once, in the job failure's code and words,
- * instead of from a failed job. `power` and `channelPowers` as resolveAnalysisInputs gives them; the calibration
- * for voltage input only. The Zth is built (1.3 ms of the API's CPU for a 100 kB record, a quarter of an upload's)
+ * instead of from a failed job. `power` and `channelPowers` as resolveAnalysisInputs gives them; each channel's
+ * calibration (channelCalibrations) for voltage input only. The Zth is built (1.3 ms of the API's CPU for a 100 kB record, a quarter of an upload's)
  * only for a channel whose ends do not already show the kind stated.
  */
 export function checkZthRises(
   file: TransientFile,
   inputs: { parameters: AnalysisParameters; power: Power | undefined; channelPowers: Map<string, Power> | undefined },
-  calibration: Calibration | undefined,
+  calibrations: ReadonlyMap<string, Calibration> | undefined,
   fileName: string,
 ): void {
   const power_W = file.quantity === 'zth_K_per_W' || inputs.power === undefined ? null : heatingPower_W(inputs.power);
   eachChannel(file, { power_W, channelPowers: inputs.channelPowers }, fileName, (channel, channelPower_W) => {
+    const calibration = calibrations?.get(channel.name);
     if (!endsShowStatedKind(file, channel.values, inputs.parameters.kind, calibration)) channelZth(file, channel.values, inputs.parameters, channelPower_W, calibration);
   });
 }

@@ -36,7 +36,8 @@ export const errorCatalogue = {
   CALIBRATION_OUT_OF_RANGE: { status: 422, title: 'A measured voltage lies outside the calibrated range', hint: 'Extend the calibration sweep to cover the measured temperatures.' },
   CALIBRATION_BAD_FILE: { status: 400, title: 'The calibration file is not valid', hint: 'Create it with `heatpath calibrate POINTS.csv --out CAL.json`.' },
   CALIBRATION_POINTS_COLUMNS: { status: 400, title: 'The calibration points need exactly the columns temperature_C and voltage_V', hint: 'Write the header temperature_C,voltage_V (either order) and one row per calibration point.' },
-  CALIBRATION_REQUIRED: { status: 422, title: 'Voltage input needs a calibration', hint: 'Give a calibration to convert voltage_V to temperature: --calibration CAL.json on the command line; calibration_id (a stored one) or an inline calibration in the multipart meta field for an upload.' },
+  CALIBRATION_REQUIRED: { status: 422, title: 'Voltage input needs a calibration', hint: 'Give a calibration to convert voltage_V to temperature: --calibration CAL.json on the command line; calibration_id (a stored one) or an inline calibration in the multipart meta field for an upload. A channel may have its own: --calibration T2=CAL.json, calibration_id@T2, or calibration@T2 in meta.' },
+  CALIBRATION_CHANNEL_NOT_FOUND: { status: 400, title: "A channel's own calibration names a channel the file does not have", hint: 'Name a channel of the file\'s value columns (voltage_V@T2 is channel T2; a column without @ is channel 1), as the detail lists them.' },
 
   // ---- analysis parameters and physics ----
   PARAM_INVALID: { status: 400, title: 'An analysis parameter is invalid', hint: 'The allowed values: `heatpath analyze --help` on the command line, /docs for the service.' },

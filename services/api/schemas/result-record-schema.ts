@@ -15,6 +15,7 @@ export const ResultRecordSchema = Type.Object({
   parameters: AnalysisParametersSchema,
   power: Type.Union([PowerSchema, Type.Null()]),
   calibration_id: nullableString,
+  channel_calibration_ids: Type.Optional(Type.Record(Type.String(), Type.String(), { description: "Channels' own calibrations by channel name; each channel's result names the one it was converted with (provenance.calibration_sha256)." })),
   batch_id: Type.Union([Type.String(), Type.Null()], { description: 'The reprocessing batch that asked for this job, if any.' }),
   finished_at: Type.String(),
   duration_ms: Type.Number(),

@@ -4,6 +4,16 @@ import { analysisParameterOverrides } from './analysis-parameter-overrides.js';
 
 const positive = (description: string) => Type.Number({ exclusiveMinimum: 0, description });
 
+const CALIBRATION_ID = Type.String({ pattern: '^[0-9a-f]{64}$', description: 'A stored calibration (POST /v1/calibrations); needed for voltage_V input.' });
+
+/** A channel's own calibration id, `calibration_id@T2` for the file's `voltage_V@T2` column (accept-transient-upload.ts). */
+export const CHANNEL_CALIBRATION_ID_FIELD = /^calibration_id@(.+)$/;
+/** A channel's own inline calibration in the multipart `meta`, `calibration@T2`. */
+export const CHANNEL_CALIBRATION_FIELD = /^calibration@(.+)$/;
+const channelCalibrationIdFields = {
+  [CHANNEL_CALIBRATION_ID_FIELD.source]: Type.String({ pattern: '^[0-9a-f]{64}$', description: "A channel's own stored calibration: calibration_id@T2 for the file's voltage_V@T2 column; channels without one take calibration_id." }),
+};
+
 const parameterFields = analysisParameterOverrides((schemaDefault) => `Default: the file's metadata (kind), else ${schemaDefault}.`);
 
 /**
@@ -21,17 +31,17 @@ export const UploadQuerySchema = Type.Object(
     power_W: Type.Optional(positive('Heating power step; or give current_A and voltage_V.')),
     current_A: Type.Optional(positive('Heating current (with voltage_V).')),
     voltage_V: Type.Optional(positive('Heating voltage (with current_A).')),
-    calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: 'A stored calibration (POST /v1/calibrations); needed for voltage_V input.' })),
+    calibration_id: Type.Optional(CALIBRATION_ID),
     file_name: Type.Optional(Type.String({ minLength: 1, maxLength: 255, description: 'Name recorded in results and error messages, and the stem of the netlists\' subcircuit names. Default: the multipart file\'s name, else <sample_id>.csv (or .json).' })),
     ...parameterFields,
   },
-  { additionalProperties: false },
+  { additionalProperties: false, patternProperties: channelCalibrationIdFields },
 );
 export type UploadQuery = Static<typeof UploadQuerySchema>;
 
-/** Multipart metadata: the query fields, plus an inline calibration (stored on upload). */
+/** Multipart metadata: the query fields, plus an inline calibration (stored on upload), for all channels or a channel's own (`calibration@T2`). */
 export const UploadMetadataSchema = Type.Object(
   { ...UploadQuerySchema.properties, calibration: Type.Optional(CalibrationSchema) },
-  { additionalProperties: false },
+  { additionalProperties: false, patternProperties: { ...channelCalibrationIdFields, [CHANNEL_CALIBRATION_FIELD.source]: CalibrationSchema } },
 );
 export type UploadMetadata = Static<typeof UploadMetadataSchema>;

@@ -12,6 +12,7 @@ import { headerLabel, headerSample } from '../../../shared/input/header-label.js
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
 import { unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
 import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
+import { channelCalibrations } from '../../../shared/analysis/channel-calibrations.js';
 import { checkZthRises } from '../../../shared/analysis/check-zth-rises.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
@@ -22,7 +23,7 @@ import { sha256Hex, type TransientStore } from '../../store/transient-store.js';
 import { JOB_PRIORITY, type AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { FailedJobRetry, MENDABLE_FAILURE_CODES } from '../../../workers/retry-failed-job.js';
 import type { JobState } from '../jobs/job-status.js';
-import type { UploadMetadata } from '../schemas/transient-metadata.js';
+import { CHANNEL_CALIBRATION_FIELD, CHANNEL_CALIBRATION_ID_FIELD, type UploadMetadata } from '../schemas/transient-metadata.js';
 import type { UploadRequest } from './read-upload-request.js';
 
 export interface UploadAnswer {
@@ -64,22 +65,34 @@ export async function acceptTransientUpload(
   // A power or kind that contradicts the file's header is used, and times that look like milliseconds are read as seconds: said here as in the result, so the bench hears of it now.
   warnings.push(...headerWarnings);
   const power = resolvedPower ?? null;
-  const given = await calibrationOf(store, metadata);
-  // Only voltage needs one; another would split the job (its id names the calibration) for a result that does not use it.
-  const calibration = transient.quantity === 'voltage_V' ? given : null;
-  if (given !== null && calibration === null) warnings.push(unusedCalibrationWarning(transient.quantity));
-  if (transient.quantity === 'voltage_V') {
-    if (calibration === null) throw new HeatpathError('CALIBRATION_REQUIRED', 'the file holds voltage_V; give calibration_id or an inline calibration', { file: upload.sourceName });
-    checkVoltagesCalibrated(transient, calibration.calibration, upload.sourceName);
-    warnings.push(...calibrationSampleWarning(calibration.calibration, metadata.sample_id));
+  const given = await calibrationsOf(store, metadata);
+  const calibrations = channelCalibrations(
+    transient,
+    { calibration: given.all?.calibration, channelCalibrations: new Map([...given.own].map(([name, own]) => [name, own.calibration])) },
+    upload.sourceName,
+  );
+  // Only voltage needs one, and only channels without their own the one for all; another would split the job (its id
+  // names the calibration) for a result that does not use it.
+  const usesAll = calibrations !== undefined && transient.channels.some((channel) => !given.own.has(channel.name));
+  const all = usesAll ? given.all : null;
+  const own = calibrations !== undefined ? given.own : new Map<string, GivenCalibration>();
+  if (calibrations === undefined && (given.all !== null || given.own.size > 0)) warnings.push(unusedCalibrationWarning(transient.quantity));
+  if (calibrations !== undefined && given.all !== null && !usesAll) warnings.push("calibration not used: every channel has a calibration of its own");
+  if (calibrations !== undefined) {
+    checkVoltagesCalibrated(transient, calibrations, upload.sourceName);
+    for (const calibration of new Set(calibrations.values())) warnings.push(...calibrationSampleWarning(calibration, metadata.sample_id));
   }
   // A curve of the other kind than stated (a heating curve sent without kind) would fail its job: refused now, in the job's words.
-  checkZthRises(transient, { parameters, power: resolvedPower, channelPowers }, calibration?.calibration, upload.sourceName);
+  checkZthRises(transient, { parameters, power: resolvedPower, channelPowers }, calibrations, upload.sourceName);
   warnings.push(...headerLabelWarnings(transient.meta, metadata));
   // Stored only once the upload is known good: a refused upload leaves nothing behind.
-  const calibrationId = calibration === null ? null : calibration.stored ? calibration.id : (await store.putCalibration(calibration.calibration, apiKey.name)).calibration_id;
+  const storedId = async (calibration: GivenCalibration) => (calibration.stored ? calibration.id : (await store.putCalibration(calibration.calibration, apiKey.name)).calibration_id);
+  const calibrationId = all === null ? null : await storedId(all);
+  const channelCalibrationIds: Record<string, string> = {};
+  for (const [name, calibration] of own) channelCalibrationIds[name] = await storedId(calibration);
+  const hasChannelCalibrations = Object.keys(channelCalibrationIds).length > 0;
   const inputSha256 = sha256Hex(upload.bytes);
-  const jobId = jobIdFor({ input_sha256: inputSha256, sample_id: metadata.sample_id, parameters, power, calibration_sha256: calibrationId });
+  const jobId = jobIdFor({ input_sha256: inputSha256, sample_id: metadata.sample_id, parameters, power, calibration_sha256: calibrationId, channel_calibration_sha256: channelCalibrationIds });
   const describe = (record: UploadRecord, state: JobState): UploadAnswer => ({
     upload_id: record.upload_id,
     job_id: record.job_id,
@@ -120,6 +133,7 @@ export async function acceptTransientUpload(
     tags: metadata.tags ?? [],
     power,
     calibration_id: calibrationId,
+    ...(hasChannelCalibrations ? { channel_calibration_ids: channelCalibrationIds } : {}),
     parameters,
     job_id: jobId,
     uploaded_by: apiKey.name,
@@ -263,18 +277,40 @@ function powerOf(metadata: UploadMetadata): Power | null {
   return null;
 }
 
-/** The calibration the request names (stored) or carries (inline, not stored yet); null when it gives none. */
-async function calibrationOf(store: TransientStore, metadata: UploadMetadata): Promise<{ calibration: Calibration; stored: boolean; id: string } | null> {
-  if (metadata.calibration !== undefined && metadata.calibration_id !== undefined) {
-    throw new HeatpathError('REQUEST_INVALID', 'give either calibration_id or an inline calibration, not both');
+/** A calibration the request names (stored) or carries (inline, not stored yet). */
+interface GivenCalibration {
+  calibration: Calibration;
+  stored: boolean;
+  id: string;
+}
+
+/**
+ * The calibrations the request gives: `all` (calibration_id or an inline calibration; null when none) and channels'
+ * own by channel name (calibration_id@T2, or calibration@T2 in the multipart meta).
+ */
+async function calibrationsOf(store: TransientStore, metadata: UploadMetadata): Promise<{ all: GivenCalibration | null; own: Map<string, GivenCalibration> }> {
+  const all = await givenCalibration(store, metadata.calibration_id, metadata.calibration, '');
+  const fields = metadata as Record<string, unknown>;
+  const own = new Map<string, GivenCalibration>();
+  for (const key of Object.keys(fields)) {
+    const channel = CHANNEL_CALIBRATION_ID_FIELD.exec(key)?.[1] ?? CHANNEL_CALIBRATION_FIELD.exec(key)?.[1];
+    if (channel === undefined || own.has(channel)) continue;
+    own.set(channel, (await givenCalibration(store, fields[`calibration_id@${channel}`] as string | undefined, fields[`calibration@${channel}`], `@${channel}`))!);
   }
-  if (metadata.calibration !== undefined) {
-    const calibration = validateCalibration(metadata.calibration, 'calibration');
+  return { all, own };
+}
+
+async function givenCalibration(store: TransientStore, id: string | undefined, inline: unknown, channel: string): Promise<GivenCalibration | null> {
+  if (inline !== undefined && id !== undefined) {
+    throw new HeatpathError('REQUEST_INVALID', `give either calibration_id${channel} or an inline calibration${channel}, not both`);
+  }
+  if (inline !== undefined) {
+    const calibration = validateCalibration(inline, `calibration${channel}`);
     return { calibration, stored: false, id: calibrationIdOf(calibration) };
   }
-  if (metadata.calibration_id === undefined) return null;
-  const record = await store.getCalibration(metadata.calibration_id);
-  if (!record) throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${metadata.calibration_id} is not stored`);
+  if (id === undefined) return null;
+  const record = await store.getCalibration(id);
+  if (!record) throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${id} (calibration_id${channel}) is not stored`);
   return { calibration: record.calibration, stored: true, id: record.calibration_id };
 }
 
