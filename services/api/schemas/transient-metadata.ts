@@ -4,7 +4,10 @@ import { analysisParameterOverrides } from './analysis-parameter-overrides.js';
 
 const positive = (description: string) => Type.Number({ exclusiveMinimum: 0, description });
 
-const CALIBRATION_ID = Type.String({ pattern: '^[0-9a-f]{64}$', description: 'A stored calibration (POST /v1/calibrations); needed for voltage_V input.' });
+const CALIBRATION_ID = Type.String({
+  pattern: '^[0-9a-f]{64}$',
+  description: "A stored calibration (POST /v1/calibrations); needed for voltage_V input. A channel may have its own: calibration_id@T2 for the file's voltage_V@T2 column (or calibration@T2 in the multipart meta); this one converts the channels without.",
+});
 
 /** A channel's own calibration id, `calibration_id@T2` for the file's `voltage_V@T2` column (accept-transient-upload.ts). */
 export const CHANNEL_CALIBRATION_ID_FIELD = /^calibration_id@(.+)$/;
