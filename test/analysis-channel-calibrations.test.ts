@@ -37,9 +37,14 @@ describe('per-channel calibrations', () => {
     }
   });
 
-  it('takes every channel from its own calibrations alone', () => {
-    const results = analyzeTransientFile({ bytes, fileName: 'fh-tt2_m5.csv', channelCalibrations: new Map([['T1', T1], ['T2', T2]]) }, CREATED_AT);
+  it('takes every channel from its own calibrations alone, and says so of a calibration for all given beside them', () => {
+    const own = new Map([['T1', T1], ['T2', T2]]);
+    const results = analyzeTransientFile({ bytes, fileName: 'fh-tt2_m5.csv', channelCalibrations: own }, CREATED_AT);
     expect(Math.abs(rthError(results, 'T2'))).toBeLessThan(0.005);
+    expect(results[0].quality.warnings.some((w) => /calibration not used/.test(w))).toBe(false);
+    const [withAll] = analyzeTransientFile({ bytes, fileName: 'fh-tt2_m5.csv', calibration: T2, channelCalibrations: own }, CREATED_AT);
+    expect(withAll.quality.warnings).toContain('calibration not used: every channel has a calibration of its own');
+    expect(withAll.rth_total_K_per_W).toBe(results[0].rth_total_K_per_W);
   });
 
   it('refuses a channel the file does not have, naming those it has, and a voltage channel without any calibration', () => {

@@ -67,6 +67,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
     ...(anyCalibrationGiven(input) && !calibrations ? [unusedCalibrationWarning(file.quantity)] : []),
+    ...(calibrations && input.calibration && file.channels.every((channel) => input.channelCalibrations?.has(channel.name)) ? [OWN_CALIBRATIONS_ONLY_WARNING] : []),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
   const provenance = {
@@ -159,6 +160,9 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
 export function unusedCalibrationWarning(quantity: TransientFile['quantity']): string {
   return `calibration not used: the input is ${quantity}, which needs none`;
 }
+
+/** The calibration for all channels, given where every channel has its own: said, as it converts nothing. */
+export const OWN_CALIBRATIONS_ONLY_WARNING = 'calibration not used: every channel has a calibration of its own';
 
 /** Zth and Rth stay right when temperatures are in kelvin; what does not, the kelvin warnings say. */
 const KELVIN_SPARES_ZTH = 'Zth and Rth depend only on differences and are unaffected, Tj(0) is not.';

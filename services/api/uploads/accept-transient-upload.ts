@@ -10,7 +10,7 @@ import type { Calibration } from '../../../shared/schemas/calibration.js';
 import { calibrationSampleWarning } from '../../../shared/analysis/calibration-sample-warning.js';
 import { headerLabel, headerSample } from '../../../shared/input/header-label.js';
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
-import { unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
+import { OWN_CALIBRATIONS_ONLY_WARNING, unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
 import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
 import { channelCalibrations } from '../../../shared/analysis/channel-calibrations.js';
 import { checkZthRises } from '../../../shared/analysis/check-zth-rises.js';
@@ -77,7 +77,7 @@ export async function acceptTransientUpload(
   const all = usesAll ? given.all : null;
   const own = calibrations !== undefined ? given.own : new Map<string, GivenCalibration>();
   if (calibrations === undefined && (given.all !== null || given.own.size > 0)) warnings.push(unusedCalibrationWarning(transient.quantity));
-  if (calibrations !== undefined && given.all !== null && !usesAll) warnings.push("calibration not used: every channel has a calibration of its own");
+  if (calibrations !== undefined && given.all !== null && !usesAll) warnings.push(OWN_CALIBRATIONS_ONLY_WARNING);
   if (calibrations !== undefined) {
     checkVoltagesCalibrated(transient, calibrations, upload.sourceName);
     for (const calibration of new Set(calibrations.values())) warnings.push(...calibrationSampleWarning(calibration, metadata.sample_id));
