@@ -46,11 +46,15 @@ describe('heatpath analyze with per-channel calibrations', () => {
 
   // To a server a calibration file is stored once and named in every upload by its id (one for all channels); a
   // channel's own goes in the upload's calibration_id@CH field. Refused before anything is sent (port 9: discard).
-  it("refuses a channel's own calibration file for reprocess to a server, saying where it works", () => {
+  it("refuses a channel's own calibration file for reprocess and submit to a server, saying where it works", () => {
     const archive = dirname(transient);
     expectUserError(
       heatpath('reprocess', archive, '--server', 'http://127.0.0.1:9', '--key', 'k', '--calibration', `T2=${t2Calibration}`),
       /a channel's own calibration \(--calibration CH=CAL\.json\) is read with --local.*calibration_id@CH.*CLI_USAGE/,
+    );
+    expectUserError(
+      heatpath('submit', transient, '--server', 'http://127.0.0.1:9', '--key', 'k', '--sample', 'M5', '--calibration', `T2=${t2Calibration}`),
+      /a channel's own calibration \(--calibration CH=CAL\.json\) is read with --local.*CLI_USAGE/,
     );
   });
 });

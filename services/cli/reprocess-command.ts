@@ -4,7 +4,7 @@ import { basename, dirname, extname, join, relative, resolve, sep } from 'node:p
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
-import { analysisInputsFromOptions, calibrationOptions, type AnalysisInputs } from './analysis-options.js';
+import { analysisInputsFromOptions, type AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
 import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';
 import { numberOption, parseCommandLine } from './cli-arguments.js';
@@ -85,11 +85,7 @@ export async function runReprocessCommand(
   const inputs = await analysisInputsFromOptions(values.local ? values : { ...values, calibration: undefined });
   const upload = values.local ? undefined : { target: uploadTargetFrom(values, 'reprocess'), metadata: uploadMetadataFrom(values) };
   if (upload && values.calibration !== undefined) {
-    const { all, own } = calibrationOptions(values.calibration as string[]);
-    if (own.size > 0 || all === undefined) {
-      throw new HeatpathError('CLI_USAGE', "a channel's own calibration (--calibration CH=CAL.json) is read with --local; on a server give one --calibration CAL.json for all channels, or upload with calibration_id@CH fields");
-    }
-    const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, all);
+    const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, values.calibration as string[]);
     if (exitCode !== null) return exitCode;
   }
   const settings: ReprocessSettings = {

@@ -1,4 +1,5 @@
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
+import { calibrationOptions } from './analysis-options.js';
 import { postToServer, type UploadTarget } from './post-to-server.js';
 import { readCalibrationFile } from './read-calibration-file.js';
 import { userErrorLine } from './user-error-line.js';
@@ -15,8 +16,13 @@ import { userErrorLine } from './user-error-line.js';
  * one line goes to stderr and the exit code of a file's failure is returned.
  * null: stored.
  */
-export async function storeCalibrationOnServer(command: string, target: UploadTarget, metadata: URLSearchParams, calibrationFile: string): Promise<number | null> {
+export async function storeCalibrationOnServer(command: string, target: UploadTarget, metadata: URLSearchParams, given: string | string[]): Promise<number | null> {
   if (metadata.has('calibration_id')) throw new HeatpathError('CLI_USAGE', 'give either --calibration CAL.json or --calibration-id ID, not both');
+  // One calibration for all channels is stored and named in every upload; a channel's own goes in the upload's field.
+  const { all: calibrationFile, own } = calibrationOptions(given);
+  if (own.size > 0 || calibrationFile === undefined) {
+    throw new HeatpathError('CLI_USAGE', "a channel's own calibration (--calibration CH=CAL.json) is read with --local; on a server give one --calibration CAL.json for all channels, or upload with calibration_id@CH fields");
+  }
   const calibration = await readCalibrationFile(calibrationFile);
   try {
     const answer = await postToServer(
