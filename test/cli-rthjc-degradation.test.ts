@@ -165,6 +165,22 @@ describe('heatpath degradation', () => {
     expect(JSON.parse(heatpath('degradation', campaign[0], later, '--format', 'json').stdout).later[0].rth_rise_exceeds_limit).toBeNull();
   });
 
+  it('gives the detection limit of every record as data, and no warning for a record without a shift: that is the healthy case', () => {
+    // The reference's curve sent again as 10 000 cycles: an unchanged device, no shift by construction.
+    const unchanged = file('m31-unchanged.csv', readFileSync(campaign[0], 'utf8').replace('# cycle_count: 0', '# cycle_count: 10000'));
+    const json = JSON.parse(heatpath('degradation', campaign[0], unchanged, campaign[3], '--format', 'json').stdout);
+    const [healthy, cracked] = json.later;
+    expect(healthy.shift_start).toBeNull();
+    expect(healthy.warnings).toEqual([]);
+    // The limit's floor: the largest of 0.005 K/W, 1 % of Rth and 3 x the noise of the shift (zero here).
+    expect(healthy.shift_threshold_K_per_W).toBeCloseTo(Math.max(0.005, 0.01 * json.reference.rth_total_K_per_W), 2);
+    expect(cracked.shift_start).not.toBeNull();
+    const text = heatpath('degradation', campaign[0], unchanged).stdout;
+    expect(text).toContain('detection limit');
+    expect(text.split('\n').find((line) => line.includes('m31-unchanged.csv'))).toMatch(new RegExp(`no shift .* ${healthy.shift_threshold_K_per_W.toPrecision(2)} K/W\\s+no$`));
+    expect(text).not.toContain('Warnings:');
+  });
+
   it("shows the reference's own warnings, in text and JSON: every comparison stands on it", () => {
     // The reference's header says 60 W while 50 W is given for all files: only the reference warns.
     const reference = file('m31-reference.csv', readFileSync(campaign[0], 'utf8').replace('# power_W: 50', '# power_W: 60'));

@@ -140,7 +140,7 @@ function uncertain(comparison: DegradationComparison): string {
 export function formatDegradation({ measurement: reference, cycleCount: referenceCycles, chosenBy }: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria): string {
   const limitPercent = criteria.rthRiseLimitPercent;
   const crossing = limitCrossing(referenceCycles, rows, limitPercent);
-  const header = ['file', 'cycles', 'Rth total', 'change', 'u(change)', 'shift starts at R_sum', 'at C_sum', 'added R', `rise > ${limitPercent} %`];
+  const header = ['file', 'cycles', 'Rth total', 'change', 'u(change)', 'shift starts at R_sum', 'at C_sum', 'added R', 'detection limit', `rise > ${limitPercent} %`];
   const table = rows.map(({ measurement, cycleCount, comparison }) => [
     measurement.file,
     cycleCount === null ? '-' : String(cycleCount),
@@ -150,6 +150,7 @@ export function formatDegradation({ measurement: reference, cycleCount: referenc
     comparison.shift_start === null ? 'no shift' : `${uncertain(comparison)}${comparison.shift_start.r_sum_K_per_W.toPrecision(3)} K/W`,
     comparison.shift_start === null ? '-' : `${uncertain(comparison)}${comparison.shift_start.c_sum_J_per_K.toPrecision(3)} J/K`,
     comparison.added_r_K_per_W === null ? '-' : `${comparison.added_r_K_per_W.toPrecision(3)} K/W`,
+    `${comparison.shift_threshold_K_per_W.toPrecision(2)} K/W`,
     comparison.rth_rise_exceeds_limit === null ? 'not judged' : comparison.rth_rise_exceeds_limit ? 'END OF LIFE?' : 'no',
   ]);
   const widths = header.map((h, column) => Math.max(h.length, ...table.map((row) => row[column].length)));
@@ -175,6 +176,7 @@ export function formatDegradation({ measurement: reference, cycleCount: referenc
             (crossing.interpolated_cycle_count === null ? '.' : `; between the measurements, at about ${Math.round(crossing.interpolated_cycle_count)} cycles.`),
         ]),
     '  u(change): standard uncertainty of the change from the noise of both records.',
+    '  detection limit: a shift must persist above it to count; a layer that added less cannot be told from noise.',
     ...degradationNotes(criteria.packageRth_K_per_W).map((note) => `  ${note}`),
     ...(warnings.length > 0 ? ['Warnings:', ...warnings] : []),
     `Caution: ${RESULT_CAUTION}`,

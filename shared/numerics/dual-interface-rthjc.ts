@@ -238,8 +238,8 @@ export function dualInterfaceRthjc(first: InterfaceMeasurement, second: Interfac
       higher_r_K_per_W: shift.later_r_K_per_W,
     },
     not_one_device,
-    // Without a start the shift's one warning says what this criterion's own says; with a pair that is not one device its warnings read nothing.
-    warnings: [...warnings, ...(shift.start === null || not_one_device !== null ? [] : shift.warnings).map((w) => `structure-function criterion: ${w}`)],
+    // With a pair that is not one device the shift's warnings read nothing.
+    warnings: [...warnings, ...(not_one_device !== null ? [] : shift.warnings).map((w) => `structure-function criterion: ${w}`)],
   };
 }
 

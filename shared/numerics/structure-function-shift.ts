@@ -95,7 +95,7 @@ export interface StructureFunctionShift {
   shift_K_per_W: Float64Array;
   /** Noise of dR: 1.4826 x the median of |dR| over its negative values (0 when fewer than three are negative). */
   scatter_K_per_W: number;
-  /** The threshold the shift had to exceed. */
+  /** The threshold the shift had to exceed: the detection limit, below which an added layer cannot be told from noise. */
   threshold_K_per_W: number;
   /**
    * Where the shift first exceeds the threshold for good; null when it never
@@ -133,12 +133,8 @@ export function structureFunctionShift(
 
   let start: StructureFunctionShift['start'] = null;
   let settled_shift_K_per_W: number | null = null;
-  if (found === null) {
-    warnings.push(
-      `no shift above the detection limit of ${threshold_K_per_W.toPrecision(2)} K/W at this noise (noise of the shift ${scatter_K_per_W.toPrecision(2)} K/W) persists ` +
-        `over ${settings.persistDecades} decades of C_sum and at ${100 * settings.remainingFraction} % of the points beyond: a layer that added less cannot be told from noise`,
-    );
-  } else {
+  // No shift is the healthy case, not a warning: the detection limit it was read against is threshold_K_per_W.
+  if (found !== null) {
     start = { c_J_per_K: logInterpolate(c_J_per_K, found.position), reference_r_K_per_W: valueAtPosition(refR, found.position), grid_index: found.index, well_placed: true };
     if (found.index === 0) {
       warnings.push('the curves differ already at the smallest common C_sum (next to the junction): a different device, power, calibration or early-time correction rather than a degraded layer?');

@@ -31,7 +31,9 @@ export const DegradationComparisonSchema = Type.Object({
   }),
   added_r_K_per_W: Type.Union([Type.Number(), Type.Null()], { description: 'The resistance the degraded layer added, where the shift settles.' }),
   structure_rth_change_K_per_W: Type.Number(),
-  shift_threshold_K_per_W: Type.Number({ description: 'Shifts below this are taken as noise.' }),
+  shift_threshold_K_per_W: Type.Number({
+    description: 'The detection limit: a shift must persist above this to count, and a layer that added less cannot be told from noise; with shift_start null, no shift above it (the healthy case, not a warning).',
+  }),
   shift_scatter_K_per_W: Type.Number({ description: 'Noise of the shift: 1.4826 x the median of its magnitude where it runs negative.' }),
   curves: Type.Object({ c_J_per_K: Type.Array(Type.Number()), reference_r_K_per_W: Type.Array(Type.Number()), shift_K_per_W: Type.Array(Type.Number()) }),
   warnings: Type.Array(Type.String()),
