@@ -139,6 +139,21 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(asReference.json().detail).toMatch(/: the same bytes were sent again as upload \S+ .*which counts instead/);
   }, 60_000);
 
+  it('takes the first measurement sent again as the reference without a warning: the same bytes are the same measurement', async () => {
+    const send = (file: string) =>
+      ctx.app.inject({ method: 'POST', url: '/v1/transients?sample_id=M31S', headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: readFileSync(file) });
+    const first = await send(campaign[0]);
+    const later = await send(campaign[1]);
+    // The same file again, at the same (0) cycles: it sorts after the first by arrival, and counts instead of it.
+    const again = await send(campaign[0]);
+    const jobs = [first, later, again].map((answer) => answer.json().job_id as string);
+    await eventually(async () => (await Promise.all(jobs.map((id) => ctx.store.hasResult(id)))).every(Boolean));
+    const report = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31S/degradation', headers: bearer('reader') })).json();
+    expect(report.reference.upload_id).toBe(again.json().upload_id);
+    expect(report.not_included).toEqual([expect.objectContaining({ upload_id: first.json().upload_id, reason_code: 'sent_again' })]);
+    expect(report.warnings).toEqual([]);
+  }, 60_000);
+
   it('takes another reference and limit, and refuses what it cannot answer', async () => {
     const reference = (await trend()).json().later[0].upload_id as string;
     const report = (await trend(`?reference_upload_id=${reference}&rth_rise_limit_percent=1`)).json();

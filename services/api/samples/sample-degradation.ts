@@ -136,7 +136,8 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   }
   // The reference's own analysis warnings: every comparison stands on it.
   const warnings: string[] = comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`);
-  const firstUpload = ordered[0];
+  // Bytes sent again count as their latest upload: the first upload that counts, not a copy of one the trend includes.
+  const firstUpload = ordered.find((upload) => latestWithBytes.get(upload.input_sha256) === upload)!;
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
   }
