@@ -99,6 +99,32 @@ describe('heatpath rthjc', () => {
   });
 });
 
+describe('rthjc and degradation: files of different samples', () => {
+  // The same curves under another "# sample:" line: only the label differs, so only the label can give the mix-up away.
+  const relabelled = (path: string, name: string, sample: string) => file(name, readFileSync(path, 'utf8').replace(/^# sample: .*$/m, sample === '' ? '' : `# sample: ${sample}`));
+
+  it('rthjc warns, in text and JSON, when A and B name different samples, saying which names which; not when one has no sample line', () => {
+    const other = relabelled(greased, 'm42-grease.csv', 'M42');
+    const json = JSON.parse(heatpath('rthjc', dry, other, '--format', 'json').stdout);
+    const warning = `the files' "# sample:" lines name different samples (M41 in A ${dry}; M42 in B ${other})`;
+    expect(json.warnings).toContainEqual(expect.stringContaining(warning));
+    expect(heatpath('rthjc', dry, other).stdout).toContain(warning);
+    const unnamed = JSON.parse(heatpath('rthjc', dry, relabelled(greased, 'unnamed-grease.csv', ''), '--format', 'json').stdout);
+    expect(unnamed.warnings.some((w: string) => w.includes('"# sample:"'))).toBe(false);
+  });
+
+  it('degradation warns, in text and JSON, when the files name different samples, saying which file names which; not when one has no sample line', () => {
+    const other = relabelled(campaign[3], 'm32-cycle-060000.csv', 'M32');
+    const run = heatpath('degradation', campaign[0], other, campaign[1], '--format', 'json');
+    expect(run.code).toBe(0);
+    const warning = `the files' "# sample:" lines name different samples (M31 in ${campaign[0]}, ${campaign[1]}; M32 in ${other})`;
+    expect(JSON.parse(run.stdout).warnings).toEqual([expect.stringContaining(warning)]);
+    expect(heatpath('degradation', campaign[0], other, campaign[1]).stdout).toContain(warning);
+    expect(JSON.parse(heatpath('degradation', campaign[0], relabelled(campaign[3], 'unnamed-060000.csv', ''), '--format', 'json').stdout).warnings).toEqual([]);
+    expect(JSON.parse(heatpath('degradation', ...campaign, '--format', 'json').stdout).warnings).toEqual([]);
+  });
+});
+
 describe('heatpath degradation', () => {
   it('JSON: cycles from the files, Rth rises along the campaign, the strongest crack placed at the die attach with its added R', () => {
     const run = heatpath('degradation', ...campaign, '--format', 'json');

@@ -1,4 +1,5 @@
 import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
+import { differingSamplesWarning } from '../../shared/analysis/differing-samples-warning.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, degradationNotes, type DegradationCriteria } from '../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../shared/analysis/rth-limit-crossing.js';
@@ -111,8 +112,17 @@ function limitCrossing(referenceCycles: number | null, rows: DegradationRow[], l
   return rthLimitCrossing(referenceCycles, rows.map(({ cycleCount, comparison }) => ({ cycle_count: cycleCount, comparison })), limitPercent);
 }
 
+/** What the campaign's files give away together: files of different devices in one trend. */
+function campaignWarnings(reference: DegradationReference, rows: DegradationRow[]): string[] {
+  return differingSamplesWarning(
+    [reference, ...rows].map(({ measurement }) => ({ label: measurement.file, result: measurement.result })),
+    'a trend compares later measurements of one device with its reference, so a change between devices reads as degradation',
+  );
+}
+
 /** The JSON object of `heatpath degradation --format json`. */
-export function degradationReport({ measurement: reference, cycleCount, chosenBy }: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria) {
+export function degradationReport(referenceRow: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria) {
+  const { measurement: reference, cycleCount, chosenBy } = referenceRow;
   return {
     heatpath_degradation: 1,
     reference: {
@@ -126,6 +136,7 @@ export function degradationReport({ measurement: reference, cycleCount, chosenBy
     package_rth_K_per_W: criteria.packageRth_K_per_W ?? null,
     limit_crossing: limitCrossing(cycleCount, rows, criteria.rthRiseLimitPercent),
     later: rows.map(({ measurement, cycleCount, comparison }) => ({ file: measurement.file, cycle_count: cycleCount, ...comparison })),
+    warnings: campaignWarnings(referenceRow, rows),
     notes: degradationNotes(criteria.packageRth_K_per_W),
     caution: RESULT_CAUTION,
   };
@@ -137,7 +148,8 @@ function uncertain(comparison: DegradationComparison): string {
 }
 
 /** The readable table of `heatpath degradation`: one row per later file. */
-export function formatDegradation({ measurement: reference, cycleCount: referenceCycles, chosenBy }: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria): string {
+export function formatDegradation(referenceRow: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria): string {
+  const { measurement: reference, cycleCount: referenceCycles, chosenBy } = referenceRow;
   const limitPercent = criteria.rthRiseLimitPercent;
   const crossing = limitCrossing(referenceCycles, rows, limitPercent);
   const header = ['file', 'cycles', 'Rth total', 'change', 'u(change)', 'shift starts at R_sum', 'at C_sum', 'added R', 'detection limit', `rise > ${limitPercent} %`];
@@ -155,8 +167,9 @@ export function formatDegradation({ measurement: reference, cycleCount: referenc
   ]);
   const widths = header.map((h, column) => Math.max(h.length, ...table.map((row) => row[column].length)));
   const line = (cells: string[]) => '  ' + cells.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('   ');
-  // The reference's own warnings first: every comparison stands on it.
+  // The campaign's first, then the reference's own: every comparison stands on them.
   const warnings = [
+    ...campaignWarnings(referenceRow, rows).map((w) => `  ${w}`),
     ...comparisonWarnings(reference.result).map((w) => `  ${reference.file} (reference): ${w}`),
     ...rows.flatMap(({ measurement, comparison }) => comparison.warnings.map((w) => `  ${measurement.file}: ${w}`)),
   ];

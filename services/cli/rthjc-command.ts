@@ -1,4 +1,5 @@
 import { comparisonWarnings } from '../../shared/analysis/comparison-warnings.js';
+import { differingSamplesWarning } from '../../shared/analysis/differing-samples-warning.js';
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { DUAL_INTERFACE_DEFAULTS, DUAL_INTERFACE_MEASURED_ERROR, dualInterfaceRthjc, type DualInterfaceRthjc } from '../../shared/numerics/dual-interface-rthjc.js';
@@ -134,6 +135,12 @@ function rthjcWarnings(a: ComparedMeasurement, b: ComparedMeasurement, compariso
   if (a.result.provenance.input_sha256 === b.result.provenance.input_sha256) {
     pair.push('A and B are the same measurement (the same bytes): the method compares two measurements of one device with different interfaces to the heatsink');
   }
+  pair.push(
+    ...differingSamplesWarning(
+      [{ label: `A ${a.file}`, result: a.result }, { label: `B ${b.file}`, result: b.result }],
+      'the method compares two measurements of one device with different interfaces to the heatsink, so an Rth-JC from two devices is of neither',
+    ),
+  );
   const [powerA, powerB] = [a.result.power_W, b.result.power_W];
   if (powerA !== null && powerB !== null && Math.abs(powerA / powerB - 1) > POWER_MISMATCH_FRACTION) {
     pair.push(`A was heated with ${powerA} W and B with ${powerB} W: the method compares two measurements of one device at one heating power; check the power of each`);
