@@ -1,4 +1,3 @@
-import { errorCatalogue } from '../../shared/errors/error-catalogue.js';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 
 /** Where and as whom to upload. */
@@ -45,7 +44,7 @@ export async function postToServer(
       const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
       if (response.ok) return answer;
       lastProblem = describeProblem(response.status, answer);
-      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError(refusal, lastProblem, { file: fileName, ...problemPlace(answer) }, problemHint(answer) ?? errorCatalogue[refusal].hint);
+      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError(refusal, lastProblem, { file: fileName, ...problemPlace(answer) }, problemHint(answer));
       retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
     } catch (error) {
       if (error instanceof HeatpathError) throw error;
@@ -76,7 +75,8 @@ function describeProblem(status: number, answer: Record<string, unknown>): strin
 
 /**
  * What the server says to do (the problem's `hint`): it knows the fix where the usual one is wrong (a transient in
- * millivolts is converted to volts, not given a wider calibration sweep), so it replaces the refusal's own.
+ * millivolts is converted to volts, not given a wider calibration sweep), so it replaces the refusal's own;
+ * undefined keeps the refusal's catalogue hint (HeatpathError's default).
  */
 function problemHint(answer: Record<string, unknown>): string | undefined {
   return typeof answer.hint === 'string' && answer.hint.trim() !== '' ? oneLine(answer.hint) : undefined;
