@@ -12,7 +12,8 @@ import { readInputFile } from './read-input-file.js';
 import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { userErrorLine } from './user-error-line.js';
 import { readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
-import { uploadTransient, type UploadTarget } from './transient-upload-client.js';
+import type { UploadTarget } from './post-to-server.js';
+import { uploadTransient } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 

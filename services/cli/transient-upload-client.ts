@@ -1,8 +1,6 @@
 import { createHash } from 'node:crypto';
 import { postToServer, type UploadTarget } from './post-to-server.js';
 
-export type { UploadTarget } from './post-to-server.js';
-
 export interface UploadedTransient {
   upload_id: string;
   job_id: string;

@@ -5,7 +5,7 @@ import { metadataNumber } from '../../shared/input/metadata-number.js';
 import { POWER_KEYS } from '../../shared/input/transient-file.js';
 import { UploadQuerySchema } from '../api/schemas/transient-metadata.js';
 import { numberOption } from './cli-arguments.js';
-import type { UploadTarget } from './transient-upload-client.js';
+import type { UploadTarget } from './post-to-server.js';
 
 /**
  * Options of the commands that upload to a server, and the upload query
