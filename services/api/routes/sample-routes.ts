@@ -1,4 +1,3 @@
-import { unknownSampleError } from '../samples/unknown-sample-error.js';
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
@@ -7,6 +6,7 @@ import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 import { UploadLinksSchema } from '../schemas/upload-record-schema.js';
 import { uploadLinks } from '../uploads/accept-transient-upload.js';
 import { NotIncludedReasonCodeSchema, sampleDegradation } from '../samples/sample-degradation.js';
+import { unknownSampleError } from '../samples/unknown-sample-error.js';
 import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';

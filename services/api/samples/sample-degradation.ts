@@ -1,4 +1,3 @@
-import { unknownSampleError } from './unknown-sample-error.js';
 import { Type, type Static } from 'typebox';
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
@@ -11,6 +10,7 @@ import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js'
 import type { DegradationComparison } from '../../../shared/schemas/degradation-comparison.js';
 import type { UploadRecord } from '../../store/store-records.js';
 import type { TransientStore } from '../../store/transient-store.js';
+import { unknownSampleError } from './unknown-sample-error.js';
 
 export interface SampleDegradationOptions {
   /** The result channel to follow; omitted: the only one. */
