@@ -24,7 +24,7 @@ import { channelPowerLines, resolveAnalysisInputs } from './resolve-analysis-inp
 import { calibrationIdOf } from '../schemas/calibration-id.js';
 import { headerSample } from '../input/header-label.js';
 import { calibrationSampleWarning } from './calibration-sample-warning.js';
-import { anyCalibrationGiven, channelCalibrations } from './channel-calibrations.js';
+import { channelCalibrations, unusedCalibrationWarnings } from './channel-calibrations.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -66,8 +66,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     ...sharedCalibrationWarning(file, input.channelCalibrations),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
-    ...(anyCalibrationGiven(input) && !calibrations ? [unusedCalibrationWarning(file.quantity)] : []),
-    ...(calibrations && input.calibration && file.channels.every((channel) => input.channelCalibrations?.has(channel.name)) ? [OWN_CALIBRATIONS_ONLY_WARNING] : []),
+    ...unusedCalibrationWarnings(file, input, calibrations),
     ...(resolvedPower_W !== null && power_W === null ? [`power not used: the input is zth_K_per_W, which needs none; the heating power of ${resolvedPower_W} W was ignored`] : []),
   ];
   const provenance = {
@@ -155,14 +154,6 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
       `if the devices dissipated different powers (for example in series at the same current), their Zth is wrong; give each channel its power in the file (a "# power_W@${file.channels[0].name}: ..." line per channel), or split the file into one file per channel.`,
   ];
 }
-
-/** A calibration given with input that is not voltage_V converts nothing: said, not silently dropped. */
-export function unusedCalibrationWarning(quantity: TransientFile['quantity']): string {
-  return `calibration not used: the input is ${quantity}, which needs none`;
-}
-
-/** The calibration for all channels, given where every channel has its own: said, as it converts nothing. */
-export const OWN_CALIBRATIONS_ONLY_WARNING = 'calibration not used: every channel has a calibration of its own';
 
 /** Zth and Rth stay right when temperatures are in kelvin; what does not, the kelvin warnings say. */
 const KELVIN_SPARES_ZTH = 'Zth and Rth depend only on differences and are unaffected, Tj(0) is not.';

@@ -39,7 +39,22 @@ export function channelCalibrations(file: TransientFile, given: GivenCalibration
   return new Map(names.map((name) => [name, own.get(name) ?? given.calibration!]));
 }
 
-/** Whether any calibration was given at all (one for all, or a channel's own). */
-export function anyCalibrationGiven(given: GivenCalibrations): boolean {
-  return given.calibration !== undefined || (given.channelCalibrations?.size ?? 0) > 0;
+/**
+ * Whether the calibration for all channels converts a channel: voltage input (`calibrations` as channelCalibrations
+ * gives them) with a channel that has none of its own. The upload names it in the job only then.
+ */
+export function usesCalibrationForAll(file: TransientFile, given: GivenCalibrations, calibrations: ReadonlyMap<string, Calibration> | undefined): boolean {
+  return calibrations !== undefined && file.channels.some((channel) => !given.channelCalibrations?.has(channel.name));
+}
+
+/**
+ * Calibrations given that convert nothing, said rather than silently dropped, by the analysis and the upload alike:
+ * any, for input that is not voltage_V; the one for all channels, where every channel has its own.
+ */
+export function unusedCalibrationWarnings(file: TransientFile, given: GivenCalibrations, calibrations: ReadonlyMap<string, Calibration> | undefined): string[] {
+  if (calibrations === undefined) {
+    const anyGiven = given.calibration !== undefined || (given.channelCalibrations?.size ?? 0) > 0;
+    return anyGiven ? [`calibration not used: the input is ${file.quantity}, which needs none`] : [];
+  }
+  return given.calibration !== undefined && !usesCalibrationForAll(file, given, calibrations) ? ['calibration not used: every channel has a calibration of its own'] : [];
 }

@@ -10,9 +10,8 @@ import type { Calibration } from '../../../shared/schemas/calibration.js';
 import { calibrationSampleWarning } from '../../../shared/analysis/calibration-sample-warning.js';
 import { headerLabel, headerSample } from '../../../shared/input/header-label.js';
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
-import { OWN_CALIBRATIONS_ONLY_WARNING, unusedCalibrationWarning } from '../../../shared/analysis/analyze-transient-file.js';
 import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
-import { channelCalibrations } from '../../../shared/analysis/channel-calibrations.js';
+import { channelCalibrations, unusedCalibrationWarnings, usesCalibrationForAll } from '../../../shared/analysis/channel-calibrations.js';
 import { checkZthRises } from '../../../shared/analysis/check-zth-rises.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
@@ -66,18 +65,13 @@ export async function acceptTransientUpload(
   warnings.push(...headerWarnings);
   const power = resolvedPower ?? null;
   const given = await calibrationsOf(store, metadata);
-  const calibrations = channelCalibrations(
-    transient,
-    { calibration: given.all?.calibration, channelCalibrations: new Map([...given.own].map(([name, own]) => [name, own.calibration])) },
-    upload.sourceName,
-  );
+  const givenCalibrations = { calibration: given.all?.calibration, channelCalibrations: new Map([...given.own].map(([name, own]) => [name, own.calibration])) };
+  const calibrations = channelCalibrations(transient, givenCalibrations, upload.sourceName);
   // Only voltage needs one, and only channels without their own the one for all; another would split the job (its id
   // names the calibration) for a result that does not use it.
-  const usesAll = calibrations !== undefined && transient.channels.some((channel) => !given.own.has(channel.name));
-  const all = usesAll ? given.all : null;
+  const all = usesCalibrationForAll(transient, givenCalibrations, calibrations) ? given.all : null;
   const own = calibrations !== undefined ? given.own : new Map<string, GivenCalibration>();
-  if (calibrations === undefined && (given.all !== null || given.own.size > 0)) warnings.push(unusedCalibrationWarning(transient.quantity));
-  if (calibrations !== undefined && given.all !== null && !usesAll) warnings.push(OWN_CALIBRATIONS_ONLY_WARNING);
+  warnings.push(...unusedCalibrationWarnings(transient, givenCalibrations, calibrations));
   if (calibrations !== undefined) {
     checkVoltagesCalibrated(transient, calibrations, upload.sourceName);
     for (const calibration of new Set(calibrations.values())) warnings.push(...calibrationSampleWarning(calibration, metadata.sample_id));
