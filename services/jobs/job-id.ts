@@ -14,7 +14,7 @@ export interface JobIdentity {
   sample_id: string | null;
   parameters: Partial<AnalysisParameters>;
   power: Power | null;
-  /** SHA-256 of the calibration's canonical JSON (its calibration id), or null. */
+  /** The id (calibrationIdOf) of the calibration of every channel without its own, or null. */
   calibration_sha256: string | null;
   /** Channels' own calibration ids by channel name; omitted or empty: none (and the id is what it was before channels had their own). */
   channel_calibration_sha256?: Readonly<Record<string, string>>;

@@ -43,6 +43,7 @@ export interface ResultRecord {
   heatpath_version: string;
   parameters: AnalysisParameters;
   power: Power | null;
+  /** As the upload's: the calibration of every channel without one of its own. */
   calibration_id: string | null;
   /** As the upload's; each channel's result names its calibration in its provenance. */
   channel_calibration_ids?: Record<string, string>;

@@ -62,7 +62,7 @@ export const AnalysisResultSchema = Type.Object({
     method: Type.String(),
     parameters: AnalysisParametersSchema,
     input_sha256: Type.String(),
-    calibration_sha256: Type.Union([Type.String(), Type.Null()], { description: "The calibration's id: SHA-256 of its canonical JSON, the service's calibration_id; null when none was used." }),
+    calibration_sha256: Type.Union([Type.String(), Type.Null()], { description: "The id of the calibration that converted this channel (calibration-id.ts: SHA-256 of its canonical JSON without its warnings, created_at, source and bench): the service's calibration_id, or calibration_id@CHANNEL for a channel's own; null when none was used." }),
     created_at: Type.String(),
   }),
   caution: Type.String(),

@@ -2,8 +2,6 @@ import { Type } from 'typebox';
 import { AnalysisParametersSchema, PowerSchema } from '../../../shared/schemas/analysis-parameters.js';
 import { AnalysisResultSchema } from '../../../shared/schemas/analysis-result.js';
 
-const nullableString = Type.Union([Type.String(), Type.Null()]);
-
 /** A stored result (services/store/store-records.ts ResultRecord) as the API returns it. */
 export const ResultRecordSchema = Type.Object({
   job_id: Type.String(),
@@ -14,7 +12,7 @@ export const ResultRecordSchema = Type.Object({
   heatpath_version: Type.String(),
   parameters: AnalysisParametersSchema,
   power: Type.Union([PowerSchema, Type.Null()]),
-  calibration_id: nullableString,
+  calibration_id: Type.Union([Type.String(), Type.Null()], { description: 'The calibration of every channel without one of its own.' }),
   channel_calibration_ids: Type.Optional(Type.Record(Type.String(), Type.String(), { description: "Channels' own calibrations by channel name; each channel's result names the one it was converted with (provenance.calibration_sha256)." })),
   batch_id: Type.Union([Type.String(), Type.Null()], { description: 'The reprocessing batch that asked for this job, if any.' }),
   finished_at: Type.String(),
