@@ -17,7 +17,7 @@ const percent = (fraction: number) => `${fraction >= 0 ? '+' : ''}${Math.round(1
 const errorRange = ({ low, median, high }: { low: number; median: number; high: number }) => `${percent(low)} .. ${percent(high)} (median ${percent(median)})`;
 
 /** Said beside every Rth-JC: how far each criterion landed from the exact value on synthetic stacks (measured in test/dual-interface-rthjc.test.ts). */
-export const RTHJC_ACCURACY_NOTE =
+const RTHJC_ACCURACY_NOTE =
   `against the exact Rth-JC of ${DUAL_INTERFACE_MEASURED_ERROR.pairs} synthetic 1-D layered stacks, the structure functions read ${errorRange(DUAL_INTERFACE_MEASURED_ERROR.structure)} ` +
   `(the deconvolution's resolution rounds the knee at the case surface; high more often than low) and the Zth difference ${errorRange(DUAL_INTERFACE_MEASURED_ERROR.zth)} ` +
   '(heat has crossed the changed interface by the time the curves part by epsilon): take either as an estimate within that range, not a measured value to a per cent';

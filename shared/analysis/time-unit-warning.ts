@@ -3,15 +3,15 @@ import { LATEST_WINDOW_END_S } from '../numerics/sqrt-time-extrapolation.js';
 import type { AnalysisParameters } from '../schemas/analysis-parameters.js';
 
 /** Longest record taken as seconds without a word: about 2.8 hours. */
-export const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
+const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
 
 /**
  * A record that starts this late and ends after LONG_RECORD_S is also taken as likely in milliseconds: a bench's
  * first sample after switching lies at microseconds to tens of them (its electrical artefact: common practice), so
  * 1 us written in ms reads 0.001 s, and a 9 s record 9000 s, which the 2.8-hour rule alone let pass.
  */
-export const LATE_FIRST_SAMPLE_S = 1e-3;
-export const LONG_RECORD_S = 1e3;
+const LATE_FIRST_SAMPLE_S = 1e-3;
+const LONG_RECORD_S = 1e3;
 
 /**
  * A record longer than a cooling or heating curve of a power device and its

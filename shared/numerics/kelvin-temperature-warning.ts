@@ -6,7 +6,7 @@ import { valueRange } from './value-range.js';
  * reference is colder still. Such temperatures are more likely written in kelvin (a cooling curve from 363 to 336
  * read as degC).
  */
-export const HOTTEST_PLAUSIBLE_COLD_END_C = 200;
+const HOTTEST_PLAUSIBLE_COLD_END_C = 200;
 
 /**
  * The one kelvin rule, wherever temperatures come from (a transient's temperature_C column, a calibration sweep,

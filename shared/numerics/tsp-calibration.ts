@@ -30,7 +30,7 @@ const PARAMETER_COUNT: Record<CalibrationModel, number> = { linear: 2, poly2: 3,
 const SPARE_POINTS: Record<CalibrationModel, number> = { linear: 0, poly2: 1, poly3: 1, poly4: 1, exp: 1 };
 
 /** Fewest points the model is fitted from. */
-export function minimumCalibrationPoints(model: CalibrationModel): number {
+function minimumCalibrationPoints(model: CalibrationModel): number {
   return PARAMETER_COUNT[model] + SPARE_POINTS[model];
 }
 const POLYNOMIAL_DEGREE: Partial<Record<CalibrationModel, number>> = { linear: 1, poly2: 2, poly3: 3, poly4: 4 };
@@ -142,7 +142,7 @@ export function voltageToTemperature(calibration: Calibration, time_s: Float64Ar
  * statistics, memory). A fixed 3 warned of a clean 801-sample curve ending at the sweep's first point about every
  * second time (half its samples there, each beyond 3 sigma with probability 0.00135); 801 samples now allow 4.7.
  */
-export function extrapolationNoiseAllowance(sampleCount: number): number {
+function extrapolationNoiseAllowance(sampleCount: number): number {
   return Math.max(3, Math.sqrt(2 * Math.log(Math.max(sampleCount, 1))) + 1);
 }
 
@@ -151,7 +151,7 @@ export function extrapolationNoiseAllowance(sampleCount: number): number {
  * the question whether the calibration is the device's. Our choice: a sweep usually starts at or below the cold
  * plate the transient cools to, and another device of the type reads some mV apart at one temperature, a few K.
  */
-export const COLD_END_BELOW_SWEEP_HINT_K = 5;
+const COLD_END_BELOW_SWEEP_HINT_K = 5;
 
 /**
  * What a conversion extrapolates: voltages outside the calibrated range but
