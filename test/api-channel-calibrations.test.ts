@@ -74,6 +74,18 @@ describe('per-channel calibrations on upload', () => {
     expect(new Set([own, shared, swapped]).size).toBe(3);
   });
 
+  it("says a calibration for all channels beside every channel's own is unused, and keeps it out of the upload and its job", async () => {
+    const ownOnly = `sample_id=M5&calibration_id%40T1=${t1Id}&calibration_id%40T2=${t2Id}`;
+    const withAll = await uploadCsv(`${ownOnly}&calibration_id=${t2Id}`);
+    expect(withAll.status).toBe(202);
+    const answer = (await withAll.json()) as { job_id: string; warnings: string[]; links: Record<string, string> };
+    expect(answer.warnings).toContain('calibration not used: every channel has a calibration of its own');
+    expect((await getJson(answer.links.self)).upload.calibration_id).toBeNull();
+    const without = (await (await uploadCsv(ownOnly)).json()) as { job_id: string; warnings: string[] };
+    expect(without.warnings.some((w) => /calibration not used/.test(w))).toBe(false);
+    expect(answer.job_id).toBe(without.job_id);
+  });
+
   it('refuses a channel the file does not have (400, naming its channels) and a voltage channel left without a calibration (422)', async () => {
     const stray = await uploadCsv(`sample_id=M5&calibration_id=${t1Id}&calibration_id%40T3=${t2Id}`);
     expect(stray.status).toBe(400);
