@@ -115,22 +115,20 @@ export class BatchReprocessor {
       if (file === null) return;
       // As the job's analysis resolves them (its early-time window checked with them), and as the upload checks them.
       const { parameters, power, channelPowers } = resolveAnalysisInputs(file, { parameters: job.parameters, power: job.power ?? undefined }, job.file_name);
-      const voltages = file.quantity === 'voltage_V';
-      const all = job.calibration_id === null || !voltages ? null : await this.store.getCalibration(job.calibration_id);
-      let missing = all === null && voltages && job.calibration_id !== null;
-      const own = new Map<string, Calibration>();
-      for (const [channel, id] of Object.entries(voltages ? (job.channel_calibration_ids ?? {}) : {})) {
-        const stored = await this.store.getCalibration(id);
-        if (stored === null) missing = true;
-        else own.set(channel, stored.calibration);
-      }
-      // Voltages without a stored calibration are the job's own failure (it names the missing calibration).
-      if (!missing) {
-        const calibrations = channelCalibrations(file, { calibration: all?.calibration, channelCalibrations: own }, job.file_name);
-        // The upload's own calibrations were checked against its voltages when it was uploaded.
-        if (calibrations !== undefined && batch.calibration_id !== null) checkVoltagesCalibrated(file, calibrations, job.file_name);
-        checkZthRises(file, { parameters, power, channelPowers }, calibrations, job.file_name);
-      }
+      // The calibrations the job converts voltages with; one missing from the store is the job's own failure (it names it).
+      const ownIds = file.quantity === 'voltage_V' ? Object.entries(job.channel_calibration_ids ?? {}) : [];
+      const allId = file.quantity === 'voltage_V' ? job.calibration_id : null;
+      const stored = new Map<string, Calibration | undefined>();
+      for (const id of [...(allId === null ? [] : [allId]), ...ownIds.map(([, id]) => id)]) stored.set(id, (await this.store.getCalibration(id))?.calibration);
+      if ([...stored.values()].includes(undefined)) return;
+      const calibrations = channelCalibrations(
+        file,
+        { calibration: allId === null ? undefined : stored.get(allId), channelCalibrations: new Map(ownIds.map(([channel, id]) => [channel, stored.get(id)!])) },
+        job.file_name,
+      );
+      // The upload's own calibrations were checked against its voltages when it was uploaded.
+      if (calibrations !== undefined && batch.calibration_id !== null) checkVoltagesCalibrated(file, calibrations, job.file_name);
+      checkZthRises(file, { parameters, power, channelPowers }, calibrations, job.file_name);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`, {}, error.hint);
@@ -273,12 +271,12 @@ function cancellationNote(notRun: number, willFinish: number): string {
 export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
   const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
   const calibrationId = batch.calibration_id ?? upload.calibration_id;
-  const channelCalibrationIds = batch.calibration_id === null ? upload.channel_calibration_ids : undefined;
+  const { channel_calibration_ids: uploadChannelCalibrationIds, ...rest } = upload;
+  const channelCalibrationIds = batch.calibration_id === null ? uploadChannelCalibrationIds : undefined;
   const jobId = jobIdFor({
     input_sha256: upload.input_sha256, sample_id: upload.sample_id, parameters, power: upload.power,
     calibration_sha256: calibrationId, channel_calibration_sha256: channelCalibrationIds, algorithm: batch.algorithm,
   });
-  const { channel_calibration_ids: _replaced, ...rest } = upload;
   return { ...rest, parameters, calibration_id: calibrationId, ...(channelCalibrationIds !== undefined ? { channel_calibration_ids: channelCalibrationIds } : {}), job_id: jobId };
 }
 
