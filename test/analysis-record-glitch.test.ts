@@ -47,6 +47,15 @@ describe('a record with one sample far off the curve', () => {
     expect(result.quality.deconvolution_residual_rms / result.quality.noise_K_per_W).toBeLessThan(2);
   });
 
+  // The warning once read 'stopped after 60 iterations with residual ... above the noise level', on every bench-like
+  // record, without saying what it means for the result or what to do.
+  it('bayes on the clean record: stopped by its cap, it says by how much it misses the noise and which method fits', () => {
+    const { quality } = analysed(0, 'bayes');
+    const ratio = quality.deconvolution_residual_rms / quality.noise_K_per_W;
+    expect(ratio).toBeGreaterThan(1.05);
+    expect(quality.warnings).toContainEqual(expect.stringMatching(new RegExp(`^bayes deconvolution stopped at its cap of 60 iterations with the fit ${ratio.toFixed(1)} times the noise .*posterior-mean, fits to the noise$`)));
+  });
+
   it('fourier: a filtered estimate, not fitted to the noise, gets no such warning', () => {
     expect(misfitWarnings(analysed(15, 'fourier').quality.warnings)).toEqual([]);
   });
