@@ -4,6 +4,7 @@ import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { FAILED_JOB_IDS_SHOWN, type BatchProgress, type BatchReprocessor } from '../../../workers/reprocess-batch.js';
 import { analysisParameterOverrides } from '../schemas/analysis-parameter-overrides.js';
+import { CalibrationIdSchema } from '../schemas/calibration-id-schema.js';
 
 const BatchParams = Type.Object({ batch_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
 
@@ -31,7 +32,7 @@ const BatchRequestSchema = Type.Object(
   {
     selection: SelectionSchema,
     parameters: Type.Optional(ParameterOverridesSchema),
-    calibration_id: Type.Optional(Type.String({ pattern: '^[0-9a-f]{64}$', description: calibrationIdText })),
+    calibration_id: Type.Optional(CalibrationIdSchema(calibrationIdText)),
   },
   { additionalProperties: false },
 );

@@ -1,20 +1,20 @@
 import { Type, type Static } from 'typebox';
 import { CalibrationSchema } from '../../../shared/schemas/calibration.js';
 import { analysisParameterOverrides } from './analysis-parameter-overrides.js';
+import { CalibrationIdSchema } from './calibration-id-schema.js';
 
 const positive = (description: string) => Type.Number({ exclusiveMinimum: 0, description });
 
-const CALIBRATION_ID = Type.String({
-  pattern: '^[0-9a-f]{64}$',
-  description: "A stored calibration (POST /v1/calibrations); needed for voltage_V input. A channel may have its own: calibration_id@T2 for the file's voltage_V@T2 column (or calibration@T2 in the multipart meta); this one converts the channels without.",
-});
+const CALIBRATION_ID = CalibrationIdSchema(
+  "A stored calibration (POST /v1/calibrations); needed for voltage_V input. A channel may have its own: calibration_id@T2 for the file's voltage_V@T2 column (or calibration@T2 in the multipart meta); this one converts the channels without.",
+);
 
 /** A channel's own calibration id, `calibration_id@T2` for the file's `voltage_V@T2` column (accept-transient-upload.ts). */
 export const CHANNEL_CALIBRATION_ID_FIELD = /^calibration_id@(.+)$/;
 /** A channel's own inline calibration in the multipart `meta`, `calibration@T2`. */
 export const CHANNEL_CALIBRATION_FIELD = /^calibration@(.+)$/;
 const channelCalibrationIdFields = {
-  [CHANNEL_CALIBRATION_ID_FIELD.source]: Type.String({ pattern: '^[0-9a-f]{64}$', description: "A channel's own stored calibration: calibration_id@T2 for the file's voltage_V@T2 column; channels without one take calibration_id." }),
+  [CHANNEL_CALIBRATION_ID_FIELD.source]: CalibrationIdSchema("A channel's own stored calibration: calibration_id@T2 for the file's voltage_V@T2 column; channels without one take calibration_id."),
 };
 
 const parameterFields = analysisParameterOverrides((schemaDefault) => `Default: the file's metadata (kind), else ${schemaDefault}.`);
