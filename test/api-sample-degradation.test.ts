@@ -26,7 +26,7 @@ import { rSumThroughLayer } from './support/stack-measurement.js';
 import { withLayerConductivity } from './support/stack-variants.js';
 
 const campaign = ['000000', '020000', '040000', '060000'].map((cycles) => join(DEMO_DIR, `fh-tt1_m31_cycle-${cycles}.csv`));
-const { heatpath } = cliWorkspace('heatpath-trend-');
+const { heatpath, file } = cliWorkspace('heatpath-trend-');
 let ctx: ApiTestContext;
 let worker: AnalysisWorker;
 const uploadIds: string[] = [];
@@ -152,6 +152,41 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(report.reference.upload_id).toBe(again.json().upload_id);
     expect(report.not_included).toEqual([expect.objectContaining({ upload_id: first.json().upload_id, reason_code: 'sent_again' })]);
     expect(report.warnings).toEqual([]);
+  }, 60_000);
+
+  it('follows the order of arrival, the first upload the reference, when a measurement has no cycle count, and says so, as heatpath degradation does', async () => {
+    // The baseline sent without a cycle count, then 60 000 and 40 000 cycles: sorting it last made the 40 000 one the reference.
+    const baseline = file('m31_baseline.csv', readFileSync(campaign[0], 'utf8').replace('# cycle_count: 0\n', ''));
+    const ids: string[] = [];
+    for (const path of [baseline, campaign[3], campaign[2]]) {
+      const answer = await ctx.app.inject({ method: 'POST', url: '/v1/transients?sample_id=M31N', headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: readFileSync(path) });
+      expect(answer.statusCode).toBe(202);
+      ids.push(answer.json().upload_id);
+    }
+    await eventually(async () => (await Promise.all(ids.map(async (id) => ctx.store.hasResult((await ctx.store.getUpload(id))!.job_id)))).every(Boolean));
+    const nTrend = (query: string) => ctx.app.inject({ method: 'GET', url: `/v1/samples/M31N/degradation?rth_rise_limit_percent=6${query}`, headers: bearer('reader') });
+    const report = (await nTrend('')).json();
+    expect(report.reference.upload_id).toBe(ids[0]);
+    expect(report.reference.cycle_count).toBeNull();
+    expect(report.later.map((row: { upload_id: string }) => row.upload_id)).toEqual([ids[1], ids[2]]);
+    expect(report.warnings).toEqual([
+      `not every measurement has a cycle count, so the trend follows the order of arrival and the first upload is the reference (with cycle counts throughout, the lowest is): without one is upload ${ids[0]}, ` +
+        'placed by arrival and left out of the limit crossing; send each such file again with its cycle_count (the latest upload of the same bytes counts) to order the trend by cycles',
+    ]);
+    // +7.9 % at 60 000 and +2.8 % at 40 000 cycles against the baseline: a 6 % limit is crossed between them.
+    expect(report.limit_crossing.first_cycle_count_above).toBe(60000);
+    const fromCli = JSON.parse(heatpath('degradation', baseline, campaign[3], campaign[2], '--rth-rise-limit-percent', '6', '--format', 'json').stdout);
+    expect(fromCli.reference.chosen_by).toBe('first_argument');
+    expect(report.reference.rth_total_K_per_W).toBe(fromCli.reference.rth_total_K_per_W);
+    expect(report.later.map((row: { rth_change_percent: number }) => row.rth_change_percent)).toEqual(fromCli.later.map((row: { rth_change_percent: number }) => row.rth_change_percent));
+    expect(report.limit_crossing).toEqual(fromCli.limit_crossing);
+
+    // Asked for, the baseline has nothing before it; the 40 000-cycle one has the baseline before it (by arrival), not the 60 000 one.
+    expect((await nTrend(`&reference_upload_id=${ids[0]}`)).json().warnings).toEqual(report.warnings);
+    const from40k = (await nTrend(`&reference_upload_id=${ids[2]}`)).json();
+    expect(from40k.warnings).toContainEqual(
+      `the reference asked for, upload ${ids[2]} (40000 cycles), is not the sample's earliest measurement: 1 earlier one (upload ${ids[0]}, no cycle count, uploaded before it) is listed under later too, where a change reads backwards in time`,
+    );
   }, 60_000);
 
   it('takes another reference and limit, and refuses what it cannot answer', async () => {

@@ -3,6 +3,7 @@ import { differingSamplesWarning } from '../../shared/analysis/differing-samples
 import { RESULT_CAUTION } from '../../shared/analysis/result-caution.js';
 import { compareForDegradation, DEFAULT_RTH_RISE_LIMIT_PERCENT, degradationNotes, type DegradationCriteria } from '../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../shared/analysis/rth-limit-crossing.js';
+import { campaignOrder } from '../../shared/analysis/campaign-order.js';
 import type { DegradationComparison } from '../../shared/schemas/degradation-comparison.js';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { cycleCountFromMeta } from '../../shared/input/cycle-count.js';
@@ -62,7 +63,7 @@ export async function runDegradationCommand(argv: string[], print: (text: string
       failures.push(error);
     }
   }
-  const { reference, later } = inCampaignOrder(counted, positionals[0], failures);
+  const { reference, later } = referenceAndLater(counted, positionals[0], failures);
   const rows = later.map((measurement) => degradationRow(reference, measurement, criteria));
   print(format === 'json' ? JSON.stringify(degradationReport(reference, rows, criteria)) : formatDegradation(reference, rows, criteria));
   for (const failure of failures) process.stderr.write(userErrorLine('degradation', failure) + '\n');
@@ -87,21 +88,17 @@ export interface DegradationRow extends CountedMeasurement {
 }
 
 /**
- * The reference and the later files: in cycle order (stable, so equal counts
- * keep the order given) when every file analysed has a cycle count, as the
- * service orders a sample's uploads; else as given, where nothing can be
- * compared without the first file. A file that failed is left out and
+ * The reference and the later files in campaign order (campaign-order.ts, the
+ * service's rule for a sample's uploads too): in cycle order when every file
+ * analysed has a cycle count; else as given, where nothing can be compared
+ * without the first file. A file that failed is left out and
  * reported; with fewer than two left there is nothing to compare.
  */
-function inCampaignOrder(counted: CountedMeasurement[], firstFile: string, failures: HeatpathError[]): { reference: DegradationReference; later: CountedMeasurement[] } {
+function referenceAndLater(counted: CountedMeasurement[], firstFile: string, failures: HeatpathError[]): { reference: DegradationReference; later: CountedMeasurement[] } {
   if (counted.length < 2) throw failures.find((failure) => failure.location.file === firstFile) ?? failures[0];
-  if (counted.every(({ cycleCount }) => cycleCount !== null)) {
-    const [first, ...later] = [...counted].sort((a, b) => a.cycleCount! - b.cycleCount!);
-    return { reference: { ...first, chosenBy: 'lowest_cycle_count' }, later };
-  }
-  if (counted[0]?.measurement.file !== firstFile) throw failures.find((failure) => failure.location.file === firstFile) ?? failures[0];
-  const [first, ...later] = counted;
-  return { reference: { ...first, chosenBy: 'first_argument' }, later };
+  const { ordered: [first, ...later], byCycleCount } = campaignOrder(counted, ({ cycleCount }) => cycleCount);
+  if (!byCycleCount && first.measurement.file !== firstFile) throw failures.find((failure) => failure.location.file === firstFile) ?? failures[0];
+  return { reference: { ...first, chosenBy: byCycleCount ? 'lowest_cycle_count' : 'first_argument' }, later };
 }
 
 function degradationRow(reference: DegradationReference, { measurement, cycleCount }: CountedMeasurement, criteria: DegradationCriteria): DegradationRow {

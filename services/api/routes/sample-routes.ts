@@ -67,7 +67,7 @@ const SampleDegradationSchema = Type.Object({
     { description: 'Where the trend first exceeds the limit; null when it does not. Measurements without a cycle count or not judged are passed over. An estimate for the qualification plan, which decides under AQG 324 or the applicable standard.' },
   ),
   reference: MeasurementSchema,
-  later: Type.Array(Type.Object({ ...MeasurementSchema.properties, ...DegradationComparisonSchema.properties }), { description: 'In cycle order.' }),
+  later: Type.Array(Type.Object({ ...MeasurementSchema.properties, ...DegradationComparisonSchema.properties }), { description: 'In cycle order when every measurement has a cycle count, else in order of arrival (warnings then says so).' }),
   not_included: Type.Array(
     Type.Object({
       upload_id: Type.String(),
@@ -172,14 +172,14 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         tags: ['samples'],
         summary: 'Degradation of a device over power cycling',
         description:
-          'Its completed analyses in cycle order (cycle_count, then arrival), each compared with the reference (the first, or ?reference_upload_id=) by Rth total ' +
+          'Its completed analyses in cycle order (cycle_count, then arrival) when every one has a cycle count, else in order of arrival (as `heatpath degradation` takes its files as given then), each compared with the reference (the first, or ?reference_upload_id=) by Rth total ' +
           'and by where and how much its cumulative structure function shifted, as `heatpath degradation` compares files. ' + DEGRADATION_NOTES.join(' ') +
           ' With ?batch_id= of a cancelled batch that did not analyse all of the sample\'s uploads: 409 DEGRADATION_BATCH_CANCELLED; a ?channel= the results do not have: 400 DEGRADATION_CHANNEL_NOT_FOUND, naming the channels they have.',
         params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
         querystring: Type.Object(
           {
             channel: Type.Optional(Type.String({ maxLength: 64, description: "The channel of the files' value columns to follow (temperature_C@A is channel A; a column without @ is channel 1), not the upload's channel label; needed when the results have several." })),
-            reference_upload_id: Type.Optional(Type.String({ maxLength: 160, description: 'The reference measurement; default: the first in cycle order.' })),
+            reference_upload_id: Type.Optional(Type.String({ maxLength: 160, description: 'The reference measurement; default: the lowest cycle count, or the first upload when not every measurement has a cycle count.' })),
             batch_id: Type.Optional(Type.String({ maxLength: 160, description: 'Read the jobs of this reprocessing batch instead of the uploads\' own jobs.' })),
             rth_rise_limit_percent: Type.Optional(Type.Number({ exclusiveMinimum: 0, default: DEFAULT_RTH_RISE_LIMIT_PERCENT, description: 'Flag an Rth rise above this (20 % is a common end-of-life criterion, recalled from memory; the qualification plan and AQG 324 decide).' })),
             package_rth_K_per_W: Type.Optional(

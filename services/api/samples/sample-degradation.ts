@@ -1,6 +1,7 @@
 import { Type, type Static } from 'typebox';
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
+import { campaignOrder } from '../../../shared/analysis/campaign-order.js';
 import { compareForDegradation, degradationNotes } from '../../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../../shared/analysis/rth-limit-crossing.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
@@ -15,7 +16,7 @@ import { unknownSampleError } from './unknown-sample-error.js';
 export interface SampleDegradationOptions {
   /** The result channel to follow; omitted: the only one. */
   channel?: string;
-  /** The reference measurement; omitted: the first in cycle order. */
+  /** The reference measurement; omitted: the first in campaign order (shared/analysis/campaign-order.ts). */
   reference_upload_id?: string;
   /** Read each upload's job of this reprocessing batch instead of its own job. */
   batch_id?: string;
@@ -51,9 +52,10 @@ const measurementOf = ({ upload, job_id, result }: Measurement) => ({
 
 /**
  * The LIMS view of a power-cycling campaign for one device: its completed
- * analyses in cycle order (cycle_count, then arrival; uploads without a cycle
- * count last), each compared with the reference as `heatpath degradation`
- * compares files. Uploads still pending, failed, without the channel, or of
+ * analyses in campaign order by the rule of `heatpath degradation`
+ * (campaign-order.ts): in cycle order when every one has a cycle count, else
+ * as they arrived, the first upload being the reference; each compared with
+ * the reference as `heatpath degradation` compares files. Uploads still pending, failed, without the channel, or of
  * bytes already counted are listed apart with the reason.
  */
 export async function sampleDegradation(store: TransientStore, sampleId: string, options: SampleDegradationOptions) {
@@ -62,15 +64,20 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   const { jobOf, cancelled } = await jobChooser(store, options.batch_id);
   const notIncluded: NotIncluded[] = [];
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
-  const ordered = inCycleOrder(uploads);
   // Two measurements never give the same bytes: a repeat is one measurement sent again, which counts once, with the
-  // labels of its latest upload, so that sending a file again corrects a mistyped cycle count.
+  // labels of its latest upload, so that sending a file again corrects a mistyped cycle count; it arrived when first sent.
   const latestWithBytes = new Map<string, UploadRecord>();
+  const firstReceived = new Map<string, string>();
   for (const upload of uploads) {
     const latest = latestWithBytes.get(upload.input_sha256);
     if (latest === undefined || upload.received_at >= latest.received_at) latestWithBytes.set(upload.input_sha256, upload);
+    const first = firstReceived.get(upload.input_sha256);
+    if (first === undefined || upload.received_at < first) firstReceived.set(upload.input_sha256, upload.received_at);
   }
-  for (const upload of ordered) {
+  const arrivalKey = (upload: UploadRecord) => `${firstReceived.get(upload.input_sha256)} ${upload.received_at} ${upload.upload_id}`;
+  const arrived = [...uploads].sort((a, b) => arrivalKey(a).localeCompare(arrivalKey(b)));
+  const counting = arrived.filter((upload) => latestWithBytes.get(upload.input_sha256) === upload);
+  for (const upload of arrived) {
     const latest = latestWithBytes.get(upload.input_sha256)!;
     if (latest !== upload) {
       notIncluded.push({
@@ -104,12 +111,13 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
         '(channels are those of the files\' value columns, temperature_C@A being channel A and a column without @ channel 1; the upload\'s channel field is a label)');
   }
   const channel = options.channel ?? onlyChannel(channels);
-  const measurements: Measurement[] = [];
+  const arrivedMeasurements: Measurement[] = [];
   for (const { upload, job_id, results } of found) {
     const result = results.find((candidate) => candidate.source.channel === channel);
-    if (result) measurements.push({ upload, job_id, result });
+    if (result) arrivedMeasurements.push({ upload, job_id, result });
     else notIncluded.push({ upload_id: upload.upload_id, job_id, reason_code: 'channel_missing', reason: `no channel ${channel} (it has ${results.map((r) => r.source.channel).join(', ')})` });
   }
+  const { ordered: measurements, byCycleCount } = campaignOrder(arrivedMeasurements, ({ upload }) => upload.cycle_count);
   const referenceIndex = options.reference_upload_id === undefined ? 0 : measurements.findIndex((m) => m.upload.upload_id === options.reference_upload_id);
   if (referenceIndex < 0) {
     const left = notIncluded.find(({ upload_id }) => upload_id === options.reference_upload_id);
@@ -136,17 +144,29 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   }
   // The reference's own analysis warnings: every comparison stands on it.
   const warnings: string[] = comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`);
+  const withoutCycleCount = measurements.filter(({ upload }) => upload.cycle_count === null).map(({ upload }) => upload.upload_id);
+  if (!byCycleCount) {
+    warnings.push(
+      `not every measurement has a cycle count, so the trend follows the order of arrival and the first upload is the reference (with cycle counts throughout, the lowest is): ` +
+        `without one ${withoutCycleCount.length > 1 ? 'are uploads' : 'is upload'} ${withoutCycleCount.join(', ')}, placed by arrival and left out of the limit crossing; ` +
+        'send each such file again with its cycle_count (the latest upload of the same bytes counts) to order the trend by cycles',
+    );
+  }
   // Bytes sent again count as their latest upload: the first upload that counts, not a copy of one the trend includes.
-  const firstUpload = ordered.find((upload) => latestWithBytes.get(upload.input_sha256) === upload)!;
+  // By cycles, the first is the lowest count among those that have one (the others are not in the trend: see not_included).
+  const firstUpload = byCycleCount ? campaignOrder(counting.filter((upload) => upload.cycle_count !== null), (upload) => upload.cycle_count).ordered[0] : counting[0];
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
   }
-  if (options.reference_upload_id !== undefined && referenceIndex > 0) {
-    const earlier = measurements.slice(0, referenceIndex).map((m) => m.upload.cycle_count ?? 'unknown');
-    warnings.push(
-      `the reference asked for, upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), is not the sample's earliest measurement: ` +
-        `${earlier.length} earlier one${earlier.length > 1 ? 's' : ''} (${earlier.join(', ')} cycles) ${earlier.length > 1 ? 'are' : 'is'} listed under later too, where a change reads backwards in time`,
-    );
+  if (options.reference_upload_id !== undefined) {
+    const earlier = measurements.filter((measurement) => measurement !== reference && measuredBefore(measurement.upload, reference.upload, arrivalKey));
+    if (earlier.length > 0) {
+      warnings.push(
+        `the reference asked for, upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), is not the sample's earliest measurement: ` +
+          `${earlier.length} earlier one${earlier.length > 1 ? 's' : ''} (${earlier.map(({ upload }) => earlierLabel(upload, reference.upload)).join(', ')}) ` +
+          `${earlier.length > 1 ? 'are' : 'is'} listed under later too, where a change reads backwards in time`,
+      );
+    }
   }
   return {
     sample_id: sampleId,
@@ -164,10 +184,16 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   };
 }
 
-/** Cycle count first (the campaign's own clock), then arrival; uploads without a cycle count after the others. */
-function inCycleOrder(uploads: UploadRecord[]): UploadRecord[] {
-  const cycles = (upload: UploadRecord) => upload.cycle_count ?? Number.POSITIVE_INFINITY;
-  return [...uploads].sort((a, b) => cycles(a) - cycles(b) || a.received_at.localeCompare(b.received_at) || a.upload_id.localeCompare(b.upload_id));
+/** Measured before the other: by cycle count when both have one (the campaign's own clock), else by arrival. */
+function measuredBefore(upload: UploadRecord, other: UploadRecord, arrivalKey: (upload: UploadRecord) => string): boolean {
+  return upload.cycle_count !== null && other.cycle_count !== null ? upload.cycle_count < other.cycle_count : arrivalKey(upload) < arrivalKey(other);
+}
+
+/** An earlier measurement as the warning names it: its cycles, or, placed by arrival, its upload. */
+function earlierLabel(upload: UploadRecord, reference: UploadRecord): string {
+  return upload.cycle_count !== null && reference.cycle_count !== null
+    ? `${upload.cycle_count} cycles`
+    : `upload ${upload.upload_id}, ${upload.cycle_count === null ? 'no cycle count' : `${upload.cycle_count} cycles`}, uploaded before it`;
 }
 
 async function jobChooser(store: TransientStore, batchId: string | undefined): Promise<{ jobOf: (upload: UploadRecord) => string | null; cancelled: boolean }> {
