@@ -113,6 +113,24 @@ describe('judging near the limit', () => {
   });
 });
 
+describe('an Rth change the structure functions do not show', () => {
+  it('warns when Rth total rose by more than 3 uncertainties and the detection floor while no shift is found, and not otherwise', () => {
+    // Constructed: the later result is the reference's own analysis with a larger Rth total, so its structure function
+    // cannot shift; +3 % of the module's 1.17 K/W is 0.035 K/W, above the 0.0117 K/W floor (1 % of Rth), and some
+    // 80 of its standard uncertainties (0.037 %, as measured above at 0.01 K); +0.5 % (0.006 K/W) is below the floor.
+    const first = analysed(reference, 11, 0.01);
+    const raised = (factor: number) => compareForDegradation(first, { ...first, rth_total_K_per_W: factor * first.rth_total_K_per_W }, { rthRiseLimitPercent: 20 });
+    const plain = raised(1.03);
+    expect(plain.shift_start).toBeNull();
+    expect(plain.warnings).toContainEqual(expect.stringMatching(/^Rth total rose 3\.00 % \(0\.035 K\/W, \d+ standard uncertainties of the change, above the 0\.012 K\/W a shift must reach at the least\), but the structure functions show no shift above the detection limit of 0\.012 K\/W .*: the two disagree\./));
+    expect(raised(1.005).warnings.some((w) => w.includes('the two disagree'))).toBe(false);
+    // A crack the structure functions show (the attach at 70 % conductivity, +0.032 K/W) is no disagreement.
+    const crackedComparison = compareForDegradation(first, analysed(cracked, 12, 0.01), { rthRiseLimitPercent: 20 });
+    expect(crackedComparison.shift_start).not.toBeNull();
+    expect(crackedComparison.warnings.some((w) => w.includes('the two disagree'))).toBe(false);
+  });
+});
+
 describe('rthLimitCrossing', () => {
   const point = (cycles: number | null, change: number, limit = 20, judged = true) => ({
     cycle_count: cycles, comparison: { rth_change_percent: change, rth_rise_exceeds_limit: judged ? change > limit : null },

@@ -111,17 +111,32 @@ describe('structure-function shift of a cracking die attach', () => {
     expect(shift.warnings.some((w) => w.includes('next to the junction'))).toBe(true);
   });
 
-  it('one deep spike among small negative values does not set the threshold (constructed curves)', () => {
-    // 15 values of -0.002 K/W next to the junction, a step of 0.03 K/W from node 40, one spike of -0.07 K/W at node 80.
-    const dR = Float64Array.from({ length: 101 }, (_, k) => (k < 30 ? (k % 2 === 0 ? 0.002 : -0.002) : k >= 40 ? 0.03 : 0));
+  it('one deep spike among small noise does not set the threshold (constructed curves)', () => {
+    // 60 values of +-0.002 K/W next to the junction, a step of 0.03 K/W from node 60, one spike of -0.07 K/W at node 80.
+    const dR = Float64Array.from({ length: 101 }, (_, k) => (k < 60 ? (k % 2 === 0 ? 0.002 : -0.002) : 0.03));
     dR[80] = -0.07;
     const shift = structureFunctionShift(...constructedPair(dR));
-    // Median of |negative dR| over 16 values is 0.002 K/W; the RMS would be 0.0176 K/W and the threshold 0.053 K/W, above the step.
+    // The lower quartile of the 101 values is -0.002 K/W (31 values at or below it); the RMS of the negative values
+    // would be 0.0128 K/W and the threshold 0.038 K/W, above the step.
     expect(shift.scatter_K_per_W).toBeCloseTo(1.4826 * 0.002, 6);
     expect(shift.threshold_K_per_W).toBeCloseTo(0.01, 6);
-    expect(shift.start?.grid_index).toBe(40);
+    expect(shift.start?.grid_index).toBe(60);
     expect(shift.settled_shift_K_per_W).toBeCloseTo(0.03, 10);
     expect(shift.warnings).toEqual([]);
+  });
+
+  it('a shift over most of the range with a few deep swings at steep points is found at the floor, not hidden by them (constructed curves)', () => {
+    // dR 0 up to node 30, then a step of 0.02 K/W, which four swings of -0.035 K/W (at nodes 50, 60, 70, 80: steep
+    // parts, where a small error in C is a large one in R) take to -0.015 K/W. Only those four values are negative:
+    // their median made the noise 0.022 K/W and the threshold 0.067 K/W, and the step went unseen. The lower quartile
+    // of dR is 0 (31 of 101 values are 0 or below): the threshold is the 1 %-of-R-total floor, 0.01 K/W.
+    const dR = Float64Array.from({ length: 101 }, (_, k) => (k < 30 ? 0 : [50, 60, 70, 80].includes(k) ? -0.015 : 0.02));
+    const shift = structureFunctionShift(...constructedPair(dR));
+    expect(shift.scatter_K_per_W).toBe(0);
+    expect(shift.threshold_K_per_W).toBeCloseTo(0.01, 6);
+    expect(shift.start?.grid_index).toBe(30);
+    expect(shift.start?.well_placed).toBe(true);
+    expect(shift.settled_shift_K_per_W).toBeCloseTo(0.02, 10);
   });
 
   it('says the location is not well determined when noise dips below the threshold after the layer (constructed curves)', () => {

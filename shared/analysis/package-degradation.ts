@@ -5,7 +5,7 @@
  * `heatpath degradation` and the service's per-sample trend both build on it.
  */
 import { levelReached } from '../numerics/steady-state.js';
-import { structureFunctionShift } from '../numerics/structure-function-shift.js';
+import { shiftDetectionFloor_K_per_W, structureFunctionShift } from '../numerics/structure-function-shift.js';
 import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { DegradationComparison } from '../schemas/degradation-comparison.js';
 import { resultCumulativeStructure } from './result-structure-function.js';
@@ -17,6 +17,12 @@ export const DEFAULT_RTH_RISE_LIMIT_PERCENT = 20;
 
 /** A change within this many standard uncertainties of the limit is judged with a warning that the judgement is uncertain there. */
 export const NEAR_LIMIT_STANDARD_UNCERTAINTIES = 2;
+
+/**
+ * An Rth total that changed by more than this many standard uncertainties, and by more than the least a shift must
+ * reach, while the structure functions show no shift: the two readings disagree, and a warning says what to check.
+ */
+export const SHIFT_DISAGREEMENT_STANDARD_UNCERTAINTIES = 3;
 
 /** What a later measurement is judged against. */
 export interface DegradationCriteria {
@@ -80,6 +86,18 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
           'the end-of-life judgement is uncertain near the limit; repeat both measurements, and let the qualification plan decide',
       ]
     : [];
+  const rthChange_K_per_W = later.rth_total_K_per_W - rthReference;
+  const detectionFloor_K_per_W = shiftDetectionFloor_K_per_W(rthReference);
+  const disagreementWarnings =
+    comparableLengths && shift.start === null && rthChange_K_per_W > detectionFloor_K_per_W && rthChangePercent > SHIFT_DISAGREEMENT_STANDARD_UNCERTAINTIES * changeUncertaintyPercent
+      ? [
+          `Rth total rose ${rthChangePercent.toFixed(2)} % (${rthChange_K_per_W.toPrecision(2)} K/W, ${(rthChangePercent / changeUncertaintyPercent).toFixed(0)} standard uncertainties of the change, ` +
+            `above the ${detectionFloor_K_per_W.toPrecision(2)} K/W a shift must reach at the least), but the structure functions show no shift above the detection limit of ` +
+            `${shift.threshold_K_per_W.toPrecision(2)} K/W (noise of the shift read as ${shift.scatter_K_per_W.toPrecision(2)} K/W): the two disagree. ` +
+            'Check the shift curve (curves.shift_K_per_W) for a step hidden by large swings where the structure function is steep, which raise the limit; ' +
+            'then the power, the calibration and the early-time window of both records; repeat both measurements. Until they agree, judge by the change of Rth total, not by "no shift"',
+        ]
+      : [];
   const start = shift.start === null ? null : { r_sum_K_per_W: shift.start.reference_r_K_per_W, c_sum_J_per_K: shift.start.c_J_per_K, well_placed: shift.start.well_placed };
   const shiftBeyondPackage = packageRth_K_per_W === undefined || start === null ? null : start.r_sum_K_per_W > packageRth_K_per_W;
   const packageWarnings = shiftBeyondPackage
@@ -101,6 +119,6 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
     shift_threshold_K_per_W: shift.threshold_K_per_W,
     shift_scatter_K_per_W: shift.scatter_K_per_W,
     curves: { c_J_per_K: Array.from(shift.c_J_per_K), reference_r_K_per_W: Array.from(shift.reference_r_K_per_W), shift_K_per_W: Array.from(shift.shift_K_per_W) },
-    warnings: [...comparisonWarnings(later), ...lengthWarnings, ...nearLimitWarnings, ...packageWarnings, ...shift.warnings],
+    warnings: [...comparisonWarnings(later), ...lengthWarnings, ...nearLimitWarnings, ...disagreementWarnings, ...packageWarnings, ...shift.warnings],
   };
 }
