@@ -330,6 +330,27 @@ describe('with a real Redis', () => {
     expect(changed.json().job_id).not.toBe(answer.job_id);
   });
 
+  it('takes a meta part sent as application/json, as the OpenAPI document declares it, with the checks of the text form', async () => {
+    const meta = { sample_id: 'S-mpjson', bench: 'B3', cycle_count: 7000, tags: ['lot9'], power_W: 50 };
+    const asJson = (value: string) => multipart([{ name: 'meta', value, type: 'application/json' }, { name: 'file', value: small, filename: 'j.csv', type: 'text/csv' }]);
+    const response = await uploadForm(context, asJson(JSON.stringify(meta)));
+    expect(response.statusCode, response.body).toBe(202);
+    expect(await context.store.getUpload(response.json().upload_id)).toMatchObject({ sample_id: 'S-mpjson', bench: 'B3', cycle_count: 7000, tags: ['lot9'], power: { power_W: 50 } });
+    // The same refusals as for meta sent as text.
+    expect(expectProblem(await uploadForm(context, asJson('[1, 2]')), 400, 'REQUEST_INVALID').detail).toBe('multipart field "meta" must be a JSON object');
+    expectProblem(await uploadForm(context, asJson(JSON.stringify({ ...meta, cycle_count: '40,000' }))), 400, 'CYCLE_COUNT_INVALID');
+    expect(expectProblem(await uploadForm(context, asJson('{"sample_id": ')), 400, 'REQUEST_INVALID').detail).toMatch(/sent as application\/json is not valid JSON/);
+    // A named field sent as application/json: a scalar is its text, an object has none.
+    const scalars = multipart([
+      { name: 'sample_id', value: '"S-mpjson"', type: 'application/json' },
+      { name: 'power_W', value: '50', type: 'application/json' },
+      { name: 'file', value: small, filename: 'j.csv', type: 'text/csv' },
+    ]);
+    expect((await uploadForm(context, scalars)).statusCode).toBe(202);
+    const object = multipart([{ name: 'sample_id', value: 'S-mpjson' }, { name: 'power_W', value: '{"W": 50}', type: 'application/json' }, { name: 'file', value: small, filename: 'j.csv', type: 'text/csv' }]);
+    expect(expectProblem(await uploadForm(context, object), 400, 'REQUEST_INVALID').detail).toMatch(/^multipart field "power_W" holds a JSON object: send its value as plain text/);
+  });
+
   it('records the format the parser saw when neither media type nor file name tell it', async () => {
     const rows = small.toString('utf8').trim().split('\n').slice(1).map((line) => line.split(',').map(Number));
     const json = `\ufeff  ${JSON.stringify({ time_s: rows.map((row) => row[0]), temperature_C: rows.map((row) => row[1]) })}`;

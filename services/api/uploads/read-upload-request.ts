@@ -41,6 +41,7 @@ export function readRawUpload(request: FastifyRequest, query: Partial<UploadQuer
 export async function readMultipartUpload(request: FastifyRequest, query: Partial<UploadQuery>): Promise<UploadRequest> {
   let file: { bytes: Buffer; fileName: string; mimeType: string } | undefined;
   const fields: Record<string, string | string[]> = {};
+  const metas: unknown[] = [];
   try {
     for await (const part of request.parts()) {
       if (part.type === 'file') {
@@ -48,7 +49,12 @@ export async function readMultipartUpload(request: FastifyRequest, query: Partia
         file = { bytes: await part.toBuffer(), fileName: part.filename || 'upload', mimeType: part.mimetype };
       } else {
         if (part.valueTruncated) throw new HeatpathError('UPLOAD_TOO_LARGE', `multipart field "${part.fieldname}" is too long`);
-        const value = String(part.value);
+        // A part sent as application/json (as the OpenAPI document declares meta) arrives parsed by the multipart plugin.
+        if (part.fieldname === 'meta') {
+          metas.push(part.value);
+          continue;
+        }
+        const value = fieldText(part.fieldname, part.value);
         const earlier = fields[part.fieldname];
         fields[part.fieldname] = earlier === undefined ? value : [earlier, value].flat();
       }
@@ -58,21 +64,33 @@ export async function readMultipartUpload(request: FastifyRequest, query: Partia
   }
   if (file === undefined) throw new HeatpathError('REQUEST_INVALID', 'multipart body has no part named "file"');
   const format = rawFormats[file.mimeType] ?? formatFromName(file.fileName);
-  const metadata = validateMetadata({ ...query, ...mergeFields(fields) }, 'multipart');
+  const metadata = validateMetadata({ ...query, ...mergeFields(fields, metas) }, 'multipart');
   const fileName = metadata.file_name ?? file.fileName;
   return { bytes: file.bytes, fileName, sourceName: fileName, format, metadata };
 }
 
-function mergeFields(fields: Record<string, string | string[]>): Record<string, unknown> {
-  const { meta, ...fieldsByName } = fields;
-  const named = withRequestCycleCount(fieldsByName, 'multipart field cycle_count');
-  if (meta === undefined) return named;
-  if (Array.isArray(meta)) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" appears more than once');
-  let parsed: unknown;
-  try {
-    parsed = JSON.parse(meta);
-  } catch (error) {
-    throw new HeatpathError('REQUEST_INVALID', `multipart field "meta" is not JSON: ${(error as Error).message}`);
+/**
+ * A metadata field's text. One sent as application/json arrives parsed: a JSON string, number or boolean is taken
+ * as the text it stands for; an object or array has no text form (only "meta" holds an object).
+ */
+function fieldText(name: string, value: unknown): string {
+  if (typeof value === 'string') return value;
+  if (typeof value === 'number' || typeof value === 'boolean') return String(value);
+  throw new HeatpathError('REQUEST_INVALID', `multipart field "${name}" holds a JSON ${Array.isArray(value) ? 'array' : value === null ? 'null' : 'object'}: send its value as plain text (repeat the field for several tags), or put the metadata as one JSON object in the "meta" field`);
+}
+
+/** The named fields over the `meta` object, sent as text or as application/json (then already parsed): one check for both. */
+function mergeFields(fields: Record<string, string | string[]>, metas: unknown[]): Record<string, unknown> {
+  const named = withRequestCycleCount(fields, 'multipart field cycle_count');
+  if (metas.length === 0) return named;
+  if (metas.length > 1) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" appears more than once');
+  let parsed = metas[0];
+  if (typeof parsed === 'string') {
+    try {
+      parsed = JSON.parse(parsed);
+    } catch (error) {
+      throw new HeatpathError('REQUEST_INVALID', `multipart field "meta" is not JSON: ${(error as Error).message}`);
+    }
   }
   if (parsed === null || typeof parsed !== 'object' || Array.isArray(parsed)) throw new HeatpathError('REQUEST_INVALID', 'multipart field "meta" must be a JSON object');
   return { ...withRequestCycleCount(parsed as Record<string, unknown>, 'multipart field "meta", key cycle_count'), ...named };
@@ -105,6 +123,9 @@ function asClientError(error: unknown): unknown {
   if (isHeatpathError(error)) return error;
   const code = (error as { code?: string }).code;
   // The parser counts parts and fields as a size limit (413), but a second file is a request of the wrong shape.
+  if (code === 'FST_INVALID_JSON_FIELD_ERROR') {
+    return new HeatpathError('REQUEST_INVALID', 'a multipart field sent as application/json is not valid JSON (or longer than the field limit): send it as valid JSON, or as plain text without that Content-Type');
+  }
   if (code === 'FST_FILES_LIMIT') return new HeatpathError('REQUEST_INVALID', 'multipart holds more than one file part; send exactly one, named "file"');
   if (code === 'FST_PARTS_LIMIT' || code === 'FST_FIELDS_LIMIT') {
     return new HeatpathError('REQUEST_INVALID', `multipart holds too many parts or fields (${(error as Error).message}); send one "file" part and the metadata fields, or one "meta" field`);
