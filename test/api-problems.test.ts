@@ -230,6 +230,26 @@ describe('with a real Redis', () => {
     expect((await upload(context, 'sample_id=S-s&power_W=50', syntheticTransientCsv(15, 10))).json().warnings).toEqual([]);
   });
 
+  it('warns in the 202 of a temperature_C column that looks like kelvin, in the words of the result, and names the column of a file of several', async () => {
+    // The synthetic record cools to about 25 degC; plus 273.15 its coldest sample lies above 200 degC, hotter than any cold plate.
+    const rows = small.toString('utf8').trim().split('\n').slice(1).map((line) => line.split(',').map(Number));
+    const inKelvin = Buffer.from(['time_s,temperature_C', ...rows.map(([t, v]) => `${t},${v + 273.15}`)].join('\n'));
+    const accepted = await upload(context, 'sample_id=S-kelvin&power_W=50', inKelvin);
+    expect(accepted.statusCode, accepted.body).toBe(202);
+    const [result] = analyzeTransientFile({ bytes: inKelvin, fileName: 'k.csv', power: { power_W: 50 } }, '2026-01-01T00:00:00.000Z');
+    const kelvinWarning = result.quality.warnings.find((w) => /if the column is in kelvin/.test(w));
+    expect(kelvinWarning).toMatch(/^the temperatures run from [23]\d\d\.\d to 3\d\d\.\d degC/);
+    expect(accepted.json().warnings).toEqual([kelvinWarning]);
+    // Two devices, B's column in kelvin: the 202 names B's column, and only B's result carries it.
+    const pair = Buffer.from(['time_s,temperature_C@A,temperature_C@B', ...rows.map(([t, v]) => `${t},${v},${v + 273.15}`)].join('\n'));
+    const pairAccepted = await upload(context, 'sample_id=S-kelvin2&power_W=50', pair);
+    const ofB = /^the temperatures of temperature_C@B run from .*if the column is in kelvin/;
+    expect(pairAccepted.json().warnings).toEqual([expect.stringMatching(ofB)]);
+    const [a, b] = analyzeTransientFile({ bytes: pair, fileName: 'pair.csv', power: { power_W: 50 } }, '2026-01-01T00:00:00.000Z');
+    expect(a.quality.warnings.some((w) => /in kelvin/.test(w))).toBe(false);
+    expect(b.quality.warnings.filter((w) => /in kelvin/.test(w))).toEqual([expect.stringMatching(ofB)]);
+  });
+
   it('400 for the file mistakes the CLI reports too: an ambiguous header power, a header key given twice, a JSON array', async () => {
     // 1,250 is 1250 or 1.25 (SI Brochure 9th ed., 5.4.4, memory: digits are grouped by spaces, as the comma may be the decimal sign).
     const ambiguous = expectProblem(await upload(context, 'sample_id=S-amb', Buffer.concat([Buffer.from('# power_W: 1,250\n'), small])), 400, 'INPUT_AMBIGUOUS_NUMBER');

@@ -4,6 +4,7 @@ import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
 import { estimateNoiseRms } from '../numerics/noise-estimate.js';
 import { kelvinTemperatureWarning } from '../numerics/kelvin-temperature-warning.js';
+import { KELVIN_SPARES_ZTH } from './kelvin-column-warning.js';
 import { calibrationExtrapolationWarnings, voltageToTemperature } from '../numerics/tsp-calibration.js';
 import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
 import { steadyStateRth } from '../numerics/steady-state.js';
@@ -55,7 +56,7 @@ export interface TransientFileInput {
  */
 export function analyzeTransientFile(input: TransientFileInput, createdAt: string): AnalysisResult[] {
   const file = input.parsed ?? parseTransient(input.bytes, input.fileName, input.format);
-  const { parameters, power, channelPowers, warnings: headerWarnings } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
+  const { parameters, power, channelPowers, warnings: headerWarnings, channelWarnings } = resolveAnalysisInputs(file, { parameters: input.parameters, power: input.power }, input.fileName);
   // Zth input needs neither power nor calibration, temperature input no calibration: what is given and
   // not used is neither recorded as used nor silently dropped.
   const calibrations = channelCalibrations(file, input, input.fileName);
@@ -83,7 +84,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     // Each channel's result names the calibration that converted it.
     const calibration = calibrations?.get(channel.name);
     const channelProvenance = { ...provenance, calibration_sha256: calibration ? calibrationIdOf(calibration) : null };
-    const warnings = [...inputWarnings, ...(calibration ? calibrationSampleWarning(calibration, sample) : [])];
+    const warnings = [...inputWarnings, ...(calibration ? calibrationSampleWarning(calibration, sample) : []), ...(channelWarnings.get(channel.name) ?? [])];
     return analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, channelProvenance, input.fileName, warnings);
   });
 }
@@ -155,14 +156,6 @@ function sharedPowerWarning(file: TransientFile, power_W: number | null): string
   ];
 }
 
-/** Zth and Rth stay right when temperatures are in kelvin; what does not, the kelvin warnings say. */
-const KELVIN_SPARES_ZTH = 'Zth and Rth depend only on differences and are unaffected, Tj(0) is not.';
-
-/** A temperature_C column more likely written in kelvin (kelvin-temperature-warning.ts). */
-function temperatureUnitWarning(temperature_C: Float64Array): string[] {
-  return kelvinTemperatureWarning(temperature_C, 'the temperatures', `if the column is in kelvin, subtract 273.15 (temperature_C is in degrees Celsius); ${KELVIN_SPARES_ZTH}`);
-}
-
 /** Junction temperatures that a calibration whose sweep was written in kelvin gives (kelvin-temperature-warning.ts). */
 function calibratedTemperatureUnitWarning(temperature_C: Float64Array): string[] {
   return kelvinTemperatureWarning(
@@ -205,7 +198,6 @@ function analyzeChannel(
   const warnings: string[] = [...inputWarnings];
   const { zth, temperature_C, noise_K, noise_K_per_W } = channelZth(file, values, parameters, power_W, calibration);
   if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)), ...calibratedTemperatureUnitWarning(temperature_C!));
-  if (file.quantity === 'temperature_C') warnings.push(...temperatureUnitWarning(temperature_C!));
   warnings.push(...zth.early_time.warnings);
 
   const steady = steadyStateRth(time_s, zth.zth_K_per_W, noise_K_per_W);

@@ -7,6 +7,7 @@ import { plainValidationIssues } from '../schemas/plain-validation-issues.js';
 import { heatingPower_W } from '../numerics/zth-from-temperature.js';
 import { givenEarlyTimeWindow } from '../numerics/early-time-window.js';
 import { timeUnitWarning } from './time-unit-warning.js';
+import { kelvinColumnWarnings } from './kelvin-column-warning.js';
 
 /**
  * The parameters and power an analysis of `file` really uses: what the caller
@@ -23,20 +24,23 @@ import { timeUnitWarning } from './time-unit-warning.js';
  * every channel.
  *
  * `warnings` are what the file and request alone show to be doubtful (a power
- * or kind given against the file's header, times that look like milliseconds):
- * the service's upload answer carries them, as the result does.
+ * or kind given against the file's header, times that look like milliseconds),
+ * `channelWarnings` what they show of one channel (temperatures that look like
+ * kelvin), by channel name: the service's upload answer carries both, as the
+ * results do (each channel's result its own).
  */
 export function resolveAnalysisInputs(
   file: TransientFile,
   given: { parameters?: Partial<AnalysisParameters>; power?: Power },
   fileName: string,
-): { parameters: AnalysisParameters; power: Power | undefined; channelPowers: Map<string, Power> | undefined; warnings: string[] } {
+): { parameters: AnalysisParameters; power: Power | undefined; channelPowers: Map<string, Power> | undefined; warnings: string[]; channelWarnings: Map<string, string[]> } {
   const parameters = resolveParameters(given.parameters ?? {}, file, fileName);
   checkEarlyTimeWindow(file, parameters, fileName);
   const usesPower = file.quantity !== 'zth_K_per_W';
   const channelPowers = given.power === undefined && usesPower ? channelPowersFromMeta(file, fileName) : undefined;
   const power = given.power ?? (channelPowers ? undefined : powerFromMeta(file, fileName, usesPower));
-  return { parameters, power, channelPowers, warnings: [...overriddenHeaderLines(file, given, fileName), ...timeUnitWarning(file, parameters)] };
+  const warnings = [...overriddenHeaderLines(file, given, fileName), ...timeUnitWarning(file, parameters)];
+  return { parameters, power, channelPowers, warnings, channelWarnings: kelvinColumnWarnings(file) };
 }
 
 /** The `# power_W@CHANNEL:` (or current_A@, voltage_V@) lines of a file. */

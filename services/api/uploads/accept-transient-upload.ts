@@ -56,13 +56,14 @@ export async function acceptTransientUpload(
   const { metadata } = upload;
   const transient = parseTransient(upload.bytes, upload.sourceName, upload.format);
   const { cycleCount, warnings } = cycleCountOf(metadata, cycleCountFromMeta(transient, upload.sourceName));
-  const { parameters, power: resolvedPower, channelPowers, warnings: headerWarnings } = resolveAnalysisInputs(
+  const { parameters, power: resolvedPower, channelPowers, warnings: headerWarnings, channelWarnings } = resolveAnalysisInputs(
     transient,
     { parameters: givenParametersOf(metadata), power: powerOf(metadata) ?? undefined },
     upload.sourceName,
   );
-  // A power or kind that contradicts the file's header is used, and times that look like milliseconds are read as seconds: said here as in the result, so the bench hears of it now.
-  warnings.push(...headerWarnings);
+  // A power or kind that contradicts the file's header is used, times that look like milliseconds are read as seconds,
+  // and temperatures that look like kelvin as degrees Celsius: said here as in the result, so the bench hears of it now.
+  warnings.push(...headerWarnings, ...[...channelWarnings.values()].flat());
   const power = resolvedPower ?? null;
   const given = await calibrationsOf(store, metadata);
   const givenCalibrations = { calibration: given.all?.calibration, channelCalibrations: new Map([...given.own].map(([name, own]) => [name, own.calibration])) };
