@@ -94,6 +94,22 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     });
   });
 
+  it('lists each completed upload of the sample with its result in brief (channel, Rth total, warnings), without include_results', async () => {
+    const answer = await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31/results', headers: bearer('reader') });
+    expect(answer.statusCode).toBe(200);
+    const { transients } = answer.json();
+    expect(transients).toHaveLength(4);
+    for (const entry of transients) {
+      // The stored result itself is the expected value: the summary only copies from it.
+      const stored = (await ctx.store.getResult(entry.job.job_id))!.results as { source: { channel: string }; rth_total_K_per_W: number; quality: { warnings: string[] } }[];
+      expect(entry.job).not.toHaveProperty('result');
+      expect(entry.job.summary).toEqual(stored.map((result) => ({ channel: result.source.channel, rth_total_K_per_W: result.rth_total_K_per_W, warnings: result.quality.warnings })));
+    }
+    // The LIMS's point: a page of summaries is a small fraction of a page of results.
+    const full = await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31/results?include_results=true', headers: bearer('reader') });
+    expect(answer.body.length * 20).toBeLessThan(full.body.length);
+  });
+
   it("passes on the reference's own analysis warnings: every comparison stands on it", async () => {
     // The reference's header says 60 W while the upload gives 50 W: its analysis warns, the later one's does not.
     const reference = Buffer.from(readFileSync(campaign[0], 'utf8').replace('# power_W: 50', '# power_W: 60'));

@@ -15,9 +15,19 @@ const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('complet
   description: 'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that had not started when it was cancelled.',
 });
 
+/** What a LIMS shows per measurement, without fetching the whole result (some 200 kB). */
+const ChannelSummarySchema = Type.Object({
+  channel: Type.String({ description: "The result's channel (source.channel)." }),
+  rth_total_K_per_W: Type.Number({ description: "The result's rth_total_K_per_W." }),
+  warnings: Type.Array(Type.String(), { description: "The result's quality.warnings." }),
+});
+
 const JobOutcomeSchema = Type.Object({
   job_id: Type.String(),
   outcome: OutcomeSchema,
+  summary: Type.Optional(
+    Type.Array(ChannelSummarySchema, { description: 'A completed job\'s result in brief, one entry per channel, with or without include_results: Rth total and the warnings.' }),
+  ),
   result: Type.Optional(
     Type.Omit(ResultRecordSchema, ['upload_id', 'sample_id'], {
       description: "The job's stored result, without the upload and sample it was first queued for: uploads of the same content and parameters share a job.",
@@ -94,7 +104,9 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
     const result = await store.getResult(jobId);
     if (result) {
       const { upload_id: _firstUpload, sample_id: _firstSample, ...shared } = result;
-      return { job_id: jobId, outcome: 'completed' as const, ...(includeResult && { result: { ...shared, results: shared.results as AnalysisResult[] } }) };
+      const results = shared.results as AnalysisResult[];
+      const summary = results.map((channel) => ({ channel: channel.source.channel, rth_total_K_per_W: channel.rth_total_K_per_W, warnings: channel.quality.warnings }));
+      return { job_id: jobId, outcome: 'completed' as const, summary, ...(includeResult && { result: { ...shared, results } }) };
     }
     if (await store.hasFailure(jobId)) return { job_id: jobId, outcome: 'failed' as const };
     return { job_id: jobId, outcome: batchCancelled ? ('cancelled' as const) : ('pending' as const) };
