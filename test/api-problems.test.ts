@@ -320,6 +320,21 @@ describe('with a real Redis', () => {
     expect(expectProblem(response, 400, 'REQUEST_INVALID').detail).toMatch(/more than one file part; send exactly one, named "file"/);
   });
 
+  it('says what a patterned field allows in words, not as its regular expression, naming the field (worded-patterns.ts)', async () => {
+    const sampleWords = 'must be letters, digits, . _ - only (no spaces or /), starting with a letter or digit, up to 128 characters';
+    expect(expectProblem(await upload(context, 'sample_id=LOT%207&power_W=50', small), 400, 'REQUEST_INVALID').detail).toBe(`querystring/sample_id ${sampleWords}`);
+    const slash = multipart([{ name: 'sample_id', value: 'LOT/7' }, { name: 'power_W', value: '50' }, { name: 'file', value: small, filename: 'p.csv', type: 'text/csv' }]);
+    const inForm = expectProblem(await uploadForm(context, slash), 400, 'REQUEST_INVALID');
+    expect(inForm.detail).toBe(`multipart/sample_id ${sampleWords}`);
+    expect(inForm.errors).toEqual([{ field: 'multipart/sample_id', message: sampleWords }]);
+    expect(expectProblem(await upload(context, 'sample_id=S1&power_W=50&calibration_id=abc123', small), 400, 'REQUEST_INVALID').detail).toMatch(
+      /^querystring\/calibration_id must be a calibration id: exactly 64 lower-case hexadecimal digits \(0-9, a-f\)/,
+    );
+    // A route's own parameter, checked by fastify's validator (ajv) rather than by the upload's TypeBox check.
+    const job = await context.app.inject({ url: '/v1/jobs/job%20one', headers: bearer('reader') });
+    expect(expectProblem(job, 400, 'REQUEST_INVALID').detail).toMatch(/^params\/job_id must be letters, digits, \. _ - only \(no spaces or \/\), not starting with \., up to 160 characters/);
+  });
+
   it('415 for a media type the upload does not take', async () => {
     expectProblem(await upload(context, 'sample_id=S1&power_W=50', '<transient/>', { 'content-type': 'application/xml' }), 415, 'MEDIA_TYPE_UNSUPPORTED');
   });

@@ -4,6 +4,7 @@ import { Type, type Static } from 'typebox';
 import { Value } from 'typebox/value';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { plainValidationIssues } from '../../shared/schemas/plain-validation-issues.js';
+import { QUEUE_PREFIX_PATTERN, REDIS_URL_PATTERN } from '../../shared/schemas/worded-patterns.js';
 import { typedFieldsFromText } from '../../shared/schemas/typed-fields-from-text.js';
 import { parseApiKeyList, type ApiKey } from './api-key-list.js';
 
@@ -15,14 +16,14 @@ import { parseApiKeyList, type ApiKey } from './api-key-list.js';
 export const ServiceEnvSchema = Type.Object({
   PORT: Type.Integer({ minimum: 0, maximum: 65535, default: 8080, description: 'TCP port of the HTTP API (0 picks a free one).' }),
   HOST: Type.String({ minLength: 1, default: '127.0.0.1', description: 'Address the API listens on; 0.0.0.0 serves the whole lab network.' }),
-  REDIS_URL: Type.String({ pattern: '^rediss?://', default: 'redis://127.0.0.1:6379', description: 'Redis holding the job queue (redis:// or rediss://).' }),
+  REDIS_URL: Type.String({ pattern: REDIS_URL_PATTERN.pattern, default: 'redis://127.0.0.1:6379', description: 'Redis holding the job queue (redis:// or rediss://).' }),
   HEATPATH_DATA_DIR: Type.String({ minLength: 1, default: '.heatpath-data', description: 'Durable store of raw transients, uploads and results (relative to the working directory).' }),
   HEATPATH_API_KEYS: Type.Optional(Type.String({ description: 'API keys as name:role:token, comma-separated; role is bench, reader or admin.' })),
   HEATPATH_API_KEYS_FILE: Type.Optional(Type.String({ minLength: 1, description: 'File with one name:role:token a line (# comments); instead of HEATPATH_API_KEYS.' })),
   HEATPATH_MAX_UPLOAD_BYTES: Type.Integer({ minimum: 1024, default: 32 * 1024 * 1024, description: 'Largest accepted upload body or file in bytes; larger ones get 413.' }),
   HEATPATH_RATE_LIMIT_PER_MINUTE: Type.Integer({ minimum: 1, default: 1200, description: 'Requests per API key per minute; more get 429.' }),
   HEATPATH_REDIS_ANSWER_MS: Type.Integer({ minimum: 50, default: 2000, description: 'How long an API request waits for Redis; then uploads are answered as stored (queued later) and reads get 503.' }),
-  HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: '^[^:]+$', default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
+  HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: QUEUE_PREFIX_PATTERN.pattern, default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
   HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core plus one.' })),
   HEATPATH_WORKER_METRICS_PORT: Type.Optional(Type.Integer({ minimum: 0, maximum: 65535, description: 'Port on HOST where a worker process started alone (npm run start:worker) serves its job metrics at /metrics for Prometheus, without a key; unset: none (npm start serves them on the API\'s /metrics).' })),
   HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration; a dead worker\'s job is taken over by another after about this long.' }),

@@ -1,4 +1,5 @@
 import { closestName } from '../input/closest-name.js';
+import { patternInWords } from './worded-patterns.js';
 
 /** One schema violation as fastify's validators (ajv, TypeBox) report it. */
 export interface ValidationIssue {
@@ -34,7 +35,8 @@ export interface PlainIssue {
  * properties" does not say which; TypeBox adds "schema is false"), with the
  * known field it most likely meant (`power_w`: did you mean power_W?), at
  * any depth of `schema` (`selection/sampel_id`: did you mean sample_id?), as
- * the command line does for options.
+ * the command line does for options. A value that does not match a pattern
+ * listed in worded-patterns.ts is told what the field allows in words.
  */
 export function plainValidationIssues(issues: readonly ValidationIssue[], context: string, schema?: SchemaNode): PlainIssue[] {
   const allowed = new Map<string, unknown[]>();
@@ -66,6 +68,8 @@ export function plainValidationIssues(issues: readonly ValidationIssue[], contex
       for (const name of [named].flat()) if (typeof name === 'string') add(`${field}/${name}`, unknown(path, name));
     } else if (issue.keyword === 'boolean' && issue.message === 'schema is false') {
       add(field, unknown(path.slice(0, path.lastIndexOf('/')), path.slice(path.lastIndexOf('/') + 1)));
+    } else if (issue.keyword === 'pattern' && patternInWords(issue.params?.pattern) !== undefined) {
+      add(field, `must be ${patternInWords(issue.params?.pattern)}`);
     } else {
       add(field, issue.message ?? 'is invalid');
     }

@@ -1,12 +1,13 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { RECORD_ID_PATTERN } from '../../../shared/schemas/worded-patterns.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { FAILED_JOB_IDS_SHOWN, type BatchProgress, type BatchReprocessor } from '../../../workers/reprocess-batch.js';
 import { analysisParameterOverrides } from '../schemas/analysis-parameter-overrides.js';
 import { CalibrationIdSchema } from '../schemas/calibration-id-schema.js';
 
-const BatchParams = Type.Object({ batch_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
+const BatchParams = Type.Object({ batch_id: Type.String({ pattern: RECORD_ID_PATTERN.pattern }) });
 
 const isoTime = (description: string) => Type.String({ format: 'date-time', description });
 

@@ -2,6 +2,7 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { resultArtifacts } from '../../../shared/analysis/result-artifacts.js';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { RECORD_ID_PATTERN } from '../../../shared/schemas/worded-patterns.js';
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { ResultRecord } from '../../store/store-records.js';
 import type { TransientStore } from '../../store/transient-store.js';
@@ -12,7 +13,7 @@ import { JobStatusSchema, readJobStatus } from '../jobs/job-status.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 import { jobLinks } from '../../jobs/job-links.js';
 
-const JobParams = Type.Object({ job_id: Type.String({ pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$' }) });
+const JobParams = Type.Object({ job_id: Type.String({ pattern: RECORD_ID_PATTERN.pattern }) });
 
 const ArtifactListSchema = Type.Object({
   job_id: Type.String(),

@@ -1,5 +1,6 @@
 import { Type, type Static } from 'typebox';
 import { CalibrationSchema } from '../../../shared/schemas/calibration.js';
+import { SAMPLE_ID_PATTERN } from '../../../shared/schemas/worded-patterns.js';
 import { analysisParameterOverrides } from './analysis-parameter-overrides.js';
 import { CalibrationIdSchema } from './calibration-id-schema.js';
 
@@ -26,7 +27,7 @@ const parameterFields = analysisParameterOverrides((schemaDefault) => `Default: 
  */
 export const UploadQuerySchema = Type.Object(
   {
-    sample_id: Type.String({ pattern: '^[A-Za-z0-9][A-Za-z0-9._-]{0,127}$', description: 'The LIMS sample id (letters, digits, . _ -).' }),
+    sample_id: Type.String({ pattern: SAMPLE_ID_PATTERN.pattern, description: 'The LIMS sample id (letters, digits, . _ -).' }),
     bench: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: 'The bench that measured.' })),
     channel: Type.Optional(Type.String({ minLength: 1, maxLength: 64, description: "The bench's own label of where it measured (its channel or the device position), kept and listed with the upload. Not the channels analysed: those are the file's value columns (temperature_C@A is channel A)." })),
     cycle_count: Type.Optional(Type.Integer({ minimum: 0, description: 'Power cycles the device had seen when measured, in digits only (40000; 40,000, 20.000 or 2e4 is CYCLE_COUNT_INVALID). Default: the file\'s "# cycle_count:" line; given both, this one is used and the answer warns when they differ.' })),
