@@ -168,6 +168,20 @@ describe('parseTransient CSV', () => {
     expect(error.message).toContain('"abc"');
   });
 
+  it('says what a field that is no number holds and that a number is expected, a missing-value marker as such', () => {
+    const detailFor = (field: string) => {
+      const rows = coolingRows(times);
+      rows[3] = `${times[3]},${field}`;
+      return catchHeatpathError(() => parseTransient(csv('time_s,temperature_C', rows), 'e.csv')).detail;
+    };
+    expect(detailFor('n/a')).toBe('found "n/a", expected a number (a missing sample? heatpath does not interpolate: remove its row)');
+    expect(detailFor('')).toBe('found an empty field, expected a number (a missing sample? heatpath does not interpolate: remove its row)');
+    expect(detailFor('88.1x')).toBe('found "88.1x", expected a number');
+    const json = (value: unknown) => JSON.stringify({ time_s: [1e-6, 2e-6], temperature_C: [80, value] });
+    expect(catchHeatpathError(() => parseTransient(json('79.5'), 'j.json')).detail).toBe('temperature_C[1] is the string "79.5", where a JSON number is expected: write it without the quotes');
+    expect(catchHeatpathError(() => parseTransient(json('n/a'), 'j.json')).detail).toBe('temperature_C[1] is the string "n/a", where a JSON number is expected');
+  });
+
   const errorCases: [string, string, string, number | undefined, string | undefined][] = [
     ['empty input', '', 'INPUT_EMPTY', undefined, undefined],
     ['only comments', '# a: b\n\n# c\n', 'INPUT_EMPTY', undefined, undefined],

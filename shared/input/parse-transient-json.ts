@@ -229,7 +229,10 @@ function notANumberError(element: unknown, fileName: string, column: string, i: 
   if (typeof element === 'number') return new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] overflows a double`, at);
   if (element === null) return new HeatpathError('INPUT_NOT_FINITE', `${column}[${i}] is null (a NaN or infinity written by a JSON serialiser?)`, at);
   const shown = typeof element === 'string' ? element : (JSON.stringify(element) ?? String(element));
-  return new HeatpathError('INPUT_NOT_NUMERIC', `${column}[${i}] is ${quoteInputText(shown)}`, at);
+  // A number in quotes is the commonest case: it needs only its quotes removed.
+  const quotedNumber = typeof element === 'string' && element.trim() !== '' && Number.isFinite(Number(element));
+  const found = typeof element === 'string' ? `the string ${quoteInputText(shown)}` : quoteInputText(shown);
+  return new HeatpathError('INPUT_NOT_NUMERIC', `${column}[${i}] is ${found}, where a JSON number is expected${quotedNumber ? ': write it without the quotes' : ''}`, at);
 }
 
 function readMeta(value: unknown, fileName: string): Record<string, string> {

@@ -355,6 +355,18 @@ function cleanField(field: string): string {
   return isQuoted(trimmed) ? trimmed.slice(1, -1).replaceAll('""', '"').trim() : trimmed;
 }
 
+/** Longest text taken as a missing-value marker (n/a, NA, -, null, missing, #N/A) rather than a mistyped value. */
+const MISSING_MARKER_MAX_CHARS = 12;
+
+/**
+ * What a field that is no number holds, and that a number is expected: a short text without a digit ("n/a", "-",
+ * or nothing) marks a missing sample, which heatpath does not interpolate over; one with digits is a number mistyped.
+ */
+function notANumberDetail(text: string): string {
+  const missing = !/\d/.test(text) && text.length <= MISSING_MARKER_MAX_CHARS ? ' (a missing sample? heatpath does not interpolate: remove its row)' : '';
+  return `${text === '' ? 'found an empty field' : `found ${quoteInputText(text)}`}, expected a number${missing}`;
+}
+
 function parseNumber(field: string, separator: string, fileName: string, line: number, name: string): number {
   const text = cleanField(field);
   // A decimal comma only where the comma is not the separator: in a comma-separated file, inside quotes (decimal-number-text.ts).
@@ -362,7 +374,7 @@ function parseNumber(field: string, separator: string, fileName: string, line: n
   if (Number.isNaN(value)) {
     const at = { file: fileName, line, column: shortenInputText(name) };
     if (NOT_FINITE_WORD.test(text)) throw new HeatpathError('INPUT_NOT_FINITE', quoteInputText(text), at);
-    throw new HeatpathError('INPUT_NOT_NUMERIC', text === '' ? 'the field is empty' : quoteInputText(text), at);
+    throw new HeatpathError('INPUT_NOT_NUMERIC', notANumberDetail(text), at);
   }
   if (!Number.isFinite(value)) {
     throw new HeatpathError('INPUT_NOT_FINITE', `${quoteInputText(text)} overflows a double`, { file: fileName, line, column: shortenInputText(name) });
