@@ -89,7 +89,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(fromService.reference.rth_total_K_per_W).toBe(fromCli.reference.rth_total_K_per_W);
     fromCli.later.forEach((row: Record<string, unknown>, index: number) => {
       const { file: _file, cycle_count: _cycles, ...comparison } = row;
-      const { upload_id: _u, received_at: _r, cycle_count: _c, job_id: _j, ...served } = fromService.later[index];
+      const { upload_id: _u, received_at: _r, cycle_count: _c, job_id: _j, analysis: _a, ...served } = fromService.later[index];
       expect(served).toEqual(comparison);
     });
   });
@@ -153,6 +153,27 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     const asReference = await ctx.app.inject({ method: 'GET', url: `/v1/samples/M31D/degradation?reference_upload_id=${mistyped.json().upload_id}`, headers: bearer('reader') });
     expect(asReference.statusCode).toBe(404);
     expect(asReference.json().detail).toMatch(/: the same bytes were sent again as upload \S+ .*which counts instead/);
+  }, 60_000);
+
+  it('states what each measurement was analysed with, and warns when a file sent again with other parameters mixes them', async () => {
+    const send = (file: string, query = '') =>
+      ctx.app.inject({ method: 'POST', url: `/v1/transients?sample_id=M31P${query}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: readFileSync(file) });
+    const jobsDone = async (answers: { json: () => { job_id: string } }[]) =>
+      eventually(async () => (await Promise.all(answers.map((answer) => ctx.store.hasResult(answer.json().job_id)))).every(Boolean));
+    const sent = [await send(campaign[0]), await send(campaign[3])];
+    await jobsDone(sent);
+    const alike = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31P/degradation', headers: bearer('reader') })).json();
+    expect(alike.reference.analysis).toEqual({ algorithm: ALGORITHM_VERSION, method: 'posterior-mean', parameters: { kind: 'cooling', method: 'posterior-mean', points_per_decade: 40, compact_stages: 5 } });
+    expect(alike.later[0].analysis).toEqual(alike.reference.analysis);
+    expect(alike.warnings).toEqual([]);
+    // The later file sent again with other parameters, as heatpath reprocess --server does: its latest upload counts.
+    const again = await send(campaign[3], '&points_per_decade=20');
+    await jobsDone([again]);
+    const mixed = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31P/degradation', headers: bearer('reader') })).json();
+    expect(mixed.later[0]).toMatchObject({ upload_id: again.json().upload_id, analysis: { parameters: { points_per_decade: 20 } } });
+    expect(mixed.warnings).toEqual([
+      expect.stringMatching(/^the 2 measurements of this trend were not all analysed alike: points_per_decade 40 \(1\), 20 \(1\) \(see each one's analysis\)\. .*reprocess the sample in one batch \(POST \/v1\/batches with its sample_id\)/),
+    ]);
   }, 60_000);
 
   it('takes the first measurement sent again as the reference without a warning: the same bytes are the same measurement', async () => {

@@ -1,6 +1,6 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
-import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
+import { AnalysisResultSchema, type AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 import { UploadLinksSchema } from '../schemas/upload-record-schema.js';
@@ -56,6 +56,9 @@ const MeasurementSchema = Type.Object({
   cycle_count: Type.Union([Type.Integer(), Type.Null()]),
   job_id: Type.String(),
   rth_total_K_per_W: Type.Number(),
+  analysis: Type.Pick(AnalysisResultSchema.properties.provenance, ['algorithm', 'method', 'parameters'], {
+    description: "What this measurement's result was analysed with (its provenance): the trend warns when its measurements were not all analysed alike.",
+  }),
 });
 
 const SampleDegradationSchema = Type.Object({

@@ -48,6 +48,7 @@ interface Measurement {
 
 const measurementOf = ({ upload, job_id, result }: Measurement) => ({
   upload_id: upload.upload_id, received_at: upload.received_at, cycle_count: upload.cycle_count, job_id, rth_total_K_per_W: result.rth_total_K_per_W,
+  analysis: { algorithm: result.provenance.algorithm, method: result.provenance.method, parameters: result.provenance.parameters },
 });
 
 /**
@@ -143,7 +144,7 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     }
   }
   // The reference's own analysis warnings: every comparison stands on it.
-  const warnings: string[] = comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`);
+  const warnings: string[] = [...comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`), ...mixedAnalysesWarning([reference, ...measurements.filter((_, index) => index !== referenceIndex)])];
   const withoutCycleCount = measurements.filter(({ upload }) => upload.cycle_count === null).map(({ upload }) => upload.upload_id);
   if (!byCycleCount) {
     warnings.push(
@@ -216,6 +217,26 @@ function channelsOf(found: { results: AnalysisResult[] }[]): string[] {
 function onlyChannel(channels: string[]): string {
   if (channels.length > 1) throw new HeatpathError('REQUEST_INVALID', `the sample's results have channels ${channels.join(', ')}: choose one with ?channel=`);
   return channels[0] ?? '1';
+}
+
+/**
+ * The settings the trend's measurements were analysed with, where they are not all one: an upload sent again with
+ * other parameters (heatpath reprocess --server) becomes the latest upload of its bytes, and so the trend's entry.
+ */
+function mixedAnalysesWarning(measurements: Measurement[]): string[] {
+  const settings = measurements.map(({ result }) => ({ algorithm: result.provenance.algorithm, ...result.provenance.parameters }) as Record<string, unknown>);
+  const names = [...new Set(settings.flatMap((setting) => Object.keys(setting)))];
+  const differing = names.flatMap((name) => {
+    const counts = new Map<string, number>();
+    for (const setting of settings) counts.set(String(setting[name] ?? 'automatic'), (counts.get(String(setting[name] ?? 'automatic')) ?? 0) + 1);
+    return counts.size > 1 ? [`${name} ${[...counts].map(([value, count]) => `${value} (${count})`).join(', ')}`] : [];
+  });
+  if (differing.length === 0) return [];
+  return [
+    `the ${measurements.length} measurements of this trend were not all analysed alike: ${differing.join('; ')} (see each one's analysis). ` +
+      'Each upload counts with its own job, and bytes sent again with other parameters count as that latest upload: to compare like with like, ' +
+      'reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id=',
+  ];
 }
 
 /** Structure functions compare like with like only under the same algorithm version and parameters. */
