@@ -190,7 +190,7 @@ describe('heatpath reprocess', () => {
     const args = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)];
     expect(await runReprocessCommand(args, print)).toBe(2);
     const summary = (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n');
-    expect(summary[0]).toBe('file,sha256,status,job_id,detail');
+    expect(summary[0]).toBe('file,sha256,status,job_id,detail,warnings');
     expect(summary.slice(1).map((row) => row.split(',').slice(0, 3).filter((_, i) => i !== 1))).toEqual([
       ['D1/t1.csv', 'ok'],
       ['D2/broken.csv', 'rejected'],
@@ -325,6 +325,33 @@ describe('heatpath reprocess to a server (real API, real Redis)', () => {
     expect(await runReprocessCommand([...args, '--method', 'fourier'], print)).toBe(0);
     expect(printed.at(-1)).toMatch(/\(2 done before\)/);
     expect(await api.store.listUploads({ sample_id: 'SAMPLE-10' })).toHaveLength(4);
+  });
+
+  it("shows the server's warnings as submit does, each kind once in full and then counted, and keeps every file's in the summary", async () => {
+    for (const [index, name] of ['t1', 't2', 't3'].entries()) await writeTransient(`lab/SAMPLE-13/${name}.csv`, 91 + index);
+    const out = join(workDir, 'out');
+    const args = [join(workDir, 'lab'), ...serverOptions(), '--out', out];
+    expect(await runReprocessCommand(args, print)).toBe(0);
+    expect(errors.join('')).not.toContain('warning');
+    errors.length = 0;
+    // Sent again with another method: the server warns of each file that its bytes were uploaded for the sample before.
+    expect(await runReprocessCommand([...args, '--method', 'fourier'], print)).toBe(0);
+    const lines = errors.join('').split('\n').filter((line) => line.includes('warning'));
+    const sentBefore = /the same bytes were uploaded for this sample before, as upload upl-\S+ \(received [^)]+\): one measurement sent twice, which the degradation trend counts once, as this upload$/;
+    // Uploads run 4 at a time: the file shown is the first to be answered.
+    const shown = /^heatpath reprocess: (SAMPLE-13\/t\d\.csv): warning: /.exec(lines[0])?.[1];
+    expect(lines).toEqual([
+      expect.stringMatching(new RegExp(`^heatpath reprocess: ${shown}: warning: ${sentBefore.source}`)),
+      expect.stringMatching(new RegExp(`^heatpath reprocess: warning on 3 files \\(shown for ${shown} only; each file's own in the summary's warnings column\\): ${sentBefore.source}`)),
+    ]);
+    // The summary has each file's own warning, naming its own earlier upload.
+    const summary = (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n');
+    expect(summary[0]).toBe('file,sha256,status,job_id,detail,warnings');
+    const uploads = await api.store.listUploads({ sample_id: 'SAMPLE-13' });
+    for (const [index, row] of summary.slice(1).entries()) {
+      const first = uploads.find((upload) => upload.file_name === `t${index + 1}.csv` && upload.parameters.method === 'posterior-mean')!;
+      expect(row).toMatch(new RegExp(`^SAMPLE-13/t${index + 1}\\.csv,.*,"the same bytes were uploaded for this sample before, as upload ${first.upload_id} `));
+    }
   });
 
   it("names a refused file by its path in the archive, as the summary does, not by its base name, which repeats across folders", async () => {

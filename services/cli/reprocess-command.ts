@@ -11,6 +11,7 @@ import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { userErrorLine } from './user-error-line.js';
+import { WarningTally } from './warning-tally.js';
 import { readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
 import type { UploadTarget } from './post-to-server.js';
 import { uploadTransient } from './transient-upload-client.js';
@@ -28,7 +29,14 @@ with the same --out, a file done before with the same job is skipped; one
 done under other settings, or changed, is done again (with --local its
 results in OUT/results/ are replaced: give another --out to keep both).
 Writes OUT/reprocess-summary.csv, also when stopped by Ctrl-C (which lets
-the files in progress finish; press it again to stop at once).
+the files in progress finish; press it again to stop at once). Warnings (the
+server's on each upload, the analysis's with --local) are shown on stderr
+once per kind, then counted at the end; each file's own are in the summary.
+
+With --server every file sent becomes its sample's latest upload of those
+bytes, which the sample's degradation trend counts: to compare other
+parameters without that, reprocess on the server with a batch
+(POST /v1/batches) instead.
 
   --local                 analyse on this machine (results in OUT/results/)
   --out DIR               state, summary and local results (default ./heatpath-reprocess)
@@ -49,7 +57,7 @@ const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
 const EXIT_INTERRUPTED = 130;
 
 /** A file's outcome; `problem` is the one stderr line of a rejected or failed file, as `analyze` prints it. */
-type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail'> & { problem?: string };
+type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail' | 'warnings'> & { problem?: string };
 type Processor = (path: string, relativePath: string, bytes: Buffer, job: { jobId: string; parsed?: TransientFile }) => Promise<Processed>;
 
 /**
@@ -104,6 +112,7 @@ export async function runReprocessCommand(
   const outcomes = await readReprocessState(join(outDir, STATE_FILE));
   const thisRun = new Map<string, FileOutcome>();
   const progress = new ProgressReport(files.length);
+  const warningTally = new WarningTally();
   const ctrlC = stop ? undefined : stopOnCtrlC();
   const stopped = stop ?? ctrlC!.signal;
   let skipped = 0;
@@ -139,7 +148,8 @@ export async function runReprocessCommand(
       outcomes.set(relativePath, outcome);
       thisRun.set(relativePath, outcome);
       await appendOutputFile(join(outDir, STATE_FILE), JSON.stringify(outcome) + '\n');
-      progress.record(relativePath, outcome.status, note, problem);
+      const warningLines = warningTally.record(relativePath, outcome.warnings ?? []).map((line) => `heatpath reprocess: ${line}`);
+      progress.record(relativePath, outcome.status, note, [...(problem ? [problem] : []), ...warningLines]);
     }
   };
   try {
@@ -148,6 +158,7 @@ export async function runReprocessCommand(
     ctrlC?.release();
     progress.finish();
   }
+  for (const line of warningTally.summary()) process.stderr.write(`heatpath reprocess: ${line}\n`);
 
   const inRun = files.map(({ relativePath }) => thisRun.get(relativePath)).filter((outcome) => outcome !== undefined);
   await writeOutputFile(join(outDir, SUMMARY_FILE), summaryCsv(inRun));
@@ -179,7 +190,7 @@ function serverProcessor(target: UploadTarget, metadata: URLSearchParams, values
     try {
       // Its rejection names the file by its path in the archive (M6/empty.csv): base names repeat across sample folders.
       const uploaded = await uploadTransient(target, bytes, basename(relativePath), query, relativePath);
-      return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state };
+      return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state, ...(uploaded.warnings.length > 0 && { warnings: uploaded.warnings }) };
     } catch (error) {
       return failureOf(error);
     }
@@ -197,7 +208,8 @@ function localProcessor(inputs: AnalysisInputs, outDir: string, folderOf: (relat
       const file = parsed ? { file: path, bytes, parsed, folder: folderOf(relativePath) } : path;
       const run = await analyzeFiles([file], { ...inputs, outRoot: join(outDir, 'results', dirname(relativePath)), createdAt: new Date().toISOString() });
       if (run.failures.length > 0) return failureOf(run.failures[0]);
-      return { status: 'ok', job_id: jobId, detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W` };
+      const warnings = [...new Set(run.results.flatMap(({ result }) => result.quality.warnings))];
+      return { status: 'ok', job_id: jobId, detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W`, ...(warnings.length > 0 && { warnings }) };
     } catch (error) {
       return failureOf(error);
     }
@@ -259,8 +271,9 @@ async function listTransientFiles(root: string, skip: string): Promise<string[]>
 
 function summaryCsv(outcomes: FileOutcome[]): string {
   const quote = (text: string) => (/[",\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text);
-  const rows = outcomes.map((o) => [o.file, o.sha256, o.status, o.job_id, o.detail].map(quote).join(','));
-  return ['file,sha256,status,job_id,detail', ...rows].join('\n') + '\n';
+  // A file's warnings in one cell, apart by ' | ': one line per file keeps the summary readable by line tools (grep, wc).
+  const rows = outcomes.map((o) => [o.file, o.sha256, o.status, o.job_id, o.detail, (o.warnings ?? []).join(' | ')].map(quote).join(','));
+  return ['file,sha256,status,job_id,detail,warnings', ...rows].join('\n') + '\n';
 }
 
 /** A bar redrawn in place on a terminal; one plain line per file otherwise (logs, CI). */
@@ -271,16 +284,17 @@ class ProgressReport {
 
   constructor(private readonly total: number) {}
 
-  /** note: 'done before', why the file was done again, or nothing; problem: the error line of a rejected or failed file. */
-  record(file: string, status: FileOutcome['status'], note: string | undefined, problem?: string): void {
+  /** note: 'done before', why the file was done again, or nothing; lines: the error line of a rejected or failed file, warnings to show. */
+  record(file: string, status: FileOutcome['status'], note: string | undefined, lines: string[] = []): void {
     this.done++;
     this.counts[status]++;
+    const text = lines.map((line) => `${line}\n`).join('');
     if (!this.tty) {
-      process.stderr.write(`${this.done}/${this.total} ${status}${note ? ` (${note})` : ''} ${file}\n${problem ? `${problem}\n` : ''}`);
+      process.stderr.write(`${this.done}/${this.total} ${status}${note ? ` (${note})` : ''} ${file}\n${text}`);
       return;
     }
     // Above the bar, which is drawn again below it.
-    if (problem) process.stderr.write(`\r\x1b[K${problem}\n`);
+    if (text) process.stderr.write(`\r\x1b[K${text}`);
     const width = 30;
     const filled = this.total === 0 ? width : Math.round((this.done / this.total) * width);
     process.stderr.write(

@@ -23,6 +23,8 @@ export interface FileOutcome {
   /** The job id: the server's answer, or (local) the key; '' when not ok. */
   job_id: string;
   detail: string;
+  /** The server's warnings on the upload, or the local results' (one per text); absent when none, and in lines written before they were recorded. */
+  warnings?: string[];
 }
 
 /** The last outcome of every file in the state file; none when there is no state file yet. */
