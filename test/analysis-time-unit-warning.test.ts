@@ -44,6 +44,22 @@ describe('a record too long to be in seconds', () => {
     expect(fromOneMs.quality.warnings.some((w) => inMilliseconds.test(w))).toBe(false);
   });
 
+  // A record of 1 us to exactly 1 s written in milliseconds ends at 1000, not after it: that is the common short record,
+  // and it went without a word (Rth 8 % high, Tj(0) 3.6 K off on a synthetic stack). A last time rounded a little below
+  // 1000 (995) counts too; one that stops well short of it (977, the grid's last point before 1 s) stays under the rule.
+  it('also warns of a record of 1 us to 1 s in milliseconds, ending at 1000 or a rounding below it', () => {
+    const upTo = (last_s: number, lastWritten?: string) => {
+      const lines = demo.split('\n').filter((line) => !/^\d/.test(line) || Number(line.split(',')[0]) <= last_s + 1e-9);
+      const scaled = lines.map((line) => line.replace(/^(\d[^,\n]*),/, (_, time) => `${Number((Number(time) * 1000).toPrecision(7))},`));
+      const lastData = scaled.findLastIndex((line) => /^\d/.test(line));
+      if (lastWritten !== undefined) scaled[lastData] = scaled[lastData].replace(/^[^,]*/, lastWritten);
+      return analyzeTransientFile({ bytes: Buffer.from(scaled.join('\n')), fileName: 'ms.csv' }, CREATED_AT)[0].quality.warnings;
+    };
+    expect(upTo(1).find((w) => inMilliseconds.test(w))).toMatch(/^the record runs from time_s = 0\.001 s to 1000 s, 0\.3 hours, as a record of 1 us to seconds does/);
+    expect(upTo(1, '995').some((w) => inMilliseconds.test(w))).toBe(true);
+    expect(upTo(0.98).some((w) => inMilliseconds.test(w))).toBe(false);
+  });
+
   it('names the window end given, and says it once per result', () => {
     const [result] = analyzeTransientFile({ bytes: scaledTimes(1000), fileName: 'ms.csv', parameters: { early_time_end_s: 0.005 } }, CREATED_AT);
     const warnings = result.quality.warnings.filter((w) => inMilliseconds.test(w));

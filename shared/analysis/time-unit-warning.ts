@@ -6,12 +6,17 @@ import type { AnalysisParameters } from '../schemas/analysis-parameters.js';
 const LONGEST_PLAUSIBLE_RECORD_S = 1e4;
 
 /**
- * A record that starts this late and ends after LONG_RECORD_S is also taken as likely in milliseconds: a bench's
- * first sample after switching lies at microseconds to tens of them (its electrical artefact: common practice), so
- * 1 us written in ms reads 0.001 s, and a 9 s record 9000 s, which the 2.8-hour rule alone let pass.
+ * A record that starts this late and ends at LONG_RECORD_S or later is also taken as likely in milliseconds: a
+ * bench's first sample after switching lies at microseconds to tens of them (its electrical artefact: common
+ * practice), so 1 us written in ms reads 0.001 s, and a 9 s record 9000 s, which the 2.8-hour rule alone let pass.
  */
 const LATE_FIRST_SAMPLE_S = 1e-3;
 const LONG_RECORD_S = 1e3;
+/**
+ * A record of 1 us to 1 s, the common short one, ends at 1000 in milliseconds, or a little before where its last
+ * time was rounded or its grid stops short of 1 s: within this fraction of LONG_RECORD_S it counts (our choice).
+ */
+const LONG_RECORD_TOLERANCE = 0.01;
 
 /**
  * A record longer than a cooling or heating curve of a power device and its
@@ -30,7 +35,7 @@ export function timeUnitWarning(file: TransientFile, parameters: Pick<AnalysisPa
   const first_s = file.time_s[0];
   const end_s = file.time_s[file.time_s.length - 1];
   const tooLong = end_s > LONGEST_PLAUSIBLE_RECORD_S;
-  if (!tooLong && !(end_s > LONG_RECORD_S && first_s >= LATE_FIRST_SAMPLE_S)) return [];
+  if (!tooLong && !(end_s >= LONG_RECORD_S * (1 - LONG_RECORD_TOLERANCE) && first_s >= LATE_FIRST_SAMPLE_S)) return [];
   const windowEnd_s = parameters.early_time_end_s ?? LATEST_WINDOW_END_S;
   const seen = tooLong
     ? `the record ends at time_s = ${end_s} s, ${(end_s / 3600).toFixed(1)} hours after the power step, longer than a single transient plausibly runs`
