@@ -10,6 +10,9 @@ import { Value } from 'typebox/value';
 import { createRandom, gaussian } from './support/seeded-random.js';
 import { readFileSync } from 'node:fs';
 import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
+import { layeredStackTruth } from '../shared/models/layered-stack.js';
+import { TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
+import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 
 
 const temperatures_C = Float64Array.from({ length: 11 }, (_, i) => 20 + 15 * i); // 20..170 degC oven sweep
@@ -271,29 +274,29 @@ describe('voltageToTemperature', () => {
   it('warns of samples converted beyond the sweep, with their count and the farthest distance', () => {
     // Exact construction: two of four samples lie outside the calibrated voltages, the farther by 2 % of the span.
     const voltages = Float64Array.from([low + 0.5 * span, high, high + 0.01 * span, low - 0.02 * span]);
-    const [warning] = calibrationExtrapolationWarnings(cal, voltages, 0);
+    const [warning] = calibrationExtrapolationWarnings(cal, voltages, 0, 0);
     expect(warning).toContain('2 of 4 samples lie outside the calibrated');
     expect(warning).toContain(`by up to ${(0.02 * span * 1000).toPrecision(3)} mV (2.0 % of the span)`);
     expect(warning).toContain('extend the calibration sweep');
-    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low, high, 0.5 * (low + high)]), 0)).toEqual([]);
+    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low, high, 0.5 * (low + high)]), 0, 0)).toEqual([]);
   });
 
   it("asks whether the calibration is the device's when the curve's cold end converts to more than 5 K below the sweep", () => {
     // The diode line runs -2 mV/K: 12 mV above the sweep's coldest voltage is 6 K below its 20 degC, 8 mV is 4 K.
-    const sixBelow = calibrationExtrapolationWarnings(cal, Float64Array.from([low + 0.5 * span, high + 0.012]), 0);
+    const sixBelow = calibrationExtrapolationWarnings(cal, Float64Array.from([low + 0.5 * span, high + 0.012]), 0, 0);
     expect(sixBelow).toEqual([expect.stringMatching(/the curve's cold end converts to 14\.00 degC, 6\.0 K below the sweep's coldest point.*is this the device's calibration\?$/)]);
-    const fourBelow = calibrationExtrapolationWarnings(cal, Float64Array.from([low + 0.5 * span, high + 0.008]), 0);
+    const fourBelow = calibrationExtrapolationWarnings(cal, Float64Array.from([low + 0.5 * span, high + 0.008]), 0, 0);
     expect(fourBelow[0]).toContain('extend the calibration sweep');
     expect(fourBelow[0]).not.toContain("device's calibration");
     // Beyond the hot end (low voltages) the cold end lies inside the sweep: no question.
-    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low - 0.02, high]), 0)[0]).not.toContain("device's calibration");
+    expect(calibrationExtrapolationWarnings(cal, Float64Array.from([low - 0.02, high]), 0, 0)[0]).not.toContain("device's calibration");
   });
 
   it('does not warn of samples beyond the range by less than three times the noise (a cooling curve that ends at the sweep\'s first point)', () => {
     const noise_V = 0.001 * span;
     const atTheEnd = Float64Array.from([low + 0.5 * span, high + 2.9 * noise_V, high + 1.5 * noise_V]);
-    expect(calibrationExtrapolationWarnings(cal, atTheEnd, noise_V)).toEqual([]);
-    const [warning] = calibrationExtrapolationWarnings(cal, Float64Array.from([high + 3.1 * noise_V, high + noise_V]), noise_V);
+    expect(calibrationExtrapolationWarnings(cal, atTheEnd, noise_V, 0)).toEqual([]);
+    const [warning] = calibrationExtrapolationWarnings(cal, Float64Array.from([high + 3.1 * noise_V, high + noise_V]), noise_V, 0);
     expect(warning).toContain('1 of 2 samples lie outside');
   });
 
@@ -305,9 +308,48 @@ describe('voltageToTemperature', () => {
     for (let seed = 1; seed <= 200; seed++) {
       const random = createRandom(seed);
       const voltage_V = Float64Array.from({ length: 801 }, (_, i) => (i < 400 ? low + 0.5 * span : high) + noise_V * gaussian(random));
-      if (calibrationExtrapolationWarnings(cal, voltage_V, noise_V).length > 0) warned++;
+      if (calibrationExtrapolationWarnings(cal, voltage_V, noise_V, 0).length > 0) warned++;
     }
     expect(warned).toBeLessThanOrEqual(2);
+  });
+
+  // The sweep's own points scatter about the fit by its residual, so where the range ends is itself uncertain by the
+  // residual in volts: 0.03 K at -2 mV/K is 0.06 mV, three times this transient's 0.02 mV of noise.
+  it("allows for the calibration's residual in quadrature with the noise; a calibration without one (two points) for the noise alone", () => {
+    const noise_V = 2e-5;
+    const scattered: Calibration = { ...cal, residual_rms_K: 0.03 };
+    // Allowance 3 (two samples) times hypot(0.02, 0.06) mV = 0.19 mV; the noise alone allows 0.06 mV.
+    const justBeyond = Float64Array.from([low + 0.5 * span, high + 1.5e-4]);
+    expect(calibrationExtrapolationWarnings(scattered, justBeyond, noise_V, 0)).toEqual([]);
+    expect(calibrationExtrapolationWarnings({ ...cal, residual_rms_K: null }, justBeyond, noise_V, 0)).toEqual([expect.stringMatching(/^1 of 2 samples lie outside .* by more than 3\.0 times the noise, by up to 0\.150 mV/)]);
+    expect(calibrationExtrapolationWarnings(scattered, Float64Array.from([low + 0.5 * span, high + 2.5e-4]), noise_V, 0)).toEqual([
+      expect.stringMatching(/^1 of 2 samples lie outside .* by more than 3\.0 times the noise and the calibration's residual together \(0\.19 mV\), by up to 0\.250 mV/),
+    ]);
+  });
+
+  it('does not count the samples the sqrt(t) fit replaces, and counts the same voltage after them', () => {
+    const artefact = Float64Array.from([high + 0.05 * span, high + 0.02 * span, low + 0.5 * span, high]);
+    expect(calibrationExtrapolationWarnings(cal, artefact, 0, 2)).toEqual([]);
+    expect(calibrationExtrapolationWarnings(cal, artefact, 0, 1)).toEqual([
+      expect.stringMatching(/^1 of 4 samples \(not counting the first 1, before the sqrt\(t\) window, which its fit replaces\) lie outside .* by up to [\d.]+ mV \(2\.0 % of the span\)/),
+    ]);
+  });
+
+  // A heating curve starts at the cold plate, the sweep's first point, and its electrical artefact reads as a junction
+  // too cold (synthetic-transient.ts): some microseconds of samples beyond the sweep, all before the sqrt(t) window.
+  it('does not warn of a heating curve from the sweep\'s first point whose artefact alone lies beyond it', () => {
+    const truth = layeredStackTruth(TO247_ON_HEATSINK_STACK);
+    const random = createRandom(7);
+    const curve = syntheticTransient(truth.foster, {
+      kind: 'heating', power_W: 50, reference_temperature_C: 20, first_s: 1e-6, last_s: 100, samples_per_decade: 50,
+      noise_K: 0.01, artefact_s: 8e-6, artefact_K: 4, gaussian: () => gaussian(random), tsp: { voltage_at_reference_V: diodeVoltage_V[0], sensitivity_V_per_K: -2e-3 },
+    });
+    const bytes = Buffer.from(['time_s,voltage_V', ...Array.from(curve.time_s, (t, i) => `${t},${curve.values[i]}`)].join('\n'));
+    const [result] = analyzeTransientFile({ bytes, fileName: 'heating.csv', calibration: cal, power: { power_W: 50 }, parameters: { kind: 'heating' } }, '2026-01-01T00:00:00.000Z');
+    expect(result.early_time.applied).toBe(true);
+    const firstKept = result.zth.time_s.findIndex((t) => t >= result.early_time.window_start_s);
+    expect(curve.values.subarray(0, firstKept).some((v) => v > high + 1e-3)).toBe(true); // the artefact does lie beyond the sweep
+    expect(result.quality.warnings.filter((w) => /outside the calibrated/.test(w))).toEqual([]);
   });
 
   it('refuses a calibration that turns within the measured voltages', () => {

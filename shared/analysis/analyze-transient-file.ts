@@ -197,7 +197,7 @@ function analyzeChannel(
   const time_s = file.time_s;
   const warnings: string[] = [...inputWarnings];
   const { zth, temperature_C, noise_K, noise_K_per_W } = channelZth(file, values, parameters, power_W, calibration);
-  if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values)), ...calibratedTemperatureUnitWarning(temperature_C!));
+  if (file.quantity === 'voltage_V') warnings.push(...calibrationExtrapolationWarnings(calibration!, values, estimateNoiseRms(values), zth.early_time.window_start_index), ...calibratedTemperatureUnitWarning(temperature_C!));
   warnings.push(...zth.early_time.warnings);
 
   const steady = steadyStateRth(time_s, zth.zth_K_per_W, noise_K_per_W);

@@ -158,17 +158,31 @@ const COLD_END_BELOW_SWEEP_HINT_K = 5;
  * within its margin are converted by the fit beyond the sweep, where nothing
  * checked it (a polynomial of high order or an exponential can bend away
  * there), so the result says how many samples and how far. A cooling curve
- * ends at the cold plate, which is often the sweep's first point: there half
- * the samples lie a little outside, by the noise, which the fit bridges.
+ * ends at the cold plate, which is often the sweep's first point, and a heating
+ * curve starts there: there half the samples lie a little outside, by the
+ * noise and by the scatter of the sweep's own first point, which the fit
+ * bridges. The allowance is the noise allowance times both in quadrature: the
+ * transient's noise, and the calibration's residual in volts (through its
+ * sensitivity), the uncertainty of where the range ends; a calibration without
+ * a residual (two points) allows for the noise alone.
+ *
+ * The first `replacedSamples` (those before the sqrt(t) window, which its fit
+ * replaces: the electrical artefact) are not counted: their temperatures are
+ * not used, and an artefact lies off the curve by design. A wrong calibration
+ * does not hide there: those beyond the margin are refused by
+ * voltageToTemperature like any other, and a calibration of another device
+ * shows on the samples counted, at the curve's cold end.
  */
-export function calibrationExtrapolationWarnings(calibration: Calibration, voltage_V: Float64Array, noise_V: number): string[] {
+export function calibrationExtrapolationWarnings(calibration: Calibration, voltage_V: Float64Array, noise_V: number, replacedSamples: number): string[] {
   const [low, high] = calibration.voltage_range_V;
-  const allowance = extrapolationNoiseAllowance(voltage_V.length);
-  const allowance_V = allowance * noise_V;
+  const counted_V = voltage_V.subarray(replacedSamples);
+  const allowance = extrapolationNoiseAllowance(counted_V.length);
+  const residual_V = calibration.residual_rms_K === null ? 0 : Math.abs(calibration.residual_rms_K * calibration.sensitivity_mV_per_K) / 1000;
+  const allowance_V = allowance * Math.hypot(noise_V, residual_V);
   let outside = 0;
   let farthest_V = 0;
-  for (let i = 0; i < voltage_V.length; i++) {
-    const beyond_V = Math.max(low - voltage_V[i], voltage_V[i] - high);
+  for (const v of counted_V) {
+    const beyond_V = Math.max(low - v, v - high);
     if (beyond_V > allowance_V) {
       outside++;
       farthest_V = Math.max(farthest_V, beyond_V);
@@ -177,13 +191,15 @@ export function calibrationExtrapolationWarnings(calibration: Calibration, volta
   if (outside === 0) return [];
   const [lowest_C, highest_C] = calibration.temperature_range_C;
   // The fit is monotonic over the voltages converted, so the coldest temperature is that of the lowest or the highest voltage.
-  const coldest_C = Math.min(...evaluate(calibration.model, calibration.coefficients, Float64Array.from(valueRange(voltage_V))));
+  const coldest_C = Math.min(...evaluate(calibration.model, calibration.coefficients, Float64Array.from(valueRange(counted_V))));
   const coldEndHint =
     coldest_C < lowest_C - COLD_END_BELOW_SWEEP_HINT_K
       ? `; the curve's cold end converts to ${coldest_C.toPrecision(4)} degC, ${(lowest_C - coldest_C).toPrecision(2)} K below the sweep's coldest point, where a sweep usually begins at or below the cold plate: is this the device's calibration?`
       : '';
+  const allowed = residual_V > 0 ? `${allowance.toFixed(1)} times the noise and the calibration's residual together (${(allowance_V * 1000).toPrecision(2)} mV)` : `${allowance.toFixed(1)} times the noise`;
+  const notCounted = replacedSamples > 0 ? ` (not counting the first ${replacedSamples}, before the sqrt(t) window, which its fit replaces)` : '';
   return [
-    `${outside} of ${voltage_V.length} samples lie outside the calibrated ${low}..${high} V by more than ${allowance.toFixed(1)} times the noise, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
+    `${outside} of ${voltage_V.length} samples${notCounted} lie outside the calibrated ${low}..${high} V by more than ${allowed}, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
       `(${((100 * farthest_V) / (high - low)).toPrecision(2)} % of the span): their temperatures are extrapolated by the ${calibration.model} fit beyond the sweep's ` +
       `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient${coldEndHint}`,
   ];
