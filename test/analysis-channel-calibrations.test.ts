@@ -33,7 +33,8 @@ describe('per-channel calibrations', () => {
     expect(Math.abs(rthError(results, 'T1'))).toBeLessThan(0.005);
     expect(rthError(results, 'T2')).toBeGreaterThan(0.14);
     for (const result of results) {
-      expect(result.quality.warnings.find((w) => /one calibration converted all 2 voltage channels/.test(w))).toMatch(/--calibration T2=CAL\.json .* calibration_id@T2=<id>/);
+      // How to give a channel its own is the caller's to say (the command line's and the service's tests say theirs).
+      expect(result.quality.warnings.find((w) => /one calibration converted all 2 voltage channels/.test(w))).toMatch(/give each channel its own\.$/);
     }
   });
 

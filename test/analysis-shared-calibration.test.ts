@@ -9,6 +9,8 @@ import { TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
 import { createRandom, gaussian } from './support/seeded-random.js';
+import { channelCalibrationOption } from '../services/cli/analysis-options.js';
+import { channelCalibrationFields } from '../services/api/schemas/transient-metadata.js';
 
 const CREATED_AT = '2026-01-01T00:00:00.000Z';
 const TSP = { voltage_at_reference_V: 0.62, sensitivity_V_per_K: -2.0e-3 }; // about -2 mV/K: common practice for a diode at low sense current
@@ -35,14 +37,28 @@ const calibration = fitCalibration(temperature_C, temperature_C.map((t) => TSP.v
 const sharedWarning = /one calibration converted all (\d+) voltage channels/;
 
 describe('one calibration for several voltage channels', () => {
-  it('warns in every channel\'s result, naming the channels and how to give each its own calibration', () => {
-    const results = analyzeTransientFile({ bytes: csv('voltage_V', ['D1', 'D2'], true), fileName: 'two-devices.csv', power: { power_W }, calibration }, CREATED_AT);
+  it('warns in every channel\'s result, naming the channels and how to give each its own calibration in the caller\'s words', () => {
+    const bytes = csv('voltage_V', ['D1', 'D2'], true);
+    const results = analyzeTransientFile({ bytes, fileName: 'two-devices.csv', power: { power_W }, calibration, channelCalibrationWay: (channel) => `way of ${channel}` }, CREATED_AT);
     expect(results.map((r) => r.source.channel)).toEqual(['D1', 'D2']);
     for (const result of results) {
       const warning = result.quality.warnings.find((w) => sharedWarning.test(w));
       expect(warning).toMatch(/all 2 voltage channels of this file \(voltage_V@D1, voltage_V@D2\)/);
-      expect(warning).toMatch(/give each channel its own, with --calibration D2=CAL\.json on the command line .* or calibration_id@D2=<id>/);
+      expect(warning).toMatch(/give each channel its own, with way of D2\.$/);
     }
+  });
+
+  // Each surface names only its own way: a command-line user has no multipart meta, an upload no --calibration.
+  it('names --calibration D2=CAL.json alone where the command line analyses, calibration_id@D2 alone where the service does', () => {
+    const bytes = csv('voltage_V', ['D1', 'D2'], true);
+    const warningWith = (channelCalibrationWay: (channel: string) => string) =>
+      analyzeTransientFile({ bytes, fileName: 'two-devices.csv', power: { power_W }, calibration, channelCalibrationWay }, CREATED_AT)[0].quality.warnings.find((w) => sharedWarning.test(w));
+    const commandLine = warningWith(channelCalibrationOption);
+    expect(commandLine).toMatch(/give each channel its own, with --calibration D2=CAL\.json \(repeated per channel\)\.$/);
+    expect(commandLine).not.toMatch(/calibration_id|multipart/);
+    const upload = warningWith(channelCalibrationFields);
+    expect(upload).toMatch(/give each channel its own, with calibration_id@D2=<id> \(or an inline calibration@D2 in the multipart meta\)\.$/);
+    expect(upload).not.toMatch(/--calibration|CAL\.json/);
   });
 
   it('says nothing of it for one voltage channel or for temperature channels', () => {

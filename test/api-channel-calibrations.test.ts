@@ -86,6 +86,21 @@ describe('per-channel calibrations on upload', () => {
     expect(answer.job_id).toBe(without.job_id);
   });
 
+  // The command line's way (--calibration T2=CAL.json) is no way of an upload's; the warning names the upload's alone.
+  it('warns of one calibration for both dies with the upload\'s way of giving T2 its own, not the command line\'s', async () => {
+    const response = await uploadCsv(`sample_id=M5&calibration_id=${t1Id}`);
+    expect(response.status).toBe(202);
+    const answer = (await response.json()) as { links: Record<string, string> };
+    let job = { state: '' };
+    await eventually(async () => ['completed', 'failed'].includes((job = await getJson(answer.links.job)).state), 200);
+    expect(job.state).toBe('completed');
+    for (const result of (await getJson(answer.links.result)).results) {
+      const warning = result.quality.warnings.find((w: string) => /one calibration converted all 2 voltage channels/.test(w));
+      expect(warning).toMatch(/give each channel its own, with calibration_id@T2=<id> \(or an inline calibration@T2 in the multipart meta\)\.$/);
+      expect(warning).not.toMatch(/--calibration|CAL\.json/);
+    }
+  });
+
   it('refuses a channel the file does not have (400, naming its channels) and a voltage channel left without a calibration (422)', async () => {
     const stray = await uploadCsv(`sample_id=M5&calibration_id=${t1Id}&calibration_id%40T3=${t2Id}`);
     expect(stray.status).toBe(400);

@@ -271,7 +271,7 @@ describe('heatpath user errors: exit code 2 and one line naming file, place and 
     ['a mistyped command, with the one meant', () => ['analyse', 'x.csv'], /^heatpath: unknown command "analyse"\. Did you mean `heatpath analyze`\?/],
     ['a negative number as its own argument, judged as a number', () => ['analyze', 'x.csv', '--power-w', '-5'], /--power-w must be a positive number, got "-5".*CLI_USAGE/],
     ['a bad method', () => ['analyze', 'x.csv', '--method', 'magic'], /--method must be one of bayes, fourier/],
-    ['points per decade out of range', () => ['analyze', file('ok.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--points-per-decade', '5'], /points_per_decade/],
+    ['points per decade out of range', () => ['analyze', file('ok.csv', `time_s,zth_K_per_W\n${goodRows.join('\n')}\n`), '--points-per-decade', '5'], /--points-per-decade: must be >= 10/],
     ['a broken calibration file', () => ['analyze', file('ok2.csv', `time_s,voltage_V\n${goodRows.join('\n')}\n`), '--power-w', '1', '--calibration', file('cal.json', '{"model":"linear"}')], /CALIBRATION_BAD_FILE/],
     ['an --out folder below a file', () => ['analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--out', join(file('taken', 'a file'), 'out')], /taken.*a parent is a file, not a folder.*FILE_NOT_WRITABLE/],
     ['an --out folder the file system refuses (/proc)', () => ['analyze', join(demo, 'fh-tt1_m07_cooling.csv'), '--out', '/proc/heatpath-out'], /\/proc\/heatpath-out.*FILE_NOT_WRITABLE/],

@@ -7,6 +7,7 @@ import { parseTransient } from '../shared/input/parse-transient.js';
 import type { TransientFile } from '../shared/input/transient-file.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import type { Calibration } from '../shared/schemas/calibration.js';
+import { channelCalibrationFields } from '../services/api/schemas/transient-metadata.js';
 import { blockingStoreIo } from '../services/store/store-io.js';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
@@ -130,6 +131,7 @@ async function analyse(job: SandboxedJob<AnalysisJobData>, jobId: string, upload
       channelCalibrations,
       sample: upload.sample_id,
       parameters: data.parameters,
+      channelCalibrationWay: channelCalibrationFields,
     },
     new Date().toISOString(),
   );

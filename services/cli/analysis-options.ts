@@ -59,6 +59,11 @@ export async function analysisInputsFromOptions(values: Record<string, unknown>)
   return { power, calibration, channelCalibrations, parameters };
 }
 
+/** How a command-line user gives channel CH its own calibration, as the analysis's warnings name it. */
+export function channelCalibrationOption(channel: string): string {
+  return `--calibration ${channel}=CAL.json (repeated per channel)`;
+}
+
 /**
  * `--calibration CAL.json` (all channels, once) and `--calibration CH=CAL.json` (channel CH's own, once per channel).
  * A path whose part before an `=` holds no directory separator reads as a channel: write `./a=b.json` for such a file.

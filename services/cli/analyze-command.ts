@@ -9,7 +9,8 @@ import { isUserError, userErrorLine } from './user-error-line.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
 import type { Calibration } from '../../shared/schemas/calibration.js';
-import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
+import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, channelCalibrationOption, powerAndCalibrationUsage } from './analysis-options.js';
+import { commandLineSpelling } from './command-line-spelling.js';
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { formatResultSummary } from './format-result-summary.js';
 import { readInputFile } from './read-input-file.js';
@@ -111,9 +112,12 @@ export async function analyzeFiles(files: (string | ReadTransientFile)[], option
       const parsed = typeof entry === 'string' ? parseTransient(bytes, file) : entry.parsed;
       meta = { meta: parsed.meta, meta_lines: parsed.meta_lines };
       channelResults = analyzeTransientFile(
-        { bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, channelCalibrations: options.channelCalibrations, parameters: options.parameters },
+        {
+          bytes, parsed, fileName: file, power: options.power, calibration: options.calibration, channelCalibrations: options.channelCalibrations, parameters: options.parameters,
+          channelCalibrationWay: channelCalibrationOption,
+        },
         options.createdAt,
-      );
+      ).map(inCommandLineSpelling);
     } catch (error) {
       if (isUserError(error)) {
         failures.push(error);
@@ -136,6 +140,11 @@ async function writeResultFiles(dir: string, result: AnalysisResult): Promise<st
   await writeOutputFile(join(dir, 'result.json'), JSON.stringify(result, null, 2) + '\n');
   for (const artifact of resultArtifacts(result)) await writeOutputFile(join(dir, artifact.name), artifact.content);
   return dir;
+}
+
+/** A result as the command line shows and writes it: its warnings name parameters by their options (command-line-spelling.ts). */
+function inCommandLineSpelling(result: AnalysisResult): AnalysisResult {
+  return { ...result, quality: { ...result.quality, warnings: result.quality.warnings.map(commandLineSpelling) } };
 }
 
 function safeName(name: string): string {

@@ -5,6 +5,7 @@ import { metadataNumber } from '../../shared/input/metadata-number.js';
 import { POWER_KEYS } from '../../shared/input/transient-file.js';
 import { UploadQuerySchema } from '../api/schemas/transient-metadata.js';
 import { numberOption } from './cli-arguments.js';
+import { PARAMETER_OPTIONS } from './command-line-spelling.js';
 import type { UploadTarget } from './post-to-server.js';
 
 /**
@@ -24,10 +25,7 @@ const METADATA_OPTIONS = {
   'calibration-id': 'calibration_id',
   kind: 'kind',
   method: 'method',
-  'points-per-decade': 'points_per_decade',
-  'early-start-s': 'early_time_start_s',
-  'early-end-s': 'early_time_end_s',
-  'compact-stages': 'compact_stages',
+  ...PARAMETER_OPTIONS,
 } as const;
 
 export const uploadOptionSpecs = {

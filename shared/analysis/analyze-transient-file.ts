@@ -47,6 +47,12 @@ export interface TransientFileInput {
   sample?: string;
   /** Omitted fields: the file's `kind` metadata, then the schema defaults. */
   parameters?: Partial<AnalysisParameters>;
+  /**
+   * How the caller's users give channel CH its own calibration (`--calibration CH=CAL.json` on the command line,
+   * `calibration_id@CH` for an upload), for the warning that one calibration converted several channels; each
+   * surface names only its own. Omitted: the warning says that each channel needs its own, not how.
+   */
+  channelCalibrationWay?: (channel: string) => string;
 }
 
 /**
@@ -64,7 +70,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
     ...headerWarnings,
-    ...sharedCalibrationWarning(file, input.channelCalibrations),
+    ...sharedCalibrationWarning(file, input.channelCalibrations, input.channelCalibrationWay),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
     ...unusedCalibrationWarnings(file, input, calibrations),
@@ -170,16 +176,14 @@ function calibratedTemperatureUnitWarning(temperature_C: Float64Array): string[]
  * together, each with its own TSP; where the one calibration given converts
  * two or more of them, the results say so and how to give each its own.
  */
-function sharedCalibrationWarning(file: TransientFile, own: ReadonlyMap<string, Calibration> | undefined): string[] {
+function sharedCalibrationWarning(file: TransientFile, own: ReadonlyMap<string, Calibration> | undefined, way: TransientFileInput['channelCalibrationWay']): string[] {
   if (file.quantity !== 'voltage_V') return [];
   const shared = file.channels.filter((channel) => !own?.has(channel.name));
   if (shared.length < 2) return [];
   const names = shared.map((channel) => `voltage_V@${channel.name}`).join(', ');
-  const example = shared[1].name;
   return [
     `one calibration converted ${shared.length === file.channels.length ? 'all ' : ''}${shared.length} voltage channels of this file (${names}) to temperature: ` +
-      `devices with calibrations of their own must be analysed with them: give each channel its own, with --calibration ${example}=CAL.json on the command line (repeat it per channel), ` +
-      `or calibration_id@${example}=<id> (an inline calibration@${example} in the multipart meta) for an upload.`,
+      `devices with calibrations of their own must be analysed with them: give each channel its own${way ? `, with ${way(shared[1].name)}` : ''}.`,
   ];
 }
 

@@ -14,6 +14,11 @@ const CALIBRATION_ID = CalibrationIdSchema(
 export const CHANNEL_CALIBRATION_ID_FIELD = /^calibration_id@(.+)$/;
 /** A channel's own inline calibration in the multipart `meta`, `calibration@T2`. */
 export const CHANNEL_CALIBRATION_FIELD = /^calibration@(.+)$/;
+
+/** How an upload gives channel CH its own calibration, as the analysis's warnings name it. */
+export function channelCalibrationFields(channel: string): string {
+  return `calibration_id@${channel}=<id> (or an inline calibration@${channel} in the multipart meta)`;
+}
 const channelCalibrationIdFields = {
   [CHANNEL_CALIBRATION_ID_FIELD.source]: CalibrationIdSchema("A channel's own stored calibration: calibration_id@T2 for the file's voltage_V@T2 column; channels without one take calibration_id."),
 };
