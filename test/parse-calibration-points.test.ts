@@ -38,8 +38,22 @@ describe('parseCalibrationPoints', () => {
 
   it('says which column a bench spelling of temperature or voltage stands for, and offers time_s to no one', () => {
     // The calibration layout's column names (README, Input files); Temp [°C] and Vf are common bench spellings (common practice).
-    expect(catchHeatpathError(() => parseCalibrationPoints('Temp [°C],Vf\n25,0.6', 'cal.csv')).detail).toBe('"Temp [°C]" is not temperature_C or voltage_V: rename it to temperature_C');
-    expect(catchHeatpathError(() => parseCalibrationPoints('time,voltage_V\n25,0.6', 'cal.csv')).detail).toBe('"time" is not temperature_C or voltage_V');
+    expect(catchHeatpathError(() => parseCalibrationPoints('Temp [°C],voltage_V\n25,0.6', 'cal.csv')).detail).toBe('"Temp [°C]" is not temperature_C or voltage_V: rename it to temperature_C');
+    expect(catchHeatpathError(() => parseCalibrationPoints('time,voltage_V\n25,0.6', 'cal.csv')).detail).toBe('"time" is not temperature_C or voltage_V; the header has no temperature_C column');
+  });
+
+  // A header in a bench's own words had only its first column named, so fixing it took one run per column.
+  it('names every column that is not a calibration column, each with the one it most likely meant, and every one missing', () => {
+    const both = catchHeatpathError(() => parseCalibrationPoints('T [°C],Vf [V]\n25,0.6', 'cal.csv'));
+    expect(both.detail).toBe('"T [°C]", "Vf [V]" are not temperature_C or voltage_V; "T [°C]": rename it to temperature_C; "Vf [V]": rename it to voltage_V');
+    expect(both.location).toEqual({ file: 'cal.csv', line: 1 });
+    expect(both.message).toContain('exactly the columns temperature_C and voltage_V');
+    expect(catchHeatpathError(() => parseCalibrationPoints('T_K,U_mV\n298,600', 'cal.csv')).detail).toBe(
+      '"T_K", "U_mV" are not temperature_C or voltage_V; "T_K": temperatures must be in degrees Celsius: subtract 273.15 from the kelvins and name the column temperature_C; ' +
+        '"U_mV": voltages must be in volts: divide the millivolts by 1000 and name the column voltage_V',
+    );
+    expect(catchHeatpathError(() => parseCalibrationPoints('a,b\n25,0.6', 'cal.csv')).detail).toBe('"a", "b" are not temperature_C or voltage_V; the header has no temperature_C and no voltage_V column');
+    expect(catchHeatpathError(() => parseCalibrationPoints('Temp,x\n25,0.6', 'cal.csv')).detail).toBe('"Temp", "x" are not temperature_C or voltage_V; "Temp": rename it to temperature_C; the header has no voltage_V column');
   });
 
   it('returns points or throws a HeatpathError for arbitrary text', () => {

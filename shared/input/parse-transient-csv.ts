@@ -1,7 +1,7 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { checkTransientTime } from './check-transient-time.js';
 import { columnNameHint } from './column-name-hint.js';
-import { quoteInputText, shortenInputText } from './quote-input-text.js';
+import { quoteInputNames, quoteInputText, shortenInputText } from './quote-input-text.js';
 import { readNumericCsv } from './read-numeric-csv.js';
 import { DEFAULT_CHANNEL_NAME, isTransientQuantity, type TransientFile, type TransientQuantity } from './transient-file.js';
 
@@ -30,13 +30,13 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
       if (commented !== undefined) {
         throw new HeatpathError(
           'INPUT_MISSING_COLUMN',
-          `no ${TIME_COLUMN} column in the header (line ${headerLine}), which names ${quotedNames(names)}; line ${commented.line}, ${quoteInputText(commented.text)}, looks like the header but is a comment: remove its "#"`,
+          `no ${TIME_COLUMN} column in the header (line ${headerLine}), which names ${quoteInputNames(names)}; line ${commented.line}, ${quoteInputText(commented.text)}, looks like the header but is a comment: remove its "#"`,
           { file: fileName, line: commented.line },
         );
       }
       // Checked first: a calibration sweep (temperature_C,voltage_V) handed to analyze is the common case.
       const sweep = names.includes('temperature_C') && names.includes('voltage_V') ? '; temperature_C with voltage_V looks like a calibration sweep: fit it with `heatpath calibrate`' : '';
-      throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header, which names ${quotedNames(names)}${sweep || renameHints(names)}`, { file: fileName, line: headerLine });
+      throw new HeatpathError('INPUT_MISSING_COLUMN', `no ${TIME_COLUMN} column in the header, which names ${quoteInputNames(names)}${sweep || renameHints(names)}`, { file: fileName, line: headerLine });
     }
     names.forEach((name, index) => {
       if (name === TIME_COLUMN) {
@@ -72,14 +72,6 @@ export function parseTransientCsv(text: string, fileName: string): TransientFile
     meta: table.meta,
     meta_lines: table.meta_lines,
   };
-}
-
-/** Most header names an error quotes; a wider header is cut with "…". */
-const QUOTED_NAMES_MAX = 6;
-
-function quotedNames(names: string[]): string {
-  const shown = names.slice(0, QUOTED_NAMES_MAX).map(quoteInputText).join(', ');
-  return names.length > QUOTED_NAMES_MAX ? `${shown}, …` : shown;
 }
 
 /** "; "Time [s]": rename it to time_s; "Temp": rename it to temperature_C" for the names that have a hint, else nothing. */

@@ -13,3 +13,12 @@ export function shortenInputText(text: string): string {
 export function quoteInputText(text: string): string {
   return JSON.stringify(shortenInputText(text));
 }
+
+/** Most names an error quotes; a longer list is cut with "…". */
+const QUOTED_NAMES_MAX = 6;
+
+/** Names (a header's) quoted and joined with commas, the first QUOTED_NAMES_MAX of them. */
+export function quoteInputNames(names: readonly string[]): string {
+  const shown = names.slice(0, QUOTED_NAMES_MAX).map(quoteInputText).join(', ');
+  return names.length > QUOTED_NAMES_MAX ? `${shown}, …` : shown;
+}
