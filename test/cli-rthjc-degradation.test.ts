@@ -97,6 +97,29 @@ describe('heatpath rthjc', () => {
     expect(own.length).toBeGreaterThan(0);
     for (const warning of own) expect(text.stdout).toContain(warning);
   });
+
+  // JESD51-14's premise: the two curves coincide until heat reaches the case. A K-factor 5 % off in one record
+  // (T' = 25 degC + 0.95 (T - 25 degC)) scales its Zth by 0.95 everywhere: withheld, with the scale and what to check.
+  it('withholds both values, exit 2, when one record is the other scaled by 5 % where heat is in the chip; the correct pair passes', () => {
+    const kScaled = file(
+      'grease-K-5-percent.csv',
+      readFileSync(greased, 'utf8')
+        .split('\n')
+        .map((line) => (/^\d/.test(line) ? `${line.split(',')[0]},${25 + 0.95 * (Number(line.split(',')[1]) - 25)}` : line))
+        .join('\n'),
+    );
+    const run = heatpath('rthjc', dry, kScaled, '--format', 'json');
+    expect(run.code).toBe(2);
+    expect(run.stderr).toMatch(/B's Zth is [45]\.\d % below A's .*heating power or K-factor \(calibration\).*\[RTHJC_NOT_ONE_DEVICE\]/);
+    const report = JSON.parse(run.stdout);
+    expect(report.zth_criterion.rthjc_K_per_W).toBeNull();
+    expect(report.structure_criterion.rthjc_K_per_W).toBeNull();
+    // Dry is A: B / A - 1 is the greased record's 0.95 against the 1 of a correct pair.
+    expect(report.early_scale.b_over_a_minus_1).toBeLessThan(-0.04);
+    const correct = JSON.parse(heatpath('rthjc', dry, greased, '--format', 'json').stdout);
+    expect(correct.not_one_device).toBeNull();
+    expect(Math.abs(correct.early_scale.b_over_a_minus_1)).toBeLessThan(4 * correct.early_scale.standard_error);
+  });
 });
 
 describe('rthjc and degradation: files of different samples', () => {

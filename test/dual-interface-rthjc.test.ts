@@ -25,7 +25,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { layeredStackTruth, type LayeredStack } from '../shared/models/layered-stack.js';
-import { DUAL_INTERFACE_MEASURED_ERROR, dualInterfaceRthjc, type InterfaceMeasurement } from '../shared/numerics/dual-interface-rthjc.js';
+import { DUAL_INTERFACE_MEASURED_ERROR, dualInterfaceRthjc, type DualInterfaceOptions, type InterfaceMeasurement } from '../shared/numerics/dual-interface-rthjc.js';
 import { median } from '../shared/numerics/median.js';
 import { cumulativeRSumAtC } from '../shared/numerics/structure-function.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
@@ -131,10 +131,48 @@ describe('dual interface Rth-JC, SiC power module (case surface: the end of the 
     expect(result.not_one_device).toMatch(/part within a factor 10 of their earliest common time/);
   });
 
+  // JESD51-14's premise again: until heat reaches the case the two curves coincide, so a constant factor between them
+  // there is a heating power or K-factor that differs between the records. A K-factor off by 5 % scales the
+  // temperature rise, and with it Zth, by 0.95 (JESD51-1's Zth = delta T / P; a power error does the same). Below
+  // 0.01 K/W, where such a curve sits at microseconds, 5 % is far below epsilon's 0.003 K/W.
+  it('withholds both criteria when one record is the other scaled by 5 or 10 % where heat is in the chip (a K-factor or power error), and says so', () => {
+    const scaled = (factor: number) => ({ ...greased, zth_K_per_W: greased.zth_K_per_W.map((z) => factor * z) });
+    for (const [factor, said] of [[0.95, /^B's Zth is [45]\.\d % below A's .* heating power or K-factor \(calibration\) is off/], [0.9, /^B's Zth is (9|10)\.\d % below A's/], [1.05, /^B's Zth is [45]\.\d % above A's/]] as const) {
+      const result = dualInterfaceRthjc(dry, scaled(factor));
+      expect(result.not_one_device).toMatch(said);
+      expect(result.zth_criterion.rthjc_K_per_W).toBeNull();
+      expect(result.structure_criterion.rthjc_K_per_W).toBeNull();
+      expect(Math.abs(result.early_scale!.b_over_a_minus_1 - (factor - 1))).toBeLessThan(0.005);
+    }
+  });
+
+  it('takes the correct pair for one device: the scale fitted where heat is in the chip is within noise of 1', () => {
+    const result = dualInterfaceRthjc(dry, greased);
+    expect(result.not_one_device).toBeNull();
+    const { b_over_a_minus_1: scale, standard_error, from_s, to_s } = result.early_scale!;
+    expect(Math.abs(scale)).toBeLessThan(4 * standard_error);
+    // From after the early-time corrections' extrapolated part (the 8 us artefact) to at least the end of the sqrt(t) window.
+    expect(from_s).toBeGreaterThan(1e-6);
+    expect(to_s).toBeGreaterThan(from_s * 10);
+  });
+
+  it('on exact curves a scale within scaleTolerance passes and one beyond it is withheld', () => {
+    const exactGreased = exactStackMeasurement(module.greasedTruth);
+    const exactDry = exactStackMeasurement(module.dryTruth);
+    const scaledBy = (factor: number, options: DualInterfaceOptions = {}) =>
+      dualInterfaceRthjc(exactDry, { ...exactGreased, zth_K_per_W: exactGreased.zth_K_per_W.map((z) => factor * z) }, options);
+    expect(scaledBy(1.015).not_one_device).toBeNull();
+    expect(scaledBy(1.025).not_one_device).toMatch(/^B's Zth is 2\.5 % above A's/);
+    expect(scaledBy(1.025, { scaleTolerance: 0.03 }).not_one_device).toBeNull();
+    // Exact curves: a standard error from rounding only, so the tolerance alone decides.
+    expect(scaledBy(1.025).early_scale!.standard_error).toBeLessThan(1e-4);
+  });
+
   it('rejects parameters outside their range with PARAM_INVALID', () => {
     const exactGreased = exactStackMeasurement(module.greasedTruth);
     expect(catchHeatpathError(() => dualInterfaceRthjc(exactGreased, exactGreased, { epsilonSlope: -1 })).code).toBe('PARAM_INVALID');
     expect(catchHeatpathError(() => dualInterfaceRthjc(exactGreased, exactGreased, { remainingFraction: 1.5 })).code).toBe('PARAM_INVALID');
+    expect(catchHeatpathError(() => dualInterfaceRthjc(exactGreased, exactGreased, { scaleSigmas: 0 })).code).toBe('PARAM_INVALID');
   });
 });
 
@@ -181,6 +219,8 @@ describe('dual interface Rth-JC, measured error on layered stacks against their 
     cases.push({ stack, interfaceLayer, seeds: [300 + 2 * k, 301 + 2 * k] });
   }
   const measured = { structure: [] as number[], zth: [] as number[], exactStructure: [] as number[], lowerAtCase: [] as number[] };
+  /** not_one_device of each pair, and of the pair with B's Zth scaled by 0.95 and by 1.05 (a K-factor or power 5 % off). */
+  const oneDevice = { correct: [] as (string | null)[], scaled: [] as (string | null)[] };
   beforeAll(() => {
     for (const { stack, interfaceLayer, seeds } of cases) {
       const caseLayer = stack.layers[stack.layers.findIndex((layer) => layer.name === interfaceLayer) - 1].name;
@@ -188,7 +228,10 @@ describe('dual interface Rth-JC, measured error on layered stacks against their 
       const dryTruth = layeredStackTruth(withLayerConductivity(stack, interfaceLayer, DRY_FACTOR));
       const rthjc = rSumThroughLayer(stack, greasedTruth, caseLayer);
       const greased = analysedStackMeasurement(greasedTruth, seeds[0]);
-      const result = dualInterfaceRthjc(greased, analysedStackMeasurement(dryTruth, seeds[1]));
+      const dry = analysedStackMeasurement(dryTruth, seeds[1]);
+      const result = dualInterfaceRthjc(greased, dry);
+      oneDevice.correct.push(result.not_one_device);
+      for (const factor of [0.95, 1.05]) oneDevice.scaled.push(dualInterfaceRthjc(greased, { ...dry, zth_K_per_W: dry.zth_K_per_W.map((z) => factor * z) }).not_one_device);
       measured.structure.push(relative(result.structure_criterion.rthjc_K_per_W, rthjc));
       measured.zth.push(relative(result.zth_criterion.rthjc_K_per_W, rthjc));
       const exact = dualInterfaceRthjc(exactStackMeasurement(greasedTruth), exactStackMeasurement(dryTruth));
@@ -208,6 +251,14 @@ describe('dual interface Rth-JC, measured error on layered stacks against their 
   it('the deconvolved structure function itself reads high at the exact case surface: the resolution rounds the knee there', () => {
     expect(summary(measured.lowerAtCase).low).toBeGreaterThan(0);
     expect(summary(measured.lowerAtCase).median).toBeGreaterThan(0.2);
+  });
+
+  // JESD51-14: one device's two curves coincide until heat reaches the case. None of the correct pairs is taken for
+  // two devices; every one with a 5 % scale on one record is.
+  it('takes every correct pair for one device, and none whose records differ by a 5 % scale', () => {
+    expect(oneDevice.correct.filter((reason) => reason !== null)).toEqual([]);
+    expect(oneDevice.scaled.filter((reason) => reason === null).length).toBe(0);
+    for (const reason of oneDevice.scaled) expect(reason).toMatch(/^B's Zth is \d\.\d % (above|below) A's/);
   });
 
   it('the figures stated to users are what is measured here: every error inside the stated range, its ends and median within 1 % of the measured ones', () => {

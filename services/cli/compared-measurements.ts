@@ -40,6 +40,13 @@ export async function analyzeComparedFiles(
   return { measurements, failures };
 }
 
+/** A result as the dual interface method takes it; samples before the early-time window were replaced only when the correction was applied. */
 export function interfaceMeasurement(result: AnalysisResult): InterfaceMeasurement {
-  return { time_s: Float64Array.from(result.zth.time_s), zth_K_per_W: Float64Array.from(result.zth.zth_K_per_W), structure: resultCumulativeStructure(result) };
+  const { applied, window_start_s, window_end_s } = result.early_time;
+  return {
+    time_s: Float64Array.from(result.zth.time_s),
+    zth_K_per_W: Float64Array.from(result.zth.zth_K_per_W),
+    structure: resultCumulativeStructure(result),
+    early_time: { measured_from_s: applied ? window_start_s : 0, chip_until_s: window_end_s },
+  };
 }

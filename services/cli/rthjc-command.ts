@@ -76,6 +76,7 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
     rth_total_K_per_W: { a: a.result.rth_total_K_per_W, b: b.result.rth_total_K_per_W },
     lower: comparison.lower === 'first' ? 'a' : 'b',
     not_one_device: comparison.not_one_device,
+    early_scale: comparison.early_scale,
     zth_criterion: {
       rthjc_K_per_W: zth.rthjc_K_per_W,
       separation_time_s: zth.separation_time_s,

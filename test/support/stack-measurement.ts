@@ -11,6 +11,7 @@ import { logSpacedTimes, syntheticTransient } from '../../shared/models/syntheti
 import { zthFromFoster } from '../../shared/numerics/foster-zth.js';
 import type { AnalysisParameters } from '../../shared/schemas/analysis-parameters.js';
 import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';
+import { interfaceMeasurement } from '../../services/cli/compared-measurements.js';
 import { createRandom, gaussian } from './seeded-random.js';
 
 export const BENCH_POWER_W = 50;
@@ -51,15 +52,14 @@ export function analysedStackMeasurement(truth: StackTruth, seed: number, parame
   const lines = ['time_s,temperature_C'];
   for (let i = 0; i < curve.time_s.length; i++) lines.push(`${curve.time_s[i]},${curve.values[i]}`);
   const [result] = analyzeTransientFile({ bytes: Buffer.from(lines.join('\n')), fileName: `seed-${seed}.csv`, power: { power_W: BENCH_POWER_W }, parameters }, '2026-01-01T00:00:00.000Z');
-  return {
-    time_s: Float64Array.from(result.zth.time_s),
-    zth_K_per_W: Float64Array.from(result.zth.zth_K_per_W),
-    structure: { r_K_per_W: Float64Array.from(result.structure.cumulative.r_K_per_W), c_J_per_K: Float64Array.from(result.structure.cumulative.c_J_per_K) },
-  };
+  return interfaceMeasurement(result);
 }
 
-/** The stack's exact Zth (1 us .. 100 s, 100 samples/decade) and exact structure function: the methods without the deconvolution. */
+/**
+ * The stack's exact Zth (1 us .. 100 s, 100 samples/decade) and exact structure function: the methods without the
+ * deconvolution, and without an early-time correction (every sample measured, no sqrt(t) window).
+ */
 export function exactStackMeasurement(truth: StackTruth): InterfaceMeasurement {
   const time_s = logSpacedTimes(1e-6, 100, 100);
-  return { time_s, zth_K_per_W: zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, time_s), structure: truth.structure };
+  return { time_s, zth_K_per_W: zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, time_s), structure: truth.structure, early_time: { measured_from_s: 0, chip_until_s: 0 } };
 }
