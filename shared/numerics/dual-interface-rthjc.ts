@@ -62,8 +62,6 @@ import { firstPersistentExceedance, valueAtPosition, type PersistentExceedance }
 import type { CumulativeStructureFunction } from './structure-function.js';
 import { structureFunctionShift, type StructureFunctionShiftOptions } from './structure-function-shift.js';
 
-/** One measurement: its Zth curve at the raw sample times and its cumulative structure function. */
-
 /**
  * Curves that part within this factor of their earliest common time part
  * while heat is still in the chip (a microsecond-scale start against a case
@@ -77,6 +75,8 @@ const EARLY_SEPARATION_FACTOR = 10;
  * relative difference first exceeds 0.1 % at 0.157 .. 0.58 of that time.
  */
 const SCALE_BEFORE_SEPARATION_FACTOR = 10;
+
+/** One measurement: its Zth curve at the raw sample times, its cumulative structure function and its early-time window. */
 export interface InterfaceMeasurement {
   time_s: Float64Array;
   zth_K_per_W: Float64Array;
