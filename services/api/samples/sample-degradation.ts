@@ -241,8 +241,18 @@ function mixedAnalysesWarning(measurements: Measurement[]): string[] {
 
 /** Structure functions compare like with like only under the same algorithm version and parameters. */
 function withComparabilityWarning(comparison: DegradationComparison, reference: AnalysisResult, later: AnalysisResult): DegradationComparison {
-  const same = reference.provenance.algorithm === later.provenance.algorithm && canonicalJson(reference.provenance.parameters) === canonicalJson(later.provenance.parameters);
-  if (same) return comparison;
-  const warning = `analysed with ${reference.provenance.algorithm === later.provenance.algorithm ? 'other parameters' : `algorithm ${later.provenance.algorithm}`} than the reference (${reference.provenance.algorithm}): reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id= to compare like with like`;
+  const differing = differingSettings(reference, later);
+  if (differing.length === 0) return comparison;
+  const warning = `analysed otherwise than the reference: ${differing.join('; ')}; reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id= to compare like with like`;
   return { ...comparison, warnings: [...comparison.warnings, warning] };
+}
+
+/** Each setting (the algorithm version, each parameter) in which `later` differs from `reference`: `points_per_decade 60 (the reference: 40)`. */
+function differingSettings(reference: AnalysisResult, later: AnalysisResult): string[] {
+  const settingsOf = (result: AnalysisResult) => ({ algorithm: result.provenance.algorithm, ...result.provenance.parameters }) as Record<string, unknown>;
+  const [ours, theirs] = [settingsOf(later), settingsOf(reference)];
+  const shown = (value: unknown) => (value === undefined || value === null ? 'automatic' : canonicalJson(value));
+  return [...new Set([...Object.keys(theirs), ...Object.keys(ours)])]
+    .filter((name) => shown(ours[name]) !== shown(theirs[name]))
+    .map((name) => `${name} ${shown(ours[name])} (the reference: ${shown(theirs[name])})`);
 }
