@@ -317,7 +317,13 @@ describe('with a real Redis', () => {
       { name: 'file', value: small, filename: 'b.csv', type: 'text/csv' },
     ]);
     const response = await uploadForm(context, form);
-    expect(expectProblem(response, 400, 'REQUEST_INVALID').detail).toMatch(/more than one file part; send exactly one, named "file"/);
+    expect(expectProblem(response, 400, 'REQUEST_INVALID').detail).toMatch(/unexpected file part "file"; send exactly one, named "file"/);
+    const three = multipart([
+      { name: 'meta', value: '{"sample_id": "S1"}', filename: 'meta.json', type: 'application/json' },
+      { name: 'file', value: small, filename: 'a.csv', type: 'text/csv' },
+      { name: 'file', value: small, filename: 'b.csv', type: 'text/csv' },
+    ]);
+    expect(expectProblem(await uploadForm(context, three), 400, 'REQUEST_INVALID').detail).toMatch(/more than one file part besides "meta"; send exactly one, named "file"/);
   });
 
   it('says what a patterned field allows in words, not as its regular expression, naming the field (worded-patterns.ts)', async () => {
@@ -384,6 +390,18 @@ describe('with a real Redis', () => {
     expect((await uploadForm(context, scalars)).statusCode).toBe(202);
     const object = multipart([{ name: 'sample_id', value: 'S-mpjson' }, { name: 'power_W', value: '{"W": 50}', type: 'application/json' }, { name: 'file', value: small, filename: 'j.csv', type: 'text/csv' }]);
     expect(expectProblem(await uploadForm(context, object), 400, 'REQUEST_INVALID').detail).toMatch(/^multipart field "power_W" holds a JSON object: send its value as plain text/);
+  });
+
+  // curl -F "meta=@meta.json" sends the metadata as a file part; it was refused as a second file.
+  it('takes a meta part sent as a file, as curl -F "meta=@meta.json" sends it', async () => {
+    const meta = { sample_id: 'S-mpfile', cycle_count: 9000, power_W: 50 };
+    const form = multipart([
+      { name: 'meta', value: JSON.stringify(meta), filename: 'meta.json', type: 'application/json' },
+      { name: 'file', value: small, filename: 'f.csv', type: 'text/csv' },
+    ]);
+    const response = await uploadForm(context, form);
+    expect(response.statusCode, response.body).toBe(202);
+    expect(await context.store.getUpload(response.json().upload_id)).toMatchObject({ sample_id: 'S-mpfile', cycle_count: 9000, power: { power_W: 50 } });
   });
 
   it('records the format the parser saw when neither media type nor file name tell it', async () => {

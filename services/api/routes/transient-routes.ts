@@ -60,7 +60,7 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
     done(null, body),
   );
   await app.register(fastifyMultipart, {
-    limits: { fileSize: maxUploadBytes, files: 1, parts: 40, fields: 30, fieldSize: 64 * 1024, fieldNameSize: 100, headerPairs: 50 },
+    limits: { fileSize: maxUploadBytes, files: 2, parts: 40, fields: 30, fieldSize: 64 * 1024, fieldNameSize: 100, headerPairs: 50 },
   });
 
   app.post(

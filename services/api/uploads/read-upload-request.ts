@@ -44,8 +44,11 @@ export async function readMultipartUpload(request: FastifyRequest, query: Partia
   const metas: unknown[] = [];
   try {
     for await (const part of request.parts()) {
-      if (part.type === 'file') {
-        if (file !== undefined || part.fieldname !== 'file') throw new HeatpathError('REQUEST_INVALID', `multipart holds an unexpected file part "${part.fieldname}"; send exactly one, named "file"`);
+      if (part.type === 'file' && part.fieldname === 'meta') {
+        // curl's -F "meta=@meta.json" sends the metadata as a file part (bounded like the file): taken as the field it means.
+        metas.push((await part.toBuffer()).toString('utf8'));
+      } else if (part.type === 'file') {
+        if (file !== undefined || part.fieldname !== 'file') throw new HeatpathError('REQUEST_INVALID', `multipart holds an unexpected file part "${part.fieldname}"; send exactly one, named "file" (and the metadata as fields, or as one "meta" part)`);
         file = { bytes: await part.toBuffer(), fileName: part.filename || 'upload', mimeType: part.mimetype };
       } else {
         if (part.valueTruncated) throw new HeatpathError('UPLOAD_TOO_LARGE', `multipart field "${part.fieldname}" is too long`);
@@ -126,7 +129,7 @@ function asClientError(error: unknown): unknown {
   if (code === 'FST_INVALID_JSON_FIELD_ERROR') {
     return new HeatpathError('REQUEST_INVALID', 'a multipart field sent as application/json is not valid JSON (or longer than the field limit): send it as valid JSON, or as plain text without that Content-Type');
   }
-  if (code === 'FST_FILES_LIMIT') return new HeatpathError('REQUEST_INVALID', 'multipart holds more than one file part; send exactly one, named "file"');
+  if (code === 'FST_FILES_LIMIT') return new HeatpathError('REQUEST_INVALID', 'multipart holds more than one file part besides "meta"; send exactly one, named "file"');
   if (code === 'FST_PARTS_LIMIT' || code === 'FST_FIELDS_LIMIT') {
     return new HeatpathError('REQUEST_INVALID', `multipart holds too many parts or fields (${(error as Error).message}); send one "file" part and the metadata fields, or one "meta" field`);
   }
