@@ -3,7 +3,6 @@
  * line, as a lab gives each die of a module its own. Truth: exact Rth of 1-D layered stacks
  * (test/support/two-die-voltage-file.ts); 0.5 % is the pipeline's Rth target.
  */
-import { dirname } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { calibrationIdOf } from '../shared/schemas/calibration-id.js';
 import { cliWorkspace, expectUserError } from './support/cli-process.js';
@@ -42,19 +41,5 @@ describe('heatpath analyze with per-channel calibrations', () => {
     expectUserError(heatpath('analyze', transient, '--calibration', t1Calibration, '--calibration', `T9=${t2Calibration}`), /names channel T9; the file's channels are T1, T2.*CALIBRATION_CHANNEL_NOT_FOUND/);
     expectUserError(heatpath('analyze', transient, '--calibration', `T2=${t2Calibration}`), /voltage_V@T1 of 2 .*CALIBRATION_REQUIRED/);
     expectUserError(heatpath('analyze', transient, '--calibration', `T2=${t1Calibration}`, '--calibration', `T2=${t2Calibration}`), /--calibration T2=\.\.\. is given twice.*CLI_USAGE/);
-  });
-
-  // To a server a calibration file is stored once and named in every upload by its id (one for all channels); a
-  // channel's own goes in the upload's calibration_id@CH field. Refused before anything is sent (port 9: discard).
-  it("refuses a channel's own calibration file for reprocess and submit to a server, saying where it works", () => {
-    const archive = dirname(transient);
-    expectUserError(
-      heatpath('reprocess', archive, '--server', 'http://127.0.0.1:9', '--key', 'k', '--calibration', `T2=${t2Calibration}`),
-      /a channel's own calibration \(--calibration CH=CAL\.json\) is read with --local.*calibration_id@CH.*CLI_USAGE/,
-    );
-    expectUserError(
-      heatpath('submit', transient, '--server', 'http://127.0.0.1:9', '--key', 'k', '--sample', 'M5', '--calibration', `T2=${t2Calibration}`),
-      /a channel's own calibration \(--calibration CH=CAL\.json\) is read with --local.*CLI_USAGE/,
-    );
   });
 });

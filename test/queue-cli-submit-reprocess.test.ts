@@ -11,6 +11,7 @@ import type { Calibration } from '../shared/schemas/calibration.js';
 import { startApiTestApp, testTokens, type ApiTestContext } from './support/api-test-app.js';
 import { freePort } from './support/free-port.js';
 import { SYNTHETIC_POWER_W, syntheticTransientCsv } from './support/synthetic-upload.js';
+import { twoDieVoltageFile } from './support/two-die-voltage-file.js';
 
 let api: ApiTestContext;
 let server: string;
@@ -149,6 +150,23 @@ describe('heatpath submit (real API, real Redis)', () => {
     await writeFile(calibrationFile, '{"model":"linear"}');
     await expect(runSubmitCommand([volts, ...serverOptions(), '--sample', 'S-68', '--calibration', calibrationFile], print)).rejects.toMatchObject({ code: 'CALIBRATION_BAD_FILE' });
     expect(await api.store.listUploads({ sample_id: 'S-68' })).toHaveLength(0);
+  });
+
+  // A module's dies each with their own sweep: each file is stored on the server and named in the upload's
+  // calibration_id@CH field. This was refused (CLI_USAGE: "read with --local"), so submit could not upload such a module.
+  it('stores a channel\'s own calibration file with --calibration CH=CAL.json and names it in the upload\'s calibration_id@CH', async () => {
+    const module = twoDieVoltageFile(43);
+    const transient = join(workDir, 'two-die.csv');
+    await writeFile(transient, module.csv);
+    const t1 = join(workDir, 't1-cal.json');
+    const t2 = join(workDir, 't2-cal.json');
+    await writeFile(t1, JSON.stringify(module.calibrations.T1));
+    await writeFile(t2, JSON.stringify(module.calibrations.T2));
+    expect(await runSubmitCommand([transient, '--server', server, '--key', testTokens.bench, '--sample', 'S-71', '--calibration', t1, '--calibration', `T2=${t2}`], print)).toBe(0);
+    const [stored] = await api.store.listUploads({ sample_id: 'S-71' });
+    expect(stored.calibration_id).toBe(calibrationIdOf(module.calibrations.T1));
+    expect(stored.channel_calibration_ids).toEqual({ T2: calibrationIdOf(module.calibrations.T2) });
+    expect(await api.store.getCalibration(calibrationIdOf(module.calibrations.T2))).not.toBeNull();
   });
 
   it('says that the server refused the calibration, not a transient, when it does', async () => {

@@ -44,7 +44,7 @@ parameters without that, reprocess on the server with a batch
   --calibration CAL.json  TSP calibration file of heatpath calibrate; on a server
                           it is stored there first, as submit does, and named by
                           its id (or name a stored one with --calibration-id);
-                          CH=CAL.json gives channel CH its own (with --local)
+                          CH=CAL.json (repeatable) gives channel CH its own
 ${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}
 
 Exit codes: 0 all done, 2 a file or option must be fixed (takes precedence),
@@ -102,7 +102,9 @@ export async function runReprocessCommand(
     power: inputs.power,
     // The id the uploads name (a file's given by the server, as calibrate prints it): one calibration is one setting however it is given.
     calibration_sha256: upload ? upload.metadata.get('calibration_id') : inputs.calibration ? calibrationIdOf(inputs.calibration) : null,
-    channel_calibration_sha256: Object.fromEntries([...inputs.channelCalibrations].map(([channel, calibration]) => [channel, calibrationIdOf(calibration)])),
+    channel_calibration_sha256: upload
+      ? Object.fromEntries([...upload.metadata].flatMap(([field, id]) => (field.startsWith('calibration_id@') ? [[field.slice('calibration_id@'.length), id]] : [])))
+      : Object.fromEntries([...inputs.channelCalibrations].map(([channel, calibration]) => [channel, calibrationIdOf(calibration)])),
     sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath)),
   };
   const target = upload ? new URL(upload.target.server).href : 'local';

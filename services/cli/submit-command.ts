@@ -17,14 +17,16 @@ FILE<TAB>JOB_ID<TAB>STATE. Submitting a file twice is safe (same job).
 ${uploadOptionsUsage()}
   --calibration CAL.json  a calibration file of heatpath calibrate: stored on
                           the server first (once; its calibration_id is the
-                          one calibrate printed), then named by the uploads
+                          one calibrate printed), then named by the uploads;
+                          --calibration CH=CAL.json (repeatable) gives channel
+                          CH its own, for the file's voltage_V@CH column
 
 Exit codes: 0 all accepted, 2 a file or option must be fixed (takes
 precedence), 1 the server could not be reached.`;
 
 /** `heatpath submit`: for bench scripts. Errors are one line per file on stderr. */
 export async function runSubmitCommand(argv: string[], print: (text: string) => void = (text) => process.stdout.write(`${text}\n`)): Promise<number> {
-  const { values, positionals } = parseCommandLine('submit', argv, { ...uploadOptionSpecs, calibration: { type: 'string' }, help: { type: 'boolean', short: 'h' } });
+  const { values, positionals } = parseCommandLine('submit', argv, { ...uploadOptionSpecs, calibration: { type: 'string', multiple: true }, help: { type: 'boolean', short: 'h' } });
   if (values.help) {
     print(submitUsage);
     return 0;
@@ -33,9 +35,9 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
   const target = uploadTargetFrom(values, 'submit');
   const metadata = uploadMetadataFrom(values);
   if (!metadata.has('sample_id')) throw new HeatpathError('CLI_USAGE', 'heatpath submit needs --sample ID');
-  const calibrationFile = values.calibration as string | undefined;
-  if (calibrationFile !== undefined) {
-    const exitCode = await storeCalibrationOnServer('submit', target, metadata, calibrationFile);
+  const calibrationFiles = values.calibration as string[] | undefined;
+  if (calibrationFiles !== undefined) {
+    const exitCode = await storeCalibrationOnServer('submit', target, metadata, calibrationFiles);
     if (exitCode !== null) return exitCode;
   }
 
