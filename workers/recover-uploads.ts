@@ -13,7 +13,7 @@ export interface UploadRecoveryOptions {
 }
 
 export interface RecoverySweep {
-  /** Uploads without a stored result or failure, offered to the queue again. */
+  /** Uploads without a stored result or failure, not withdrawn, offered to the queue again. */
   uploads: number;
   /**
    * Jobs of those uploads that Redis holds as failed although the store has
@@ -39,7 +39,7 @@ const ENQUEUE_CHUNK = 500;
 /**
  * Nothing accepted is ever lost: the store is the truth and Redis only a
  * queue. A sweep offers every stored upload that has neither a result nor a
- * final failure to the queue again; Redis ignores job ids it still holds, so
+ * final failure, and was not withdrawn, to the queue again; Redis ignores job ids it still holds, so
  * only jobs it lost (a Redis restart without persistence, an upload stored
  * while Redis was away) are queued anew, and jobs it holds as failed whose
  * failure the store never recorded are run again. Runs at start and then
@@ -59,9 +59,10 @@ export class UploadRecovery {
   async sweep(): Promise<RecoverySweep> {
     const pending: UploadRecord[] = [];
     const unacknowledged: string[] = [];
-    const outcomes = await this.store.jobOutcomes();
+    const [outcomes, withdrawals] = await Promise.all([this.store.jobOutcomes(), this.store.withdrawals()]);
     for (const summary of await this.store.listUploadSummaries()) {
-      if (isJobFinished(outcomes, summary.job_id)) continue;
+      // A withdrawn upload is kept for the record, not analysed again: its job runs only for an upload that stands.
+      if (isJobFinished(outcomes, summary.job_id) || withdrawals.has(summary.upload_id)) continue;
       // A record removed since this process read it is no upload any more.
       const upload = await this.store.getUpload(summary.upload_id);
       if (!upload) continue;

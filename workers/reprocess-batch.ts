@@ -70,8 +70,13 @@ export class BatchReprocessor {
    * recovery queues the jobs once it does (as an upload answered `stored`).
    */
   async create(request: BatchRequest): Promise<Omit<BatchProgress, 'status'> & { status: BatchProgress['status'] | 'stored' }> {
-    const uploads = await this.store.listUploads(request.selection);
-    if (uploads.length === 0) throw new HeatpathError('BATCH_SELECTION_EMPTY', `no stored upload matches ${JSON.stringify(request.selection)}`);
+    const [selected, withdrawals] = await Promise.all([this.store.listUploads(request.selection), this.store.withdrawals()]);
+    // Withdrawn uploads are kept for the record, not reprocessed.
+    const uploads = selected.filter((upload) => !withdrawals.has(upload.upload_id));
+    if (uploads.length === 0) {
+      const selection = JSON.stringify(request.selection);
+      throw new HeatpathError('BATCH_SELECTION_EMPTY', selected.length === 0 ? `no stored upload matches ${selection}` : `the ${selected.length} stored upload(s) matching ${selection} are all withdrawn`);
+    }
     const batch: BatchRecord = {
       batch_id: `batch-${Date.now().toString(36)}-${randomBytes(4).toString('hex')}`,
       created_at: new Date().toISOString(),

@@ -21,6 +21,7 @@ import { metricsRoutes } from './routes/metrics-routes.js';
 import { sampleRoutes } from './routes/sample-routes.js';
 import { webhookRoutes } from './routes/webhook-routes.js';
 import { transientRoutes } from './routes/transient-routes.js';
+import { withdrawalRoutes } from './routes/withdrawal-routes.js';
 
 /** Everything the API talks to, created by the caller so tests inject real ones. */
 export interface AppDependencies {
@@ -66,6 +67,7 @@ export async function buildApp(deps: AppDependencies) {
   await app.register(healthRoutes, { store, queue, maxUploadBytes: config.maxUploadBytes });
   await app.register(metricsRoutes);
   await app.register(transientRoutes, { store, queue, maxUploadBytes: config.maxUploadBytes });
+  await app.register(withdrawalRoutes, { store });
   await app.register(jobRoutes, { store, queue });
   await app.register(calibrationRoutes, { store });
   await app.register(sampleRoutes, { store });

@@ -31,6 +31,20 @@ export interface UploadRecord {
   uploaded_by: string;
 }
 
+/**
+ * An upload taken back (sent under the wrong sample id, or a failed measurement), written once beside its upload
+ * record, which stays as it was: nothing is deleted. A separate record because upload records are written once and
+ * every process keeps its summaries of them (upload-summary-index.ts) without reading them again.
+ */
+export interface WithdrawalRecord {
+  upload_id: string;
+  /** When it was withdrawn (ISO 8601). */
+  at: string;
+  /** Name of the API key that withdrew it. */
+  by: string;
+  reason: string;
+}
+
 /** A stored analysis result, keyed by job id (input hash + parameters + algorithm). */
 export interface ResultRecord {
   job_id: string;

@@ -21,6 +21,7 @@ import type {
   UploadFilter,
   UploadRecord,
   WebhookRecord,
+  WithdrawalRecord,
 } from './store-records.js';
 
 /** Ids that are safe as file names: no separators, no leading dot. */
@@ -59,6 +60,7 @@ export interface StoredBlob {
  *   calibrations/<calibration_id>.json CalibrationRecord (id = content hash)
  *   batches/<batch_id>.json            BatchRecord
  *   webhooks/<webhook_id>.json         WebhookRecord
+ *   withdrawals/<upload_id>.json       WithdrawalRecord, written once (few: a folder of its own, unsharded)
  *   idempotency/<shard>/<sha256(key)>.json IdempotencyRecord, written once
  *   derived/upload-summaries.json      what listings need of every upload record (derived, not fsynced)
  *
@@ -183,6 +185,26 @@ export class TransientStore {
     const page = summaries.slice(start, start + limit);
     const more = start + limit < summaries.length;
     return { uploads: await this.readUploads(page), next: more && page.length > 0 ? page[page.length - 1].upload_id : null };
+  }
+
+  /** Withdraws an upload unless it was withdrawn before; returns the withdrawal that stands (the first). */
+  async putWithdrawal(record: WithdrawalRecord): Promise<{ wrote: boolean; withdrawal: WithdrawalRecord }> {
+    const path = this.flatPath('withdrawals', requireId(record.upload_id));
+    if (await createFileExclusive(this.io, path, JSON.stringify(record))) return { wrote: true, withdrawal: record };
+    return { wrote: false, withdrawal: (await readJson<WithdrawalRecord>(this.io, path)) ?? record };
+  }
+
+  async getWithdrawal(uploadId: string): Promise<WithdrawalRecord | null> {
+    return isStoreId(uploadId) ? readJson<WithdrawalRecord>(this.io, this.flatPath('withdrawals', uploadId)) : null;
+  }
+
+  /**
+   * Every withdrawal by upload id, read from the store on each call (other processes withdraw too): uploads are
+   * withdrawn by hand, one at a time, so there are few.
+   */
+  async withdrawals(): Promise<Map<string, WithdrawalRecord>> {
+    const records = await this.readAllIn<WithdrawalRecord>(join(this.dataDir, 'withdrawals'));
+    return new Map(records.map((record) => [record.upload_id, record]));
   }
 
   private async readUploads(summaries: UploadSummary[]): Promise<UploadRecord[]> {

@@ -11,10 +11,10 @@ import { asyncStoreIo, type StoreIo } from './store-io.js';
  * records they return (46-86 ms per sample listing at 20,000 uploads,
  * measured) instead of a read of every record (about 2 s).
  */
-export type UploadSummary = Pick<UploadRecord, 'upload_id' | 'sample_id' | 'bench' | 'tags' | 'received_at' | 'job_id' | 'input_sha256'>;
+export type UploadSummary = Pick<UploadRecord, 'upload_id' | 'sample_id' | 'bench' | 'tags' | 'received_at' | 'job_id' | 'input_sha256' | 'cycle_count'>;
 
 /** Change when UploadSummary changes: a snapshot of another format is ignored (and replaced). */
-export const UPLOAD_SUMMARY_SNAPSHOT_FORMAT = 'upload-summaries-1';
+export const UPLOAD_SUMMARY_SNAPSHOT_FORMAT = 'upload-summaries-2';
 
 interface UploadSummarySnapshot {
   format: string;
@@ -149,8 +149,8 @@ export class UploadSummaryIndex {
 }
 
 function summaryOf(record: UploadRecord): UploadSummary {
-  const { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256 } = record;
-  return { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256 };
+  const { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256, cycle_count } = record;
+  return { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256, cycle_count };
 }
 
 function uploadMatches(upload: UploadSummary, filter: UploadFilter): boolean {

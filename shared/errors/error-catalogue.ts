@@ -86,6 +86,7 @@ export const errorCatalogue = {
   // ---- service: queue, batches, webhooks ----
   WEBHOOK_ALREADY_REGISTERED: { status: 409, title: 'The URL is registered already', hint: 'Keep the webhook that is registered (GET /v1/webhooks), or remove it (DELETE /v1/webhooks/{id}) and register the URL again with other events.' },
   WEBHOOK_URL_NOT_ALLOWED: { status: 422, title: 'The webhook URL is not on the allowlist', hint: 'Ask the admin to add its origin (scheme://host:port) to HEATPATH_WEBHOOK_ALLOWLIST, or use an allowed URL.' },
+  UPLOAD_ALREADY_WITHDRAWN: { status: 409, title: 'The upload was withdrawn already', hint: 'Its first withdrawal stands, as the detail gives it (GET /v1/transients/{upload_id} shows it too): a withdrawal is kept for the record and is not changed.' },
   BATCH_SELECTION_EMPTY: { status: 422, title: 'The batch selects no stored transients', hint: 'Widen the selection (sample, bench, tag, time range) or leave it empty to select all.' },
   DEGRADATION_TOO_FEW_RESULTS: { status: 422, title: 'Too few completed analyses to show a trend', hint: 'A degradation trend needs a reference and at least one later completed analysis of the same channel: wait for pending jobs (GET /v1/samples/{sample_id}/results), or choose another ?channel= or ?batch_id=.' },
   SUBMIT_REJECTED: { status: 400, title: 'The server refused the transient', hint: 'Fix what the server reported, as its code and detail say, and submit the file again.' },

@@ -29,8 +29,11 @@ export const REDIS_URL_PATTERN: WordedPattern = { pattern: '^rediss?://', allows
 
 export const QUEUE_PREFIX_PATTERN: WordedPattern = { pattern: '^[^:]+$', allows: 'without a colon' };
 
+/** A text that says something: not empty, nor spaces only. */
+export const NOT_BLANK_PATTERN: WordedPattern = { pattern: '\\S', allows: 'a text with more than spaces in it' };
+
 const allowsByPattern = new Map(
-  [SAMPLE_ID_PATTERN, CALIBRATION_ID_PATTERN, RECORD_ID_PATTERN, REDIS_URL_PATTERN, QUEUE_PREFIX_PATTERN].map(({ pattern, allows }) => [pattern, allows]),
+  [SAMPLE_ID_PATTERN, CALIBRATION_ID_PATTERN, RECORD_ID_PATTERN, REDIS_URL_PATTERN, QUEUE_PREFIX_PATTERN, NOT_BLANK_PATTERN].map(({ pattern, allows }) => [pattern, allows]),
 );
 
 /** What a pattern allows in words; undefined for one not listed here. */

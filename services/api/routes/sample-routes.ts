@@ -3,10 +3,11 @@ import { Type } from 'typebox';
 import { AnalysisResultSchema, type AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
-import { UploadLinksSchema } from '../schemas/upload-record-schema.js';
+import { UploadLinksSchema, WithdrawalSchema, withdrawalView } from '../schemas/upload-record-schema.js';
 import { uploadLinks } from '../uploads/accept-transient-upload.js';
 import { NotIncludedReasonCodeSchema, sampleDegradation } from '../samples/sample-degradation.js';
 import { unknownSampleError } from '../samples/unknown-sample-error.js';
+import { SampleOverviewSchema, sampleOverviews } from '../samples/sample-overview.js';
 import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
@@ -43,6 +44,7 @@ const SampleEntrySchema = Type.Object({
   channel: Type.Union([Type.String(), Type.Null()]),
   cycle_count: Type.Union([Type.Integer(), Type.Null()]),
   tags: Type.Array(Type.String()),
+  withdrawn: Type.Union([WithdrawalSchema, Type.Null()], { description: 'Set when the upload was withdrawn: it stays listed, and the degradation trend leaves it out.' }),
   job: JobOutcomeSchema,
   reprocessed: Type.Array(Type.Object({ batch_id: Type.String(), ...JobOutcomeSchema.properties }), {
     description: 'Jobs of reprocessing batches for this upload, oldest batch first.',
@@ -89,7 +91,7 @@ const SampleDegradationSchema = Type.Object({
       reason: Type.String(),
     }),
     {
-      description: 'Uploads of the sample left out: analysis pending or failed, the channel missing, not in the batch, or not comparable with the reference.',
+      description: 'Uploads of the sample left out: withdrawn, analysis pending or failed, the channel missing, not in the batch, not comparable with the reference, or the same bytes sent again.',
     },
   ),
   warnings: Type.Array(Type.String()),
@@ -101,7 +103,10 @@ const SampleDegradationSchema = Type.Object({
 const DEFAULT_SAMPLE_PAGE = 200;
 const MAX_SAMPLE_PAGE = 5000;
 
-/** The LIMS view: every transient of a sample, oldest first, with its job outcomes. */
+/** Samples per page of the sample index: a summary each, a few hundred bytes. */
+const DEFAULT_INDEX_PAGE = 200;
+
+/** The LIMS view: the samples the store holds, and every transient of a sample, oldest first, with its job outcomes. */
 export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> = async (app, { store }) => {
   async function outcomeOf(jobId: string, includeResult: boolean, batchCancelled = false) {
     const result = await store.getResult(jobId);
@@ -114,6 +119,49 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
     if (await store.hasFailure(jobId)) return { job_id: jobId, outcome: 'failed' as const };
     return { job_id: jobId, outcome: batchCancelled ? ('cancelled' as const) : ('pending' as const) };
   }
+
+  app.get(
+    '/v1/samples',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['samples'],
+        summary: 'The sample ids the store holds, each with its uploads in brief',
+        description:
+          'In the order of the sample ids (code units), in pages of ?limit=; follow links.next, or pass next as ?after=. With ?bench= or ?tag=, the samples with an upload of that bench or tag, counted over those uploads. ' +
+          'An ?after= that is not a sample id of the listing is 404 RESOURCE_NOT_FOUND. A store without uploads lists none.',
+        querystring: Type.Object(
+          {
+            bench: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: 'Only uploads of this bench.' })),
+            tag: Type.Optional(Type.String({ minLength: 1, maxLength: 128, description: 'Only uploads with this tag.' })),
+            limit: Type.Integer({ minimum: 1, maximum: MAX_SAMPLE_PAGE, default: DEFAULT_INDEX_PAGE, description: 'Samples per page.' }),
+            after: Type.Optional(Type.String({ maxLength: 128, description: 'Start after this sample id: the `next` of the page before.' })),
+          },
+          { additionalProperties: false },
+        ),
+        response: {
+          200: Type.Object({
+            samples: Type.Array(SampleOverviewSchema),
+            next: Type.Union([Type.String(), Type.Null()], { description: 'Pass as ?after= for the next page; null on the last page.' }),
+            links: Type.Object({ next: Type.Union([Type.String(), Type.Null()]) }),
+          }),
+        },
+      },
+    },
+    async (request) => {
+      const { bench, tag, limit, after } = request.query;
+      const [summaries, withdrawals] = await Promise.all([store.listUploadSummaries({ bench, tag }), store.withdrawals()]);
+      const samples = sampleOverviews(summaries, new Set(withdrawals.keys()));
+      const start = after === undefined ? 0 : samples.findIndex((sample) => sample.sample_id === after) + 1;
+      if (start === 0 && after !== undefined) {
+        throw new HeatpathError('RESOURCE_NOT_FOUND', `sample ${after} is not one of the listing's${bench === undefined && tag === undefined ? '' : ' (with its bench or tag)'}: pass the \`next\` of the page before as ?after=`);
+      }
+      const page = samples.slice(start, start + limit);
+      const next = start + limit < samples.length ? page[page.length - 1].sample_id : null;
+      const nextLink = next === null ? null : `/v1/samples?${new URLSearchParams({ ...(bench !== undefined && { bench }), ...(tag !== undefined && { tag }), after: next, limit: String(limit) })}`;
+      return { samples: page, next, links: { next: nextLink } };
+    },
+  );
 
   app.get(
     '/v1/samples/:sample_id/results',
@@ -145,7 +193,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
     async (request, reply) => {
       const { sample_id } = request.params;
       const { include_results, limit, after } = request.query;
-      const [page, batches] = await Promise.all([store.listUploadPage({ sample_id }, after, limit), store.listBatches()]);
+      const [page, batches, withdrawals] = await Promise.all([store.listUploadPage({ sample_id }, after, limit), store.listBatches(), store.withdrawals()]);
       if (page === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${after} is not one of sample ${sample_id}'s: pass the \`next\` of the page before as ?after=`);
       const { uploads, next } = page;
       if (uploads.length === 0 && after === undefined) throw await unknownSampleError(store, sample_id);
@@ -158,6 +206,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
           channel: upload.channel,
           cycle_count: upload.cycle_count,
           tags: upload.tags,
+          withdrawn: withdrawalView(withdrawals.get(upload.upload_id)),
           job: await outcomeOf(upload.job_id, include_results),
           reprocessed: await Promise.all(
             batches.flatMap((batch) =>

@@ -3,16 +3,18 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type, type TObject } from 'typebox';
 import { Compile } from 'typebox/compile';
 import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-error.js';
-import type { TransientStore } from '../../store/transient-store.js';
+import { create as contentDisposition } from 'content-disposition';
+import { sha256Hex, type TransientStore } from '../../store/transient-store.js';
 import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { JobStateSchema, JobStatusSchema, readJobStatus, storedJobStatus } from '../jobs/job-status.js';
-import { UploadLinksSchema, UploadRecordSchema } from '../schemas/upload-record-schema.js';
+import { UploadLinksSchema, UploadRecordSchema, withdrawalView } from '../schemas/upload-record-schema.js';
 import { UploadMetadataSchema, UploadQuerySchema } from '../schemas/transient-metadata.js';
 import { acceptTransientUpload, uploadLinks } from '../uploads/accept-transient-upload.js';
 import { RESULT_CAUTION } from '../../../shared/analysis/result-caution.js';
 import { typedFieldsFromText } from '../../../shared/schemas/typed-fields-from-text.js';
 import { readMultipartUpload, readRawUpload } from '../uploads/read-upload-request.js';
 import { withRequestCycleCount } from '../uploads/request-cycle-count.js';
+import { storedUpload } from '../uploads/stored-upload.js';
 
 const UploadAnswerSchema = Type.Object({
   upload_id: Type.String(),
@@ -116,11 +118,49 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
       },
     },
     async (request) => {
-      const upload = await store.getUpload(request.params.upload_id);
-      if (!upload) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${request.params.upload_id} is not stored`);
+      const upload = await storedUpload(store, request.params.upload_id);
       // Unknown to the queue (or Redis away): the upload is still safely stored.
       const job = (await readJobStatus(store, queue, upload.job_id).catch(() => null)) ?? storedJobStatus(upload.job_id);
-      return { upload, job, links: uploadLinks(upload) };
+      return { upload: { ...upload, withdrawn: withdrawalView(await store.getWithdrawal(upload.upload_id)) }, job, links: uploadLinks(upload) };
+    },
+  );
+
+  app.get(
+    '/v1/transients/:upload_id/raw',
+    {
+      config: { permission: 'read' },
+      schema: {
+        tags: ['transients'],
+        summary: 'The raw bytes of an upload, exactly as received',
+        description:
+          'For an audit that reproduces a result: the bytes the job analysed (a withdrawn upload\'s too), as text/csv or application/json by the upload\'s format, with the upload\'s file name in Content-Disposition ' +
+          'and their SHA-256 (the upload\'s input_sha256, which job ids and provenance name) as the ETag and in Repr-Digest (RFC 9530). Bytes gone from the store, or no longer matching their SHA-256, are 410 STORED_INPUT_MISSING.',
+        params: Type.Object({ upload_id: Type.String({ maxLength: 160 }) }),
+        response: {
+          200: {
+            description: 'The bytes as received; the ETag is their SHA-256 in hex.',
+            content: { 'text/csv': { schema: binary('A CSV upload.') }, 'application/json': { schema: binary('A JSON upload.') } },
+          },
+        },
+      },
+    },
+    async (request, reply) => {
+      const upload = await storedUpload(store, request.params.upload_id);
+      const bytes = await store.getBlob(upload.input_sha256);
+      // A whole store that does not answer is an outage (503), not a lost file.
+      if (bytes === null) await store.checkAnswers();
+      if (bytes === null || sha256Hex(bytes) !== upload.input_sha256) {
+        throw new HeatpathError(
+          'STORED_INPUT_MISSING',
+          `the raw transient of upload ${upload.upload_id} (${upload.file_name}, SHA-256 ${upload.input_sha256}) ${bytes === null ? 'is not in the store' : 'in the store no longer has that SHA-256: the file is damaged'}`,
+        );
+      }
+      return reply
+        .header('content-type', upload.format === 'json' ? 'application/json' : 'text/csv')
+        .header('content-disposition', contentDisposition(upload.file_name))
+        .header('etag', `"${upload.input_sha256}"`)
+        .header('repr-digest', `sha-256=:${Buffer.from(upload.input_sha256, 'hex').toString('base64')}:`)
+        .send(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength));
     },
   );
 };

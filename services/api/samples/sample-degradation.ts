@@ -27,7 +27,7 @@ export interface SampleDegradationOptions {
 
 /** Why an upload is not in the trend: stable, for a LIMS to branch on; the text beside it says more. */
 export const NotIncludedReasonCodeSchema = Type.Union(
-  [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable'), Type.Literal('sent_again')],
+  [Type.Literal('not_in_batch'), Type.Literal('analysis_failed'), Type.Literal('analysis_pending'), Type.Literal('channel_missing'), Type.Literal('not_comparable'), Type.Literal('sent_again'), Type.Literal('withdrawn')],
   { description: 'Stable, to branch on; reason says more.' },
 );
 
@@ -56,14 +56,21 @@ const measurementOf = ({ upload, job_id, result }: Measurement) => ({
  * analyses in campaign order by the rule of `heatpath degradation`
  * (campaign-order.ts): in cycle order when every one has a cycle count, else
  * as they arrived, the first upload being the reference; each compared with
- * the reference as `heatpath degradation` compares files. Uploads still pending, failed, without the channel, or of
- * bytes already counted are listed apart with the reason.
+ * the reference as `heatpath degradation` compares files. Uploads withdrawn, still pending, failed, without the
+ * channel, or of bytes already counted are listed apart with the reason.
  */
 export async function sampleDegradation(store: TransientStore, sampleId: string, options: SampleDegradationOptions) {
-  const uploads = await store.listUploads({ sample_id: sampleId });
-  if (uploads.length === 0) throw await unknownSampleError(store, sampleId);
-  const { jobOf, cancelled } = await jobChooser(store, options.batch_id);
+  const stored = await store.listUploads({ sample_id: sampleId });
+  if (stored.length === 0) throw await unknownSampleError(store, sampleId);
+  const [{ jobOf, cancelled }, withdrawals] = await Promise.all([jobChooser(store, options.batch_id), store.withdrawals()]);
   const notIncluded: NotIncluded[] = [];
+  // Withdrawn uploads are not measurements of the sample (another sample's file, a failed measurement): as if not sent.
+  const uploads: UploadRecord[] = [];
+  for (const upload of stored) {
+    const withdrawal = withdrawals.get(upload.upload_id);
+    if (withdrawal === undefined) uploads.push(upload);
+    else notIncluded.push({ upload_id: upload.upload_id, job_id: jobOf(upload), reason_code: 'withdrawn', reason: `withdrawn at ${withdrawal.at} by ${withdrawal.by}: ${withdrawal.reason}` });
+  }
   const found: { upload: UploadRecord; job_id: string; results: AnalysisResult[] }[] = [];
   // Two measurements never give the same bytes: a repeat is one measurement sent again, which counts once, with the
   // labels of its latest upload, so that sending a file again corrects a mistyped cycle count; it arrived when first sent.

@@ -19,6 +19,7 @@ import type { ApiKey } from '../../config/api-key-list.js';
 import { jobIdFor } from '../../jobs/job-id.js';
 import type { UploadRecord } from '../../store/store-records.js';
 import { sha256Hex, type TransientStore } from '../../store/transient-store.js';
+import type { UploadSummary } from '../../store/upload-summary-index.js';
 import { JOB_PRIORITY, type AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { FailedJobRetry, MENDABLE_FAILURE_CODES } from '../../../workers/retry-failed-job.js';
 import type { JobState } from '../jobs/job-status.js';
@@ -162,14 +163,32 @@ export async function acceptTransientUpload(
  * as its latest upload (which corrects a mistyped cycle count). Looked up only when the bytes were already stored.
  */
 async function sameBytesWarnings(store: TransientStore, record: UploadRecord): Promise<string[]> {
-  const earlier = (await store.listUploadSummaries({ input_sha256: record.input_sha256 })).filter((upload) => upload.upload_id !== record.upload_id);
-  const other = earlier.find((upload) => upload.sample_id !== record.sample_id);
-  const same = earlier.filter((upload) => upload.sample_id === record.sample_id).at(-1);
+  const [summaries, withdrawals] = await Promise.all([store.listUploadSummaries({ input_sha256: record.input_sha256 }), store.withdrawals()]);
+  const earlier = summaries.filter((upload) => upload.upload_id !== record.upload_id);
+  // Withdrawn uploads count for nothing: one under another sample id is most likely the mistake this upload corrects.
+  const standing = earlier.filter((upload) => !withdrawals.has(upload.upload_id));
+  const other = standing.find((upload) => upload.sample_id !== record.sample_id);
+  const same = standing.filter((upload) => upload.sample_id === record.sample_id).at(-1);
+  const withdrawnBefore = (upload: UploadSummary) => {
+    const { at, reason } = withdrawals.get(upload.upload_id)!;
+    return `upload ${upload.upload_id} (received ${upload.received_at}), withdrawn at ${at} (${reason})`;
+  };
   const warnings: string[] = [];
   if (other !== undefined) {
     warnings.push(
       `the same bytes were uploaded for sample ${other.sample_id} as upload ${other.upload_id} (received ${other.received_at}): ` +
         `a file sent under the wrong sample id? This upload is analysed as sample ${record.sample_id}: check which sample the file belongs to`,
+    );
+  } else {
+    const otherWithdrawn = earlier.find((upload) => upload.sample_id !== record.sample_id);
+    if (otherWithdrawn !== undefined) {
+      warnings.push(`the same bytes were uploaded for sample ${otherWithdrawn.sample_id} as ${withdrawnBefore(otherWithdrawn)}: this upload records them as sample ${record.sample_id}`);
+    }
+  }
+  const sameWithdrawn = same === undefined ? earlier.filter((upload) => upload.sample_id === record.sample_id).at(-1) : undefined;
+  if (sameWithdrawn !== undefined) {
+    warnings.push(
+      `the same bytes were uploaded for this sample before, as ${withdrawnBefore(sameWithdrawn)}: this upload counts in the degradation trend; withdraw it too if the measurement is still not to count`,
     );
   }
   if (same !== undefined) {
