@@ -1,6 +1,5 @@
 import { Type, type Static } from 'typebox';
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
-import { canonicalJson } from '../../../shared/schemas/canonical-json.js';
 import { campaignOrder } from '../../../shared/analysis/campaign-order.js';
 import { compareForDegradation, degradationNotes } from '../../../shared/analysis/package-degradation.js';
 import { rthLimitCrossing } from '../../../shared/analysis/rth-limit-crossing.js';
@@ -12,6 +11,7 @@ import type { DegradationComparison } from '../../../shared/schemas/degradation-
 import type { UploadRecord } from '../../store/store-records.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { unknownSampleError } from './unknown-sample-error.js';
+import { differingSettings, mixedSettings } from './analysis-settings.js';
 
 export interface SampleDegradationOptions {
   /** The result channel to follow; omitted: the only one. */
@@ -231,13 +231,7 @@ function onlyChannel(channels: string[]): string {
  * other parameters (heatpath reprocess --server) becomes the latest upload of its bytes, and so the trend's entry.
  */
 function mixedAnalysesWarning(measurements: Measurement[]): string[] {
-  const settings = measurements.map(({ result }) => ({ algorithm: result.provenance.algorithm, ...result.provenance.parameters }) as Record<string, unknown>);
-  const names = [...new Set(settings.flatMap((setting) => Object.keys(setting)))];
-  const differing = names.flatMap((name) => {
-    const counts = new Map<string, number>();
-    for (const setting of settings) counts.set(String(setting[name] ?? 'automatic'), (counts.get(String(setting[name] ?? 'automatic')) ?? 0) + 1);
-    return counts.size > 1 ? [`${name} ${[...counts].map(([value, count]) => `${value} (${count})`).join(', ')}`] : [];
-  });
+  const differing = mixedSettings(measurements.map(({ result }) => result));
   if (differing.length === 0) return [];
   return [
     `the ${measurements.length} measurements of this trend were not all analysed alike: ${differing.join('; ')} (see each one's analysis). ` +
@@ -252,14 +246,4 @@ function withComparabilityWarning(comparison: DegradationComparison, reference: 
   if (differing.length === 0) return comparison;
   const warning = `analysed otherwise than the reference: ${differing.join('; ')}; reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id= to compare like with like`;
   return { ...comparison, warnings: [...comparison.warnings, warning] };
-}
-
-/** Each setting (the algorithm version, each parameter) in which `later` differs from `reference`: `points_per_decade 60 (the reference: 40)`. */
-function differingSettings(reference: AnalysisResult, later: AnalysisResult): string[] {
-  const settingsOf = (result: AnalysisResult) => ({ algorithm: result.provenance.algorithm, ...result.provenance.parameters }) as Record<string, unknown>;
-  const [ours, theirs] = [settingsOf(later), settingsOf(reference)];
-  const shown = (value: unknown) => (value === undefined || value === null ? 'automatic' : canonicalJson(value));
-  return [...new Set([...Object.keys(theirs), ...Object.keys(ours)])]
-    .filter((name) => shown(ours[name]) !== shown(theirs[name]))
-    .map((name) => `${name} ${shown(ours[name])} (the reference: ${shown(theirs[name])})`);
 }
