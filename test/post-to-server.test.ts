@@ -2,14 +2,16 @@ import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { afterEach, describe, expect, it } from 'vitest';
 import { postToServer } from '../services/cli/post-to-server.js';
+import { uploadTransient } from '../services/cli/transient-upload-client.js';
 import { userErrorLine } from '../services/cli/user-error-line.js';
 
 let server: Server | undefined;
 afterEach(() => new Promise<void>((resolve) => (server ? server.close(() => resolve()) : resolve())));
 
-/** A server that answers every request with this RFC 9457 problem. */
+/** A server that answers every request with this JSON (an RFC 9457 problem, or an upload's 202). */
 async function answering(status: number, problem: Record<string, unknown>): Promise<string> {
-  server = createServer((_request, response) => response.writeHead(status, { 'content-type': 'application/problem+json' }).end(JSON.stringify(problem)));
+  const type = status < 300 ? 'application/json' : 'application/problem+json';
+  server = createServer((_request, response) => response.writeHead(status, { 'content-type': type }).end(JSON.stringify(problem)));
   await new Promise<void>((resolve) => server!.listen(0, '127.0.0.1', resolve));
   return `http://127.0.0.1:${(server!.address() as AddressInfo).port}`;
 }
@@ -28,5 +30,16 @@ describe('postToServer refusals', () => {
     const url = await answering(400, { code: 'CALIBRATION_BAD_FILE', detail: 'model cubic' });
     const refusal = await postToServer({ server: url, key: 'k', attempts: 1 }, '/v1/calibrations', { body: '{}', headers: {} }, 'cal.json', 'CALIBRATION_REJECTED').catch((error) => error);
     expect(refusal.message).toMatch(/^cal\.json: The server refused the calibration: CALIBRATION_BAD_FILE: model cubic\. Fix what the server reported/);
+  });
+});
+
+// The service's warnings name a parameter as its request does; submit and reprocess --server print them (and reprocess
+// keeps them in its summary) as every command names parameters: by their options (command-line-spelling.ts).
+describe('uploadTransient', () => {
+  it("gives the server's warnings with parameters named by their command-line options", async () => {
+    const warning = 'the sqrt(t) window ends by early_time_end_s = 0.002 s';
+    const url = await answering(202, { upload_id: 'upl-1', job_id: 'job-1', state: 'queued', warnings: [warning] });
+    const uploaded = await uploadTransient({ server: url, key: 'k', attempts: 1 }, Buffer.from('time_s,temperature_C\n'), 'run.csv', new URLSearchParams({ sample_id: 'S1' }));
+    expect(uploaded).toEqual({ upload_id: 'upl-1', job_id: 'job-1', state: 'queued', warnings: ['the sqrt(t) window ends by --early-end-s 0.002 s'] });
   });
 });

@@ -5,7 +5,6 @@ import { readInputFile } from './read-input-file.js';
 import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { uploadTransient } from './transient-upload-client.js';
 import { userErrorLine } from './user-error-line.js';
-import { commandLineSpelling } from './command-line-spelling.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 
 export const submitUsage = `heatpath submit FILE... --server URL --key TOKEN --sample ID [options]
@@ -49,7 +48,7 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
       // The server knows the file by its base name; the user's error line names it as they did, like local errors.
       const uploaded = await uploadTransient(target, bytes, basename(file), metadata, file);
       print(`${file}\t${uploaded.job_id}\t${uploaded.state}`);
-      for (const warning of uploaded.warnings) process.stderr.write(`heatpath submit: ${file}: warning: ${commandLineSpelling(warning)}\n`);
+      for (const warning of uploaded.warnings) process.stderr.write(`heatpath submit: ${file}: warning: ${warning}\n`);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       process.stderr.write(userErrorLine('submit', error) + '\n');

@@ -1,11 +1,12 @@
 import { createHash } from 'node:crypto';
+import { commandLineSpelling } from './command-line-spelling.js';
 import { postToServer, type UploadTarget } from './post-to-server.js';
 
 export interface UploadedTransient {
   upload_id: string;
   job_id: string;
   state: string;
-  /** What the server accepted the file despite (a request's cycle count that differs from the file's). */
+  /** What the server accepted the file despite (a request's cycle count that differs from the file's), parameters named by their options as every command prints warnings. */
   warnings: string[];
 }
 
@@ -23,7 +24,7 @@ export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, f
   const idempotencyKey = createHash('sha256').update(bytes).update('\n').update(query.toString()).digest('hex');
   const contentType = looksLikeJson(bytes) ? 'application/json' : 'text/csv';
   const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, shownAs, 'SUBMIT_REJECTED');
-  const warnings = Array.isArray(answer.warnings) ? answer.warnings.map(String) : [];
+  const warnings = Array.isArray(answer.warnings) ? answer.warnings.map((warning) => commandLineSpelling(String(warning))) : [];
   return { upload_id: String(answer.upload_id), job_id: String(answer.job_id), state: String(answer.state), warnings };
 }
 
