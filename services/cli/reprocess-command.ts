@@ -4,6 +4,7 @@ import { basename, dirname, extname, join, relative, resolve, sep } from 'node:p
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
+import { CHANNEL_CALIBRATION_ID_FIELD } from '../api/schemas/transient-metadata.js';
 import { analysisInputsFromOptions, type AnalysisInputs } from './analysis-options.js';
 import { analyzeFiles } from './analyze-command.js';
 import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.js';
@@ -103,7 +104,10 @@ export async function runReprocessCommand(
     // The id the uploads name (a file's given by the server, as calibrate prints it): one calibration is one setting however it is given.
     calibration_sha256: upload ? upload.metadata.get('calibration_id') : inputs.calibration ? calibrationIdOf(inputs.calibration) : null,
     channel_calibration_sha256: upload
-      ? Object.fromEntries([...upload.metadata].flatMap(([field, id]) => (field.startsWith('calibration_id@') ? [[field.slice('calibration_id@'.length), id]] : [])))
+      ? Object.fromEntries([...upload.metadata].flatMap(([field, id]) => {
+          const channel = CHANNEL_CALIBRATION_ID_FIELD.exec(field)?.[1];
+          return channel === undefined ? [] : [[channel, id]];
+        }))
       : Object.fromEntries([...inputs.channelCalibrations].map(([channel, calibration]) => [channel, calibrationIdOf(calibration)])),
     sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath)),
   };
