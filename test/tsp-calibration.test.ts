@@ -331,7 +331,7 @@ describe('voltageToTemperature', () => {
     const artefact = Float64Array.from([high + 0.05 * span, high + 0.02 * span, low + 0.5 * span, high]);
     expect(calibrationExtrapolationWarnings(cal, artefact, 0, 2)).toEqual([]);
     expect(calibrationExtrapolationWarnings(cal, artefact, 0, 1)).toEqual([
-      expect.stringMatching(/^1 of 4 samples \(not counting the first 1, before the sqrt\(t\) window, which its fit replaces\) lie outside .* by up to [\d.]+ mV \(2\.0 % of the span\)/),
+      expect.stringMatching(/^1 of 3 samples after the first 1 \(those before the sqrt\(t\) window, which its fit replaces, are not counted\) lie outside .* by up to [\d.]+ mV \(2\.0 % of the span\)/),
     ]);
   });
 

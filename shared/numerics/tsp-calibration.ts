@@ -197,9 +197,10 @@ export function calibrationExtrapolationWarnings(calibration: Calibration, volta
       ? `; the curve's cold end converts to ${coldest_C.toPrecision(4)} degC, ${(lowest_C - coldest_C).toPrecision(2)} K below the sweep's coldest point, where a sweep usually begins at or below the cold plate: is this the device's calibration?`
       : '';
   const allowed = residual_V > 0 ? `${allowance.toFixed(1)} times the noise and the calibration's residual together (${(allowance_V * 1000).toPrecision(2)} mV)` : `${allowance.toFixed(1)} times the noise`;
-  const notCounted = replacedSamples > 0 ? ` (not counting the first ${replacedSamples}, before the sqrt(t) window, which its fit replaces)` : '';
+  // Of the samples counted: "1 of 4" where only 3 were looked at would understate the share.
+  const notCounted = replacedSamples > 0 ? ` after the first ${replacedSamples} (those before the sqrt(t) window, which its fit replaces, are not counted)` : '';
   return [
-    `${outside} of ${voltage_V.length} samples${notCounted} lie outside the calibrated ${low}..${high} V by more than ${allowed}, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
+    `${outside} of ${counted_V.length} samples${notCounted} lie outside the calibrated ${low}..${high} V by more than ${allowed}, by up to ${(farthest_V * 1000).toPrecision(3)} mV ` +
       `(${((100 * farthest_V) / (high - low)).toPrecision(2)} % of the span): their temperatures are extrapolated by the ${calibration.model} fit beyond the sweep's ` +
       `${lowest_C}..${highest_C} degC; extend the calibration sweep to cover the transient${coldEndHint}`,
   ];
