@@ -129,6 +129,14 @@ describe('an Rth change the structure functions do not show', () => {
     expect(crackedComparison.shift_start).not.toBeNull();
     expect(crackedComparison.warnings.some((w) => w.includes('the two disagree'))).toBe(false);
   });
+
+  it('says so for noiseless records (a simulated Zth), whose change has no uncertainty to count in', () => {
+    const measured = analysed(reference, 11, 0.01);
+    const exact = { ...measured, quality: { ...measured.quality, noise_K: 0, noise_K_per_W: 0 }, early_time: { ...measured.early_time, t0_standard_error: 0 } };
+    const comparison = compareForDegradation(exact, { ...exact, rth_total_K_per_W: 1.03 * exact.rth_total_K_per_W }, { rthRiseLimitPercent: 20 });
+    expect(comparison.rth_change_standard_uncertainty_percent).toBe(0);
+    expect(comparison.warnings).toContainEqual(expect.stringMatching(/^Rth total rose 3\.00 % \(0\.035 K\/W, noiseless records, with no uncertainty, above the 0\.012 K\/W/));
+  });
 });
 
 describe('rthLimitCrossing', () => {

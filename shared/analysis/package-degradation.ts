@@ -91,7 +91,7 @@ export function compareForDegradation(reference: AnalysisResult, later: Analysis
   const disagreementWarnings =
     comparableLengths && shift.start === null && rthChange_K_per_W > detectionFloor_K_per_W && rthChangePercent > SHIFT_DISAGREEMENT_STANDARD_UNCERTAINTIES * changeUncertaintyPercent
       ? [
-          `Rth total rose ${rthChangePercent.toFixed(2)} % (${rthChange_K_per_W.toPrecision(2)} K/W, ${(rthChangePercent / changeUncertaintyPercent).toFixed(0)} standard uncertainties of the change, ` +
+          `Rth total rose ${rthChangePercent.toFixed(2)} % (${rthChange_K_per_W.toPrecision(2)} K/W, ${changeUncertaintyPercent > 0 ? `${(rthChangePercent / changeUncertaintyPercent).toFixed(0)} standard uncertainties of the change` : 'noiseless records, with no uncertainty'}, ` +
             `above the ${detectionFloor_K_per_W.toPrecision(2)} K/W a shift must reach at the least), but the structure functions show no shift above the detection limit of ` +
             `${shift.threshold_K_per_W.toPrecision(2)} K/W (noise of the shift read as ${shift.scatter_K_per_W.toPrecision(2)} K/W): the two disagree. ` +
             'Check the shift curve (curves.shift_K_per_W) for a step hidden by large swings where the structure function is steep, which raise the limit; ' +
