@@ -55,6 +55,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     expect(answer.statusCode).toBe(200);
     const report = answer.json();
     expect(report.reference.cycle_count).toBe(0);
+    expect(report.reference.chosen_by).toBe('lowest_cycle_count');
     expect(report.later.map((row: { cycle_count: number }) => row.cycle_count)).toEqual([20000, 40000, 60000]);
     const changes = report.later.map((row: { rth_change_percent: number }) => row.rth_change_percent);
     expect(changes[0]).toBeLessThan(changes[1]);
@@ -207,6 +208,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     const report = (await nTrend('')).json();
     expect(report.reference.upload_id).toBe(ids[0]);
     expect(report.reference.cycle_count).toBeNull();
+    expect(report.reference.chosen_by).toBe('first_upload');
     expect(report.later.map((row: { upload_id: string }) => row.upload_id)).toEqual([ids[1], ids[2]]);
     expect(report.warnings).toEqual([
       `not every measurement has a cycle count, so the trend follows the order of arrival and the first upload is the reference (with cycle counts throughout, the lowest is): without one is upload ${ids[0]}, ` +
@@ -232,6 +234,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     const reference = (await trend()).json().later[0].upload_id as string;
     const report = (await trend(`?reference_upload_id=${reference}&rth_rise_limit_percent=1`)).json();
     expect(report.reference.cycle_count).toBe(20000);
+    expect(report.reference.chosen_by).toBe('reference_upload_id');
     expect(report.later.map((row: { cycle_count: number }) => row.cycle_count)).toEqual([0, 40000, 60000]);
     expect(report.later[2].rth_rise_exceeds_limit).toBe(true);
     // The 0-cycle measurement is compared with a later reference: said, so its change is not read forwards.

@@ -81,7 +81,12 @@ const SampleDegradationSchema = Type.Object({
     ],
     { description: 'Where the trend first exceeds the limit; null when it does not. Measurements without a cycle count or not judged are passed over. An estimate for the qualification plan, which decides under AQG 324 or the applicable standard.' },
   ),
-  reference: MeasurementSchema,
+  reference: Type.Object({
+    ...MeasurementSchema.properties,
+    chosen_by: Type.Union([Type.Literal('lowest_cycle_count'), Type.Literal('first_upload'), Type.Literal('reference_upload_id')], {
+      description: 'Why this measurement is the reference: the lowest cycle count (every measurement has one), the first upload (not every one has a cycle count; the rule of heatpath degradation, whose files then count as given), or ?reference_upload_id=.',
+    }),
+  }),
   later: Type.Array(Type.Object({ ...MeasurementSchema.properties, ...DegradationComparisonSchema.properties }), { description: 'In cycle order when every measurement has a cycle count, else in order of arrival (warnings then says so).' }),
   not_included: Type.Array(
     Type.Object({
