@@ -164,7 +164,7 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     const sent = [await send(campaign[0]), await send(campaign[3])];
     await jobsDone(sent);
     const alike = (await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31P/degradation', headers: bearer('reader') })).json();
-    expect(alike.reference.analysis).toEqual({ algorithm: ALGORITHM_VERSION, method: 'posterior-mean', parameters: { kind: 'cooling', method: 'posterior-mean', points_per_decade: 40, compact_stages: 5 } });
+    expect(alike.reference.analysis).toEqual({ algorithm: ALGORITHM_VERSION, method: 'posterior-mean', parameters: { kind: 'cooling', method: 'posterior-mean', points_per_decade: 40, compact_stages: 5 }, calibration_sha256: null });
     expect(alike.later[0].analysis).toEqual(alike.reference.analysis);
     expect(alike.warnings).toEqual([]);
     // The later file sent again with other parameters, as heatpath reprocess --server does: its latest upload counts.

@@ -11,9 +11,9 @@ import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 const DEFAULTS: AnalysisParameters = { kind: 'cooling', method: 'posterior-mean', points_per_decade: 40, compact_stages: 5 };
 
 /** Only the provenance is read: the rest of a result does not matter here. */
-function analysedWith(parameters: Partial<AnalysisParameters>, algorithm = 'analysis-10'): AnalysisResult {
+function analysedWith(parameters: Partial<AnalysisParameters>, algorithm = 'analysis-10', calibration_sha256: string | null = null): AnalysisResult {
   const all = { ...DEFAULTS, ...parameters };
-  return { provenance: { algorithm, method: all.method, parameters: all } } as unknown as AnalysisResult;
+  return { provenance: { algorithm, method: all.method, parameters: all, calibration_sha256 } } as unknown as AnalysisResult;
 }
 
 describe('analysis settings in the degradation trend', () => {
@@ -33,5 +33,13 @@ describe('analysis settings in the degradation trend', () => {
     expect(mixedSettings([analysedWith({}), analysedWith({})])).toEqual([]);
     // One value reads alike in both warnings.
     expect(differingSettings(results[0], results[1])[0]).toContain('method bayes');
+  });
+
+  // A channel converted with another calibration than the reference's (another channel's sweep, a recalibration)
+  // shifts its junction temperatures and so Rth: the probe's two-die module read -9.5 % for the same curve, unwarned.
+  it('counts the calibration as a setting, named by the first 12 digits of its id', () => {
+    const [t2, t1] = ['b'.repeat(64), 'a'.repeat(64)];
+    expect(differingSettings(analysedWith({}, 'analysis-10', t2), analysedWith({}, 'analysis-10', t1))).toEqual(['calibration aaaaaaaaaaaa... (the reference: bbbbbbbbbbbb...)']);
+    expect(mixedSettings([analysedWith({}, 'analysis-10', t2), analysedWith({}, 'analysis-10', t1), analysedWith({})])).toEqual(['calibration bbbbbbbbbbbb... (1), aaaaaaaaaaaa... (1), none (1)']);
   });
 });

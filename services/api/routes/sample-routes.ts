@@ -58,7 +58,7 @@ const MeasurementSchema = Type.Object({
   cycle_count: Type.Union([Type.Integer(), Type.Null()]),
   job_id: Type.String(),
   rth_total_K_per_W: Type.Number(),
-  analysis: Type.Pick(AnalysisResultSchema.properties.provenance, ['algorithm', 'method', 'parameters'], {
+  analysis: Type.Pick(AnalysisResultSchema.properties.provenance, ['algorithm', 'method', 'parameters', 'calibration_sha256'], {
     description: "What this measurement's result was analysed with (its provenance): the trend warns when its measurements were not all analysed alike.",
   }),
 });

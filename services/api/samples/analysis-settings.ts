@@ -1,19 +1,29 @@
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 
 /**
- * What a trend's measurement was analysed with, setting by setting (the algorithm version and each parameter of its
- * result's provenance), and how the trend's warnings show a setting's value: one rendering for the warning of a
+ * What a trend's measurement was analysed with, setting by setting (the algorithm version, each parameter of its
+ * result's provenance and the channel's calibration), and how the trend's warnings show a setting's value: one rendering for the warning of a
  * single entry (differingSettings) and for the trend's (mixedSettings), so that one value reads alike in both.
  */
 type AnalysisSettings = Record<string, unknown>;
 
+/**
+ * The calibration that converted the channel counts as a setting: a device calibrated again mid-campaign, or a
+ * channel converted with another channel's sweep, shifts every junction temperature and so Rth, which a trend must
+ * not read as degradation. The heating power does not: each record's Zth is per watt of its own power.
+ */
 function analysisSettings(result: AnalysisResult): AnalysisSettings {
-  return { algorithm: result.provenance.algorithm, ...result.provenance.parameters };
+  return { algorithm: result.provenance.algorithm, ...result.provenance.parameters, calibration: result.provenance.calibration_sha256 ?? 'none' };
 }
 
-/** A setting's value as the warnings show it: as written (`posterior-mean`, `40`), `automatic` where none was given (the early-time window). */
+/**
+ * A setting's value as the warnings show it: as written (`posterior-mean`, `40`), `automatic` where none was given
+ * (the early-time window), a calibration id by its first 12 digits.
+ */
 function settingText(value: unknown): string {
-  return value === undefined || value === null ? 'automatic' : String(value);
+  if (value === undefined || value === null) return 'automatic';
+  const text = String(value);
+  return /^[0-9a-f]{64}$/.test(text) ? `${text.slice(0, 12)}...` : text;
 }
 
 function settingNames(settings: readonly AnalysisSettings[]): string[] {
