@@ -402,6 +402,14 @@ describe('with a real Redis', () => {
     const response = await uploadForm(context, form);
     expect(response.statusCode, response.body).toBe(202);
     expect(await context.store.getUpload(response.json().upload_id)).toMatchObject({ sample_id: 'S-mpfile', cycle_count: 9000, power: { power_W: 50 } });
+    // Saved by a Windows editor, with a byte-order mark before the JSON.
+    const marked = multipart([
+      { name: 'meta', value: `\ufeff${JSON.stringify({ ...meta, sample_id: 'S-mpbom' })}`, filename: 'meta.json', type: 'application/json' },
+      { name: 'file', value: small, filename: 'f.csv', type: 'text/csv' },
+    ]);
+    const withMark = await uploadForm(context, marked);
+    expect(withMark.statusCode, withMark.body).toBe(202);
+    expect(await context.store.getUpload(withMark.json().upload_id)).toMatchObject({ sample_id: 'S-mpbom' });
   });
 
   it('records the format the parser saw when neither media type nor file name tell it', async () => {

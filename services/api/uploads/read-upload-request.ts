@@ -90,7 +90,8 @@ function mergeFields(fields: Record<string, string | string[]>, metas: unknown[]
   let parsed = metas[0];
   if (typeof parsed === 'string') {
     try {
-      parsed = JSON.parse(parsed);
+      // A meta.json saved by a Windows editor starts with a byte-order mark, as data files may.
+      parsed = JSON.parse(parsed.replace(/^\uFEFF/, ''));
     } catch (error) {
       throw new HeatpathError('REQUEST_INVALID', `multipart field "meta" is not JSON: ${(error as Error).message}`);
     }
