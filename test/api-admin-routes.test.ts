@@ -186,6 +186,8 @@ describe('sample listing in pages', () => {
     expect(typo.statusCode, typo.body).toBe(404);
     expect(typo.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(typo.json()).toMatchObject({ code: 'RESOURCE_NOT_FOUND', detail: expect.stringMatching(/^sample LOT-Q3H has no stored uploads: did you mean LOT-Q3\? Sample ids are matched exactly/) });
+    const unlike = await context.app.inject({ url: '/v1/samples/ZZZZZZZZ/results', headers: bearer('reader') });
+    expect(unlike.json().detail).toBe('sample ZZZZZZZZ has no stored uploads. Sample ids are matched exactly, as the uploads gave them in sample_id');
     // The degradation view of the same sample says the same.
     const degradation = await context.app.inject({ url: '/v1/samples/LOT-Q3H/degradation', headers: bearer('reader') });
     expect(degradation.json()).toMatchObject({ status: 404, detail: typo.json().detail });

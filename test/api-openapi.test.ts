@@ -5,7 +5,7 @@ import { startApiTestApp, type ApiTestContext } from './support/api-test-app.js'
 let context: ApiTestContext;
 let document: {
   openapi: string;
-  paths: Record<string, Record<string, { security?: unknown[]; responses: Record<string, { description?: string; content?: Record<string, unknown> }> }>>;
+  paths: Record<string, Record<string, { security?: unknown[]; description?: string; responses: Record<string, { description?: string; content?: Record<string, unknown> }> }>>;
   components: { securitySchemes: Record<string, unknown> };
 };
 beforeAll(async () => {
@@ -41,6 +41,8 @@ describe('the OpenAPI document', () => {
     for (const route of apiRouteTable) {
       const operation = document.paths[openApiPath(route.url)][route.method.toLowerCase()];
       expect(operation.security, `${route.method} ${route.url}`).toEqual(route.permission === 'public' ? undefined : [{ apiKey: [] }]);
+      // Once, though a GET route's HEAD twin shares its schema (it was said twice on every GET).
+      if (route.permission !== 'public') expect(operation.description?.match(/Roles: /g), `${route.method} ${route.url}`).toHaveLength(1);
     }
   });
 

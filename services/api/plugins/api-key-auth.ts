@@ -43,7 +43,9 @@ export const apiKeyAuthPlugin = fastifyPlugin(async function apiKeyAuth(app: Fas
     route.schema ??= {};
     route.schema.security = [{ [bearerSecurityScheme]: [] }];
     const roles = Object.entries(rolePermissions).filter(([, granted]) => granted.includes(permission)).map(([role]) => role);
-    route.schema.description = [route.schema.description, `Roles: ${roles.join(', ')}.`].filter(Boolean).join(' ');
+    const rolesText = `Roles: ${roles.join(', ')}.`;
+    // A GET route's HEAD twin shares its schema: said once.
+    if (!route.schema.description?.endsWith(rolesText)) route.schema.description = [route.schema.description, rolesText].filter(Boolean).join(' ');
   });
 
   app.addHook('onRequest', async (request) => {

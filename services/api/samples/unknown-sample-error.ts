@@ -11,6 +11,6 @@ export async function unknownSampleError(store: TransientStore, sampleId: string
   const meant = closestName(sampleId, known);
   return new HeatpathError(
     'RESOURCE_NOT_FOUND',
-    `sample ${sampleId} has no stored uploads${meant === undefined ? '' : `: did you mean ${meant}?`} Sample ids are matched exactly, as the uploads gave them in sample_id`,
+    `sample ${sampleId} has no stored uploads${meant === undefined ? '.' : `: did you mean ${meant}?`} Sample ids are matched exactly, as the uploads gave them in sample_id`,
   );
 }
