@@ -58,8 +58,8 @@ function multipart(parts: { name: string; value: string | Buffer; filename?: str
 }
 
 /** POST /v1/transients with a multipart body built by `multipart`. */
-function uploadForm(context: ApiTestContext, form: ReturnType<typeof multipart>) {
-  return context.app.inject({ method: 'POST', url: '/v1/transients', headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
+function uploadForm(context: ApiTestContext, form: ReturnType<typeof multipart>, query = '') {
+  return context.app.inject({ method: 'POST', url: `/v1/transients${query && `?${query}`}`, headers: { ...bearer('bench'), ...form.headers }, payload: form.payload });
 }
 
 describe('with a real Redis', () => {
@@ -390,6 +390,17 @@ describe('with a real Redis', () => {
     expect((await uploadForm(context, scalars)).statusCode).toBe(202);
     const object = multipart([{ name: 'sample_id', value: 'S-mpjson' }, { name: 'power_W', value: '{"W": 50}', type: 'application/json' }, { name: 'file', value: small, filename: 'j.csv', type: 'text/csv' }]);
     expect(expectProblem(await uploadForm(context, object), 400, 'REQUEST_INVALID').detail).toMatch(/^multipart field "power_W" holds a JSON object: send its value as plain text/);
+  });
+
+  // Fields override the query and the meta object, and did so for the sample id too: the probe's upload was filed
+  // under M51 with M50 in its meta, without a word.
+  it('refuses a request that names two sample ids (query, meta, field), and takes one given alike twice', async () => {
+    const form = (parts: { name: string; value: string }[]) => multipart([...parts, { name: 'power_W', value: '50' }, { name: 'file', value: small, filename: 's.csv', type: 'text/csv' }]);
+    const twoInBody = expectProblem(await uploadForm(context, form([{ name: 'meta', value: '{"sample_id": "M50"}' }, { name: 'sample_id', value: 'M51' }])), 400, 'REQUEST_INVALID');
+    expect(twoInBody.detail).toBe('the request names more than one sample id (M50 in the meta field; M51 in the sample_id field): give the sample id once');
+    const queryAndMeta = await uploadForm(context, form([{ name: 'meta', value: '{"sample_id": "M50"}' }]), 'sample_id=M52');
+    expect(expectProblem(queryAndMeta, 400, 'REQUEST_INVALID').detail).toMatch(/^the request names more than one sample id \(M52 in the query; M50 in the meta field\)/);
+    expect((await uploadForm(context, form([{ name: 'meta', value: '{"sample_id": "M53"}' }, { name: 'sample_id', value: 'M53' }]))).statusCode).toBe(202);
   });
 
   // curl -F "meta=@meta.json" sends the metadata as a file part; it was refused as a second file.
