@@ -54,6 +54,6 @@ describe('per-channel calibrations', () => {
     expect(stray.message).toMatch(/names channel T3; the file's channels are T1, T2/);
     const missing = catchHeatpathError(() => analyzeTransientFile({ bytes, fileName: 'm.csv', channelCalibrations: new Map([['T2', T2]]) }, CREATED_AT));
     expect(missing.code).toBe('CALIBRATION_REQUIRED');
-    expect(missing.message).toMatch(/voltage_V@T1 of 2/);
+    expect(missing.message).toMatch(/voltage_V@T1 has no calibration \(1 of the file's 2 voltage channels; none was given for all channels\)/);
   });
 });

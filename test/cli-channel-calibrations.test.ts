@@ -39,7 +39,7 @@ describe('heatpath analyze with per-channel calibrations', () => {
 
   it('refuses a channel the file does not have, a voltage channel left without one, and a channel given twice', () => {
     expectUserError(heatpath('analyze', transient, '--calibration', t1Calibration, '--calibration', `T9=${t2Calibration}`), /names channel T9; the file's channels are T1, T2.*CALIBRATION_CHANNEL_NOT_FOUND/);
-    expectUserError(heatpath('analyze', transient, '--calibration', `T2=${t2Calibration}`), /voltage_V@T1 of 2 .*CALIBRATION_REQUIRED/);
+    expectUserError(heatpath('analyze', transient, '--calibration', `T2=${t2Calibration}`), /voltage_V@T1 has no calibration \(1 of the file's 2 voltage channels.*CALIBRATION_REQUIRED/);
     expectUserError(heatpath('analyze', transient, '--calibration', `T2=${t1Calibration}`, '--calibration', `T2=${t2Calibration}`), /--calibration T2=\.\.\. is given twice.*CLI_USAGE/);
   });
 });

@@ -33,8 +33,10 @@ export function channelCalibrations(file: TransientFile, given: GivenCalibration
   if (file.quantity !== 'voltage_V') return undefined;
   const missing = names.filter((name) => !own.has(name) && given.calibration === undefined);
   if (missing.length > 0) {
-    const which = file.channels.length > 1 ? `channel(s) ${missing.map((name) => `voltage_V@${name}`).join(', ')} of ${names.length}` : `${names.length} voltage_V channel`;
-    throw new HeatpathError('CALIBRATION_REQUIRED', `${which} and no calibration for ${missing.length > 1 ? 'them' : 'it'}`, { file: fileName });
+    const detail = file.channels.length > 1
+      ? `${missing.map((name) => `voltage_V@${name}`).join(', ')} ${missing.length > 1 ? 'have' : 'has'} no calibration (${missing.length} of the file's ${names.length} voltage channels; none was given for all channels)`
+      : 'the voltage_V channel has no calibration';
+    throw new HeatpathError('CALIBRATION_REQUIRED', detail, { file: fileName });
   }
   return new Map(names.map((name) => [name, own.get(name) ?? given.calibration!]));
 }
