@@ -45,6 +45,19 @@ function uploadMultipart(fields: Record<string, string>) {
 }
 
 describe('per-channel calibrations on upload', () => {
+  // Each die's sweep names its sample; uploaded under another, both calibrations are another device's, and the 202
+  // said so twice in the same words, without the channel.
+  it("names the channels of each calibration swept on another sample in the upload's warnings", async () => {
+    const sweptOn = (calibration: typeof module.calibrations.T1, sample: string) => ({ ...calibration, sample });
+    const response = await uploadMultipart({ sample_id: 'M6', meta: JSON.stringify({ calibration: sweptOn(module.calibrations.T1, 'M5'), 'calibration@T2': sweptOn(module.calibrations.T2, 'M5') }) });
+    expect(response.status).toBe(202);
+    const { warnings } = (await response.json()) as { warnings: string[] };
+    expect(warnings.filter((w) => w.includes('swept on sample M5'))).toEqual([
+      expect.stringMatching(/^voltage_V@T1: the calibration was swept on sample M5, the transient is of sample M6/),
+      expect.stringMatching(/^voltage_V@T2: the calibration was swept on sample M5, the transient is of sample M6/),
+    ]);
+  });
+
   it("analyses each die with its own calibration (T2's inline in meta): Rth within 0.5 %, provenance per channel", async () => {
     const response = await uploadMultipart({ sample_id: 'M5', calibration_id: t1Id, meta: JSON.stringify({ 'calibration@T2': module.calibrations.T2 }) });
     expect(response.status).toBe(202);

@@ -76,7 +76,13 @@ export async function acceptTransientUpload(
   warnings.push(...unusedCalibrationWarnings(transient, givenCalibrations, calibrations));
   if (calibrations !== undefined) {
     checkVoltagesCalibrated(transient, calibrations, upload.sourceName);
-    for (const calibration of new Set(calibrations.values())) warnings.push(...calibrationSampleWarning(calibration, metadata.sample_id));
+    // Once per calibration, naming the channels it converted where the file has several (each result says it for its own).
+    const channelsOf = new Map<Calibration, string[]>();
+    for (const [name, calibration] of calibrations) channelsOf.set(calibration, [...(channelsOf.get(calibration) ?? []), name]);
+    for (const [calibration, names] of channelsOf) {
+      const prefix = transient.channels.length > 1 ? `${names.map((name) => `voltage_V@${name}`).join(', ')}: ` : '';
+      warnings.push(...calibrationSampleWarning(calibration, metadata.sample_id).map((warning) => prefix + warning));
+    }
   }
   // A curve of the other kind than stated (a heating curve sent without kind) would fail its job: refused now, in the job's words.
   checkZthRises(transient, { parameters, power: resolvedPower, channelPowers }, calibrations, upload.sourceName);
