@@ -177,6 +177,16 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     ]);
     // The entry names the setting that differs, not the algorithm version both share.
     expect(mixed.later[0].warnings).toContainEqual(expect.stringMatching(/^analysed otherwise than the reference: points_per_decade 20 \(the reference: 40\); reprocess the sample in one batch/));
+    // A batch that does not name points_per_decade keeps each upload's own: asked with its id, the trend is still mixed,
+    // and the advice is to name the setting in a batch, not to start one (which was followed already).
+    const batch = await ctx.app.inject({ method: 'POST', url: '/v1/batches', headers: { ...bearer('admin'), 'content-type': 'application/json' }, payload: { selection: { sample_id: 'M31P' }, parameters: { method: 'posterior-mean' } } });
+    expect(batch.statusCode, batch.body).toBe(202);
+    const batchId = batch.json().batch_id as string;
+    await eventually(async () => (await ctx.app.inject({ url: `/v1/batches/${batchId}`, headers: bearer('reader') })).json().status === 'finished');
+    const inBatch = (await ctx.app.inject({ method: 'GET', url: `/v1/samples/M31P/degradation?batch_id=${batchId}`, headers: bearer('reader') })).json();
+    expect(inBatch.warnings).toEqual([
+      expect.stringMatching(/not all analysed alike: points_per_decade 40 \(1\), 20 \(1\) .*A batch replaces only the parameters it names .*start a batch that names every setting listed here/),
+    ]);
   }, 60_000);
 
   it('takes the first measurement sent again as the reference without a warning: the same bytes are the same measurement', async () => {

@@ -151,7 +151,7 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     }
   }
   // The reference's own analysis warnings: every comparison stands on it.
-  const warnings: string[] = [...comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`), ...mixedAnalysesWarning([reference, ...measurements.filter((_, index) => index !== referenceIndex)])];
+  const warnings: string[] = [...comparisonWarnings(reference.result).map((w) => `the reference's analysis warns: ${w}`), ...mixedAnalysesWarning([reference, ...measurements.filter((_, index) => index !== referenceIndex)], options.batch_id !== undefined)];
   const withoutCycleCount = measurements.filter(({ upload }) => upload.cycle_count === null).map(({ upload }) => upload.upload_id);
   if (!byCycleCount) {
     warnings.push(
@@ -230,14 +230,15 @@ function onlyChannel(channels: string[]): string {
  * The settings the trend's measurements were analysed with, where they are not all one: an upload sent again with
  * other parameters (heatpath reprocess --server) becomes the latest upload of its bytes, and so the trend's entry.
  */
-function mixedAnalysesWarning(measurements: Measurement[]): string[] {
+function mixedAnalysesWarning(measurements: Measurement[], inBatch: boolean): string[] {
   const differing = mixedSettings(measurements.map(({ result }) => result));
   if (differing.length === 0) return [];
-  return [
-    `the ${measurements.length} measurements of this trend were not all analysed alike: ${differing.join('; ')} (see each one's analysis). ` +
-      'Each upload counts with its own job, and bytes sent again with other parameters count as that latest upload: to compare like with like, ' +
-      'reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id=',
-  ];
+  const remedy = inBatch
+    ? 'A batch replaces only the parameters it names and keeps each upload\'s others (and its calibration, unless it names one): ' +
+      'start a batch that names every setting listed here (in its parameters, or its calibration_id) and ask with its ?batch_id='
+    : 'Each upload counts with its own job, and bytes sent again with other parameters count as that latest upload: to compare like with like, ' +
+      'reprocess the sample in one batch (POST /v1/batches with its sample_id) and ask with ?batch_id=';
+  return [`the ${measurements.length} measurements of this trend were not all analysed alike: ${differing.join('; ')} (see each one's analysis). ${remedy}`];
 }
 
 /** Structure functions compare like with like only under the same algorithm version and parameters. */
