@@ -14,6 +14,7 @@ import { TransientStore } from '../services/store/transient-store.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import type { AnalysisQueue } from '../workers/analysis-queue.js';
 import { bearer, startApiTestApp, type ApiTestContext, type TestRole } from './support/api-test-app.js';
+import { deleteKeysWithPrefix } from './support/redis-connection.js';
 import { DEMO_DIR } from './support/cli-process.js';
 import { eventually } from './support/queue-test-fixture.js';
 import { syntheticTransientCsv } from './support/synthetic-upload.js';
@@ -46,6 +47,7 @@ describe('POST /v1/transients/:upload_id/withdraw', () => {
     expect(body).toMatchObject({ upload_id: sent.upload_id, sample_id: 'W1', withdrawn: { by: 'admin-key', reason: 'sent under W1, measured on W2' } });
     expect(Date.parse(body.withdrawn.at)).toBeGreaterThanOrEqual(before - 1000);
     expect(body.note).toContain('Nothing was deleted');
+    expect(body.note).toContain("The sample's degradation trend leaves it out");
     // No worker runs here: the job has no outcome, and the note says what becomes of it.
     expect(body.note).toContain(`Its job ${sent.job_id} has no outcome yet`);
     expect(body.links).toMatchObject({ self: `/v1/transients/${sent.upload_id}`, raw: `/v1/transients/${sent.upload_id}/raw`, sample: '/v1/samples/W1/results' });
@@ -91,6 +93,49 @@ describe('POST /v1/transients/:upload_id/withdraw', () => {
     expect(again.warnings.filter((warning) => warning.includes('same bytes'))).toEqual([
       expect.stringMatching(new RegExp(`^the same bytes were uploaded for this sample before, as upload ${first.upload_id} .*withdrawn at .*failed measurement.*withdraw it too`)),
     ]);
+  });
+
+  it('says, withdrawing one of two uploads of the same bytes, that the measurement still counts through the other', async () => {
+    const bytes = syntheticTransientCsv(7108, 10);
+    const first = await upload('power_W=50&sample_id=W7&cycle_count=1000', bytes);
+    const latest = await upload('power_W=50&sample_id=W7&cycle_count=2000', bytes);
+    const note = (await withdraw(latest.upload_id, { reason: 'cycle count mistyped' })).json().note as string;
+    // The trend counts bytes sent again once, as their latest upload that stands (README, the degradation row): here the first.
+    expect(note).not.toContain('leaves it out');
+    expect(note).toMatch(new RegExp(`as upload ${first.upload_id} \\(received [^,]+, 1000 cycles\\) too, not withdrawn: the measurement still counts in the degradation trend through it .*withdraw it too if the measurement itself is to go`));
+    // Both withdrawn: the measurement is gone, and the note says the trend leaves it out.
+    expect((await withdraw(first.upload_id, { reason: 'failed measurement' })).json().note).toContain("The sample's degradation trend leaves it out");
+  });
+
+  it('reports the job of an upload withdrawn before it ran, which the queue lost, as withdrawn: it never runs', async () => {
+    // A context of its own (its own Redis prefix), whose Redis data this test throws away.
+    const own = await startApiTestApp();
+    try {
+      const send = async (bytes: Buffer) =>
+        (await own.app.inject({ method: 'POST', url: '/v1/transients?power_W=50&sample_id=W9', headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: bytes })).json() as { upload_id: string; job_id: string };
+      const read = (url: string) => own.app.inject({ url, headers: bearer('reader') });
+      const taken = await send(syntheticTransientCsv(7109, 10));
+      const kept = await send(syntheticTransientCsv(7110, 10));
+      // The same bytes again: the same job, which one withdrawal does not stop.
+      const keptAgain = await send(syntheticTransientCsv(7110, 10));
+      expect(keptAgain.job_id).toBe(kept.job_id);
+      for (const id of [taken.upload_id, keptAgain.upload_id]) await own.app.inject({ method: 'POST', url: `/v1/transients/${id}/withdraw`, headers: bearer('admin'), payload: { reason: 'probe loose' } });
+      // Redis loses its data before any worker ran; the recovery sweep would queue the kept job only.
+      await deleteKeysWithPrefix(own.redisUrl, own.prefix);
+
+      expect((await read(`/v1/transients/${taken.upload_id}`)).json().job.state).toBe('withdrawn');
+      const job = await read(`/v1/jobs/${taken.job_id}`);
+      expect(job.statusCode, job.body).toBe(200);
+      expect(job.json()).toMatchObject({ job_id: taken.job_id, state: 'withdrawn', attempts: 0 });
+      expect((await read(`/v1/jobs/${taken.job_id}/result`)).json()).toMatchObject({ status: 409, code: 'JOB_WITHDRAWN' });
+      const outcomes = Object.fromEntries((await read('/v1/samples/W9/results')).json().transients.map((entry: { upload_id: string; job: { outcome: string } }) => [entry.upload_id, entry.job.outcome]));
+      expect(outcomes).toEqual({ [taken.upload_id]: 'withdrawn', [kept.upload_id]: 'pending', [keptAgain.upload_id]: 'pending' });
+      // The job an upload that stands shares is stored, queued again by the recovery sweep (README, Durability).
+      expect((await read(`/v1/transients/${keptAgain.upload_id}`)).json().job.state).toBe('stored');
+      expect((await read(`/v1/jobs/${kept.job_id}`)).json()).toMatchObject({ state: 'stored' });
+    } finally {
+      await own.close();
+    }
   });
 
   it('is left out by the recovery sweep, also of a process that starts afterwards, and by new batches', async () => {
@@ -161,5 +206,21 @@ describe('a file sent under the wrong sample id, withdrawn and sent again under 
 
     // The wrong sample's only upload is withdrawn: its trend has nothing to compare.
     expect((await get('/v1/samples/M13/degradation')).json()).toMatchObject({ status: 422, code: 'DEGRADATION_TOO_FEW_RESULTS' });
+  });
+
+  it('says when the first measurement, the reference, is withdrawn, and refuses a withdrawn ?reference_upload_id=', async () => {
+    expect((await get('/v1/samples/M31/degradation')).json().warnings).toEqual([]);
+    await withdraw(ids['000000'], { reason: 'failed measurement: thermocouple off' });
+    const trend = (await get('/v1/samples/M31/degradation')).json();
+    expect(trend.reference).toMatchObject({ upload_id: ids['020000'], cycle_count: 20000, chosen_by: 'lowest_cycle_count' });
+    expect(trend.warnings).toEqual([
+      `the sample's first measurement, upload ${ids['000000']} (0 cycles), withdrawn (failed measurement: thermocouple off), is left out: the reference is now upload ${ids['020000']} (20000 cycles), and every change is against it`,
+    ]);
+
+    const refused = await get(`/v1/samples/M31/degradation?reference_upload_id=${ids['000000']}`);
+    expect(refused.statusCode).toBe(422);
+    expect(refused.json()).toMatchObject({ code: 'DEGRADATION_REFERENCE_WITHDRAWN' });
+    expect(refused.json().detail).toContain(`?reference_upload_id=${ids['000000']} names an upload of sample M31 that was withdrawn at`);
+    expect(refused.json().detail).toContain('thermocouple off');
   });
 });

@@ -70,7 +70,7 @@ export async function buildApp(deps: AppDependencies) {
   await app.register(withdrawalRoutes, { store });
   await app.register(jobRoutes, { store, queue });
   await app.register(calibrationRoutes, { store });
-  await app.register(sampleRoutes, { store });
+  await app.register(sampleRoutes, { store, queue });
   await app.register(batchRoutes, { store, batches: new BatchReprocessor(store, queue) });
   await app.register(webhookRoutes, { webhooks: new WebhookRegistry(store, config.queue.webhookAllowlist) });
   return app;

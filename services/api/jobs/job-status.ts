@@ -11,7 +11,9 @@ const nullableString = Type.Union([Type.String(), Type.Null()]);
  * failed and the job runs again, also when its last attempt failed but the
  * store could not record the failure (recovery runs it again). `failed`: a
  * final failure is stored. `cancelled`: a job of a cancelled reprocessing
- * batch that had not started.
+ * batch that had not started. `withdrawn`: an upload's job that no queue holds
+ * and every upload of which was withdrawn before it ran: the recovery sweep
+ * does not queue it, so it never runs.
  */
 export const JobStateSchema = Type.Union([
   Type.Literal('stored'),
@@ -21,7 +23,12 @@ export const JobStateSchema = Type.Union([
   Type.Literal('completed'),
   Type.Literal('failed'),
   Type.Literal('cancelled'),
-]);
+  Type.Literal('withdrawn'),
+], {
+  description:
+    'stored: kept, not queued yet (queued when Redis is back); retrying: it runs again; cancelled: of a cancelled batch, did not run; ' +
+    'withdrawn: did not run, no queue holds it and every upload of it was withdrawn, so it never runs.',
+});
 export type JobState = Static<typeof JobStateSchema>;
 
 export const JobStatusSchema = Type.Object({
@@ -65,8 +72,12 @@ export async function readJobStatus(store: TransientStore, queue: AnalysisQueue,
   if (queued) return fromQueue(queued);
   // Not in the queue: a job of a reprocessing batch was removed when the batch was cancelled, or Redis lost it (recovery queues it again).
   const batches = await store.batchesWithJob(jobId);
-  if (batches.length === 0) return null;
-  return { ...storedJobStatus(jobId), state: batches.every((batch) => batch.status === 'cancelled') ? 'cancelled' : 'stored' };
+  if (batches.length > 0) return { ...storedJobStatus(jobId), state: batches.every((batch) => batch.status === 'cancelled') ? 'cancelled' : 'stored' };
+  // An upload's own job: the recovery sweep queues it for the uploads that stand, none when all were withdrawn.
+  const uploads = (await store.listUploadSummaries()).filter((upload) => upload.job_id === jobId);
+  if (uploads.length === 0) return null;
+  const withdrawals = await store.withdrawals();
+  return { ...storedJobStatus(jobId), state: uploads.every((upload) => withdrawals.has(upload.upload_id)) ? 'withdrawn' : 'stored' };
 }
 
 /** A job whose upload is stored but which no queue knows (yet). */

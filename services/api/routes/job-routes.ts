@@ -41,6 +41,7 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
       throw new HeatpathError('JOB_FAILED', `job ${jobId} failed${status.error?.code ? ` with ${status.error.code}` : ''}: ${status.error?.message ?? 'no reason recorded'}`);
     }
     if (status.state === 'cancelled') throw new HeatpathError('JOB_CANCELLED', `job ${jobId} belongs to a cancelled batch and did not run`);
+    if (status.state === 'withdrawn') throw new HeatpathError('JOB_WITHDRAWN', `job ${jobId} did not run, no queue holds it, and every upload of it was withdrawn`);
     throw new HeatpathError('RESULT_NOT_READY', `job ${jobId} is ${status.state}`);
   }
 

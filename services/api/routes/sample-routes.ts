@@ -2,6 +2,8 @@ import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { AnalysisResultSchema, type AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { TransientStore } from '../../store/transient-store.js';
+import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
+import { readJobStatus } from '../jobs/job-status.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
 import { UploadLinksSchema, WithdrawalSchema, withdrawalView } from '../schemas/upload-record-schema.js';
 import { uploadLinks } from '../uploads/accept-transient-upload.js';
@@ -12,8 +14,10 @@ import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shar
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
 
-const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed'), Type.Literal('cancelled')], {
-  description: 'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that had not started when it was cancelled.',
+const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed'), Type.Literal('cancelled'), Type.Literal('withdrawn')], {
+  description:
+    'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that had not started when it was cancelled; ' +
+    'withdrawn for the job of a withdrawn upload that no queue holds and no upload that stands shares: it will not run (its state in GET /v1/jobs/{job_id} is withdrawn too).',
 });
 
 /** What a LIMS shows per measurement, without fetching the whole result (some 200 kB). */
@@ -112,8 +116,8 @@ const MAX_SAMPLE_PAGE = 5000;
 const DEFAULT_INDEX_PAGE = 200;
 
 /** The LIMS view: the samples the store holds, and every transient of a sample, oldest first, with its job outcomes. */
-export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> = async (app, { store }) => {
-  async function outcomeOf(jobId: string, includeResult: boolean, batchCancelled = false) {
+export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue: AnalysisQueue }> = async (app, { store, queue }) => {
+  async function outcomeOf(jobId: string, includeResult: boolean, batchCancelled = false, uploadWithdrawn = false) {
     const result = await store.getResult(jobId);
     if (result) {
       const { upload_id: _firstUpload, sample_id: _firstSample, ...shared } = result;
@@ -122,7 +126,10 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
       return { job_id: jobId, outcome: 'completed' as const, summary, ...(includeResult && { result: { ...shared, results } }) };
     }
     if (await store.hasFailure(jobId)) return { job_id: jobId, outcome: 'failed' as const };
-    return { job_id: jobId, outcome: batchCancelled ? ('cancelled' as const) : ('pending' as const) };
+    if (batchCancelled) return { job_id: jobId, outcome: 'cancelled' as const };
+    // A withdrawn upload's job that no queue holds never runs; while Redis does not answer, whether it does is unknown: pending.
+    const withdrawn = uploadWithdrawn && (await readJobStatus(store, queue, jobId).catch(() => null))?.state === 'withdrawn';
+    return { job_id: jobId, outcome: withdrawn ? ('withdrawn' as const) : ('pending' as const) };
   }
 
   app.get(
@@ -212,7 +219,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
           cycle_count: upload.cycle_count,
           tags: upload.tags,
           withdrawn: withdrawalView(withdrawals.get(upload.upload_id)),
-          job: await outcomeOf(upload.job_id, include_results),
+          job: await outcomeOf(upload.job_id, include_results, false, withdrawals.has(upload.upload_id)),
           reprocessed: await Promise.all(
             batches.flatMap((batch) =>
               batch.entries
@@ -243,6 +250,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore }> 
         description:
           'Its completed analyses in cycle order (cycle_count, then arrival) when every one has a cycle count, else in order of arrival (as `heatpath degradation` takes its files as given then), each compared with the reference (the first, or ?reference_upload_id=) by Rth total ' +
           'and by where and how much its cumulative structure function shifted, as `heatpath degradation` compares files. ' + DEGRADATION_NOTES.join(' ') +
+          ' A ?reference_upload_id= of a withdrawn upload: 422 DEGRADATION_REFERENCE_WITHDRAWN; warnings says when the first measurements were withdrawn and the reference is a later one.' +
           ' With ?batch_id= of a cancelled batch that did not analyse all of the sample\'s uploads: 409 DEGRADATION_BATCH_CANCELLED; a ?channel= the results do not have: 400 DEGRADATION_CHANNEL_NOT_FOUND, naming the channels they have.',
         params: Type.Object({ sample_id: Type.String({ maxLength: 128 }) }),
         querystring: Type.Object(

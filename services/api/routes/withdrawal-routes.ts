@@ -33,7 +33,7 @@ export const withdrawalRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore
         summary: 'Withdraw an upload (wrong sample id, failed measurement), keeping it for audit',
         description:
           "Records who withdrew the upload, when and why; deletes nothing. A withdrawn upload stays in its sample's listing, marked withdrawn, and in GET /v1/transients/{upload_id}; its sample's degradation trend leaves it out " +
-          "(not_included, reason_code withdrawn); the recovery sweep does not queue it again and new batches do not select it. A file sent under the wrong sample id is withdrawn and then uploaded again under the right one. " +
+          "(not_included, reason_code withdrawn), unless the same bytes stand as another upload of the sample, through which the measurement still counts (the note then names them: withdraw them too if the measurement is to go); the recovery sweep does not queue it again and new batches do not select it. A file sent under the wrong sample id is withdrawn and then uploaded again under the right one. " +
           'Withdrawing an upload again is 409 UPLOAD_ALREADY_WITHDRAWN, naming the first withdrawal, which stands.',
         params: Type.Object({ upload_id: Type.String({ maxLength: 160 }) }),
         body: Type.Object(
@@ -52,14 +52,25 @@ export const withdrawalRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore
       }
       const finished = (await store.hasResult(upload.job_id)) || (await store.hasFailure(upload.job_id));
       const sample = `/v1/samples/${encodeURIComponent(upload.sample_id)}`;
+      // Bytes sent more than once are one measurement, counted through their latest upload that stands.
+      const [sameBytes, withdrawals] = await Promise.all([store.listUploadSummaries({ sample_id: upload.sample_id, input_sha256: upload.input_sha256 }), store.withdrawals()]);
+      const standing = sameBytes.filter((other) => !withdrawals.has(other.upload_id));
+      const them = standing.length > 1 ? 'them' : 'it';
+      const trend =
+        standing.length === 0
+          ? `The sample's degradation trend leaves it out (not_included, reason_code withdrawn); `
+          : `Its bytes were uploaded for this sample as ${standing.map((other) => `upload ${other.upload_id} (received ${other.received_at}, ${other.cycle_count ?? 'unknown'} cycles)`).join(', ')} too, not withdrawn: ` +
+            `the measurement still counts in the degradation trend through ${them} (bytes sent again count once, as their latest upload); withdraw ${them} too if the measurement itself is to go. `;
+      const jobNote = standing.length === 0 ? 'its result is kept but not counted' : 'its result is kept';
       return {
         upload_id,
         sample_id: upload.sample_id,
         withdrawn: withdrawalView(withdrawal)!,
         note:
           `Upload ${upload_id} (${upload.file_name}) of sample ${upload.sample_id} is withdrawn. Nothing was deleted: its raw bytes, its record and its job's result stay, and the sample's listing shows it withdrawn. ` +
-          `The sample's degradation trend leaves it out (not_included, reason_code withdrawn); the recovery sweep does not queue it again and new batches do not select it. ` +
-          (finished ? '' : `Its job ${upload.job_id} has no outcome yet: if it is queued it still runs, and its result is kept but not counted. `) +
+          trend +
+          `${standing.length === 0 ? 'the' : 'The'} recovery sweep does not queue it again and new batches do not select it. ` +
+          (finished ? '' : `Its job ${upload.job_id} has no outcome yet: if it is queued it still runs, and ${jobNote}. `) +
           'If the file belongs to another sample, upload it again with that sample_id.',
         links: { ...uploadLinks(upload), raw: `/v1/transients/${upload_id}/raw`, sample: `${sample}/results` },
       };

@@ -8,7 +8,7 @@ import { HeatpathError, isHeatpathError } from '../../../shared/errors/heatpath-
 import { reprocessedUpload } from '../../../workers/reprocess-batch.js';
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { DegradationComparison } from '../../../shared/schemas/degradation-comparison.js';
-import type { UploadRecord } from '../../store/store-records.js';
+import type { UploadRecord, WithdrawalRecord } from '../../store/store-records.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { unknownSampleError } from './unknown-sample-error.js';
 import { differingSettings, mixedSettings } from './analysis-settings.js';
@@ -129,6 +129,9 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   const referenceIndex = options.reference_upload_id === undefined ? 0 : measurements.findIndex((m) => m.upload.upload_id === options.reference_upload_id);
   if (referenceIndex < 0) {
     const left = notIncluded.find(({ upload_id }) => upload_id === options.reference_upload_id);
+    if (left?.reason_code === 'withdrawn') {
+      throw new HeatpathError('DEGRADATION_REFERENCE_WITHDRAWN', `?reference_upload_id=${left.upload_id} names an upload of sample ${sampleId} that was ${left.reason}`);
+    }
     throw new HeatpathError(
       'RESOURCE_NOT_FOUND',
       `upload ${options.reference_upload_id} is not a completed analysis of channel ${channel} of sample ${sampleId}` + (left === undefined ? '' : `: ${left.reason}`),
@@ -166,6 +169,15 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
   if (options.reference_upload_id === undefined && firstUpload.upload_id !== reference.upload.upload_id) {
     warnings.push(`the reference is upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), not the sample's first, ${firstUpload.upload_id} (${firstUpload.cycle_count ?? 'unknown'} cycles), which is not included (see not_included)`);
   }
+  const withdrawnFirst = options.reference_upload_id === undefined ? withdrawnBefore(stored, withdrawals, reference.upload, arrivalKey(reference.upload), byCycleCount) : [];
+  if (withdrawnFirst.length > 0) {
+    const one = withdrawnFirst.length === 1;
+    warnings.push(
+      `the sample's first ${one ? 'measurement' : `${withdrawnFirst.length} measurements`}, ` +
+        withdrawnFirst.map(({ upload, withdrawal }) => `upload ${upload.upload_id} (${upload.cycle_count ?? 'unknown'} cycles), withdrawn (${withdrawal.reason})`).join(', ') +
+        `, ${one ? 'is' : 'are'} left out: the reference is now upload ${reference.upload.upload_id} (${reference.upload.cycle_count ?? 'unknown'} cycles), and every change is against it`,
+    );
+  }
   if (options.reference_upload_id !== undefined) {
     const earlier = measurements.filter((measurement) => measurement !== reference && measuredBefore(measurement.upload, reference.upload, arrivalKey));
     if (earlier.length > 0) {
@@ -190,6 +202,34 @@ export async function sampleDegradation(store: TransientStore, sampleId: string,
     notes: degradationNotes(options.package_rth_K_per_W),
     caution: RESULT_CAUTION,
   };
+}
+
+/**
+ * The withdrawn measurements the campaign rule puts before the reference: bytes whose every upload under the sample
+ * was withdrawn (bytes with an upload that stands still count through it), each as its latest upload, placed where
+ * the bytes first arrived, as the trend places bytes sent again.
+ */
+function withdrawnBefore(
+  stored: readonly UploadRecord[],
+  withdrawals: ReadonlyMap<string, WithdrawalRecord>,
+  reference: UploadRecord,
+  referenceKey: string,
+  byCycleCount: boolean,
+): { upload: UploadRecord; withdrawal: WithdrawalRecord }[] {
+  const byBytes = new Map<string, UploadRecord[]>();
+  for (const upload of stored) byBytes.set(upload.input_sha256, [...(byBytes.get(upload.input_sha256) ?? []), upload]);
+  const before: { upload: UploadRecord; withdrawal: WithdrawalRecord; key: string }[] = [];
+  for (const uploads of byBytes.values()) {
+    if (!uploads.every((upload) => withdrawals.has(upload.upload_id))) continue;
+    const upload = uploads.reduce((latest, candidate) => (candidate.received_at >= latest.received_at ? candidate : latest));
+    const firstReceived = uploads.reduce((first, candidate) => (candidate.received_at < first ? candidate.received_at : first), upload.received_at);
+    const key = `${firstReceived} ${upload.received_at} ${upload.upload_id}`;
+    const earlier = byCycleCount
+      ? upload.cycle_count !== null && (upload.cycle_count < reference.cycle_count! || (upload.cycle_count === reference.cycle_count && key < referenceKey))
+      : key < referenceKey;
+    if (earlier) before.push({ upload, withdrawal: withdrawals.get(upload.upload_id)!, key });
+  }
+  return before.sort((a, b) => (byCycleCount ? a.upload.cycle_count! - b.upload.cycle_count! : 0) || a.key.localeCompare(b.key));
 }
 
 /** Measured before the other: by cycle count when both have one (the campaign's own clock), else by arrival. */
