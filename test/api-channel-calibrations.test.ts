@@ -103,7 +103,9 @@ describe('per-channel calibrations on upload', () => {
   it('warns of one calibration for both dies with the upload\'s way of giving T2 its own, not the command line\'s', async () => {
     const response = await uploadCsv(`sample_id=M5&calibration_id=${t1Id}`);
     expect(response.status).toBe(202);
-    const answer = (await response.json()) as { links: Record<string, string> };
+    const answer = (await response.json()) as { links: Record<string, string>; warnings: string[] };
+    // Said in the upload's answer too (it was only in the results), so that heatpath submit prints it at the bench.
+    expect(answer.warnings).toContainEqual(expect.stringMatching(/^one calibration converted all 2 voltage channels .*give each channel its own, with calibration_id@T2=<id>/));
     let job = { state: '' };
     await eventually(async () => ['completed', 'failed'].includes((job = await getJson(answer.links.job)).state), 200);
     expect(job.state).toBe('completed');

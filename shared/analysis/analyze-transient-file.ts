@@ -25,7 +25,7 @@ import { channelPowerLines, resolveAnalysisInputs } from './resolve-analysis-inp
 import { calibrationIdOf } from '../schemas/calibration-id.js';
 import { headerSample } from '../input/header-label.js';
 import { calibrationSampleWarning } from './calibration-sample-warning.js';
-import { channelCalibrations, unusedCalibrationWarnings } from './channel-calibrations.js';
+import { channelCalibrations, sharedCalibrationWarnings, unusedCalibrationWarnings } from './channel-calibrations.js';
 
 /** One transient file to analyse, as the CLI and the workers hand it over. */
 export interface TransientFileInput {
@@ -70,7 +70,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   const power_W = file.quantity === 'zth_K_per_W' ? null : resolvedPower_W;
   const inputWarnings = [
     ...headerWarnings,
-    ...sharedCalibrationWarning(file, input.channelCalibrations, input.channelCalibrationWay),
+    ...sharedCalibrationWarnings(file, input.channelCalibrations, input.channelCalibrationWay),
     // A file with channels' own power lines either uses them or, given one power over them, is already warned of with those lines.
     ...(channelPowerLines(file).length > 0 ? [] : sharedPowerWarning(file, power_W)),
     ...unusedCalibrationWarnings(file, input, calibrations),
@@ -169,22 +169,6 @@ function calibratedTemperatureUnitWarning(temperature_C: Float64Array): string[]
     'the junction temperatures the calibration gives',
     `if the calibration sweep's temperature_C was in kelvin, subtract 273.15 from it and fit the calibration again (temperature_C is in degrees Celsius); ${KELVIN_SPARES_ZTH}`,
   );
-}
-
-/**
- * A file of several voltage channels is usually several devices measured
- * together, each with its own TSP; where the one calibration given converts
- * two or more of them, the results say so and how to give each its own.
- */
-function sharedCalibrationWarning(file: TransientFile, own: ReadonlyMap<string, Calibration> | undefined, way: TransientFileInput['channelCalibrationWay']): string[] {
-  if (file.quantity !== 'voltage_V') return [];
-  const shared = file.channels.filter((channel) => !own?.has(channel.name));
-  if (shared.length < 2) return [];
-  const names = shared.map((channel) => `voltage_V@${channel.name}`).join(', ');
-  return [
-    `one calibration converted ${shared.length === file.channels.length ? 'all ' : ''}${shared.length} voltage channels of this file (${names}) to temperature: ` +
-      `devices with calibrations of their own must be analysed with them: give each channel its own${way ? `, with ${way(shared[1].name)}` : ''}.`,
-  ];
 }
 
 function analyzeChannel(

@@ -60,3 +60,20 @@ export function unusedCalibrationWarnings(file: TransientFile, given: GivenCalib
   }
   return given.calibration !== undefined && !usesCalibrationForAll(file, given, calibrations) ? ['calibration not used: every channel has a calibration of its own'] : [];
 }
+
+/**
+ * A file of several voltage channels is usually several devices measured
+ * together, each with its own TSP; where the one calibration given converts
+ * two or more of them, the results (and the upload's answer) say so and how to
+ * give each its own, in the words of the caller's surface (`way`).
+ */
+export function sharedCalibrationWarnings(file: TransientFile, own: ReadonlyMap<string, Calibration> | undefined, way?: (channel: string) => string): string[] {
+  if (file.quantity !== 'voltage_V') return [];
+  const shared = file.channels.filter((channel) => !own?.has(channel.name));
+  if (shared.length < 2) return [];
+  const names = shared.map((channel) => `voltage_V@${channel.name}`).join(', ');
+  return [
+    `one calibration converted ${shared.length === file.channels.length ? 'all ' : ''}${shared.length} voltage channels of this file (${names}) to temperature: ` +
+      `devices with calibrations of their own must be analysed with them: give each channel its own${way ? `, with ${way(shared[1].name)}` : ''}.`,
+  ];
+}

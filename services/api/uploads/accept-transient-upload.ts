@@ -11,7 +11,7 @@ import { calibrationSampleWarning } from '../../../shared/analysis/calibration-s
 import { headerLabel, headerSample } from '../../../shared/input/header-label.js';
 import { calibrationIdOf } from '../../../shared/schemas/calibration-id.js';
 import { checkVoltagesCalibrated } from '../../../shared/analysis/check-voltages-calibrated.js';
-import { channelCalibrations, unusedCalibrationWarnings, usesCalibrationForAll } from '../../../shared/analysis/channel-calibrations.js';
+import { channelCalibrations, sharedCalibrationWarnings, unusedCalibrationWarnings, usesCalibrationForAll } from '../../../shared/analysis/channel-calibrations.js';
 import { checkZthRises } from '../../../shared/analysis/check-zth-rises.js';
 import { resolveAnalysisInputs } from '../../../shared/analysis/resolve-analysis-inputs.js';
 import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../../shared/schemas/analysis-parameters.js';
@@ -23,7 +23,7 @@ import type { UploadSummary } from '../../store/upload-summary-index.js';
 import { JOB_PRIORITY, type AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { FailedJobRetry, MENDABLE_FAILURE_CODES } from '../../../workers/retry-failed-job.js';
 import type { JobState } from '../jobs/job-status.js';
-import { CHANNEL_CALIBRATION_FIELD, CHANNEL_CALIBRATION_ID_FIELD, type UploadMetadata } from '../schemas/transient-metadata.js';
+import { CHANNEL_CALIBRATION_FIELD, CHANNEL_CALIBRATION_ID_FIELD, channelCalibrationFields, type UploadMetadata } from '../schemas/transient-metadata.js';
 import type { UploadRequest } from './read-upload-request.js';
 
 export interface UploadAnswer {
@@ -73,7 +73,7 @@ export async function acceptTransientUpload(
   // names the calibration) for a result that does not use it.
   const all = usesCalibrationForAll(transient, givenCalibrations, calibrations) ? given.all : null;
   const own = calibrations !== undefined ? given.own : new Map<string, GivenCalibration>();
-  warnings.push(...unusedCalibrationWarnings(transient, givenCalibrations, calibrations));
+  warnings.push(...unusedCalibrationWarnings(transient, givenCalibrations, calibrations), ...sharedCalibrationWarnings(transient, givenCalibrations.channelCalibrations, channelCalibrationFields));
   if (calibrations !== undefined) {
     checkVoltagesCalibrated(transient, calibrations, upload.sourceName);
     // Once per calibration, naming the channels it converted where the file has several (each result says it for its own).
