@@ -58,7 +58,7 @@ export const withdrawalRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore
       const them = standing.length > 1 ? 'them' : 'it';
       const trend =
         standing.length === 0
-          ? `The sample's degradation trend leaves it out (not_included, reason_code withdrawn); `
+          ? `The sample's degradation trend leaves it out (not_included, reason_code withdrawn). `
           : `Its bytes were uploaded for this sample as ${standing.map((other) => `upload ${other.upload_id} (received ${other.received_at}, ${other.cycle_count ?? 'unknown'} cycles)`).join(', ')} too, not withdrawn: ` +
             `the measurement still counts in the degradation trend through ${them} (bytes sent again count once, as their latest upload); withdraw ${them} too if the measurement itself is to go. `;
       const jobNote = standing.length === 0 ? 'its result is kept but not counted' : 'its result is kept';
@@ -69,7 +69,7 @@ export const withdrawalRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore
         note:
           `Upload ${upload_id} (${upload.file_name}) of sample ${upload.sample_id} is withdrawn. Nothing was deleted: its raw bytes, its record and its job's result stay, and the sample's listing shows it withdrawn. ` +
           trend +
-          `${standing.length === 0 ? 'the' : 'The'} recovery sweep does not queue it again and new batches do not select it. ` +
+          'The recovery sweep does not queue it again and new batches do not select it. ' +
           (finished ? '' : `Its job ${upload.job_id} has no outcome yet: if it is queued it still runs, and ${jobNote}. `) +
           'If the file belongs to another sample, upload it again with that sample_id.',
         links: { ...uploadLinks(upload), raw: `/v1/transients/${upload_id}/raw`, sample: `${sample}/results` },
