@@ -5,7 +5,7 @@ import { startApiTestApp, type ApiTestContext } from './support/api-test-app.js'
 let context: ApiTestContext;
 let document: {
   openapi: string;
-  paths: Record<string, Record<string, { security?: unknown[]; description?: string; responses: Record<string, { description?: string; content?: Record<string, unknown> }> }>>;
+  paths: Record<string, Record<string, { security?: unknown[]; description?: string; responses: Record<string, { description?: string; headers?: Record<string, unknown>; content?: Record<string, unknown> }> }>>;
   components: { securitySchemes: Record<string, unknown> };
 };
 beforeAll(async () => {
@@ -58,5 +58,13 @@ describe('the OpenAPI document', () => {
         expect(operation.responses[range]?.content, `${method} ${path} ${range}`).toHaveProperty(['application/problem+json']);
       }
     }
+  });
+});
+
+describe('the raw bytes route', () => {
+  // OpenAPI 3.1 section 4.8.17.1 (Response Object, headers): the audit headers a client reads are declared, not only sent.
+  it('declares its ETag, Repr-Digest and Content-Disposition headers', () => {
+    const headers = document.paths['/v1/transients/{upload_id}/raw'].get.responses['200'].headers;
+    expect(Object.keys(headers ?? {}).sort()).toEqual(['content-disposition', 'etag', 'repr-digest']);
   });
 });

@@ -94,7 +94,7 @@ export const errorCatalogue = {
   SUBMIT_REJECTED: { status: 400, title: 'The server refused the transient', hint: 'Fix what the server reported, as its code and detail say, and submit the file again.' },
   CALIBRATION_REJECTED: { status: 400, title: 'The server refused the calibration', hint: 'Fix what the server reported, as its code and detail say (or fit the calibration again with heatpath calibrate), and run the command again.' },
   SERVER_UNREACHABLE: { status: 503, title: 'The heatpath server did not accept the upload', hint: 'Check --server and the network, then run the same command again: repeated submissions are safe.' },
-  STORED_INPUT_MISSING: { status: 410, title: 'The stored raw transient of the job is gone from the store', hint: 'Upload the transient again (the record of the upload is kept, and the same file runs the same job again), or restore it from a backup and retry the job (POST /v1/jobs/{job_id}/retry).' },
+  STORED_INPUT_MISSING: { status: 410, title: 'The stored raw transient of the job is gone from the store', hint: 'Upload the transient again (the record of the upload is kept, and the same file runs the same job again), or restore it from a backup; a job that failed for want of it then runs again with POST /v1/jobs/{job_id}/retry.' },
 } as const satisfies Record<string, { status: number; title: string; hint: string }>;
 
 export type ErrorCode = keyof typeof errorCatalogue;

@@ -139,6 +139,11 @@ export const transientRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore;
         response: {
           200: {
             description: 'The bytes as received; the ETag is their SHA-256 in hex.',
+            headers: {
+              'content-disposition': Type.String({ description: 'attachment, with the upload\'s file name (RFC 6266).' }),
+              etag: Type.String({ description: 'The bytes\' SHA-256 in hex, quoted: the upload\'s input_sha256.' }),
+              'repr-digest': Type.String({ description: 'The same SHA-256 as RFC 9530 sets it out: sha-256=:base64:.' }),
+            },
             content: { 'text/csv': { schema: binary('A CSV upload.') }, 'application/json': { schema: binary('A JSON upload.') } },
           },
         },
