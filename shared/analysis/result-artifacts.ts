@@ -65,7 +65,11 @@ function csvRows(names: string[], rows: number[][]): string {
   return lines.join('\n') + '\n';
 }
 
-/** Ten significant digits: far beyond any measurement, short enough to read. */
+/**
+ * Ten significant digits (far beyond any measurement, short enough to read),
+ * written as JavaScript writes the rounded number: its shortest exact form,
+ * without trailing zeros in the fraction and with the exponent whole.
+ */
 function formatNumber(value: number): string {
-  return Number.isInteger(value) ? String(value) : value.toPrecision(10).replace(/\.?0+(e|$)/, '$1');
+  return String(Number(value.toPrecision(10)));
 }
