@@ -72,7 +72,7 @@ async function writeCalibration(name: string, offset_V = 0): Promise<{ path: str
 const serverOptions = () => ['--server', server, '--key', testTokens.bench, '--power-w', String(SYNTHETIC_POWER_W)];
 
 describe('heatpath submit (real API, real Redis)', () => {
-  it('uploads files, prints their job ids, and a second run is the same uploads', async () => {
+  it('uploads files, prints their job ids, and a second run is the same jobs, as new uploads the server warns of', async () => {
     const files = [await writeTransient('a.csv', 61), await writeTransient('b.csv', 62)];
     expect(await runSubmitCommand([...files, ...serverOptions(), '--sample', 'S-61', '--bench', 'B1', '--tag', 'night'], print)).toBe(0);
     const lines = printed.map((line) => line.split('\t'));
@@ -83,9 +83,13 @@ describe('heatpath submit (real API, real Redis)', () => {
     expect(stored.every((upload) => upload.bench === 'B1' && upload.tags.includes('night'))).toBe(true);
 
     printed = [];
+    errors.length = 0;
+    // Sent again by another run: a deliberate re-send is a new upload of the same job (README: bytes uploaded before are
+    // warned of, and counted once by the trend), not a replay of the first run's answer.
     expect(await runSubmitCommand([...files, ...serverOptions(), '--sample', 'S-61', '--bench', 'B1', '--tag', 'night'], print)).toBe(0);
     expect(printed.map((line) => line.split('\t')[1])).toEqual(lines.map(([, jobId]) => jobId));
-    expect(await api.store.listUploads({ sample_id: 'S-61' })).toHaveLength(2);
+    expect(await api.store.listUploads({ sample_id: 'S-61' })).toHaveLength(4);
+    expect(errors.filter((line) => line.includes('warning: the same bytes were uploaded for this sample before'))).toHaveLength(2);
   });
 
   it('sends the spellings the command line accepts as the server reads them: a decimal comma, a choice in any case', async () => {
@@ -169,13 +173,16 @@ describe('heatpath submit (real API, real Redis)', () => {
     expect(await api.store.getCalibration(calibrationIdOf(module.calibrations.T2))).not.toBeNull();
   });
 
-  it('says that the server refused the calibration, not a transient, when it does', async () => {
+  it('says that the server refused the key, not the calibration or a file, and stops at the first refusal', async () => {
     const volts = await writeVoltageTransient('volts.csv', 69);
     const { path: calibrationFile } = await writeCalibration('cal.json');
     expect(await runSubmitCommand([volts, '--server', server, '--key', 'not-a-known-key-000', '--sample', 'S-69', '--calibration', calibrationFile], print)).toBe(2);
     expect(errors).toHaveLength(1);
-    expect(errors[0]).toMatch(/^heatpath submit: .*cal\.json: The server refused the calibration: AUTH_KEY_INVALID: .*\[CALIBRATION_REJECTED\]\n$/);
-    expect(errors[0]).not.toMatch(/transient/);
+    expect(errors[0]).toMatch(/^heatpath submit: The server refused the API key: http:\S+: AUTH_KEY_INVALID: .*Check --key.*\[SERVER_ACCESS_DENIED\]\n$/);
+    errors.length = 0;
+    const second = await writeTransient('second.csv', 68);
+    expect(await runSubmitCommand([volts, second, '--server', server, '--key', 'not-a-known-key-000', '--sample', 'S-69'], print)).toBe(2);
+    expect(errors).toHaveLength(1);
   });
 
   it("gives the server's hint in the one error line, where it knows the fix: a transient in millivolts is converted to volts", async () => {

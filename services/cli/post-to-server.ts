@@ -17,11 +17,33 @@ const MAX_BACKOFF_MS = 10_000;
 export type Refusal = 'SUBMIT_REJECTED' | 'CALIBRATION_REJECTED';
 
 /**
+ * The server refused a request (an answer other than 2xx that no retry
+ * mends), with the HTTP status and the server's own code, so that a command
+ * over many files can tell a refusal of the file (400, 422) from one of the
+ * request as a whole (404: no such route or calibration id), which no file
+ * of the run would escape. A refused key is SERVER_ACCESS_DENIED instead.
+ */
+export class ServerRefusal extends HeatpathError {
+  constructor(
+    refusal: Refusal,
+    readonly httpStatus: number,
+    readonly serverCode: string | undefined,
+    detail: string,
+    location: ConstructorParameters<typeof HeatpathError>[2],
+    hint: string | undefined,
+  ) {
+    super(refusal, detail, location, hint);
+  }
+}
+
+/**
  * POSTs `body` to `path` on the service, retrying while it is busy or away,
  * and returns the JSON of its successful answer. Throws `refusal` when the
- * server refuses the request (the user must fix it; at the line and column
- * the server names, with the server's hint where it gives one) and
- * SERVER_UNREACHABLE when every attempt failed. Errors name the file `fileName`.
+ * server refuses the request (a ServerRefusal: the user must fix it; at the
+ * line and column the server names, with the server's hint where it gives
+ * one), SERVER_ACCESS_DENIED when it refuses the key (401, 403: no file's
+ * fault, so named by the server, not the file), and SERVER_UNREACHABLE when
+ * every attempt failed. Errors name the file `fileName`.
  */
 export async function postToServer(
   target: UploadTarget,
@@ -44,7 +66,11 @@ export async function postToServer(
       const answer = (await response.json().catch(() => ({}))) as Record<string, unknown>;
       if (response.ok) return answer;
       lastProblem = describeProblem(response.status, answer);
-      if (!RETRYABLE_STATUS.has(response.status)) throw new HeatpathError(refusal, lastProblem, { file: fileName, ...problemPlace(answer) }, problemHint(answer));
+      if (response.status === 401 || response.status === 403) throw new HeatpathError('SERVER_ACCESS_DENIED', `${target.server}: ${lastProblem}`);
+      if (!RETRYABLE_STATUS.has(response.status)) {
+        const serverCode = typeof answer.code === 'string' ? answer.code : undefined;
+        throw new ServerRefusal(refusal, response.status, serverCode, lastProblem, { file: fileName, ...problemPlace(answer) }, problemHint(answer));
+      }
       retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
     } catch (error) {
       if (error instanceof HeatpathError) throw error;

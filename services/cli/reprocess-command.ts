@@ -1,4 +1,4 @@
-import { createHash } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { readdir } from 'node:fs/promises';
 import { basename, dirname, extname, join, relative, resolve, sep } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
@@ -113,7 +113,8 @@ export async function runReprocessCommand(
   };
   const target = upload ? new URL(upload.target.server).href : 'local';
   const files = (await listTransientFiles(archive, outDir)).map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
-  const processFile = upload ? serverProcessor(upload.target, upload.metadata, values) : localProcessor(inputs, outDir, resultFolderOf(files.map((f) => f.relativePath)));
+  // A retry of an upload within this run is answered with the first; a later run's re-send is a new upload (transient-upload-client.ts).
+  const processFile = upload ? serverProcessor(upload.target, randomUUID(), upload.metadata, values) : localProcessor(inputs, outDir, resultFolderOf(files.map((f) => f.relativePath)));
   await makeOutputDirectory(outDir);
   const outcomes = await readReprocessState(join(outDir, STATE_FILE));
   const thisRun = new Map<string, FileOutcome>();
@@ -189,13 +190,13 @@ function stopOnCtrlC(): { signal: AbortSignal; release: () => void } {
   return { signal: controller.signal, release: () => process.removeListener('SIGINT', onSigint) };
 }
 
-function serverProcessor(target: UploadTarget, metadata: URLSearchParams, values: Record<string, unknown>): Processor {
+function serverProcessor(target: UploadTarget, run: string, metadata: URLSearchParams, values: Record<string, unknown>): Processor {
   return async (_path, relativePath, bytes) => {
     const query = new URLSearchParams(metadata);
     query.set('sample_id', uploadSampleId(values, relativePath));
     try {
       // Its rejection names the file by its path in the archive (M6/empty.csv): base names repeat across sample folders.
-      const uploaded = await uploadTransient(target, bytes, basename(relativePath), query, relativePath);
+      const uploaded = await uploadTransient(target, run, bytes, basename(relativePath), query, relativePath);
       return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state, ...(uploaded.warnings.length > 0 && { warnings: uploaded.warnings }) };
     } catch (error) {
       return failureOf(error);

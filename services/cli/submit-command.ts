@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto';
 import { basename } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCommandLine } from './cli-arguments.js';
@@ -11,7 +12,10 @@ export const submitUsage = `heatpath submit FILE... --server URL --key TOKEN --s
 
 Upload measured transients to the heatpath service, one after the other,
 retrying while the server is busy or away. Prints one line per file:
-FILE<TAB>JOB_ID<TAB>STATE. Submitting a file twice is safe (same job).
+FILE<TAB>JOB_ID<TAB>STATE. Submitting a file again is safe: the same job,
+analysed once; it is a new upload of the bytes (the server warns of it), the
+latest of which the sample's degradation trend counts, once. A refused key
+stops the run.
 
 ${uploadOptionsUsage()}
   --calibration CAL.json  a calibration file of heatpath calibrate: stored on
@@ -42,16 +46,20 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
 
   let mustFix = false;
   let unreachable = false;
+  // A retry of an upload within this run is answered with the first; the same file sent by another run is a new upload.
+  const run = randomUUID();
   for (const file of positionals) {
     try {
       const bytes = await readInputFile(file);
       // The server knows the file by its base name; the user's error line names it as they did, like local errors.
-      const uploaded = await uploadTransient(target, bytes, basename(file), metadata, file);
+      const uploaded = await uploadTransient(target, run, bytes, basename(file), metadata, file);
       print(`${file}\t${uploaded.job_id}\t${uploaded.state}`);
       for (const warning of uploaded.warnings) process.stderr.write(`heatpath submit: ${file}: warning: ${warning}\n`);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       process.stderr.write(userErrorLine('submit', error) + '\n');
+      // No file gets past a refused key: one line, not one per file.
+      if (error.code === 'SERVER_ACCESS_DENIED') return 2;
       if (error.status < 500) mustFix = true;
       else unreachable = true;
     }

@@ -12,16 +12,20 @@ export interface UploadedTransient {
 
 /**
  * POSTs one transient to /v1/transients with its metadata as query
- * parameters. The Idempotency-Key is a hash of bytes and metadata, so a retry
- * (or a second run of a bench script) is answered with the first upload.
+ * parameters. The Idempotency-Key is a hash of `run` (one per command run),
+ * the bytes and the metadata: a retry within the run (an answer lost on the
+ * way) is answered with the first upload, while a later run that sends the
+ * file again makes a new upload of the same job, as a deliberate re-send
+ * must: one after its earlier upload was withdrawn counts again, and the
+ * server warns that the bytes were uploaded before.
  * Throws as postToServer does. The server knows the file by `fileName` (its
  * base name); errors name it `shownAs`, as the user gave it (a path, or a
  * path within the archive), so that it can be found.
  */
-export async function uploadTransient(target: UploadTarget, bytes: Uint8Array, fileName: string, metadata: URLSearchParams, shownAs = fileName): Promise<UploadedTransient> {
+export async function uploadTransient(target: UploadTarget, run: string, bytes: Uint8Array, fileName: string, metadata: URLSearchParams, shownAs = fileName): Promise<UploadedTransient> {
   const query = new URLSearchParams(metadata);
   query.set('file_name', fileName);
-  const idempotencyKey = createHash('sha256').update(bytes).update('\n').update(query.toString()).digest('hex');
+  const idempotencyKey = createHash('sha256').update(run).update('\n').update(bytes).update('\n').update(query.toString()).digest('hex');
   const contentType = looksLikeJson(bytes) ? 'application/json' : 'text/csv';
   const answer = await postToServer(target, `/v1/transients?${query}`, { body: bytes, headers: { 'content-type': contentType, 'idempotency-key': idempotencyKey } }, shownAs, 'SUBMIT_REJECTED');
   const warnings = Array.isArray(answer.warnings) ? answer.warnings.map((warning) => commandLineSpelling(String(warning))) : [];
