@@ -69,6 +69,9 @@ async function writeCalibration(name: string, offset_V = 0): Promise<{ path: str
   return { path, calibration };
 }
 
+/** The summary's columns as README.md lists them. */
+const SUMMARY_HEADER = 'file,sha256,status,job_id,detail,warnings,done_at,target,algorithm,method,rth_total_K_per_W,job_state';
+
 const serverOptions = () => ['--server', server, '--key', testTokens.bench, '--power-w', String(SYNTHETIC_POWER_W)];
 
 describe('heatpath submit (real API, real Redis)', () => {
@@ -215,7 +218,7 @@ describe('heatpath reprocess', () => {
     const args = [join(workDir, 'archive'), '--local', '--out', out, '--power-w', String(SYNTHETIC_POWER_W)];
     expect(await runReprocessCommand(args, print)).toBe(2);
     const summary = (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n');
-    expect(summary[0]).toBe('file,sha256,status,job_id,detail,warnings');
+    expect(summary[0]).toBe(SUMMARY_HEADER);
     expect(summary.slice(1).map((row) => row.split(',').slice(0, 3).filter((_, i) => i !== 1))).toEqual([
       ['D1/t1.csv', 'ok'],
       ['D2/broken.csv', 'rejected'],
@@ -371,7 +374,7 @@ describe('heatpath reprocess to a server (real API, real Redis)', () => {
     ]);
     // The summary has each file's own warning, naming its own earlier upload.
     const summary = (await readFile(join(out, 'reprocess-summary.csv'), 'utf8')).trim().split('\n');
-    expect(summary[0]).toBe('file,sha256,status,job_id,detail,warnings');
+    expect(summary[0]).toBe(SUMMARY_HEADER);
     const uploads = await api.store.listUploads({ sample_id: 'SAMPLE-13' });
     for (const [index, row] of summary.slice(1).entries()) {
       const first = uploads.find((upload) => upload.file_name === `t${index + 1}.csv` && upload.parameters.method === 'posterior-mean')!;

@@ -25,7 +25,8 @@ export interface ReprocessSettings {
  * upload. `reprocess` compares it with the state file to decide that a file
  * was done before. A file that cannot be parsed, or whose settings do not
  * resolve, gets the id of the settings as given: its rejection is remembered
- * for these settings only. The parse is returned for the analysis to reuse.
+ * for these settings only. The parse is returned for the analysis to reuse,
+ * and the resolved parameters for the summary.
  */
 export function archiveFileJobId(
   bytes: Uint8Array,
@@ -33,13 +34,13 @@ export function archiveFileJobId(
   relativePath: string,
   input_sha256: string,
   settings: ReprocessSettings,
-): { jobId: string; parsed?: TransientFile } {
+): { jobId: string; parsed?: TransientFile; parameters?: AnalysisParameters } {
   const { calibration_sha256, channel_calibration_sha256 } = settings;
   const sample_id = settings.sampleIdOf(relativePath);
   try {
     const parsed = parseTransient(bytes, fileName);
     const { parameters, power } = resolveAnalysisInputs(parsed, settings, fileName);
-    return { jobId: jobIdFor({ input_sha256, sample_id, parameters, power: power ?? null, calibration_sha256, channel_calibration_sha256 }), parsed };
+    return { jobId: jobIdFor({ input_sha256, sample_id, parameters, power: power ?? null, calibration_sha256, channel_calibration_sha256 }), parsed, parameters };
   } catch (error) {
     if (!isUserError(error)) throw error;
     return { jobId: jobIdFor({ input_sha256, sample_id, parameters: settings.parameters, power: settings.power ?? null, calibration_sha256, channel_calibration_sha256 }) };

@@ -1,6 +1,10 @@
 import { createHash, randomUUID } from 'node:crypto';
-import { readdir } from 'node:fs/promises';
+import { existsSync, readdirSync } from 'node:fs';
+import { readdir, realpath, stat } from 'node:fs/promises';
 import { basename, dirname, extname, join, relative, resolve, sep } from 'node:path';
+import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
+import { checkGivenParameters } from '../../shared/analysis/resolve-analysis-inputs.js';
+import { formatNumber } from '../../shared/analysis/result-artifacts.js';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import type { TransientFile } from '../../shared/input/transient-file.js';
 import { calibrationIdOf } from '../../shared/schemas/calibration-id.js';
@@ -11,24 +15,28 @@ import { archiveFileJobId, type ReprocessSettings } from './archive-file-job-id.
 import { numberOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { storeCalibrationOnServer } from './store-calibration-on-server.js';
+import { commandLineSpelling } from './command-line-spelling.js';
 import { userErrorLine } from './user-error-line.js';
 import { WarningTally } from './warning-tally.js';
-import { readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
-import type { UploadTarget } from './post-to-server.js';
+import { ownDetail, readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
+import { ServerRefusal, type UploadTarget } from './post-to-server.js';
 import { uploadTransient } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
 export const reprocessUsage = `heatpath reprocess DIR (--server URL --key TOKEN | --local) [--out DIR] [options]
 
-Walk an archive folder (every .csv and .json below DIR) and submit each
+Walk an archive folder (every .csv and .json below DIR; folders holding a
+reprocess-state.jsonl, the output of a run, are left out) and submit each
 transient to a heatpath server, or analyse it here with --local.
 
 Resumable: OUT/reprocess-state.jsonl remembers each file's job (its content,
 analysis parameters, power, calibration and algorithm version). Run again
-with the same --out, a file done before with the same job is skipped; one
-done under other settings, or changed, is done again (with --local its
-results in OUT/results/ are replaced: give another --out to keep both).
+with the same --out, a file done before with the same job is skipped (with
+--local, while its results are in OUT/results/); one done under other
+settings, or changed, is done again (with --local its results in
+OUT/results/ are replaced: give another --out to keep both). An OUT holds
+one archive's state: another DIR needs another --out.
 Writes OUT/reprocess-summary.csv, also when stopped by Ctrl-C (which lets
 the files in progress finish; press it again to stop at once). Warnings (the
 server's on each upload, the analysis's with --local) are shown on stderr
@@ -37,7 +45,10 @@ once per kind, then counted at the end; each file's own are in the summary.
 With --server every file sent becomes its sample's latest upload of those
 bytes, which the sample's degradation trend counts: to compare other
 parameters without that, reprocess on the server with a batch
-(POST /v1/batches) instead.
+(POST /v1/batches) instead. A file directly in DIR is sent under DIR's
+name. A server that cannot be reached, or that refuses the key, stops the
+run at once: nothing is recorded for the files not sent, and the same
+command sends them once that is mended.
 
   --local                 analyse on this machine (results in OUT/results/)
   --out DIR               state, summary and local results (default ./heatpath-reprocess)
@@ -46,10 +57,11 @@ parameters without that, reprocess on the server with a batch
                           it is stored there first, as submit does, and named by
                           its id (or name a stored one with --calibration-id);
                           CH=CAL.json (repeatable) gives channel CH its own
-${uploadOptionsUsage("LIMS sample id (default: the name of each file's folder)")}
+${uploadOptionsUsage("LIMS sample id (default: each file's folder's name)")}
 
 Exit codes: 0 all done, 2 a file or option must be fixed (takes precedence),
-1 a file could not be processed (run again to retry it), 130 stopped by Ctrl-C.`;
+1 a file could not be processed or the server not reached (run again to
+retry), 130 stopped by Ctrl-C.`;
 
 const STATE_FILE = 'reprocess-state.jsonl';
 const SUMMARY_FILE = 'reprocess-summary.csv';
@@ -58,13 +70,20 @@ const SAMPLE_ID = /[^A-Za-z0-9._-]/g;
 const EXIT_INTERRUPTED = 130;
 
 /** A file's outcome; `problem` is the one stderr line of a rejected or failed file, as `analyze` prints it. */
-type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail' | 'warnings'> & { problem?: string };
+type Processed = Pick<FileOutcome, 'status' | 'job_id' | 'detail' | 'warnings' | 'results' | 'algorithm' | 'rth_total_K_per_W' | 'job_state'> & { problem?: string };
 type Processor = (path: string, relativePath: string, bytes: Buffer, job: { jobId: string; parsed?: TransientFile }) => Promise<Processed>;
 
+/** What stopped a run before its end: an error no file gets past (the server away, the key refused), and the exit code it gives. */
+interface RunStop {
+  line: string;
+  exitCode: number;
+}
+
 /**
- * `heatpath reprocess`: exit 0 all done, 2 some files were rejected, 1 some
- * could not be processed, 130 stopped. `stop` ends the run after the files in
- * progress; omitted, Ctrl-C (SIGINT) does.
+ * `heatpath reprocess`: exit 0 all done, 2 some files were rejected (or the
+ * server refused the key), 1 some could not be processed (or the server not
+ * reached), 130 stopped. `stop` ends the run after the files in progress;
+ * omitted, Ctrl-C (SIGINT) does.
  */
 export async function runReprocessCommand(
   argv: string[],
@@ -93,11 +112,17 @@ export async function runReprocessCommand(
   const concurrency = values.local ? 1 : numberOption('concurrency', values.concurrency as string | undefined, { positive: true, integer: true }) ?? 4;
   // On a server the calibration file is stored there (storeCalibrationOnServer), once the other options are known good.
   const inputs = await analysisInputsFromOptions(values.local ? values : { ...values, calibration: undefined });
+  // Once, before any file: a bad option would otherwise be each file's refusal.
+  checkGivenParameters(inputs.parameters);
   const upload = values.local ? undefined : { target: uploadTargetFrom(values, 'reprocess'), metadata: uploadMetadataFrom(values) };
+  const archiveId = await archiveFolderId(archive);
+  const outcomes = await readReprocessState(join(outDir, STATE_FILE));
+  checkStateIsOfArchive(outcomes, archiveId, outDir);
   if (upload && values.calibration !== undefined) {
     const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, values.calibration as string[]);
     if (exitCode !== null) return exitCode;
   }
+  const archiveName = sampleIdOfFolder(basename(archive));
   const settings: ReprocessSettings = {
     parameters: inputs.parameters,
     power: inputs.power,
@@ -109,54 +134,73 @@ export async function runReprocessCommand(
           return channel === undefined ? [] : [[channel, id]];
         }))
       : Object.fromEntries([...inputs.channelCalibrations].map(([channel, calibration]) => [channel, calibrationIdOf(calibration)])),
-    sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath)),
+    sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath, archiveName)),
   };
   const target = upload ? new URL(upload.target.server).href : 'local';
-  const files = (await listTransientFiles(archive, outDir)).map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
+  const listing = await listTransientFiles(archive, outDir);
+  if (listing.outputFolders.length > 0) {
+    const names = listing.outputFolders.map((path) => relative(archive, path).split(sep).join('/'));
+    process.stderr.write(
+      `heatpath reprocess: left out ${names.length} output folder${names.length > 1 ? 's' : ''} of reprocess runs (${STATE_FILE} or --out): ${names.slice(0, 5).join(', ')}${names.length > 5 ? ', ...' : ''}\n`,
+    );
+  }
+  const files = listing.files.map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
+  const folderOf = resultFolderOf(files.map((f) => f.relativePath));
   // A retry of an upload within this run is answered with the first; a later run's re-send is a new upload (transient-upload-client.ts).
-  const processFile = upload ? serverProcessor(upload.target, randomUUID(), upload.metadata, values) : localProcessor(inputs, outDir, resultFolderOf(files.map((f) => f.relativePath)));
+  const processFile = upload ? serverProcessor(upload.target, randomUUID(), upload.metadata, values, archiveName) : localProcessor(inputs, outDir, folderOf);
+  const resultsPresent = (earlier: FileOutcome) => localResultsPresent(outDir, earlier, folderOf);
   await makeOutputDirectory(outDir);
-  const outcomes = await readReprocessState(join(outDir, STATE_FILE));
-  const thisRun = new Map<string, FileOutcome>();
+  const thisRun = new Map<string, { outcome: FileOutcome; doneBefore: boolean }>();
   const progress = new ProgressReport(files.length);
   const warningTally = new WarningTally();
   const ctrlC = stop ? undefined : stopOnCtrlC();
   const stopped = stop ?? ctrlC!.signal;
+  let runStop: RunStop | undefined;
   let skipped = 0;
   let redone = 0;
 
   let next = 0;
   const work = async () => {
-    while (next < files.length && !stopped.aborted) {
+    while (next < files.length && !stopped.aborted && runStop === undefined) {
       const { path, relativePath } = files[next++];
       const bytes = await readInputFile(path);
       const sha256 = createHash('sha256').update(bytes).digest('hex');
       const job = archiveFileJobId(bytes, path, relativePath, sha256, settings);
       const earlier = outcomes.get(relativePath);
-      const reason = earlier ? whyAgain(earlier, { sha256, key: job.jobId, target }) : null;
+      const reason = earlier ? whyAgain(earlier, { sha256, key: job.jobId, target }, resultsPresent) : null;
       if (earlier && reason === null) {
-        thisRun.set(relativePath, earlier);
+        thisRun.set(relativePath, { outcome: earlier, doneBefore: true });
         skipped++;
         progress.record(relativePath, earlier.status, 'done before');
         continue;
       }
-      const note = earlier && earlier.status !== 'failed' ? `redone: ${reason}` : undefined;
+      const note = earlier && earlier.status !== 'failed' ? (reason ?? undefined) : undefined;
+      let processed: Processed;
+      try {
+        processed = await processFile(path, relativePath, bytes, job);
+      } catch (error) {
+        // Nothing is recorded for this file: the next run sends it.
+        runStop ??= runStopOf(error, relativePath, target);
+        continue;
+      }
       if (note) redone++;
-      const processed = await processFile(path, relativePath, bytes, job);
       const { problem, ...result } = processed;
       const outcome: FileOutcome = {
         file: relativePath,
+        archive: archiveId,
         sha256,
         key: job.jobId,
         target,
         ...result,
-        detail: note ? `${note}; ${result.detail}` : result.detail,
+        ...(note && { redone: note }),
+        done_at: new Date().toISOString(),
+        ...(job.parameters && { method: job.parameters.method }),
       };
       outcomes.set(relativePath, outcome);
-      thisRun.set(relativePath, outcome);
+      thisRun.set(relativePath, { outcome, doneBefore: false });
       await appendOutputFile(join(outDir, STATE_FILE), JSON.stringify(outcome) + '\n');
       const warningLines = warningTally.record(relativePath, outcome.warnings ?? []).map((line) => `heatpath reprocess: ${line}`);
-      progress.record(relativePath, outcome.status, note, [...(problem ? [problem] : []), ...warningLines]);
+      progress.record(relativePath, outcome.status, note && `redone: ${note}`, [...(problem ? [problem] : []), ...warningLines]);
     }
   };
   try {
@@ -165,18 +209,72 @@ export async function runReprocessCommand(
     ctrlC?.release();
     progress.finish();
   }
+  if (runStop) process.stderr.write(`${runStop.line}\n`);
   for (const line of warningTally.summary()) process.stderr.write(`heatpath reprocess: ${line}\n`);
 
-  const inRun = files.map(({ relativePath }) => thisRun.get(relativePath)).filter((outcome) => outcome !== undefined);
+  const inRun = files.map(({ relativePath }) => thisRun.get(relativePath)).filter((entry) => entry !== undefined);
   await writeOutputFile(join(outDir, SUMMARY_FILE), summaryCsv(inRun));
-  const count = (status: FileOutcome['status']) => inRun.filter((outcome) => outcome.status === status).length;
+  const count = (status: FileOutcome['status']) => inRun.filter(({ outcome }) => outcome.status === status).length;
   const interrupted = inRun.length < files.length;
   print(
     `${interrupted ? `stopped after ${inRun.length} of ${files.length}` : files.length} files: ${count('ok')} ok, ${count('rejected')} rejected, ${count('failed')} failed ` +
       `(${skipped} done before${redone > 0 ? `, ${redone} redone` : ''}); ${interrupted ? 'run again to resume; ' : ''}summary ${join(outDir, SUMMARY_FILE)}`,
   );
+  if (runStop) return runStop.exitCode;
   if (interrupted) return EXIT_INTERRUPTED;
   return count('rejected') > 0 ? 2 : count('failed') > 0 ? 1 : 0;
+}
+
+/** The archive folder as the state file records it: absolute, links resolved, so that one folder named two ways is one archive. */
+async function archiveFolderId(archive: string): Promise<string> {
+  try {
+    if (!(await stat(archive)).isDirectory()) throw new Error('not a folder');
+    if (existsSync(join(archive, STATE_FILE))) {
+      throw new HeatpathError('CLI_USAGE', `${archive} holds ${STATE_FILE}: it is the output folder of a reprocess run, not an archive; give the archive folder`);
+    }
+    return await realpath(archive);
+  } catch (error) {
+    if (isHeatpathError(error)) throw error;
+    throw new HeatpathError('FILE_NOT_READABLE', 'the archive folder cannot be read (give a folder of transients)', { file: archive });
+  }
+}
+
+/**
+ * One OUT holds one archive's state: files of another archive have the same
+ * paths below it (M6/a.csv), and would take each other's results, summary
+ * rows and state lines. Lines written before the archive was recorded name none.
+ */
+function checkStateIsOfArchive(outcomes: Map<string, FileOutcome>, archiveId: string, outDir: string): void {
+  const other = [...outcomes.values()].find((outcome) => outcome.archive !== undefined && outcome.archive !== archiveId)?.archive;
+  if (other === undefined) return;
+  throw new HeatpathError(
+    'CLI_USAGE',
+    `--out ${outDir} holds the state of reprocessing ${other}, not ${archiveId}: give this archive its own --out, or move ${join(outDir, STATE_FILE)} aside to start that folder afresh`,
+  );
+}
+
+/**
+ * Whether an error of one file's upload is no fault of the file but ends the
+ * run, since no file would get past it: the server away (after its retries),
+ * the key refused, a route or calibration id the server does not have (404),
+ * or a request it finds malformed in what every file's shares (REQUEST_INVALID).
+ */
+function endsTheRun(error: unknown): error is HeatpathError {
+  if (!isHeatpathError(error)) return false;
+  if (error.code === 'SERVER_UNREACHABLE' || error.code === 'SERVER_ACCESS_DENIED') return true;
+  return error instanceof ServerRefusal && (error.httpStatus === 404 || error.serverCode === 'REQUEST_INVALID');
+}
+
+/** The one stderr line of an error that ended the run (endsTheRun), and the exit code it gives. */
+function runStopOf(error: unknown, file: string, target: string): RunStop {
+  if (!endsTheRun(error)) throw error;
+  if (error.code === 'SERVER_UNREACHABLE') {
+    return {
+      line: `heatpath reprocess: stopped: the server ${target} did not take ${file} (${error.detail}); check --server and the network (GET ${new URL('/health/live', target).href} answers while the service runs), then run the same command again: it sends the files not sent [SERVER_UNREACHABLE]`,
+      exitCode: 1,
+    };
+  }
+  return { line: `heatpath reprocess: stopped: ${commandLineSpelling(error.message)} Nothing is recorded for the files not sent: the command sends them when run again. [${error.code}]`, exitCode: 2 };
 }
 
 /** The first Ctrl-C ends the run after the files in progress; a second one stops the process at once (Node's default). */
@@ -190,15 +288,17 @@ function stopOnCtrlC(): { signal: AbortSignal; release: () => void } {
   return { signal: controller.signal, release: () => process.removeListener('SIGINT', onSigint) };
 }
 
-function serverProcessor(target: UploadTarget, run: string, metadata: URLSearchParams, values: Record<string, unknown>): Processor {
+/** Uploads each file; an error no file would get past (endsTheRun) is thrown, to stop the run without recording the file. */
+function serverProcessor(target: UploadTarget, run: string, metadata: URLSearchParams, values: Record<string, unknown>, archiveName: string): Processor {
   return async (_path, relativePath, bytes) => {
     const query = new URLSearchParams(metadata);
-    query.set('sample_id', uploadSampleId(values, relativePath));
+    query.set('sample_id', uploadSampleId(values, relativePath, archiveName));
     try {
       // Its rejection names the file by its path in the archive (M6/empty.csv): base names repeat across sample folders.
       const uploaded = await uploadTransient(target, run, bytes, basename(relativePath), query, relativePath);
-      return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state, ...(uploaded.warnings.length > 0 && { warnings: uploaded.warnings }) };
+      return { status: 'ok', job_id: uploaded.job_id, detail: uploaded.state, job_state: uploaded.state, ...(uploaded.warnings.length > 0 && { warnings: uploaded.warnings }) };
     } catch (error) {
+      if (endsTheRun(error)) throw error;
       return failureOf(error);
     }
   };
@@ -216,11 +316,37 @@ function localProcessor(inputs: AnalysisInputs, outDir: string, folderOf: (relat
       const run = await analyzeFiles([file], { ...inputs, outRoot: join(outDir, 'results', dirname(relativePath)), createdAt: new Date().toISOString() });
       if (run.failures.length > 0) return failureOf(run.failures[0]);
       const warnings = [...new Set(run.results.flatMap(({ result }) => result.quality.warnings))];
-      return { status: 'ok', job_id: jobId, detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W`, ...(warnings.length > 0 && { warnings }) };
+      return {
+        status: 'ok',
+        job_id: jobId,
+        detail: `Rth ${run.results.map(({ result }) => result.rth_total_K_per_W.toPrecision(4)).join(' ')} K/W`,
+        ...(warnings.length > 0 && { warnings }),
+        results: run.results.flatMap(({ outDir: folder }) => (folder === undefined ? [] : [relative(outDir, folder).split(sep).join('/')])),
+        algorithm: run.results[0]?.result.provenance.algorithm ?? ALGORITHM_VERSION,
+        rth_total_K_per_W: Object.fromEntries(run.results.map(({ result }) => [result.source.channel, result.rth_total_K_per_W])),
+      };
     } catch (error) {
       return failureOf(error);
     }
   };
+}
+
+/**
+ * Whether a file analysed here before still has its results in OUT/results/:
+ * a folder deleted since is written again. A line written before the folders
+ * were recorded is taken to have them in the folder the file's name gives
+ * (with -<channel> after it for a file of several channels).
+ */
+function localResultsPresent(outDir: string, earlier: FileOutcome, folderOf: (relativePath: string) => string): boolean {
+  if (earlier.results !== undefined) return earlier.results.every((folder) => existsSync(join(outDir, ...folder.split('/'), 'result.json')));
+  const parent = join(outDir, 'results', dirname(earlier.file));
+  const folder = folderOf(earlier.file);
+  if (existsSync(join(parent, folder, 'result.json'))) return true;
+  try {
+    return readdirSync(parent).some((name) => name.startsWith(`${folder}-`) && existsSync(join(parent, name, 'result.json')));
+  } catch {
+    return false;
+  }
 }
 
 /**
@@ -240,47 +366,80 @@ function resultFolderOf(relativePaths: string[]): (relativePath: string) => stri
   };
 }
 
-/** The summary's detail keeps the whole message, with the line and column, so the cell can be found among thousands of files. */
+/**
+ * The summary's detail keeps the whole message, with the line and column, so the cell can be found among thousands of files.
+ * A file the server refuses for its size (413: the server's limit, which its admin may raise) or an idempotency clash (409)
+ * is failed, not rejected: the next run tries it again.
+ */
 function failureOf(error: unknown): Processed {
   if (isHeatpathError(error)) {
-    return { status: error.status < 500 ? 'rejected' : 'failed', job_id: '', detail: `${error.code}: ${error.message}`, problem: userErrorLine('reprocess', error) };
+    const serverSide = error instanceof ServerRefusal && (error.httpStatus === 413 || error.httpStatus === 409);
+    return { status: error.status < 500 && !serverSide ? 'rejected' : 'failed', job_id: '', detail: `${error.code}: ${error.message}`, problem: userErrorLine('reprocess', error) };
   }
   const message = (error as Error)?.message ?? String(error);
   return { status: 'failed', job_id: '', detail: message, problem: `heatpath reprocess: ${message}` };
 }
 
-/** The sample a file is uploaded under: --sample, else its folder. */
-function uploadSampleId(values: Record<string, unknown>, relativePath: string): string {
-  return (values.sample as string | undefined) ?? sampleIdFor(relativePath);
+/** The sample a file is uploaded under: --sample, else its folder's name (DIR's own for a file directly in DIR). */
+function uploadSampleId(values: Record<string, unknown>, relativePath: string, archiveName: string): string {
+  if (values.sample !== undefined) return values.sample as string;
+  const folder = dirname(relativePath);
+  return folder === '.' ? archiveName : sampleIdOfFolder(basename(folder));
 }
 
-/** The archive's folder naming is the lab's sample naming: use the file's folder. */
-function sampleIdFor(relativePath: string): string {
-  const folder = basename(dirname(relativePath));
-  return (folder === '.' ? 'archive' : folder).replace(SAMPLE_ID, '_').replace(/^[._-]+/, '').slice(0, 128) || 'archive';
+/** The archive's folder naming is the lab's sample naming: a folder's name as a sample id (other characters than letters, digits, . _ - become _). */
+function sampleIdOfFolder(name: string): string {
+  return name.replace(SAMPLE_ID, '_').replace(/^[._-]+/, '').slice(0, 128) || 'archive';
 }
 
-async function listTransientFiles(root: string, skip: string): Promise<string[]> {
-  let entries;
-  try {
-    entries = await readdir(root, { withFileTypes: true });
-  } catch {
-    throw new HeatpathError('FILE_NOT_READABLE', 'the archive folder cannot be read', { file: root });
-  }
+/**
+ * The transient files below `root`, in name order, and the output folders of
+ * reprocess runs left out: `out` and any folder holding a state file (an
+ * earlier run's --out inside the archive: its zth.csv and result.json are
+ * results, not measurements). Hidden folders are left out too.
+ */
+async function listTransientFiles(root: string, out: string): Promise<{ files: string[]; outputFolders: string[] }> {
   const files: string[] = [];
-  for (const entry of entries.sort((a, b) => a.name.localeCompare(b.name))) {
-    const path = join(root, entry.name);
-    if (entry.isDirectory() && path !== skip && !entry.name.startsWith('.')) files.push(...(await listTransientFiles(path, skip)));
-    else if (entry.isFile() && /\.(csv|json)$/i.test(entry.name)) files.push(path);
-  }
-  return files;
+  const outputFolders: string[] = [];
+  const walk = async (folder: string): Promise<void> => {
+    let entries;
+    try {
+      entries = await readdir(folder, { withFileTypes: true });
+    } catch {
+      throw new HeatpathError('FILE_NOT_READABLE', 'the archive folder cannot be read', { file: folder });
+    }
+    if (folder !== root && (folder === out || entries.some((entry) => entry.isFile() && entry.name === STATE_FILE))) {
+      outputFolders.push(folder);
+      return;
+    }
+    for (const entry of entries.sort((a, b) => a.name.localeCompare(b.name))) {
+      const path = join(folder, entry.name);
+      if (entry.isDirectory() && !entry.name.startsWith('.')) await walk(path);
+      else if (entry.isFile() && /\.(csv|json)$/i.test(entry.name)) files.push(path);
+    }
+  };
+  await walk(root);
+  return { files, outputFolders };
 }
 
-function summaryCsv(outcomes: FileOutcome[]): string {
+const SUMMARY_COLUMNS = ['file', 'sha256', 'status', 'job_id', 'detail', 'warnings', 'done_at', 'target', 'algorithm', 'method', 'rth_total_K_per_W', 'job_state'];
+
+/**
+ * One row per file of the run, in archive order. `detail` says why a file was
+ * done again, or that it was done before (when: `done_at`), then its own;
+ * the columns after `warnings` are its provenance, for an audit.
+ */
+function summaryCsv(entries: { outcome: FileOutcome; doneBefore: boolean }[]): string {
   const quote = (text: string) => (/[",\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text);
-  // A file's warnings in one cell, apart by ' | ': one line per file keeps the summary readable by line tools (grep, wc).
-  const rows = outcomes.map((o) => [o.file, o.sha256, o.status, o.job_id, o.detail, (o.warnings ?? []).join(' | ')].map(quote).join(','));
-  return ['file,sha256,status,job_id,detail,warnings', ...rows].join('\n') + '\n';
+  const rows = entries.map(({ outcome: o, doneBefore }) => {
+    const detail = doneBefore ? `done before; ${ownDetail(o)}` : o.redone !== undefined ? `redone: ${o.redone}; ${o.detail}` : o.detail;
+    const rth = Object.entries(o.rth_total_K_per_W ?? {});
+    const rthCell = rth.length === 1 ? formatNumber(rth[0][1]) : rth.map(([channel, value]) => `${channel}=${formatNumber(value)}`).join(' ');
+    // A file's warnings in one cell, apart by ' | ': one line per file keeps the summary readable by line tools (grep, wc).
+    const cells = [o.file, o.sha256, o.status, o.job_id, detail, (o.warnings ?? []).join(' | '), o.done_at ?? '', o.target ?? '', o.algorithm ?? '', o.method ?? '', rthCell, o.job_state ?? ''];
+    return cells.map(quote).join(',');
+  });
+  return [SUMMARY_COLUMNS.join(','), ...rows].join('\n') + '\n';
 }
 
 /** A bar redrawn in place on a terminal; one plain line per file otherwise (logs, CI). */

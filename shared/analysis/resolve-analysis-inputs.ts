@@ -117,6 +117,18 @@ function kindLine(file: TransientFile): string | undefined {
 const parametersValidator = Compile(AnalysisParametersSchema);
 const powerValidator = Compile(PowerSchema);
 
+/**
+ * The parameters a caller gives, checked as resolveAnalysisInputs checks them (with the defaults for the rest) but
+ * before any file is read: a command over an archive refuses a bad option once, not once per file. Throws
+ * PARAM_INVALID naming the parameter.
+ */
+export function checkGivenParameters(given: Partial<AnalysisParameters>): void {
+  const merged = { ...defaultAnalysisParameters, ...stripUndefined(given) };
+  if (parametersValidator.Check(merged)) return;
+  const [first] = plainValidationIssues(parametersValidator.Errors(merged), '');
+  throw new HeatpathError('PARAM_INVALID', `${first?.field.replace(/^\//, '') || 'parameters'}: ${first?.message ?? 'invalid'}`);
+}
+
 /** Explicit parameters, then the file's `kind` metadata, then the schema defaults; validated by the schema. */
 function resolveParameters(given: Partial<AnalysisParameters>, file: TransientFile, fileName: string): AnalysisParameters {
   const kind = given.kind ?? kindLine(file);

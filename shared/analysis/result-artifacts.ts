@@ -70,6 +70,6 @@ function csvRows(names: string[], rows: number[][]): string {
  * written as JavaScript writes the rounded number: its shortest exact form,
  * without trailing zeros in the fraction and with the exponent whole.
  */
-function formatNumber(value: number): string {
+export function formatNumber(value: number): string {
   return String(Number(value.toPrecision(10)));
 }
