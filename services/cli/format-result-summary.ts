@@ -1,5 +1,5 @@
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
-import { formatTime as time } from './format-time.js';
+import { formatTime as time } from '../../shared/analysis/format-time.js';
 
 /** The readable summary `heatpath analyze` prints for one channel. */
 export function formatResultSummary(file: string, result: AnalysisResult, outDir?: string): string {
@@ -13,7 +13,11 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
     quality.noise_K !== null ? `  noise            ${quality.noise_K.toPrecision(2)} K RMS` : `  noise            ${quality.noise_K_per_W.toPrecision(2)} K/W RMS`,
     `  spectrum         ${result.provenance.method}, ${counted(quality.deconvolution_iterations, 'iteration')}, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
     `  Foster / Cauer   ${result.foster.length} / ${counted(result.cauer.length, 'stage')}`,
-    `  compact Foster   ${counted(compact.stages, 'stage')}, fit rms ${compact.fit_rms_K_per_W.toPrecision(2)} K/W, max ${(100 * compact.fit_max_rel).toFixed(2)} % of Rth`,
+    `  compact Foster   ${counted(compact.stages, 'stage')}, fit rms ${compact.fit_rms_K_per_W.toPrecision(2)} K/W, max ${(100 * compact.fit_max_rel).toFixed(2)} % of Rth; ` +
+      (compact.valid_from_s === null
+        ? `more than ${percent(compact.valid_tolerance_rel)} off Zth at the end`
+        : `within ${percent(compact.valid_tolerance_rel)} of Zth from ${time(compact.valid_from_s)}`),
+    `                   largest |model - Zth| / Zth per decade: ${compact.max_rel_error_by_decade.map((d) => `${time(d.from_s)} ${percent(d.max_rel_error)}`).join(', ')}`,
     '                   R [K/W]      tau [s]',
     ...compact.foster.map((s) => `                   ${fixed(s.r_K_per_W).padEnd(12)} ${s.tau_s.toExponential(3)}`),
     `  warnings         ${quality.warnings.length === 0 ? 'none' : quality.warnings.join('\n                   ')}`,
@@ -25,6 +29,11 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
 /** "1 stage", "11 stages". */
 function counted(count: number, noun: string): string {
   return `${count} ${noun}${count === 1 ? '' : 's'}`;
+}
+
+/** 0.05 -> "5.0 %", 0.48 -> "48 %". */
+function percent(fraction: number): string {
+  return `${(100 * fraction).toPrecision(2)} %`;
 }
 
 function fixed(value: number): string {

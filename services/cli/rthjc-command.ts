@@ -6,7 +6,7 @@ import { DUAL_INTERFACE_DEFAULTS, DUAL_INTERFACE_MEASURED_ERROR, dualInterfaceRt
 import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js';
 import { analyzeComparedFiles, interfaceMeasurement, type ComparedMeasurement } from './compared-measurements.js';
-import { formatTime } from './format-time.js';
+import { formatTime } from '../../shared/analysis/format-time.js';
 
 /** Said wherever the epsilon defaults are used: they are not checked against the standard's text. */
 export const EPSILON_DEFAULTS_NOTE =

@@ -13,9 +13,11 @@ import { fosterToCauer } from '../numerics/foster-to-cauer.js';
 import { cumulativeStructureFunction, differentialStructureFunction } from '../numerics/structure-function.js';
 import { cutAtSink } from '../numerics/structure-function-sink.js';
 import { fosterFromSpectrum } from '../numerics/foster-from-spectrum.js';
-import { fitCompactModel } from './fit-compact-model.js';
+import { COMPACT_VALID_TOLERANCE_REL, fitCompactModel } from './fit-compact-model.js';
+import { formatTime } from './format-time.js';
 import { fosterNetlist, cauerNetlist } from '../numerics/spice-netlist.js';
 import type { CauerLadder, FosterNetwork } from '../numerics/rc-network.js';
+import type { CompactModelValidity } from '../numerics/compact-model-validity.js';
 import type { AnalysisParameters, Power } from '../schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../schemas/analysis-result.js';
 import type { Calibration } from '../schemas/calibration.js';
@@ -203,10 +205,11 @@ function analyzeChannel(
   const cumulative = cutAtSink(cumulativeStructureFunction(cauer));
   const differential = differentialStructureFunction(cumulative);
 
-  const compact = fitCompactModel(time_s, zth.zth_K_per_W, parameters.compact_stages, steady);
+  const compact = fitCompactModel(time_s, zth.zth_K_per_W, parameters.compact_stages, steady, noise_K_per_W);
   warnings.push(...compact.warnings);
   const compactCauer = fosterToCauer(compact.foster);
   const subcircuit = `${fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '')}_${channelName}`;
+  const validityComments = compactValidityComments(compact.validity);
   const rth = steady.rth_K_per_W;
 
   return {
@@ -228,9 +231,12 @@ function analyzeChannel(
       cauer: cauerStages(compactCauer),
       fit_rms_K_per_W: compact.rms_K_per_W,
       fit_max_rel: compact.max_abs_K_per_W / rth,
+      valid_tolerance_rel: COMPACT_VALID_TOLERANCE_REL,
+      valid_from_s: compact.validity.valid_from_s,
+      max_rel_error_by_decade: compact.validity.by_decade,
       spice: {
-        foster: fosterNetlist(compact.foster, { name: `${subcircuit}_foster` }),
-        cauer: cauerNetlist(compactCauer, { name: `${subcircuit}_cauer` }),
+        foster: fosterNetlist(compact.foster, { name: `${subcircuit}_foster`, comments: validityComments }),
+        cauer: cauerNetlist(compactCauer, { name: `${subcircuit}_cauer`, comments: validityComments }),
       },
     },
     early_time: {
@@ -253,6 +259,18 @@ function analyzeChannel(
     provenance,
     caution: RESULT_CAUTION,
   };
+}
+
+/** The netlists' header lines saying from when the model follows the measured Zth, and how far off it is before. */
+function compactValidityComments(validity: CompactModelValidity): string[] {
+  const tolerance = `${100 * COMPACT_VALID_TOLERANCE_REL} %`;
+  const byDecade = validity.by_decade.map((decade) => `${formatTime(decade.from_s)} ${(100 * decade.max_rel_error).toPrecision(2)} %`).join(', ');
+  return [
+    validity.valid_from_s === null
+      ? `Valid: nowhere; more than ${tolerance} off the measured Zth at the record's end`
+      : `Valid from ${formatTime(validity.valid_from_s)}: within ${tolerance} of the measured Zth from then on; shorter pulses are off by more`,
+    `Largest |model - Zth| / Zth in the decade from ${byDecade}`,
+  ];
 }
 
 function fosterStages(foster: FosterNetwork): AnalysisResult['foster'] {

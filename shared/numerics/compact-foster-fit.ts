@@ -40,7 +40,8 @@ export interface CompactFosterFit {
  */
 export const MAX_TAU_PER_LAST_TIME = 1;
 
-const MAX_STAGES = 12;
+/** The most stages a compact model may have (the parameter compact_stages allows up to this). */
+export const MAX_COMPACT_STAGES = 12;
 const MAX_ITERATIONS = 200;
 /** Stop when an accepted step improves the sum of squares by less than this fraction. */
 const RELATIVE_IMPROVEMENT_STOP = 1e-10;
@@ -322,8 +323,8 @@ function solveDamped(normal: Float64Array, gradient: Float64Array, width: number
 }
 
 function assertFitInput(time_s: Float64Array, zth: Float64Array, stages: number): void {
-  if (!Number.isInteger(stages) || stages < 1 || stages > MAX_STAGES) {
-    throw new HeatpathError('PARAM_INVALID', `compact model stages = ${stages} (need an integer from 1 to ${MAX_STAGES}; datasheets use 4 to 6)`);
+  if (!Number.isInteger(stages) || stages < 1 || stages > MAX_COMPACT_STAGES) {
+    throw new HeatpathError('PARAM_INVALID', `compact model stages = ${stages} (need an integer from 1 to ${MAX_COMPACT_STAGES}; datasheets use 4 to 6)`);
   }
   if (time_s.length !== zth.length) {
     throw new HeatpathError('NUMERICS_INVALID_INPUT', `compact Foster fit: ${time_s.length} times and ${zth.length} Zth values`);

@@ -11,6 +11,8 @@ import { assertPositiveStages, type CauerLadder, type FosterNetwork } from './rc
 export interface NetlistOptions {
   /** Subcircuit name; characters SPICE does not accept in a name become '_'. */
   name: string;
+  /** Lines said in the header, each written as a comment (how far the model can be trusted, for example). */
+  comments?: string[];
 }
 
 const CAUTION =
@@ -27,7 +29,7 @@ export function fosterNetlist(foster: FosterNetwork, options: NetlistOptions): s
     lines.push(`R${i + 1} ${nodeName(i, n)} ${nodeName(i + 1, n)} ${formatValue(r[i])}`);
     lines.push(`C${i + 1} ${nodeName(i, n)} ${nodeName(i + 1, n)} ${formatValue(tau[i] / r[i])}`);
   }
-  return subcircuit(options.name, `Foster network, ${n} stages`, r, lines);
+  return subcircuit(options, `Foster network, ${n} stages`, r, lines);
 }
 
 /** Cauer ladder: C_k from node k to reference, R_k from node k to node k + 1, the last R to reference. */
@@ -40,7 +42,7 @@ export function cauerNetlist(ladder: CauerLadder, options: NetlistOptions): stri
     lines.push(`C${k + 1} ${nodeName(k, n)} reference ${formatValue(c[k])}`);
     lines.push(`R${k + 1} ${nodeName(k, n)} ${nodeName(k + 1, n)} ${formatValue(r[k])}`);
   }
-  return subcircuit(options.name, `Cauer ladder, ${n} stages`, r, lines);
+  return subcircuit(options, `Cauer ladder, ${n} stages`, r, lines);
 }
 
 /** A SPICE name: letters, digits and '_', starting with a letter. */
@@ -55,8 +57,8 @@ function nodeName(k: number, n: number): string {
   return k === 0 ? 'junction' : k === n ? 'reference' : `n${k}`;
 }
 
-function subcircuit(name: string, description: string, r: Float64Array, elements: string[]): string {
-  const safeName = sanitiseSubcircuitName(name);
+function subcircuit(options: NetlistOptions, description: string, r: Float64Array, elements: string[]): string {
+  const safeName = sanitiseSubcircuitName(options.name);
   let rth = 0;
   for (const value of r) rth += value;
   return [
@@ -64,6 +66,7 @@ function subcircuit(name: string, description: string, r: Float64Array, elements
     '* Units: current = heat flow (W), voltage = temperature rise (K),',
     '*        resistance = thermal resistance (K/W), capacitance = heat capacity (J/K)',
     `* Stages: ${r.length}; their R add up to ${formatValue(rth)} K/W (the steady state of this model)`,
+    ...(options.comments ?? []).map((line) => `* ${line.replace(/[\r\n]+/g, ' ')}`),
     CAUTION,
     `.SUBCKT ${safeName} junction reference`,
     ...elements,

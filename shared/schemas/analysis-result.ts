@@ -36,7 +36,16 @@ export const AnalysisResultSchema = Type.Object({
     foster: Type.Array(FosterStageSchema),
     cauer: Type.Array(CauerStageSchema),
     fit_rms_K_per_W: Type.Number(),
-    fit_max_rel: Type.Number({ description: 'Largest |fit - Zth| / Rth total over the data.' }),
+    fit_max_rel: Type.Number({ description: 'Largest |fit - Zth| / Rth total over the data: small even where the model is far off Zth at short times, where Zth is small; see valid_from_s.' }),
+    valid_tolerance_rel: Type.Number({ description: 'The relative error |model - Zth| / Zth that valid_from_s is stated for (0.05).' }),
+    valid_from_s: Type.Union([Type.Number(), Type.Null()], {
+      description:
+        'The time from which the model stays within valid_tolerance_rel of Zth (averaged onto 20 points per decade of log time, the curve it was fitted to) up to the record\'s end; null when it is outside at the end. Before it, pulses simulated with the model are off by more.',
+    }),
+    max_rel_error_by_decade: Type.Array(
+      Type.Object({ from_s: Type.Number(), to_s: Type.Number(), max_rel_error: Type.Number() }),
+      { description: 'Largest |model - Zth| / Zth in each decade of time (cut to the record), on the same averaged curve.' },
+    ),
     spice: Type.Object({ foster: Type.String(), cauer: Type.String() }),
   }),
   early_time: Type.Object({

@@ -70,7 +70,7 @@ for (let run = 0; run < files.length; run++) {
   const foster = fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W);
   const [cauer, tCauer] = time(() => fosterToCauer(foster));
   const [, tStructure] = time(() => differentialStructureFunction(cumulativeStructureFunction(cauer)));
-  const [, tCompact] = time(() => fitCompactModel(parsed.time_s, zth.zth_K_per_W, defaultAnalysisParameters.compact_stages, steady));
+  const [, tCompact] = time(() => fitCompactModel(parsed.time_s, zth.zth_K_per_W, defaultAnalysisParameters.compact_stages, steady, noise_K / POWER_W));
   const [, tWhole] = time(() => analyzeTransientFile({ bytes, fileName: 'bench.csv' }, '2026-01-01T00:00:00.000Z'));
   if (warm) continue;
   record('parse CSV', tParse);
