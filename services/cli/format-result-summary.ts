@@ -7,6 +7,7 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
   const lines = [
     `${file}  channel ${result.source.channel}  (${result.source.quantity}, ${result.source.points} samples)`,
     `  Rth total        ${fixed(result.rth_total_K_per_W)} K/W` + (result.power_W !== null ? `   at P = ${result.power_W.toPrecision(4)} W` : ''),
+    ...calibrationLines(result.provenance.calibration),
     // The fit's value at t = 0 is used either way; `applied` says whether samples before the window were replaced.
     `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}, ` +
       `value at t = 0 ${early.t0_value.toPrecision(6)} +- ${early.t0_standard_error.toPrecision(2)}${early.applied ? '; the samples before the window replaced by the fit' : ''}`,
@@ -24,6 +25,17 @@ export function formatResultSummary(file: string, result: AnalysisResult, outDir
   ];
   if (outDir) lines.push(`  written to       ${outDir}/`);
   return lines.join('\n') + '\n';
+}
+
+/** The calibration that converted the channel: model, residual, ranges, points, sample and id; none for temperature or Zth input. */
+function calibrationLines(calibration: AnalysisResult['provenance']['calibration']): string[] {
+  if (calibration === null) return [];
+  const { temperature_range_C: t, voltage_range_V: v } = calibration;
+  return [
+    `  calibration      ${calibration.model}, residual ${calibration.residual_rms_K === null ? 'not estimable (two points)' : `${calibration.residual_rms_K.toPrecision(3)} K RMS`}, ` +
+      `${t[0]} .. ${t[1]} degC over ${v[0]} .. ${v[1]} V, ${counted(calibration.points, 'point')}` +
+      `${calibration.sample === null ? '' : `, sample ${calibration.sample}`}, id ${calibration.id.slice(0, 12)}`,
+  ];
 }
 
 /** "1 stage", "11 stages". */

@@ -6,6 +6,7 @@ import { estimateNoiseRms } from '../numerics/noise-estimate.js';
 import { kelvinTemperatureWarning } from '../numerics/kelvin-temperature-warning.js';
 import { KELVIN_SPARES_ZTH } from './kelvin-column-warning.js';
 import { calibrationExtrapolationWarnings, voltageToTemperature } from '../numerics/tsp-calibration.js';
+import { largeResidualWarning } from '../numerics/tsp-calibration-warnings.js';
 import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } from '../numerics/zth-from-temperature.js';
 import { steadyStateRth } from '../numerics/steady-state.js';
 import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
@@ -84,6 +85,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     method: parameters.method,
     parameters,
     input_sha256: sha256(input.bytes),
+    calibration: null,
     calibration_sha256: null,
     created_at: createdAt,
   };
@@ -91,10 +93,28 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
   return eachChannel(file, { power_W, channelPowers }, input.fileName, (channel, channelPower_W) => {
     // Each channel's result names the calibration that converted it.
     const calibration = calibrations?.get(channel.name);
-    const channelProvenance = { ...provenance, calibration_sha256: calibration ? calibrationIdOf(calibration) : null };
-    const warnings = [...inputWarnings, ...(calibration ? calibrationSampleWarning(calibration, sample) : []), ...(channelWarnings.get(channel.name) ?? [])];
+    const named = calibration ? calibrationNamed(calibration) : null;
+    const channelProvenance = { ...provenance, calibration: named, calibration_sha256: named?.id ?? null };
+    const warnings = [
+      ...inputWarnings,
+      ...(calibration ? [...calibrationSampleWarning(calibration, sample), ...largeResidualWarning(calibration, '').map((warning) => `calibration: ${warning}`)] : []),
+      ...(channelWarnings.get(channel.name) ?? []),
+    ];
     return analyzeChannel(file, channel.values, channel.name, parameters, channelPower_W, calibration, channelProvenance, input.fileName, warnings);
   });
+}
+
+/** What a result says of the calibration that converted its channel: what its id covers, without the coefficients. */
+function calibrationNamed(calibration: Calibration): NonNullable<AnalysisResult['provenance']['calibration']> {
+  return {
+    id: calibrationIdOf(calibration),
+    model: calibration.model,
+    residual_rms_K: calibration.residual_rms_K,
+    voltage_range_V: calibration.voltage_range_V,
+    temperature_range_C: calibration.temperature_range_C,
+    points: calibration.points,
+    sample: calibration.sample ?? null,
+  };
 }
 
 /**

@@ -44,12 +44,8 @@ export function calibrationWarnings(calibration: Calibration, temperature_C: Flo
       `a ${calibration.model} calibration through exactly ${calibration.points} points (the two-point K-factor, common practice): it fits any ${calibration.points} points exactly, ` +
         'so its residual is not estimable (null) and it cannot show a non-linear TSP or a bad point; a sweep of five or more temperatures across the range measured shows both.',
     );
-  } else if (calibration.residual_rms_K > CALIBRATION_RESIDUAL_WARNING_K) {
-    warnings.push(
-      `the ${calibration.model} fit leaves a residual RMS of ${calibration.residual_rms_K.toPrecision(3)} K (above ${CALIBRATION_RESIDUAL_WARNING_K} K): ` +
-        `junction temperatures from this calibration carry errors of that size. ${againstTrend(temperature_C, voltage_V)}` +
-        'Check the points for swapped rows or steps taken before the device settled, or try another model.',
-    );
+  } else {
+    warnings.push(...largeResidualWarning(calibration, againstTrend(temperature_C, voltage_V)));
   }
   const [lowest_V, highest_V] = calibration.voltage_range_V;
   const largest_V = Math.max(Math.abs(lowest_V), Math.abs(highest_V));
@@ -69,6 +65,20 @@ export function calibrationWarnings(calibration: Calibration, temperature_C: Flo
     ),
   );
   return warnings;
+}
+
+/**
+ * The warning of a residual RMS above CALIBRATION_RESIDUAL_WARNING_K, in the words of `heatpath calibrate` and of
+ * an analysis with the calibration alike; `aboutThePoints` is a sentence about the sweep's points where they are at
+ * hand (the fit), '' where they are not (the analysis, which has the calibration only).
+ */
+export function largeResidualWarning(calibration: Pick<Calibration, 'model' | 'residual_rms_K'>, aboutThePoints: string): string[] {
+  if (calibration.residual_rms_K === null || !(calibration.residual_rms_K > CALIBRATION_RESIDUAL_WARNING_K)) return [];
+  return [
+    `the ${calibration.model} fit leaves a residual RMS of ${calibration.residual_rms_K.toPrecision(3)} K (above ${CALIBRATION_RESIDUAL_WARNING_K} K): ` +
+      `junction temperatures from this calibration carry errors of that size. ${aboutThePoints}` +
+      'Check the points for swapped rows or steps taken before the device settled, or try another model.',
+  ];
 }
 
 /**

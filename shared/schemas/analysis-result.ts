@@ -71,6 +71,21 @@ export const AnalysisResultSchema = Type.Object({
     method: Type.String(),
     parameters: AnalysisParametersSchema,
     input_sha256: Type.String(),
+    calibration: Type.Union(
+      [
+        Type.Object({
+          id: Type.String({ description: 'The same as calibration_sha256.' }),
+          model: Type.String(),
+          residual_rms_K: Type.Union([Type.Number(), Type.Null()], { description: "RMS of the fit's residuals at the sweep's points; null for a line through two points." }),
+          voltage_range_V: Type.Tuple([Type.Number(), Type.Number()]),
+          temperature_range_C: Type.Tuple([Type.Number(), Type.Number()]),
+          points: Type.Integer(),
+          sample: Type.Union([Type.String(), Type.Null()], { description: "The device swept (the sweep's `# sample:` line); null when the sweep named none." }),
+        }),
+        Type.Null(),
+      ],
+      { description: 'The calibration that converted this channel, as far as its id covers it (what the analysis depends on); null when none was used.' },
+    ),
     calibration_sha256: Type.Union([Type.String(), Type.Null()], { description: "The id of the calibration that converted this channel (calibration-id.ts: SHA-256 of its canonical JSON without its warnings, created_at, source and bench): the service's calibration_id, or calibration_id@CHANNEL for a channel's own; null when none was used." }),
     created_at: Type.String(),
   }),
