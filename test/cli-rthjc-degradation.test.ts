@@ -68,6 +68,12 @@ describe('heatpath rthjc', () => {
     expect(run.stdout).toContain('recalled from JESD51-14 (2010) from memory');
     expect(run.stdout).toContain(`Caution: ${RESULT_CAUTION}`);
     expect(run.stdout).toMatch(/accuracy\s+against the exact Rth-JC of \d+ synthetic/);
+    // The A and B lines: labels in the column of the other labels, both Rth totals in one column.
+    const lineOf = (label: string) => run.stdout.split('\n').find((line) => line.startsWith(`  ${label} `))!;
+    const [a, b, zth] = [lineOf('A'), lineOf('B'), lineOf('Zth difference')];
+    expect(a.indexOf(dry)).toBe(zth.indexOf('Rth-JC'));
+    expect(b.indexOf(greased)).toBe(zth.indexOf('Rth-JC'));
+    expect(a.indexOf('Rth total')).toBe(b.indexOf('Rth total'));
   });
 
   it("says what the pair gives away: the same measurement twice, different powers, curves that part at their start; and the files' own warnings in text too", () => {

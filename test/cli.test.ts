@@ -330,7 +330,7 @@ describe('heatpath analyze text summary of the early time', () => {
     const result = JSON.parse(heatpath('analyze', path, '--format', 'json').stdout);
     expect(result.early_time.applied).toBe(false);
     const summary = heatpath('analyze', path).stdout;
-    expect(summary).toMatch(new RegExp(`early time {7}sqrt\\(t\\) fit .*value at t = 0 ${result.early_time.t0_value.toPrecision(6)} \\+- `));
+    expect(summary).toMatch(new RegExp(`early time {7}sqrt\\(t\\) fit .*Tj at t = 0 ${result.early_time.t0_value.toPrecision(6)} \\+- [\\d.e-]+ degC`));
     expect(summary).not.toMatch(/not applied|replaced by the fit/);
   });
 });

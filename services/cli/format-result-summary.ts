@@ -1,16 +1,21 @@
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
 import { formatTime as time } from '../../shared/analysis/format-time.js';
+import { rthTotalStandardUncertainty_K_per_W } from '../../shared/analysis/rth-total-uncertainty.js';
 
 /** The readable summary `heatpath analyze` prints for one channel. */
 export function formatResultSummary(file: string, result: AnalysisResult, outDir?: string): string {
   const { early_time: early, quality, compact } = result;
+  // The sqrt(t) fit runs on Tj in degC (temperature and voltage input) or on the Zth input in K/W, whose offset it removes.
+  const earlyUnit = result.source.quantity === 'zth_K_per_W' ? { residual: 'K/W', t0: 'Zth offset at t = 0', value: 'K/W' } : { residual: 'K', t0: 'Tj at t = 0', value: 'degC' };
   const lines = [
     `${file}  channel ${result.source.channel}  (${result.source.quantity}, ${result.source.points} samples)`,
-    `  Rth total        ${fixed(result.rth_total_K_per_W)} K/W` + (result.power_W !== null ? `   at P = ${result.power_W.toPrecision(4)} W` : ''),
+    `  Rth total        ${fixed(result.rth_total_K_per_W)} K/W +- ${rthTotalStandardUncertainty_K_per_W(result).toPrecision(2)} K/W (standard uncertainty, from the noise)` +
+      (result.power_W !== null ? `   at P = ${result.power_W.toPrecision(4)} W` : ''),
     ...calibrationLines(result.provenance.calibration),
     // The fit's value at t = 0 is used either way; `applied` says whether samples before the window were replaced.
-    `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${early.automatic ? 'automatic' : 'given'}), residual ${early.residual_rms.toPrecision(2)}, ` +
-      `value at t = 0 ${early.t0_value.toPrecision(6)} +- ${early.t0_standard_error.toPrecision(2)}${early.applied ? '; the samples before the window replaced by the fit' : ''}`,
+    `  early time       sqrt(t) fit ${time(early.window_start_s)} .. ${time(early.window_end_s)} (${windowChosen(result.provenance.parameters)}), ` +
+      `residual ${early.residual_rms.toPrecision(2)} ${earlyUnit.residual} RMS, ${earlyUnit.t0} ${early.t0_value.toPrecision(6)} +- ${early.t0_standard_error.toPrecision(2)} ${earlyUnit.value}` +
+      `${early.applied ? '; the samples before the window replaced by the fit' : ''}`,
     quality.noise_K !== null ? `  noise            ${quality.noise_K.toPrecision(2)} K RMS` : `  noise            ${quality.noise_K_per_W.toPrecision(2)} K/W RMS`,
     `  spectrum         ${result.provenance.method}, ${counted(quality.deconvolution_iterations, 'iteration')}, ${result.spectrum.tau_s.length} bins ${time(result.spectrum.tau_s[0])} .. ${time(result.spectrum.tau_s[result.spectrum.tau_s.length - 1])}`,
     `  Foster / Cauer   ${result.foster.length} / ${counted(result.cauer.length, 'stage')}`,
@@ -36,6 +41,16 @@ function calibrationLines(calibration: AnalysisResult['provenance']['calibration
       `${t[0]} .. ${t[1]} degC over ${v[0]} .. ${v[1]} V, ${counted(calibration.points, 'point')}` +
       `${calibration.sample === null ? '' : `, sample ${calibration.sample}`}, id ${calibration.id.slice(0, 12)}`,
   ];
+}
+
+/** Which ends of the sqrt(t) window were given (early_time_start_s, early_time_end_s) and which found automatically. */
+function windowChosen(parameters: AnalysisResult['provenance']['parameters']): string {
+  const start = parameters.early_time_start_s !== undefined;
+  const end = parameters.early_time_end_s !== undefined;
+  if (start && end) return 'given';
+  if (start) return 'start given, end automatic';
+  if (end) return 'end given, start automatic';
+  return 'automatic';
 }
 
 /** "1 stage", "11 stages". */

@@ -108,10 +108,12 @@ export function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comp
   const lowerMark = (which: 'first' | 'second') => (comparison.lower === which ? '   (lower curve: the better interface)' : '');
   const rthjc = (value: number | null) => (comparison.not_one_device !== null ? 'withheld (not one device, see below)' : value === null ? 'not found' : `${value.toPrecision(4)} K/W`);
   const warnings = rthjcWarnings(a, b, comparison);
+  const fileWidth = Math.max(a.file.length, b.file.length);
   const lines = [
     'Junction-to-case resistance by two interfaces (transient dual interface method, JESD51-14)',
-    `  A  ${a.file}   Rth total ${a.result.rth_total_K_per_W.toPrecision(4)} K/W${lowerMark('first')}`,
-    `  B  ${b.file}   Rth total ${b.result.rth_total_K_per_W.toPrecision(4)} K/W${lowerMark('second')}`,
+    // The labels in the column of the others, the files padded to one width so that both Rth totals line up.
+    `  ${'A'.padEnd(22)}${a.file.padEnd(fileWidth)}   Rth total ${a.result.rth_total_K_per_W.toPrecision(4)} K/W${lowerMark('first')}`,
+    `  ${'B'.padEnd(22)}${b.file.padEnd(fileWidth)}   Rth total ${b.result.rth_total_K_per_W.toPrecision(4)} K/W${lowerMark('second')}`,
     `  Zth difference        Rth-JC ${rthjc(zth.rthjc_K_per_W)}` +
       (zth.separation_time_s !== null && zth.epsilon_K_per_W !== null ? `   separation at ${formatTime(zth.separation_time_s)}, epsilon ${zth.epsilon_K_per_W.toPrecision(2)} K/W` : ''),
     `                        epsilon = ${zth.epsilon_slope} x Rth-JC + ${zth.epsilon_offset_K_per_W} K/W; noise of delta ${zth.delta_noise_K_per_W.toPrecision(2)} K/W RMS`,
