@@ -11,6 +11,7 @@ import { heatingPower_W, zthFromTemperature, zthFromZthInput, type ZthCurve } fr
 import { steadyStateRth } from '../numerics/steady-state.js';
 import { timeConstantSpectrum } from '../numerics/time-constant-spectrum.js';
 import { fosterToCauer } from '../numerics/foster-to-cauer.js';
+import { mergeNegligibleCauerTail } from '../numerics/cauer-negligible-tail.js';
 import { cumulativeStructureFunction, differentialStructureFunction } from '../numerics/structure-function.js';
 import { cutAtSink } from '../numerics/structure-function-sink.js';
 import { fosterFromSpectrum } from '../numerics/foster-from-spectrum.js';
@@ -221,7 +222,7 @@ function analyzeChannel(
   warnings.push(...spectrum.warnings);
 
   const foster = fosterFromSpectrum(spectrum.tau_s, spectrum.r_K_per_W);
-  const cauer = fosterToCauer(foster);
+  const cauer = mergeNegligibleCauerTail(fosterToCauer(foster));
   const cumulative = cutAtSink(cumulativeStructureFunction(cauer));
   const differential = differentialStructureFunction(cumulative);
 
