@@ -58,7 +58,7 @@ export function fitCompactModel(
     : [];
   const fastest = foster.tau_s[0];
   if (fastest < time_s[0]) {
-    warnings.push(`${COMPACT_MODEL_WARNING} its fastest stage (tau ${fastest.toPrecision(3)} s) is faster than the first sample at ${time_s[0].toPrecision(3)} s; it stands for the rise before the curve starts, not for a layer`);
+    warnings.push(`${COMPACT_MODEL_WARNING} its fastest stage (tau ${formatTime(fastest)}) is faster than the first sample at ${formatTime(time_s[0])}; it stands for the rise before the curve starts, not for a layer`);
   }
   const total_K_per_W = foster.r_K_per_W.reduce((sum, r) => sum + r, 0);
   const rth_K_per_W = steadyState.rth_K_per_W;
