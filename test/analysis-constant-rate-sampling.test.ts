@@ -1,7 +1,7 @@
 /**
  * Records sampled at a constant rate, as many benches take them: 10 or 100 kS/s up to 1 s, then 100 samples per
  * decade to 1000 s; cooling of the two example stacks by 60 K, 0.02 K RMS noise, no artefact. Truth: the exact
- * Foster form of each stack's fine 1-D ladder (tridiagonal eigendecomposition, method-notes §7), so
+ * Foster form of each stack's fine 1-D ladder (tridiagonal eigendecomposition, shared/models/layered-stack.ts), so
  * Tj(0) = 30 degC + P Rth exactly.
  *
  * The sqrt(t) window used to be ranked by its count of samples. At a constant rate a later window holds more

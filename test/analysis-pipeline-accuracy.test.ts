@@ -1,7 +1,7 @@
 /**
  * Whole-pipeline accuracy on synthetic bench curves of layered 1-D stacks
  * whose exact Foster form and structure function come from the tridiagonal
- * eigendecomposition of a fine Cauer ladder (method-notes §7: a truth
+ * eigendecomposition of a fine Cauer ladder (shared/models/layered-stack.ts: a truth
  * generator independent of the analysis). Targets from the project's issue:
  * P x Rth about 60 K, noise up to 0.02 K RMS, 1 us .. 100 s at 100
  * samples/decade, an 8 us electrical artefact; Rth total within 0.5 %;

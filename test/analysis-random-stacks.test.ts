@@ -5,7 +5,7 @@
  * so that the accuracy figures do not rest on the two example stacks the
  * method was developed on. Truth: the exact Foster form and structure
  * function of each stack's fine 1-D ladder from its tridiagonal
- * eigendecomposition (method-notes §7). Bench curves as the project's
+ * eigendecomposition (shared/models/layered-stack.ts). Bench curves as the project's
  * accuracy target describes them: cooling, P x Rth = 60 K, 0.02 K RMS
  * noise, 1 us .. 100 s at 100 samples per decade, an 8 us electrical
  * artefact, temperature_C.

@@ -2,7 +2,7 @@
  * A glitch in a record: one sample far off the curve (a missed trigger, a bit error in the bench's ADC). No sum of
  * rising exponentials follows it, so the time-constant spectrum, the networks and the structure functions carry it
  * while Rth total, read at the end, does not show it. Truth: the exact Foster form of the TO-247 example stack (fine
- * 1-D ladder, tridiagonal eigendecomposition, method-notes section 7); cooling by 60 K, 0.02 K RMS noise, 1 us to
+ * 1-D ladder, tridiagonal eigendecomposition, shared/models/layered-stack.ts); cooling by 60 K, 0.02 K RMS noise, 1 us to
  * 100 s at 100 samples per decade. *Common practice*: a fit whose residual is several times the noise does not
  * describe the data.
  */

@@ -2,7 +2,7 @@
  * Records that start at 100 us, as some benches take them: the TO-247 example stack (a 250 um silicon die,
  * heat crosses it by d^2 / alpha = 0.7 ms), cooling after 10 or 20 W, 100 us .. 100 s at 15 samples per
  * decade, 0.08 K RMS noise, no artefact. Truth: the exact Foster form of the stack's fine 1-D ladder
- * (tridiagonal eigendecomposition, method-notes §7), so Tj(0) = 30 degC + P Rth exactly.
+ * (tridiagonal eigendecomposition, shared/models/layered-stack.ts), so Tj(0) = 30 degC + P Rth exactly.
  *
  * The automatic sqrt(t) window used to run on to some 0.3 s, through the spread of heat in the tab and
  * heatsink, which a straight line in sqrt(t) also fits within this noise: Tj(0) came out 0.6-1.4 K low,

@@ -1,7 +1,7 @@
 /**
  * The Carslaw & Jaeger finite slab through the whole pipeline: a slab heated
  * by a uniform flux on one face with the other face isothermal (Conduction of
- * Heat in Solids, 2nd ed., 1959; method-notes §7) has the Foster series
+ * Heat in Solids, 2nd ed., 1959) has the Foster series
  * R_n = 8 Rth / ((2n-1)^2 pi^2), tau_n = 4 L^2 / ((2n-1)^2 pi^2 alpha),
  * Rth = L / (k A), and its cumulative structure function is the straight line
  * C_sum = c_v k A^2 R_sum. The series is summed to a Zth, written as a

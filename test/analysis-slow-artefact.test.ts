@@ -1,7 +1,7 @@
 /**
  * Electrical artefacts that decay slowly, over tens of microseconds after switching (a slow sense-current
  * settling, a large module's gate and charge-recovery tail): the example stacks' exact Foster form (fine
- * 1-D ladder, tridiagonal eigendecomposition, method-notes §7) gives Tj(0) = 25 degC + P Rth exactly, and
+ * 1-D ladder, tridiagonal eigendecomposition, shared/models/layered-stack.ts) gives Tj(0) = 25 degC + P Rth exactly, and
  * the project's synthetic artefact, a disturbance decaying as (1 - t / t_a)^2 to zero at t_a, is added.
  *
  * Within 100 us such a tail is smooth, and a short window inside it passes the sqrt(t) law's noise test

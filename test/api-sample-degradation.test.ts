@@ -4,7 +4,7 @@
  * the bundled synthetic campaign of module M31 (test/fixtures/demo-lab: the
  * SiC module stack whose die attach keeps 100, 90, 70 and 45 % of its
  * conductivity at 0, 20 000, 40 000 and 60 000 cycles). Expected values: the
- * stack's exact ladder (method-notes section 7, shared/models/layered-stack.ts)
+ * stack's exact ladder (tridiagonal eigendecomposition, shared/models/layered-stack.ts)
  * says where the die attach sits and what R the crack adds; the tolerances
  * are those of test/cli-rthjc-degradation.test.ts. The trend must also equal
  * what `heatpath degradation` reports for the same files.

@@ -12,7 +12,7 @@ import { layeredStackTruth } from '../shared/models/layered-stack.js';
 
 describe('compact Foster fit', () => {
   // Truth: the exact Foster form of 24 seeded random stacks' fine 1-D ladders (tridiagonal eigendecomposition,
-  // method-notes section 7). A fastest tau bounded three decades below the first time let the fit park a stage at
+  // shared/models/layered-stack.ts). A fastest tau bounded three decades below the first time let the fit park a stage at
   // that bound on 4 of them (1 to 30 ns), a local minimum: the stage is wasted and the fit was up to 0.8 % of Rth off
   // (measured; 0.36 % at most with the bound a decade below, where the others did not change).
   it('on random layered stacks from 1 us, puts no stage faster than 0.1 us and fits 5 stages to 0.4 % of Rth', () => {

@@ -4,7 +4,7 @@
  * junction to the case surface, i.e. through the copper baseplate of the SiC
  * module or the copper tab of the TO-247-like part, summed over the exact
  * ladder's stages by the layer each lies in (shared/models/layered-stack.ts,
- * method-notes §7). The "dry" interface is the same stack with the grease
+ * tridiagonal eigendecomposition). The "dry" interface is the same stack with the grease
  * layer at 1/6 of its conductivity (0.5 instead of 3 W/(m K), about
  * 1 K cm^2/W, the order of a dry metal contact (memory)).
  *

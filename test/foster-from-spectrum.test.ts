@@ -10,7 +10,8 @@ describe('fosterFromSpectrum', () => {
     const foster = fosterFromSpectrum(tau_s, r_K_per_W);
     expect(Array.from(foster.tau_s)).toEqual([1e-4, 1e-2, 1e-1]);
     expect(Array.from(foster.r_K_per_W)).toEqual([0.2, 0.3, 0.5]);
-    // The network's step response ends at the sum of R (Foster partial-fraction form, method-notes §4).
+    // The network's step response ends at the sum of R (Foster partial-fraction form,
+    // Zth(t) = sum R_i (1 - exp(-t / tau_i)) -> sum R_i as t -> infinity).
     expect(zthFromFoster(foster.r_K_per_W, foster.tau_s, Float64Array.from([1e3]))[0]).toBeCloseTo(1, 12);
   });
 

@@ -2,7 +2,7 @@
  * Whole-chain accuracy of the time-constant spectrum, judged where it matters:
  * spectrum -> Foster -> Cauer -> cumulative structure function, against the
  * exact structure function of the fine 1-D ladder the transient came from
- * (method-notes section 7: the ladder's exact Foster form from its tridiagonal
+ * (shared/models/layered-stack.ts: the ladder's exact Foster form from its tridiagonal
  * eigendecomposition; Szekely & Van Bien, Solid-State Electronics 31, 1988,
  * for the structure function). Error: |log10 C_sum(estimate) - log10 C_sum(exact)|
  * at the same R_sum, on 5-90 % of Rth, per curve (median and 90th percentile).

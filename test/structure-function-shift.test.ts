@@ -3,12 +3,12 @@
  * (shared/numerics/structure-function-shift.ts) on the SiC power module of
  * shared/models/example-stacks.ts with its die attach losing conductivity, as
  * in a power-cycling campaign. Truth: the exact ladder of each stack
- * (shared/models/layered-stack.ts, method-notes §7) says where the die attach
+ * (shared/models/layered-stack.ts, tridiagonal eigendecomposition) says where the die attach
  * lies (R_sum from the end of the SiC die to the end of the attach, about
  * 0.030 .. 0.106 K/W) and what it adds (the difference of the two attach
  * resistances, L / (k A) per layer). That a cracked attach adds R where it
  * sits and shifts everything beyond by that amount is the reading of
- * structure functions in power-cycling practice (method-notes §5, common
+ * structure functions in power-cycling practice (Szekely & Van Bien, Solid-State Electronics 31, 1988; common
  * practice).
  *
  * Tolerances: on exact structure functions the start falls inside the attach

@@ -134,7 +134,8 @@ describe('time-constant spectrum of known Foster networks', () => {
   const rth = 0.75;
   for (const method of ['bayes', 'fourier'] as const) {
     // A Foster network's spectrum is a line at each tau_i with weight R_i (Szekely & Van Bien 1988);
-    // time constants a factor 10 apart are resolvable at 1e-4 relative noise (method-notes resolution limit).
+    // time constants a factor 10 apart are resolvable at 1e-4 relative noise (the usable band ends where
+    // |W|^2 = pi*Omega/sinh(pi*Omega) falls to the noise; Szekely, IEEE TCAS-I 45(3), 1998).
     it(`${method}: peaks within 0.1 decade of each tau and a sum within 1 % of Rth`, () => {
       const noise = 1e-4 * rth;
       const spectrum = timeConstantSpectrum(time_s, fosterZth(r, tau, time_s, noise, 3), { method, pointsPerDecade: 40, noise_K_per_W: noise });

@@ -5,7 +5,7 @@
  * thermal grease), both transients taken the same way. Heat flows through
  * the same package in both until it reaches the case surface, so the two Zth
  * curves, and the two structure functions, coincide up to there and separate
- * beyond (method-notes §6). Two criteria locate the separation:
+ * beyond (JESD51-14, 2010). Two criteria locate the separation:
  *
  * Zth difference. Both curves are resampled onto one uniform log-time grid
  * (shared/numerics/log-time-grid.ts) and delta(t) = |Zth_higher - Zth_lower|

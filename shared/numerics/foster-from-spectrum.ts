@@ -5,7 +5,7 @@ import type { FosterNetwork } from './rc-network.js';
 export const NEGLIGIBLE_STAGE_FRACTION = 1e-9;
 
 /**
- * The Foster network of a discrete time-constant spectrum (method-notes §4):
+ * The Foster network of a discrete time-constant spectrum (Szekely, IEEE TCAS-I 45(3), 1998):
  * each bin is a stage, R_i = R(zeta_i) dzeta, tau_i = exp(zeta_i), and
  * C_i = tau_i / R_i; negligible bins are left out.
  */

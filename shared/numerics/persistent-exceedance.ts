@@ -9,7 +9,8 @@
  * physical separation lasts to the end of the curves (a changed layer shifts
  * everything beyond it), it must be positive at `remainingFraction` or more
  * of all the points from there to the end: the slow wiggles two independent
- * deconvolutions leave in a difference (method-notes §3) come and go, so they
+ * deconvolutions leave in a difference (Kennett, Prestwich & Robertson,
+ * Nucl. Instrum. Methods 151, 1978, on iterative deconvolution) come and go, so they
  * fail this test however long a single excursion lasts. The crossing is then
  * placed between the last point at or below the threshold and the first point
  * above it by linear interpolation, so the estimate does not jump by a whole

@@ -5,7 +5,7 @@
  * A cracked or voided die attach (or any layer that loses conductivity during
  * power cycling) adds resistance where that layer sits; every point of the
  * structure function beyond it moves to larger R_sum by the same amount
- * (method-notes §5). Read at equal C_sum, the shift
+ * (Szekely & Van Bien, Solid-State Electronics 31, 1988). Read at equal C_sum, the shift
  * dR(C) = R_later(C) - R_ref(C) is therefore about zero from the junction to
  * the degraded layer, rises across it and settles at the layer's added
  * resistance. Where it starts (C_sum, and the reference's R_sum there) places

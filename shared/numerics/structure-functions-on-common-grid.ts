@@ -6,7 +6,7 @@
  * of one layer visible as a shift: the heat capacities from the junction to a
  * layer are fixed by the geometry and the materials, while an added
  * resistance (a cracked attach, a dry interface) moves every later point of
- * the curve to larger R_sum by that amount (method-notes §5).
+ * the curve to larger R_sum by that amount (Szekely & Van Bien, Solid-State Electronics 31, 1988).
  *
  * The grid is uniform in log C_sum (the scale on which structure functions
  * are read) over the range both curves cover. Between its points a

@@ -2,7 +2,7 @@
  * A synthetic two-die module measured together (the invented Fernhill lab's bench FH-TT2): voltage_V@T1 and
  * voltage_V@T2 of two 1-D layered stacks, each die with its own TSP sensitivity and its own heating power line, and
  * each die's own linear calibration fitted to an exact sweep (25 .. 150 degC). Truth: the stacks' exact Rth
- * (eigendecomposition of the fine Cauer ladder, method-notes §7).
+ * (eigendecomposition of the fine Cauer ladder, shared/models/layered-stack.ts).
  */
 import { layeredStackTruth } from '../../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../../shared/models/example-stacks.js';
