@@ -34,7 +34,7 @@ export const DegradationComparisonSchema = Type.Object({
   shift_threshold_K_per_W: Type.Number({
     description: 'The detection limit: a shift must persist above this to count, and a layer that added less cannot be told from noise; with shift_start null, no shift above it (the healthy case, not a warning).',
   }),
-  shift_scatter_K_per_W: Type.Number({ description: 'Noise of the shift: 1.4826 x the median of its magnitude where it runs negative.' }),
+  shift_scatter_K_per_W: Type.Number({ description: 'Noise of the shift: 1.4826 x the magnitude of its lower quartile (a layer only adds resistance, so the lower side is noise); 0 when the quartile is at or above zero.' }),
   curves: Type.Object({ c_J_per_K: Type.Array(Type.Number()), reference_r_K_per_W: Type.Array(Type.Number()), shift_K_per_W: Type.Array(Type.Number()) }),
   warnings: Type.Array(Type.String()),
 });
