@@ -1,7 +1,7 @@
 import { Queue, type Job, type JobsOptions } from 'bullmq';
 import type { AnalysisParameters, Power } from '../shared/schemas/analysis-parameters.js';
 import type { UploadRecord } from '../services/store/store-records.js';
-import { DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL, producerConnection } from './redis-connections.js';
+import { producerConnection } from './redis-connections.js';
 
 /** BullMQ priorities (lower runs first). Every job gets one: jobs without a priority would overtake them all. */
 export const JOB_PRIORITY = {
@@ -26,10 +26,10 @@ export interface AnalysisJobData {
 }
 
 export interface AnalysisQueueOptions {
-  /** Redis to connect to. Default `redis://127.0.0.1:6379`. */
-  redisUrl?: string;
-  /** BullMQ key prefix. Default `{heatpath}` (hash-tagged for Redis Cluster). */
-  prefix?: string;
+  /** Redis to connect to: the service's REDIS_URL (services/config/service-config.ts). */
+  redisUrl: string;
+  /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
+  prefix: string;
   /** Queue name. Default `analysis`. */
   queueName?: string;
   /** Attempts per job before it fails for good. Default 5. */
@@ -68,10 +68,10 @@ export class AnalysisQueue {
   readonly queue: Queue<AnalysisJobData>;
   private readonly jobOptions: JobsOptions;
 
-  constructor(options: AnalysisQueueOptions = {}) {
+  constructor(options: AnalysisQueueOptions) {
     this.queue = new Queue<AnalysisJobData>(options.queueName ?? DEFAULT_ANALYSIS_QUEUE_NAME, {
-      connection: producerConnection(options.redisUrl ?? DEFAULT_REDIS_URL),
-      prefix: options.prefix ?? DEFAULT_QUEUE_PREFIX,
+      connection: producerConnection(options.redisUrl),
+      prefix: options.prefix,
     });
     // A Redis outage surfaces as failed commands (503 in the API), not as an unhandled 'error' event.
     this.queue.on('error', () => undefined);

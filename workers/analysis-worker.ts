@@ -5,26 +5,27 @@ import { Worker, type Job } from 'bullmq';
 import type { Logger } from 'pino';
 import { isStoreOutage } from '../services/store/store-outage.js';
 import { TransientStore } from '../services/store/transient-store.js';
+import { serviceEnvDefaults } from '../services/config/service-config.js';
 import type { AnalysisJobOutcome } from './analysis-processor.js';
 import { isFinalAttempt } from './final-attempt.js';
 import { DEFAULT_ANALYSIS_QUEUE_NAME, type AnalysisJobData } from './analysis-queue.js';
 import { processorEnvironment } from './processor-settings.js';
-import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
+import { consumerConnection } from './redis-connections.js';
 
 export interface AnalysisWorkerOptions {
   /** The store's data directory (shared with the API). Required. */
   dataDir: string;
-  /** Default `redis://127.0.0.1:6379`. */
-  redisUrl?: string;
-  /** Default `{heatpath}`. */
-  prefix?: string;
+  /** Redis to connect to: the service's REDIS_URL (services/config/service-config.ts). */
+  redisUrl: string;
+  /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
+  prefix: string;
   /** Default `analysis`. */
   queueName?: string;
   /** Jobs at once, each in its own child process. Default 1 (run one worker per core). */
   concurrency?: number;
-  /** How long a job's lock lasts without renewal (a dead worker's job is taken over after it). Default 30000 ms. */
+  /** How long a job's lock lasts without renewal (a dead worker's job is taken over after it). Default: HEATPATH_LOCK_DURATION_MS's. */
   lockDurationMs?: number;
-  /** How often stalled jobs are looked for. Default 30000 ms. */
+  /** How often stalled jobs are looked for. Default: HEATPATH_STALLED_INTERVAL_MS's. */
   stalledIntervalMs?: number;
   /** Webhook delivery attempts and first backoff (see WebhookNotifier). Defaults 8 and 5000 ms. */
   webhookAttempts?: number;
@@ -42,14 +43,14 @@ export class AnalysisWorker {
   readonly worker: Worker<AnalysisJobData, AnalysisJobOutcome>;
 
   constructor(options: AnalysisWorkerOptions) {
-    const redisUrl = options.redisUrl ?? DEFAULT_REDIS_URL;
-    const prefix = options.prefix ?? DEFAULT_QUEUE_PREFIX;
+    const redisUrl = options.redisUrl;
+    const prefix = options.prefix;
     this.worker = new Worker<AnalysisJobData, AnalysisJobOutcome>(options.queueName ?? DEFAULT_ANALYSIS_QUEUE_NAME, compiledProcessorPath(), {
       connection: consumerConnection(redisUrl),
       prefix,
       concurrency: options.concurrency ?? 1,
-      lockDuration: options.lockDurationMs ?? 30_000,
-      stalledInterval: options.stalledIntervalMs ?? 30_000,
+      lockDuration: options.lockDurationMs ?? serviceEnvDefaults.HEATPATH_LOCK_DURATION_MS,
+      stalledInterval: options.stalledIntervalMs ?? serviceEnvDefaults.HEATPATH_STALLED_INTERVAL_MS,
       workerForkOptions: {
         env: processorEnvironment({
           dataDir: options.dataDir,
@@ -100,7 +101,7 @@ export class AnalysisWorker {
    * forces the close (the unfinished jobs' locks expire and another worker
    * takes them over). worker.close() alone never times out.
    */
-  async close(timeoutMs = 30_000): Promise<'drained' | 'forced'> {
+  async close(timeoutMs = serviceEnvDefaults.HEATPATH_SHUTDOWN_TIMEOUT_MS): Promise<'drained' | 'forced'> {
     let timer: NodeJS.Timeout | undefined;
     const timedOut = new Promise<'forced'>((resolve) => (timer = setTimeout(() => resolve('forced'), timeoutMs)));
     const outcome = await Promise.race([this.worker.close().then(() => 'drained' as const), timedOut]);

@@ -1,11 +1,12 @@
 import type { Logger } from 'pino';
+import { serviceEnvDefaults } from '../services/config/service-config.js';
 import { isJobFinished, type TransientStore } from '../services/store/transient-store.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
 import type { BatchReprocessor } from './reprocess-batch.js';
 
 export interface UploadRecoveryOptions {
-  /** Time between sweeps in ms. Default 60000. */
+  /** Time between sweeps in ms. Default: HEATPATH_RECOVERY_INTERVAL_MS's. */
   intervalMs?: number;
   /** Free space the store needs before failed jobs are run again (see rerun_failed). Default 0. */
   minFreeBytes?: number;
@@ -113,7 +114,7 @@ export class UploadRecovery {
         .finally(() => (this.running = undefined));
     };
     run();
-    this.timer = setInterval(run, this.options.intervalMs ?? 60_000);
+    this.timer = setInterval(run, this.options.intervalMs ?? serviceEnvDefaults.HEATPATH_RECOVERY_INTERVAL_MS);
     this.timer.unref();
   }
 

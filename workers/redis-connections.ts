@@ -1,10 +1,5 @@
 import type { RedisOptions } from 'bullmq';
 
-/** Where Redis listens when nothing else is configured. */
-export const DEFAULT_REDIS_URL = 'redis://127.0.0.1:6379';
-/** Key prefix of every heatpath queue; the hash tag keeps a queue's keys in one Redis Cluster slot. */
-export const DEFAULT_QUEUE_PREFIX = '{heatpath}';
-
 /**
  * Connection for producers (the API adding jobs, reading states): commands fail
  * after one retry and are not buffered while Redis is away, so an HTTP request

@@ -2,16 +2,16 @@ import { UnrecoverableError, Worker, type Job } from 'bullmq';
 import type { Logger } from 'pino';
 import type { TransientStore } from '../services/store/transient-store.js';
 import { isFinalAttempt } from './final-attempt.js';
-import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
+import { consumerConnection } from './redis-connections.js';
 import { WEBHOOK_QUEUE_NAME, type WebhookDeliveryData } from './webhook-notifier.js';
 import type { WebhookRegistry } from './webhook-registry.js';
 import { signWebhookBody, WEBHOOK_SIGNATURE_HEADER } from './webhook-signature.js';
 
 export interface WebhookDeliveryOptions {
-  /** Default `redis://127.0.0.1:6379`. */
-  redisUrl?: string;
-  /** Default `{heatpath}`. */
-  prefix?: string;
+  /** Redis to connect to: the service's REDIS_URL (services/config/service-config.ts). */
+  redisUrl: string;
+  /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
+  prefix: string;
   /** Time a receiver has to answer, in ms. Default 10000. */
   timeoutMs?: number;
   /** Deliveries in flight per process (network-bound, so more than one). Default 4. */
@@ -44,12 +44,12 @@ export class WebhookDeliveryWorker {
   constructor(
     private readonly store: TransientStore,
     private readonly registry: WebhookRegistry,
-    options: WebhookDeliveryOptions = {},
+    options: WebhookDeliveryOptions,
   ) {
     const timeoutMs = options.timeoutMs ?? 10_000;
     this.worker = new Worker<WebhookDeliveryData, WebhookDeliveryOutcome>(WEBHOOK_QUEUE_NAME, (job) => this.deliver(job, timeoutMs), {
-      connection: consumerConnection(options.redisUrl ?? DEFAULT_REDIS_URL),
-      prefix: options.prefix ?? DEFAULT_QUEUE_PREFIX,
+      connection: consumerConnection(options.redisUrl),
+      prefix: options.prefix,
       concurrency: options.concurrency ?? 4,
     });
     this.worker.on('error', () => undefined);

@@ -4,7 +4,7 @@ import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { jobLinks } from '../services/jobs/job-links.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import type { WebhookEvent } from '../services/store/store-records.js';
-import { consumerConnection, DEFAULT_QUEUE_PREFIX, DEFAULT_REDIS_URL } from './redis-connections.js';
+import { consumerConnection } from './redis-connections.js';
 
 export const WEBHOOK_QUEUE_NAME = 'webhooks';
 
@@ -51,10 +51,10 @@ export interface WebhookDeliveryData {
 }
 
 export interface WebhookNotifierOptions {
-  /** Default `redis://127.0.0.1:6379`. */
-  redisUrl?: string;
-  /** Default `{heatpath}`. */
-  prefix?: string;
+  /** Redis to connect to: the service's REDIS_URL (services/config/service-config.ts). */
+  redisUrl: string;
+  /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
+  prefix: string;
   /** Delivery attempts before giving up. Default 8: with the default backoff, retries for 5 s x (2^7 - 1) = 635 s, about 10.6 minutes. */
   attempts?: number;
   /** First retry delay in ms, doubled each time. Default 5000. */
@@ -76,11 +76,11 @@ export class WebhookNotifier {
   private readonly attempts: number;
   private readonly backoffDelayMs: number;
 
-  constructor(private readonly store: TransientStore, options: WebhookNotifierOptions = {}) {
+  constructor(private readonly store: TransientStore, options: WebhookNotifierOptions) {
     // Called from workers: wait out a Redis restart rather than fail the analysis job.
     this.queue = new Queue<WebhookDeliveryData>(WEBHOOK_QUEUE_NAME, {
-      connection: consumerConnection(options.redisUrl ?? DEFAULT_REDIS_URL),
-      prefix: options.prefix ?? DEFAULT_QUEUE_PREFIX,
+      connection: consumerConnection(options.redisUrl),
+      prefix: options.prefix,
     });
     this.queue.on('error', () => undefined);
     this.attempts = options.attempts ?? 8;

@@ -3,8 +3,9 @@
  * degradation): heating power, TSP calibration and the analysis parameters,
  * with their help text and their translation into the analysis inputs.
  */
+import type { TNumberOptions } from 'typebox';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
-import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
+import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '../../shared/schemas/analysis-parameters.js';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { choiceOption, numberOption } from './cli-arguments.js';
 import { readCalibrationFile } from './read-calibration-file.js';
@@ -32,10 +33,17 @@ export const powerAndCalibrationUsage = `  --power-w P             heating power
                           column) its own, repeated per channel; the others
                           take the one without CH=`;
 
+/** "10..200 (default 40)": an integer parameter's range and default as its schema states them. */
+export function integerRangeUsage(name: 'points_per_decade' | 'compact_stages'): string {
+  const schema: object = AnalysisParametersSchema.properties[name];
+  const { minimum, maximum, default: value } = schema as TNumberOptions;
+  return `${minimum}..${maximum} (default ${value})`;
+}
+
 export const analysisParametersUsage = `  --kind cooling|heating  default: the file's "# kind:" header, else cooling
   --method M              time-constant spectrum deconvolution: posterior-mean
                           (default, the most accurate), bayes or fourier
-  --points-per-decade N   log-time grid density, 10..200 (default 40)
+  --points-per-decade N   log-time grid density, ${integerRangeUsage('points_per_decade')}
   --early-start-s T       start of the sqrt(t) early-time window (default: automatic)
   --early-end-s T         end of the sqrt(t) early-time window (default: automatic)`;
 

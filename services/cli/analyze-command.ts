@@ -9,7 +9,7 @@ import { isUserError, userErrorLine } from './user-error-line.js';
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { AnalysisResult } from '../../shared/schemas/analysis-result.js';
 import type { Calibration } from '../../shared/schemas/calibration.js';
-import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, channelCalibrationOption, powerAndCalibrationUsage } from './analysis-options.js';
+import { analysisInputsFromOptions, analysisOptions, analysisParametersUsage, channelCalibrationOption, integerRangeUsage, powerAndCalibrationUsage } from './analysis-options.js';
 import { commandLineSpelling } from './command-line-spelling.js';
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { formatResultSummary } from './format-result-summary.js';
@@ -27,7 +27,7 @@ standard input; results name it stdin.
 
 ${powerAndCalibrationUsage}
 ${analysisParametersUsage}
-  --compact-stages N      stages of the compact Foster model, 1..12 (default 5)
+  --compact-stages N      stages of the compact Foster model, ${integerRangeUsage('compact_stages')}
   --out DIR               write result.json, CSV tables and netlists per channel
   --format text|json      text summary (default) or one JSON object per channel
                           per line`;

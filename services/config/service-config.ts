@@ -38,6 +38,9 @@ export const ServiceEnvSchema = Type.Object({
 });
 type ServiceEnv = Static<typeof ServiceEnvSchema>;
 
+/** The schema's defaults, for code run without a loaded configuration (tests, tools); variables without one are left out. */
+export const serviceEnvDefaults = Value.Create(ServiceEnvSchema);
+
 export interface ServiceConfig {
   port: number;
   host: string;

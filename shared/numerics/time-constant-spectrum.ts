@@ -27,6 +27,7 @@
  */
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { resampleOnLogTimeGrid, type LogTimeGrid } from './log-time-grid.js';
+import { SPECTRUM_POINTS_PER_DECADE } from './spectrum-grid-density.js';
 import { timeConstantStepResponse } from './time-constant-kernel.js';
 import { bayesDeconvolution } from './bayes-deconvolution.js';
 import { fourierDeconvolution } from './fourier-deconvolution.js';
@@ -171,8 +172,9 @@ const START_FLOOR_FRACTION = 1e-3;
 
 export function timeConstantSpectrum(time_s: Float64Array, zth_K_per_W: Float64Array, options: TimeConstantSpectrumOptions): TimeConstantSpectrum {
   const { pointsPerDecade, noise_K_per_W } = options;
-  if (!Number.isInteger(pointsPerDecade) || pointsPerDecade < 10 || pointsPerDecade > 200) {
-    throw new HeatpathError('PARAM_INVALID', `points_per_decade must be an integer from 10 to 200, got ${pointsPerDecade}`);
+  const { minimum, maximum } = SPECTRUM_POINTS_PER_DECADE;
+  if (!Number.isInteger(pointsPerDecade) || pointsPerDecade < minimum || pointsPerDecade > maximum) {
+    throw new HeatpathError('PARAM_INVALID', `points_per_decade must be an integer from ${minimum} to ${maximum}, got ${pointsPerDecade}`);
   }
   const grid = resampleOnLogTimeGrid(time_s, zth_K_per_W, pointsPerDecade);
   const ny = grid.a.length;

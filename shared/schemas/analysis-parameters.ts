@@ -1,4 +1,6 @@
 import { Type, type Static } from 'typebox';
+import { Value } from 'typebox/value';
+import { SPECTRUM_POINTS_PER_DECADE } from '../numerics/spectrum-grid-density.js';
 
 /**
  * Analysis parameters: the knobs a user may set, with their defaults.
@@ -16,7 +18,7 @@ export const AnalysisParametersSchema = Type.Object(
       default: 'posterior-mean',
       description: 'Deconvolution of the time-constant spectrum: posterior mean of non-negative least-squares fits (default, the most accurate), Bayesian iterative, or Fourier-domain with a noise-chosen filter.',
     }),
-    points_per_decade: Type.Integer({ minimum: 10, maximum: 200, default: 40, description: 'Samples per decade of the uniform log-time grid.' }),
+    points_per_decade: Type.Integer({ ...SPECTRUM_POINTS_PER_DECADE, default: 40, description: 'Samples per decade of the uniform log-time grid.' }),
     early_time_start_s: Type.Optional(Type.Number({ exclusiveMinimum: 0, description: 'Start of the sqrt(t) fit window; found automatically when omitted.' })),
     early_time_end_s: Type.Optional(Type.Number({ exclusiveMinimum: 0, description: 'End of the sqrt(t) fit window; found automatically when omitted.' })),
     compact_stages: Type.Integer({ minimum: 1, maximum: 12, default: 5, description: 'Stages of the compact Foster model (datasheet style).' }),
@@ -35,9 +37,5 @@ export const PowerSchema = Type.Union([
 ]);
 export type Power = Static<typeof PowerSchema>;
 
-export const defaultAnalysisParameters: AnalysisParameters = {
-  kind: 'cooling',
-  method: 'posterior-mean',
-  points_per_decade: 40,
-  compact_stages: 5,
-};
+/** The schema's defaults (the optional fields, which have none, left out). */
+export const defaultAnalysisParameters: AnalysisParameters = Value.Create(AnalysisParametersSchema);
