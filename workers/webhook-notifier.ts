@@ -3,7 +3,7 @@ import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { jobLinks } from '../services/jobs/job-links.js';
 import type { TransientStore } from '../services/store/transient-store.js';
-import type { WebhookEvent } from '../services/store/store-records.js';
+import type { WebhookEvent } from '../shared/schemas/webhook-event.js';
 import { consumerConnection } from './redis-connections.js';
 
 export const WEBHOOK_QUEUE_NAME = 'webhooks';

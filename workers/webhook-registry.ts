@@ -1,9 +1,8 @@
 import { randomBytes } from 'node:crypto';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import type { TransientStore } from '../services/store/transient-store.js';
-import type { WebhookEvent, WebhookRecord } from '../services/store/store-records.js';
-
-export const WEBHOOK_EVENTS: readonly WebhookEvent[] = ['job.completed', 'job.failed'];
+import type { WebhookRecord } from '../services/store/store-records.js';
+import { WEBHOOK_EVENTS, type WebhookEvent } from '../shared/schemas/webhook-event.js';
 
 /**
  * Registered callback URLs. Only URLs whose origin (scheme://host:port) is on

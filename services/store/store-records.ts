@@ -1,5 +1,6 @@
 import type { AnalysisParameters, Power } from '../../shared/schemas/analysis-parameters.js';
 import type { Calibration } from '../../shared/schemas/calibration.js';
+import type { WebhookEvent } from '../../shared/schemas/webhook-event.js';
 
 /**
  * Records kept in the durable store (HEATPATH_DATA_DIR). Redis holds only the
@@ -129,8 +130,6 @@ export interface BatchRecord {
   running_at_cancel?: string[] | null;
   entries: BatchEntry[];
 }
-
-export type WebhookEvent = 'job.completed' | 'job.failed';
 
 /** A registered callback URL; the secret signs every delivery. */
 export interface WebhookRecord {

@@ -1,10 +1,9 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { WebhookEventSchema } from '../../../shared/schemas/webhook-event.js';
 import type { WebhookRecord } from '../../store/store-records.js';
 import type { WebhookRegistry } from '../../../workers/webhook-registry.js';
-
-const WebhookEventSchema = Type.Union([Type.Literal('job.completed'), Type.Literal('job.failed')]);
 
 const WebhookSchema = Type.Object({
   webhook_id: Type.String(),
