@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { activeSetNnls } from '../shared/numerics/active-set-nnls.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 /** G = A^T A and b = A^T y for a random A (rows x n) and y. */
 function randomProblem(seed: number, rows: number, n: number) {

@@ -17,7 +17,7 @@ import { layeredStackTruth } from '../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 import { LATEST_WINDOW_END_S } from '../shared/numerics/sqrt-time-extrapolation.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 const stacks = { 'TO-247': TO247_ON_HEATSINK_STACK, 'SiC module': SIC_POWER_MODULE_STACK } as const;
 

@@ -21,7 +21,7 @@ import { layeredStackTruth, type LayeredStack } from '../shared/models/layered-s
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { structureFunctionError } from './support/structure-function-error.js';
 
 const CREATED_AT = '2026-01-01T00:00:00.000Z';

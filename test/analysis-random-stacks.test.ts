@@ -24,7 +24,7 @@ import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.
 import { layeredStackTruth } from '../shared/models/layered-stack.js';
 import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 import { randomLayeredStack } from './support/random-layered-stack.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { structureFunctionError } from './support/structure-function-error.js';
 
 const STACK_SEED = 2026;

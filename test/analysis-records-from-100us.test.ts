@@ -16,7 +16,7 @@ import { layeredStackTruth } from '../shared/models/layered-stack.js';
 import { TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 import { LATEST_WINDOW_END_S } from '../shared/numerics/sqrt-time-extrapolation.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 const truth = layeredStackTruth(TO247_ON_HEATSINK_STACK);
 const rth = truth.structure.r_K_per_W[truth.structure.r_K_per_W.length - 1];

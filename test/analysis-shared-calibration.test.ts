@@ -8,7 +8,7 @@ import { layeredStackTruth } from '../shared/models/layered-stack.js';
 import { TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 import { fitCalibration } from '../shared/numerics/tsp-calibration.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { channelCalibrationOption } from '../services/cli/analysis-options.js';
 import { channelCalibrationFields } from '../services/api/schemas/transient-metadata.js';
 

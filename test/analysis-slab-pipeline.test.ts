@@ -20,7 +20,7 @@ import type { AnalysisParameters } from '../shared/schemas/analysis-parameters.j
 import { slabRth, type Slab } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 import { slabFosterSeries } from './support/slab-foster-series.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { structureFunctionError } from './support/structure-function-error.js';
 
 // A 2 mm copper slab of 1 cm^2: k 398 W/(m K), c_v 3.45e6 J/(m^3 K), handbook values (memory).

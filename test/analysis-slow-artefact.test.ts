@@ -19,7 +19,7 @@ import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.
 import { layeredStackTruth } from '../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../shared/models/example-stacks.js';
 import { syntheticTransient } from '../shared/models/synthetic-transient.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 const AMBIGUOUS = 'value at t = 0 is ambiguous';
 

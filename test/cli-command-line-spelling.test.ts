@@ -12,7 +12,7 @@ import { syntheticTransient } from '../shared/models/synthetic-transient.js';
 import { analyzeFiles } from '../services/cli/analyze-command.js';
 import { commandLineSpelling } from '../services/cli/command-line-spelling.js';
 import { cliWorkspace, DEMO_DIR } from './support/cli-process.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { twoDieVoltageFile } from './support/two-die-voltage-file.js';
 import { join } from 'node:path';
 

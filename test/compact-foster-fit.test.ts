@@ -6,7 +6,7 @@ import { steadyStateRth } from '../shared/numerics/steady-state.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
 import { slabRth, slabZth, SILICON_DIE_SLAB } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { randomLayeredStack } from './support/random-layered-stack.js';
 import { layeredStackTruth } from '../shared/models/layered-stack.js';
 

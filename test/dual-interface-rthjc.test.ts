@@ -30,7 +30,7 @@ import { median } from '../shared/numerics/median.js';
 import { cumulativeRSumAtC } from '../shared/numerics/structure-function.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
 import { randomLayeredStack } from './support/random-layered-stack.js';
-import { createRandom } from './support/seeded-random.js';
+import { createRandom } from '../shared/numerics/seeded-random.js';
 import { analysedStackMeasurement, cSumThroughLayer, exactStackMeasurement, rSumThroughLayer } from './support/stack-measurement.js';
 import { withLayerConductivity } from './support/stack-variants.js';
 

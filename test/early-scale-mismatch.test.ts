@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { EARLY_SCALE_MIN_NODES, earlyScaleMismatch } from '../shared/numerics/early-scale-mismatch.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 // A die surface's early Zth grows as sqrt(t) (JESD51-14); 0.002 K/W at 10 us.
 const time_s = Float64Array.from({ length: 41 }, (_, k) => 1e-5 * 10 ** (k / 20));

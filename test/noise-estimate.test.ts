@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { SILICON_DIE_SLAB, slabRth, slabZth } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 

@@ -19,7 +19,7 @@ import { logSpacedTimes, syntheticTransient } from '../shared/models/synthetic-t
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';
 import { steadyStateRth } from '../shared/numerics/steady-state.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { withLayerConductivity } from './support/stack-variants.js';
 
 const reference = layeredStackTruth(SIC_POWER_MODULE_STACK);

@@ -74,7 +74,7 @@ import { fosterToCauer } from '../shared/numerics/foster-to-cauer.js';
 import { fosterFromSpectrum } from '../shared/numerics/foster-from-spectrum.js';
 import { cumulativeStructureFunction } from '../shared/numerics/structure-function.js';
 import { timeConstantSpectrum, type TimeConstantSpectrumOptions } from '../shared/numerics/time-constant-spectrum.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { structureFunctionError, type StructureError } from './support/structure-function-error.js';
 
 type Material = Pick<StackLayer, 'conductivity_W_per_mK' | 'volumetric_heat_capacity_J_per_m3K'>;

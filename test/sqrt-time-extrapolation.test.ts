@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { extrapolateSqrtTime, LATEST_WINDOW_END_S, MIN_WINDOW_TIME_RATIO } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { estimateNoiseRms } from '../shared/numerics/noise-estimate.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { SILICON_DIE_SLAB, semiInfiniteZth } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { STEADY_STATE_RISE_LIMIT, steadyStateRth } from '../shared/numerics/steady-state.js';
 import { HeatpathError } from '../shared/errors/heatpath-error.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { SILICON_DIE_SLAB, slabDiffusionTime_s, slabRth, slabZth } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 import { zthFromFoster } from '../shared/numerics/foster-zth.js';

@@ -5,7 +5,7 @@ import { timeConstantKernel, timeConstantStepResponse } from '../shared/numerics
 import { createFftConvolution } from '../shared/numerics/fft-convolution.js';
 import { resampleOnLogTimeGrid } from '../shared/numerics/log-time-grid.js';
 import { timeConstantSpectrum } from '../shared/numerics/time-constant-spectrum.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 
 function fosterZth(r: number[], tau: number[], time_s: Float64Array, noise: number, seed: number): Float64Array {

@@ -7,7 +7,7 @@ import { analyzeTransientFile } from '../shared/analysis/analyze-transient-file.
 import { errorCatalogue } from '../shared/errors/error-catalogue.js';
 import { CalibrationSchema, type Calibration } from '../shared/schemas/calibration.js';
 import { Value } from 'typebox/value';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { readFileSync } from 'node:fs';
 import { parseCalibrationPoints } from '../shared/input/parse-calibration-points.js';
 import { layeredStackTruth } from '../shared/models/layered-stack.js';

@@ -5,7 +5,7 @@ import { steadyStateRth } from '../shared/numerics/steady-state.js';
 import { fitCalibration, voltageToTemperature } from '../shared/numerics/tsp-calibration.js';
 import { NOISE_FLOOR_RELATIVE } from '../shared/numerics/sqrt-time-extrapolation.js';
 import { catchHeatpathError } from './support/catch-heatpath-error.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 import { SILICON_DIE_SLAB, slabRth, slabZth } from './support/conduction-solutions.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
 

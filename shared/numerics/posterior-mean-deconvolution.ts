@@ -35,7 +35,7 @@
  */
 import { createFftConvolution } from './fft-convolution.js';
 import { activeSetNnls } from './active-set-nnls.js';
-import { seededGaussian } from './seeded-gaussian.js';
+import { createRandom, gaussian } from './seeded-random.js';
 
 export interface PosteriorMeanInput {
   /** s at the lags -(unknownCount - 1) .. nodes - 1 (see fft-convolution.ts). */
@@ -98,7 +98,8 @@ export function posteriorMeanDeconvolution(input: PosteriorMeanInput): Posterior
     }
     return column;
   };
-  const nextGaussian = seededGaussian(input.seed);
+  const random = createRandom(input.seed);
+  const nextGaussian = (): number => gaussian(random);
   const mean = new Float64Array(nx);
   const rhs = new Float64Array(nx);
   let solves = 0;

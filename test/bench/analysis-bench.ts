@@ -24,7 +24,7 @@ import { cumulativeStructureFunction, differentialStructureFunction } from '../.
 import { fitCompactModel } from '../../shared/analysis/fit-compact-model.js';
 import { fosterFromSpectrum } from '../../shared/numerics/foster-from-spectrum.js';
 import { packageRoot } from '../../services/cli/package-root.js';
-import { createRandom, gaussian } from '../support/seeded-random.js';
+import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 
 const runsArg = process.argv.indexOf('--runs');
 const RUNS = runsArg > 0 ? Number(process.argv[runsArg + 1]) : 30;

@@ -7,7 +7,7 @@ import { layeredStackRth, layeredStackTruth } from '../../shared/models/layered-
 import { SIC_POWER_MODULE_STACK } from '../../shared/models/example-stacks.js';
 import { zthFromFoster } from '../../shared/numerics/foster-zth.js';
 import { timeConstantSpectrum } from '../../shared/numerics/time-constant-spectrum.js';
-import { createRandom, gaussian } from '../support/seeded-random.js';
+import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 
 const perDecade = 100;
 const time_s = Float64Array.from({ length: 7 * perDecade + 1 }, (_, i) => 1e-6 * 10 ** (i / perDecade));

@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import { layeredStackTruth, type LayeredStack } from '../../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../../shared/models/example-stacks.js';
 import { syntheticTransient, type SyntheticTransientOptions } from '../../shared/models/synthetic-transient.js';
-import { createRandom, gaussian } from './seeded-random.js';
+import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 import { withLayerConductivity } from './stack-variants.js';
 import { packageRoot } from '../../services/cli/package-root.js';
 

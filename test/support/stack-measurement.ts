@@ -12,7 +12,7 @@ import { zthFromFoster } from '../../shared/numerics/foster-zth.js';
 import type { AnalysisParameters } from '../../shared/schemas/analysis-parameters.js';
 import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-rthjc.js';
 import { interfaceMeasurement } from '../../services/cli/compared-measurements.js';
-import { createRandom, gaussian } from './seeded-random.js';
+import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 
 export const BENCH_POWER_W = 50;
 

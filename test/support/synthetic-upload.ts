@@ -1,7 +1,7 @@
 import { layeredStackTruth } from '../../shared/models/layered-stack.js';
 import { SIC_POWER_MODULE_STACK } from '../../shared/models/example-stacks.js';
 import { syntheticTransient } from '../../shared/models/synthetic-transient.js';
-import { createRandom, gaussian } from './seeded-random.js';
+import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 
 export const SYNTHETIC_POWER_W = 50;
 

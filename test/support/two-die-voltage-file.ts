@@ -9,7 +9,7 @@ import { SIC_POWER_MODULE_STACK, TO247_ON_HEATSINK_STACK } from '../../shared/mo
 import { syntheticTransient } from '../../shared/models/synthetic-transient.js';
 import { fitCalibration } from '../../shared/numerics/tsp-calibration.js';
 import type { Calibration } from '../../shared/schemas/calibration.js';
-import { createRandom, gaussian } from './seeded-random.js';
+import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 
 /** About -2 mV/K, common practice for a diode at low sense current; the second die's steeper, as dies of one module differ. */
 const DIES = [

@@ -1,9 +1,12 @@
 /**
- * Seeded pseudo-random numbers for reproducible test noise.
+ * Seeded pseudo-random numbers: the one generator of the project, for
+ * estimators that draw random samples (which stay deterministic functions of
+ * their input) and for reproducible test noise.
  *
- * createRandom: mulberry32 (Tommy Ettinger's 32-bit generator, public domain),
- * uniform on [0, 1). gaussian: the Box-Muller transform (Box & Muller, Ann.
- * Math. Statist. 29, 1958), standard normal.
+ * createRandom: mulberry32 (Tommy Ettinger's 32-bit generator: a Weyl
+ * sequence with an output mix, public domain), uniform on [0, 1). gaussian:
+ * the Box-Muller transform (Box & Muller, Ann. Math. Statist. 29, 1958),
+ * standard normal.
  */
 export function createRandom(seed: number): () => number {
   let state = seed >>> 0;
