@@ -48,12 +48,7 @@ process.once('disconnect', () => process.exit(1));
 const settings = readProcessorSettings();
 // One job at a time and nothing else meanwhile: blocking file calls cost less CPU than the promise API (store-io.ts).
 const store = new TransientStore(settings.dataDir, blockingStoreIo);
-const notifier = new WebhookNotifier(store, {
-  redisUrl: settings.redisUrl,
-  prefix: settings.prefix,
-  attempts: settings.webhookAttempts,
-  backoffDelayMs: settings.webhookBackoffDelayMs,
-});
+const notifier = new WebhookNotifier(store, { redisUrl: settings.redisUrl, prefix: settings.prefix });
 
 /** A running batch's status is read again after this long: a batch record holds every job of the batch, a megabyte for 10,000. */
 const BATCH_STATUS_TTL_MS = 2_000;

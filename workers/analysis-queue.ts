@@ -11,7 +11,7 @@ export const JOB_PRIORITY = {
   batch: 100,
 } as const;
 
-export const DEFAULT_ANALYSIS_QUEUE_NAME = 'analysis';
+export const ANALYSIS_QUEUE_NAME = 'analysis';
 
 /** What a worker needs to find and analyse one upload; everything else is in the store. */
 export interface AnalysisJobData {
@@ -30,8 +30,6 @@ export interface AnalysisQueueOptions {
   redisUrl: string;
   /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
   prefix: string;
-  /** Queue name. Default `analysis`. */
-  queueName?: string;
   /** Attempts per job before it fails for good. Default 5. */
   attempts?: number;
   /** First retry delay in ms, doubled on each retry. Default 2000. */
@@ -69,7 +67,7 @@ export class AnalysisQueue {
   private readonly jobOptions: JobsOptions;
 
   constructor(options: AnalysisQueueOptions) {
-    this.queue = new Queue<AnalysisJobData>(options.queueName ?? DEFAULT_ANALYSIS_QUEUE_NAME, {
+    this.queue = new Queue<AnalysisJobData>(ANALYSIS_QUEUE_NAME, {
       connection: producerConnection(options.redisUrl),
       prefix: options.prefix,
     });

@@ -8,7 +8,7 @@ import { TransientStore } from '../services/store/transient-store.js';
 import { serviceEnvDefaults } from '../services/config/service-config.js';
 import type { AnalysisJobOutcome } from './analysis-processor.js';
 import { isFinalAttempt } from './final-attempt.js';
-import { DEFAULT_ANALYSIS_QUEUE_NAME, type AnalysisJobData } from './analysis-queue.js';
+import { ANALYSIS_QUEUE_NAME, type AnalysisJobData } from './analysis-queue.js';
 import { processorEnvironment } from './processor-settings.js';
 import { consumerConnection } from './redis-connections.js';
 
@@ -19,17 +19,12 @@ export interface AnalysisWorkerOptions {
   redisUrl: string;
   /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
   prefix: string;
-  /** Default `analysis`. */
-  queueName?: string;
   /** Jobs at once, each in its own child process. Default 1 (run one worker per core). */
   concurrency?: number;
   /** How long a job's lock lasts without renewal (a dead worker's job is taken over after it). Default: HEATPATH_LOCK_DURATION_MS's. */
   lockDurationMs?: number;
   /** How often stalled jobs are looked for. Default: HEATPATH_STALLED_INTERVAL_MS's. */
   stalledIntervalMs?: number;
-  /** Webhook delivery attempts and first backoff (see WebhookNotifier). Defaults 8 and 5000 ms. */
-  webhookAttempts?: number;
-  webhookBackoffDelayMs?: number;
   /** Where each completed job (info) and each failed attempt (warn) is logged. */
   logger?: Logger;
 }
@@ -45,20 +40,14 @@ export class AnalysisWorker {
   constructor(options: AnalysisWorkerOptions) {
     const redisUrl = options.redisUrl;
     const prefix = options.prefix;
-    this.worker = new Worker<AnalysisJobData, AnalysisJobOutcome>(options.queueName ?? DEFAULT_ANALYSIS_QUEUE_NAME, compiledProcessorPath(), {
+    this.worker = new Worker<AnalysisJobData, AnalysisJobOutcome>(ANALYSIS_QUEUE_NAME, compiledProcessorPath(), {
       connection: consumerConnection(redisUrl),
       prefix,
       concurrency: options.concurrency ?? 1,
       lockDuration: options.lockDurationMs ?? serviceEnvDefaults.HEATPATH_LOCK_DURATION_MS,
       stalledInterval: options.stalledIntervalMs ?? serviceEnvDefaults.HEATPATH_STALLED_INTERVAL_MS,
       workerForkOptions: {
-        env: processorEnvironment({
-          dataDir: options.dataDir,
-          redisUrl,
-          prefix,
-          webhookAttempts: options.webhookAttempts,
-          webhookBackoffDelayMs: options.webhookBackoffDelayMs,
-        }),
+        env: processorEnvironment({ dataDir: options.dataDir, redisUrl, prefix }),
       },
     });
     const store = new TransientStore(options.dataDir);

@@ -7,8 +7,6 @@ export interface ProcessorSettings {
   dataDir: string;
   redisUrl: string;
   prefix: string;
-  webhookAttempts?: number;
-  webhookBackoffDelayMs?: number;
 }
 
 const SETTINGS_VARIABLE = 'HEATPATH_PROCESSOR_SETTINGS';

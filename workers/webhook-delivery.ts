@@ -12,13 +12,14 @@ export interface WebhookDeliveryOptions {
   redisUrl: string;
   /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
   prefix: string;
-  /** Time a receiver has to answer, in ms. Default 10000. */
-  timeoutMs?: number;
-  /** Deliveries in flight per process (network-bound, so more than one). Default 4. */
-  concurrency?: number;
   /** Where failed attempts (warn) and given-up deliveries (error) are logged. */
   logger?: Logger;
 }
+
+/** Time a receiver has to answer, in ms. */
+const DELIVERY_TIMEOUT_MS = 10_000;
+/** Deliveries in flight per process (network-bound, so more than one). */
+const DELIVERY_CONCURRENCY = 4;
 
 /** What a delivery job returns: the receiver's status, or why it was not sent. */
 export type WebhookDeliveryOutcome = { status: number } | { dropped: string };
@@ -46,11 +47,10 @@ export class WebhookDeliveryWorker {
     private readonly registry: WebhookRegistry,
     options: WebhookDeliveryOptions,
   ) {
-    const timeoutMs = options.timeoutMs ?? 10_000;
-    this.worker = new Worker<WebhookDeliveryData, WebhookDeliveryOutcome>(WEBHOOK_QUEUE_NAME, (job) => this.deliver(job, timeoutMs), {
+    this.worker = new Worker<WebhookDeliveryData, WebhookDeliveryOutcome>(WEBHOOK_QUEUE_NAME, (job) => this.deliver(job), {
       connection: consumerConnection(options.redisUrl),
       prefix: options.prefix,
-      concurrency: options.concurrency ?? 4,
+      concurrency: DELIVERY_CONCURRENCY,
     });
     this.worker.on('error', () => undefined);
     const logger = options.logger;
@@ -61,7 +61,7 @@ export class WebhookDeliveryWorker {
     await this.worker.close();
   }
 
-  private async deliver(job: Job<WebhookDeliveryData>, timeoutMs: number): Promise<WebhookDeliveryOutcome> {
+  private async deliver(job: Job<WebhookDeliveryData>): Promise<WebhookDeliveryOutcome> {
     const webhook = await this.store.getWebhook(job.data.webhook_id);
     if (!webhook) return { dropped: 'webhook removed' };
     if (!this.registry.isAllowed(webhook.url)) throw new UnrecoverableError(`${webhook.url} is no longer on the webhook allowlist`);
@@ -74,7 +74,7 @@ export class WebhookDeliveryWorker {
         'Heatpath-Delivery': job.id ?? '',
       },
       body: job.data.body,
-      signal: AbortSignal.timeout(timeoutMs),
+      signal: AbortSignal.timeout(DELIVERY_TIMEOUT_MS),
       redirect: 'error',
     });
     await response.body?.cancel();

@@ -18,7 +18,7 @@ import { readStandardInput, STANDARD_INPUT_ARGUMENT, STANDARD_INPUT_NAME } from 
 import { claimFolder, resultFolderNames } from './result-folder-names.js';
 import { makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
-export const analyzeUsage = `heatpath analyze FILE... [options]
+const analyzeUsage = `heatpath analyze FILE... [options]
 
 Analyse cooling or heating transients (CSV or JSON) into Zth, the
 time-constant spectrum, Foster and Cauer networks, structure functions and a

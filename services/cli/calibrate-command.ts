@@ -8,7 +8,7 @@ import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { writeOutputFile } from './write-output-file.js';
 
-export const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly2|poly3|poly4|exp [--out CAL.json]
+const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly2|poly3|poly4|exp [--out CAL.json]
 
 Fit the temperature-sensitive parameter: temperature_C as a function of
 voltage_V from a calibration sweep (CSV with columns temperature_C and

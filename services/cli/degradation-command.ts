@@ -12,7 +12,7 @@ import { choiceOption, numberOption, parseCommandLine } from './cli-arguments.js
 import { analyzeComparedFiles, type ComparedMeasurement } from './compared-measurements.js';
 import { userErrorLine } from './user-error-line.js';
 
-export const degradationUsage = `heatpath degradation FILE FILE... [options]
+const degradationUsage = `heatpath degradation FILE FILE... [options]
 
 Track package degradation over power cycling: each later transient of the
 same device is compared with the reference by its cumulative structure
@@ -118,7 +118,7 @@ function campaignWarnings(reference: DegradationReference, rows: DegradationRow[
 }
 
 /** The JSON object of `heatpath degradation --format json`. */
-export function degradationReport(referenceRow: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria) {
+function degradationReport(referenceRow: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria) {
   const { measurement: reference, cycleCount, chosenBy } = referenceRow;
   return {
     heatpath_degradation: 1,
@@ -145,7 +145,7 @@ function uncertain(comparison: DegradationComparison): string {
 }
 
 /** The readable table of `heatpath degradation`: one row per later file. */
-export function formatDegradation(referenceRow: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria): string {
+function formatDegradation(referenceRow: DegradationReference, rows: DegradationRow[], criteria: DegradationCriteria): string {
   const { measurement: reference, cycleCount: referenceCycles, chosenBy } = referenceRow;
   const limitPercent = criteria.rthRiseLimitPercent;
   const crossing = limitCrossing(referenceCycles, rows, limitPercent);

@@ -38,7 +38,7 @@ const commands: Record<string, Command> = {
 };
 
 /** Exit codes: 0 done, 2 the user must fix something (one line on stderr), 1 an internal failure. */
-export async function main(argv: string[]): Promise<number> {
+async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
   const print = (text: string) => process.stdout.write(text.endsWith('\n') ? text : text + '\n');
   if (name === undefined || name === '--help' || name === '-h' || name === 'help') {

@@ -24,7 +24,7 @@ import { uploadTransient } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
 
-export const reprocessUsage = `heatpath reprocess DIR (--server URL --key TOKEN | --local) [--out DIR] [options]
+const reprocessUsage = `heatpath reprocess DIR (--server URL --key TOKEN | --local) [--out DIR] [options]
 
 Walk an archive folder (every .csv and .json below DIR; folders holding a
 reprocess-state.jsonl, the output of a run, are left out) and submit each

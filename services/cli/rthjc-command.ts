@@ -9,7 +9,7 @@ import { analyzeComparedFiles, interfaceMeasurement, type ComparedMeasurement } 
 import { formatTime } from '../../shared/analysis/format-time.js';
 
 /** Said wherever the epsilon defaults are used: they are not checked against the standard's text. */
-export const EPSILON_DEFAULTS_NOTE =
+const EPSILON_DEFAULTS_NOTE =
   `the epsilon defaults (slope ${DUAL_INTERFACE_DEFAULTS.epsilonSlope}, offset ${DUAL_INTERFACE_DEFAULTS.epsilonOffset_K_per_W} K/W) ` +
   'are recalled from JESD51-14 (2010) from memory: check them against the standard and set them with --epsilon-slope and --epsilon-offset-k-per-w';
 
@@ -22,7 +22,7 @@ const RTHJC_ACCURACY_NOTE =
   `(the deconvolution's resolution rounds the knee at the case surface; high more often than low) and the Zth difference ${errorRange(DUAL_INTERFACE_MEASURED_ERROR.zth)} ` +
   '(heat has crossed the changed interface by the time the curves part by epsilon): take either as an estimate within that range, not a measured value to a per cent';
 
-export const rthjcUsage = `heatpath rthjc FILE_A FILE_B [options]
+const rthjcUsage = `heatpath rthjc FILE_A FILE_B [options]
 
 Junction-to-case thermal resistance by the transient dual interface method
 (JESD51-14): two transients of the same device on a cold plate with two
@@ -68,7 +68,7 @@ export async function runRthjcCommand(argv: string[], print: (text: string) => v
 }
 
 /** The JSON object of `heatpath rthjc --format json`. */
-export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comparison: DualInterfaceRthjc) {
+function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comparison: DualInterfaceRthjc) {
   const { zth_criterion: zth, structure_criterion: structure } = comparison;
   return {
     heatpath_rthjc: 1,
@@ -103,7 +103,7 @@ export function rthjcReport(a: ComparedMeasurement, b: ComparedMeasurement, comp
 }
 
 /** The readable summary of `heatpath rthjc`. */
-export function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comparison: DualInterfaceRthjc): string {
+function formatRthjc(a: ComparedMeasurement, b: ComparedMeasurement, comparison: DualInterfaceRthjc): string {
   const { zth_criterion: zth, structure_criterion: structure } = comparison;
   const lowerMark = (which: 'first' | 'second') => (comparison.lower === which ? '   (lower curve: the better interface)' : '');
   const rthjc = (value: number | null) => (comparison.not_one_device !== null ? 'withheld (not one device, see below)' : value === null ? 'not found' : `${value.toPrecision(4)} K/W`);

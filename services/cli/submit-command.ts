@@ -8,7 +8,7 @@ import { uploadTransient } from './transient-upload-client.js';
 import { userErrorLine } from './user-error-line.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 
-export const submitUsage = `heatpath submit FILE... --server URL --key TOKEN --sample ID [options]
+const submitUsage = `heatpath submit FILE... --server URL --key TOKEN --sample ID [options]
 
 Upload measured transients to the heatpath service, one after the other,
 retrying while the server is busy or away. Prints one line per file:

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 
 /** What a key may do: bench uploads and reads, reader reads, admin does everything. */
-export const apiRoles = ['bench', 'reader', 'admin'] as const;
+const apiRoles = ['bench', 'reader', 'admin'] as const;
 export type ApiRole = (typeof apiRoles)[number];
 
 /** A configured API key. Only the SHA-256 of the token is kept in memory. */
@@ -12,7 +12,7 @@ export interface ApiKey {
 }
 
 /** Short tokens can be guessed; 16 characters is the least we accept. */
-export const minimumTokenLength = 16;
+const minimumTokenLength = 16;
 
 export function sha256(text: string): Buffer {
   return createHash('sha256').update(text, 'utf8').digest();

@@ -13,7 +13,7 @@ import { parseApiKeyList, type ApiKey } from './api-key-list.js';
  * defaults and their meaning are written down. Read once at start by
  * `loadServiceConfig`; nothing else reads process.env.
  */
-export const ServiceEnvSchema = Type.Object({
+const ServiceEnvSchema = Type.Object({
   PORT: Type.Integer({ minimum: 0, maximum: 65535, default: 8080, description: 'TCP port of the HTTP API (0 picks a free one).' }),
   HOST: Type.String({ minLength: 1, default: '127.0.0.1', description: 'Address the API listens on; 0.0.0.0 serves the whole lab network.' }),
   REDIS_URL: Type.String({ pattern: REDIS_URL_PATTERN.pattern, default: 'redis://127.0.0.1:6379', description: 'Redis holding the job queue (redis:// or rediss://).' }),

@@ -2,7 +2,7 @@ import type { StoreIo } from './store-io.js';
 
 /** Small file operations of the store that treat a missing file as an answer, not an error; each takes the file calls to make them with (store-io.ts). */
 
-export function isMissing(error: unknown): boolean {
+function isMissing(error: unknown): boolean {
   return (error as NodeJS.ErrnoException).code === 'ENOENT';
 }
 

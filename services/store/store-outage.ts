@@ -5,7 +5,7 @@
  * for good: no failure record is written, and the recovery sweep runs it
  * again once the store has room.
  */
-export const STORE_OUTAGE_CODES: ReadonlySet<string> = new Set(['ENOSPC', 'EDQUOT', 'EROFS', 'EACCES', 'EPERM', 'ENOTDIR', 'ENOENT', 'EIO']);
+const STORE_OUTAGE_CODES: ReadonlySet<string> = new Set(['ENOSPC', 'EDQUOT', 'EROFS', 'EACCES', 'EPERM', 'ENOTDIR', 'ENOENT', 'EIO']);
 
 /** Whether `error` is such a failure: by its code, or by the message a sandboxed processor's error keeps of it ("ENOSPC: no space left on device, write"). */
 export function isStoreOutage(error: unknown): boolean {

@@ -32,7 +32,7 @@ const KEPT_PARSE_NAME = /^[0-9a-f]{64}\.(csv|json)\.[A-Za-z0-9_-]+\.bin$/;
 /** Parallel file reads when listing: enough to hide latency, few enough to stay polite. */
 const LIST_READ_CONCURRENCY = 32;
 
-export function isStoreId(id: string): boolean {
+function isStoreId(id: string): boolean {
   return STORE_ID.test(id);
 }
 

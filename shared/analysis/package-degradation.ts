@@ -16,13 +16,13 @@ import { rthTotalStandardUncertainty_K_per_W } from './rth-total-uncertainty.js'
 export const DEFAULT_RTH_RISE_LIMIT_PERCENT = 20;
 
 /** A change within this many standard uncertainties of the limit is judged with a warning that the judgement is uncertain there. */
-export const NEAR_LIMIT_STANDARD_UNCERTAINTIES = 2;
+const NEAR_LIMIT_STANDARD_UNCERTAINTIES = 2;
 
 /**
  * An Rth total that changed by more than this many standard uncertainties, and by more than the least a shift must
  * reach, while the structure functions show no shift: the two readings disagree, and a warning says what to check.
  */
-export const SHIFT_DISAGREEMENT_STANDARD_UNCERTAINTIES = 3;
+const SHIFT_DISAGREEMENT_STANDARD_UNCERTAINTIES = 3;
 
 /** What a later measurement is judged against. */
 export interface DegradationCriteria {
@@ -53,7 +53,7 @@ function packageRthNote(packageRth_K_per_W: number): string {
 }
 
 /** Records whose last times differ by more than this factor were measured differently: their Rth totals are not compared. */
-export const RECORD_LENGTH_RATIO_LIMIT = 1.25;
+const RECORD_LENGTH_RATIO_LIMIT = 1.25;
 
 export function compareForDegradation(reference: AnalysisResult, later: AnalysisResult, criteria: DegradationCriteria): DegradationComparison {
   const { rthRiseLimitPercent, packageRth_K_per_W } = criteria;

@@ -5,7 +5,7 @@ import type { ErrorLocation } from '../errors/heatpath-error.js';
  * and one or more channels of a single quantity (several devices measured
  * together share the time axis).
  */
-export const TRANSIENT_QUANTITIES = ['zth_K_per_W', 'temperature_C', 'voltage_V'] as const;
+const TRANSIENT_QUANTITIES = ['zth_K_per_W', 'temperature_C', 'voltage_V'] as const;
 export type TransientQuantity = (typeof TRANSIENT_QUANTITIES)[number];
 
 export interface TransientChannel {

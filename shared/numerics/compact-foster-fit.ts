@@ -38,7 +38,7 @@ export interface CompactFosterFit {
  * 227 K/W at 1e6 s (a TO-247 on a large heatsink, recorded to 1000 s, whose
  * Rth is 2.2 K/W), and a circuit simulation would reach that steady state.
  */
-export const MAX_TAU_PER_LAST_TIME = 1;
+const MAX_TAU_PER_LAST_TIME = 1;
 
 /** The most stages a compact model may have (the parameter compact_stages allows up to this). */
 export const MAX_COMPACT_STAGES = 12;

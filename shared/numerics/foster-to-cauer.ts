@@ -33,9 +33,9 @@ import { HeatpathError } from '../errors/heatpath-error.js';
 import { assertPositiveStages, type CauerLadder, type FosterNetwork } from './rc-network.js';
 
 /** Stages with R below this fraction of sum R are dropped. */
-export const NEGLIGIBLE_R_FRACTION = 1e-15;
+const NEGLIGIBLE_R_FRACTION = 1e-15;
 /** Stages whose taus differ by less than this relative amount are merged. */
-export const DUPLICATE_TAU_RELATIVE = 1e-9;
+const DUPLICATE_TAU_RELATIVE = 1e-9;
 
 export function fosterToCauer(foster: FosterNetwork): CauerLadder {
   const { tau_s, weight } = conditionedStages(foster);

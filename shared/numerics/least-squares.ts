@@ -7,7 +7,7 @@
  */
 
 /** A pivot below this fraction of the largest column norm counts as rank deficiency. */
-export const RANK_TOLERANCE = 1e-12;
+const RANK_TOLERANCE = 1e-12;
 
 /**
  * Minimise |A x - b| for A with `rows` x `columns` entries stored row by row.

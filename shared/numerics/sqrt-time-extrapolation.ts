@@ -50,9 +50,9 @@ import { valueRange } from './value-range.js';
  */
 
 /** Candidate window starts lie within this many decades of the first positive time. */
-export const START_SCAN_DECADES = 2;
+const START_SCAN_DECADES = 2;
 /** Fewest samples in an automatic window. */
-export const MIN_WINDOW_SAMPLES = 8;
+const MIN_WINDOW_SAMPLES = 8;
 /**
  * An automatic window ends at least this many times later than it starts:
  * the extrapolation to t = 0 then reaches at most about ten times the
@@ -62,15 +62,15 @@ export const MIN_WINDOW_SAMPLES = 8;
  */
 export const MIN_WINDOW_TIME_RATIO = 1.2;
 /** A window passes when its reduced chi-square is below 1 + CHI_SQUARE_Z * sqrt(2 / dof). */
-export const CHI_SQUARE_Z = 3;
+const CHI_SQUARE_Z = 3;
 /** The noise allowance never drops below this fraction of the curve's value range (rounding of noiseless data). */
 export const NOISE_FLOOR_RELATIVE = 1e-6;
 /** How often the noise allowance is doubled before the search gives up. */
-export const MAX_NOISE_DOUBLINGS = 10;
+const MAX_NOISE_DOUBLINGS = 10;
 /** Windows shorter than this ratio t_end / t_start get a warning: the extrapolation is poorly anchored. */
-export const SHORT_WINDOW_TIME_RATIO = 3;
+const SHORT_WINDOW_TIME_RATIO = 3;
 /** A residual above this multiple of the noise gets a warning. */
-export const POOR_FIT_NOISE_RATIO = 2;
+const POOR_FIT_NOISE_RATIO = 2;
 /**
  * A window starting later than this gets a warning. The law is that of a
  * semi-infinite body, so it holds only until the heat reaches the bottom of
@@ -82,7 +82,7 @@ export const POOR_FIT_NOISE_RATIO = 2;
  * d^2 / (4 alpha) is 28 us for 100 um of silicon and 48 us for 180 um of
  * SiC. A later start extrapolates over time the law may no longer cover.
  */
-export const LATE_WINDOW_START_S = 5e-5;
+const LATE_WINDOW_START_S = 5e-5;
 /**
  * An automatic window ends by this time, unless it starts too late to hold
  * MIN_WINDOW_SAMPLES and MIN_WINDOW_TIME_RATIO by then: then it ends as soon
@@ -104,19 +104,19 @@ export const LATEST_WINDOW_END_S = 2e-3;
  * usual short artefact gave no such window on the twelve random stacks of test/analysis-random-stacks.test.ts
  * nor on eight more layered stacks of an independent check.
  */
-export const AMBIGUOUS_T0_RELATIVE = 0.005;
+const AMBIGUOUS_T0_RELATIVE = 0.005;
 /**
  * Later windows that start after this are not asked: by then heat has crossed a thin die (see LATE_WINDOW_START_S),
  * and the sqrt(t) lines of the package beyond it give other values at t = 0 as a matter of physics. On a record
  * sampled at a constant 100 kS/s from 10 us the search's two decades reach 1 ms, and a window of 0.23-1.04 ms on the
  * SiC example module called a T(0) ambiguous that was 0.1 K off; a record from 1 us reaches 100 us, as before.
  */
-export const LATEST_LATER_WINDOW_START_S = 1e-4;
+const LATEST_LATER_WINDOW_START_S = 1e-4;
 /**
  * Windows whose spans in time differ by less than this many decades tie (the earlier start wins): less than
  * a tenth of one step of 1000 samples per decade, and more than the rounding of times written to six digits.
  */
-export const SPAN_TIE_DECADES = 1e-4;
+const SPAN_TIE_DECADES = 1e-4;
 
 export interface SqrtTimeOptions {
   /** RMS noise of `values`, in their units (see noise-estimate.ts). */
@@ -163,7 +163,7 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   const search = (slopeSign: 1 | -1 | undefined) => {
     let noiseAllowance = Math.max(options.noise_rms, noiseFloor);
     for (let doubling = 0; doubling <= MAX_NOISE_DOUBLINGS; doubling++, noiseAllowance *= 2) {
-      const found = chooseWindow(time_s, sums, options, given, noiseAllowance, slopeSign);
+      const found = chooseWindow(time_s, sums, given, noiseAllowance, slopeSign);
       if (found !== undefined) return { found, doubling, noiseAllowance, slopeSign };
     }
     return undefined;
@@ -276,7 +276,6 @@ function checkArguments(time_s: Float64Array, values: Float64Array, options: Sqr
 function chooseWindow(
   time_s: Float64Array,
   sums: WindowSums,
-  options: SqrtTimeOptions,
   given: { start?: number; end?: number },
   noise: number,
   slopeSign: 1 | -1 | undefined,

@@ -41,20 +41,20 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  */
 
 /** Fraction of the log-time span, at its end, over which Rth total is read and the rise is judged. */
-export const STEADY_STATE_WINDOW_FRACTION = 0.05;
+const STEADY_STATE_WINDOW_FRACTION = 0.05;
 /** The window holds at least this many samples: two halves of three, from each of which a spike is trimmed. */
-export const MIN_STEADY_STATE_SAMPLES = 6;
+const MIN_STEADY_STATE_SAMPLES = 6;
 /** Fraction of a sorted set of samples dropped at each end before averaging; at least one sample is dropped. */
-export const STEADY_STATE_TRIM_FRACTION = 0.2;
+const STEADY_STATE_TRIM_FRACTION = 0.2;
 /** A rise over the nominal window above this fraction of Rth total means the record ends before steady state. */
 export const STEADY_STATE_RISE_LIMIT = 0.01;
 /**
  * A window that the minimum of samples widens to more than this many times the nominal window is read from its
  * settled end where it has one (settledLaterHalf, bendingOver).
  */
-export const WIDENED_WINDOW_FACTOR = 1.5;
+const WIDENED_WINDOW_FACTOR = 1.5;
 /** On such an end, rises of the last three samples that shrink below this ratio show a curve bending over to its steady state (see bendingOver). */
-export const SETTLING_RISE_RATIO = 0.5;
+const SETTLING_RISE_RATIO = 0.5;
 
 export interface SteadyState {
   /** The window's line at the last sample; when `steady` is false, the trend at the record's end, and the warning gives the level reached, a lower bound. */

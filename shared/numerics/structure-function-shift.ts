@@ -84,7 +84,7 @@ export interface StructureFunctionShiftOptions {
   locationDecades?: number;
 }
 
-export const STRUCTURE_FUNCTION_SHIFT_DEFAULTS: Required<StructureFunctionShiftOptions> = {
+const STRUCTURE_FUNCTION_SHIFT_DEFAULTS: Required<StructureFunctionShiftOptions> = {
   pointsPerDecade: 20,
   minimumShift_K_per_W: 0.005,
   minimumShiftFraction: 0.01,

@@ -20,17 +20,3 @@ export function timeConstantStepResponse(x: number): number {
   // constants far beyond the data (u = exp(x) << 1).
   return -Math.expm1(-Math.exp(x));
 }
-
-/** w sampled at z_k = z0 + k dz, k = 0..count-1. */
-export function sampleTimeConstantKernel(z0: number, dz: number, count: number): Float64Array {
-  const out = new Float64Array(count);
-  for (let k = 0; k < count; k++) out[k] = timeConstantKernel(z0 + k * dz);
-  return out;
-}
-
-/** s sampled at z_k = z0 + k dz, k = 0..count-1. */
-export function sampleTimeConstantStepResponse(z0: number, dz: number, count: number): Float64Array {
-  const out = new Float64Array(count);
-  for (let k = 0; k < count; k++) out[k] = timeConstantStepResponse(z0 + k * dz);
-  return out;
-}

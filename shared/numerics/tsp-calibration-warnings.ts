@@ -15,7 +15,7 @@ import { kelvinTemperatureWarning } from './kelvin-temperature-warning.js';
  * each step fits a suitable model to about 0.1 K; 0.5 K RMS is several times
  * that, and every junction temperature inherits the error.
  */
-export const CALIBRATION_RESIDUAL_WARNING_K = 0.5;
+const CALIBRATION_RESIDUAL_WARNING_K = 0.5;
 
 /**
  * |dV/dT| above this, in V/K, is warned of. Common practice: forward voltages
@@ -24,7 +24,7 @@ export const CALIBRATION_RESIDUAL_WARNING_K = 0.5;
  * -10 mV/K (memory); 0.1 V/K is ten times that, and a sweep written in
  * millivolts shows 1 to 3 V/K.
  */
-export const PLAUSIBLE_SENSITIVITY_LIMIT_V_PER_K = 0.1;
+const PLAUSIBLE_SENSITIVITY_LIMIT_V_PER_K = 0.1;
 
 /**
  * Sense voltages above this, in V, are warned of: single-junction TSPs read
@@ -35,7 +35,7 @@ export const PLAUSIBLE_SENSITIVITY_LIMIT_V_PER_K = 0.1;
  * to a few hundred volts and tens of mV/K (n junctions times about -2 mV/K), so
  * both limits can be exceeded by real TSPs.
  */
-export const PLAUSIBLE_VOLTAGE_LIMIT_V = 50;
+const PLAUSIBLE_VOLTAGE_LIMIT_V = 50;
 
 export function calibrationWarnings(calibration: Calibration, temperature_C: Float64Array, voltage_V: Float64Array): string[] {
   const warnings: string[] = [];

@@ -19,7 +19,7 @@ export const CALIBRATION_RANGE_MARGIN = 0.1;
 /** A fit must map the sweep's voltages onto at least this fraction of its temperature span; less means V does not determine T. */
 const MIN_FITTED_SPAN_FRACTION = 0.5;
 /** dT/dV is checked for a constant sign at this many evenly spaced voltages. */
-export const MONOTONIC_CHECK_POINTS = 257;
+const MONOTONIC_CHECK_POINTS = 257;
 
 const PARAMETER_COUNT: Record<CalibrationModel, number> = { linear: 2, poly2: 3, poly3: 4, poly4: 5, exp: 3 };
 /**

@@ -14,7 +14,7 @@ import { extrapolateSqrtTime } from './sqrt-time-extrapolation.js';
 export type TransientKind = 'cooling' | 'heating';
 
 /** A Zth input offset gets a warning above this fraction of its final value (and above its noise and standard error). */
-export const ZTH_OFFSET_WARNING_RELATIVE = 1e-3;
+const ZTH_OFFSET_WARNING_RELATIVE = 1e-3;
 
 export interface ZthConstructionOptions {
   kind: TransientKind;

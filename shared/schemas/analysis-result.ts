@@ -3,8 +3,8 @@ import { AnalysisParametersSchema } from './analysis-parameters.js';
 
 const Numbers = Type.Array(Type.Number());
 
-export const FosterStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_K: Type.Number(), tau_s: Type.Number() });
-export const CauerStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_K: Type.Number() });
+const FosterStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_K: Type.Number(), tau_s: Type.Number() });
+const CauerStageSchema = Type.Object({ r_K_per_W: Type.Number(), c_J_per_K: Type.Number() });
 
 /**
  * The result of analysing one channel of one transient. The CLI prints it

@@ -14,7 +14,7 @@ import type { InterfaceMeasurement } from '../../shared/numerics/dual-interface-
 import { interfaceMeasurement } from '../../services/cli/compared-measurements.js';
 import { createRandom, gaussian } from '../../shared/numerics/seeded-random.js';
 
-export const BENCH_POWER_W = 50;
+const BENCH_POWER_W = 50;
 
 /** Exact R_sum from the junction to the far face of `layerName` (through the layer). */
 export function rSumThroughLayer(stack: LayeredStack, truth: StackTruth, layerName: string): number {

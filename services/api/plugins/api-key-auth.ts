@@ -9,7 +9,7 @@ import { sha256, type ApiKey, type ApiRole } from '../../config/api-key-list.js'
 /** What a route needs; each route declares one in `config.permission`. */
 export type Permission = 'read' | 'upload' | 'admin';
 
-export const rolePermissions: Record<ApiRole, readonly Permission[]> = {
+const rolePermissions: Record<ApiRole, readonly Permission[]> = {
   bench: ['read', 'upload'],
   reader: ['read'],
   admin: ['read', 'upload', 'admin'],

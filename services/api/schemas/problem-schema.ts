@@ -7,7 +7,7 @@ export const problemMediaType = 'application/problem+json';
  * type, title, status, detail, instance; plus our extension members. `code`
  * is the stable key of shared/errors/error-catalogue.ts.
  */
-export const ProblemSchema = Type.Object(
+const ProblemSchema = Type.Object(
   {
     type: Type.String({ description: 'URI naming the problem type (RFC 9457 section 3.1.1).' }),
     title: Type.String(),
