@@ -13,7 +13,8 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { parseTransient } from '../shared/input/parse-transient.js';
 import { PARSER_VERSION } from '../shared/analysis/algorithm-version.js';
 import { decodeParsedTransient, encodeParsedTransient } from '../services/store/parsed-transient-codec.js';
-import { sha256Hex, TransientStore } from '../services/store/transient-store.js';
+import { sha256Hex } from '../shared/input/sha256-hex.js';
+import { TransientStore } from '../services/store/transient-store.js';
 
 const fixture = (name: string) => readFileSync(new URL(`./fixtures/demo-lab/${name}`, import.meta.url));
 

@@ -3,7 +3,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';
-import { sha256Hex, TransientStore } from '../services/store/transient-store.js';
+import { sha256Hex } from '../shared/input/sha256-hex.js';
+import { TransientStore } from '../services/store/transient-store.js';
 import type { ResultRecord, UploadRecord } from '../services/store/store-records.js';
 import { asyncStoreIo, blockingStoreIo, type StoreIo } from '../services/store/store-io.js';
 

@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';
-import { sha256Hex } from '../services/store/transient-store.js';
+import { sha256Hex } from '../shared/input/sha256-hex.js';
 import type { UploadRecord } from '../services/store/store-records.js';
 import { UPLOAD_SUMMARY_SNAPSHOT_FORMAT, UploadSummaryIndex } from '../services/store/upload-summary-index.js';
 

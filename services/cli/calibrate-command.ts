@@ -1,4 +1,3 @@
-import { createHash } from 'node:crypto';
 import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCalibrationPoints } from '../../shared/input/parse-calibration-points.js';
 import { calibrationFromSweep } from '../../shared/analysis/calibration-from-sweep.js';
@@ -7,6 +6,7 @@ import { CalibrationModelSchema, type CalibrationModel } from '../../shared/sche
 import { choiceOption, parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
 import { writeOutputFile } from './write-output-file.js';
+import { sha256Hex } from '../../shared/input/sha256-hex.js';
 
 const calibrateUsage = `heatpath calibrate POINTS.csv --model linear|poly2|poly3|poly4|exp [--out CAL.json]
 
@@ -40,7 +40,7 @@ export async function runCalibrateCommand(argv: string[], print: (text: string) 
   const calibration = {
     ...calibrationFromSweep(points, model),
     created_at: new Date().toISOString(),
-    source: `${file} sha256:${createHash('sha256').update(bytes).digest('hex')}`,
+    source: `${file} sha256:${sha256Hex(bytes)}`,
   };
   print(
     [

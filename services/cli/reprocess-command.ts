@@ -1,4 +1,4 @@
-import { createHash, randomUUID } from 'node:crypto';
+import { randomUUID } from 'node:crypto';
 import { existsSync, readdirSync } from 'node:fs';
 import { readdir, realpath, stat } from 'node:fs/promises';
 import { basename, dirname, extname, join, relative, resolve, sep } from 'node:path';
@@ -23,6 +23,7 @@ import { ServerRefusal, type UploadTarget } from './post-to-server.js';
 import { uploadTransient } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
+import { sha256Hex } from '../../shared/input/sha256-hex.js';
 
 const reprocessUsage = `heatpath reprocess DIR (--server URL --key TOKEN | --local) [--out DIR] [options]
 
@@ -164,7 +165,7 @@ export async function runReprocessCommand(
     while (next < files.length && !stopped.aborted && runStop === undefined) {
       const { path, relativePath } = files[next++];
       const bytes = await readInputFile(path);
-      const sha256 = createHash('sha256').update(bytes).digest('hex');
+      const sha256 = sha256Hex(bytes);
       const job = archiveFileJobId(bytes, path, relativePath, sha256, settings);
       const earlier = outcomes.get(relativePath);
       const reason = earlier ? whyAgain(earlier, { sha256, key: job.jobId, target }, resultsPresent) : null;

@@ -1,7 +1,7 @@
-import { createHash } from 'node:crypto';
 import { ALGORITHM_VERSION } from '../../shared/analysis/algorithm-version.js';
 import { defaultAnalysisParameters, type AnalysisParameters, type Power } from '../../shared/schemas/analysis-parameters.js';
 import { canonicalJson } from '../../shared/schemas/canonical-json.js';
+import { sha256Hex } from '../../shared/input/sha256-hex.js';
 
 /** Everything that determines an analysis result. */
 export interface JobIdentity {
@@ -41,5 +41,5 @@ export function jobIdFor(identity: JobIdentity): string {
     power: identity.power,
     sample_id: identity.sample_id,
   });
-  return 'job-' + createHash('sha256').update(determinants, 'utf8').digest('hex').slice(0, 40);
+  return 'job-' + sha256Hex(determinants).slice(0, 40);
 }

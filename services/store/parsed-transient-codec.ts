@@ -1,6 +1,6 @@
-import { createHash } from 'node:crypto';
 import { endianness } from 'node:os';
 import { isTransientQuantity, type TransientFile } from '../../shared/input/transient-file.js';
+import { sha256Hex } from '../../shared/input/sha256-hex.js';
 
 /**
  * A parsed transient as bytes, so that the service parses each upload once
@@ -44,7 +44,7 @@ export function encodeParsedTransient(file: TransientFile): Uint8Array {
     channel_names: file.channels.map((channel) => channel.name),
     samples,
     byte_order: endianness(),
-    data_sha256: createHash('sha256').update(data).digest('hex'),
+    data_sha256: sha256Hex(data),
   };
   const headerBytes = Buffer.from(JSON.stringify(header), 'utf8');
   const dataStart = alignTo8(4 + headerBytes.length);
@@ -67,7 +67,7 @@ export function decodeParsedTransient(bytes: Uint8Array): TransientFile | null {
       header.kept_parse !== LAYOUT_VERSION || header.byte_order !== endianness() || !isTransientQuantity(header.quantity) || !Number.isInteger(samples) || samples < 0 ||
       !Array.isArray(names) || !names.every((name) => typeof name === 'string') || !isRecordOf(header.meta, 'string') || !isRecordOf(header.meta_lines, 'number') ||
       bytes.length !== dataStart + (names.length + 1) * samples * 8 ||
-      createHash('sha256').update(bytes.subarray(dataStart)).digest('hex') !== header.data_sha256
+      sha256Hex(bytes.subarray(dataStart)) !== header.data_sha256
     ) {
       return null;
     }

@@ -1,4 +1,3 @@
-import { createHash } from 'node:crypto';
 import { access, constants, stat, statfs } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
@@ -23,10 +22,11 @@ import type {
   WebhookRecord,
   WithdrawalRecord,
 } from './store-records.js';
+import { isSha256Hex, sha256Hex } from '../../shared/input/sha256-hex.js';
+import { RECORD_ID_PATTERN } from '../../shared/schemas/worded-patterns.js';
 
 /** Ids that are safe as file names: no separators, no leading dot. */
-const STORE_ID = /^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$/;
-const SHA256_HEX = /^[0-9a-f]{64}$/;
+const STORE_ID = new RegExp(RECORD_ID_PATTERN.pattern);
 /** A kept parse's file name: <sha256>.<format>.<parser version>.bin (temporary files start with a dot). */
 const KEPT_PARSE_NAME = /^[0-9a-f]{64}\.(csv|json)\.[A-Za-z0-9_-]+\.bin$/;
 /** Parallel file reads when listing: enough to hide latency, few enough to stay polite. */
@@ -34,10 +34,6 @@ const LIST_READ_CONCURRENCY = 32;
 
 function isStoreId(id: string): boolean {
   return STORE_ID.test(id);
-}
-
-export function sha256Hex(bytes: Uint8Array | string): string {
-  return createHash('sha256').update(bytes).digest('hex');
 }
 
 export interface StoredBlob {
@@ -99,11 +95,11 @@ export class TransientStore {
   }
 
   async hasBlob(sha256: string): Promise<boolean> {
-    return SHA256_HEX.test(sha256) && exists(this.io, this.blobPath(sha256));
+    return isSha256Hex(sha256) && exists(this.io, this.blobPath(sha256));
   }
 
   async getBlob(sha256: string): Promise<Uint8Array | null> {
-    if (!SHA256_HEX.test(sha256)) return null;
+    if (!isSha256Hex(sha256)) return null;
     return readOrNull(this.io, this.blobPath(sha256));
   }
 
@@ -128,7 +124,7 @@ export class TransientStore {
 
   /** The kept parse of a blob read as `format`, or null (none kept, another parser version's, damaged, or not readable at all): then parse the blob. */
   async getParsedTransient(sha256: string, format: UploadRecord['format']): Promise<TransientFile | null> {
-    if (!SHA256_HEX.test(sha256)) return null;
+    if (!isSha256Hex(sha256)) return null;
     const bytes = await readOrNull(this.io, this.parsedPath(sha256, format)).catch(() => null);
     return bytes ? decodeParsedTransient(bytes) : null;
   }
@@ -272,7 +268,7 @@ export class TransientStore {
   }
 
   async getCalibration(calibrationId: string): Promise<CalibrationRecord | null> {
-    return SHA256_HEX.test(calibrationId) ? readJson<CalibrationRecord>(this.io, join(this.dataDir, 'calibrations', `${calibrationId}.json`)) : null;
+    return isSha256Hex(calibrationId) ? readJson<CalibrationRecord>(this.io, join(this.dataDir, 'calibrations', `${calibrationId}.json`)) : null;
   }
 
   /** Every stored calibration, oldest first. */
@@ -439,7 +435,7 @@ function requireId(id: string): string {
 }
 
 function requireSha256(sha256: string): string {
-  if (!SHA256_HEX.test(sha256)) throw new Error(`not a SHA-256 in hex: ${JSON.stringify(sha256)}`);
+  if (!isSha256Hex(sha256)) throw new Error(`not a SHA-256 in hex: ${JSON.stringify(sha256)}`);
   return sha256;
 }
 

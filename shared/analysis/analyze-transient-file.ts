@@ -1,4 +1,4 @@
-import { createHash } from 'node:crypto';
+import { sha256Hex } from '../input/sha256-hex.js';
 import { HeatpathError } from '../errors/heatpath-error.js';
 import { parseTransient } from '../input/parse-transient.js';
 import type { TransientFile } from '../input/transient-file.js';
@@ -85,7 +85,7 @@ export function analyzeTransientFile(input: TransientFileInput, createdAt: strin
     algorithm: ALGORITHM_VERSION,
     method: parameters.method,
     parameters,
-    input_sha256: sha256(input.bytes),
+    input_sha256: sha256Hex(input.bytes),
     calibration: null,
     calibration_sha256: null,
     created_at: createdAt,
@@ -300,8 +300,4 @@ function fosterStages(foster: FosterNetwork): AnalysisResult['foster'] {
 
 function cauerStages(cauer: CauerLadder): AnalysisResult['cauer'] {
   return Array.from(cauer.r_K_per_W, (r, i) => ({ r_K_per_W: r, c_J_per_K: cauer.c_J_per_K[i] }));
-}
-
-function sha256(data: Uint8Array | string): string {
-  return createHash('sha256').update(data).digest('hex');
 }

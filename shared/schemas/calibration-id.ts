@@ -1,6 +1,6 @@
-import { createHash } from 'node:crypto';
 import type { Calibration } from './calibration.js';
 import { canonicalJson } from './canonical-json.js';
+import { sha256Hex } from '../input/sha256-hex.js';
 
 /**
  * The id of a calibration: SHA-256 of its canonical JSON, so the same
@@ -16,5 +16,5 @@ import { canonicalJson } from './canonical-json.js';
  */
 export function calibrationIdOf(calibration: Calibration): string {
   const { warnings: _derived, created_at: _when, source: _from, bench: _where, ...content } = calibration;
-  return createHash('sha256').update(canonicalJson(content), 'utf8').digest('hex');
+  return sha256Hex(canonicalJson(content));
 }

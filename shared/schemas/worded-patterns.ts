@@ -1,3 +1,5 @@
+import { SHA256_HEX_PATTERN } from '../input/sha256-hex.js';
+
 /**
  * The patterns of heatpath's patterned fields, each with what it allows in plain words. The schemas take their
  * pattern from here, and plainValidationIssues says a value that does not match in these words, not as the
@@ -15,11 +17,11 @@ export const SAMPLE_ID_PATTERN: WordedPattern = {
 };
 
 export const CALIBRATION_ID_PATTERN: WordedPattern = {
-  pattern: '^[0-9a-f]{64}$',
+  pattern: SHA256_HEX_PATTERN,
   allows: 'a calibration id: exactly 64 lower-case hexadecimal digits (0-9, a-f), as POST /v1/calibrations answers and heatpath calibrate prints it',
 };
 
-/** A job's or batch's id, as the service gives it (job-..., bat-...). */
+/** A job's or batch's id, as the service gives it (job-..., bat-...); the store takes no other ids as file names. */
 export const RECORD_ID_PATTERN: WordedPattern = {
   pattern: '^[A-Za-z0-9_-][A-Za-z0-9._-]{0,159}$',
   allows: 'letters, digits, . _ - only (no spaces or /), not starting with ., up to 160 characters, as the service gives the id',

@@ -1,4 +1,5 @@
 import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
+import { isSha256Hex } from '../../../shared/input/sha256-hex.js';
 
 /**
  * What a trend's measurement was analysed with, setting by setting (the algorithm version, each parameter of its
@@ -23,7 +24,7 @@ function analysisSettings(result: AnalysisResult): AnalysisSettings {
 function settingText(value: unknown): string {
   if (value === undefined || value === null) return 'automatic';
   const text = String(value);
-  return /^[0-9a-f]{64}$/.test(text) ? `${text.slice(0, 12)}...` : text;
+  return isSha256Hex(text) ? `${text.slice(0, 12)}...` : text;
 }
 
 function settingNames(settings: readonly AnalysisSettings[]): string[] {

@@ -18,7 +18,8 @@ import { AnalysisParametersSchema, type AnalysisParameters, type Power } from '.
 import type { ApiKey } from '../../config/api-key-list.js';
 import { jobIdFor } from '../../jobs/job-id.js';
 import type { UploadRecord } from '../../store/store-records.js';
-import { sha256Hex, type TransientStore } from '../../store/transient-store.js';
+import { sha256Hex } from '../../../shared/input/sha256-hex.js';
+import type { TransientStore } from '../../store/transient-store.js';
 import type { UploadSummary } from '../../store/upload-summary-index.js';
 import { JOB_PRIORITY, type AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { FailedJobRetry, MENDABLE_FAILURE_CODES } from '../../../workers/retry-failed-job.js';
