@@ -19,7 +19,7 @@ export interface AnalysisWorkerOptions {
   redisUrl: string;
   /** BullMQ key prefix: the service's HEATPATH_QUEUE_PREFIX. */
   prefix: string;
-  /** Jobs at once, each in its own child process. Default 1 (run one worker per core). */
+  /** Jobs at once, each in its own child process. Default 1; workers/main.ts runs one worker with one process per CPU core plus one. */
   concurrency?: number;
   /** How long a job's lock lasts without renewal (a dead worker's job is taken over after it). Default: HEATPATH_LOCK_DURATION_MS's. */
   lockDurationMs?: number;

@@ -69,16 +69,16 @@ export interface QueueConfig {
   webhookAllowlist: string[];
 }
 
-/**
- * Validate the environment once. Throws one CONFIG_INVALID error that lists
- * every bad variable with what to set instead, so an operator fixes all in
- * one go.
- */
 export interface ServiceConfigOptions {
   /** Whether this process serves HTTP and so needs API keys (default true; workers alone need none). */
   servesApi?: boolean;
 }
 
+/**
+ * Validate the environment once. Throws one CONFIG_INVALID error that lists
+ * every bad variable with what to set instead, so an operator fixes all in
+ * one go.
+ */
 export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { servesApi = true }: ServiceConfigOptions = {}): ServiceConfig {
   const known = Object.keys(ServiceEnvSchema.properties);
   const given = Object.fromEntries(known.filter((name) => env[name] !== undefined && env[name] !== '').map((name) => [name, env[name]]));

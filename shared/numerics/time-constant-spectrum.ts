@@ -4,10 +4,12 @@
  * The curve is resampled on a uniform z = ln t grid (log-time-grid.ts) and
  * a(z) = sum_j r_j s(z - zeta_j), s(x) = 1 - exp(-exp(x)), is inverted for
  * r_j >= 0 on a zeta grid of the same spacing that extends a little beyond the
- * data (Szekely & Van Bien, Solid-State Electronics 31, 1988). Both methods
- * work on the increments of a over the grid cells, whose kernel is the exact
- * cell integral of w(z) = exp(z - exp(z)); the fit quality is always judged on
- * a itself, where the bench noise is white and its level is known.
+ * data (Szekely & Van Bien, Solid-State Electronics 31, 1988). The default,
+ * 'posterior-mean', fits a itself through the step-response matrix
+ * (s sampled at z_i - zeta_j); 'fourier' and 'bayes' work on the increments
+ * of a over the grid cells, whose kernel is the exact cell integral of
+ * w(z) = exp(z - exp(z)). The fit quality of every method is judged on a
+ * itself, where the bench noise is white and its level is known.
  *
  * 'posterior-mean' (the recommended default) is the mean of exact
  * non-negative least-squares fits to noise-perturbed copies of the curve

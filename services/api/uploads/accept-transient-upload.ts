@@ -26,6 +26,7 @@ import { FailedJobRetry, MENDABLE_FAILURE_CODES } from '../../../workers/retry-f
 import type { JobState } from '../jobs/job-status.js';
 import { CHANNEL_CALIBRATION_FIELD, CHANNEL_CALIBRATION_ID_FIELD, channelCalibrationFields, type UploadMetadata } from '../schemas/transient-metadata.js';
 import type { UploadRequest } from './read-upload-request.js';
+import { jobLinks } from '../../jobs/job-links.js';
 
 export interface UploadAnswer {
   upload_id: string;
@@ -229,7 +230,8 @@ function headerLabelWarnings(meta: Record<string, string>, metadata: UploadMetad
 }
 
 export function uploadLinks(record: UploadRecord): UploadAnswer['links'] {
-  return { self: `/v1/transients/${record.upload_id}`, job: `/v1/jobs/${record.job_id}`, result: `/v1/jobs/${record.job_id}/result` };
+  const job = jobLinks(record.job_id);
+  return { self: `/v1/transients/${record.upload_id}`, job: job.self, result: job.result };
 }
 
 /**
