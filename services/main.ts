@@ -4,7 +4,8 @@ import { serviceConfigOrExit } from './config/service-config-or-exit.js';
 import { startedOrExit } from './config/started-or-exit.js';
 import { AnalysisQueue } from '../workers/analysis-queue.js';
 import { withQueueDeadline } from './api/jobs/deadline-queue.js';
-import { closeOnSignals, startApi } from './api/start-api.js';
+import { startApi } from './api/start-api.js';
+import { closeOnSignals } from './config/close-on-signals.js';
 
 /**
  * `npm start`: API and workers on one machine, one process (the analysis
@@ -29,7 +30,7 @@ if (!redisAnswers) {
 
 const api = await startedOrExit('the API', startApi(config, logger));
 const workers = await startedOrExit('the analysis workers', startWorkers({ config, logger, metricsRegistry: api.app.metricsRegistry }));
-closeOnSignals(logger, async () => {
+closeOnSignals(logger, config.queue.shutdownTimeoutMs, async () => {
   await api.close();
   await workers.close();
 });

@@ -14,6 +14,7 @@ import { WebhookDeliveryWorker } from './webhook-delivery.js';
 import { WebhookRegistry } from './webhook-registry.js';
 import { observeAnalysisWorker, observeWebhookDeliveries } from './worker-metrics.js';
 import { startWorkerMetricsServer, type WorkerMetricsServer } from './worker-metrics-server.js';
+import { closeOnSignals } from '../services/config/close-on-signals.js';
 
 export interface StartWorkersOptions {
   config: ServiceConfig;
@@ -85,9 +86,6 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
   };
 }
 
-/** Time beyond HEATPATH_SHUTDOWN_TIMEOUT_MS after which a stopping worker process exits whatever still runs. */
-const SHUTDOWN_GRACE_MS = 5_000;
-
 /** `npm run start:worker`: workers only, until SIGTERM or SIGINT. */
 async function runWorkerProcess(): Promise<void> {
   const config = serviceConfigOrExit({ servesApi: false });
@@ -105,28 +103,7 @@ async function runWorkerProcess(): Promise<void> {
     logger.info({ url: `http://${config.host}:${metrics.port}/metrics` }, 'worker metrics served');
   }
   const workers = await startedOrExit('the analysis workers', startWorkers({ config, logger, metricsRegistry }));
-  let stopping = false;
-  const stop = (signal: string) => {
-    if (stopping) return;
-    stopping = true;
-    logger.info({ signal }, 'stopping workers');
-    // The close is bounded by the shutdown timeout; should a child process or a
-    // connection still hold it up (a child signalled while it was starting), exit
-    // anyway a little later: unfinished jobs are taken over when their locks expire.
-    setTimeout(() => {
-      logger.error('workers did not stop within the shutdown timeout: exiting; unfinished jobs will be taken over by another worker');
-      process.exit(1);
-    }, config.queue.shutdownTimeoutMs + SHUTDOWN_GRACE_MS).unref();
-    Promise.all([workers.close(), metrics?.close()]).then(
-      () => process.exit(0),
-      (error: unknown) => {
-        logger.error({ err: error }, 'workers did not stop cleanly');
-        process.exit(1);
-      },
-    );
-  };
-  process.on('SIGTERM', () => stop('SIGTERM'));
-  process.on('SIGINT', () => stop('SIGINT'));
+  closeOnSignals(logger, config.queue.shutdownTimeoutMs, () => Promise.all([workers.close(), metrics?.close()]));
 }
 
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) await runWorkerProcess();

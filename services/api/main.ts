@@ -1,7 +1,8 @@
 import { pino } from 'pino';
 import { serviceConfigOrExit } from '../config/service-config-or-exit.js';
 import { startedOrExit } from '../config/started-or-exit.js';
-import { closeOnSignals, startApi } from './start-api.js';
+import { closeOnSignals } from '../config/close-on-signals.js';
+import { startApi } from './start-api.js';
 
 /**
  * `npm run start:api`: the HTTP API alone (workers run elsewhere, `npm run
@@ -11,4 +12,4 @@ import { closeOnSignals, startApi } from './start-api.js';
 const config = serviceConfigOrExit();
 const logger = pino({ level: config.logLevel, name: 'heatpath-api' });
 const api = await startedOrExit('the API', startApi(config, logger));
-closeOnSignals(logger, api.close);
+closeOnSignals(logger, config.queue.shutdownTimeoutMs, api.close);

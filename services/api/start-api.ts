@@ -37,22 +37,3 @@ export async function startApi(config: ServiceConfig, logger: Logger): Promise<R
     },
   };
 }
-
-/** Runs `close` once on SIGTERM or SIGINT, then exits. */
-export function closeOnSignals(logger: Logger, close: () => Promise<void>): void {
-  let closing = false;
-  const stop = (signal: string) => {
-    if (closing) return;
-    closing = true;
-    logger.info({ signal }, 'stopping');
-    close().then(
-      () => process.exit(0),
-      (error: unknown) => {
-        logger.error({ err: error }, 'did not stop cleanly');
-        process.exit(1);
-      },
-    );
-  };
-  process.on('SIGTERM', () => stop('SIGTERM'));
-  process.on('SIGINT', () => stop('SIGINT'));
-}
