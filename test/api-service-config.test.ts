@@ -1,3 +1,9 @@
+/**
+ * The service's environment (services/config/service-config.ts). Expected values: the defaults and meanings in
+ * the README's table of variables (the user's manual, which the schema must agree with); token hashes are SHA-256
+ * (FIPS 180-4) of the token's UTF-8 text, so no token is kept; that one start names every bad variable at once and
+ * never echoes a secret is common practice for service configuration.
+ */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';

@@ -1,3 +1,10 @@
+/**
+ * The analysis queue (workers/analysis-queue.ts) on a real Redis. Expected behaviour: job ids are a function of
+ * every determinant of a result (README: same bytes and parameters share a job); BullMQ's documented semantics
+ * that a job id already in the queue is not added again and that a lower priority number runs first (BullMQ docs,
+ * "Job ids" and "Prioritized"), which the queue relies on for one job per content and interactive uploads before
+ * batch jobs.
+ */
 import { Worker } from 'bullmq';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { defaultAnalysisParameters } from '../shared/schemas/analysis-parameters.js';

@@ -1,3 +1,10 @@
+/**
+ * Worker faults with real worker processes and a real Redis (a second redis-server for the restart). Expected
+ * behaviour: BullMQ's documented stalled-job recovery (a job whose worker died is taken over once its lock
+ * expires: BullMQ docs, "Stalled Jobs"), graceful shutdown on SIGTERM (common practice for services: finish
+ * running work, take no new work, exit 0), and the README's promises that an upload once answered is never lost
+ * and that a killed worker leaves no analysis processes behind.
+ */
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
 import { eventually, QueueTestFixture } from './support/queue-test-fixture.js';

@@ -1,3 +1,11 @@
+/**
+ * The cut at the sink (shared/numerics/structure-function-sink.ts). The sink is the vertical asymptote of the
+ * cumulative structure function (Szekely & Van Bien, Solid-State Electronics 31, 1988; common practice).
+ * Expected values hand-computed on hand-made curves: with Rth total = 1 K/W and SINK_REMAINING_R_FRACTION = 1e-3,
+ * the first point whose remaining resistance 1 - R_sum is below 1e-3 is R_sum = 0.9995 (5e-4 left), so it is kept
+ * and the two after it are cut; in a curve with 0.1 K/W left before its closing point, the closing point is the
+ * first such point and nothing is cut.
+ */
 import { describe, expect, it } from 'vitest';
 import { cutAtSink, SINK_REMAINING_R_FRACTION } from '../shared/numerics/structure-function-sink.js';
 

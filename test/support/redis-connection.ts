@@ -25,9 +25,9 @@ export function testRedis(): Promise<TestRedis> {
 }
 
 async function resolveTestRedis(): Promise<TestRedis> {
-  const container = dockerEngineLikely() ? await startContainer() : null;
-  if (container) return container;
   const url = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379';
+  const container = dockerEngineLikely() ? await startContainer(url) : null;
+  if (container) return container;
   if (!(await answersPing(url))) throw new Error(`No Redis answers at ${url} for the integration tests: ${START_HINT}.`);
   return { url, stop: async () => undefined };
 }
@@ -37,12 +37,16 @@ function dockerEngineLikely(): boolean {
   return Boolean(process.env.DOCKER_HOST) || existsSync('/var/run/docker.sock');
 }
 
-async function startContainer(): Promise<TestRedis | null> {
+/** A testcontainers Redis, or null (said on stderr, with the Redis used instead) when the engine cannot start one. */
+async function startContainer(fallbackUrl: string): Promise<TestRedis | null> {
   try {
     const { RedisContainer } = await import('@testcontainers/redis');
     const started = await new RedisContainer('redis:7-alpine').start();
     return { url: started.getConnectionUrl(), stop: async () => void (await started.stop()) };
-  } catch {
+  } catch (error) {
+    const reason = (error instanceof Error ? error.message : String(error)).split('\n')[0];
+    const from = process.env.REDIS_URL !== undefined ? 'REDIS_URL' : 'the default';
+    process.stderr.write(`test Redis: a Docker engine is configured but the Redis container did not start (${reason}); using ${fallbackUrl} (${from}) instead\n`);
     return null;
   }
 }
