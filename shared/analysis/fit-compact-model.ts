@@ -15,7 +15,7 @@ export const COMPACT_MODEL_WARNING = 'compact model:';
  * the noise, and the fit costs a fraction of one on every raw sample. Its
  * error is then measured against every sample.
  */
-const COMPACT_FIT_POINTS_PER_DECADE = 20;
+export const COMPACT_FIT_POINTS_PER_DECADE = 20;
 
 /** The compact stages' sum of R may differ this much from Rth total before a warning: a few stages fit within it. */
 export const COMPACT_TOTAL_R_TOLERANCE = 0.02;

@@ -15,7 +15,7 @@ import { kelvinTemperatureWarning } from './kelvin-temperature-warning.js';
  * each step fits a suitable model to about 0.1 K; 0.5 K RMS is several times
  * that, and every junction temperature inherits the error.
  */
-const CALIBRATION_RESIDUAL_WARNING_K = 0.5;
+export const CALIBRATION_RESIDUAL_WARNING_K = 0.5;
 
 /**
  * |dV/dT| above this, in V/K, is warned of. Common practice: forward voltages
