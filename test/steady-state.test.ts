@@ -139,3 +139,51 @@ describe('steadyStateRth on sparse and on short records', () => {
     expect(result.warnings).toEqual([expect.stringMatching(/^Zth falls by \d\.\d % of Rth over the last 0\.30 decades of the record, which a passive thermal path cannot do: the reference temperature drifted/)]);
   });
 });
+
+describe('steadyStateRth on a curve that bends over within its window', () => {
+  // Truth: the exact Foster form of the TO-247 example stack (eigendecomposition of its fine Cauer ladder), whose
+  // slowest time constant (9.55 s) carries most of the rise at the record's end. Bench noise: 0.02 K at P Rth = 60 K.
+  const truth = layeredStackTruth(TO247_ON_HEATSINK_STACK);
+  const stackRth = truth.foster.r_K_per_W.reduce((sum, r) => sum + r, 0);
+  const slowest_s = Math.max(...truth.foster.tau_s);
+  const noise_K_per_W = (0.02 / 60) * stackRth;
+  const recordTo = (multiple: number) => {
+    const t = logSpacedTimes(1e-6, multiple * slowest_s, 100);
+    return { t, z: zthFromFoster(truth.foster.r_K_per_W, truth.foster.tau_s, t) };
+  };
+
+  it('reads a settled record at its end level, where the straight line in log t overshot', () => {
+    // Recorded to 10 times the slowest tau: the window (0.37 decades) starts at 4.3 tau, and the line through it read
+    // 0.13 % above the end.
+    const { t, z } = recordTo(10);
+    const result = steadyStateRth(t, z, 0);
+    expect(Math.abs(result.rth_K_per_W / z[z.length - 1] - 1)).toBeLessThan(1e-4);
+    expect(result.steady).toBe(true);
+    const random = createRandom(31);
+    for (let draw = 0; draw < 10; draw++) {
+      const noisy = steadyStateRth(t, z.map((value) => value + noise_K_per_W * gaussian(random)), noise_K_per_W);
+      expect(Math.abs(noisy.rth_K_per_W - z[z.length - 1])).toBeLessThan(3 * noisy.rth_standard_error_K_per_W);
+      expect(noisy.steady).toBe(true);
+    }
+  });
+
+  it('on a record that ends at 5 tau, reads no more than the exponential approach levels off at, and no less than the level reached', () => {
+    // The line's end read 0.47 % above the true Rth total, beyond what any extrapolation of a settling curve gives.
+    const { t, z } = recordTo(5);
+    const result = steadyStateRth(t, z, 0);
+    expect(result.steady).toBe(false);
+    expect(Math.abs(result.rth_K_per_W / stackRth - 1)).toBeLessThan(1e-4);
+    expect(result.warnings).toEqual([expect.stringMatching(/Rth total \(1\.062 K\/W, where an exponential approach fitted to the last 0\.38 decades levels off\) is no steady state: the true Rth total is at least the level the last 6 samples reached, 1\.05\d K\/W/)]);
+    expect(result.rth_K_per_W).toBeGreaterThanOrEqual(z[z.length - 1]);
+  });
+
+  it('on a record that ends at 3 tau, keeps the trend at its end, which lies below, and gives the extrapolation in the warning', () => {
+    const { t, z } = recordTo(3);
+    const result = steadyStateRth(t, z, 0);
+    expect(result.steady).toBe(false);
+    expect(result.rth_K_per_W).toBeLessThan(stackRth);
+    expect(result.rth_K_per_W).toBeGreaterThan(z[z.length - 1]);
+    const extrapolated = Number(/an exponential approach fitted to the last 0\.37 decades \(time constant [\d.]+ s\) levels off at ([\d.]+) K\/W, if no slower time constant follows/.exec(result.warnings[0])![1]);
+    expect(Math.abs(extrapolated / stackRth - 1)).toBeLessThan(0.002);
+  });
+});

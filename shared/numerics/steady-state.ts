@@ -1,4 +1,5 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { exponentialApproach, MIN_EXPONENTIAL_APPROACH_SAMPLES } from './exponential-approach.js';
 
 /**
  * Rth total as the steady-state end of Zth(t), read from the samples in the
@@ -9,10 +10,18 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * lies below its end: by 2 % of Rth on a settled TO-247 part sampled at 10
  * points per decade, whose window the minimum of samples had widened to 0.9
  * decades. The line's end errs the other way by a fraction of the rise: a
- * settling curve bends over within the window (up to +0.3 % of Rth on that
- * part), one still steepening bends up (-1 % of its end where the record ends
- * at 0.7 of the slowest tau). It is not the integral of the time-constant
- * spectrum, which noise biases upward at long time constants.
+ * settling curve bends over within the window, and the line ran on past its
+ * level (+0.13 % of Rth on that part recorded to 10 times its slowest tau,
+ * +0.22 % on a discrete part recorded to 10 times its 98 s, +0.5 % and
+ * more where the record ends at 5 tau); one still steepening bends up (-1 % of
+ * its end where the record ends at 0.7 of the slowest tau). So where an
+ * exponential approach fitted to the window (at least
+ * MIN_EXPONENTIAL_APPROACH_SAMPLES samples; exponential-approach.ts: the form
+ * Zth takes once only its slowest time constant still rises, accepted where
+ * its residual is the noise) levels off below the line's end, beyond twice
+ * the standard error of their difference, Rth total is that level. It is not
+ * the integral of the time-constant spectrum, which noise biases upward at
+ * long time constants.
  *
  * The line is a resistant two-group line (Wald, Ann. Math. Stat. 11, 1940;
  * Tukey's resistant line, Exploratory Data Analysis, 1977, uses medians of
@@ -22,9 +31,11 @@ import { HeatpathError } from '../errors/heatpath-error.js';
  * estimate (Tukey & McLaughlin, Sankhya A 25, 1963): one spike moves neither.
  *
  * A curve still rising at its end has not reached steady state: Rth total is
- * then the trend at the record's end (it can overshoot a curve that levels off
- * within the window), and the warning gives the level the last samples
- * reached, a lower bound of the true Rth total. The rise is the line's slope times
+ * then the trend at the record's end, or the exponential approach's level
+ * where the trend overshoots it, and never less than the level the last
+ * samples reached, a lower bound of the true Rth total, which the warning
+ * gives, with the level an exponential approach would reach where the trend
+ * lies below it. The rise is the line's slope times
  * the nominal window (the last 5 % of the log-time span), not times the
  * window actually used, which sparse sampling widens; so, densely sampled, a
  * part whose slowest time constant is a tenth of the record length counts as
@@ -57,7 +68,10 @@ const WIDENED_WINDOW_FACTOR = 1.5;
 const SETTLING_RISE_RATIO = 0.5;
 
 export interface SteadyState {
-  /** The window's line at the last sample; when `steady` is false, the trend at the record's end, and the warning gives the level reached, a lower bound. */
+  /**
+   * The window's line at the last sample, or the level an exponential approach fitted to the window reaches where
+   * the line overshoots it; when `steady` is false, no less than the level reached, a lower bound the warning gives.
+   */
   rth_K_per_W: number;
   /** First time of the window read. */
   window_start_s: number;
@@ -67,7 +81,7 @@ export interface SteadyState {
   /**
    * Standard error of rth_K_per_W from the noise of the samples it was read
    * from: the noise through the weights of the window's line at its end
-   * (see levelNoiseGain).
+   * (see levelNoiseGain), or through the exponential approach's fit.
    */
   rth_standard_error_K_per_W: number;
   /** False when that rise exceeds STEADY_STATE_RISE_LIMIT of Rth total by twice its standard error: the record ends before steady state. */
@@ -101,15 +115,34 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
     };
   }
   const slope = twoGroupSlope(logTime, zth);
-  const rth_K_per_W = trimmedMean(zth.map((z, i) => z + slope.K_per_W_per_decade * (logLast - logTime[i])));
-  if (!(rth_K_per_W > 0)) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${rth_K_per_W.toPrecision(3)} K/W; it must rise from 0 to a positive Rth`);
-
+  const lineEnd_K_per_W = trimmedMean(zth.map((z, i) => z + slope.K_per_W_per_decade * (logLast - logTime[i])));
+  if (!(lineEnd_K_per_W > 0)) throw new HeatpathError('ANALYSIS_NOT_ANALYSABLE', `Zth ends at ${lineEnd_K_per_W.toPrecision(3)} K/W; it must rise from 0 to a positive Rth`);
+  const lineStandardError_K_per_W = noise_K_per_W * levelNoiseGain(logTime, slope, logLast);
   const window_rise_K_per_W = slope.K_per_W_per_decade * nominalDecades;
   // Each half's trimmed mean taken as about as precise as its plain mean, sigma / sqrt(half).
   const riseStandardError_K_per_W = (noise_K_per_W * nominalDecades * Math.sqrt(2 / slope.half)) / slope.run_decades;
-  const steady = !(window_rise_K_per_W - 2 * riseStandardError_K_per_W > STEADY_STATE_RISE_LIMIT * rth_K_per_W);
+  const steady = !(window_rise_K_per_W - 2 * riseStandardError_K_per_W > STEADY_STATE_RISE_LIMIT * lineEnd_K_per_W);
   // A passive thermal path settles monotonically (every Foster term rises): an end that falls is a drifting reference or an artefact.
-  const falls = window_rise_K_per_W + 2 * riseStandardError_K_per_W < -STEADY_STATE_RISE_LIMIT * rth_K_per_W;
+  const falls = window_rise_K_per_W + 2 * riseStandardError_K_per_W < -STEADY_STATE_RISE_LIMIT * lineEnd_K_per_W;
+  // A window of fewer samples than the fit needs is widened to them for the fit alone.
+  const fitStart = Math.min(windowStart, count - MIN_EXPONENTIAL_APPROACH_SAMPLES);
+  const fitDecades = logLast - Math.log10(time_s[fitStart]);
+  const approach = fitStart >= firstPositive ? exponentialApproach(time_s.subarray(fitStart), zth_K_per_W.subarray(fitStart), noise_K_per_W) : undefined;
+  // The line overshoots a curve that bends over within the window: where an accepted exponential approach levels
+  // off below the line's end, beyond twice the standard error of their difference, Rth total is that level.
+  const bendsOver =
+    approach !== undefined &&
+    !falls &&
+    lineEnd_K_per_W - approach.level > 2 * Math.hypot(lineStandardError_K_per_W, approach.level_standard_error);
+  const reached_K_per_W = levelReached(zth_K_per_W);
+  // Where the record ends still rising, Rth total is never below the level reached (the mean of the last samples but
+  // the highest and the lowest, whose standard error is half the noise).
+  const belowReached = !steady && !falls && !bendsOver && lineEnd_K_per_W < reached_K_per_W;
+  const [rth_K_per_W, rth_standard_error_K_per_W, readAs] = bendsOver
+    ? [approach.level, approach.level_standard_error, `where an exponential approach fitted to the last ${fitDecades.toFixed(2)} decades levels off`]
+    : belowReached
+      ? [reached_K_per_W, noise_K_per_W / 2, 'the level reached']
+      : [lineEnd_K_per_W, lineStandardError_K_per_W, "the trend at the record's end"];
   const warnings: string[] = [];
   if (falls) {
     warnings.push(
@@ -118,14 +151,16 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
         'check the reference temperature and the end of the record',
     );
   } else if (!steady) {
+    const extrapolation = approach !== undefined && !bendsOver && approach.level > rth_K_per_W
+      ? `; an exponential approach fitted to the last ${fitDecades.toFixed(2)} decades (time constant ${approach.tau_s.toPrecision(3)} s) levels off at ${approach.level.toPrecision(4)} K/W, if no slower time constant follows`
+      : '';
     warnings.push(
       `the record ends before steady state: Zth still rises by ${((100 * window_rise_K_per_W) / rth_K_per_W).toFixed(1)} % of Rth over its last ${nominalDecades.toFixed(2)} decades, ` +
-        `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, the trend at the record's end) is no steady state: the true Rth total is at least the level the last ${MIN_STEADY_STATE_SAMPLES} samples reached, ` +
-        `${levelReached(zth_K_per_W).toPrecision(4)} K/W, and the slowest time constants are not measured: what the spectrum, the networks and the structure functions hold beyond the record's end is extrapolated, so their R need not add up to Rth total; ` +
+        `so Rth total (${rth_K_per_W.toPrecision(4)} K/W, ${readAs}) is no steady state: the true Rth total is at least the level the last ${MIN_STEADY_STATE_SAMPLES} samples reached, ` +
+        `${reached_K_per_W.toPrecision(4)} K/W${extrapolation}, and the slowest time constants are not measured: what the spectrum, the networks and the structure functions hold beyond the record's end is extrapolated, so their R need not add up to Rth total; ` +
         'record longer, until Zth levels off',
     );
   }
-  const rth_standard_error_K_per_W = noise_K_per_W * levelNoiseGain(logTime, slope, logLast);
   return { rth_K_per_W, window_start_s: time_s[windowStart], samples: count - windowStart, window_rise_K_per_W, rth_standard_error_K_per_W, steady, falls, warnings };
 }
 
