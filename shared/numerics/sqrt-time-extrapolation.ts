@@ -47,6 +47,9 @@ import { valueRange } from './value-range.js';
  * lower that start after the chosen one then give another value at t = 0; beyond
  * AMBIGUOUS_T0_RELATIVE this is warned of and counted in the standard error. The record alone cannot
  * tell which is right, so the choice stands and the user, who knows the bench, gives the window.
+ * A clean curve that bends away from the law (heat spreading sideways, the layers beyond the die) gives
+ * a later window another value too; where one smooth bend fits both windows and meets t = 0 where the
+ * chosen one does (bendsSmoothlyFrom), that is not warned of.
  */
 
 /** Candidate window starts lie within this many decades of the first positive time. */
@@ -127,6 +130,8 @@ export interface SqrtTimeOptions {
   end_s?: number;
   /** The sign the slope b of y = y0 + b sqrt(t) must have in an automatic window (+1 rising, -1 falling). */
   slopeSign?: 1 | -1;
+  /** The unit of `values`, which the warnings give their values in: K for temperatures (voltages are converted first), K/W for a Zth input. */
+  unit?: 'K' | 'K/W';
 }
 
 export interface SqrtTimeFit {
@@ -217,11 +222,12 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
   // the curve (too few early samples, a record that starts too late): then t = 0 is taken at that first sample.
   const y0NoiseError = noise * line.y0Leverage;
   const automatic = options.start_s === undefined && options.end_s === undefined;
-  const later = automatic && searched !== undefined ? laterWindowDisagreement(time_s, sums, line, y0NoiseError, end, searched, valueSpan(values)) : undefined;
+  const unitSuffix = options.unit === undefined ? '' : ` ${options.unit}`;
+  const later = automatic && searched !== undefined ? laterWindowDisagreement(time_s, values, sums, line, y0NoiseError, start, end, searched, valueSpan(values)) : undefined;
   if (later !== undefined) {
     warnings.push(
       `another window, ${time_s[later.start]} s to ${time_s[later.end]} s, also follows the sqrt(t) law but puts the value at t = 0 ` +
-        `${Math.abs(later.y0 - line.y0).toPrecision(2)} away (${(100 * later.relative).toFixed(1)} % of the curve's range), so the value at t = 0 is ambiguous, and Rth total with it: ` +
+        `${Math.abs(later.y0 - line.y0).toPrecision(2)}${unitSuffix} away (${(100 * later.relative).toFixed(1)} % of the curve's range), so the value at t = 0 is ambiguous, and Rth total with it: ` +
         'an electrical artefact that decays over tens of microseconds can pass for the law; look at the record before about 100 us and give early_time_start_s after the artefact has died away',
     );
   }
@@ -232,7 +238,7 @@ export function extrapolateSqrtTime(time_s: Float64Array, values: Float64Array, 
     options.slopeSign * (values[start] - line.y0) < -CHI_SQUARE_Z * Math.hypot(noise, y0NoiseError);
   if (wrongSide) {
     warnings.push(
-      `the sqrt(t) line puts the value at t = 0 (${line.y0.toPrecision(6)}) beyond the first sample it fits (${values[start].toPrecision(6)} at ${time_s[start]} s), ` +
+      `the sqrt(t) line puts the value at t = 0 (${line.y0.toPrecision(6)}${unitSuffix}) beyond the first sample it fits (${values[start].toPrecision(6)}${unitSuffix} at ${time_s[start]} s), ` +
         'so it does not describe this curve; the first sample was taken as the value at t = 0, and what the curve did before it is missing from Zth and Rth total: ' +
         'measure from a few microseconds after switching, with dense early samples, or give the window',
     );
@@ -339,13 +345,16 @@ function chooseWindow(
  * at least SHORT_WINDOW_TIME_RATIO. Only later windows count: an artefact sits at the start of a record,
  * so an earlier window that disagrees lies in it, as every record's first microseconds do. Starts past
  * the scan are not asked: where heat has left the die, a straight line in sqrt(t) can run again
- * (a SiC die on sintered silver and copper, 0.43 to 2 ms) with another value at t = 0.
+ * (a SiC die on sintered silver and copper, 0.43 to 2 ms) with another value at t = 0. Nor does a later
+ * window count that one smooth bend joins to the chosen one (bendsSmoothlyFrom).
  */
 function laterWindowDisagreement(
   time_s: Float64Array,
+  values: Float64Array,
   sums: WindowSums,
   chosen: LineFit,
   chosenNoiseError: number,
+  chosenStart: number,
   chosenEnd: number,
   search: { noiseAllowance: number; slopeSign: 1 | -1 | undefined },
   range: number,
@@ -359,14 +368,78 @@ function laterWindowDisagreement(
     let end = Math.max(start + MIN_WINDOW_SAMPLES - 1, firstIndexAtOrAfterTime(time_s, SHORT_WINDOW_TIME_RATIO * time_s[start]));
     if (end > lastEnd) break;
     if (!passes(start, end)) continue;
+    const shortestEnd = end;
     while (end < lastEnd && passes(start, end + 1)) end++;
     const { y0, y0Leverage } = sums.line(start, end);
     const difference = Math.abs(y0 - chosen.y0);
     const relative = difference / range;
     if (relative < AMBIGUOUS_T0_RELATIVE || difference < CHI_SQUARE_Z * Math.hypot(chosenNoiseError, noiseAllowance * y0Leverage)) continue;
+    if (bendsSmoothlyFrom(time_s, values, chosenStart, shortestEnd, chosen.y0, chosenNoiseError, noiseAllowance, range)) continue;
     if (worst === undefined || relative > worst.relative) worst = { start, end, y0, relative };
   }
   return worst;
+}
+
+/**
+ * Whether the samples from the chosen window's start to a later window's end are one curve that bends smoothly
+ * away from the sqrt(t) law, y = y0 + b sqrt(t) + c t within the noise test, with y0 where the chosen window puts
+ * it (within AMBIGUOUS_T0_RELATIVE of the range or CHI_SQUARE_Z standard errors). c t is the first term by which a
+ * surface temperature leaves the law: heat spreading sideways from a die of finite area lowers it in proportion to
+ * t (Carslaw & Jaeger 1959, the mean temperature of a disc source, from memory), and the Foster terms of the layers beyond the
+ * die add to it in proportion to t while t is short of their time constants. The later window's straight line in
+ * sqrt(t) then meets t = 0 elsewhere as a matter of physics, not because the chosen window lies in an artefact: an
+ * artefact ends, and the curve through its tail and the law after it is no such smooth bend.
+ */
+function bendsSmoothlyFrom(
+  time_s: Float64Array,
+  values: Float64Array,
+  start: number,
+  end: number,
+  chosenY0: number,
+  chosenNoiseError: number,
+  noise: number,
+  range: number,
+): boolean {
+  const count = end - start + 1;
+  if (count < 4) return false;
+  // Normal equations of y - y_start = a + b x + c x^2 in x = sqrt(t / t_end), whose moments stay of order 1.
+  const xScale = 1 / Math.sqrt(time_s[end]);
+  const moments = new Float64Array(5);
+  const rhs = new Float64Array(3);
+  for (let i = start; i <= end; i++) {
+    const x = Math.sqrt(time_s[i]) * xScale;
+    const y = values[i] - values[start];
+    let power = 1;
+    for (let k = 0; k < 5; k++, power *= x) {
+      moments[k] += power;
+      if (k < 3) rhs[k] += power * y;
+    }
+  }
+  const matrix = [0, 1, 2].map((row) => [0, 1, 2].map((column) => moments[row + column]));
+  const inverse = invert3(matrix);
+  if (inverse === undefined) return false;
+  const [a, b, c] = [0, 1, 2].map((row) => inverse[row][0] * rhs[0] + inverse[row][1] * rhs[1] + inverse[row][2] * rhs[2]);
+  let residualSquares = 0;
+  for (let i = start; i <= end; i++) {
+    const x = Math.sqrt(time_s[i]) * xScale;
+    residualSquares += (values[i] - values[start] - a - b * x - c * x * x) ** 2;
+  }
+  const dof = count - 3;
+  if (!(residualSquares <= noise * noise * dof * (1 + CHI_SQUARE_Z * Math.sqrt(2 / dof)))) return false;
+  const difference = Math.abs(values[start] + a - chosenY0);
+  return difference < AMBIGUOUS_T0_RELATIVE * range || difference < CHI_SQUARE_Z * Math.hypot(chosenNoiseError, noise * Math.sqrt(Math.max(inverse[0][0], 0)));
+}
+
+/** The inverse of a 3 x 3 matrix by its adjugate, or undefined when it is singular. */
+function invert3(m: number[][]): number[][] | undefined {
+  const cofactor = (r: number, c: number) => {
+    const [r1, r2] = [0, 1, 2].filter((i) => i !== r);
+    const [c1, c2] = [0, 1, 2].filter((j) => j !== c);
+    return (-1) ** (r + c) * (m[r1][c1] * m[r2][c2] - m[r1][c2] * m[r2][c1]);
+  };
+  const determinant = m[0][0] * cofactor(0, 0) + m[0][1] * cofactor(0, 1) + m[0][2] * cofactor(0, 2);
+  if (!(Math.abs(determinant) > 0)) return undefined;
+  return [0, 1, 2].map((row) => [0, 1, 2].map((column) => cofactor(column, row) / determinant));
 }
 
 /** The first index whose time is at least t_s (binary search; the length when none is). */

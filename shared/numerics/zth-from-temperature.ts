@@ -63,7 +63,7 @@ export function heatingPower_W(power: Power | undefined): number {
 export function zthFromTemperature(time_s: Float64Array, temperature_C: Float64Array, power: Power | undefined, options: ZthConstructionOptions): ZthCurve {
   const power_W = heatingPower_W(power);
   const sign = options.kind === 'cooling' ? -1 : 1;
-  const { corrected, report } = correctEarlyTime(time_s, temperature_C, options, sign);
+  const { corrected, report } = correctEarlyTime(time_s, temperature_C, options, sign, 'K');
   const zth_K_per_W = new Float64Array(time_s.length);
   for (let i = 0; i < time_s.length; i++) zth_K_per_W[i] = (sign * (corrected[i] - report.t0_value)) / power_W;
   assertRising(zth_K_per_W, options.kind);
@@ -71,7 +71,7 @@ export function zthFromTemperature(time_s: Float64Array, temperature_C: Float64A
 }
 
 export function zthFromZthInput(time_s: Float64Array, zth_input_K_per_W: Float64Array, options: Omit<ZthConstructionOptions, 'kind'>): ZthCurve {
-  const { corrected, report } = correctEarlyTime(time_s, zth_input_K_per_W, options, 1);
+  const { corrected, report } = correctEarlyTime(time_s, zth_input_K_per_W, options, 1, 'K/W');
   const zth_K_per_W = corrected.map((value) => value - report.t0_value);
   const final_K_per_W = Math.abs(zth_K_per_W[zth_K_per_W.length - 1]);
   if (Math.abs(report.t0_value) > Math.max(3 * report.t0_standard_error, options.noise_rms, ZTH_OFFSET_WARNING_RELATIVE * final_K_per_W)) {
@@ -86,9 +86,11 @@ function correctEarlyTime(
   values: Float64Array,
   options: Omit<ZthConstructionOptions, 'kind'>,
   slopeSign: 1 | -1,
+  unit: 'K' | 'K/W',
 ): { corrected: Float64Array; report: EarlyTimeReport } {
   const { fit, corrected } = extrapolateSqrtTime(time_s, values, {
     noise_rms: options.noise_rms,
+    unit,
     start_s: options.early_time_start_s,
     end_s: options.early_time_end_s,
     slopeSign,
