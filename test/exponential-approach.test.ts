@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { exponentialApproach } from '../shared/numerics/exponential-approach.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';
-import { createRandom, gaussian } from './support/seeded-random.js';
+import { createRandom, gaussian } from '../shared/numerics/seeded-random.js';
 
 // Truth: closed forms. One RC stage charging to 2 K/W with tau = 50 s, Z(t) = 2 (1 - exp(-t / 50)), over 100 .. 400 s.
 const t = logSpacedTimes(100, 400, 100);
