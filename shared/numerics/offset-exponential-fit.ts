@@ -75,16 +75,36 @@ function shapeAt(u: number, k: number): { g: number; dg_dk: number } {
   return { g, dg_dk: (u * Math.exp(ku) - g) / k };
 }
 
-/** a, beta minimising |a + beta g(u, k) - y| at a fixed rate k. */
+/**
+ * a, beta minimising |a + beta g(u, k) - y| at a fixed rate k: a straight line in g, solved in closed form about the
+ * means (the normal equations of two centred columns are as well conditioned as the data allow), and its squares
+ * summed from the residuals themselves, not from Syy - Sgy^2 / Sgg, which cancels to noise on an exact curve.
+ */
 function linearPartAt(u: Float64Array, y: Float64Array, k: number): RateFit | undefined {
-  const design = new Float64Array(u.length * 2);
-  for (let i = 0; i < u.length; i++) {
-    design[2 * i] = 1;
-    design[2 * i + 1] = shapeAt(u[i], k).g;
+  const count = u.length;
+  const g = new Float64Array(count);
+  let gMean = 0;
+  let yMean = 0;
+  for (let i = 0; i < count; i++) {
+    g[i] = shapeAt(u[i], k).g;
+    gMean += g[i];
+    yMean += y[i];
   }
-  const solution = solveLeastSquares(design, u.length, 2, y);
-  if (solution === undefined) return undefined;
-  return { k, a: solution[0], beta: solution[1], squares: squaresOf(u, y, solution[0], solution[1], k) };
+  gMean /= count;
+  yMean /= count;
+  let sgg = 0;
+  let sgy = 0;
+  for (let i = 0; i < count; i++) {
+    const dg = g[i] - gMean;
+    sgg += dg * dg;
+    sgy += dg * (y[i] - yMean);
+  }
+  if (!(sgg > 0)) return undefined;
+  const beta = sgy / sgg;
+  const a = yMean - beta * gMean;
+  let squares = 0;
+  for (let i = 0; i < count; i++) squares += (y[i] - a - beta * g[i]) ** 2;
+  return { k, a, beta, squares };
 }
 
 function goldenSection(u: Float64Array, y: Float64Array, low: number, high: number): RateFit | undefined {

@@ -127,7 +127,12 @@ export function steadyStateRth(time_s: Float64Array, zth_K_per_W: Float64Array, 
   // A window of fewer samples than the fit needs is widened to them for the fit alone.
   const fitStart = Math.min(windowStart, count - MIN_EXPONENTIAL_APPROACH_SAMPLES);
   const fitDecades = logLast - Math.log10(time_s[fitStart]);
-  const approach = fitStart >= firstPositive ? exponentialApproach(time_s.subarray(fitStart), zth_K_per_W.subarray(fitStart), noise_K_per_W) : undefined;
+  // The line's end overshoots the level by less than the line's own rise over the window, so where that rise is
+  // within twice the line's standard error no fit can tell them apart and none is made (it costs more than the rest).
+  const lineRise_K_per_W = slope.K_per_W_per_decade * (logLast - logTime[0]);
+  const fitMayMatter = !steady || lineRise_K_per_W > 2 * lineStandardError_K_per_W;
+  const approach =
+    fitMayMatter && fitStart >= firstPositive ? exponentialApproach(time_s.subarray(fitStart), zth_K_per_W.subarray(fitStart), noise_K_per_W) : undefined;
   // The line overshoots a curve that bends over within the window: where an accepted exponential approach levels
   // off below the line's end, beyond twice the standard error of their difference, Rth total is that level.
   const bendsOver =
