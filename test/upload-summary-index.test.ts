@@ -98,3 +98,23 @@ describe('UploadSummaryIndex snapshot', () => {
     expect(await snapshotSize()).toBe(15);
   });
 });
+
+describe('UploadSummaryIndex time range', () => {
+  // RFC 3339 section 5.8: "1996-12-19T16:39:57-08:00 ... Note that this is equivalent to 1996-12-20T00:39:57Z in UTC".
+  const at = (id: string, received_at: string): UploadRecord => ({ ...upload(id), received_at });
+
+  it('compares received_from and received_to as instants, whatever offset each is written with', async () => {
+    await writeRecord(at('u1', '1996-12-20T00:39:56.999Z'));
+    await writeRecord(at('u2', '1996-12-20T00:39:57.000Z'));
+    await writeRecord(at('u3', '1996-12-20T01:39:57.000Z'));
+    const index = newIndex();
+    const ids = async (filter: object) => (await index.list(filter)).map((u) => u.upload_id);
+    // The RFC's instant, written with its -08:00 offset: inclusive from, exclusive to.
+    expect(await ids({ received_from: '1996-12-19T16:39:57-08:00' })).toEqual(['u2', 'u3']);
+    expect(await ids({ received_to: '1996-12-19T16:39:57-08:00' })).toEqual(['u1']);
+    // As text, "1996-12-20T01:39:57+01:00" sorts after every record, yet it is the instant of u2.
+    expect(await ids({ received_from: '1996-12-20T01:39:57+01:00', received_to: '1996-12-20T01:39:58+01:00' })).toEqual(['u2']);
+    // A range in mixed offsets around the whole archive selects all of it.
+    expect(await ids({ received_from: '1996-12-19T15:00:00-09:00', received_to: '1996-12-20T11:00:00+09:00' })).toEqual(['u1', 'u2', 'u3']);
+  });
+});

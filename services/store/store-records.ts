@@ -96,9 +96,9 @@ export interface UploadFilter {
   input_sha256?: string;
   bench?: string;
   tag?: string;
-  /** Inclusive lower bound on received_at (ISO 8601). */
+  /** Inclusive lower bound on received_at (RFC 3339 with Z or an offset), compared as an instant. */
   received_from?: string;
-  /** Exclusive upper bound on received_at (ISO 8601). */
+  /** Exclusive upper bound on received_at (RFC 3339 with Z or an offset), compared as an instant. */
   received_to?: string;
 }
 

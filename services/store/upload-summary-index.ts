@@ -82,8 +82,9 @@ export class UploadSummaryIndex {
   /** Summaries of the uploads matching every given field of the filter, oldest first. */
   async list(filter: UploadFilter): Promise<UploadSummary[]> {
     await this.update();
+    const received = receivedWindow(filter);
     return [...this.summaries.values()]
-      .filter((upload) => uploadMatches(upload, filter))
+      .filter((upload) => uploadMatches(upload, filter, received))
       .sort((a, b) => a.received_at.localeCompare(b.received_at) || a.upload_id.localeCompare(b.upload_id));
   }
 
@@ -153,13 +154,24 @@ function summaryOf(record: UploadRecord): UploadSummary {
   return { upload_id, sample_id, bench, tags, received_at, job_id, input_sha256, cycle_count };
 }
 
-function uploadMatches(upload: UploadSummary, filter: UploadFilter): boolean {
+/**
+ * The filter's time range as instants (ms since 1970), null without one. Times are compared as instants, never as
+ * text: 14:43:50+01:00 is 13:43:50Z, which sorts after 14:00:00Z as text but is an hour before it.
+ */
+function receivedWindow(filter: UploadFilter): { from_ms: number; to_ms: number } | null {
+  if (filter.received_from === undefined && filter.received_to === undefined) return null;
+  return {
+    from_ms: filter.received_from === undefined ? -Infinity : Date.parse(filter.received_from),
+    to_ms: filter.received_to === undefined ? Infinity : Date.parse(filter.received_to),
+  };
+}
+
+function uploadMatches(upload: UploadSummary, filter: UploadFilter, received: { from_ms: number; to_ms: number } | null): boolean {
   return (
     (filter.sample_id === undefined || upload.sample_id === filter.sample_id) &&
     (filter.input_sha256 === undefined || upload.input_sha256 === filter.input_sha256) &&
     (filter.bench === undefined || upload.bench === filter.bench) &&
     (filter.tag === undefined || upload.tags.includes(filter.tag)) &&
-    (filter.received_from === undefined || upload.received_at >= filter.received_from) &&
-    (filter.received_to === undefined || upload.received_at < filter.received_to)
+    (received === null || (Date.parse(upload.received_at) >= received.from_ms && Date.parse(upload.received_at) < received.to_ms))
   );
 }

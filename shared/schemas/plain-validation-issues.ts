@@ -1,5 +1,5 @@
 import { closestName } from '../input/closest-name.js';
-import { patternInWords } from './worded-patterns.js';
+import { formatInWords, patternInWords } from './worded-patterns.js';
 
 /** One schema violation as fastify's validators (ajv, TypeBox) report it. */
 export interface ValidationIssue {
@@ -36,7 +36,8 @@ export interface PlainIssue {
  * known field it most likely meant (`power_w`: did you mean power_W?), at
  * any depth of `schema` (`selection/sampel_id`: did you mean sample_id?), as
  * the command line does for options. A value that does not match a pattern
- * listed in worded-patterns.ts is told what the field allows in words.
+ * listed in worded-patterns.ts is told what the field allows in words, as is one not of a format listed there
+ * (a date-time without its offset).
  */
 export function plainValidationIssues(issues: readonly ValidationIssue[], context: string, schema?: SchemaNode): PlainIssue[] {
   const allowed = new Map<string, unknown[]>();
@@ -70,6 +71,8 @@ export function plainValidationIssues(issues: readonly ValidationIssue[], contex
       add(field, unknown(path.slice(0, path.lastIndexOf('/')), path.slice(path.lastIndexOf('/') + 1)));
     } else if (issue.keyword === 'pattern' && patternInWords(issue.params?.pattern) !== undefined) {
       add(field, `must be ${patternInWords(issue.params?.pattern)}`);
+    } else if (issue.keyword === 'format' && formatInWords(issue.params?.format) !== undefined) {
+      add(field, `must be ${formatInWords(issue.params?.format)}`);
     } else {
       add(field, issue.message ?? 'is invalid');
     }

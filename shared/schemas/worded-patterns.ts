@@ -42,3 +42,13 @@ const allowsByPattern = new Map(
 export function patternInWords(pattern: unknown): string | undefined {
   return typeof pattern === 'string' ? allowsByPattern.get(pattern) : undefined;
 }
+
+/** What a field of JSON Schema format date-time takes: a time without its offset names no instant. */
+export const DATE_TIME_IN_WORDS = 'a date and time in RFC 3339 with Z or an offset, e.g. 2026-12-03T14:00:00Z or 2026-12-03T15:00:00+01:00';
+
+const allowsByFormat = new Map([['date-time', DATE_TIME_IN_WORDS]]);
+
+/** What a JSON Schema format allows in words; undefined for one not listed here. */
+export function formatInWords(format: unknown): string | undefined {
+  return typeof format === 'string' ? allowsByFormat.get(format) : undefined;
+}

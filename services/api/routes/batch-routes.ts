@@ -1,7 +1,7 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
-import { RECORD_ID_PATTERN } from '../../../shared/schemas/worded-patterns.js';
+import { DATE_TIME_IN_WORDS, RECORD_ID_PATTERN } from '../../../shared/schemas/worded-patterns.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import { FAILED_JOB_IDS_SHOWN, type BatchProgress, type BatchReprocessor } from '../../../workers/reprocess-batch.js';
 import { analysisParameterOverrides } from '../schemas/analysis-parameter-overrides.js';
@@ -9,7 +9,7 @@ import { CalibrationIdSchema } from '../schemas/calibration-id-schema.js';
 
 const BatchParams = Type.Object({ batch_id: Type.String({ pattern: RECORD_ID_PATTERN.pattern }) });
 
-const isoTime = (description: string) => Type.String({ format: 'date-time', description });
+const isoTime = (description: string) => Type.String({ format: 'date-time', description: `${description} RFC 3339 with Z or an offset (2026-12-03T14:00:00Z), compared as an instant: offsets may differ.` });
 
 const SelectionSchema = Type.Object(
   {
@@ -100,6 +100,10 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
     async (request, reply) => {
       const { selection, parameters, calibration_id } = request.body;
       const { received_from: from, received_to: to } = selection;
+      for (const [name, time] of Object.entries({ received_from: from, received_to: to })) {
+        // The format admits what names no instant (a leap second, 23:59:60Z): say so, rather than select nothing.
+        if (time !== undefined && Number.isNaN(Date.parse(time))) throw new HeatpathError('REQUEST_INVALID', `body/selection/${name} (${time}) must be ${DATE_TIME_IN_WORDS}`);
+      }
       if (from !== undefined && to !== undefined && !(Date.parse(from) < Date.parse(to))) {
         throw new HeatpathError('REQUEST_INVALID', `selection.received_from (${from}) must be before selection.received_to (${to})`);
       }
