@@ -52,3 +52,25 @@ describe('batch selection by time', () => {
     expect(leap).toMatchObject({ status: 400, code: 'REQUEST_INVALID', detail: expect.stringMatching(/received_to \(2026-12-31T23:59:60Z\) must be a date and time in RFC 3339/) });
   });
 });
+
+describe('batch selection by name and kind', () => {
+  it("names the stored sample id, bench or tag a selection most likely meant when none matches, as the sample route does", async () => {
+    for (const [seed, sample] of [[84, 'IGBT-1'], [85, 'IGBT-2']] as const) expect((await uploadCsv(`sample_id=${sample}&power_W=50&bench=bench-north&tags=lot-42`, seed)).statusCode).toBe(202);
+    expect((await uploadCsv('sample_id=IGBT-3&power_W=50&bench=bench-south', 87)).statusCode).toBe(202);
+    const refused = (await post('/v1/batches', { selection: { sample_id: 'IGBT1' } })).json();
+    expect(refused).toMatchObject({ status: 422, code: 'BATCH_SELECTION_EMPTY', detail: 'no stored upload matches {"sample_id":"IGBT1"}: no stored upload has sample_id IGBT1, did you mean IGBT-1?' });
+    const twoFields = (await post('/v1/batches', { selection: { bench: 'bench-nort', tag: 'lot-24' } })).json();
+    expect(twoFields.detail).toBe('no stored upload matches {"bench":"bench-nort","tag":"lot-24"}: no stored upload has bench bench-nort, did you mean bench-north?; no stored upload has tag lot-24, did you mean lot-42?');
+    // A name far from every stored one gets no guess; names that each exist but not together get none either.
+    expect((await post('/v1/batches', { selection: { tag: 'lot-9' } })).json().detail).toBe('no stored upload matches {"tag":"lot-9"}: no stored upload has tag lot-9');
+    expect((await post('/v1/batches', { selection: { sample_id: 'IGBT-1', bench: 'bench-south' } })).json().detail).toBe('no stored upload matches {"sample_id":"IGBT-1","bench":"bench-south"}');
+  });
+
+  it("tells a batch whose kind makes the first upload's curve the other kind to change the batch's parameters.kind, in the service's words, not the command line's", async () => {
+    expect((await uploadCsv('sample_id=KIND-1&power_W=50', 86)).statusCode).toBe(202);
+    const refused = (await post('/v1/batches', { selection: { sample_id: 'KIND-1' }, parameters: { kind: 'heating' } })).json();
+    expect(refused).toMatchObject({ status: 422, code: 'ANALYSIS_NOT_ANALYSABLE', detail: expect.stringMatching(/say so: kind cooling, or a `# kind: cooling` line in the file$/) });
+    expect(refused.hint).toMatch(/^The batch's parameters\.kind \(heating\) replaces the kind of every selected upload: leave kind out of parameters/);
+    expect(JSON.stringify(refused)).not.toMatch(/--kind|command line/);
+  });
+});

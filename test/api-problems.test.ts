@@ -539,7 +539,7 @@ describe('with a real Redis', () => {
     }
     expect(jobError?.code).toBe('ANALYSIS_NOT_ANALYSABLE');
     expect(refused.detail).toBe(jobError!.detail);
-    expect(refused.detail).toMatch(/is the transient really cooling\? If it is a heating transient, say so: .*kind=heating for an upload/);
+    expect(refused.detail).toMatch(/is the transient really cooling\? If it is a heating transient, say so: kind heating, or a `# kind: heating` line in the file$/);
     expect(refused).toMatchObject({ file: 'upload body (named S-kind.csv)', column: 'temperature_C' });
     expect((await context.store.listUploads()).length).toBe(uploadsBefore);
     expect((await upload(context, 'sample_id=S-kind&power_W=50&kind=heating', heating)).statusCode).toBe(202);

@@ -32,6 +32,10 @@ describe('command-line spelling of parameters', () => {
     expect(commandLineSpelling('points_per_decade: must be >= 10; compact_stages: must be <= 12')).toBe('--points-per-decade: must be >= 10; --compact-stages: must be <= 12');
     // Result fields and header keys are no options.
     expect(commandLineSpelling('early_time.window_start_s and a `# power_W:` line')).toBe('early_time.window_start_s and a `# power_W:` line');
+    // A kind named with its value is the option; the word in prose, a header line and an option already spelt are left alone.
+    expect(commandLineSpelling('a curve of the other kind; say so: kind heating, or a `# kind: heating` line; --kind cooling')).toBe(
+      'a curve of the other kind; say so: --kind heating, or a `# kind: heating` line; --kind cooling',
+    );
   });
 
   it.each([

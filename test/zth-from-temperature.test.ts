@@ -96,14 +96,15 @@ describe('zthFromTemperature', () => {
     expect(catchHeatpathError(() => zthFromTemperature(times, cooling, { power_W }, { ...options, kind: 'heating' })).code).toBe('ANALYSIS_NOT_ANALYSABLE');
   });
 
-  it('says how to state the other kind, on the command line, in an upload and in the file', () => {
+  it('says how to state the other kind, naming the parameter as the service does (the command line prints its option) and the file line', () => {
     // A heating curve (Tj rising) analysed as cooling, and the reverse; the ways to state the kind are heatpath's own (README).
     const heating = times.map((_, i) => ambient_C + power_W * truth[i]);
     const cooling = times.map((_, i) => ambient_C + power_W * (rth - truth[i]));
     const asCooling = catchHeatpathError(() => zthFromTemperature(times, heating, { power_W }, { kind: 'cooling', noise_rms: 0 }));
-    expect(asCooling.detail).toMatch(/really cooling\? If it is a heating transient, say so: --kind heating on the command line; kind=heating for an upload; or a `# kind: heating` line in the file/);
+    expect(asCooling.detail).toMatch(/really cooling\? If it is a heating transient, say so: kind heating, or a `# kind: heating` line in the file/);
+    expect(asCooling.detail).not.toMatch(/--kind|command line/);
     const asHeating = catchHeatpathError(() => zthFromTemperature(times, cooling, { power_W }, { kind: 'heating', noise_rms: 0 }));
-    expect(asHeating.detail).toMatch(/--kind cooling on the command line; kind=cooling for an upload; or a `# kind: cooling` line/);
+    expect(asHeating.detail).toMatch(/say so: kind cooling, or a `# kind: cooling` line/);
   });
 });
 

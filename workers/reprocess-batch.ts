@@ -9,6 +9,8 @@ import { resolveAnalysisInputs } from '../shared/analysis/resolve-analysis-input
 import { channelCalibrations } from '../shared/analysis/channel-calibrations.js';
 import type { Calibration } from '../shared/schemas/calibration.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
+import { closestName } from '../shared/input/closest-name.js';
+import type { UploadSummary } from '../services/store/upload-summary-index.js';
 import { isJobFinished, type JobOutcomes, type TransientStore } from '../services/store/transient-store.js';
 import type { BatchEntry, BatchRecord, UploadFilter, UploadRecord } from '../services/store/store-records.js';
 import { JOB_PRIORITY, type AnalysisQueue } from './analysis-queue.js';
@@ -75,7 +77,9 @@ export class BatchReprocessor {
     const uploads = selected.filter((upload) => !withdrawals.has(upload.upload_id));
     if (uploads.length === 0) {
       const selection = JSON.stringify(request.selection);
-      throw new HeatpathError('BATCH_SELECTION_EMPTY', selected.length === 0 ? `no stored upload matches ${selection}` : `the ${selected.length} stored upload(s) matching ${selection} are all withdrawn`);
+      if (selected.length > 0) throw new HeatpathError('BATCH_SELECTION_EMPTY', `the ${selected.length} stored upload(s) matching ${selection} are all withdrawn`);
+      const unknown = unknownNames(await this.store.listUploadSummaries(), request.selection);
+      throw new HeatpathError('BATCH_SELECTION_EMPTY', `no stored upload matches ${selection}${unknown.length > 0 ? `: ${unknown.join('; ')}` : ''}`);
     }
     const batch: BatchRecord = {
       batch_id: `batch-${Date.now().toString(36)}-${randomBytes(4).toString('hex')}`,
@@ -133,7 +137,13 @@ export class BatchReprocessor {
       );
       // The upload's own calibrations were checked against its voltages when it was uploaded.
       if (calibrations !== undefined && batch.calibration_id !== null) checkVoltagesCalibrated(file, calibrations, job.file_name);
-      checkZthRises(file, { parameters, power, channelPowers }, calibrations, job.file_name);
+      try {
+        checkZthRises(file, { parameters, power, channelPowers }, calibrations, job.file_name);
+      } catch (error) {
+        // The batch's kind made the curve one of the other kind: what to change is the batch's parameter, not the upload.
+        if (!isHeatpathError(error) || batch.parameters?.kind === undefined) throw error;
+        throw new HeatpathError(error.code, error.detail, error.location, batchKindHint(batch.parameters.kind));
+      }
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
       throw new HeatpathError(error.code, `on the selection's first upload, ${job.upload_id} (sample ${job.sample_id}, ${job.file_name}): ${error.detail}`, {}, error.hint);
@@ -283,6 +293,25 @@ export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): Upl
     calibration_sha256: calibrationId, channel_calibration_sha256: channelCalibrationIds, algorithm: batch.algorithm,
   });
   return { ...rest, parameters, calibration_id: calibrationId, ...(channelCalibrationIds !== undefined ? { channel_calibration_ids: channelCalibrationIds } : {}), job_id: jobId };
+}
+
+/** What to do when the batch's parameters.kind makes the first selected upload's curve one of the other kind. */
+function batchKindHint(kind: string): string {
+  return `The batch's parameters.kind (${kind}) replaces the kind of every selected upload: leave kind out of parameters to keep each upload's own, or give the kind the selected uploads were measured as.`;
+}
+
+/**
+ * The selection's names that no stored upload has, each with the stored name it most likely meant (`sample_id IG1:
+ * no upload has it, did you mean IGBT-1?`), as the sample route answers a sample id no upload was stored under.
+ */
+function unknownNames(uploads: readonly UploadSummary[], selection: UploadFilter): string[] {
+  const known = { sample_id: uploads.map((upload) => upload.sample_id), bench: uploads.flatMap((upload) => upload.bench ?? []), tag: uploads.flatMap((upload) => upload.tags) };
+  return (['sample_id', 'bench', 'tag'] as const).flatMap((field) => {
+    const given = selection[field];
+    if (given === undefined || known[field].includes(given)) return [];
+    const meant = closestName(given, [...new Set(known[field])]);
+    return [`no stored upload has ${field} ${given}${meant === undefined ? '' : `, did you mean ${meant}?`}`];
+  });
 }
 
 function uniqueByJobId(jobs: UploadRecord[]): UploadRecord[] {

@@ -120,11 +120,11 @@ function assertRising(zth_K_per_W: Float64Array, kind: TransientKind | 'input'):
   }
 }
 
-/** What a user whose transient is of the other kind than the one stated gives instead, wherever they state it. */
+/**
+ * What a user whose transient is of the other kind than the one stated gives instead: the parameter named as the
+ * service and the result's provenance name it (`kind heating`), which the command line prints as its option.
+ */
 function otherKindAdvice(kind: TransientKind): string {
   const other: TransientKind = kind === 'cooling' ? 'heating' : 'cooling';
-  return (
-    `is the transient really ${kind}? If it is a ${other} transient, say so: ` +
-    `--kind ${other} on the command line; kind=${other} for an upload; or a \`# kind: ${other}\` line in the file`
-  );
+  return `is the transient really ${kind}? If it is a ${other} transient, say so: kind ${other}, or a \`# kind: ${other}\` line in the file`;
 }
