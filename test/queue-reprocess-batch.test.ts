@@ -155,6 +155,26 @@ describe('BatchReprocessor (real Redis)', () => {
     for (const entry of record.entries) expect((await queue.getJobState(entry.job_id))?.state).toBe('prioritized');
   });
 
+  it('keeps a cancelled batch\'s counts when a later batch runs the same jobs: they did not run for the cancelled one', async () => {
+    await Promise.all([69, 70, 71].map((seed) => fixture.storeUpload(seed, undefined, { bench: 'bench-13' })));
+    const first = await batches.create({ selection: { bench: 'bench-13' }, parameters: { points_per_decade: 45 }, created_by: 'admin' });
+    expect(await batches.cancel(first.batch_id)).toMatchObject({ status: 'cancelled', total: 3, done: 0, cancelled: 3, will_finish: 0 });
+    // The same selection and parameters again: the same job ids (bytes, parameters, calibration and algorithm version), run this time.
+    const second = await batches.create({ selection: { bench: 'bench-13' }, parameters: { points_per_decade: 45 }, created_by: 'admin' });
+    const jobs = (id: string) => fixture.store.getBatch(id).then((batch) => batch!.entries.map((entry) => entry.job_id).sort());
+    expect(await jobs(second.batch_id)).toEqual(await jobs(first.batch_id));
+    worker = new AnalysisWorker({ dataDir: fixture.dataDir, redisUrl, prefix });
+    await eventually(async () => (await batches.progress(second.batch_id))!.status === 'finished', 100);
+    expect(await batches.progress(second.batch_id)).toMatchObject({ total: 3, done: 3, cancelled: 0 });
+    // *common practice*: the parts still add up to the total (3 = done 0 + failed 0 + cancelled 3), as at the cancel.
+    expect(await batches.progress(first.batch_id)).toMatchObject({ status: 'cancelled', total: 3, done: 0, failed: 0, cancelled: 3, will_finish: 0 });
+    // A finished batch is not cancelled: every job ran, and its status stays finished.
+    await expect(batches.cancel(second.batch_id)).rejects.toMatchObject({ code: 'BATCH_ALREADY_FINISHED', status: 409, detail: `batch ${second.batch_id} finished: all of its 3 jobs have an outcome (3 done, 0 failed)` });
+    expect(await batches.progress(second.batch_id)).toMatchObject({ status: 'finished', done: 3 });
+    // Cancelling the cancelled batch again answers the same counts.
+    expect(await batches.cancel(first.batch_id)).toMatchObject({ status: 'cancelled', done: 0, cancelled: 3 });
+  });
+
   it('refuses an empty selection', async () => {
     await expect(batches.create({ selection: { sample_id: 'nobody' }, created_by: 'admin' })).rejects.toMatchObject({ code: 'BATCH_SELECTION_EMPTY' });
   });

@@ -164,7 +164,13 @@ export class BatchReprocessor {
   async cancel(batchId: string): Promise<BatchCancellation | null> {
     const batch = await this.store.getBatch(batchId);
     if (!batch) return null;
-    if (batch.status !== 'cancelled') {
+    const firstCancel = batch.status !== 'cancelled';
+    if (firstCancel) {
+      // A finished batch has nothing left to stop: cancelled would misreport jobs that all ran.
+      const before = await this.countProgress(batch);
+      if (before.status === 'finished') {
+        throw new HeatpathError('BATCH_ALREADY_FINISHED', `batch ${batchId} finished: ${before.total === 1 ? 'its job has' : `all of its ${before.total} jobs have`} an outcome (${before.done} done, ${before.failed} failed)`);
+      }
       batch.status = 'cancelled';
       batch.cancelled_at = new Date().toISOString();
       await this.store.putBatch(batch);
@@ -180,13 +186,18 @@ export class BatchReprocessor {
       // Redis away: its jobs stay queued and end unanalysed when they come up.
       redisAnswered = false;
     }
+    // Read after the queue: a job that finished meanwhile counts as done or failed, not as running.
+    const outcomes = await this.store.jobOutcomes();
+    if (firstCancel) {
+      // From here on only the jobs running now can finish for this batch: an outcome of any other of its jobs is another run's (see notRunForBatch).
+      batch.unfinished_at_cancel = batch.entries.filter((entry) => !isJobFinished(outcomes, entry.job_id)).map((entry) => entry.job_id);
+    }
     if (redisAnswered) {
       // Kept, so that later reads count the same jobs as finishing; an earlier cancel's are kept too (they may run still).
       batch.running_at_cancel = [...new Set([...(batch.running_at_cancel ?? []), ...running])];
-      await this.store.putBatch(batch);
     }
-    // Read after the queue: a job that finished meanwhile counts as done or failed, not as running.
-    const progress = await this.countProgress(batch);
+    if (firstCancel || redisAnswered) await this.store.putBatch(batch);
+    const progress = await this.countProgress(batch, outcomes);
     if (!redisAnswered || progress.will_finish === null) {
       return {
         ...progress,
@@ -230,10 +241,12 @@ export class BatchReprocessor {
   /** Counted from the store's listings: two directory reads per shard, whatever the batch size. */
   private async countProgress(batch: BatchRecord, known?: JobOutcomes): Promise<BatchProgress> {
     const outcomes = known ?? (await this.store.jobOutcomes());
+    const notRun = notRunForBatch(batch);
     let done = 0;
     let failed = 0;
     const failedJobIds: string[] = [];
     for (const entry of batch.entries) {
+      if (notRun?.has(entry.job_id)) continue;
       if (outcomes.done.has(entry.job_id)) done++;
       else if (outcomes.failed.has(entry.job_id)) {
         failed++;
@@ -270,6 +283,19 @@ export class BatchReprocessor {
     }
     return active;
   }
+}
+
+/**
+ * The jobs of a cancelled batch that did not run for it: without an outcome when it was cancelled and not running
+ * then. Jobs are shared (same bytes, parameters, calibration and algorithm version: same job id), so one of them may
+ * get an outcome later from another batch or an upload; the cancelled batch still counts it cancelled, for it did
+ * not run for that batch. Null when every outcome counts for the batch: not cancelled, cancelled before the cancel
+ * recorded which jobs lacked an outcome, or while Redis did not answer the cancel (which jobs ran is not known then).
+ */
+export function notRunForBatch(batch: BatchRecord): Set<string> | null {
+  if (batch.status !== 'cancelled' || batch.unfinished_at_cancel === undefined || batch.running_at_cancel === undefined || batch.running_at_cancel === null) return null;
+  const running = new Set(batch.running_at_cancel);
+  return new Set(batch.unfinished_at_cancel.filter((jobId) => !running.has(jobId)));
 }
 
 /** What a cancel did, in words: the counts alone do not say that running jobs still finish. */

@@ -57,7 +57,11 @@ const progressProperties = {
     description: `The first ${FAILED_JOB_IDS_SHOWN} failed jobs, in the batch's order (failed counts them all): what POST /v1/jobs/{job_id}/retry takes once the cause is mended.`,
   }),
   pending: Type.Integer({ description: 'Jobs of a running batch without an outcome yet.' }),
-  cancelled: Type.Integer({ description: 'Jobs of a cancelled batch without an outcome that will not run: not started at the cancel, or ended unanalysed since. Jobs running at the cancel are in will_finish instead.' }),
+  cancelled: Type.Integer({
+    description:
+      'Jobs of a cancelled batch that did not and will not run for it: without an outcome and not running at the cancel (also when a later batch or upload sharing the job ran it since), ' +
+      'or ended unanalysed since. Jobs running at the cancel are in will_finish instead.',
+  }),
   will_finish: Type.Union([Type.Integer(), Type.Null()], {
     description: 'Jobs of a cancelled batch that were running at the cancel and have no outcome yet: they finish and then count as done or failed. 0 for a batch not cancelled; null when Redis did not answer the cancel, so which jobs run is not known (they are counted in cancelled).',
   }),
@@ -145,7 +149,9 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
       schema: {
         tags: ['batches'],
         summary: 'Cancel a batch',
-        description: 'Jobs not yet started are removed from the queue; running ones finish, counted in will_finish.',
+        description:
+          'Jobs not yet started are removed from the queue; running ones finish, counted in will_finish. The counts are fixed at the cancel: a job that had no outcome and was not running ' +
+          'stays counted in cancelled though another batch or upload sharing it runs it later. A finished batch (every job has an outcome) is 409 BATCH_ALREADY_FINISHED; cancelling a cancelled batch again answers its progress.',
         params: BatchParams,
         response: { 200: BatchCancelledSchema },
       },

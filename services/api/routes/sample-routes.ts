@@ -13,10 +13,12 @@ import { SampleOverviewSchema, sampleOverviews } from '../samples/sample-overvie
 import { DEFAULT_RTH_RISE_LIMIT_PERCENT, DEGRADATION_NOTES } from '../../../shared/analysis/package-degradation.js';
 import { DegradationComparisonSchema } from '../../../shared/schemas/degradation-comparison.js';
 import { HeatpathError } from '../../../shared/errors/heatpath-error.js';
+import { notRunForBatch } from '../../../workers/reprocess-batch.js';
 
 const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('completed'), Type.Literal('failed'), Type.Literal('cancelled'), Type.Literal('withdrawn')], {
   description:
-    'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that had not started when it was cancelled; ' +
+    'From the store: pending until a result or a final failure is recorded; cancelled for a job of a cancelled batch that had not started when it was cancelled ' +
+    '(in that batch\'s entry also once another batch or upload sharing the job has run it: it did not run for the cancelled batch); ' +
     'withdrawn for the job of a withdrawn upload that no queue holds and no upload that stands shares: it will not run (its state in GET /v1/jobs/{job_id} is withdrawn too).',
 });
 
@@ -209,6 +211,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
       if (page === null) throw new HeatpathError('RESOURCE_NOT_FOUND', `upload ${after} is not one of sample ${sample_id}'s: pass the \`next\` of the page before as ?after=`);
       const { uploads, next } = page;
       if (uploads.length === 0 && after === undefined) throw await unknownSampleError(store, sample_id);
+      const notRun = new Map(batches.map((batch) => [batch.batch_id, notRunForBatch(batch)]));
       const transients = await Promise.all(
         uploads.map(async (upload) => ({
           upload_id: upload.upload_id,
@@ -225,9 +228,12 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
               batch.entries
                 .filter((entry) => entry.upload_id === upload.upload_id && entry.job_id !== upload.job_id)
                 // A job that was running when its batch was cancelled still finishes (the batch's will_finish): pending until then.
+                // One that did not run for the cancelled batch is cancelled there, though another batch or upload sharing it ran it since.
                 .map(async (entry) => ({
                   batch_id: batch.batch_id,
-                  ...(await outcomeOf(entry.job_id, include_results, batch.status === 'cancelled' && !(batch.running_at_cancel ?? []).includes(entry.job_id))),
+                  ...(notRun.get(batch.batch_id)?.has(entry.job_id)
+                    ? { job_id: entry.job_id, outcome: 'cancelled' as const }
+                    : await outcomeOf(entry.job_id, include_results, batch.status === 'cancelled' && !(batch.running_at_cancel ?? []).includes(entry.job_id))),
                 })),
             ),
           ),
