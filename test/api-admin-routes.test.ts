@@ -80,7 +80,7 @@ describe('batches', () => {
     const got = (await context.app.inject({ url: `/v1/batches/${batch.batch_id}`, headers: bearer('reader') })).json();
     expect(got).toEqual({
       batch_id: batch.batch_id, status: 'running', created_at: batch.created_at, created_by: 'admin-key', selection: { tag: 'lot9' }, parameters: { method: 'fourier' },
-      calibration_id: null, algorithm: ALGORITHM_VERSION, total: 1, done: 0, failed: 0, failed_job_ids: [], pending: 1, cancelled: 0, will_finish: 0,
+      calibration_id: null, algorithm: ALGORITHM_VERSION, total: 1, done: 0, failed: 0, failed_job_ids: [], pending: 1, cancelled: 0, will_finish: 0, warnings: [],
       links: { self: `/v1/batches/${batch.batch_id}`, cancel: `/v1/batches/${batch.batch_id}/cancel` },
     });
     const cancelled = await post(batch.links.cancel, {});

@@ -51,3 +51,55 @@ describe('cancelling batches', () => {
     expect((await get(`/v1/batches/${second.batch_id}`)).json()).toMatchObject({ status: 'finished' });
   });
 });
+
+describe('a batch that applies a calibration', () => {
+  /** A TSP sweep (2 mV/K, a common silicon diode sensitivity: *common practice*) swept on `sample`. */
+  async function storedCalibration(sample: string): Promise<string> {
+    const temperature_C = [20, 50, 75, 100, 125, 150, 175];
+    const points_csv = [`# sample: ${sample}`, 'temperature_C,voltage_V', ...temperature_C.map((t) => `${t},${0.7 - 0.002 * (t - 25)}`)].join('\n');
+    const fitted = await context.app.inject({ method: 'POST', url: '/v1/calibrations', headers: bearer('bench'), payload: { model: 'linear', points_csv } });
+    expect(fitted.statusCode, fitted.body).toBe(201);
+    return fitted.json().calibration_id;
+  }
+  /** The synthetic transient of `seed` as the diode's voltage, by the same sweep. */
+  const voltageCsv = (seed: number) => {
+    const lines = syntheticTransientCsv(seed, 10).toString('utf8').trim().split('\n');
+    return ['time_s,voltage_V', ...lines.slice(1).map((line) => `${line.split(',')[0]},${(0.7 - 0.002 * (Number(line.split(',')[1]) - 25)).toFixed(7)}`)].join('\n');
+  };
+
+  it('warns in its 202 (and its progress) of uploads without voltage_V and of a calibration swept on another sample, and leaves the calibration out of the jobs it does not apply to', async () => {
+    const own = await storedCalibration('CAL-V');
+    const voltage = await context.app.inject({ method: 'POST', url: `/v1/transients?sample_id=CAL-V&power_W=50&tags=calib&calibration_id=${own}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: voltageCsv(92) });
+    expect(voltage.statusCode, voltage.body).toBe(202);
+    const temperature = await uploadCsv('sample_id=CAL-T&power_W=50&tags=calib', 93);
+    expect(temperature.statusCode, temperature.body).toBe(202);
+    await storeResult(temperature.json().job_id, null);
+
+    const other = await storedCalibration('CAL-X');
+    const created = await post('/v1/batches', { selection: { tag: 'calib' }, calibration_id: other });
+    expect(created.statusCode, created.body).toBe(202);
+    const batch = created.json();
+    expect(batch.warnings).toEqual([
+      '1 of the 2 selected uploads has no voltage_V channel: the calibration does not apply to them, and their jobs are as without it ' +
+        "(with the batch's parameters and algorithm version; where the batch changes nothing else, each is its upload's own job, counted, not redone)",
+      expect.stringMatching(/^the calibration was swept on sample CAL-X, the transients are of sample CAL-V: a TSP calibration holds for the device swept/),
+    ]);
+    expect((await get(`/v1/batches/${batch.batch_id}`)).json().warnings).toEqual(batch.warnings);
+    // The temperature upload's job is its own (the calibration is no part of it), whose result is counted, not redone; the voltage upload's is new.
+    const jobs = Object.fromEntries((await context.store.getBatch(batch.batch_id))!.entries.map((entry) => [entry.upload_id, entry.job_id]));
+    expect(jobs[temperature.json().upload_id]).toBe(temperature.json().job_id);
+    expect(jobs[voltage.json().upload_id]).not.toBe(voltage.json().job_id);
+    expect(batch).toMatchObject({ total: 2, done: 1, pending: 1 });
+    await post(batch.links.cancel, {});
+
+    // Its own sample's calibration: no sample warning.
+    const same = (await post('/v1/batches', { selection: { sample_id: 'CAL-V' }, calibration_id: own, parameters: { points_per_decade: 34 } })).json();
+    expect(same.warnings).toEqual([]);
+    await post(same.links.cancel, {});
+  });
+
+  it('404 for a calibration_id that is not stored, as an upload answers, instead of a batch whose every job fails', async () => {
+    const refused = (await post('/v1/batches', { selection: { tag: 'calib' }, calibration_id: 'ab'.repeat(32) })).json();
+    expect(refused).toMatchObject({ status: 404, code: 'RESOURCE_NOT_FOUND', detail: `calibration ${'ab'.repeat(32)} (calibration_id) is not stored` });
+  });
+});

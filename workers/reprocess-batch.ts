@@ -8,6 +8,7 @@ import { checkZthRises } from '../shared/analysis/check-zth-rises.js';
 import { resolveAnalysisInputs } from '../shared/analysis/resolve-analysis-inputs.js';
 import { channelCalibrations } from '../shared/analysis/channel-calibrations.js';
 import type { Calibration } from '../shared/schemas/calibration.js';
+import { calibrationSamplesWarning } from '../shared/analysis/calibration-sample-warning.js';
 import { jobIdFor } from '../services/jobs/job-id.js';
 import { closestName } from '../shared/input/closest-name.js';
 import type { UploadSummary } from '../services/store/upload-summary-index.js';
@@ -45,6 +46,8 @@ export interface BatchProgress {
   cancelled: number;
   /** Unfinished jobs of a cancelled batch that a worker was running at the cancel and still has: they count as done or failed once they end. Null when Redis did not answer the cancel; 0 for a batch not cancelled. */
   will_finish: number | null;
+  /** What the batch was started despite (its calibration and the selected uploads), as its 202 said. */
+  warnings: string[];
 }
 
 /** What a cancel answers: the progress, and what the cancel did in words. */
@@ -93,6 +96,11 @@ export class BatchReprocessor {
       cancelled_at: null,
       entries: [],
     };
+    if (batch.calibration_id !== null) {
+      const calibration = await this.store.getCalibration(batch.calibration_id);
+      if (!calibration) throw new HeatpathError('RESOURCE_NOT_FOUND', `calibration ${batch.calibration_id} (calibration_id) is not stored`);
+      batch.warnings = batchCalibrationWarnings(calibration.calibration, uploads);
+    }
     const jobs = uploads.map((upload) => reprocessedUpload(upload, batch));
     await this.checkOnFirstUpload(jobs[0], batch);
     batch.entries = uniqueEntries(jobs);
@@ -260,7 +268,7 @@ export class BatchReprocessor {
       batch_id: batch.batch_id, status: cancelled ? 'cancelled' : unfinished === 0 ? 'finished' : 'running', created_at: batch.created_at,
       created_by: batch.created_by, selection: batch.selection, parameters: batch.parameters, calibration_id: batch.calibration_id, algorithm: batch.algorithm,
       total: batch.entries.length, done, failed, failed_job_ids: failedJobIds, pending: cancelled ? 0 : unfinished,
-      cancelled: cancelled ? unfinished - (willFinish ?? 0) : 0, will_finish: willFinish,
+      cancelled: cancelled ? unfinished - (willFinish ?? 0) : 0, will_finish: willFinish, warnings: batch.warnings ?? [],
     };
   }
 
@@ -306,14 +314,43 @@ function cancellationNote(notRun: number, willFinish: number): string {
 }
 
 /**
+ * Whether an upload converts voltages with a calibration. Read from its record, not its bytes: an upload of voltage_V
+ * is refused without a calibration, and one of temperature or Zth has its calibration left out of the job (and
+ * record) with a warning, so a voltage upload always names one and no other upload does.
+ */
+function convertsVoltages(upload: UploadRecord): boolean {
+  return upload.calibration_id !== null || Object.keys(upload.channel_calibration_ids ?? {}).length > 0;
+}
+
+/**
+ * What the admin hears of a batch's calibration in its answer: selected uploads without a voltage_V channel, which it
+ * does not apply to, and uploads of other samples than the one it was swept on (as an upload of them would hear).
+ */
+function batchCalibrationWarnings(calibration: Calibration, uploads: readonly UploadRecord[]): string[] {
+  const voltage = uploads.filter(convertsVoltages);
+  const without = uploads.length - voltage.length;
+  return [
+    ...(without === 0
+      ? []
+      : [
+          `${without} of the ${uploads.length} selected uploads ${without === 1 ? 'has' : 'have'} no voltage_V channel: the calibration does not apply to them, and their jobs are as without it ` +
+            "(with the batch's parameters and algorithm version; where the batch changes nothing else, each is its upload's own job, counted, not redone)",
+        ]),
+    ...calibrationSamplesWarning(calibration, voltage.map((upload) => upload.sample_id)),
+  ];
+}
+
+/**
  * The job a batch makes of one upload: its parameters and calibration over the upload's, under the batch's algorithm
- * version. A batch's calibration replaces the upload's for every channel, channels' own included.
+ * version. A batch's calibration replaces the upload's for every channel, channels' own included, in uploads that
+ * convert voltages; others are analysed without it, as an upload of them with a calibration is (the same job id).
  */
 export function reprocessedUpload(upload: UploadRecord, batch: BatchRecord): UploadRecord {
   const parameters = { ...upload.parameters, ...(batch.parameters ?? {}) };
-  const calibrationId = batch.calibration_id ?? upload.calibration_id;
+  const replacesCalibration = batch.calibration_id !== null && convertsVoltages(upload);
+  const calibrationId = replacesCalibration ? batch.calibration_id : upload.calibration_id;
   const { channel_calibration_ids: uploadChannelCalibrationIds, ...rest } = upload;
-  const channelCalibrationIds = batch.calibration_id === null ? uploadChannelCalibrationIds : undefined;
+  const channelCalibrationIds = replacesCalibration ? undefined : uploadChannelCalibrationIds;
   const jobId = jobIdFor({
     input_sha256: upload.input_sha256, sample_id: upload.sample_id, parameters, power: upload.power,
     calibration_sha256: calibrationId, channel_calibration_sha256: channelCalibrationIds, algorithm: batch.algorithm,

@@ -135,6 +135,8 @@ export interface BatchRecord {
    * batches cancelled before it was recorded.
    */
   unfinished_at_cancel?: string[];
+  /** What the batch was started despite (reprocess-batch.ts batchCalibrationWarnings); absent: none, or stored before batches had warnings. */
+  warnings?: string[];
   entries: BatchEntry[];
 }
 

@@ -20,12 +20,26 @@ export function calibrationSampleWarning(calibration: Calibration, transientSamp
   if (swept === transientSample) return [];
   const position = calibration.sample.startsWith(`${transientSample} `) ? calibration.sample.slice(transientSample.length + 1).trim() : '';
   return [
-    `the calibration was swept on sample ${calibration.sample}, the transient is of sample ${transientSample}: a TSP calibration holds for the device swept ` +
-      `(devices of one type differ in voltage and K-factor, which shifts every junction temperature and scales Zth and Rth); analyse ${transientSample} with its own calibration` +
+    `the calibration was swept on sample ${calibration.sample}, the transient is of sample ${transientSample}: ${HOLDS_FOR_DEVICE_SWEPT}; analyse ${transientSample} with its own calibration` +
       (position !== '' && !/\s/.test(position)
         ? `. If ${position} is the position on ${transientSample} of the die swept, write the sweep's line as "# sample: ${transientSample}@${position}" and fit it again: SAMPLE@POSITION is a sweep of SAMPLE`
         : ''),
   ];
+}
+
+const HOLDS_FOR_DEVICE_SWEPT = 'a TSP calibration holds for the device swept (devices of one type differ in voltage and K-factor, which shifts every junction temperature and scales Zth and Rth)';
+
+/** Samples named in a warning; the rest are counted. */
+const SAMPLES_NAMED = 5;
+
+/** The same for a reprocessing batch that applies one calibration to transients of several samples: those not the calibration's. */
+export function calibrationSamplesWarning(calibration: Calibration, transientSamples: readonly string[]): string[] {
+  if (calibration.sample === undefined) return [];
+  const swept = sweptSample(calibration.sample);
+  const others = [...new Set(transientSamples)].filter((sample) => sample !== swept);
+  if (others.length === 0) return [];
+  const named = others.slice(0, SAMPLES_NAMED).join(', ') + (others.length > SAMPLES_NAMED ? ` and ${others.length - SAMPLES_NAMED} more` : '');
+  return [`the calibration was swept on sample ${calibration.sample}, the transients are of sample${others.length === 1 ? '' : 's'} ${named}: ${HOLDS_FOR_DEVICE_SWEPT}; reprocess each sample with its own calibration`];
 }
 
 /** The sample a sweep's `# sample:` line names: SAMPLE of SAMPLE@POSITION, else the whole line. */

@@ -27,7 +27,7 @@ const ParameterOverridesSchema = Type.Object(analysisParameterOverrides(() => "O
   description: 'Replace these parameters of each upload and keep its others; omitted: reprocess with the current algorithm version.',
 });
 
-const calibrationIdText = "Replace each upload's calibration by this stored one.";
+const calibrationIdText = "Replace the calibration of each upload that converts voltages (voltage_V) by this stored one, channels' own included; uploads of temperature or Zth are analysed without it.";
 
 const BatchRequestSchema = Type.Object(
   {
@@ -65,6 +65,11 @@ const progressProperties = {
   will_finish: Type.Union([Type.Integer(), Type.Null()], {
     description: 'Jobs of a cancelled batch that were running at the cancel and have no outcome yet: they finish and then count as done or failed. 0 for a batch not cancelled; null when Redis did not answer the cancel, so which jobs run is not known (they are counted in cancelled).',
   }),
+  warnings: Type.Array(Type.String(), {
+    description:
+      'What the batch was started despite, as its 202 said: selected uploads without a voltage_V channel, to which its calibration_id does not apply (their jobs are as without it: ' +
+      "their own where nothing else changes, counted, not redone), and a calibration swept on another sample than the selected uploads'.",
+  }),
   links: Type.Object({ self: Type.String(), cancel: Type.String() }),
 };
 
@@ -96,7 +101,9 @@ export const batchRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; bat
       schema: {
         tags: ['batches'],
         summary: 'Reprocess stored transients',
-        description: 'Queues one job per selected upload, below the benches\' uploads in priority. Uploads whose job already has an outcome are counted, not redone.',
+        description:
+          'Queues one job per selected upload, below the benches\' uploads in priority. Uploads whose job already has an outcome are counted, not redone. ' +
+          'A calibration_id that is not stored is 404 RESOURCE_NOT_FOUND; warnings says what the batch was started despite.',
         body: BatchRequestSchema,
         response: { 202: BatchCreatedSchema },
       },
