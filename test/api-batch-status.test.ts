@@ -5,6 +5,9 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { ResultRecord } from '../services/store/store-records.js';
+import { ALGORITHM_VERSION } from '../shared/analysis/algorithm-version.js';
+import { AnalysisWorker } from '../workers/analysis-worker.js';
+import { eventually } from './support/queue-test-fixture.js';
 import { bearer, startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
 import { syntheticTransientCsv } from './support/synthetic-upload.js';
 
@@ -52,21 +55,22 @@ describe('cancelling batches', () => {
   });
 });
 
-describe('a batch that applies a calibration', () => {
-  /** A TSP sweep (2 mV/K, a common silicon diode sensitivity: *common practice*) swept on `sample`. */
-  async function storedCalibration(sample: string): Promise<string> {
-    const temperature_C = [20, 50, 75, 100, 125, 150, 175];
-    const points_csv = [`# sample: ${sample}`, 'temperature_C,voltage_V', ...temperature_C.map((t) => `${t},${0.7 - 0.002 * (t - 25)}`)].join('\n');
-    const fitted = await context.app.inject({ method: 'POST', url: '/v1/calibrations', headers: bearer('bench'), payload: { model: 'linear', points_csv } });
-    expect(fitted.statusCode, fitted.body).toBe(201);
-    return fitted.json().calibration_id;
-  }
-  /** The synthetic transient of `seed` as the diode's voltage, by the same sweep. */
-  const voltageCsv = (seed: number) => {
-    const lines = syntheticTransientCsv(seed, 10).toString('utf8').trim().split('\n');
-    return ['time_s,voltage_V', ...lines.slice(1).map((line) => `${line.split(',')[0]},${(0.7 - 0.002 * (Number(line.split(',')[1]) - 25)).toFixed(7)}`)].join('\n');
-  };
+/** A TSP sweep (2 mV/K, a common silicon diode sensitivity: *common practice*) swept on `sample`. */
+async function storedCalibration(sample: string): Promise<string> {
+  const temperature_C = [20, 50, 75, 100, 125, 150, 175];
+  const points_csv = [`# sample: ${sample}`, 'temperature_C,voltage_V', ...temperature_C.map((t) => `${t},${0.7 - 0.002 * (t - 25)}`)].join('\n');
+  const fitted = await context.app.inject({ method: 'POST', url: '/v1/calibrations', headers: bearer('bench'), payload: { model: 'linear', points_csv } });
+  expect(fitted.statusCode, fitted.body).toBe(201);
+  return fitted.json().calibration_id;
+}
+/** The synthetic transient of `seed` as the diode's voltage, by the same sweep. */
+const voltageCsv = (seed: number) => {
+  const lines = syntheticTransientCsv(seed, 10).toString('utf8').trim().split('\n');
+  return ['time_s,voltage_V', ...lines.slice(1).map((line) => `${line.split(',')[0]},${(0.7 - 0.002 * (Number(line.split(',')[1]) - 25)).toFixed(7)}`)].join('\n');
+};
 
+
+describe('a batch that applies a calibration', () => {
   it('warns in its 202 (and its progress) of uploads without voltage_V and of a calibration swept on another sample, and leaves the calibration out of the jobs it does not apply to', async () => {
     const own = await storedCalibration('CAL-V');
     const voltage = await context.app.inject({ method: 'POST', url: `/v1/transients?sample_id=CAL-V&power_W=50&tags=calib&calibration_id=${own}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: voltageCsv(92) });
@@ -101,5 +105,33 @@ describe('a batch that applies a calibration', () => {
   it('404 for a calibration_id that is not stored, as an upload answers, instead of a batch whose every job fails', async () => {
     const refused = (await post('/v1/batches', { selection: { tag: 'calib' }, calibration_id: 'ab'.repeat(32) })).json();
     expect(refused).toMatchObject({ status: 404, code: 'RESOURCE_NOT_FOUND', detail: `calibration ${'ab'.repeat(32)} (calibration_id) is not stored` });
+  });
+});
+
+describe('what a job was analysed with', () => {
+  it('states algorithm, method, parameters and calibration per channel in the job status once the result is stored, and the method in the sample listing', async () => {
+    const calibration_id = await storedCalibration('AUD-1');
+    const uploaded = await context.app.inject({
+      method: 'POST', url: `/v1/transients?sample_id=AUD-1&power_W=50&method=bayes&calibration_id=${calibration_id}`, headers: { ...bearer('bench'), 'content-type': 'text/csv' }, payload: voltageCsv(94),
+    });
+    expect(uploaded.statusCode, uploaded.body).toBe(202);
+    const { job_id } = uploaded.json();
+    expect((await get(`/v1/jobs/${job_id}`)).json()).toMatchObject({ state: 'queued', analysis: null });
+
+    const worker = new AnalysisWorker({ dataDir: context.config.dataDir, redisUrl: context.redisUrl, prefix: context.prefix });
+    try {
+      await eventually(async () => (await get(`/v1/jobs/${job_id}`)).json().state === 'completed', 50);
+    } finally {
+      await worker.close(5_000);
+    }
+    const status = (await get(`/v1/jobs/${job_id}`)).json();
+    const [result] = (await get(`/v1/jobs/${job_id}/result`)).json().results;
+    // The same as the result's own provenance, which an auditor would otherwise fetch whole.
+    expect(status.analysis).toEqual([
+      { channel: result.source.channel, algorithm: result.provenance.algorithm, method: result.provenance.method, parameters: result.provenance.parameters, calibration_sha256: result.provenance.calibration_sha256 },
+    ]);
+    expect(status.analysis[0]).toMatchObject({ algorithm: ALGORITHM_VERSION, method: 'bayes', parameters: { method: 'bayes' }, calibration_sha256: calibration_id });
+    const listing = (await get('/v1/samples/AUD-1/results')).json();
+    expect(listing.transients[0].job).toMatchObject({ outcome: 'completed', summary: [{ channel: result.source.channel, method: 'bayes', rth_total_K_per_W: result.rth_total_K_per_W }] });
   });
 });

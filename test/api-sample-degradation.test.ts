@@ -95,16 +95,16 @@ describe('GET /v1/samples/:sample_id/degradation', () => {
     });
   });
 
-  it('lists each completed upload of the sample with its result in brief (channel, Rth total, warnings), without include_results', async () => {
+  it('lists each completed upload of the sample with its result in brief (channel, method, Rth total, warnings), without include_results', async () => {
     const answer = await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31/results', headers: bearer('reader') });
     expect(answer.statusCode).toBe(200);
     const { transients } = answer.json();
     expect(transients).toHaveLength(4);
     for (const entry of transients) {
       // The stored result itself is the expected value: the summary only copies from it.
-      const stored = (await ctx.store.getResult(entry.job.job_id))!.results as { source: { channel: string }; rth_total_K_per_W: number; quality: { warnings: string[] } }[];
+      const stored = (await ctx.store.getResult(entry.job.job_id))!.results as { source: { channel: string }; provenance: { method: string }; rth_total_K_per_W: number; quality: { warnings: string[] } }[];
       expect(entry.job).not.toHaveProperty('result');
-      expect(entry.job.summary).toEqual(stored.map((result) => ({ channel: result.source.channel, rth_total_K_per_W: result.rth_total_K_per_W, warnings: result.quality.warnings })));
+      expect(entry.job.summary).toEqual(stored.map((result) => ({ channel: result.source.channel, method: result.provenance.method, rth_total_K_per_W: result.rth_total_K_per_W, warnings: result.quality.warnings })));
     }
     // The LIMS's point: a page of summaries is a small fraction of a page of results.
     const full = await ctx.app.inject({ method: 'GET', url: '/v1/samples/M31/results?include_results=true', headers: bearer('reader') });

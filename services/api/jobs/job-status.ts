@@ -2,6 +2,8 @@ import { Type, type Static } from 'typebox';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { AnalysisJobState, AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { unavailableQueue } from './unavailable-queue.js';
+import { resultAnalysis, resultAnalysisSchema } from '../schemas/result-analysis-schema.js';
+import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 
 const nullableString = Type.Union([Type.String(), Type.Null()]);
 
@@ -31,6 +33,11 @@ export const JobStateSchema = Type.Union([
 });
 export type JobState = Static<typeof JobStateSchema>;
 
+const ChannelAnalysisSchema = Type.Object({
+  channel: Type.String({ description: "The result's channel (source.channel)." }),
+  ...resultAnalysisSchema("The channel result's provenance.").properties,
+});
+
 export const JobStatusSchema = Type.Object({
   job_id: Type.String(),
   state: JobStateSchema,
@@ -43,6 +50,11 @@ export const JobStatusSchema = Type.Object({
     duration_ms: Type.Union([Type.Number(), Type.Null()], { description: 'Time the analysis of the finished job took, from its parse to its result; started_at to finished_at also holds reading the inputs, a first start of the analysis process and storing the result.' }),
   }),
   error: Type.Union([Type.Object({ code: nullableString, message: Type.String() }), Type.Null()]),
+  analysis: Type.Union([Type.Array(ChannelAnalysisSchema), Type.Null()], {
+    description:
+      "What a completed job was analysed with, one entry per channel as its result's provenance states it (as the degradation trend's entries do): algorithm version, method, " +
+      'parameters and the calibration that converted the channel (calibration_sha256, the calibration id; null: none). Null until a result is stored.',
+  }),
 });
 export type JobStatus = Static<typeof JobStatusSchema>;
 
@@ -66,6 +78,7 @@ export async function readJobStatus(store: TransientStore, queue: AnalysisQueue,
         duration_ms: result?.duration_ms ?? null,
       },
       error: failure ? { code: failure.code, message: failure.message } : null,
+      analysis: result ? (result.results as AnalysisResult[]).map((channel) => ({ channel: channel.source.channel, ...resultAnalysis(channel) })) : null,
     };
   }
   const queued = await queue.getJobState(jobId).catch(unavailableQueue('the job state is unknown until it answers again'));
@@ -82,7 +95,7 @@ export async function readJobStatus(store: TransientStore, queue: AnalysisQueue,
 
 /** A job whose upload is stored but which no queue knows (yet). */
 export function storedJobStatus(jobId: string): JobStatus {
-  return { job_id: jobId, state: 'stored', progress: 0, attempts: 0, timings: { queued_at: null, started_at: null, finished_at: null, duration_ms: null }, error: null };
+  return { job_id: jobId, state: 'stored', progress: 0, attempts: 0, timings: { queued_at: null, started_at: null, finished_at: null, duration_ms: null }, error: null, analysis: null };
 }
 
 function fromQueue(queued: AnalysisJobState): JobStatus {
@@ -93,6 +106,7 @@ function fromQueue(queued: AnalysisJobState): JobStatus {
     attempts: queued.attempts_made,
     timings: { queued_at: queued.added_at, started_at: queued.started_at, finished_at: queued.finished_at, duration_ms: null },
     error: queued.failed_reason ? { code: null, message: queued.failed_reason } : null,
+    analysis: null,
   };
 }
 

@@ -1,10 +1,11 @@
 import type { FastifyPluginAsyncTypebox } from '@fastify/type-provider-typebox';
 import { Type } from 'typebox';
-import { AnalysisResultSchema, type AnalysisResult } from '../../../shared/schemas/analysis-result.js';
+import type { AnalysisResult } from '../../../shared/schemas/analysis-result.js';
 import type { TransientStore } from '../../store/transient-store.js';
 import type { AnalysisQueue } from '../../../workers/analysis-queue.js';
 import { readJobStatus } from '../jobs/job-status.js';
 import { ResultRecordSchema } from '../schemas/result-record-schema.js';
+import { resultAnalysisSchema } from '../schemas/result-analysis-schema.js';
 import { UploadLinksSchema, WithdrawalSchema, withdrawalView } from '../schemas/upload-record-schema.js';
 import { uploadLinks } from '../uploads/accept-transient-upload.js';
 import { NotIncludedReasonCodeSchema, sampleDegradation } from '../samples/sample-degradation.js';
@@ -25,6 +26,7 @@ const OutcomeSchema = Type.Union([Type.Literal('pending'), Type.Literal('complet
 /** What a LIMS shows per measurement, without fetching the whole result (some 200 kB). */
 const ChannelSummarySchema = Type.Object({
   channel: Type.String({ description: "The result's channel (source.channel)." }),
+  method: Type.String({ description: "The spectrum method the result was analysed with (provenance.method): results of different methods differ in their spectra, networks and structure functions." }),
   rth_total_K_per_W: Type.Number({ description: "The result's rth_total_K_per_W." }),
   warnings: Type.Array(Type.String(), { description: "The result's quality.warnings." }),
 });
@@ -33,7 +35,7 @@ const JobOutcomeSchema = Type.Object({
   job_id: Type.String(),
   outcome: OutcomeSchema,
   summary: Type.Optional(
-    Type.Array(ChannelSummarySchema, { description: 'A completed job\'s result in brief, one entry per channel, with or without include_results: Rth total and the warnings.' }),
+    Type.Array(ChannelSummarySchema, { description: 'A completed job\'s result in brief, one entry per channel, with or without include_results: its method, Rth total and the warnings.' }),
   ),
   result: Type.Optional(
     Type.Omit(ResultRecordSchema, ['upload_id', 'sample_id'], {
@@ -64,9 +66,7 @@ const MeasurementSchema = Type.Object({
   cycle_count: Type.Union([Type.Integer(), Type.Null()]),
   job_id: Type.String(),
   rth_total_K_per_W: Type.Number(),
-  analysis: Type.Pick(AnalysisResultSchema.properties.provenance, ['algorithm', 'method', 'parameters', 'calibration_sha256'], {
-    description: "What this measurement's result was analysed with (its provenance): the trend warns when its measurements were not all analysed alike.",
-  }),
+  analysis: resultAnalysisSchema("What this measurement's result was analysed with (its provenance): the trend warns when its measurements were not all analysed alike."),
 });
 
 const SampleDegradationSchema = Type.Object({
@@ -124,7 +124,7 @@ export const sampleRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; qu
     if (result) {
       const { upload_id: _firstUpload, sample_id: _firstSample, ...shared } = result;
       const results = shared.results as AnalysisResult[];
-      const summary = results.map((channel) => ({ channel: channel.source.channel, rth_total_K_per_W: channel.rth_total_K_per_W, warnings: channel.quality.warnings }));
+      const summary = results.map((channel) => ({ channel: channel.source.channel, method: channel.provenance.method, rth_total_K_per_W: channel.rth_total_K_per_W, warnings: channel.quality.warnings }));
       return { job_id: jobId, outcome: 'completed' as const, summary, ...(includeResult && { result: { ...shared, results } }) };
     }
     if (await store.hasFailure(jobId)) return { job_id: jobId, outcome: 'failed' as const };

@@ -1,4 +1,5 @@
 import { Type, type Static } from 'typebox';
+import { resultAnalysis } from '../schemas/result-analysis-schema.js';
 import { comparisonWarnings } from '../../../shared/analysis/comparison-warnings.js';
 import { campaignOrder } from '../../../shared/analysis/campaign-order.js';
 import { compareForDegradation, degradationNotes } from '../../../shared/analysis/package-degradation.js';
@@ -48,7 +49,7 @@ interface Measurement {
 
 const measurementOf = ({ upload, job_id, result }: Measurement) => ({
   upload_id: upload.upload_id, received_at: upload.received_at, cycle_count: upload.cycle_count, job_id, rth_total_K_per_W: result.rth_total_K_per_W,
-  analysis: { algorithm: result.provenance.algorithm, method: result.provenance.method, parameters: result.provenance.parameters, calibration_sha256: result.provenance.calibration_sha256 },
+  analysis: resultAnalysis(result),
 });
 
 /**
