@@ -89,4 +89,11 @@ describe('loadServiceConfig', () => {
     expect(loadServiceConfig({}, { servesApi: false }).apiKeys).toEqual([]);
     expect(() => loadServiceConfig({ HEATPATH_LOCK_DURATION_MS: '5' }, { servesApi: false })).toThrow(/HEATPATH_LOCK_DURATION_MS/);
   });
+
+  it("takes a dead worker's job over within the 50 s the README states with the defaults", () => {
+    // BullMQ's stalled-job check (its moveStalledJobsToWait script) marks an active job on one check and moves it back
+    // to the queue on a later one once its lock has expired: at most the lock duration plus two check intervals.
+    const { lockDurationMs, stalledIntervalMs } = loadServiceConfig({}, { servesApi: false }).queue;
+    expect(lockDurationMs + 2 * stalledIntervalMs).toBe(50_000);
+  });
 });

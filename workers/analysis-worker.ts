@@ -23,7 +23,7 @@ export interface AnalysisWorkerOptions {
   concurrency?: number;
   /** How long a job's lock lasts without renewal (a dead worker's job is taken over after it). Default: HEATPATH_LOCK_DURATION_MS's. */
   lockDurationMs?: number;
-  /** How often stalled jobs are looked for. Default: HEATPATH_STALLED_INTERVAL_MS's. */
+  /** How often stalled jobs are looked for. Default: HEATPATH_STALLED_INTERVAL_MS's; a dead worker's job runs again within lockDurationMs + 2 x this (BullMQ marks it on one look and takes it over on a later one). */
   stalledIntervalMs?: number;
   /** Where each completed job (info) and each failed attempt (warn) is logged. */
   logger?: Logger;

@@ -26,8 +26,14 @@ const ServiceEnvSchema = Type.Object({
   HEATPATH_QUEUE_PREFIX: Type.String({ minLength: 1, pattern: QUEUE_PREFIX_PATTERN.pattern, default: '{heatpath}', description: 'BullMQ key prefix; keep the {hash tag} for Redis Cluster. API and workers must agree.' }),
   HEATPATH_WORKER_PROCESSES: Type.Optional(Type.Integer({ minimum: 1, maximum: 256, description: 'Analysis processes per worker instance; default: one per CPU core plus one.' })),
   HEATPATH_WORKER_METRICS_PORT: Type.Optional(Type.Integer({ minimum: 0, maximum: 65535, description: 'Port on HOST where a worker process started alone (npm run start:worker) serves its job metrics at /metrics for Prometheus, without a key; unset: none (npm start serves them on the API\'s /metrics).' })),
-  HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration; a dead worker\'s job is taken over by another after about this long.' }),
-  HEATPATH_STALLED_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'How often workers look for jobs whose worker died.' }),
+  HEATPATH_LOCK_DURATION_MS: Type.Integer({ minimum: 1000, default: 30_000, description: 'Job lock duration, renewed every half of it while the job runs; a dead worker\'s job is taken over once its lock has expired (see HEATPATH_STALLED_INTERVAL_MS).' }),
+  HEATPATH_STALLED_INTERVAL_MS: Type.Integer({
+    minimum: 1000,
+    default: 10_000,
+    description:
+      'How often workers look for jobs whose worker died. BullMQ marks an active job on one look and takes it over on a later one once its lock has expired, ' +
+      'so a dead worker\'s job runs again within the lock duration plus two of these intervals. A short interval takes no live job: one whose lock is renewed is never taken over.',
+  }),
   HEATPATH_RECOVERY_INTERVAL_MS: Type.Integer({ minimum: 1000, default: 60_000, description: 'How often stored uploads without a result are offered to the queue again (after a Redis loss).' }),
   HEATPATH_SHUTDOWN_TIMEOUT_MS: Type.Integer({ minimum: 0, default: 30_000, description: 'On SIGTERM, how long running jobs may finish before the worker stops anyway (their jobs are retried elsewhere).' }),
   HEATPATH_WEBHOOK_ALLOWLIST: Type.String({ default: '', description: 'Origins (scheme://host:port), comma-separated, that webhooks may be registered for and delivered to; empty allows none.' }),

@@ -51,7 +51,7 @@ export const jobRoutes: FastifyPluginAsyncTypebox<{ store: TransientStore; queue
       config: { permission: 'read' },
       schema: {
         tags: ['jobs'],
-        summary: 'State, progress, timings and error of a job',
+        summary: 'State, progress, timings and error of a job, and what it was analysed with once completed',
         params: JobParams,
         response: { 200: JobAnswerSchema },
       },
