@@ -196,8 +196,9 @@ export class BatchReprocessor {
     }
     // Read after the queue: a job that finished meanwhile counts as done or failed, not as running.
     const outcomes = await this.store.jobOutcomes();
-    if (firstCancel) {
+    if (firstCancel && redisAnswered) {
       // From here on only the jobs running now can finish for this batch: an outcome of any other of its jobs is another run's (see notRunForBatch).
+      // Not when Redis did not answer: which jobs ran is not known, and a later cancel could not tell them from those that finished since.
       batch.unfinished_at_cancel = batch.entries.filter((entry) => !isJobFinished(outcomes, entry.job_id)).map((entry) => entry.job_id);
     }
     if (redisAnswered) {
@@ -298,7 +299,7 @@ export class BatchReprocessor {
  * then. Jobs are shared (same bytes, parameters, calibration and algorithm version: same job id), so one of them may
  * get an outcome later from another batch or an upload; the cancelled batch still counts it cancelled, for it did
  * not run for that batch. Null when every outcome counts for the batch: not cancelled, cancelled before the cancel
- * recorded which jobs lacked an outcome, or while Redis did not answer the cancel (which jobs ran is not known then).
+ * recorded which jobs lacked an outcome, or cancelled while Redis did not answer (which jobs ran is not known then).
  */
 export function notRunForBatch(batch: BatchRecord): Set<string> | null {
   if (batch.status !== 'cancelled' || batch.unfinished_at_cancel === undefined || batch.running_at_cancel === undefined || batch.running_at_cancel === null) return null;
@@ -364,8 +365,8 @@ function batchKindHint(kind: string): string {
 }
 
 /**
- * The selection's names that no stored upload has, each with the stored name it most likely meant (`sample_id IG1:
- * no upload has it, did you mean IGBT-1?`), as the sample route answers a sample id no upload was stored under.
+ * The selection's names that no stored upload has, each with the stored name it most likely meant (`no stored upload
+ * has sample_id IGBT1, did you mean IGBT-1?`), as the sample route answers a sample id no upload was stored under.
  */
 function unknownNames(uploads: readonly UploadSummary[], selection: UploadFilter): string[] {
   const known = { sample_id: uploads.map((upload) => upload.sample_id), bench: uploads.flatMap((upload) => upload.bench ?? []), tag: uploads.flatMap((upload) => upload.tags) };

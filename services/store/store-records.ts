@@ -129,10 +129,10 @@ export interface BatchRecord {
    */
   running_at_cancel?: string[] | null;
   /**
-   * Set by the first cancel: the jobs without an outcome once it had emptied the queue of the batch's jobs. Of these,
+   * Set by the first cancel, when Redis answered it: the jobs without an outcome once it had emptied the queue of the batch's jobs. Of these,
    * only those in running_at_cancel can still finish for the batch; an outcome the others get later comes from
-   * another batch or an upload sharing the job, and the batch counts them cancelled. Absent before a cancel, and in
-   * batches cancelled before it was recorded.
+   * another batch or an upload sharing the job, and the batch counts them cancelled. Absent before a cancel, after one
+   * Redis did not answer, and in batches cancelled before it was recorded.
    */
   unfinished_at_cancel?: string[];
   /** What the batch was started despite (reprocess-batch.ts batchCalibrationWarnings); absent: none, or stored before batches had warnings. */
