@@ -47,11 +47,37 @@ describe('loadServiceConfig', () => {
     expect(config.apiKeys[0].tokenSha256).toEqual(sha256(`${benchToken}:x`));
   });
 
-  it('reads a keys file with comments', () => {
+  it('reads a keys file with whole-line comments, and a # inside a token is part of it', () => {
     const file = join(tempDir, 'keys.txt');
-    writeFileSync(file, `# lab keys\nlims:reader:${benchToken}\n\nbench2:bench:${benchToken}z # line 2\n`);
+    writeFileSync(file, `# lab keys\nlims:reader:${benchToken}\n\n  # bench 2\nbench2:bench:${benchToken}#z\n`);
     const config = loadServiceConfig({ HEATPATH_API_KEYS_FILE: file });
     expect(config.apiKeys.map((key) => key.name)).toEqual(['lims', 'bench2']);
+    expect(config.apiKeys[1].tokenSha256).toEqual(sha256(`${benchToken}#z`));
+  });
+
+  it('takes a # in HEATPATH_API_KEYS as part of the token, not as a comment that cuts it', () => {
+    // The IT-admin probe: 'a:admin:abcdefgh12345678#tail' was cut to 'abcdefgh12345678', so the full token got 401.
+    const config = loadServiceConfig({ HEATPATH_API_KEYS: 'a:admin:abcdefgh12345678#tail' });
+    expect(config.apiKeys[0].tokenSha256).toEqual(sha256('abcdefgh12345678#tail'));
+  });
+
+  it('names a keys file problem by its line, with the expected format and an example', () => {
+    const file = join(tempDir, 'keys-bad.txt');
+    writeFileSync(file, `# comment\nlims:reader:${benchToken}\n\nbadline\nbench2:bench:${benchToken}z # a note\n`);
+    const error = configError({ HEATPATH_API_KEYS_FILE: file });
+    expect(error.message).toContain('HEATPATH_API_KEYS_FILE line 4 is not name:role:token, for example bench1:bench:');
+    expect(error.message).not.toContain('entry 2');
+    // A note after an entry is not cut off silently: the token would then hold it.
+    expect(error.message).toContain('HEATPATH_API_KEYS_FILE line 5 (bench2): token holds a space or control character: a comment must be a line of its own');
+    expect(error.message).not.toContain(benchToken);
+  });
+
+  it('refuses two keys with the same token, naming both keys but not the token', () => {
+    // The IT-admin probe: the first key with a token wins, so the admin key below could never be used.
+    const token = 'samesame-0123456789abcdef';
+    const error = configError({ HEATPATH_API_KEYS: `r:reader:${token},a:admin:${token}` });
+    expect(error.message).toMatch(/1 problem:\n  - HEATPATH_API_KEYS entry 2: keys "r" and "a" have the same token: give each key a token of its own\n/);
+    expect(error.message).not.toContain(token);
   });
 
   it('lists every bad variable in one CONFIG_INVALID error', () => {

@@ -18,8 +18,8 @@ const ServiceEnvSchema = Type.Object({
   HOST: Type.String({ minLength: 1, default: '127.0.0.1', description: 'Address the API listens on; 0.0.0.0 serves the whole lab network.' }),
   REDIS_URL: Type.String({ pattern: REDIS_URL_PATTERN.pattern, default: 'redis://127.0.0.1:6379', description: 'Redis holding the job queue (redis:// or rediss://).' }),
   HEATPATH_DATA_DIR: Type.String({ minLength: 1, default: '.heatpath-data', description: 'Durable store of raw transients, uploads and results (relative to the working directory).' }),
-  HEATPATH_API_KEYS: Type.Optional(Type.String({ description: 'API keys as name:role:token, comma-separated; role is bench, reader or admin.' })),
-  HEATPATH_API_KEYS_FILE: Type.Optional(Type.String({ minLength: 1, description: 'File with one name:role:token a line (# comments); instead of HEATPATH_API_KEYS.' })),
+  HEATPATH_API_KEYS: Type.Optional(Type.String({ description: 'API keys as name:role:token, comma-separated; role is bench, reader or admin; no comments (a # is part of a token).' })),
+  HEATPATH_API_KEYS_FILE: Type.Optional(Type.String({ minLength: 1, description: 'File with one name:role:token a line (whole-line # comments); instead of HEATPATH_API_KEYS.' })),
   HEATPATH_MAX_UPLOAD_BYTES: Type.Integer({ minimum: 1024, default: 32 * 1024 * 1024, description: 'Largest accepted upload body or file in bytes; larger ones get 413.' }),
   HEATPATH_RATE_LIMIT_PER_MINUTE: Type.Integer({ minimum: 1, default: 1200, description: 'Requests per API key per minute; more get 429.' }),
   HEATPATH_REDIS_ANSWER_MS: Type.Integer({ minimum: 50, default: 2000, description: 'How long an API request waits for Redis; then uploads are answered as stored (queued later) and reads get 503.' }),
@@ -147,9 +147,9 @@ function loadApiKeys(keyList: string | undefined, keysFile: string | undefined, 
       problems.push(`HEATPATH_API_KEYS_FILE: cannot read ${keysFile} (${(error as Error).message}).`);
       return [];
     }
-    return collect(parseApiKeyList(text, 'HEATPATH_API_KEYS_FILE'), problems);
+    return collect(parseApiKeyList(text, 'HEATPATH_API_KEYS_FILE', 'file'), problems);
   }
-  if (keyList !== undefined) return collect(parseApiKeyList(keyList, 'HEATPATH_API_KEYS'), problems);
+  if (keyList !== undefined) return collect(parseApiKeyList(keyList, 'HEATPATH_API_KEYS', 'variable'), problems);
   problems.push('No API keys: set HEATPATH_API_KEYS=name:role:token[,...] or HEATPATH_API_KEYS_FILE (roles: bench, reader, admin; tokens of 16 or more characters, e.g. from `openssl rand -hex 24`).');
   return [];
 }
