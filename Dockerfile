@@ -29,6 +29,8 @@ RUN groupadd --system heatpath && useradd --system --gid heatpath --home-dir /ap
 USER heatpath
 VOLUME ["/data"]
 EXPOSE 8080
-HEALTHCHECK --interval=15s --timeout=3s --start-period=10s --retries=3 \
-  CMD node -e "fetch('http://127.0.0.1:' + (process.env.PORT || 8080) + '/health/live').then((r) => process.exit(r.ok ? 0 : 1), () => process.exit(1))"
+# /health/ready (Redis and a writable store with room) where the container runs the API; a worker-only
+# container (`node dist/workers/main.js`) has no HTTP port and is reported healthy (see the script).
+HEALTHCHECK --interval=15s --timeout=4s --start-period=10s --retries=3 \
+  CMD ["node", "dist/services/container-health-check.js"]
 CMD ["node", "dist/services/main.js"]

@@ -1,3 +1,4 @@
+import { randomBytes } from 'node:crypto';
 import { access, constants, stat, statfs } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
@@ -336,12 +337,31 @@ export class TransientStore {
 
   // ---- health ----
 
-  /** Creates the data directory if it is not there yet: a new installation starts with an empty store. */
+  /**
+   * Creates the data directory if it is not there yet (a new installation
+   * starts with an empty store), and checks that this process can create and
+   * fsync a file in it, as every upload must.
+   */
   async ensureDataDir(): Promise<void> {
     try {
       await makeDirectory(this.dataDir, this.io);
     } catch (error) {
-      throw new Error(`the data directory ${this.dataDir} cannot be created (${fileErrorReason(error)}): point HEATPATH_DATA_DIR at a folder this user may write to`);
+      // makeDirectory says ENOTDIR both for a parent that is a file and for the path itself being one.
+      const itself = await stat(this.dataDir).then((info) => !info.isDirectory(), () => false);
+      const reason = itself ? 'it is a file, not a folder' : fileErrorReason(error);
+      throw new Error(`the data directory ${this.dataDir} cannot be created (${reason}): point HEATPATH_DATA_DIR at a folder this user may write to`);
+    }
+    // A folder that exists but that this user may not write to would start a service that answers every upload 503.
+    const probe = join(this.dataDir, `.write-check-${process.pid}-${randomBytes(6).toString('hex')}`);
+    try {
+      await createFileExclusive(this.io, probe, 'heatpath write check\n');
+      await removeFileDurably(this.io, probe);
+    } catch (error) {
+      const user = process.getuid ? `${process.getuid()}:${process.getgid?.()}` : 'the service user';
+      throw new Error(
+        `the data directory ${this.dataDir} cannot be written (${fileErrorReason(error)}): give the user the service runs as (${user}) write access to it, ` +
+          `e.g. chown -R ${user} ${this.dataDir}, or point HEATPATH_DATA_DIR at a folder this user may write to`,
+      );
     }
   }
 
