@@ -10,6 +10,8 @@ export interface UploadRecoveryOptions {
   intervalMs?: number;
   /** Free space the store needs before failed jobs are run again (see rerun_failed). Default 0. */
   minFreeBytes?: number;
+  /** How long after its `received_at` an upload record without raw bytes counts as one whose bytes are lost (see missing_bytes). Default 5 minutes. */
+  missingBytesGraceMs?: number;
   logger?: Logger;
 }
 
@@ -27,12 +29,23 @@ export interface RecoverySweep {
   /** Unfinished jobs of running batches, offered again. */
   batch_jobs: number;
   /**
-   * Upload records whose raw bytes are not stored: the API writes both side
-   * by side before it answers, so these are uploads a crash interrupted and
-   * nobody was told were accepted. They are not queued.
+   * Upload records older than the grace period whose raw bytes are not in the
+   * store: bytes lost or deleted since (a restore without them), or, rarely, an
+   * upload a crash interrupted between its two side-by-side writes and nobody
+   * was told was accepted. Either way the bytes will not come back by waiting,
+   * so their jobs are queued, and the analysis fails them at once with
+   * STORED_INPUT_MISSING, recorded and sent to the webhooks as job.failed:
+   * uploading the file again, or restoring it and retrying the job, runs it.
    */
-  unacknowledged: string[];
+  missing_bytes: string[];
 }
+
+/**
+ * An upload record younger than this may be one the API is writing now (its
+ * bytes are written beside it, not before): it is not judged yet. Five minutes
+ * also covers a clock that differs between the API's and the worker's machines.
+ */
+const MISSING_BYTES_GRACE_MS = 5 * 60_000;
 
 /** Jobs added to Redis per round trip. */
 const ENQUEUE_CHUNK = 500;
@@ -49,6 +62,8 @@ const ENQUEUE_CHUNK = 500;
 export class UploadRecovery {
   private timer: NodeJS.Timeout | undefined;
   private running: Promise<RecoverySweep | null> | undefined;
+  /** Uploads already logged as missing their bytes: the log says so once, not at every sweep until their failure is stored. */
+  private readonly reportedMissing = new Set<string>();
 
   constructor(
     private readonly store: TransientStore,
@@ -57,9 +72,10 @@ export class UploadRecovery {
     private readonly options: UploadRecoveryOptions = {},
   ) {}
 
-  async sweep(): Promise<RecoverySweep> {
+  async sweep(now = Date.now()): Promise<RecoverySweep> {
     const pending: UploadRecord[] = [];
-    const unacknowledged: string[] = [];
+    const missingBytes: UploadRecord[] = [];
+    const graceMs = this.options.missingBytesGraceMs ?? MISSING_BYTES_GRACE_MS;
     const [outcomes, withdrawals] = await Promise.all([this.store.jobOutcomes(), this.store.withdrawals()]);
     for (const summary of await this.store.listUploadSummaries()) {
       // A withdrawn upload is kept for the record, not analysed again: its job runs only for an upload that stands.
@@ -68,12 +84,19 @@ export class UploadRecovery {
       const upload = await this.store.getUpload(summary.upload_id);
       if (!upload) continue;
       if (await this.store.hasBlob(upload.input_sha256)) pending.push(upload);
-      else unacknowledged.push(upload.upload_id);
+      // Judged only once the API is surely done writing it; the analysis checks again and tells a lost file from a store outage.
+      else if (now - Date.parse(upload.received_at) >= graceMs) missingBytes.push(upload);
     }
-    for (let start = 0; start < pending.length; start += ENQUEUE_CHUNK) {
-      await this.queue.enqueueMany(pending.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.interactive });
+    const offered = [...pending, ...missingBytes];
+    for (let start = 0; start < offered.length; start += ENQUEUE_CHUNK) {
+      await this.queue.enqueueMany(offered.slice(start, start + ENQUEUE_CHUNK), { priority: JOB_PRIORITY.interactive });
     }
-    return { uploads: pending.length, rerun_failed: await this.rerunUnrecordedFailures(pending), batch_jobs: await this.batches.requeueRunning(), unacknowledged };
+    return {
+      uploads: pending.length,
+      rerun_failed: await this.rerunUnrecordedFailures(pending),
+      batch_jobs: await this.batches.requeueRunning(),
+      missing_bytes: missingBytes.map((upload) => upload.upload_id),
+    };
   }
 
   /** Runs again the pending uploads' jobs that Redis holds as failed; none while the store could not record their outcome either. */
@@ -102,8 +125,13 @@ export class UploadRecovery {
               'recovery runs again jobs that failed without a stored failure (the store could not record it): they start with fresh attempts',
             );
           }
-          if (sweep.unacknowledged.length > 0) {
-            this.options.logger?.warn({ upload_ids: sweep.unacknowledged }, 'upload records without raw bytes (a crash came before the answer); not queued');
+          const newlyMissing = sweep.missing_bytes.filter((uploadId) => !this.reportedMissing.has(uploadId));
+          if (newlyMissing.length > 0) {
+            newlyMissing.forEach((uploadId) => this.reportedMissing.add(uploadId));
+            this.options.logger?.warn(
+              { upload_ids: newlyMissing },
+              'uploads whose raw transient is not in the store (lost, deleted or left out of a restore): their jobs fail with STORED_INPUT_MISSING; upload the files again, or restore them and retry the jobs',
+            );
           }
           return sweep;
         })

@@ -144,8 +144,9 @@ export async function acceptTransientUpload(
   };
   // Both durable before the answer, written side by side: each waits for its
   // own fsyncs, so together they take the time of one. A crash between them
-  // leaves a record without its bytes, which was never acknowledged and which
-  // recovery leaves alone (recover-uploads.ts). The parse is kept beside them
+  // leaves a record without its bytes, which was never acknowledged; recovery
+  // cannot tell it from bytes lost later and, past a grace period, lets its job
+  // fail STORED_INPUT_MISSING (recover-uploads.ts), unless a retry stored the bytes. The parse is kept beside them
   // for the analysis; it is derived, so failing to keep it costs only a parse
   // later and never fails the upload.
   const keepParse = store
