@@ -9,6 +9,7 @@ import { startedOrExit } from '../services/config/started-or-exit.js';
 import { AnalysisQueue } from './analysis-queue.js';
 import { AnalysisWorker } from './analysis-worker.js';
 import { UploadRecovery } from './recover-uploads.js';
+import { watchRedis } from './redis-watch.js';
 import { BatchReprocessor } from './reprocess-batch.js';
 import { WebhookDeliveryWorker } from './webhook-delivery.js';
 import { WebhookRegistry } from './webhook-registry.js';
@@ -73,11 +74,20 @@ export async function startWorkers({ config, logger, metricsRegistry }: StartWor
   });
   recovery.start();
   logger.info({ processes, prefix: settings.prefix, data_dir: dataDir }, 'analysis workers started');
+  // Uploads the API stored while Redis was away are queued as soon as it is back, not at the next sweep.
+  const redisWatch = watchRedis({
+    ping: () => queue.ping(),
+    redisUrl,
+    logger,
+    answerMs: config.redisAnswerMs,
+    meanwhile: 'no analysis jobs are taken and no webhooks delivered',
+    onBack: () => recovery.sweepNow(),
+  });
 
   return {
     analysis,
     async close() {
-      await recovery.stop();
+      await Promise.all([redisWatch.stop(), recovery.stop()]);
       const outcome = await analysis.close(settings.shutdownTimeoutMs);
       if (outcome === 'forced') logger.warn('shutdown timeout reached: unfinished jobs will be taken over by another worker');
       await Promise.all([webhooks.close(), queue.close()]);

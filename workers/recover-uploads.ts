@@ -115,35 +115,37 @@ export class UploadRecovery {
 
   /** Sweeps now and every interval; a sweep that fails (Redis away) is logged and tried again next time. */
   start(): void {
-    const run = () => {
-      this.running ??= this.sweep()
-        .then((sweep) => {
-          if (sweep.uploads + sweep.batch_jobs > 0) this.options.logger?.info({ sweep }, 'recovery offered unfinished jobs to the queue');
-          if (sweep.rerun_failed.length > 0) {
-            this.options.logger?.warn(
-              { job_ids: sweep.rerun_failed },
-              'recovery runs again jobs that failed without a stored failure (the store could not record it): they start with fresh attempts',
-            );
-          }
-          const newlyMissing = sweep.missing_bytes.filter((uploadId) => !this.reportedMissing.has(uploadId));
-          if (newlyMissing.length > 0) {
-            newlyMissing.forEach((uploadId) => this.reportedMissing.add(uploadId));
-            this.options.logger?.warn(
-              { upload_ids: newlyMissing },
-              'uploads whose raw transient is not in the store (lost, deleted or left out of a restore): their jobs fail with STORED_INPUT_MISSING; upload the files again, or restore them and retry the jobs',
-            );
-          }
-          return sweep;
-        })
-        .catch((error: unknown) => {
-          this.options.logger?.warn({ err: error }, 'recovery sweep failed; retrying at the next interval');
-          return null;
-        })
-        .finally(() => (this.running = undefined));
-    };
-    run();
-    this.timer = setInterval(run, this.options.intervalMs ?? serviceEnvDefaults.HEATPATH_RECOVERY_INTERVAL_MS);
+    this.sweepNow();
+    this.timer = setInterval(() => this.sweepNow(), this.options.intervalMs ?? serviceEnvDefaults.HEATPATH_RECOVERY_INTERVAL_MS);
     this.timer.unref();
+  }
+
+  /** Sweeps now, unless a sweep is running (Redis is back: what was stored meanwhile need not wait for the interval). */
+  sweepNow(): void {
+    this.running ??= this.sweep()
+      .then((sweep) => {
+        if (sweep.uploads + sweep.batch_jobs > 0) this.options.logger?.info({ sweep }, 'recovery offered unfinished jobs to the queue');
+        if (sweep.rerun_failed.length > 0) {
+          this.options.logger?.warn(
+            { job_ids: sweep.rerun_failed },
+            'recovery runs again jobs that failed without a stored failure (the store could not record it): they start with fresh attempts',
+          );
+        }
+        const newlyMissing = sweep.missing_bytes.filter((uploadId) => !this.reportedMissing.has(uploadId));
+        if (newlyMissing.length > 0) {
+          newlyMissing.forEach((uploadId) => this.reportedMissing.add(uploadId));
+          this.options.logger?.warn(
+            { upload_ids: newlyMissing },
+            'uploads whose raw transient is not in the store (lost, deleted or left out of a restore): their jobs fail with STORED_INPUT_MISSING; upload the files again, or restore them and retry the jobs',
+          );
+        }
+        return sweep;
+      })
+      .catch((error: unknown) => {
+        this.options.logger?.warn({ err: error }, 'recovery sweep failed; retrying at the next interval');
+        return null;
+      })
+      .finally(() => (this.running = undefined));
   }
 
   async stop(): Promise<void> {

@@ -2,6 +2,7 @@ import type { Logger } from 'pino';
 import type { ServiceConfig } from '../config/service-config.js';
 import { TransientStore } from '../store/transient-store.js';
 import { AnalysisQueue } from '../../workers/analysis-queue.js';
+import { watchRedis } from '../../workers/redis-watch.js';
 import { buildApp, type HeatpathApp } from './build-app.js';
 
 export interface RunningApi {
@@ -18,7 +19,13 @@ export async function startApi(config: ServiceConfig, logger: Logger): Promise<R
   const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
   const app = await buildApp({ config, logger, store, queue });
   await app.listen({ port: config.port, host: config.host });
-  if (!(await queue.ping())) logger.warn({ redis: config.redisUrl }, 'Redis does not answer: uploads are stored and queued once it does; /health/ready reports 503');
+  const redisWatch = watchRedis({
+    ping: () => queue.ping(),
+    redisUrl: config.redisUrl,
+    logger,
+    answerMs: config.redisAnswerMs,
+    meanwhile: 'uploads are stored but not queued (the workers queue them once it answers) and /health/ready reports 503',
+  });
   // Read every upload record once now, not in the first LIMS request (about 1.5 s per 20,000 uploads).
   store.listUploadSummaries().then(
     (uploads) => logger.info({ uploads: uploads.length }, 'upload summaries read'),
@@ -32,6 +39,7 @@ export async function startApi(config: ServiceConfig, logger: Logger): Promise<R
     app,
     queue,
     async close() {
+      await redisWatch.stop();
       await app.close();
       await queue.close();
     },
