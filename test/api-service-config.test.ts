@@ -102,6 +102,14 @@ describe('loadServiceConfig', () => {
     expect(error.message).not.toContain('lims.lab:8080"');
   });
 
+  it('refuses allowlist entries with a path, query or user name, since only origins are matched', () => {
+    const error = configError({ HEATPATH_API_KEYS: `b:bench:${benchToken}`, HEATPATH_WEBHOOK_ALLOWLIST: 'http://lims.lab:8080/hooks,https://a@lims.lab,http://ok.lab:9/' });
+    expect(error.message).toContain('HEATPATH_WEBHOOK_ALLOWLIST entry "http://lims.lab:8080/hooks" has a path, query or fragment, but only origins are matched (a webhook may use any path of an allowed origin): write only scheme://host:port, here http://lims.lab:8080');
+    expect(error.message).toContain('HEATPATH_WEBHOOK_ALLOWLIST entry "https://a@lims.lab" holds a user name or password');
+    expect(error.message).toMatch(/^[^:]*: 2 problems:/);
+    expect(loadServiceConfig({ HEATPATH_API_KEYS: `b:bench:${benchToken}`, HEATPATH_WEBHOOK_ALLOWLIST: 'http://ok.lab:9/' }).queue.webhookAllowlist).toEqual(['http://ok.lab:9/']);
+  });
+
   it('refuses to start without keys and never echoes a token', () => {
     expect(configError({}).message).toContain('No API keys');
     const error = configError({ HEATPATH_API_KEYS: `dup:reader:${benchToken},dup:admin:${benchToken}` });

@@ -25,6 +25,15 @@ export class WebhookRegistry {
   /** Registers a URL; the returned record carries the secret the receiver verifies signatures with. */
   async register(url: string, events: readonly WebhookEvent[], createdBy: string): Promise<WebhookRecord> {
     if (originOf(url) === null) throw new HeatpathError('REQUEST_INVALID', `${JSON.stringify(url)} is not an http:// or https:// URL`);
+    // Kept in the store and listed by GET /v1/webhooks as given: a user name or password in it would be shown to every admin key.
+    if (hasUserinfo(url)) {
+      throw new HeatpathError(
+        'REQUEST_INVALID',
+        'the webhook URL holds a user name or password (user:password@host), which the service would store and list to every admin key',
+        {},
+        'Register the URL without them: a receiver authenticates deliveries by their Heatpath-Signature header (HMAC-SHA256 with the secret the registration returns); keep other credentials in the receiver\'s own configuration.',
+      );
+    }
     if (!this.isAllowed(url)) throw new HeatpathError('WEBHOOK_URL_NOT_ALLOWED', `${url} is not allowed`);
     // Compared as URLs, not as text: HTTP://Host:80/x and http://host/x are one receiver (WHATWG URL serialisation).
     const registered = (await this.store.listWebhooks()).find((webhook) => sameUrl(webhook.url, url));
@@ -58,6 +67,11 @@ function originOf(url: string): string | null {
   } catch {
     return null;
   }
+}
+
+function hasUserinfo(url: string): boolean {
+  const parsed = new URL(url.trim());
+  return parsed.username !== '' || parsed.password !== '';
 }
 
 function sameUrl(a: string, b: string): boolean {

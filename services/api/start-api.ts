@@ -16,6 +16,7 @@ export interface RunningApi {
 export async function startApi(config: ServiceConfig, logger: Logger): Promise<RunningApi> {
   const store = new TransientStore(config.dataDir);
   await store.ensureDataDir();
+  await store.protectWebhookSecrets();
   const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
   const app = await buildApp({ config, logger, store, queue });
   await app.listen({ port: config.port, host: config.host });

@@ -94,9 +94,8 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { serves
   // Checked whatever else is wrong, so that one start lists every problem.
   const keys = servesApi ? loadApiKeys(given.HEATPATH_API_KEYS as string | undefined, given.HEATPATH_API_KEYS_FILE as string | undefined, problems) : [];
   for (const entry of String(given.HEATPATH_WEBHOOK_ALLOWLIST ?? '').split(',').map((item) => item.trim()).filter(Boolean)) {
-    if (!/^https?:\/\/[^/]+/i.test(entry) || !URL.canParse(entry)) {
-      problems.push(`HEATPATH_WEBHOOK_ALLOWLIST entry ${JSON.stringify(entry)} is not an origin: write scheme://host:port, for example http://lims.lab.local:8080`);
-    }
+    const problem = allowlistEntryProblem(entry);
+    if (problem) problems.push(`HEATPATH_WEBHOOK_ALLOWLIST entry ${JSON.stringify(entry)} ${problem}`);
   }
   if (problems.length > 0) {
     // One line per problem, then HeatpathError's hint on a line of its own.
@@ -157,4 +156,20 @@ function loadApiKeys(keyList: string | undefined, keysFile: string | undefined, 
 function collect(parsed: { keys: ApiKey[]; problems: string[] }, problems: string[]): ApiKey[] {
   problems.push(...parsed.problems);
   return parsed.keys;
+}
+
+/**
+ * Why an allowlist entry is not an origin, or null. Only origins are matched
+ * (workers/webhook-registry.ts): an entry with a path would allow every path
+ * of its origin, so it is refused rather than read as narrower than it is.
+ */
+function allowlistEntryProblem(entry: string): string | null {
+  const example = 'write scheme://host:port, for example http://lims.lab.local:8080';
+  if (!/^https?:\/\/[^/]+/i.test(entry) || !URL.canParse(entry)) return `is not an origin: ${example}`;
+  const url = new URL(entry);
+  if (url.username !== '' || url.password !== '') return `holds a user name or password: ${example}`;
+  if (url.pathname !== '/' || url.search !== '' || url.hash !== '') {
+    return `has a path, query or fragment, but only origins are matched (a webhook may use any path of an allowed origin): write only scheme://host:port, here ${url.origin}`;
+  }
+  return null;
 }

@@ -11,11 +11,17 @@ import type { StoreIo } from './store-io.js';
  * file calls to make them with (store-io.ts).
  */
 
+/** Permissions for files that hold secrets: the file's, and its folder's when the write creates it. Default: 0o666 and 0o777, less the umask. */
+export interface FileModes {
+  file?: number;
+  directory?: number;
+}
+
 const createdDirectories = new Set<string>();
 
-async function ensureDirectory(io: StoreIo, directory: string): Promise<void> {
+async function ensureDirectory(io: StoreIo, directory: string, mode?: number): Promise<void> {
   if (createdDirectories.has(directory)) return;
-  await makeDirectory(directory, io);
+  await makeDirectory(directory, io, mode);
   createdDirectories.add(directory);
 }
 
@@ -28,23 +34,23 @@ async function fsyncPath(io: StoreIo, path: string): Promise<void> {
   }
 }
 
-async function openTemporary(io: StoreIo, directory: string, temporary: string): Promise<number> {
+async function openTemporary(io: StoreIo, directory: string, temporary: string, modes: FileModes): Promise<number> {
   try {
-    return await io.open(temporary, 'wx');
+    return await io.open(temporary, 'wx', modes.file);
   } catch (error) {
     // The directory went away since this process made it (an admin cleared a derived folder): make it again.
     if ((error as NodeJS.ErrnoException).code !== 'ENOENT') throw error;
     createdDirectories.delete(directory);
-    await ensureDirectory(io, directory);
-    return io.open(temporary, 'wx');
+    await ensureDirectory(io, directory, modes.directory);
+    return io.open(temporary, 'wx', modes.file);
   }
 }
 
-async function writeTemporary(io: StoreIo, target: string, bytes: Uint8Array | string, durable: boolean): Promise<string> {
+async function writeTemporary(io: StoreIo, target: string, bytes: Uint8Array | string, durable: boolean, modes: FileModes = {}): Promise<string> {
   const directory = dirname(target);
-  await ensureDirectory(io, directory);
+  await ensureDirectory(io, directory, modes.directory);
   const temporary = join(directory, `.tmp-${process.pid}-${randomBytes(6).toString('hex')}`);
-  const fd = await openTemporary(io, directory, temporary);
+  const fd = await openTemporary(io, directory, temporary, modes);
   try {
     await io.writeAll(fd, bytes);
     if (durable) await io.fsync(fd);
@@ -65,8 +71,8 @@ async function unlinkQuietly(io: StoreIo, path: string): Promise<void> {
   }
 }
 
-async function replaceFile(io: StoreIo, target: string, bytes: Uint8Array | string, durable: boolean): Promise<void> {
-  const temporary = await writeTemporary(io, target, bytes, durable);
+async function replaceFile(io: StoreIo, target: string, bytes: Uint8Array | string, durable: boolean, modes?: FileModes): Promise<void> {
+  const temporary = await writeTemporary(io, target, bytes, durable, modes);
   try {
     await io.rename(temporary, target);
   } catch (error) {
@@ -76,9 +82,9 @@ async function replaceFile(io: StoreIo, target: string, bytes: Uint8Array | stri
   if (durable) await fsyncPath(io, dirname(target));
 }
 
-/** Replace `target` atomically: readers see the old or the new content, never a part. */
-export async function writeFileAtomic(io: StoreIo, target: string, bytes: Uint8Array | string): Promise<void> {
-  await replaceFile(io, target, bytes, true);
+/** Replace `target` atomically: readers see the old or the new content, never a part. `modes`: for a file that holds a secret. */
+export async function writeFileAtomic(io: StoreIo, target: string, bytes: Uint8Array | string, modes?: FileModes): Promise<void> {
+  await replaceFile(io, target, bytes, true, modes);
 }
 
 /**

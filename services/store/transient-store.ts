@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import { access, constants, stat, statfs } from 'node:fs/promises';
+import { access, chmod, constants, readdir, stat, statfs } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Calibration } from '../../shared/schemas/calibration.js';
 import { PARSER_VERSION } from '../../shared/analysis/algorithm-version.js';
@@ -32,6 +32,8 @@ const STORE_ID = new RegExp(RECORD_ID_PATTERN.pattern);
 const KEPT_PARSE_NAME = /^[0-9a-f]{64}\.(csv|json)\.[A-Za-z0-9_-]+\.bin$/;
 /** Parallel file reads when listing: enough to hide latency, few enough to stay polite. */
 const LIST_READ_CONCURRENCY = 32;
+/** Webhook records hold signing secrets: folder and files for the service's user alone. */
+const WEBHOOK_FILE_MODES = { directory: 0o700, file: 0o600 };
 
 function isStoreId(id: string): boolean {
   return STORE_ID.test(id);
@@ -301,7 +303,8 @@ export class TransientStore {
   // ---- webhooks ----
 
   async putWebhook(record: WebhookRecord): Promise<void> {
-    await writeFileAtomic(this.io, this.flatPath('webhooks', requireId(record.webhook_id)), JSON.stringify(record));
+    // The record holds the secret deliveries are signed with: only the service's user may read it.
+    await writeFileAtomic(this.io, this.flatPath('webhooks', requireId(record.webhook_id)), JSON.stringify(record), WEBHOOK_FILE_MODES);
   }
 
   async getWebhook(webhookId: string): Promise<WebhookRecord | null> {
@@ -363,6 +366,20 @@ export class TransientStore {
           `e.g. chown -R ${user} ${this.dataDir}, or point HEATPATH_DATA_DIR at a folder this user may write to`,
       );
     }
+  }
+
+  /**
+   * Narrows the webhook records of a store written before they were created
+   * for the service's user alone (0700 folder, 0600 files). Best effort: a
+   * process of another user sharing the store may not change them, and
+   * nothing else depends on it.
+   */
+  async protectWebhookSecrets(): Promise<void> {
+    const root = join(this.dataDir, 'webhooks');
+    const names = await readdir(root).catch(() => null);
+    if (names === null) return;
+    await chmod(root, WEBHOOK_FILE_MODES.directory).catch(() => undefined);
+    await Promise.all(names.map((name) => chmod(join(root, name), WEBHOOK_FILE_MODES.file).catch(() => undefined)));
   }
 
   /**
