@@ -9,6 +9,7 @@ import { spawnSync } from 'node:child_process';
 import { chmodSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { createServer } from 'node:net';
 import { afterAll, describe, expect, it } from 'vitest';
 
 const root = join(import.meta.dirname, '..');
@@ -17,7 +18,7 @@ afterAll(() => rmSync(scratch, { recursive: true, force: true }));
 const aFile = join(scratch, 'a-file');
 writeFileSync(aFile, 'not a folder');
 
-function start(entry: string, dataDir: string, uid?: number) {
+function start(entry: string, dataDir: string, uid?: number, extraEnv: Record<string, string> = {}) {
   const run = spawnSync(process.execPath, [join(root, 'dist', ...entry.split('/'))], {
     encoding: 'utf8',
     timeout: 30_000,
@@ -29,6 +30,7 @@ function start(entry: string, dataDir: string, uid?: number) {
       PORT: '0',
       REDIS_URL: 'redis://127.0.0.1:1',
       HEATPATH_LOG_LEVEL: 'silent',
+      ...extraEnv,
     },
   });
   return { code: run.status, stderr: run.stderr };
@@ -67,4 +69,38 @@ describe('start commands with a HEATPATH_DATA_DIR that exists but cannot be writ
       expect(run.stderr.trim().split('\n')).toHaveLength(1);
     });
   }
+});
+
+describe('start commands with a PORT or HOST the API cannot listen on', () => {
+  // The IT-admin probe: EADDRINUSE and getaddrinfo ENOTFOUND did not name PORT or HOST.
+  it('names PORT, its value and the fix when the port is in use', async () => {
+    const holder = createServer();
+    await new Promise<void>((resolve) => holder.listen(0, '127.0.0.1', resolve));
+    const { port } = holder.address() as { port: number };
+    try {
+      const run = start('services/api/main.js', join(scratch, 'store-port'), undefined, { PORT: String(port), HOST: '127.0.0.1' });
+      expect(run.code).toBe(1);
+      expect(run.stderr).toBe(`heatpath: the API did not start: cannot listen on HOST=127.0.0.1 PORT=${port}: the port is in use by another process (another heatpath still running?): stop it (ss -ltnp 'sport = :${port}' names it) or set another PORT\n`);
+    } finally {
+      await new Promise<void>((resolve) => holder.close(() => resolve()));
+    }
+  });
+
+  it('names HOST, its value and the fix when it is no name of this machine', () => {
+    // .invalid never resolves (RFC 2606).
+    const run = start('services/api/main.js', join(scratch, 'store-host'), undefined, { HOST: 'bench-server.invalid' });
+    expect(run.code).toBe(1);
+    expect(run.stderr).toMatch(/^heatpath: the API did not start: cannot listen on HOST=bench-server\.invalid PORT=0: HOST is not a name this machine can resolve \((ENOTFOUND|EAI_AGAIN)\): set HOST to one of its addresses/);
+    expect(run.stderr.trim().split('\n')).toHaveLength(1);
+  });
+});
+
+describe('start commands with unknown or badly written variables', () => {
+  it('warns of an unknown HEATPATH_ variable with the one it most likely meant, and refuses a queue prefix with spaces', () => {
+    const run = start('workers/main.js', join(scratch, 'store-typo'), undefined, { HEATPATH_API_KEY: 'x', HEATPATH_QUEUE_PREFIX: '{heatpath} ' });
+    expect(run.code).toBe(2);
+    const lines = run.stderr.trim().split('\n');
+    expect(lines[0]).toBe('heatpath: warning: HEATPATH_API_KEY is not a variable of the service and is ignored: did you mean HEATPATH_API_KEYS? (README.md, Configuration, lists them)');
+    expect(run.stderr).toContain('HEATPATH_QUEUE_PREFIX must be without a colon or spaces (it is "{heatpath} ")');
+  });
 });

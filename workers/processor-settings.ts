@@ -9,7 +9,8 @@ export interface ProcessorSettings {
   prefix: string;
 }
 
-const SETTINGS_VARIABLE = 'HEATPATH_PROCESSOR_SETTINGS';
+/** Set by the workers for their analysis processes, not by an operator. */
+export const SETTINGS_VARIABLE = 'HEATPATH_PROCESSOR_SETTINGS';
 
 export function processorEnvironment(settings: ProcessorSettings): NodeJS.ProcessEnv {
   return { ...process.env, [SETTINGS_VARIABLE]: JSON.stringify(settings) };

@@ -4,6 +4,7 @@ import { TransientStore } from '../store/transient-store.js';
 import { AnalysisQueue } from '../../workers/analysis-queue.js';
 import { watchRedis } from '../../workers/redis-watch.js';
 import { buildApp, type HeatpathApp } from './build-app.js';
+import { listenFailure } from './listen-failure.js';
 
 export interface RunningApi {
   app: HeatpathApp;
@@ -19,7 +20,11 @@ export async function startApi(config: ServiceConfig, logger: Logger): Promise<R
   await store.protectWebhookSecrets();
   const queue = new AnalysisQueue({ redisUrl: config.redisUrl, prefix: config.queue.prefix });
   const app = await buildApp({ config, logger, store, queue });
-  await app.listen({ port: config.port, host: config.host });
+  await app.listen({ port: config.port, host: config.host }).catch(async (error: unknown) => {
+    await app.close();
+    await queue.close();
+    throw listenFailure(error, config.host, config.port);
+  });
   const redisWatch = watchRedis({
     ping: () => queue.ping(),
     redisUrl: config.redisUrl,

@@ -6,6 +6,8 @@ import { HeatpathError } from '../../shared/errors/heatpath-error.js';
 import { plainValidationIssues } from '../../shared/schemas/plain-validation-issues.js';
 import { QUEUE_PREFIX_PATTERN, REDIS_URL_PATTERN } from '../../shared/schemas/worded-patterns.js';
 import { typedFieldsFromText } from '../../shared/schemas/typed-fields-from-text.js';
+import { closestName } from '../../shared/input/closest-name.js';
+import { SETTINGS_VARIABLE } from '../../workers/processor-settings.js';
 import { parseApiKeyList, type ApiKey } from './api-key-list.js';
 
 /**
@@ -124,6 +126,22 @@ export function loadServiceConfig(env: NodeJS.ProcessEnv = process.env, { serves
       webhookAllowlist: valid.HEATPATH_WEBHOOK_ALLOWLIST.split(',').map((entry) => entry.trim()).filter(Boolean),
     },
   };
+}
+
+/**
+ * One warning per HEATPATH_* variable that is none of the service's (a typo
+ * such as HEATPATH_API_KEY is otherwise ignored without a word), naming the
+ * variable it most likely meant. Not an error: a variable of a newer or older
+ * version, left in a deployment, must not stop a start.
+ */
+export function unknownVariableWarnings(env: NodeJS.ProcessEnv = process.env): string[] {
+  const known = Object.keys(ServiceEnvSchema.properties);
+  return Object.keys(env)
+    .filter((name) => name.startsWith('HEATPATH_') && !known.includes(name) && name !== SETTINGS_VARIABLE)
+    .map((name) => {
+      const meant = closestName(name, known);
+      return `${name} is not a variable of the service and is ignored${meant ? `: did you mean ${meant}?` : ''} (README.md, Configuration, lists them)`;
+    });
 }
 
 function describeEnvProblem(instancePath: string, message: string, given: Record<string, unknown>): string {

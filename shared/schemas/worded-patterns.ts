@@ -29,7 +29,8 @@ export const RECORD_ID_PATTERN: WordedPattern = {
 
 export const REDIS_URL_PATTERN: WordedPattern = { pattern: '^rediss?://', allows: 'a URL starting with redis:// or rediss://' };
 
-export const QUEUE_PREFIX_PATTERN: WordedPattern = { pattern: '^[^:]+$', allows: 'without a colon' };
+/** No spaces either: one read with a stray space from an env file would be a queue of its own, which the other processes never see. */
+export const QUEUE_PREFIX_PATTERN: WordedPattern = { pattern: '^[^:\\s]+$', allows: 'without a colon or spaces' };
 
 /** A text that says something: not empty, nor spaces only. */
 export const NOT_BLANK_PATTERN: WordedPattern = { pattern: '\\S', allows: 'a text with more than spaces in it' };
