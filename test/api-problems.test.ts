@@ -591,6 +591,10 @@ describe('with Redis down', () => {
     expect(Buffer.from((await context.store.getBlob(answer.input_sha256))!)).toEqual(csv);
     const shown = await context.app.inject({ url: answer.links.self, headers: bearer('reader') });
     expect(shown.json().job.state).toBe('stored');
+    // Reads the store answers are 200 while Redis is away (README, HEATPATH_REDIS_ANSWER_MS); the job's own state needs Redis: 503.
+    const listed = await context.app.inject({ url: '/v1/samples/S-down/results', headers: bearer('reader') });
+    expect(listed.statusCode, listed.body).toBe(200);
+    expectProblem(await context.app.inject({ url: `/v1/jobs/${answer.job_id}`, headers: bearer('reader') }), 503, 'SERVICE_UNAVAILABLE');
   });
 
   it('stores a batch and answers 202 status "stored", so that an admin does not start it twice', async () => {
