@@ -108,6 +108,24 @@ describe('worker faults (real Redis, worker processes)', () => {
     expect((await fixture.resultFiles()).sort()).toEqual(all.map((u) => `${u.job_id}.json`).sort());
   });
 
+  it('queues uploads stored while Redis was away as soon as the worker sees it back, not at the next sweep', async () => {
+    const redis = await RedisServerProcess.start();
+    cleanups.push(() => redis.kill());
+    const queue = analysisQueue(redis.url);
+    // A sweep interval far beyond the test's time: only the sweep on Redis's return can queue the upload.
+    const worker = workerProcess(redis.url, 600_000);
+    const first = await fixture.storeUpload(35);
+    await queue.enqueue(first, { priority: JOB_PRIORITY.interactive });
+    await eventually(() => fixture.store.hasResult(first.job_id), 100);
+
+    await redis.kill();
+    const during = await fixture.storeUpload(36);
+    // The worker says so within seconds (it checks every 5 s), naming REDIS_URL.
+    await eventually(() => worker.log.includes(`Redis does not answer at REDIS_URL=${redis.url}`), 100);
+    await redis.restart();
+    await eventually(async () => (await queue.getJobState(during.job_id).catch(() => null))?.state === 'completed', 100);
+  }, 60_000);
+
   it('drains the running job on SIGTERM and exits cleanly; the next worker finishes the rest', async () => {
     const { url } = await testRedis();
     cleanups.push(() => deleteKeysWithPrefix(url, prefix));
