@@ -1,4 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { WebhookPayloadSchema } from '../services/api/schemas/webhook-payload-schema.js';
+import { WEBHOOK_DELIVERY_HEADER, WEBHOOK_EVENT_HEADER, WEBHOOK_SIGNATURE_HEADER } from '../workers/webhook-signature.js';
 import { apiRouteTable, openApiPath, registeredRoutes } from './support/api-route-table.js';
 import { startApiTestApp, type ApiTestContext } from './support/api-test-app.js';
 
@@ -7,6 +9,7 @@ let document: {
   openapi: string;
   paths: Record<string, Record<string, { security?: unknown[]; description?: string; responses: Record<string, { description?: string; headers?: Record<string, unknown>; content?: Record<string, unknown> }> }>>;
   components: { securitySchemes: Record<string, unknown> };
+  webhooks: Record<string, { post: { parameters: { in: string; name: string; required: boolean }[]; requestBody: { content: Record<string, { schema: unknown }> }; responses: Record<string, unknown> } }>;
 };
 beforeAll(async () => {
   context = await startApiTestApp();
@@ -66,5 +69,21 @@ describe('the raw bytes route', () => {
   it('declares its ETag, Repr-Digest and Content-Disposition headers', () => {
     const headers = document.paths['/v1/transients/{upload_id}/raw'].get.responses['200'].headers;
     expect(Object.keys(headers ?? {}).sort()).toEqual(['content-disposition', 'etag', 'repr-digest']);
+  });
+});
+
+describe('the webhooks section', () => {
+  // OpenAPI 3.1 section 4.8.1 (OpenAPI Object, webhooks): requests the service sends that the receiver implements.
+  it('describes job.completed and job.failed with the notifier\'s body schema and the delivery headers', () => {
+    expect(Object.keys(document.webhooks).sort()).toEqual(['job.completed', 'job.failed']);
+    for (const operation of Object.values(document.webhooks)) {
+      expect(operation.post.requestBody.content['application/json'].schema).toEqual(JSON.parse(JSON.stringify(WebhookPayloadSchema)));
+      expect(operation.post.parameters.map((parameter) => [parameter.in, parameter.name, parameter.required])).toEqual([
+        ['header', WEBHOOK_SIGNATURE_HEADER, true],
+        ['header', WEBHOOK_EVENT_HEADER, true],
+        ['header', WEBHOOK_DELIVERY_HEADER, true],
+      ]);
+      expect(Object.keys(operation.post.responses)).toEqual(['2XX', 'default']);
+    }
   });
 });

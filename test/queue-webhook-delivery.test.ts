@@ -6,7 +6,9 @@ import { join } from 'node:path';
 import { pino } from 'pino';
 import { Registry } from 'prom-client';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { Value } from 'typebox/value';
 import { RESULT_CAUTION } from '../shared/analysis/result-caution.js';
+import { WebhookPayloadSchema } from '../services/api/schemas/webhook-payload-schema.js';
 import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import { AnalysisQueue, JOB_PRIORITY } from '../workers/analysis-queue.js';
@@ -154,6 +156,8 @@ describe('webhooks (real Redis, local receiver)', () => {
     });
     const completed = bodies.find((body) => body.event === 'job.completed');
     const failed = bodies.find((body) => body.event === 'job.failed');
+    // The bodies sent are those the OpenAPI document's webhooks section describes (one TypeBox schema for both).
+    for (const body of bodies) expect([...Value.Errors(WebhookPayloadSchema, body)]).toEqual([]);
     expect(completed).toMatchObject({ sample_id: 'S-TEST', cycle_count: 25000, bench: 'bench-4', error: null, caution: RESULT_CAUTION });
     // *common practice*: a notification carries the numbers of the record it announces, so the receiver need not fetch it to act.
     const result = (await store.getResult(completed!.job_id))!;

@@ -5,7 +5,7 @@ import { isFinalAttempt } from './final-attempt.js';
 import { consumerConnection } from './redis-connections.js';
 import { WEBHOOK_QUEUE_NAME, type WebhookDeliveryData } from './webhook-notifier.js';
 import type { WebhookRegistry } from './webhook-registry.js';
-import { signWebhookBody, WEBHOOK_SIGNATURE_HEADER } from './webhook-signature.js';
+import { signWebhookBody, WEBHOOK_DELIVERY_HEADER, WEBHOOK_EVENT_HEADER, WEBHOOK_SIGNATURE_HEADER } from './webhook-signature.js';
 
 export interface WebhookDeliveryOptions {
   /** Redis to connect to: the service's REDIS_URL (services/config/service-config.ts). */
@@ -70,8 +70,8 @@ export class WebhookDeliveryWorker {
       headers: {
         'content-type': 'application/json',
         [WEBHOOK_SIGNATURE_HEADER]: signWebhookBody(webhook.secret, job.data.body, Math.floor(Date.now() / 1000)),
-        'Heatpath-Event': job.data.event,
-        'Heatpath-Delivery': job.id ?? '',
+        [WEBHOOK_EVENT_HEADER]: job.data.event,
+        [WEBHOOK_DELIVERY_HEADER]: job.id ?? '',
       },
       body: job.data.body,
       signal: AbortSignal.timeout(DELIVERY_TIMEOUT_MS),

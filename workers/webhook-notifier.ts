@@ -4,38 +4,12 @@ import type { AnalysisResult } from '../shared/schemas/analysis-result.js';
 import { jobLinks } from '../services/jobs/job-links.js';
 import type { TransientStore } from '../services/store/transient-store.js';
 import type { WebhookEvent } from '../shared/schemas/webhook-event.js';
+import type { WebhookChannelSummary, WebhookPayload } from '../services/api/schemas/webhook-payload-schema.js';
 import { consumerConnection } from './redis-connections.js';
 
 export const WEBHOOK_QUEUE_NAME = 'webhooks';
 
-/** One analysed channel's headline numbers: what a LIMS acts on without fetching the whole result (about 210 kB). */
-export interface WebhookChannelSummary {
-  channel: string;
-  rth_total_K_per_W: number;
-  warning_count: number;
-}
-
-/** The JSON body POSTed to a webhook. */
-export interface WebhookPayload {
-  event: WebhookEvent;
-  job_id: string;
-  upload_id: string;
-  sample_id: string;
-  batch_id: string | null;
-  /** From the upload record; null when it has none (or the record cannot be read). */
-  cycle_count: number | null;
-  bench: string | null;
-  /** job.completed: one entry per analysed channel, in the result's order; job.failed: empty. */
-  channels: WebhookChannelSummary[];
-  /** Present for job.failed. */
-  error: { code: string | null; message: string } | null;
-  /** When the outcome was stored: the result's finished_at or the failure's failed_at. It names the run (see WebhookNotifier). */
-  occurred_at: string;
-  /** RESULT_CAUTION: the numbers travel into other systems with it. */
-  caution: string;
-  /** The job's state, result and artifacts, relative to the service's base URL. */
-  links: { self: string; result: string; artifacts: string };
-}
+export type { WebhookChannelSummary, WebhookPayload };
 
 export function channelSummaries(results: readonly AnalysisResult[]): WebhookChannelSummary[] {
   return results.map((result) => ({ channel: result.source.channel, rth_total_K_per_W: result.rth_total_K_per_W, warning_count: result.quality.warnings.length }));

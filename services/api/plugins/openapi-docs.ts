@@ -5,6 +5,7 @@ import type { FastifyInstance, FastifySchema } from 'fastify';
 import fastifyPlugin from 'fastify-plugin';
 import { HEATPATH_VERSION } from '../../../shared/analysis/algorithm-version.js';
 import { bearerSecurityScheme } from './api-key-auth.js';
+import { openApiWebhooks } from './openapi-webhooks.js';
 
 /**
  * The OpenAPI 3.1 document, generated from the routes' TypeBox schemas, at
@@ -24,6 +25,7 @@ export const openApiDocsPlugin = fastifyPlugin(async function openApiDocs(app: F
       components: {
         securitySchemes: { [bearerSecurityScheme]: { type: 'http', scheme: 'bearer', description: 'An API key issued by the lab admin (HEATPATH_API_KEYS).' } },
       },
+      webhooks: openApiWebhooks(),
     },
   });
   await app.register(fastifySwaggerUi, { routePrefix: '/docs' });
