@@ -38,7 +38,8 @@ async function firstLogLine(entry: string, redisUrl: string, match: RegExp): Pro
   try {
     return await new Promise((resolve, reject) => {
       let buffered = '';
-      const timer = setTimeout(() => reject(new Error(`no log line matching ${match} within 15 s; got:\n${buffered}`)), 15_000);
+      // Generous: on a loaded machine the process alone may take many seconds to start (the check itself runs at once, then every 5 s).
+      const timer = setTimeout(() => reject(new Error(`no log line matching ${match} within 45 s; got:\n${buffered}`)), 45_000);
       child.stdout!.on('data', (chunk: Buffer) => {
         buffered += chunk.toString();
         const line = buffered.split('\n').find((text) => match.test(text));
@@ -64,7 +65,7 @@ describe('a REDIS_URL where nothing listens', () => {
       expect(line.redis).toBe(redisUrl);
       expect(line.msg).toContain(`Redis does not answer at REDIS_URL=${redisUrl}:`);
       expect(line.msg).toContain('redis-server --daemonize yes --port 6379');
-    }, 30_000);
+    }, 60_000);
   }
 });
 
