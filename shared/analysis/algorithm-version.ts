@@ -4,7 +4,7 @@
  * ids include it, so a change makes the archive reprocessable.
  */
 export const HEATPATH_VERSION = '0.1.0';
-export const ALGORITHM_VERSION = 'analysis-10';
+export const ALGORITHM_VERSION = 'analysis-11';
 /**
  * Version of what the input parsers make of a file's bytes. The service keeps
  * each upload's parse under this name, so it changes only when a parser may
