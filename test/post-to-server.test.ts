@@ -48,6 +48,18 @@ describe('postToServer refusals', () => {
     expect(refusal).toMatchObject({ code: 'SUBMIT_REJECTED', httpStatus: 413, serverCode: 'UPLOAD_TOO_LARGE' });
   });
 
+  // RFC 9110 section 15.5.5: 404 says the target resource (here the calibration id the request names, or the route) is not there, not that the content sent is wrong.
+  it('name a 404 as a refusal of the request, by the server and not the file, keeping the server\'s code and hint', async () => {
+    const url = await answering(404, { code: 'RESOURCE_NOT_FOUND', detail: 'calibration abc (calibration_id) is not stored', hint: 'Check the id.' });
+    const refusal = await postToServer({ server: url, key: 'k', attempts: 3 }, '/v1/transients', { body: 'x', headers: {} }, 'run.csv', 'SUBMIT_REJECTED').catch((error) => error);
+    expect(refusal).toBeInstanceOf(ServerRefusal);
+    expect(refusal).toMatchObject({ code: 'SERVER_REFUSED_REQUEST', httpStatus: 404, serverCode: 'RESOURCE_NOT_FOUND', location: {} });
+    expect(userErrorLine('submit', refusal)).toBe(
+      `heatpath submit: The server refused the request: ${url}: RESOURCE_NOT_FOUND: calibration abc (calibration_id) is not stored. Check the id. [SERVER_REFUSED_REQUEST]`,
+    );
+    expect(refusal.message).not.toMatch(/transient|run\.csv/);
+  });
+
   it("keep the refusal's own hint when the server gives none", async () => {
     const url = await answering(400, { code: 'CALIBRATION_BAD_FILE', detail: 'model cubic' });
     const refusal = await postToServer({ server: url, key: 'k', attempts: 1 }, '/v1/calibrations', { body: '{}', headers: {} }, 'cal.json', 'CALIBRATION_REJECTED').catch((error) => error);

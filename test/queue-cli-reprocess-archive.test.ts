@@ -135,6 +135,22 @@ describe('heatpath reprocess stops at what no file gets past, and records nothin
     expect(existsSync(join(cli.work, 'opt-out'))).toBe(false);
   });
 
+  it('stops at a calibration id the server does not store with one line saying the server refused the request, not blaming the transient', async () => {
+    for (let i = 0; i < 3; i++) await writeTransient(`lab/K-4/t${i}.csv`, 335 + i);
+    const unknown = 'c'.repeat(64);
+    const out = join(workDir, 'out');
+    // In this process, not the built CLI: the real API answers from this process's event loop, which a child run waited on would block.
+    expect(await runReprocessCommand([join(workDir, 'lab'), '--server', server, '--key', testTokens.bench, '--power-w', String(SYNTHETIC_POWER_W), '--calibration-id', unknown, '--concurrency', '1', '--out', out], print)).toBe(2);
+    const lines = errors.join('').trim().split('\n');
+    // The server's code and detail (services/api/uploads/accept-transient-upload.ts) and its hint (the catalogue's RESOURCE_NOT_FOUND) are kept.
+    expect(lines).toEqual([
+      expect.stringMatching(new RegExp(`^heatpath reprocess: stopped: The server refused the request: ${server.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}/?: RESOURCE_NOT_FOUND: calibration ${unknown} \\(calibration_id\\) is not stored\\. Check the id.* \\[SERVER_REFUSED_REQUEST\\]$`)),
+    ]);
+    expect(lines[0]).not.toMatch(/refused the transient|t0\.csv/);
+    expect(await stateLines(out)).toEqual([]);
+    expect(printed.at(-1)).toMatch(/^stopped after 0 of 3 files/);
+  });
+
   it('stops after one file when run as a user runs it against a server nobody listens on, naming the URL', async () => {
     await mkdir(join(cli.work, 'away'));
     for (let i = 0; i < 4; i++) cli.file(`away/t${i}.csv`, syntheticTransientCsv(340 + i).toString('utf8'));

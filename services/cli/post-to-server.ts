@@ -13,8 +13,8 @@ export interface UploadTarget {
 const RETRYABLE_STATUS = new Set([408, 429, 500, 502, 503, 504]);
 const MAX_BACKOFF_MS = 10_000;
 
-/** The code of the server's refusal: it names what was refused, a transient or a calibration. */
-export type Refusal = 'SUBMIT_REJECTED' | 'CALIBRATION_REJECTED';
+/** The code of the server's refusal: it names what was refused, a transient or a calibration (a 404 is the request's: SERVER_REFUSED_REQUEST). */
+export type Refusal = 'SUBMIT_REJECTED' | 'CALIBRATION_REJECTED' | 'SERVER_REFUSED_REQUEST';
 
 /**
  * The server refused a request (an answer other than 2xx that no retry
@@ -41,7 +41,8 @@ export class ServerRefusal extends HeatpathError {
  * and returns the JSON of its successful answer. Throws `refusal` when the
  * server refuses the request (a ServerRefusal: the user must fix it; at the
  * line and column the server names, with the server's hint where it gives
- * one), SERVER_ACCESS_DENIED when it refuses the key (401, 403: no file's
+ * one; a 404 is SERVER_REFUSED_REQUEST, named by the server: no file's
+ * fault), SERVER_ACCESS_DENIED when it refuses the key (401, 403: no file's
  * fault, so named by the server, not the file), and SERVER_UNREACHABLE when
  * every attempt failed. Errors name the file `fileName`.
  */
@@ -69,6 +70,8 @@ export async function postToServer(
       if (response.status === 401 || response.status === 403) throw new HeatpathError('SERVER_ACCESS_DENIED', `${target.server}: ${lastProblem}`);
       if (!RETRYABLE_STATUS.has(response.status)) {
         const serverCode = typeof answer.code === 'string' ? answer.code : undefined;
+        // A 404 (a calibration id the server does not store, a route it lacks) refuses the request, not the file sent: named by the server, as a refused key is.
+        if (response.status === 404) throw new ServerRefusal('SERVER_REFUSED_REQUEST', 404, serverCode, `${target.server}: ${lastProblem}`, {}, problemHint(answer));
         throw new ServerRefusal(refusal, response.status, serverCode, lastProblem, { file: fileName, ...problemPlace(answer) }, problemHint(answer));
       }
       retryAfterMs = Math.max(retryAfterMs, Number(response.headers.get('retry-after') ?? 0) * 1000);
