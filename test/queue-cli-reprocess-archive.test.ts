@@ -172,6 +172,22 @@ describe('heatpath reprocess names, separates and skips as README.md says', () =
     expect(await api.store.listUploads({ sample_id: 'archive' })).toHaveLength(0);
   });
 
+  it('refuses, before sending anything, a folder whose name gives no sample id, naming it and saying to give --sample or rename it', async () => {
+    await mkdir(join(cli.work, 'names/ÄÖÜ'), { recursive: true });
+    cli.file('names/ÄÖÜ/t0.csv', syntheticTransientCsv(365).toString('utf8'));
+    // Nobody listens there: the refusal comes before any file is sent, so it is no SERVER_UNREACHABLE.
+    const nowhere = `http://127.0.0.1:${await freePort()}`;
+    const options = ['--server', nowhere, '--key', 'k'.repeat(20), '--retries', '1', '--out', 'names-out'];
+    expectUserError(cli.heatpath('reprocess', 'names', ...options), /^heatpath reprocess: The command line is not valid: the folder \S*names\/ÄÖÜ gives no sample id: its name "ÄÖÜ" .*Give the sample id with --sample ID .*or rename the folder.*\[CLI_USAGE\]$/m);
+    expect(existsSync(join(cli.work, 'names-out', 'reprocess-state.jsonl'))).toBe(false);
+    // The files directly in such a folder as DIR alike.
+    expectUserError(cli.heatpath('reprocess', 'names/ÄÖÜ', ...options), /^heatpath reprocess: The command line is not valid: the folder \S*ÄÖÜ gives no sample id: .*--sample ID.*\[CLI_USAGE\]$/m);
+    // With --sample the folder's name is not needed: the run goes on to the (absent) server.
+    const named = cli.heatpath('reprocess', 'names', ...options, '--sample', 'K-9');
+    expect(named.stderr).toMatch(/\[SERVER_UNREACHABLE\]$/m);
+    expect(named.stderr).not.toMatch(/sample id/);
+  });
+
   it('refuses a run on another archive with an --out that holds the state of the first, and leaves that state as it was', async () => {
     await writeTransient('archA/D1/t.csv', 360);
     await writeTransient('archB/D1/t.csv', 361);

@@ -123,7 +123,6 @@ export async function runReprocessCommand(
     const exitCode = await storeCalibrationOnServer('reprocess', upload.target, upload.metadata, values.calibration as string[]);
     if (exitCode !== null) return exitCode;
   }
-  const archiveName = sampleIdOfFolder(basename(archive));
   const settings: ReprocessSettings = {
     parameters: inputs.parameters,
     power: inputs.power,
@@ -135,7 +134,7 @@ export async function runReprocessCommand(
           return channel === undefined ? [] : [[channel, id]];
         }))
       : Object.fromEntries([...inputs.channelCalibrations].map(([channel, calibration]) => [channel, calibrationIdOf(calibration)])),
-    sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath, archiveName)),
+    sampleIdOf: (relativePath) => (values.local ? null : uploadSampleId(values, relativePath, archive)),
   };
   const target = upload ? new URL(upload.target.server).href : 'local';
   const listing = await listTransientFiles(archive, outDir);
@@ -146,9 +145,11 @@ export async function runReprocessCommand(
     );
   }
   const files = listing.files.map((path) => ({ path, relativePath: relative(archive, path).split(sep).join('/') }));
+  // Before any file is sent: a folder whose name gives no sample id is refused, naming it, not sent under a made-up one.
+  if (upload) for (const { relativePath } of files) uploadSampleId(values, relativePath, archive);
   const folderOf = resultFolderOf(files.map((f) => f.relativePath));
   // A retry of an upload within this run is answered with the first; a later run's re-send is a new upload (transient-upload-client.ts).
-  const processFile = upload ? serverProcessor(upload.target, randomUUID(), upload.metadata, values, archiveName) : localProcessor(inputs, outDir, folderOf);
+  const processFile = upload ? serverProcessor(upload.target, randomUUID(), upload.metadata, values, archive) : localProcessor(inputs, outDir, folderOf);
   const resultsPresent = (earlier: FileOutcome) => localResultsPresent(outDir, earlier, folderOf);
   await makeOutputDirectory(outDir);
   const thisRun = new Map<string, { outcome: FileOutcome; doneBefore: boolean }>();
@@ -290,10 +291,10 @@ function stopOnCtrlC(): { signal: AbortSignal; release: () => void } {
 }
 
 /** Uploads each file; an error no file would get past (endsTheRun) is thrown, to stop the run without recording the file. */
-function serverProcessor(target: UploadTarget, run: string, metadata: URLSearchParams, values: Record<string, unknown>, archiveName: string): Processor {
+function serverProcessor(target: UploadTarget, run: string, metadata: URLSearchParams, values: Record<string, unknown>, archive: string): Processor {
   return async (_path, relativePath, bytes) => {
     const query = new URLSearchParams(metadata);
-    query.set('sample_id', uploadSampleId(values, relativePath, archiveName));
+    query.set('sample_id', uploadSampleId(values, relativePath, archive));
     try {
       // Its rejection names the file by its path in the archive (M6/empty.csv): base names repeat across sample folders.
       const uploaded = await uploadTransient(target, run, bytes, basename(relativePath), query, relativePath);
@@ -381,16 +382,27 @@ function failureOf(error: unknown): Processed {
   return { status: 'failed', job_id: '', detail: message, problem: `heatpath reprocess: ${message}` };
 }
 
-/** The sample a file is uploaded under: --sample, else its folder's name (DIR's own for a file directly in DIR). */
-function uploadSampleId(values: Record<string, unknown>, relativePath: string, archiveName: string): string {
+/** The sample a file is uploaded under: --sample, else its folder's name (the archive folder's own for a file directly in it). */
+function uploadSampleId(values: Record<string, unknown>, relativePath: string, archive: string): string {
   if (values.sample !== undefined) return values.sample as string;
-  const folder = dirname(relativePath);
-  return folder === '.' ? archiveName : sampleIdOfFolder(basename(folder));
+  return sampleIdOfFolder(join(archive, dirname(relativePath)));
 }
 
-/** The archive's folder naming is the lab's sample naming: a folder's name as a sample id (other characters than letters, digits, . _ - become _). */
-function sampleIdOfFolder(name: string): string {
-  return name.replace(SAMPLE_ID, '_').replace(/^[._-]+/, '').slice(0, 128) || 'archive';
+/**
+ * The archive's folder naming is the lab's sample naming: a folder's name as a sample id (other characters than
+ * letters, digits, . _ - become _, leading . _ - are dropped). A name with nothing left (only other characters) is
+ * refused, naming the folder: a made-up id would put its files under a sample nobody named.
+ */
+function sampleIdOfFolder(folder: string): string {
+  const name = basename(folder);
+  const id = name.replace(SAMPLE_ID, '_').replace(/^[._-]+/, '').slice(0, 128);
+  if (id !== '') return id;
+  throw new HeatpathError(
+    'CLI_USAGE',
+    `the folder ${folder} gives no sample id: its name "${name}" holds no letter A-Z, a-z or digit 0-9 (a sample id is those and . _ -)`,
+    {},
+    'Give the sample id with --sample ID (every file of the run is sent under it), or rename the folder to letters, digits, . _ -, then run the same command again.',
+  );
 }
 
 /**
