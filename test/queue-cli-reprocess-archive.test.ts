@@ -162,6 +162,35 @@ describe('heatpath reprocess stops at what no file gets past, and records nothin
   });
 });
 
+describe('heatpath submit stops at a server away as reprocess does', () => {
+  it('stops after the first file that finds the server unreachable after its retries, not trying each file', async () => {
+    const files = [];
+    for (let i = 0; i < 3; i++) files.push(await writeTransient(`bench/s${i}.csv`, 370 + i));
+    // 503 is retried (RFC 9110 section 15.6.4), then the server counts as away.
+    const away = await answering(503, { code: 'SERVICE_UNAVAILABLE', detail: 'Redis does not answer' });
+    expect(await runSubmitCommand([...files, '--server', away.url, '--key', testTokens.bench, '--sample', 'K-7', '--power-w', String(SYNTHETIC_POWER_W), '--retries', '2'], print)).toBe(1);
+    // The first file's two attempts, not two for each of the three files.
+    expect(away.requests()).toBe(2);
+    const lines = errors.join('').trim().split('\n');
+    expect(lines).toHaveLength(1);
+    expect(lines[0]).toContain(`heatpath submit: stopped: the server ${away.url}/ did not take ${files[0]} (2 attempts, last: SERVICE_UNAVAILABLE: Redis does not answer)`);
+    expect(lines[0]).toMatch(/check --server .*run the same command again.*3 of 3 files were not sent.*\[SERVER_UNREACHABLE\]$/);
+    expect(printed).toEqual([]);
+  });
+
+  it('stops with one line naming the URL when run as a user runs it against a server nobody listens on', async () => {
+    await mkdir(join(cli.work, 'bench'), { recursive: true });
+    const names = [0, 1, 2].map((i) => cli.file(`bench/s${i}.csv`, syntheticTransientCsv(380 + i).toString('utf8')));
+    const nowhere = `http://127.0.0.1:${await freePort()}`;
+    const run = cli.heatpath('submit', ...names, '--server', nowhere, '--key', 'k'.repeat(20), '--sample', 'K-8', '--power-w', String(SYNTHETIC_POWER_W), '--retries', '1');
+    expect(run.code).toBe(1);
+    expect(run.stderr.trim().split('\n')).toEqual([
+      expect.stringMatching(new RegExp(`^heatpath submit: stopped: the server ${nowhere}/ did not take \\S*s0\\.csv .*GET ${nowhere}/health/live.*run the same command again.*3 of 3 files were not sent.*\\[SERVER_UNREACHABLE\\]$`)),
+    ]);
+    expect(run.stdout).toBe('');
+  });
+});
+
 describe('heatpath reprocess names, separates and skips as README.md says', () => {
   it("uploads files directly in DIR under DIR's own name, files in its folders under theirs", async () => {
     await writeTransient('M12/t0.csv', 350);

@@ -20,6 +20,7 @@ import { userErrorLine } from './user-error-line.js';
 import { WarningTally } from './warning-tally.js';
 import { ownDetail, readReprocessState, whyAgain, type FileOutcome } from './reprocess-state.js';
 import { ServerRefusal, type UploadTarget } from './post-to-server.js';
+import { endsTheRun, serverAwayLine } from './run-stopping-error.js';
 import { uploadTransient } from './transient-upload-client.js';
 import { uploadMetadataFrom, uploadOptionSpecs, uploadOptionsUsage, uploadTargetFrom } from './upload-options.js';
 import { appendOutputFile, makeOutputDirectory, writeOutputFile } from './write-output-file.js';
@@ -255,27 +256,10 @@ function checkStateIsOfArchive(outcomes: Map<string, FileOutcome>, archiveId: st
   );
 }
 
-/**
- * Whether an error of one file's upload is no fault of the file but ends the
- * run, since no file would get past it: the server away (after its retries),
- * the key refused, a route or calibration id the server does not have (404),
- * or a request it finds malformed in what every file's shares (REQUEST_INVALID).
- */
-function endsTheRun(error: unknown): error is HeatpathError {
-  if (!isHeatpathError(error)) return false;
-  if (error.code === 'SERVER_UNREACHABLE' || error.code === 'SERVER_ACCESS_DENIED') return true;
-  return error instanceof ServerRefusal && (error.httpStatus === 404 || error.serverCode === 'REQUEST_INVALID');
-}
-
 /** The one stderr line of an error that ended the run (endsTheRun), and the exit code it gives. */
 function runStopOf(error: unknown, file: string, target: string): RunStop {
   if (!endsTheRun(error)) throw error;
-  if (error.code === 'SERVER_UNREACHABLE') {
-    return {
-      line: `heatpath reprocess: stopped: the server ${target} did not take ${file} (${error.detail}); check --server and the network (GET ${new URL('/health/live', target).href} answers while the service runs), then run the same command again: it sends the files not sent [SERVER_UNREACHABLE]`,
-      exitCode: 1,
-    };
-  }
+  if (error.code === 'SERVER_UNREACHABLE') return { line: serverAwayLine('reprocess', target, file, error, 'it sends the files not sent'), exitCode: 1 };
   return { line: `heatpath reprocess: stopped: ${commandLineSpelling(error.message)} Nothing is recorded for the files not sent: the command sends them when run again. [${error.code}]`, exitCode: 2 };
 }
 

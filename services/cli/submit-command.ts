@@ -3,6 +3,7 @@ import { basename } from 'node:path';
 import { HeatpathError, isHeatpathError } from '../../shared/errors/heatpath-error.js';
 import { parseCommandLine } from './cli-arguments.js';
 import { readInputFile } from './read-input-file.js';
+import { endsTheRun, serverAwayLine } from './run-stopping-error.js';
 import { storeCalibrationOnServer } from './store-calibration-on-server.js';
 import { uploadTransient } from './transient-upload-client.js';
 import { userErrorLine } from './user-error-line.js';
@@ -14,8 +15,9 @@ Upload measured transients to the heatpath service, one after the other,
 retrying while the server is busy or away. Prints one line per file:
 FILE<TAB>JOB_ID<TAB>STATE. Submitting a file again is safe: the same job,
 analysed once; it is a new upload of the bytes (the server warns of it), the
-latest of which the sample's degradation trend counts, once. A refused key
-stops the run.
+latest of which the sample's degradation trend counts, once. A server that
+does not answer (after the retries of a file), a refused key or a calibration
+id the server does not have stops the run at that file, with one line.
 
 ${uploadOptionsUsage()}
   --calibration CAL.json  a calibration file of heatpath calibrate: stored on
@@ -45,10 +47,10 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
   }
 
   let mustFix = false;
-  let unreachable = false;
+  let failed = false;
   // A retry of an upload within this run is answered with the first; the same file sent by another run is a new upload.
   const run = randomUUID();
-  for (const file of positionals) {
+  for (const [index, file] of positionals.entries()) {
     try {
       const bytes = await readInputFile(file);
       // The server knows the file by its base name; the user's error line names it as they did, like local errors.
@@ -57,12 +59,17 @@ export async function runSubmitCommand(argv: string[], print: (text: string) => 
       for (const warning of uploaded.warnings) process.stderr.write(`heatpath submit: ${file}: warning: ${warning}\n`);
     } catch (error) {
       if (!isHeatpathError(error)) throw error;
+      // No file gets past a server away (after this file's retries), a refused key or a calibration id it lacks: one line, not one per file.
+      if (error.code === 'SERVER_UNREACHABLE') {
+        const notSent = `${positionals.length - index} of ${positionals.length} file${positionals.length > 1 ? 's were' : ' was'} not sent (this one and those after it)`;
+        process.stderr.write(serverAwayLine('submit', target.server, file, error, `sending a file again is safe (the same job); ${notSent}`) + '\n');
+        return mustFix ? 2 : 1;
+      }
       process.stderr.write(userErrorLine('submit', error) + '\n');
-      // No file gets past a refused key: one line, not one per file.
-      if (error.code === 'SERVER_ACCESS_DENIED') return 2;
       if (error.status < 500) mustFix = true;
-      else unreachable = true;
+      else failed = true;
+      if (endsTheRun(error)) return 2;
     }
   }
-  return mustFix ? 2 : unreachable ? 1 : 0;
+  return mustFix ? 2 : failed ? 1 : 0;
 }
