@@ -1,5 +1,6 @@
 import { pino } from 'pino';
 import { startWorkers } from '../workers/main.js';
+import { redisAwayText } from '../workers/redis-watch.js';
 import { serviceConfigOrExit } from './config/service-config-or-exit.js';
 import { startedOrExit } from './config/started-or-exit.js';
 import { AnalysisQueue } from '../workers/analysis-queue.js';
@@ -20,10 +21,8 @@ const redisAnswers = await withQueueDeadline(probe, config.redisAnswerMs).ping()
 await probe.close();
 if (!redisAnswers) {
   process.stderr.write(
-    `heatpath: Redis does not answer at ${config.redisUrl}.\n` +
-      '  Start one on this machine:  redis-server --daemonize yes --port 6379\n' +
-      '  or point REDIS_URL at the lab\'s Redis (redis://host:6379), then run `npm start` again.\n' +
-      '  To accept uploads while Redis is away (they are queued later), run the API alone: `npm run start:api`.\n',
+    `heatpath: ${redisAwayText(config.redisUrl, '`npm start` does not start')}, then run \`npm start\` again; ` +
+      'to accept uploads while Redis is away (they are queued once it answers), run the API alone: `npm run start:api`\n',
   );
   process.exit(1);
 }

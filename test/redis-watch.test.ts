@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import type { Logger } from 'pino';
 import { afterAll, describe, expect, it } from 'vitest';
 import { AnalysisQueue } from '../workers/analysis-queue.js';
-import { watchRedis } from '../workers/redis-watch.js';
+import { redisAwayText, watchRedis } from '../workers/redis-watch.js';
 import { freePort } from './support/free-port.js';
 import { eventually } from './support/queue-test-fixture.js';
 import { RedisServerProcess } from './support/redis-server-process.js';
@@ -69,6 +69,22 @@ describe('a REDIS_URL where nothing listens', () => {
   }
 });
 
+describe('npm start against a REDIS_URL where nothing listens', () => {
+  it('refuses to start with one line, the text the API and workers warn with, and what else to run', async () => {
+    const redisUrl = `redis://127.0.0.1:${await freePort()}`;
+    const child = spawn(process.execPath, [join(root, 'dist', 'services', 'main.js')], {
+      env: { ...process.env, REDIS_URL: redisUrl, HEATPATH_DATA_DIR: join(scratch, 'npm-start'), HEATPATH_API_KEYS: 'ops:admin:redis-watch-token-0123456789', PORT: '0' },
+      stdio: ['ignore', 'ignore', 'pipe'],
+    });
+    let stderr = '';
+    child.stderr!.on('data', (chunk: Buffer) => (stderr += chunk.toString()));
+    const code = await new Promise<number | null>((resolve) => child.once('exit', resolve));
+    expect(code).toBe(1);
+    expect(stderr.trim().split('\n')).toEqual([`heatpath: ${redisAwayText(redisUrl, '`npm start` does not start')}, then run \`npm start\` again; to accept uploads while Redis is away (they are queued once it answers), run the API alone: \`npm run start:api\``]);
+    expect(stderr).toContain('redis-server --daemonize yes --port 6379');
+  }, 60_000);
+});
+
 describe('watchRedis over a Redis that goes away and comes back (private redis-server)', () => {
   it('warns once as it goes, repeats while it stays away, and says when it is back', async () => {
     const redis = await RedisServerProcess.start();
@@ -86,7 +102,7 @@ describe('watchRedis over a Redis that goes away and comes back (private redis-s
       await redis.kill();
       await eventually(() => lines.filter((line) => line.level === 'warn').length >= 2);
       const warnings = lines.filter((line) => line.level === 'warn');
-      expect(warnings[0].message).toBe(`Redis does not answer at REDIS_URL=${redis.url}: nothing is queued until it does; start one on this machine (redis-server --daemonize yes --port 6379) or point REDIS_URL at the lab's Redis (redis://host:6379); REDIS_URL is ${redis.url}`);
+      expect(warnings[0].message).toBe(`Redis does not answer at REDIS_URL=${redis.url}: nothing is queued until it does; start one on this machine (redis-server --daemonize yes --port 6379) or point REDIS_URL at the lab's Redis (redis://host:6379)`);
       expect(back).toBe(0);
       await redis.restart();
       await eventually(() => back === 1);

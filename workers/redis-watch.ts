@@ -1,8 +1,11 @@
 import type { Logger } from 'pino';
 
-/** What to do when Redis does not answer: the words `npm start` prints, for a log line. */
-export function redisAdvice(redisUrl: string): string {
-  return `start one on this machine (redis-server --daemonize yes --port 6379) or point REDIS_URL at the lab's Redis (redis://host:6379); REDIS_URL is ${redisUrl}`;
+/**
+ * The one text for a Redis that does not answer, what the process cannot do `meanwhile`, and what to do: the
+ * API's and workers' periodic warning (watchRedis) and `npm start`'s refusal to start (services/main.ts) alike.
+ */
+export function redisAwayText(redisUrl: string, meanwhile: string): string {
+  return `Redis does not answer at REDIS_URL=${redisUrl}: ${meanwhile} until it does; start one on this machine (redis-server --daemonize yes --port 6379) or point REDIS_URL at the lab's Redis (redis://host:6379)`;
 }
 
 export interface RedisWatchOptions {
@@ -57,7 +60,7 @@ export function watchRedis(options: RedisWatchOptions): RedisWatch {
       warnedAt = now;
       logger.warn(
         { redis: redisUrl, away_s: Math.round((now - awaySince) / 1000) },
-        `Redis does not answer at REDIS_URL=${redisUrl}: ${meanwhile} until it does; ${redisAdvice(redisUrl)}`,
+        redisAwayText(redisUrl, meanwhile),
       );
     }
   };
