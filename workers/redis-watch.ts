@@ -1,11 +1,12 @@
 import type { Logger } from 'pino';
+import { withPasswordHidden } from '../services/config/password-hidden.js';
 
 /**
  * The one text for a Redis that does not answer, what the process cannot do `meanwhile`, and what to do: the
  * API's and workers' periodic warning (watchRedis) and `npm start`'s refusal to start (services/main.ts) alike.
  */
 export function redisAwayText(redisUrl: string, meanwhile: string): string {
-  return `Redis does not answer at REDIS_URL=${redisUrl}: ${meanwhile} until it does; start one on this machine (redis-server --daemonize yes --port 6379) or point REDIS_URL at the lab's Redis (redis://host:6379)`;
+  return `Redis does not answer at REDIS_URL=${withPasswordHidden(redisUrl)}: ${meanwhile} until it does; start one on this machine (redis-server --daemonize yes --port 6379) or point REDIS_URL at the lab's Redis (redis://host:6379)`;
 }
 
 export interface RedisWatchOptions {
@@ -48,7 +49,7 @@ export function watchRedis(options: RedisWatchOptions): RedisWatch {
     const now = Date.now();
     if (answers) {
       if (awaySince !== null) {
-        logger.info({ redis: redisUrl, away_s: Math.round((now - awaySince) / 1000) }, 'Redis answers again');
+        logger.info({ redis: withPasswordHidden(redisUrl), away_s: Math.round((now - awaySince) / 1000) }, 'Redis answers again');
         awaySince = null;
         onBack?.();
       }
@@ -59,7 +60,7 @@ export function watchRedis(options: RedisWatchOptions): RedisWatch {
     if (warnedAt < awaySince || now - warnedAt >= repeatMs) {
       warnedAt = now;
       logger.warn(
-        { redis: redisUrl, away_s: Math.round((now - awaySince) / 1000) },
+        { redis: withPasswordHidden(redisUrl), away_s: Math.round((now - awaySince) / 1000) },
         redisAwayText(redisUrl, meanwhile),
       );
     }
