@@ -75,6 +75,9 @@ export class AnalysisWorker {
    */
   private async recordFinalFailure(store: TransientStore, job: Job<AnalysisJobData> | undefined, error: Error): Promise<void> {
     if (!job?.id) return;
+    // The processor throws UnrecoverableError only after storing the failure with its code; this event can come late,
+    // after an admin's retry removed that failure, and would then store a failure without a code over the next run's.
+    if (error.name === 'UnrecoverableError') return;
     // A job that failed of a full or broken store stays unrecorded, so that recovery runs it again (analysis-processor.ts).
     if (!isFinalAttempt(job, error) || isStoreOutage(error)) return;
     await store
