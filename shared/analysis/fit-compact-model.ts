@@ -126,7 +126,7 @@ function lateValidityWarning(
     noiseRel > COMPACT_VALID_TOLERANCE_REL / 2
       ? `the averaged Zth there is itself noisy (${(100 * noiseRel).toPrecision(2)} % RMS), so more stages would follow the noise: lower the noise or average repeated records`
       : stages < MAX_COMPACT_STAGES
-        ? `ask for more stages (compact_stages = ${stages}; up to ${MAX_COMPACT_STAGES}) and check the model again`
+        ? `ask for more stages than the ${stages} fitted (compact_stages, up to ${MAX_COMPACT_STAGES}) and check the model again`
         : `it has the most stages the fit offers (${MAX_COMPACT_STAGES}): for shorter pulses use the full Foster or Cauer network`;
   const off = `${(100 * worst.max_rel_error).toPrecision(2)} % off Zth between ${formatTime(worst.from_s)} and ${formatTime(worst.to_s)}`;
   return [
