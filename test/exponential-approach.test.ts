@@ -1,3 +1,9 @@
+/**
+ * The exponential approach Rth total is read from where a record's end bends over (exponential-approach.ts).
+ * Truth: closed forms of RC stages charging, Z(t) = sum R_i (1 - exp(-t / tau_i)) (the step response of a Foster
+ * network); the level's standard error against the scatter of seeded noise draws (GUM JCGM 100:2008 linearisation
+ * checked by Monte Carlo, JCGM 101:2008).
+ */
 import { describe, expect, it } from 'vitest';
 import { exponentialApproach } from '../shared/numerics/exponential-approach.js';
 import { logSpacedTimes } from '../shared/models/synthetic-transient.js';

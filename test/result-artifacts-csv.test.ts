@@ -3,8 +3,8 @@
  * result JSON itself, read back through JavaScript's Number parsing (ECMA-262 StringToNumber), which every
  * spreadsheet and script reading the CSV relies on too. Ten significant digits are promised, so each value must
  * agree to a relative 5e-10 (half a unit in the tenth digit). Numbers chosen to break a careless formatter:
- * exponents ending in zero (1e-10, 8.0e-10), large integers and non-integers with trailing zeros (1064764819.9
- * rounds to 1064764820), and a Foster/Cauer sum of R that must equal Rth total as the JSON gives it.
+ * exponents ending in zero (1e-10, 8.0e-10), and large integers and non-integers with trailing zeros (1064764819.9
+ * rounds to 1064764820).
  */
 import { describe, expect, it } from 'vitest';
 import { resultArtifacts } from '../shared/analysis/result-artifacts.js';
