@@ -1,3 +1,4 @@
+import { inverse3x3 } from './inverse-3x3.js';
 import { fitOffsetExponential } from './offset-exponential-fit.js';
 
 /**
@@ -112,8 +113,6 @@ function levelNoiseGain(time_s: Float64Array, amplitude: number, rate_per_s: num
   const norms = columns.map((column) => Math.hypot(...column));
   if (!norms.every((n) => n > 0)) return Infinity;
   const m = columns.map((p, j) => columns.map((q, k) => p.reduce((sum, value, i) => sum + value * q[i], 0) / (norms[j] * norms[k])));
-  const minor00 = m[1][1] * m[2][2] - m[1][2] * m[2][1];
-  const determinant = m[0][0] * minor00 - m[0][1] * (m[1][0] * m[2][2] - m[1][2] * m[2][0]) + m[0][2] * (m[1][0] * m[2][1] - m[1][1] * m[2][0]);
-  const inverse00 = minor00 / determinant;
+  const inverse00 = inverse3x3(m)?.[0][0] ?? Number.NaN;
   return inverse00 > 0 ? Math.sqrt(inverse00) / norms[0] : Infinity;
 }

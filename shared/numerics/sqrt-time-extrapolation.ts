@@ -1,4 +1,5 @@
 import { HeatpathError } from '../errors/heatpath-error.js';
+import { inverse3x3 } from './inverse-3x3.js';
 import { givenEarlyTimeWindow, MIN_OVERRIDE_WINDOW_SAMPLES } from './early-time-window.js';
 import { valueRange } from './value-range.js';
 
@@ -416,7 +417,7 @@ function bendsSmoothlyFrom(
     }
   }
   const matrix = [0, 1, 2].map((row) => [0, 1, 2].map((column) => moments[row + column]));
-  const inverse = invert3(matrix);
+  const inverse = inverse3x3(matrix);
   if (inverse === undefined) return false;
   const [a, b, c] = [0, 1, 2].map((row) => inverse[row][0] * rhs[0] + inverse[row][1] * rhs[1] + inverse[row][2] * rhs[2]);
   let residualSquares = 0;
@@ -428,18 +429,6 @@ function bendsSmoothlyFrom(
   if (!(residualSquares <= noise * noise * dof * (1 + CHI_SQUARE_Z * Math.sqrt(2 / dof)))) return false;
   const difference = Math.abs(values[start] + a - chosenY0);
   return difference < AMBIGUOUS_T0_RELATIVE * range || difference < CHI_SQUARE_Z * Math.hypot(chosenNoiseError, noise * Math.sqrt(Math.max(inverse[0][0], 0)));
-}
-
-/** The inverse of a 3 x 3 matrix by its adjugate, or undefined when it is singular. */
-function invert3(m: number[][]): number[][] | undefined {
-  const cofactor = (r: number, c: number) => {
-    const [r1, r2] = [0, 1, 2].filter((i) => i !== r);
-    const [c1, c2] = [0, 1, 2].filter((j) => j !== c);
-    return (-1) ** (r + c) * (m[r1][c1] * m[r2][c2] - m[r1][c2] * m[r2][c1]);
-  };
-  const determinant = m[0][0] * cofactor(0, 0) + m[0][1] * cofactor(0, 1) + m[0][2] * cofactor(0, 2);
-  if (!(Math.abs(determinant) > 0)) return undefined;
-  return [0, 1, 2].map((row) => [0, 1, 2].map((column) => cofactor(column, row) / determinant));
 }
 
 /** The first index whose time is at least t_s (binary search; the length when none is). */
